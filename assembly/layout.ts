@@ -1,0 +1,162 @@
+// Layout of every flat buffer that crosses the JS/WASM boundary.
+//
+// This one file is compiled twice: by asc into the kernel and by tsc into the
+// TypeScript core, so the two sides cannot disagree about an offset. Keep it to
+// plain `export const NAME = <integer literal>;` lines (valid in both languages).
+//
+// All buffers are little-endian f64 unless stated. Inside the kernel every
+// quantity is SI with angles in radians; the TypeScript core converts degrees
+// at the boundary.
+
+// ---------------------------------------------------------------------------
+export const LAYOUT_VERSION = 1; // bump on any change below
+
+// Model block: (M_SIZE) f64, written by the TS core before a call, read-only
+// inside the kernel. Table "pointers" are byte offsets into WASM memory stored
+// as f64 (exact below 2^53).
+export const M_MASS = 0; // kg
+export const M_LEG_LENGTH = 1; // m, rest length L0
+export const M_STIFFNESS = 2; // N/m, used by stiffness kind CONSTANT
+export const M_GRAVITY = 3; // m/s^2
+export const M_DAMPING = 4; // N·s/m, viscous leg damping (0 = none)
+export const M_ANGLE_KIND = 5; // ANGLE_* below
+export const M_ATTACK = 6; // rad: fixed attack angle, or attack at apex for retraction
+export const M_RETRACTION_RATE = 7; // rad/s, positive steepens the leg
+export const M_ANGLE_MIN = 8; // rad, clamp for retraction (-1e300 = none)
+export const M_ANGLE_MAX = 9; // rad, clamp for retraction (+1e300 = none)
+export const M_ANGLE_TABLE_N = 10; // knots in the angle time table
+export const M_ANGLE_TABLE_T = 11; // ptr: (n) f64 time since apex, s, strictly increasing
+export const M_ANGLE_TABLE_A = 12; // ptr: (n) f64 attack angle, rad
+export const M_STIFFNESS_KIND = 13; // STIFFNESS_* below
+export const M_K_COMPRESSION = 14; // N/m, split: until maximum compression
+export const M_K_EXTENSION = 15; // N/m, split: after maximum compression
+export const M_STIFFNESS_TABLE_N = 16; // knots in the stiffness time table
+export const M_STIFFNESS_TABLE_T = 17; // ptr: (n) f64 touchdown time since apex, s
+export const M_STIFFNESS_TABLE_KC = 18; // ptr: (n) f64 compression stiffness, N/m
+export const M_STIFFNESS_TABLE_KE = 19; // ptr: (n) f64 extension stiffness, N/m
+export const M_TERRAIN_KIND = 20; // TERRAIN_* below
+export const M_TERRAIN_SIGMA = 21; // m, Gaussian step (random walk) or height (independent)
+export const M_TERRAIN_SEED = 22; // integer seed, 0 <= seed < 2^53
+export const M_STEPS_N = 23; // entries in the per-touchdown ground height list
+export const M_STEPS_PTR = 24; // ptr: (n) f64 ground height at touchdown i, m
+export const M_RTOL = 25; // integrator relative tolerance
+export const M_ATOL = 26; // integrator absolute tolerance
+export const M_MAX_STEPS = 27; // integrator step limit per stance
+export const M_TARGET_HEIGHT = 28; // m, apex height the summary's RMS is taken about
+export const M_TARGET_SPEED = 29; // m/s, forward speed the summary's RMS is taken about
+export const M_SIZE = 32;
+
+export const ANGLE_FIXED = 0;
+export const ANGLE_RETRACTION = 1;
+export const ANGLE_TIME_TABLE = 2;
+
+export const STIFFNESS_CONSTANT = 0;
+export const STIFFNESS_SPLIT = 1;
+export const STIFFNESS_TIME_TABLE = 2;
+
+export const TERRAIN_FLAT = 0;
+export const TERRAIN_STEPS = 1;
+export const TERRAIN_RANDOM_WALK = 2;
+export const TERRAIN_INDEPENDENT = 3; // each touchdown height drawn afresh: sigma * N(0,1)
+
+// ---------------------------------------------------------------------------
+// Rollout inputs: (rollouts x I_SIZE) f64, written by the TS core.
+export const I_APEX_HEIGHT = 0; // m, start apex height (absolute)
+export const I_FORWARD_SPEED = 1; // m/s, start forward speed (>= 0)
+export const I_STREAM = 2; // integer terrain stream index (same stream => same terrain)
+export const I_MASS_SCALE = 3; // factor on M_MASS (model mismatch), 1 = nominal
+export const I_STIFFNESS_SCALE = 4; // factor on every stiffness, 1 = nominal
+export const I_LEG_SCALE = 5; // factor on M_LEG_LENGTH, 1 = nominal
+export const I_SIZE = 6;
+
+// ---------------------------------------------------------------------------
+// Stride records: (rollouts x strides x R_SIZE) f64, written by runBatch when a
+// record buffer is given. Record s of a rollout covers apex s -> apex s+1. The
+// record of the stride that failed holds what was known when it failed and NaN
+// elsewhere; records after it are left untouched.
+export const R_APEX_HEIGHT = 0; // m, apex at the start of the stride
+export const R_APEX_SPEED = 1; // m/s
+export const R_APEX_TIME = 2; // s since the start of the rollout
+export const R_APEX_X = 3; // m
+export const R_APEX_TO_TOUCHDOWN = 4; // s
+export const R_CONTACT = 5; // s
+export const R_STRIDE_TIME = 6; // s, apex to apex
+export const R_ATTACK = 7; // rad, leg angle from horizontal at touchdown
+export const R_GROUND = 8; // m, ground height under this touchdown
+export const R_PEAK_FORCE = 9; // N, peak leg force in stance
+export const R_MAX_COMPRESSION = 10; // m, L0 - min r
+export const R_PEAK_FRICTION = 11; // peak |Fx/Fy| in stance
+export const R_ENERGY_BEFORE = 12; // J, at the starting apex (potential from height 0)
+export const R_ENERGY_AFTER = 13; // J, at the next apex
+export const R_DISSIPATED = 14; // J, work done by leg damping
+export const R_STEPS = 15; // accepted integrator steps in stance
+export const R_REJECTED = 16; // rejected integrator steps in stance
+export const R_FOOT_X = 17; // m
+export const R_TOUCHDOWN_VX = 18; // m/s
+export const R_TOUCHDOWN_VY = 19; // m/s
+export const R_LIFTOFF_X = 20; // m
+export const R_LIFTOFF_Y = 21; // m
+export const R_LIFTOFF_VX = 22; // m/s
+export const R_LIFTOFF_VY = 23; // m/s
+export const R_LIFTOFF_ANGLE = 24; // rad, leg angle from horizontal at liftoff (foot behind)
+export const R_NEXT_APEX_HEIGHT = 25; // m
+export const R_NEXT_APEX_SPEED = 26; // m/s
+export const R_NEXT_APEX_X = 27; // m
+export const R_NEXT_APEX_TIME = 28; // s since the start of the rollout
+export const R_K_COMPRESSION = 29; // N/m used before maximum compression
+export const R_K_EXTENSION = 30; // N/m used after maximum compression
+export const R_STATUS = 31; // STATUS_* of this stride
+export const R_MAX_COMPRESSION_TIME = 32; // s after touchdown
+export const R_LIFTOFF_LEG_FORCE = 33; // N, leg force when the foot left (0 unless damping)
+export const R_SIZE = 34;
+
+// ---------------------------------------------------------------------------
+// Rollout summaries: (rollouts x S_SIZE) f64, always written by runBatch.
+export const S_STATUS = 0; // STATUS_* of the rollout (OK = all strides completed)
+export const S_STRIDES_COMPLETED = 1; // strides completed; = index of the failing stride
+export const S_FINAL_HEIGHT = 2; // m, last apex reached
+export const S_FINAL_SPEED = 3; // m/s
+export const S_PREVIOUS_HEIGHT = 4; // m, the apex before the last (= start if none)
+export const S_PREVIOUS_SPEED = 5; // m/s
+export const S_MAX_PEAK_FORCE = 6; // N, over completed strides
+export const S_MAX_FRICTION = 7; // over completed strides
+export const S_MAX_COMPRESSION = 8; // m, over completed strides
+export const S_MIN_ATTACK = 9; // rad, over touchdowns reached
+export const S_MAX_ATTACK = 10; // rad
+export const S_SUM_SQ_HEIGHT_ERROR = 11; // m^2, sum over completed strides of (next apex - target)^2
+export const S_SUM_SQ_SPEED_ERROR = 12; // (m/s)^2
+export const S_TIME = 13; // s, time of the last apex reached
+export const S_DISTANCE = 14; // m, x of the last apex reached
+export const S_STEPS = 15; // integrator steps, all strides
+export const S_REJECTED = 16; // rejected steps, all strides
+export const S_SIZE = 17;
+
+// ---------------------------------------------------------------------------
+// Rollout / stride status codes. Failure is data: nothing here aborts.
+export const STATUS_OK = 0;
+export const STATUS_BODY_HIT_GROUND = 1; // the point mass reached the ground
+export const STATUS_FELL_BACKWARD = 2; // forward speed fell below zero in stance
+export const STATUS_NO_LIFTOFF = 3; // stance did not end within its time limit
+export const STATUS_NO_APEX = 4; // left the ground still descending
+export const STATUS_LEG_NOT_PLACEABLE = 5; // apex below the touchdown height
+export const STATUS_STEP_UNDERFLOW = 6; // integrator step size underflow
+export const STATUS_NON_FINITE = 7; // a state became NaN or infinite
+export const STATUS_STEP_LIMIT = 8; // integrator step limit reached
+export const STATUS_COUNT = 9;
+
+// ---------------------------------------------------------------------------
+// Trajectory samples: (samples x T_SIZE) f64, written by traceRollout.
+export const T_TIME = 0; // s since the start
+export const T_X = 1; // m, body
+export const T_Y = 2; // m
+export const T_VX = 3; // m/s
+export const T_VY = 4; // m/s
+export const T_FOOT_X = 5; // m, foot (in flight: where the commanded leg points)
+export const T_FOOT_Y = 6; // m
+export const T_LEG_FORCE = 7; // N, along the leg (0 in flight)
+export const T_PHASE = 8; // PHASE_* below
+export const T_STRIDE = 9; // stride index
+export const T_SIZE = 10;
+
+export const PHASE_FLIGHT = 0;
+export const PHASE_STANCE = 1;

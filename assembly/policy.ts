@@ -1,0 +1,121 @@
+// Touchdown-angle and stiffness policies, read from the model block.
+// Angles in radians, times in seconds since the apex.
+
+import {
+  M_ANGLE_KIND, M_ATTACK, M_RETRACTION_RATE, M_ANGLE_MIN, M_ANGLE_MAX,
+  M_ANGLE_TABLE_N, M_ANGLE_TABLE_T, M_ANGLE_TABLE_A,
+  M_STIFFNESS_KIND, M_STIFFNESS, M_K_COMPRESSION, M_K_EXTENSION,
+  M_STIFFNESS_TABLE_N, M_STIFFNESS_TABLE_T, M_STIFFNESS_TABLE_KC, M_STIFFNESS_TABLE_KE,
+  ANGLE_FIXED, ANGLE_RETRACTION, STIFFNESS_CONSTANT, STIFFNESS_SPLIT,
+} from "./layout";
+
+@inline export function mget(model: usize, field: i32): f64 {
+  return load<f64>(model + (<usize>field << 3));
+}
+
+@inline function at(ptr: usize, i: i32): f64 {
+  return load<f64>(ptr + (<usize>i << 3));
+}
+
+// Piecewise-linear lookup, held flat past both ends. Times strictly increasing.
+export function interpolate(tPtr: usize, vPtr: usize, n: i32, t: f64): f64 {
+  if (t <= at(tPtr, 0)) return at(vPtr, 0);
+  if (t >= at(tPtr, n - 1)) return at(vPtr, n - 1);
+  let lo = 0;
+  let hi = n - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (at(tPtr, mid) <= t) lo = mid;
+    else hi = mid;
+  }
+  const t0 = at(tPtr, lo);
+  const t1 = at(tPtr, hi);
+  const w = (t - t0) / (t1 - t0);
+  return at(vPtr, lo) + w * (at(vPtr, hi) - at(vPtr, lo));
+}
+
+// Attack angle commanded at time t since the apex.
+export function attackAt(model: usize, t: f64): f64 {
+  const kind = <i32>mget(model, M_ANGLE_KIND);
+  if (kind == ANGLE_FIXED) return mget(model, M_ATTACK);
+  if (kind == ANGLE_RETRACTION) {
+    let a = mget(model, M_ATTACK) + mget(model, M_RETRACTION_RATE) * t;
+    const lo = mget(model, M_ANGLE_MIN);
+    const hi = mget(model, M_ANGLE_MAX);
+    if (a < lo) a = lo;
+    if (a > hi) a = hi;
+    return a;
+  }
+  return interpolate(
+    <usize>mget(model, M_ANGLE_TABLE_T), <usize>mget(model, M_ANGLE_TABLE_A),
+    <i32>mget(model, M_ANGLE_TABLE_N), t,
+  );
+}
+
+// Times (s since apex) where the angle schedule's slope may change, written in
+// increasing order into dst (at most 2 + table knots); returns how many.
+export function angleBreakpoints(model: usize, dst: usize, maxCount: i32): i32 {
+  const kind = <i32>mget(model, M_ANGLE_KIND);
+  if (kind == ANGLE_FIXED) return 0;
+  if (kind == ANGLE_RETRACTION) {
+    const w = mget(model, M_RETRACTION_RATE);
+    if (w == 0.0) return 0;
+    const a0 = mget(model, M_ATTACK);
+    let t1 = (mget(model, M_ANGLE_MIN) - a0) / w;
+    let t2 = (mget(model, M_ANGLE_MAX) - a0) / w;
+    if (t1 > t2) { const s = t1; t1 = t2; t2 = s; }
+    let n = 0;
+    if (t1 > 0.0 && isFinite(t1)) { store<f64>(dst, t1); n++; }
+    if (t2 > 0.0 && isFinite(t2)) { store<f64>(dst + (<usize>n << 3), t2); n++; }
+    return n;
+  }
+  const tPtr = <usize>mget(model, M_ANGLE_TABLE_T);
+  const knots = <i32>mget(model, M_ANGLE_TABLE_N);
+  let n = 0;
+  for (let i = 0; i < knots && n < maxCount; i++) {
+    const t = at(tPtr, i);
+    if (t > 0.0) { store<f64>(dst + (<usize>n << 3), t); n++; }
+  }
+  return n;
+}
+
+// Largest |d attack / dt| of the schedule, rad/s (for the concavity test).
+export function maxAngleRate(model: usize): f64 {
+  const kind = <i32>mget(model, M_ANGLE_KIND);
+  if (kind == ANGLE_FIXED) return 0.0;
+  if (kind == ANGLE_RETRACTION) return Math.abs(mget(model, M_RETRACTION_RATE));
+  const tPtr = <usize>mget(model, M_ANGLE_TABLE_T);
+  const aPtr = <usize>mget(model, M_ANGLE_TABLE_A);
+  const n = <i32>mget(model, M_ANGLE_TABLE_N);
+  let w: f64 = 0.0;
+  for (let i = 1; i < n; i++) {
+    const s = Math.abs((at(aPtr, i) - at(aPtr, i - 1)) / (at(tPtr, i) - at(tPtr, i - 1)));
+    if (s > w) w = s;
+  }
+  return w;
+}
+
+// Stiffness for this stance, from the touchdown time since apex.
+export let stanceKc: f64 = 0.0;
+export let stanceKe: f64 = 0.0;
+export let stanceSplit: bool = false;
+
+export function chooseStiffness(model: usize, tTouchdown: f64, scale: f64): void {
+  const kind = <i32>mget(model, M_STIFFNESS_KIND);
+  if (kind == STIFFNESS_CONSTANT) {
+    stanceKc = mget(model, M_STIFFNESS) * scale;
+    stanceKe = stanceKc;
+    stanceSplit = false;
+    return;
+  }
+  if (kind == STIFFNESS_SPLIT) {
+    stanceKc = mget(model, M_K_COMPRESSION) * scale;
+    stanceKe = mget(model, M_K_EXTENSION) * scale;
+  } else {
+    const tPtr = <usize>mget(model, M_STIFFNESS_TABLE_T);
+    const n = <i32>mget(model, M_STIFFNESS_TABLE_N);
+    stanceKc = interpolate(tPtr, <usize>mget(model, M_STIFFNESS_TABLE_KC), n, tTouchdown) * scale;
+    stanceKe = interpolate(tPtr, <usize>mget(model, M_STIFFNESS_TABLE_KE), n, tTouchdown) * scale;
+  }
+  stanceSplit = stanceKc != stanceKe;
+}

@@ -1,0 +1,140 @@
+// Stance events and their location on the stepper's interpolant.
+//
+// Each event is a scalar function g of the stance state [px, py, vx, vy, W]
+// (foot at the origin). The stance driver evaluates g at both ends of every
+// accepted step; when g changes sign in the direction that matters, locate()
+// finds the crossing on the dense output (Illinois regula falsi, Dowell &
+// Jarratt 1971), and refine() polishes it with Newton steps on the true
+// solution, each a short Runge–Kutta step, so that the event state is as
+// accurate as the integrator and not merely as the interpolant.
+
+import { dense, step, advance, YI, YN } from "./dopri5";
+import { stanceMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
+
+// Liftoff: r - L0 without damping; with damping the foot leaves when the leg
+// force k (L0 - r) - c r' falls to zero (a foot cannot pull), g = -force.
+export const EV_LIFTOFF = 0;
+// Maximum compression: g = r'.
+export const EV_MAX_COMPRESSION = 1;
+// Body reaches the ground: g = -py.
+export const EV_BODY_GROUND = 2;
+// Forward speed falls below zero: g = -vx (crossing when g becomes > 0).
+export const EV_BACKWARD = 3;
+// Peak leg force (only with damping, where it is not at maximum compression):
+// g = -dF/dt = k r' + c r''.
+export const EV_FORCE_PEAK = 4;
+
+@inline function radius(p: usize): f64 {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  return Math.sqrt(px * px + py * py);
+}
+
+// Leg force along the leg, N (positive pushes the body away from the foot).
+export function legForce(p: usize): f64 {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  const vx = load<f64>(p, 16);
+  const vy = load<f64>(p, 24);
+  const r = Math.sqrt(px * px + py * py);
+  const rdot = (px * vx + py * vy) / r;
+  return stanceK * (stanceLeg - r) - stanceC * rdot;
+}
+
+@inline function radialRate(p: usize): f64 {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  return (px * load<f64>(p, 16) + py * load<f64>(p, 24)) / Math.sqrt(px * px + py * py);
+}
+
+// r'' from the equations of motion: (v^2 - r'^2)/r + F/m - g py / r.
+function radialAcceleration(p: usize): f64 {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  const vx = load<f64>(p, 16);
+  const vy = load<f64>(p, 24);
+  const r = Math.sqrt(px * px + py * py);
+  const rdot = (px * vx + py * vy) / r;
+  const force = stanceK * (stanceLeg - r) - stanceC * rdot;
+  return (vx * vx + vy * vy - rdot * rdot) / r + force / stanceMass - (stanceG * py) / r;
+}
+
+export function eventValue(ev: i32, p: usize): f64 {
+  if (ev == EV_LIFTOFF) {
+    if (stanceC == 0.0) return radius(p) - stanceLeg;
+    return -legForce(p);
+  }
+  if (ev == EV_MAX_COMPRESSION) return radialRate(p);
+  if (ev == EV_BODY_GROUND) return -load<f64>(p, 8);
+  if (ev == EV_BACKWARD) return -load<f64>(p, 16);
+  // EV_FORCE_PEAK
+  return stanceK * radialRate(p) + stanceC * radialAcceleration(p);
+}
+
+// dg/dt, for Newton refinement of the events that end or split a stance.
+function eventRate(ev: i32, p: usize): f64 {
+  if (ev == EV_LIFTOFF) {
+    if (stanceC == 0.0) return radialRate(p);
+    return stanceK * radialRate(p) + stanceC * radialAcceleration(p);
+  }
+  if (ev == EV_MAX_COMPRESSION) return radialAcceleration(p);
+  return 0.0;
+}
+
+// Does g cross in the direction that fires event ev between g0 and g1?
+@inline export function crosses(ev: i32, g0: f64, g1: f64): bool {
+  if (ev == EV_BACKWARD) return g0 <= 0.0 && g1 > 0.0;
+  return g0 < 0.0 && g1 >= 0.0;
+}
+
+// Fraction theta in (0, 1] of the last step where g crosses zero, given the end
+// values g0 < 0 <= g1 (or the EV_BACKWARD variant). Illinois method on the
+// interpolant; 1e-14 in theta is far below the interpolant's own error.
+export function locate(ev: i32, g0: f64, g1: f64): f64 {
+  let a: f64 = 0.0;
+  let b: f64 = 1.0;
+  let ga = g0;
+  let gb = g1;
+  if (gb == 0.0) return 1.0;
+  let side = 0;
+  let theta: f64 = 1.0;
+  for (let it = 0; it < 80; it++) {
+    theta = (a * gb - b * ga) / (gb - ga);
+    if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
+    dense(theta);
+    const g = eventValue(ev, YI);
+    const upper = ev == EV_BACKWARD ? g > 0.0 : g >= 0.0;
+    if (upper) {
+      b = theta;
+      gb = g;
+      if (side == 1) ga *= 0.5;
+      side = 1;
+    } else {
+      a = theta;
+      ga = g;
+      if (side == -1) gb *= 0.5;
+      side = -1;
+    }
+    if (b - a < 1e-14) break;
+  }
+  return b;
+}
+
+// Newton polish of an event on the true solution. On entry YN (with K7 = f(YN))
+// is the state at the located time; on exit YN is the polished state. Returns
+// the time shift applied. Each iteration is one short Runge–Kutta step.
+export function refine(ev: i32, timeScale: f64, rtol: f64, atol: f64): f64 {
+  let shift: f64 = 0.0;
+  for (let it = 0; it < 3; it++) {
+    const g = eventValue(ev, YN);
+    const gd = eventRate(ev, YN);
+    if (gd == 0.0 || !isFinite(gd)) break;
+    const dt = -g / gd;
+    if (!(Math.abs(dt) > 1e-16 * timeScale)) break;
+    if (Math.abs(dt) > 1e-3 * timeScale) break; // not a small correction: keep the located state
+    advance();
+    step(dt, rtol, atol);
+    shift += dt;
+  }
+  return shift;
+}
