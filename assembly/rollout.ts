@@ -25,7 +25,7 @@ import { touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE } from "./flight
 import { gaussian } from "./rng";
 import {
   runStance, outContact, outPx, outPy, outVx, outVy, outMaxCompression, outMaxCompressionTime,
-  outPeakForce, outPeakFriction, outDissipated, outLiftoffForce, outSteps, outRejected, outNextH,
+  outPeakForce, outPeakFriction, outDissipated, outLiftoffForce, outSteps, outRejected, outFirstH,
 } from "./stance";
 import {
   tracing, traceFlight, emit, traceStride, traceFootX, traceGround, traceTouchdownTime,
@@ -212,7 +212,7 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
     vx = outVx;
     x = xNext;
     t = tNext;
-    h = outNextH;
+    h = outFirstH;
     completed++;
   }
 

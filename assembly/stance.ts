@@ -17,6 +17,9 @@ import {
 } from "./rk/events";
 import { tracing, traceStance } from "./trace";
 
+// Event location tolerance in step fractions (see locate()).
+const LOCATE_TOL: f64 = 1e-9;
+
 export let outContact: f64 = 0.0; // s, touchdown to liftoff (or to the failure)
 export let outPx: f64 = 0.0; // liftoff state relative to the foot
 export let outPy: f64 = 0.0;
@@ -30,7 +33,7 @@ export let outDissipated: f64 = 0.0; // J
 export let outLiftoffForce: f64 = 0.0; // N
 export let outSteps: i32 = 0;
 export let outRejected: i32 = 0;
-export let outNextH: f64 = 0.0; // the step size the controller proposed last
+export let outFirstH: f64 = 0.0; // the first accepted step: a good start for the next stance
 
 @inline function frictionRatio(p: usize): f64 {
   const py = load<f64>(p, 8);
@@ -89,15 +92,15 @@ export function runStance(
   let gf0 = damped ? eventValue(EV_FORCE_PEAK, Y0) : 0.0;
 
   while (true) {
-    if (outSteps + outRejected >= maxSteps) return finish(STATUS_STEP_LIMIT, t, h);
-    if (t > tLimit) return finish(STATUS_NO_LIFTOFF, t, h);
-    if (h < hMin) return finish(STATUS_STEP_UNDERFLOW, t, h);
+    if (outSteps + outRejected >= maxSteps) return finish(STATUS_STEP_LIMIT, t);
+    if (t > tLimit) return finish(STATUS_NO_LIFTOFF, t);
+    if (h < hMin) return finish(STATUS_STEP_UNDERFLOW, t);
 
     const err = step(h, rtol, atol);
     if (isNaN(err)) {
       // A step so long that the state blew up: shrink hard and retry.
       outRejected++;
-      if (++nonFinite > 40) return finish(STATUS_NON_FINITE, t, h);
+      if (++nonFinite > 40) return finish(STATUS_NON_FINITE, t);
       h *= 0.1;
       afterReject = true;
       continue;
@@ -108,6 +111,7 @@ export function runStance(
       afterReject = true;
       continue;
     }
+    if (outSteps == 0) outFirstH = h;
     outSteps++;
 
     const gl1 = eventValue(EV_LIFTOFF, YN);
@@ -120,22 +124,22 @@ export function runStance(
     let stopEvent = -1;
     let maxTheta: f64 = 2.0;
     if (compressing && crosses(EV_MAX_COMPRESSION, gm0, gm1)) {
-      maxTheta = locate(EV_MAX_COMPRESSION, gm0, gm1);
+      maxTheta = locate(EV_MAX_COMPRESSION, gm0, gm1, LOCATE_TOL);
       if (split) {
         stopTheta = maxTheta;
         stopEvent = EV_MAX_COMPRESSION;
       }
     }
     if (crosses(EV_LIFTOFF, gl0, gl1)) {
-      const th = locate(EV_LIFTOFF, gl0, gl1);
+      const th = locate(EV_LIFTOFF, gl0, gl1, LOCATE_TOL);
       if (th < stopTheta) { stopTheta = th; stopEvent = EV_LIFTOFF; }
     }
     if (crosses(EV_BODY_GROUND, gg0, gg1)) {
-      const th = locate(EV_BODY_GROUND, gg0, gg1);
+      const th = locate(EV_BODY_GROUND, gg0, gg1, LOCATE_TOL);
       if (th < stopTheta) { stopTheta = th; stopEvent = EV_BODY_GROUND; }
     }
     if (crosses(EV_BACKWARD, gb0, gb1)) {
-      const th = locate(EV_BACKWARD, gb0, gb1);
+      const th = locate(EV_BACKWARD, gb0, gb1, LOCATE_TOL);
       if (th < stopTheta) { stopTheta = th; stopEvent = EV_BACKWARD; }
     }
     // Record-only events before the stop.
@@ -147,7 +151,7 @@ export function runStance(
     if (damped) {
       const gf1 = eventValue(EV_FORCE_PEAK, YN);
       if (crosses(EV_FORCE_PEAK, gf0, gf1)) {
-        const th = locate(EV_FORCE_PEAK, gf0, gf1);
+        const th = locate(EV_FORCE_PEAK, gf0, gf1, LOCATE_TOL);
         if (th <= stopTheta) {
           dense(th);
           const f = legForce(YI);
@@ -175,8 +179,8 @@ export function runStance(
       continue;
     }
 
-    if (stopEvent == EV_BODY_GROUND) return finish(STATUS_BODY_HIT_GROUND, t + stopTheta * h, h);
-    if (stopEvent == EV_BACKWARD) return finish(STATUS_FELL_BACKWARD, t + stopTheta * h, h);
+    if (stopEvent == EV_BODY_GROUND) return finish(STATUS_BODY_HIT_GROUND, t + stopTheta * h);
+    if (stopEvent == EV_BACKWARD) return finish(STATUS_FELL_BACKWARD, t + stopTheta * h);
 
     // Liftoff or the stiffness switch: re-take the step to the located time on
     // the true solution, then polish with Newton.
@@ -213,14 +217,13 @@ export function runStance(
     outVy = load<f64>(YN, 24);
     outDissipated = load<f64>(YN, 32);
     if (!isFinite(outPx) || !isFinite(outPy) || !isFinite(outVx) || !isFinite(outVy)) {
-      return finish(STATUS_NON_FINITE, tEvent, hNext);
+      return finish(STATUS_NON_FINITE, tEvent);
     }
-    return finish(STATUS_OK, tEvent, hNext);
+    return finish(STATUS_OK, tEvent);
   }
 }
 
-function finish(status: i32, t: f64, hNext: f64): i32 {
+function finish(status: i32, t: f64): i32 {
   outContact = t;
-  outNextH = hNext;
   return status;
 }

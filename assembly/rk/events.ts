@@ -89,8 +89,10 @@ function eventRate(ev: i32, p: usize): f64 {
 
 // Fraction theta in (0, 1] of the last step where g crosses zero, given the end
 // values g0 < 0 <= g1 (or the EV_BACKWARD variant). Illinois method on the
-// interpolant; 1e-14 in theta is far below the interpolant's own error.
-export function locate(ev: i32, g0: f64, g1: f64): f64 {
+// interpolant, to `tol` in theta: the events that end or split a stance are
+// then polished by refine(), and the extrema recorded at the others (maximum
+// compression, peak force) are second-order insensitive to the time.
+export function locate(ev: i32, g0: f64, g1: f64, tol: f64): f64 {
   let a: f64 = 0.0;
   let b: f64 = 1.0;
   let ga = g0;
@@ -115,7 +117,7 @@ export function locate(ev: i32, g0: f64, g1: f64): f64 {
       if (side == -1) gb *= 0.5;
       side = -1;
     }
-    if (b - a < 1e-14) break;
+    if (b - a < tol) break;
   }
   return b;
 }

@@ -9,6 +9,7 @@ export let system: i32 = SYSTEM_STANCE;
 
 // Stance parameters, set by the stance driver (stance.ts) per stance phase.
 export let stanceMass: f64 = 1.0; // kg
+export let stanceInvMass: f64 = 1.0; // 1/kg
 export let stanceLeg: f64 = 1.0; // m, rest length L0
 export let stanceK: f64 = 1.0; // N/m, current stiffness (switches at max compression)
 export let stanceC: f64 = 0.0; // N·s/m, leg damping
@@ -20,6 +21,7 @@ export let arenstorfMu: f64 = 0.012277471;
 export function setStance(m: f64, leg: f64, k: f64, c: f64, g: f64): void {
   system = SYSTEM_STANCE;
   stanceMass = m;
+  stanceInvMass = 1.0 / m;
   stanceLeg = leg;
   stanceK = k;
   stanceC = c;
@@ -39,16 +41,12 @@ export function setArenstorf(mu: f64): void {
 //   m px'' = F px / r,  m py'' = F py / r - m g,  F = k (L0 - r) - c r',
 //   W' = c r'^2 (work dissipated by the damper).
 // State layout: [px, py, vx, vy, W].
-@inline function stanceRhs(y: usize, dy: usize): void {
-  const px = load<f64>(y, 0);
-  const py = load<f64>(y, 8);
-  const vx = load<f64>(y, 16);
-  const vy = load<f64>(y, 24);
+@inline function stanceRhs(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
   const r = Math.sqrt(px * px + py * py);
   const inv = 1.0 / r;
   const rdot = (px * vx + py * vy) * inv;
   const force = stanceK * (stanceLeg - r) - stanceC * rdot;
-  const a = force * inv / stanceMass;
+  const a = force * inv * stanceInvMass;
   store<f64>(dy, vx, 0);
   store<f64>(dy, vy, 8);
   store<f64>(dy, a * px, 16);
@@ -56,13 +54,9 @@ export function setArenstorf(mu: f64): void {
   store<f64>(dy, stanceC * rdot * rdot, 32);
 }
 
-@inline function arenstorfRhs(y: usize, dy: usize): void {
+@inline function arenstorfRhs(x: f64, yy: f64, vx: f64, vy: f64, dy: usize): void {
   const mu = arenstorfMu;
   const mup = 1.0 - mu;
-  const x = load<f64>(y, 0);
-  const yy = load<f64>(y, 8);
-  const vx = load<f64>(y, 16);
-  const vy = load<f64>(y, 24);
   const d1a = (x + mu) * (x + mu) + yy * yy;
   const d2a = (x - mup) * (x - mup) + yy * yy;
   const d1 = d1a * Math.sqrt(d1a);
@@ -74,7 +68,14 @@ export function setArenstorf(mu: f64): void {
   store<f64>(dy, 0.0, 32);
 }
 
+// f(y) into dy, the state given component by component (the stepper keeps it
+// in locals); the last component (dissipated work) enters no right-hand side.
+@inline export function rhs5(y0: f64, y1: f64, y2: f64, y3: f64, y4: f64, dy: usize): void {
+  if (system == SYSTEM_STANCE) stanceRhs(y0, y1, y2, y3, dy);
+  else arenstorfRhs(y0, y1, y2, y3, dy);
+}
+
+// f(y) into dy, the state read from memory at y.
 export function rhs(y: usize, dy: usize): void {
-  if (system == SYSTEM_STANCE) stanceRhs(y, dy);
-  else arenstorfRhs(y, dy);
+  rhs5(load<f64>(y, 0), load<f64>(y, 8), load<f64>(y, 16), load<f64>(y, 24), load<f64>(y, 32), dy);
 }
