@@ -59,6 +59,8 @@ export interface TraceResult {
   records: Float64Array;
   /** (S_SIZE) f64. */
   summary: Float64Array;
+  /** The sample buffer filled up before the rollout ended. */
+  truncated: boolean;
 }
 
 export class EngineError extends Error {}
@@ -176,6 +178,7 @@ export class Engine {
       samples: this.view(samples, n * L.T_SIZE).slice(),
       records: this.view(records, strides * L.R_SIZE).slice(),
       summary: this.view(summary, L.S_SIZE).slice(),
+      truncated: n >= capacity,
     };
   }
 

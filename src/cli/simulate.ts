@@ -1,0 +1,255 @@
+// `pronk simulate [FILE] [--json] [--strides N] [--trace-interval S]`: one rollout of a scenario, shown stride by stride.
+
+import { InputError, describeFound } from '../core/errors.js';
+import { SAFETY_CAUTION } from '../core/safety.js';
+import {
+  MAX_STRIDES,
+  demoScenario,
+  readScenarioFile,
+  type AnglePolicy,
+  type Scenario,
+  type StiffnessPolicy,
+  type Terrain,
+} from '../core/scenario.js';
+import type { SimulationResult } from '../core/simulate.js';
+import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import type { CliIO, Command, ParsedCommandLine } from './main.js';
+
+const DEMO_SOURCE = 'scenarios/demo.json';
+
+export const simulateCommand: Command = {
+  name: 'simulate',
+  summary: 'run a scenario stride by stride: apexes, touchdowns, leg forces and the outcome',
+  usage: 'simulate [FILE] [--json] [--strides N] [--trace-interval S]',
+  arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
+  options: {
+    json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
+    strides: { type: 'string', valueName: 'N', description: "run N strides instead of the scenario's \"strides\"" },
+    'trace-interval': {
+      type: 'string',
+      valueName: 'S',
+      description: 'with --json, add a "trajectory": body, foot and leg force sampled every S seconds (plus touchdown and liftoff)',
+    },
+  },
+  maxPositionals: 1,
+  run: runSimulate,
+};
+
+async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
+  const json = values.json === true;
+  const strides = parseStridesOption(values.strides);
+  const traceInterval = parseTraceIntervalOption(values['trace-interval']);
+  const file = positionals[0];
+  let scenario: Scenario;
+  if (file === undefined) {
+    if (!json) io.stderr.write(`pronk simulate: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
+    scenario = demoScenario();
+  } else {
+    scenario = await readScenarioFile(file);
+  }
+  // loaded on demand so that --help and input errors never wait for the WASM engine
+  const { simulate } = await import('../core/simulate.js');
+  const result = await simulate(scenario, {
+    ...(strides === undefined ? {} : { strides }),
+    ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
+  });
+  if (json) {
+    io.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
+  } else {
+    io.stdout.write(renderSimulation(scenario, result, { stridesRequested: strides ?? scenario.strides }));
+  }
+  return 0;
+}
+
+export function parseStridesOption(value: string | boolean | undefined): number | undefined {
+  if (value === undefined || typeof value === 'boolean') return undefined;
+  const issue = (expected: string) =>
+    new InputError([{ path: '--strides', expected, found: describeFound(value) }], { source: 'pronk simulate' });
+  if (!/^\s*\+?\d+\s*$/.test(value) || Number(value) < 1) throw issue('a positive integer');
+  const strides = Number(value);
+  if (strides > MAX_STRIDES) throw issue(`a positive integer no larger than ${MAX_STRIDES}`);
+  return strides;
+}
+
+// Trace sample spacing: a positive number of seconds, at least 1e-5 s (100 kHz is far finer than
+// any plot needs and keeps the sample buffer bounded).
+export function parseTraceIntervalOption(value: string | boolean | undefined): number | undefined {
+  if (value === undefined || typeof value === 'boolean') return undefined;
+  const interval = Number(value);
+  if (value.trim() === '' || !Number.isFinite(interval) || interval < 1e-5 || interval > 10) {
+    throw new InputError(
+      [{ path: '--trace-interval', expected: 'a time step in seconds from 1e-5 to 10', found: describeFound(value) }],
+      { source: 'pronk simulate' },
+    );
+  }
+  return interval;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The terminal view: what was run, one row per stride, the outcome, the caution.
+
+const MAX_ROWS_SHOWN = 60; // past this many strides, show the first and last ones only
+const HEAD_ROWS = 40;
+const TAIL_ROWS = 10;
+const TEXT_WIDTH = 96;
+
+const STRIDE_COLUMNS: Column[] = [
+  { title: 'stride', unit: '', align: 'left' },
+  { title: 'apex height', unit: 'm' },
+  { title: 'speed', unit: 'm/s' },
+  { title: 'attack', unit: 'deg' },
+  { title: 'ground', unit: 'm' },
+  { title: 'contact', unit: 'ms' },
+  { title: 'stride', unit: 'ms' },
+  { title: 'peak force', unit: 'N' },
+  { title: '', unit: 'x weight' },
+  { title: 'compression', unit: 'max mm' },
+  { title: '', unit: '% leg' },
+  { title: 'friction', unit: '|Fx/Fy|' },
+];
+
+export function renderSimulation(
+  scenario: Scenario,
+  result: SimulationResult,
+  options: { stridesRequested?: number } = {},
+): string {
+  const { body } = scenario;
+  const weight = body.mass_kg * body.gravity_m_per_s2;
+  const stridesRequested = options.stridesRequested ?? scenario.strides;
+
+  const header = [
+    scenario.name ?? 'Unnamed scenario',
+    fields([
+      ['body', describeBody(scenario)],
+      ['policy', `${describeAngle(scenario.policy.angle)}; ${describeStiffness(scenario.policy.stiffness, scenario)}`],
+      ['terrain', describeTerrain(scenario.terrain)],
+      [
+        'start',
+        `apex ${plain(scenario.start.apex_height_m)} m at ${plain(scenario.start.forward_speed_m_per_s)} m/s, ` +
+          `energy ${fixed(result.energy_J, 2)} J; ${count(stridesRequested, 'stride')} requested`,
+      ],
+    ]),
+  ].join('\n');
+
+  // The start apex, then per stride its touchdown and stance and the apex it reaches.
+  const start = result.apexes[0];
+  const rows: (string[] | string)[] = [
+    ['start', fixed(start?.height_m, 4), fixed(start?.forward_speed_m_per_s, 3), ...new Array(9).fill('')],
+  ];
+  const strideRows = result.strides.map((stride, i) => {
+    const apex = result.apexes[i + 1];
+    return [
+      String(stride.index),
+      fixed(apex?.height_m, 4),
+      fixed(apex?.forward_speed_m_per_s, 3),
+      fixed(stride.attack_deg, 2),
+      fixed(stride.ground_height_m, 4),
+      fixed(stride.contact_s * 1000, 1),
+      fixed(stride.stride_s * 1000, 1),
+      fixed(stride.peak_leg_force_N, 1),
+      fixed(stride.peak_leg_force_N / weight, 2),
+      fixed(stride.max_compression_m * 1000, 1),
+      fixed((stride.max_compression_m / body.leg_length_m) * 100, 1),
+      fixed(stride.peak_friction_ratio, 3),
+    ];
+  });
+  if (strideRows.length > MAX_ROWS_SHOWN) {
+    const left = strideRows.length - HEAD_ROWS - TAIL_ROWS;
+    rows.push(
+      ...strideRows.slice(0, HEAD_ROWS),
+      `... ${count(left, 'stride')} not shown (--json lists every stride) ...`,
+      ...strideRows.slice(-TAIL_ROWS),
+    );
+  } else {
+    rows.push(...strideRows);
+  }
+
+  const caution = wrap(SAFETY_CAUTION, TEXT_WIDTH, 'Caution: ', '  ');
+  return [header, '', table(STRIDE_COLUMNS, rows), '', describeOutcome(result), '', caution, ''].join('\n');
+}
+
+function describeOutcome({ outcome }: SimulationResult): string {
+  const completed = count(outcome.strides_completed, 'stride');
+  if (outcome.status === 'completed') return `Outcome: completed ${completed}.`;
+  const failedAt = outcome.failed_stride ?? outcome.strides_completed;
+  const code = outcome.reason ? ` (${outcome.reason})` : '';
+  const detail = (outcome as { detail?: string | null }).detail;
+  return `Outcome: failed at stride ${failedAt}${code}${detail ? `: ${detail}` : ''}; ${completed} completed.`;
+}
+
+function describeBody({ body }: Scenario): string {
+  const parts = [
+    `${plain(body.mass_kg)} kg`,
+    `leg ${plain(body.leg_length_m)} m`,
+    `stiffness ${plain(body.leg_stiffness_N_per_m)} N/m`,
+    `gravity ${plain(body.gravity_m_per_s2)} m/s^2`,
+    body.leg_damping_N_s_per_m > 0 ? `leg damping ${plain(body.leg_damping_N_s_per_m)} N s/m` : 'no leg damping',
+  ];
+  return parts.join(', ');
+}
+
+export function describeAngle(angle: AnglePolicy): string {
+  switch (angle.kind) {
+    case 'fixed':
+      return `fixed attack angle ${plain(angle.attack_deg)} deg`;
+    case 'retraction': {
+      const rate = angle.rate_deg_per_s;
+      const motion =
+        rate > 0
+          ? `retracting (steepening) at ${plain(rate)} deg/s`
+          : rate < 0
+            ? `protracting (flattening) at ${plain(-rate)} deg/s`
+            : 'held (rate 0)';
+      const { min_deg: low, max_deg: high } = angle;
+      const clamp =
+        low !== undefined && high !== undefined
+          ? `, kept within ${plain(low)}-${plain(high)} deg`
+          : low !== undefined
+            ? `, at least ${plain(low)} deg`
+            : high !== undefined
+              ? `, at most ${plain(high)} deg`
+              : '';
+      return `attack ${plain(angle.attack_at_apex_deg)} deg at apex, ${motion}${clamp}`;
+    }
+    case 'time_table': {
+      const times = angle.time_since_apex_s;
+      const angles = angle.attack_deg;
+      return (
+        `attack from a table of ${count(times.length, 'knot')} over ${plain(times[0])}-${plain(times[times.length - 1])} s after apex ` +
+        `(${plain(Math.min(...angles))}-${plain(Math.max(...angles))} deg)`
+      );
+    }
+  }
+}
+
+export function describeStiffness(stiffness: StiffnessPolicy, scenario: Scenario): string {
+  switch (stiffness.kind) {
+    case 'constant':
+      return `constant leg stiffness ${plain(scenario.body.leg_stiffness_N_per_m)} N/m`;
+    case 'split':
+      return `stiffness ${plain(stiffness.compression_N_per_m)} N/m in compression, ${plain(stiffness.extension_N_per_m)} N/m in extension`;
+    case 'time_table': {
+      const range = (values: number[]) => `${plain(Math.min(...values))}-${plain(Math.max(...values))} N/m`;
+      return (
+        `stiffness by touchdown time, ${count(stiffness.time_since_apex_s.length, 'knot')} ` +
+        `(compression ${range(stiffness.compression_N_per_m)}, extension ${range(stiffness.extension_N_per_m)})`
+      );
+    }
+  }
+}
+
+export function describeTerrain(terrain: Terrain): string {
+  switch (terrain.kind) {
+    case 'flat':
+      return 'flat ground';
+    case 'steps': {
+      const heights = terrain.ground_heights_m;
+      const shown = heights.slice(0, 6).map(plain).join(', ') + (heights.length > 6 ? ', ...' : '');
+      return `steps: ground ${shown} m at successive touchdowns, the last height holding after`;
+    }
+    case 'random_walk':
+      return `random walk, each touchdown the previous height plus N(0, ${plain(terrain.sigma_m)} m), seed ${terrain.seed}`;
+    case 'random_heights':
+      return `random heights, each touchdown independently N(0, ${plain(terrain.sigma_m)} m), seed ${terrain.seed}`;
+  }
+}

@@ -1,0 +1,560 @@
+// The scenario file: its schema (field names and meanings from design/CONTRACT.md), the validator
+// that turns any JSON value into a checked, defaults-filled Scenario or an InputError listing every
+// problem, and the file reader. Everything downstream (kernel, analyses, CLI, UI) runs unchecked on
+// the Scenario this returns.
+
+import { z } from 'zod';
+import demo from '../../scenarios/demo.json' with { type: 'json' };
+import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
+
+export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
+export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
+export const DEFAULT_ABSOLUTE_TOLERANCE = 1e-12;
+export const DEFAULT_MAX_STEPS_PER_STANCE = 100_000;
+export const MAX_STRIDES = 1_000_000;
+
+// ---------------------------------------------------------------------------------------------
+// Field schemas. Each carries its own "expected" text (with the unit), used for every way the
+// field can be wrong: missing, wrong type, non-finite (zod's number rejects NaN and ±Infinity) or
+// out of range.
+
+const positive = (unit: string) => z.number({ error: `a number > 0 (${unit})` }).gt(0);
+const nonNegative = (unit: string) => z.number({ error: `a number >= 0 (${unit})` }).gte(0);
+const finite = (unit: string) => z.number({ error: `a finite number (${unit})` });
+const integerIn = (low: number, high: number) =>
+  z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
+const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
+
+// Attack angle from the horizontal at touchdown; 90 is a vertical leg.
+const ANGLE_EXPECTED = 'an angle in (0, 90] (deg from the horizontal)';
+const attackAngleDeg = z.number({ error: ANGLE_EXPECTED }).gt(0).lte(90);
+
+const text = (what: string) => z.string({ error: what });
+
+// A strict object: an unknown key is an error (reported per key, with a "did you mean").
+function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
+  return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
+}
+
+function fieldList(shape: z.ZodRawShape): string {
+  return Object.keys(shape).join(', ');
+}
+
+// Knot times of a time table: measured from the flight apex, >= 0, strictly increasing.
+const knotTimes = z
+  .array(z.number({ error: 'a time >= 0 (s)' }).gte(0), {
+    error: 'a non-empty array of times >= 0 (s), strictly increasing',
+  })
+  .min(1)
+  .superRefine((times, ctx) => {
+    for (let i = 1; i < times.length; i++) {
+      if (!(times[i] > times[i - 1])) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [i],
+          message: `a time > ${times[i - 1]} s (knot times must strictly increase)`,
+          input: times[i],
+        });
+      }
+    }
+  });
+
+const knotValues = (element: z.ZodNumber, what: string) =>
+  z.array(element, { error: `a non-empty array of ${what}, one per knot` }).min(1);
+
+// Every value column of a table has one entry per knot time. Runs even when some entries are
+// malformed, so a short column is reported alongside them.
+function checkKnotCounts(columns: readonly string[]) {
+  return (table: unknown, ctx: z.RefinementCtx) => {
+    if (typeof table !== 'object' || table === null) return;
+    const row = table as Record<string, unknown>;
+    const times = row.time_since_apex_s;
+    if (!Array.isArray(times)) return;
+    for (const column of columns) {
+      const values = row[column];
+      if (Array.isArray(values) && values.length !== times.length) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [column],
+          message: `${times.length} value${times.length === 1 ? '' : 's'}, one per time_since_apex_s knot`,
+          params: { found: `${values.length} value${values.length === 1 ? '' : 's'}` },
+          input: values,
+        });
+      }
+    }
+  };
+}
+
+const always = { when: () => true };
+
+// ---------------------------------------------------------------------------------------------
+// Body, start, policy, terrain, integrator.
+
+const bodyShape = {
+  mass_kg: positive('kg'),
+  leg_length_m: positive('m'),
+  leg_stiffness_N_per_m: positive('N/m'),
+  gravity_m_per_s2: positive('m/s^2').default(STANDARD_GRAVITY_M_PER_S2),
+  leg_damping_N_s_per_m: nonNegative('N s/m').default(0),
+};
+export const bodySchema = strictObject(bodyShape, `an object with ${fieldList(bodyShape)}`);
+
+const startShape = {
+  apex_height_m: finite('m'),
+  forward_speed_m_per_s: nonNegative('m/s'),
+};
+export const startSchema = strictObject(startShape, `an object with ${fieldList(startShape)}`);
+
+const fixedAngle = strictObject({ kind: z.literal('fixed'), attack_deg: attackAngleDeg }, 'an object');
+
+// attack(t) = attack_at_apex + rate·(t − t_apex), clamped to [min_deg, max_deg]; a positive rate
+// steepens the leg (swing-leg retraction).
+const retractionAngle = strictObject(
+  {
+    kind: z.literal('retraction'),
+    attack_at_apex_deg: attackAngleDeg,
+    rate_deg_per_s: finite('deg/s'),
+    min_deg: attackAngleDeg.optional(),
+    max_deg: attackAngleDeg.optional(),
+  },
+  'an object',
+).superRefine((angle, ctx) => {
+  const { min_deg: low, max_deg: high } = angle as { min_deg?: unknown; max_deg?: unknown };
+  if (typeof low === 'number' && typeof high === 'number' && Number.isFinite(low) && Number.isFinite(high) && !(low < high)) {
+    ctx.addIssue({ code: 'custom', path: ['max_deg'], message: `an angle > min_deg (${low} deg)`, input: high });
+  }
+}, always);
+
+// Piecewise linear in the time since apex, held flat past the ends.
+const tabulatedAngle = strictObject(
+  {
+    kind: z.literal('time_table'),
+    time_since_apex_s: knotTimes,
+    attack_deg: knotValues(attackAngleDeg, `angles in (0, 90] (deg)`),
+  },
+  'an object',
+).superRefine(checkKnotCounts(['attack_deg']), always);
+
+const ANGLE_KINDS = 'an object with kind fixed, retraction or time_table';
+export const anglePolicySchema = z.discriminatedUnion('kind', [fixedAngle, retractionAngle, tabulatedAngle], {
+  error: (issue) => ((issue.code as string) === 'invalid_type' ? ANGLE_KINDS : undefined),
+});
+
+const STIFFNESS_KINDS = 'an object with kind constant, split or time_table';
+export const stiffnessPolicySchema = z
+  .discriminatedUnion(
+    'kind',
+    [
+      // body.leg_stiffness_N_per_m throughout the stance
+      strictObject({ kind: z.literal('constant') }, 'an object'),
+      // compression stiffness until maximum compression, extension stiffness after
+      strictObject(
+        { kind: z.literal('split'), compression_N_per_m: positive('N/m'), extension_N_per_m: positive('N/m') },
+        'an object',
+      ),
+      // indexed by the touchdown time measured from the apex
+      strictObject(
+        {
+          kind: z.literal('time_table'),
+          time_since_apex_s: knotTimes,
+          compression_N_per_m: knotValues(positive('N/m'), 'stiffnesses > 0 (N/m)'),
+          extension_N_per_m: knotValues(positive('N/m'), 'stiffnesses > 0 (N/m)'),
+        },
+        'an object',
+      ).superRefine(checkKnotCounts(['compression_N_per_m', 'extension_N_per_m']), always),
+    ],
+    { error: (issue) => ((issue.code as string) === 'invalid_type' ? STIFFNESS_KINDS : undefined) },
+  )
+  .default({ kind: 'constant' });
+
+const policyShape = { angle: anglePolicySchema, stiffness: stiffnessPolicySchema };
+export const policySchema = strictObject(policyShape, `an object with ${fieldList(policyShape)}`);
+
+const seed = integerIn(0, Number.MAX_SAFE_INTEGER);
+const TERRAIN_KINDS = 'an object with kind flat, steps, random_walk or random_heights';
+export const terrainSchema = z
+  .discriminatedUnion(
+    'kind',
+    [
+      strictObject({ kind: z.literal('flat') }, 'an object'),
+      // ground height met at the touchdown of stride i; past the end the last value holds
+      strictObject(
+        {
+          kind: z.literal('steps'),
+          ground_heights_m: z
+            .array(finite('m'), { error: 'a non-empty array of ground heights (m)' })
+            .min(1),
+        },
+        'an object',
+      ),
+      // each touchdown's ground height is the previous one plus N(0, sigma), the first included
+      strictObject({ kind: z.literal('random_walk'), sigma_m: nonNegative('m'), seed }, 'an object'),
+      // each touchdown's ground height drawn independently from N(0, sigma)
+      strictObject({ kind: z.literal('random_heights'), sigma_m: nonNegative('m'), seed }, 'an object'),
+    ],
+    { error: (issue) => ((issue.code as string) === 'invalid_type' ? TERRAIN_KINDS : undefined) },
+  )
+  .default({ kind: 'flat' });
+
+const integratorShape = {
+  relative_tolerance: tolerance.default(DEFAULT_RELATIVE_TOLERANCE),
+  absolute_tolerance: tolerance.default(DEFAULT_ABSOLUTE_TOLERANCE),
+  max_steps_per_stance: integerIn(10, 10_000_000).default(DEFAULT_MAX_STEPS_PER_STANCE),
+};
+export const integratorSchema = strictObject(integratorShape, `an object with ${fieldList(integratorShape)}`).prefault({});
+
+const scenarioShape = {
+  name: text('a string').optional(),
+  description: text('a string').optional(),
+  body: bodySchema,
+  start: startSchema,
+  policy: policySchema,
+  terrain: terrainSchema,
+  strides: integerIn(1, MAX_STRIDES),
+  integrator: integratorSchema,
+};
+
+export const scenarioSchema = strictObject(
+  scenarioShape,
+  `a scenario object with ${fieldList(scenarioShape)}`,
+).superRefine(checkStartAboveTouchdown, always);
+
+export type Scenario = z.output<typeof scenarioSchema>;
+export type Body = z.output<typeof bodySchema>;
+export type Start = z.output<typeof startSchema>;
+export type AnglePolicy = z.output<typeof anglePolicySchema>;
+export type StiffnessPolicy = z.output<typeof stiffnessPolicySchema>;
+export type Terrain = z.output<typeof terrainSchema>;
+export type IntegratorSettings = z.output<typeof integratorSchema>;
+
+// ---------------------------------------------------------------------------------------------
+// Cross-field check: the first flight must reach touchdown, i.e. the start apex lies above the
+// height where the leg at its apex attack angle touches the first ground.
+
+// The attack angle the policy commands at the apex (t = 0 since apex).
+export function attackAtApexDeg(angle: AnglePolicy): number {
+  switch (angle.kind) {
+    case 'fixed':
+      return angle.attack_deg;
+    case 'retraction': {
+      const low = angle.min_deg ?? -Infinity;
+      const high = angle.max_deg ?? Infinity;
+      return Math.min(Math.max(angle.attack_at_apex_deg, low), high);
+    }
+    case 'time_table':
+      // knot times are >= 0, so t = 0 is at or before the first knot, where the table holds flat
+      return angle.attack_deg[0];
+  }
+}
+
+// The ground height met at the first touchdown when it is known in advance (random terrains
+// start from the starting ground level, 0).
+export function firstGroundHeightM(terrain: Terrain): number {
+  return terrain.kind === 'steps' ? terrain.ground_heights_m[0] : 0;
+}
+
+// Body height at which the first touchdown happens: ground + L0·sin(attack at apex).
+export function firstTouchdownHeightM(legLengthM: number, angle: AnglePolicy, terrain: Terrain): number {
+  const attack = (attackAtApexDeg(angle) * Math.PI) / 180;
+  return firstGroundHeightM(terrain) + legLengthM * Math.sin(attack);
+}
+
+// Runs on the partly parsed value even when other fields failed, re-checking the few fields it
+// needs, so this issue is reported together with the others.
+function checkStartAboveTouchdown(value: unknown, ctx: z.RefinementCtx): void {
+  const legLength = bodyShape.leg_length_m.safeParse(valueAt(value, ['body', 'leg_length_m']));
+  const apexHeight = startShape.apex_height_m.safeParse(valueAt(value, ['start', 'apex_height_m']));
+  const angle = anglePolicySchema.safeParse(valueAt(value, ['policy', 'angle']));
+  const terrain = terrainSchema.safeParse(valueAt(value, ['terrain']));
+  if (!legLength.success || !apexHeight.success || !angle.success || !terrain.success) return;
+  const touchdownHeight = firstTouchdownHeightM(legLength.data, angle.data, terrain.data);
+  if (apexHeight.data > touchdownHeight) return;
+  ctx.addIssue({
+    code: 'custom',
+    path: ['start', 'apex_height_m'],
+    message: `> ${showAbove(touchdownHeight, apexHeight.data)} m (ground + leg length * sin(attack at apex))`,
+    input: apexHeight.data,
+  });
+}
+
+// `bound` rounded for display, with enough digits that it still reads as larger than `found`.
+function showAbove(bound: number, found: number): string {
+  for (let digits = 6; digits < 17; digits++) {
+    const shown = Number(bound.toPrecision(digits));
+    if (shown > found || shown === bound) return String(shown);
+  }
+  return String(bound);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Validation entry points.
+
+// Checks any JSON value against the scenario schema; throws an InputError naming every problem.
+export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
+  const knownFields = new Map<string, { known: string[]; present: string[] }>();
+  const result = scenarioSchema.safeParse(value, {
+    error: (issue) => {
+      // Remember, per object, which fields it allows, to suggest one for each unknown key.
+      if (issue.code === 'unrecognized_keys') {
+        const shape = (issue.inst as unknown as { shape?: object } | undefined)?.shape;
+        const input = issue.input;
+        knownFields.set(formatPath(issue.path ?? []), {
+          known: shape ? Object.keys(shape) : [],
+          present: typeof input === 'object' && input !== null ? Object.keys(input) : [],
+        });
+      }
+      return undefined;
+    },
+  });
+  if (result.success) return result.data;
+  throw new InputError(toInputIssues(result.error.issues, value, knownFields), options);
+}
+
+function toInputIssues(
+  zodIssues: readonly z.core.$ZodIssue[],
+  root: unknown,
+  knownFields: Map<string, { known: string[]; present: string[] }>,
+): InputIssue[] {
+  const issues: InputIssue[] = [];
+  const seen = new Set<string>();
+  // one message per field: the first problem found there
+  const add = (issue: InputIssue) => {
+    if (seen.has(issue.path)) return;
+    seen.add(issue.path);
+    issues.push(issue);
+  };
+  for (const zodIssue of zodIssues) {
+    const path = formatPath(zodIssue.path);
+    const found = describeFound(valueAt(root, zodIssue.path));
+    switch (zodIssue.code) {
+      case 'unrecognized_keys': {
+        const fields = knownFields.get(path) ?? { known: [], present: [] };
+        const candidates = fields.known.filter((name) => !fields.present.includes(name));
+        for (const key of zodIssue.keys) {
+          const suggestion = closestName(key, candidates);
+          add({
+            path: formatPath([...zodIssue.path, key]),
+            expected: fields.known.length ? `one of the fields ${fields.known.join(', ')}` : 'no such field',
+            found: `unknown field ${JSON.stringify(key)}`,
+            message: suggestion ? `unknown field (did you mean ${suggestion}?)` : 'unknown field',
+          });
+        }
+        break;
+      }
+      case 'invalid_union': {
+        // a discriminated union's tag: the path already ends in the tag's name
+        const options = ((zodIssue as { options?: unknown[] }).options ?? []).map(String);
+        const tag = valueAt(root, zodIssue.path);
+        const suggestion = typeof tag === 'string' ? closestName(tag, options) : undefined;
+        add({
+          path,
+          expected: `one of ${options.join(', ')}`,
+          found: suggestion ? `${found} (did you mean ${suggestion}?)` : found,
+        });
+        break;
+      }
+      default: {
+        const params = (zodIssue as { params?: { found?: string } }).params;
+        add({ path, expected: zodIssue.message, found: params?.found ?? found });
+      }
+    }
+  }
+  return issues;
+}
+
+function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
+  let value = root;
+  for (const segment of path) {
+    if (typeof value !== 'object' || value === null) return undefined;
+    if (!Object.prototype.hasOwnProperty.call(value, segment)) return undefined;
+    value = (value as Record<PropertyKey, unknown>)[segment];
+  }
+  return value;
+}
+
+// The built-in demo scenario (scenarios/demo.json), validated like any other.
+export function demoScenario(): Scenario {
+  return parseScenario(demo, { source: 'scenarios/demo.json' });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Reading scenario files (Node only; fs is loaded on demand so the module also runs in a browser).
+
+export async function readScenarioFile(path: string): Promise<Scenario> {
+  const { readFile } = await import('node:fs/promises');
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (error) {
+    throw new InputError(
+      [{ path: '', expected: 'a readable scenario file', found: 'an unreadable file', message: `cannot read the file (${describeFileError(error)})` }],
+      { source: path },
+    );
+  }
+  return parseScenario(parseJson(text, path), { source: path });
+}
+
+function describeFileError(error: unknown): string {
+  const code = (error as { code?: string }).code;
+  switch (code) {
+    case 'ENOENT':
+      return 'no such file';
+    case 'EISDIR':
+      return 'it is a directory';
+    case 'EACCES':
+    case 'EPERM':
+      return 'permission denied';
+    default:
+      return error instanceof Error ? error.message : String(error);
+  }
+}
+
+// JSON.parse, with a syntax error reported as an InputError at its line and column.
+export function parseJson(text: string, source?: string): unknown {
+  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text; // a UTF-8 byte order mark
+  try {
+    return JSON.parse(body);
+  } catch (error) {
+    const located = locateJsonSyntaxError(body);
+    const where = located ? ` at line ${lineColumn(body, located.offset)}` : '';
+    const reason = located ? located.reason : error instanceof Error ? error.message.split('\n')[0] : String(error);
+    throw new InputError(
+      [{ path: '', expected: 'valid JSON', found: 'invalid JSON', message: `invalid JSON${where}: ${reason}` }],
+      { source },
+    );
+  }
+}
+
+function lineColumn(text: string, offset: number): string {
+  let line = 1;
+  let lineStart = 0;
+  for (let i = 0; i < offset && i < text.length; i++) {
+    if (text.charCodeAt(i) === 10) {
+      line++;
+      lineStart = i + 1;
+    }
+  }
+  return `${line}, column ${offset - lineStart + 1}`;
+}
+
+// Finds the first syntax error in a JSON text (RFC 8259 grammar), since V8's messages do not
+// always give a position. Returns null when the text is valid.
+export function locateJsonSyntaxError(text: string): { offset: number; reason: string } | null {
+  let at = 0;
+  class Stop {
+    constructor(readonly offset: number, readonly reason: string) {}
+  }
+  const fail = (reason: string, offset = at): never => {
+    throw new Stop(offset, reason);
+  };
+  const show = (offset: number) =>
+    offset >= text.length ? 'end of input' : JSON.stringify(String.fromCodePoint(text.codePointAt(offset)!));
+  const skipSpace = () => {
+    while (at < text.length && ' \t\n\r'.includes(text[at])) at++;
+  };
+  const literal = (word: string) => {
+    for (let i = 0; i < word.length; i++) {
+      if (text[at + i] !== word[i]) fail(`unexpected ${show(at + i)} (expected ${word})`, at + i);
+    }
+    at += word.length;
+  };
+  const string = () => {
+    at++; // opening quote
+    for (;;) {
+      if (at >= text.length) fail('unterminated string');
+      const code = text.charCodeAt(at);
+      if (code === 0x22) {
+        at++;
+        return;
+      }
+      if (code < 0x20) fail('control character in string (escape it, e.g. \\n)');
+      if (code === 0x5c) {
+        const escape = text[at + 1];
+        if (escape === 'u') {
+          if (!/^[0-9a-fA-F]{4}$/.test(text.slice(at + 2, at + 6))) fail('bad \\u escape in string');
+          at += 6;
+        } else if (escape !== undefined && '"\\/bfnrt'.includes(escape)) at += 2;
+        else fail(`bad escape \\${escape ?? ''} in string`);
+      } else at++;
+    }
+  };
+  const number = () => {
+    const pattern = /-?(?:0|[1-9]\d*)(?:\.\d+)?(?:[eE][+-]?\d+)?/y;
+    pattern.lastIndex = at;
+    const match = pattern.exec(text);
+    if (!match) fail(`unexpected ${show(at)} (expected a number)`);
+    at += match![0].length;
+  };
+  const value = (depth: number): void => {
+    if (depth > 10_000) fail('nested too deeply');
+    skipSpace();
+    const c = text[at];
+    if (c === '{') {
+      at++;
+      skipSpace();
+      if (text[at] === '}') {
+        at++;
+        return;
+      }
+      for (;;) {
+        skipSpace();
+        if (text[at] !== '"') fail(`unexpected ${show(at)} (expected a double-quoted field name)`);
+        string();
+        skipSpace();
+        if (text[at] !== ':') fail(`unexpected ${show(at)} (expected ':')`);
+        at++;
+        value(depth + 1);
+        skipSpace();
+        if (text[at] === ',') {
+          at++;
+          skipSpace();
+          if (text[at] === '}') fail(`trailing comma before "}" (JSON allows none)`);
+          continue;
+        }
+        if (text[at] === '}') {
+          at++;
+          return;
+        }
+        fail(`unexpected ${show(at)} (expected ',' or '}')`);
+      }
+    }
+    if (c === '[') {
+      at++;
+      skipSpace();
+      if (text[at] === ']') {
+        at++;
+        return;
+      }
+      for (;;) {
+        value(depth + 1);
+        skipSpace();
+        if (text[at] === ',') {
+          at++;
+          skipSpace();
+          if (text[at] === ']') fail(`trailing comma before "]" (JSON allows none)`);
+          continue;
+        }
+        if (text[at] === ']') {
+          at++;
+          return;
+        }
+        fail(`unexpected ${show(at)} (expected ',' or ']')`);
+      }
+    }
+    if (c === '"') return string();
+    if (c === 't') return literal('true');
+    if (c === 'f') return literal('false');
+    if (c === 'n') return literal('null');
+    if (c === '-' || (c >= '0' && c <= '9')) return number();
+    fail(at >= text.length ? 'unexpected end of input (expected a value)' : `unexpected ${show(at)} (expected a value)`);
+  };
+  try {
+    value(0);
+    skipSpace();
+    if (at < text.length) fail(`unexpected ${show(at)} after the end of the JSON value`);
+    return null;
+  } catch (error) {
+    if (error instanceof Stop) return { offset: error.offset, reason: error.reason };
+    return null; // e.g. a stack overflow on absurd nesting: fall back to V8's message
+  }
+}
