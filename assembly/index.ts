@@ -4,7 +4,7 @@
 
 import { runBatch as batch, runRollout } from "./rollout";
 import { traceBegin, traceEnd } from "./trace";
-import { step, stepFactor, advance, Y0, K1, YN } from "./rk/dopri5";
+import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1 } from "./rk/dopri5";
 import { rhs, setArenstorf } from "./rk/system";
 import { gaussian } from "./rng";
 import { LAYOUT_VERSION } from "./layout";
@@ -36,14 +36,14 @@ export function arenaAlloc(bytes: usize): usize {
   return p;
 }
 
-export function runBatch(model: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
-  return batch(model, inputs, rollouts, strides, records, summaries);
+export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
+  return batch(models, inputs, rollouts, strides, records, summaries);
 }
 
 // One rollout with dense trajectory samples every `dt` seconds (plus exact
 // samples at touchdown and liftoff) into (capacity x T_SIZE) f64 at `samples`.
-// Writes the rollout's records and summary like runBatch; returns the number
-// of samples written.
+// Writes the rollout's records and summary like runBatch (the input's I_MODEL
+// is ignored: `model` is the one model block); returns the samples written.
 export function traceRollout(
   model: usize, input: usize, strides: i32, records: usize, summary: usize,
   samples: usize, capacity: i32, dt: f64,
@@ -63,6 +63,8 @@ export function terrainGaussian(seed: f64, stream: f64, index: f64): f64 {
 // the stance; writes [x, y, vx, vy, steps, rejected] to out.
 export function integrateArenstorf(mu: f64, x0: f64, vy0: f64, tEnd: f64, rtol: f64, atol: f64, out: usize): void {
   setArenstorf(mu);
+  setErrorDimension(4); // the fifth component is a zero dummy
+  resetController();
   store<f64>(Y0, x0, 0);
   store<f64>(Y0, 0.0, 8);
   store<f64>(Y0, 0.0, 16);
@@ -80,14 +82,14 @@ export function integrateArenstorf(mu: f64, x0: f64, vy0: f64, tEnd: f64, rtol: 
     const err = step(h, rtol, atol);
     if (!(err <= 1.0)) {
       rejected++;
-      h *= isNaN(err) ? 0.1 : stepFactor(err, true);
+      h *= isNaN(err) ? 0.1 : rejectFactor(err);
       afterReject = true;
       continue;
     }
     steps++;
     t = last ? tEnd : t + h;
     advance();
-    h *= stepFactor(err, afterReject);
+    h *= acceptFactor(err, afterReject);
     afterReject = false;
   }
   store<f64>(out, load<f64>(Y0, 0), 0);

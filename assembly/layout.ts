@@ -9,10 +9,11 @@
 // at the boundary.
 
 // ---------------------------------------------------------------------------
-export const LAYOUT_VERSION = 1; // bump on any change below
+export const LAYOUT_VERSION = 2; // bump on any change below
 
 // Model block: (M_SIZE) f64, written by the TS core before a call, read-only
-// inside the kernel. Table "pointers" are byte offsets into WASM memory stored
+// inside the kernel. A batch takes an array of them, (models x M_SIZE), and
+// each rollout picks one by I_MODEL (parameter scans run in one call). Table "pointers" are byte offsets into WASM memory stored
 // as f64 (exact below 2^53).
 export const M_MASS = 0; // kg
 export const M_LEG_LENGTH = 1; // m, rest length L0
@@ -67,7 +68,8 @@ export const I_STREAM = 2; // integer terrain stream index (same stream => same 
 export const I_MASS_SCALE = 3; // factor on M_MASS (model mismatch), 1 = nominal
 export const I_STIFFNESS_SCALE = 4; // factor on every stiffness, 1 = nominal
 export const I_LEG_SCALE = 5; // factor on M_LEG_LENGTH, 1 = nominal
-export const I_SIZE = 6;
+export const I_MODEL = 6; // index of this rollout's model block in the batch's (models x M_SIZE) array
+export const I_SIZE = 7;
 
 // ---------------------------------------------------------------------------
 // Stride records: (rollouts x strides x R_SIZE) f64, written by runBatch when a

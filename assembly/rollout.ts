@@ -6,7 +6,7 @@
 import {
   M_MASS, M_LEG_LENGTH, M_GRAVITY, M_DAMPING, M_TERRAIN_KIND, M_TERRAIN_SIGMA, M_TERRAIN_SEED,
   M_STEPS_N, M_STEPS_PTR, M_RTOL, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
-  I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE, I_SIZE,
+  I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE, I_MODEL, I_SIZE, M_SIZE,
   R_APEX_HEIGHT, R_APEX_SPEED, R_APEX_TIME, R_APEX_X, R_APEX_TO_TOUCHDOWN, R_CONTACT, R_STRIDE_TIME,
   R_ATTACK, R_GROUND, R_PEAK_FORCE, R_MAX_COMPRESSION, R_PEAK_FRICTION, R_ENERGY_BEFORE,
   R_ENERGY_AFTER, R_DISSIPATED, R_STEPS, R_REJECTED, R_FOOT_X, R_TOUCHDOWN_VX, R_TOUCHDOWN_VY,
@@ -236,13 +236,15 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
   return status;
 }
 
-// rollouts x strides in one call. inputs: (rollouts x I_SIZE); records:
-// (rollouts x strides x R_SIZE) or 0 for none; summaries: (rollouts x S_SIZE).
-// Returns how many rollouts completed every stride.
-export function runBatch(model: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
+// rollouts x strides in one call. models: (models x M_SIZE), picked per rollout
+// by I_MODEL (the TS core checks the indices); inputs: (rollouts x I_SIZE);
+// records: (rollouts x strides x R_SIZE) or 0 for none; summaries:
+// (rollouts x S_SIZE). Returns how many rollouts completed every stride.
+export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   let ok = 0;
   for (let r = 0; r < rollouts; r++) {
     const input = inputs + (<usize>r * I_SIZE << 3);
+    const model = models + (<usize>get(input, I_MODEL) * M_SIZE << 3);
     const rec = records != 0 ? records + (<usize>r * strides * R_SIZE << 3) : 0;
     const status = runRollout(model, input, strides, rec, summaries + (<usize>r * S_SIZE << 3));
     if (status == STATUS_OK) ok++;

@@ -9,7 +9,7 @@ import {
   STATUS_OK, STATUS_BODY_HIT_GROUND, STATUS_FELL_BACKWARD, STATUS_NO_LIFTOFF,
   STATUS_STEP_UNDERFLOW, STATUS_NON_FINITE, STATUS_STEP_LIMIT,
 } from "./layout";
-import { step, dense, stepFactor, advance, Y0, K1, YN, YI } from "./rk/dopri5";
+import { step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1, YN, YI } from "./rk/dopri5";
 import { rhs, setStance, setStiffness } from "./rk/system";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
@@ -58,6 +58,8 @@ export function runStance(
   split: bool, rtol: f64, atol: f64, maxSteps: i32, h0: f64,
 ): i32 {
   setStance(mass, leg, kc, c, g);
+  resetController();
+  setErrorDimension(c > 0.0 ? 5 : 4); // undamped, the work component stays 0: keep it out of the norm
   store<f64>(Y0, px, 0);
   store<f64>(Y0, py, 8);
   store<f64>(Y0, vx, 16);
@@ -81,6 +83,7 @@ export function runStance(
   outLiftoffForce = 0.0;
 
   let compressing = true;
+  let kCurrent = kc;
   let t: f64 = 0.0;
   let h = h0;
   let afterReject = false;
@@ -107,17 +110,24 @@ export function runStance(
     }
     if (err > 1.0) {
       outRejected++;
-      h *= stepFactor(err, true);
+      h *= rejectFactor(err);
       afterReject = true;
       continue;
     }
     if (outSteps == 0) outFirstH = h;
     outSteps++;
 
-    const gl1 = eventValue(EV_LIFTOFF, YN);
-    const gm1 = compressing ? eventValue(EV_MAX_COMPRESSION, YN) : 0.0;
-    const gg1 = eventValue(EV_BODY_GROUND, YN);
-    const gb1 = eventValue(EV_BACKWARD, YN);
+    // Event functions at the step end, from one square root (see events.ts).
+    const npx = load<f64>(YN, 0);
+    const npy = load<f64>(YN, 8);
+    const nvx = load<f64>(YN, 16);
+    const nr = Math.sqrt(npx * npx + npy * npy);
+    const nrdot = (npx * nvx + npy * load<f64>(YN, 24)) / nr;
+    const nforce = kCurrent * (leg - nr) - c * nrdot;
+    const gl1 = damped ? -nforce : nr - leg;
+    const gm1 = nrdot;
+    const gg1 = -npy;
+    const gb1 = -nvx;
 
     // Earliest event that stops or splits the stance in this step.
     let stopTheta: f64 = 2.0;
@@ -164,9 +174,8 @@ export function runStance(
 
     if (stopEvent < 0) {
       // Plain accepted step.
-      const f = legForce(YN);
-      if (f > outPeakForce) outPeakForce = f;
-      const fr = frictionRatio(YN);
+      if (nforce > outPeakForce) outPeakForce = nforce;
+      const fr = Math.abs(npx / npy);
       if (fr > outPeakFriction) outPeakFriction = fr;
       t += h;
       advance();
@@ -174,7 +183,7 @@ export function runStance(
       gm0 = gm1;
       gg0 = gg1;
       gb0 = gb1;
-      h *= stepFactor(err, afterReject);
+      h *= acceptFactor(err, afterReject);
       afterReject = false;
       continue;
     }
@@ -184,17 +193,18 @@ export function runStance(
 
     // Liftoff or the stiffness switch: re-take the step to the located time on
     // the true solution, then polish with Newton.
-    const hNext = h * stepFactor(err, afterReject);
+    const hNext = h * acceptFactor(err, afterReject);
     const hEvent = stopTheta * h;
     step(hEvent, rtol, atol);
     outSteps++;
     let tEvent = t + hEvent;
-    tEvent += refine(stopEvent, timeScale, rtol, atol);
+    tEvent += refine(stopEvent, timeScale);
 
     if (stopEvent == EV_MAX_COMPRESSION) {
       noteMaxCompression(YN, tEvent, leg, kc, ke);
       compressing = false;
       setStiffness(ke);
+      kCurrent = ke;
       memory.copy(Y0, YN, 40);
       rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
       t = tEvent;

@@ -34,7 +34,8 @@ export interface ModelBlock {
 }
 
 export interface BatchRequest {
-  model: ModelBlock;
+  /** One model for every rollout, or several picked per rollout by I_MODEL. */
+  model: ModelBlock | readonly ModelBlock[];
   /** (rollouts x I_SIZE) f64, see I_* in layout.ts. */
   inputs: Float64Array;
   strides: number;
@@ -120,20 +121,26 @@ export class Engine {
     return new Float64Array(this.kernel.memory.buffer, ptr, count);
   }
 
-  /** Copy the model and its tables into the arena; returns the model pointer. */
-  private placeModel(model: ModelBlock): number {
-    const fields = Float64Array.from(model.fields);
-    if (fields.length !== L.M_SIZE) throw new EngineError(`model block has ${fields.length} fields, expected ${L.M_SIZE}`);
-    const table = (arr: Float64Array | undefined, ptrField: number) => {
-      if (arr) fields[ptrField] = this.put(arr);
-    };
-    table(model.angleTimes, L.M_ANGLE_TABLE_T);
-    table(model.angleValues, L.M_ANGLE_TABLE_A);
-    table(model.stiffnessTimes, L.M_STIFFNESS_TABLE_T);
-    table(model.stiffnessCompression, L.M_STIFFNESS_TABLE_KC);
-    table(model.stiffnessExtension, L.M_STIFFNESS_TABLE_KE);
-    table(model.groundHeights, L.M_STEPS_PTR);
-    return this.put(fields);
+  /** Copy the models and their tables into the arena; returns the (models x M_SIZE) pointer. */
+  private placeModels(models: readonly ModelBlock[]): number {
+    const all = new Float64Array(models.length * L.M_SIZE);
+    models.forEach((model, i) => {
+      if (model.fields.length !== L.M_SIZE) {
+        throw new EngineError(`model block ${i} has ${model.fields.length} fields, expected ${L.M_SIZE}`);
+      }
+      const fields = all.subarray(i * L.M_SIZE, (i + 1) * L.M_SIZE);
+      fields.set(model.fields);
+      const table = (arr: Float64Array | undefined, ptrField: number) => {
+        if (arr) fields[ptrField] = this.put(arr);
+      };
+      table(model.angleTimes, L.M_ANGLE_TABLE_T);
+      table(model.angleValues, L.M_ANGLE_TABLE_A);
+      table(model.stiffnessTimes, L.M_STIFFNESS_TABLE_T);
+      table(model.stiffnessCompression, L.M_STIFFNESS_TABLE_KC);
+      table(model.stiffnessExtension, L.M_STIFFNESS_TABLE_KE);
+      table(model.groundHeights, L.M_STEPS_PTR);
+    });
+    return this.put(all);
   }
 
   /** Many rollouts x many strides in one kernel call. */
@@ -145,9 +152,17 @@ export class Engine {
     if (!Number.isInteger(req.strides) || req.strides < 1) {
       throw new EngineError(`strides must be a positive integer, found ${req.strides}`);
     }
+    const models = Array.isArray(req.model) ? (req.model as readonly ModelBlock[]) : [req.model as ModelBlock];
+    if (models.length < 1) throw new EngineError('a batch needs at least one model');
+    for (let r = 0; r < rollouts; r++) {
+      const m = req.inputs[r * L.I_SIZE + L.I_MODEL];
+      if (!Number.isInteger(m) || m < 0 || m >= models.length) {
+        throw new EngineError(`rollout ${r} picks model ${m}, expected an integer from 0 to ${models.length - 1}`);
+      }
+    }
     const k = this.kernel;
     k.arenaReset();
-    const model = this.placeModel(req.model);
+    const model = this.placeModels(models);
     const inputs = this.put(req.inputs);
     const nRecords = req.records ? rollouts * req.strides * L.R_SIZE : 0;
     const records = nRecords > 0 ? this.alloc(nRecords) : 0;
@@ -168,7 +183,7 @@ export class Engine {
     if (!(dt > 0)) throw new EngineError(`trace interval must be > 0 s, found ${dt}`);
     const k = this.kernel;
     k.arenaReset();
-    const m = this.placeModel(model);
+    const m = this.placeModels([model]);
     const inp = this.put(input);
     const records = this.alloc(strides * L.R_SIZE);
     const summary = this.alloc(L.S_SIZE);
@@ -199,7 +214,7 @@ export class Engine {
 }
 
 /** A rollout input row (I_SIZE) with nominal body scales. */
-export function rolloutInput(apexHeight: number, forwardSpeed: number, stream = 0): Float64Array {
+export function rolloutInput(apexHeight: number, forwardSpeed: number, stream = 0, model = 0): Float64Array {
   const v = new Float64Array(L.I_SIZE);
   v[L.I_APEX_HEIGHT] = apexHeight;
   v[L.I_FORWARD_SPEED] = forwardSpeed;
@@ -207,5 +222,6 @@ export function rolloutInput(apexHeight: number, forwardSpeed: number, stream = 
   v[L.I_MASS_SCALE] = 1;
   v[L.I_STIFFNESS_SCALE] = 1;
   v[L.I_LEG_SCALE] = 1;
+  v[L.I_MODEL] = model;
   return v;
 }

@@ -1,0 +1,309 @@
+// `npm run bench`: the WASM kernel against the odex JavaScript reference on the
+// same strides, each at the tolerance that gives the same apex accuracy, and
+// the kernel alone on a Monte Carlo batch over random-walk terrain.
+//
+// Run after `npm run build` (the npm script does it): imports the compiled
+// engine from dist/. With --expose-gc (as `npm run bench` starts it) the heap
+// is collected once before the warm-up, never inside the timed section: a
+// forced collection makes the next ~0.2 s of odex run 3–4x slower in V8, which
+// would flatter the kernel.
+
+import { loadEngine, rolloutInput } from '../../dist/src/core/engine.js';
+import * as L from '../../dist/assembly/layout.js';
+import { odexStride } from '../reference/odex-stride.mjs';
+
+const DEG = Math.PI / 180;
+// Human-like body of Seyfarth, Geyer, Günther, Blickhan 2002, J. Biomech. 35(5):649–655.
+const BODY = { mass: 80, leg: 1, k: 20_000, g: 9.81 };
+const ATTACK_DEG = 68;
+const START = { apexHeight: 1.0, speed: 5.0 }; // Seyfarth 2002: 1 m apex at 5 m/s
+const SETTLE_STRIDES = 40; // from START onto the stable gait
+const STRIDES = 20; // strides per rollout in the timed blocks
+const REFERENCE_TOL = { rtol: 1e-13, atol: 1e-15 }; // "very tight" kernel reference
+const TARGET_ERROR = 1e-8; // m, one-stride apex height error both paths are tuned to
+const TOL_GRID = Array.from({ length: 91 }, (_, i) => 10 ** (-4 - 0.1 * i)); // 1e-4 … 1e-13
+const REPS = 9; // timed repetitions per path (median reported)
+const BLOCK_SECONDS = 0.5; // target length of one timed block
+const TERRAIN = { rollouts: 1000, strides: 20, sigma: 0.01, seed: 1 };
+
+const gc = globalThis.gc ?? (() => {});
+const now = () => performance.now() / 1000;
+
+/** Fixed-angle, undamped Seyfarth body at the given tolerances, flat or random-walk ground. */
+function modelBlock({ rtol, atol, terrain }) {
+  const f = new Float64Array(L.M_SIZE);
+  f[L.M_MASS] = BODY.mass;
+  f[L.M_LEG_LENGTH] = BODY.leg;
+  f[L.M_STIFFNESS] = BODY.k;
+  f[L.M_GRAVITY] = BODY.g;
+  f[L.M_DAMPING] = 0;
+  f[L.M_ANGLE_KIND] = L.ANGLE_FIXED;
+  f[L.M_ATTACK] = ATTACK_DEG * DEG;
+  f[L.M_ANGLE_MIN] = -1e300;
+  f[L.M_ANGLE_MAX] = 1e300;
+  f[L.M_STIFFNESS_KIND] = L.STIFFNESS_CONSTANT;
+  f[L.M_TERRAIN_KIND] = terrain ? L.TERRAIN_RANDOM_WALK : L.TERRAIN_FLAT;
+  if (terrain) {
+    f[L.M_TERRAIN_SIGMA] = terrain.sigma;
+    f[L.M_TERRAIN_SEED] = terrain.seed;
+  }
+  f[L.M_RTOL] = rtol;
+  f[L.M_ATOL] = atol;
+  f[L.M_MAX_STEPS] = 100_000;
+  return { fields: f };
+}
+
+/** (rollouts x I_SIZE) inputs, all from one apex state; stream = rollout index. */
+function inputs(rollouts, apexHeight, speed) {
+  const v = new Float64Array(rollouts * L.I_SIZE);
+  for (let r = 0; r < rollouts; r++) v.set(rolloutInput(apexHeight, speed, r), r * L.I_SIZE);
+  return v;
+}
+
+const field = (records, stride, f) => records[stride * L.R_SIZE + f];
+
+function median(xs) {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+const STATUS_NAMES = Object.entries(L)
+  .filter(([name, v]) => name.startsWith('STATUS_') && name !== 'STATUS_COUNT' && typeof v === 'number')
+  .reduce((names, [name, v]) => ((names[v] = name.slice(7).toLowerCase()), names), {});
+
+/** "ok 130, leg_not_placeable 812, …" over the rollout summaries. */
+function statusBreakdown(summaries, rollouts) {
+  const counts = new Map();
+  for (let r = 0; r < rollouts; r++) {
+    const st = summaries[r * L.S_SIZE + L.S_STATUS];
+    counts.set(st, (counts.get(st) ?? 0) + 1);
+  }
+  return [...counts].sort((a, b) => a[0] - b[0]).map(([st, n]) => `${STATUS_NAMES[st] ?? st} ${n}`).join(', ');
+}
+
+const exp = (x, d = 2) => x.toExponential(d);
+const pad = (s, n) => String(s).padStart(n);
+const padEnd = (s, n) => String(s).padEnd(n);
+
+/** One odex stride from an apex state at tolerance tol (rtol = atol = tol). */
+function odexOne(apexHeight, speed, tol) {
+  return odexStride({ ...BODY, apexHeight, forwardSpeed: speed, attack: ATTACK_DEG * DEG, rtol: tol, atol: tol });
+}
+
+/** Kernel: `rollouts` rollouts x STRIDES strides from the start; returns strides done. */
+function kernelBlock(engine, model, start, rollouts) {
+  const res = engine.runBatch({ model, inputs: inputs(rollouts, start.apexHeight, start.speed), strides: STRIDES });
+  if (res.completed !== rollouts) throw new Error(`kernel: ${rollouts - res.completed} rollouts failed in the timed block`);
+  return rollouts * STRIDES;
+}
+
+/** odex: `rollouts` rollouts x STRIDES strides from the start; returns strides done. */
+function odexBlock(start, tol, rollouts) {
+  let last = 0;
+  for (let r = 0; r < rollouts; r++) {
+    let y = start.apexHeight;
+    let v = start.speed;
+    for (let s = 0; s < STRIDES; s++) {
+      const st = odexOne(y, v, tol);
+      y = st.nextApexHeight;
+      v = st.nextApexSpeed;
+    }
+    last = y;
+  }
+  if (!Number.isFinite(last)) throw new Error('odex: the timed block produced a non-finite apex');
+  return rollouts * STRIDES;
+}
+
+/** Seconds for one call of fn (collections inside it count against it). */
+function timed(fn) {
+  const t0 = now();
+  const n = fn();
+  return { seconds: now() - t0, strides: n };
+}
+
+async function main() {
+  const tStart = now();
+  const engine = await loadEngine();
+  const out = (s = '') => console.log(s);
+
+  out('Pronk benchmark: WASM kernel vs odex (JS) on the same strides');
+  out(`node ${process.version}, ${process.platform}/${process.arch}`);
+  out(
+    `body: Seyfarth et al. 2002 (m ${BODY.mass} kg, L0 ${BODY.leg} m, k ${BODY.k / 1000} kN/m, g ${BODY.g}), ` +
+      `attack ${ATTACK_DEG}°, fixed angle, flat ground`,
+  );
+
+  // --- The gait: settle from 1 m / 5 m/s onto the stable fixed point. --------
+  const refModel = modelBlock(REFERENCE_TOL);
+  const settle = engine.runBatch({ model: refModel, inputs: inputs(1, START.apexHeight, START.speed), strides: SETTLE_STRIDES, records: true });
+  if (settle.completed !== 1) throw new Error('the reference gait failed to settle');
+  const start = {
+    apexHeight: settle.summaries[L.S_FINAL_HEIGHT],
+    speed: settle.summaries[L.S_FINAL_SPEED],
+  };
+  const drift = Math.abs(settle.summaries[L.S_FINAL_HEIGHT] - settle.summaries[L.S_PREVIOUS_HEIGHT]);
+  out(
+    `gait: ${SETTLE_STRIDES} strides from ${START.apexHeight} m / ${START.speed} m/s settle at apex ` +
+      `${start.apexHeight.toFixed(6)} m, ${start.speed.toFixed(6)} m/s (last stride moved it ${exp(drift, 1)} m)`,
+  );
+
+  // Reference: the STRIDES strides from the start at the very tight tolerance.
+  const ref = engine.runBatch({ model: refModel, inputs: inputs(1, start.apexHeight, start.speed), strides: STRIDES, records: true });
+  const refApex = []; // [height, speed] at the start of stride s
+  const refNext = []; // next apex height of stride s
+  for (let s = 0; s < STRIDES; s++) {
+    refApex.push([field(ref.records, s, L.R_APEX_HEIGHT), field(ref.records, s, L.R_APEX_SPEED)]);
+    refNext.push(field(ref.records, s, L.R_NEXT_APEX_HEIGHT));
+  }
+  // Cross-check the reference itself against odex at the same tolerance.
+  let refAgreement = 0;
+  for (let s = 0; s < STRIDES; s++) {
+    const o = odexStride({ ...BODY, apexHeight: refApex[s][0], forwardSpeed: refApex[s][1], attack: ATTACK_DEG * DEG, ...REFERENCE_TOL });
+    refAgreement = Math.max(refAgreement, Math.abs(o.nextApexHeight - refNext[s]));
+  }
+  out(
+    `reference: kernel at rtol ${exp(REFERENCE_TOL.rtol, 0)}, atol ${exp(REFERENCE_TOL.atol, 0)}; ` +
+      `odex at the same tolerance agrees to ${exp(refAgreement, 1)} m in apex height`,
+  );
+  out();
+
+  // --- Calibration: loosest tolerance with error <= target here and tighter. --
+  // Error = max over the STRIDES reference strides of |next apex − reference|,
+  // each stride started from the reference apex (one-stride error, no drift).
+  const kernelError = (tol) => {
+    const inp = new Float64Array(STRIDES * L.I_SIZE);
+    for (let s = 0; s < STRIDES; s++) inp.set(rolloutInput(refApex[s][0], refApex[s][1]), s * L.I_SIZE);
+    const res = engine.runBatch({ model: modelBlock({ rtol: tol, atol: tol }), inputs: inp, strides: 1, records: true });
+    let e = 0;
+    for (let s = 0; s < STRIDES; s++) {
+      const got = res.records[s * L.R_SIZE + L.R_NEXT_APEX_HEIGHT];
+      e = Math.max(e, Number.isFinite(got) ? Math.abs(got - refNext[s]) : Infinity);
+    }
+    return e;
+  };
+  const odexError = (tol) => {
+    let e = 0;
+    for (let s = 0; s < STRIDES; s++) {
+      let got;
+      try {
+        got = odexOne(refApex[s][0], refApex[s][1], tol).nextApexHeight;
+      } catch {
+        got = NaN;
+      }
+      e = Math.max(e, Number.isFinite(got) ? Math.abs(got - refNext[s]) : Infinity);
+    }
+    return e;
+  };
+  const calibrate = (errorAt) => {
+    const errors = TOL_GRID.map(errorAt);
+    let chosen = TOL_GRID.length - 1; // tightest, if nothing looser qualifies
+    for (let i = TOL_GRID.length - 1; i >= 0 && errors[i] <= TARGET_ERROR; i--) chosen = i;
+    return { tol: TOL_GRID[chosen], error: errors[chosen], errors, index: chosen };
+  };
+  const kCal = calibrate(kernelError);
+  const oCal = calibrate(odexError);
+  if (!(kCal.error <= TARGET_ERROR) || !(oCal.error <= TARGET_ERROR)) {
+    throw new Error('calibration: a path misses the target error even at the tightest tolerance');
+  }
+
+  out(`calibration: one-stride apex height error (max over ${STRIDES} strides) vs tolerance, rtol = atol`);
+  out(`  chosen: the loosest tolerance whose error, and every tighter one's, is <= ${exp(TARGET_ERROR, 0)} m`);
+  out(`  ${padEnd('tol', 9)}  ${pad('WASM error (m)', 14)}  ${pad('odex error (m)', 14)}`);
+  const shown = new Set([0, 10, 20, 30, 40, 50, 60, 70, 80, 90, kCal.index, oCal.index]);
+  for (const i of [...shown].sort((a, b) => a - b)) {
+    const mark = (cal) => (cal.index === i ? ' <' : '  ');
+    out(`  ${padEnd(exp(TOL_GRID[i], 1), 9)}  ${pad(exp(kCal.errors[i]), 14)}${mark(kCal)}${pad(exp(oCal.errors[i]), 14)}${mark(oCal)}`);
+  }
+  out(`  WASM kernel: rtol = atol = ${exp(kCal.tol)}, apex error ${exp(kCal.error)} m`);
+  out(`  odex (JS):   rtol = atol = ${exp(oCal.tol)}, apex error ${exp(oCal.error)} m`);
+  out();
+
+  // --- Side by side: warm up, size the blocks, interleave, take medians. ------
+  const kModel = modelBlock({ rtol: kCal.tol, atol: kCal.tol });
+  gc();
+  for (let i = 0; i < 5; i++) kernelBlock(engine, kModel, start, 200);
+  for (let i = 0; i < 5; i++) odexBlock(start, oCal.tol, 5);
+  const kProbe = timed(() => kernelBlock(engine, kModel, start, 500));
+  const oProbe = timed(() => odexBlock(start, oCal.tol, 20));
+  const kRollouts = Math.max(1, Math.round((BLOCK_SECONDS * kProbe.strides) / kProbe.seconds / STRIDES));
+  const oRollouts = Math.max(1, Math.round((BLOCK_SECONDS * oProbe.strides) / oProbe.seconds / STRIDES));
+
+  const kRates = [];
+  const oRates = [];
+  for (let rep = 0; rep < REPS; rep++) {
+    // Alternate which path goes first, so neither always runs on a warmer machine.
+    const runK = () => {
+      const t = timed(() => kernelBlock(engine, kModel, start, kRollouts));
+      kRates.push(t.strides / t.seconds);
+    };
+    const runO = () => {
+      const t = timed(() => odexBlock(start, oCal.tol, oRollouts));
+      oRates.push(t.strides / t.seconds);
+    };
+    if (rep % 2 === 0) {
+      runK();
+      runO();
+    } else {
+      runO();
+      runK();
+    }
+  }
+  const kRate = median(kRates);
+  const oRate = median(oRates);
+  const ratio = kRate / oRate;
+
+  out(`side by side: median of ${REPS} interleaved repetitions after warm-up, ${STRIDES}-stride rollouts from the gait`);
+  out(`  ${padEnd('path', 12)}  ${pad('tol', 8)}  ${pad('strides/rep', 11)}  ${pad('strides/s', 11)}  ${pad('min', 11)}  ${pad('max', 11)}`);
+  const row = (name, tol, n, rates) =>
+    out(
+      `  ${padEnd(name, 12)}  ${pad(exp(tol, 1), 8)}  ${pad(n, 11)}  ${pad(median(rates).toFixed(0), 11)}  ` +
+        `${pad(Math.min(...rates).toFixed(0), 11)}  ${pad(Math.max(...rates).toFixed(0), 11)}`,
+    );
+  row('WASM kernel', kCal.tol, kRollouts * STRIDES, kRates);
+  row('odex (JS)', oCal.tol, oRollouts * STRIDES, oRates);
+  out(`  ratio WASM / odex: ${ratio.toFixed(1)}x (target >= 20x)`);
+  out();
+
+  // --- Monte Carlo batch on random-walk terrain (kernel only). ---------------
+  const tModel = modelBlock({ rtol: kCal.tol, atol: kCal.tol, terrain: TERRAIN });
+  const tInputs = inputs(TERRAIN.rollouts, start.apexHeight, start.speed); // I_STREAM = rollout index
+  const terrainRun = () => engine.runBatch({ model: tModel, inputs: tInputs, strides: TERRAIN.strides });
+  for (let i = 0; i < 2; i++) terrainRun();
+  const tTimes = [];
+  let tResult;
+  for (let rep = 0; rep < REPS; rep++) {
+    const t0 = now();
+    tResult = terrainRun();
+    tTimes.push(now() - t0);
+  }
+  let tStrides = 0;
+  for (let r = 0; r < TERRAIN.rollouts; r++) tStrides += tResult.summaries[r * L.S_SIZE + L.S_STRIDES_COMPLETED];
+  const tWall = median(tTimes);
+  const tRate = tStrides / tWall;
+
+  out(
+    `random-walk terrain: ${TERRAIN.rollouts} rollouts x ${TERRAIN.strides} strides, sigma ${TERRAIN.sigma} m, ` +
+      `seed ${TERRAIN.seed}, stream = rollout index, from the gait, rtol = atol = ${exp(kCal.tol, 1)}`,
+  );
+  const clearance = start.apexHeight - BODY.leg * Math.sin(ATTACK_DEG * DEG); // apex above the touchdown height
+  out(`  (the gait's apex is ${(clearance * 1000).toFixed(1)} mm above its touchdown height: a rise of that much ends a rollout)`);
+  out(`  rollouts completing all strides  ${pad(tResult.completed, 10)} of ${TERRAIN.rollouts}`);
+  out(`  ended by                         ${statusBreakdown(tResult.summaries, TERRAIN.rollouts)}`);
+  out(`  strides completed                ${pad(tStrides, 10)}`);
+  out(`  wall time (median of ${REPS})         ${pad((tWall * 1000).toFixed(1), 10)} ms   (min ${(Math.min(...tTimes) * 1000).toFixed(1)}, max ${(Math.max(...tTimes) * 1000).toFixed(1)})`);
+  out(`  strides/s                        ${pad(tRate.toFixed(0), 10)}`);
+  out();
+
+  out(`bench time ${(now() - tStart).toFixed(1)} s`);
+  out(
+    `summary: WASM ${kRate.toFixed(0)} vs odex ${oRate.toFixed(0)} strides/s at ${exp(TARGET_ERROR, 0)} m apex accuracy ` +
+      `= ${ratio.toFixed(1)}x (target >= 20x: ${ratio >= 20 ? 'met' : 'NOT met'}); terrain batch ${tRate.toFixed(0)} strides/s ` +
+      `(${(tWall * 1000).toFixed(1)} ms for ${TERRAIN.rollouts}x${TERRAIN.strides})`,
+  );
+}
+
+main().catch((err) => {
+  console.error(err instanceof Error ? err.stack ?? err.message : err);
+  process.exitCode = 1;
+});
