@@ -24,6 +24,18 @@ describe('runBatch', () => {
     }
   });
 
+  it('several models in one call: each rollout runs the model its I_MODEL picks', async () => {
+    const engine = await loadEngine();
+    const models = [66, 68, 70].map((a) => buildModel(scenario({ policy: { angle: { kind: 'fixed', attack_deg: a } }, strides: 4 })));
+    const inputs = new Float64Array([2, 0, 1, 2].flatMap((m, r) => [...rolloutInput(1, 5, r, m)]));
+    const all = engine.runBatch({ model: models, inputs, strides: 4, records: true });
+    [2, 0, 1, 2].forEach((m, r) => {
+      const one = engine.runBatch({ model: models[m], inputs: rolloutInput(1, 5, r), strides: 4, records: true });
+      for (let f = 0; f < L.S_SIZE; f++) expect(all.summaries[r * L.S_SIZE + f]).toBe(one.summaries[f]);
+    });
+    expect(() => engine.runBatch({ model: models, inputs: rolloutInput(1, 5, 0, 3), strides: 1 })).toThrow(/picks model 3/);
+  });
+
   it('summaries without records carry the same final apex as the records', async () => {
     const engine = await loadEngine();
     const model = buildModel(scenario({ strides: 10 }));
