@@ -75,7 +75,7 @@ export const I_SIZE = 7;
 // Stride records: (rollouts x strides x R_SIZE) f64, written by runBatch when a
 // record buffer is given. Record s of a rollout covers apex s -> apex s+1. The
 // record of the stride that failed holds what was known when it failed and NaN
-// elsewhere; records after it are left untouched.
+// elsewhere; records after it are all NaN.
 export const R_APEX_HEIGHT = 0; // m, apex at the start of the stride
 export const R_APEX_SPEED = 1; // m/s
 export const R_APEX_TIME = 2; // s since the start of the rollout

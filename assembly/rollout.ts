@@ -216,6 +216,15 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
     completed++;
   }
 
+  // Records past the failing stride: NaN, so a batch's records are the same bytes
+  // whatever memory they were written into.
+  if (rec0 != 0) {
+    for (let s = completed + 1; s < strides; s++) {
+      const rec = rec0 + (<usize>s * R_SIZE << 3);
+      for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
+    }
+  }
+
   put(summary, S_STATUS, <f64>status);
   put(summary, S_STRIDES_COMPLETED, <f64>completed);
   put(summary, S_FINAL_HEIGHT, ya);
