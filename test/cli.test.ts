@@ -132,7 +132,7 @@ describe('usage errors exit 2 with one line on stderr', () => {
     [['simulate', '--strides=-3'], 'pronk simulate: --strides: expected a positive integer, found "-3"'],
     [['simulate', 'a.json', 'b.json'], 'pronk simulate: unexpected argument "b.json" (usage: pronk simulate [FILE] [--json] [--strides N] [--trace-interval S])'],
     [['simulat'], 'pronk: unknown command "simulat" (did you mean simulate?)'],
-    [['help', 'nonsense'], 'pronk: unknown command "nonsense" (commands: simulate)'],
+    [['help', 'nonsense'], `pronk: unknown command "nonsense" (commands: ${COMMANDS.map((c) => c.name).join(', ')})`],
   ])('pronk %j', async (args, line) => {
     const run = await pronk(args);
     expect(run.code).toBe(2);

@@ -5,6 +5,12 @@
 import { parseArgs } from 'node:util';
 import { InputError, UsageError, closestName } from '../core/errors.js';
 import { simulateCommand } from './simulate.js';
+import { stepdownCommand } from './stepdown.js';
+import { robustnessCommand } from './robustness.js';
+import { basinCommand } from './basin.js';
+import { mergeCommand } from './merge.js';
+import { mapCommand } from './map.js';
+import { scanCommand } from './scan.js';
 
 export interface OutputStream {
   write(chunk: string): unknown;
@@ -43,7 +49,7 @@ export interface Command {
 
 const HELP_OPTION: OptionSpec = { type: 'boolean', short: 'h', description: 'show this help' };
 
-export const COMMANDS: readonly Command[] = [simulateCommand];
+export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand];
 
 function defaultIO(): CliIO {
   return { stdout: process.stdout, stderr: process.stderr, env: process.env };

@@ -5,12 +5,11 @@
 //
 // Node only. The browser workbench has its own comlink pool over the same engine.
 
-import { existsSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import * as L from '../../assembly/layout.js';
 import { loadEngine, type BatchRequest, type BatchResult } from '../core/engine.js';
+import { compiledWorkerUrl } from './paths.js';
 
 export interface ParallelOptions {
   /** Worker threads; 1 runs in this thread. Default: the machine's available parallelism. */
@@ -150,21 +149,9 @@ class PoolWorker {
 
 let pool: PoolWorker[] = [];
 
-function workerUrl(): URL {
-  // Compiled, this module sits beside the worker in dist/src/worker/. Run from the TypeScript
-  // sources (tests), it uses the compiled worker that `npm run build` (and `pretest`) made.
-  const here = new URL('./node-batch-worker.js', import.meta.url);
-  if (import.meta.url.endsWith('.js') && existsSync(fileURLToPath(here))) return here;
-  const built = new URL('../../dist/src/worker/node-batch-worker.js', import.meta.url);
-  if (!existsSync(fileURLToPath(built))) {
-    throw new WorkerError(`the worker script is missing at ${fileURLToPath(built)}; run "npm run build" first`);
-  }
-  return built;
-}
-
 async function workerPool(size: number): Promise<PoolWorker[]> {
   pool = pool.filter((w) => !w.dead);
-  const url = workerUrl();
+  const url = compiledWorkerUrl('node-batch-worker.js');
   while (pool.length < size) pool.push(new PoolWorker(url));
   return pool.slice(0, size);
 }

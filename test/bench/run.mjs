@@ -11,6 +11,8 @@
 import { loadEngine, rolloutInput } from '../../dist/src/core/engine.js';
 import * as L from '../../dist/assembly/layout.js';
 import { odexStride } from '../reference/odex-stride.mjs';
+import { benchBasin } from './basin.mjs';
+import { benchMonteCarlo } from './montecarlo.mjs';
 
 const DEG = Math.PI / 180;
 // Human-like body of Seyfarth, Geyer, Günther, Blickhan 2002, J. Biomech. 35(5):649–655.
@@ -303,7 +305,17 @@ async function main() {
   );
 }
 
-main().catch((err) => {
+async function all() {
+  await main();
+  console.log();
+  console.log('== Monte Carlo evaluation (one core)');
+  await benchMonteCarlo(console.log);
+  console.log();
+  console.log('== basin of attraction on the worker pool');
+  await benchBasin(console.log);
+}
+
+all().catch((err) => {
   console.error(err instanceof Error ? err.stack ?? err.message : err);
   process.exitCode = 1;
 });

@@ -1,0 +1,78 @@
+// `pronk merge FILES... [--json] [--out FILE]`: put the partial results of a sharded run back
+// together and print the result exactly as the original command prints it on one machine.
+
+import { InputError, UsageError } from '../core/errors.js';
+import type { Scenario } from '../core/scenario.js';
+import type { PartialResult } from '../core/shard.js';
+import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { outOption, writeText } from './shard-output.js';
+
+// Each mergeable command's two views, the same functions the command itself prints with; loaded
+// on demand so that merging one command's results never loads the others'.
+interface View {
+  json: (result: unknown) => string;
+  text: (scenario: Scenario, result: unknown) => string;
+}
+const VIEWS: Record<string, () => Promise<View>> = {
+  basin: async () => {
+    const { basinJson, renderBasin } = await import('./basin.js');
+    return { json: (r) => basinJson(r as never), text: (s, r) => renderBasin(s, r as never) };
+  },
+  scan: async () => {
+    const { scanJson, renderScan } = await import('./scan.js');
+    return { json: (r) => scanJson(r as never), text: (s, r) => renderScan(s, r as never) };
+  },
+  robustness: async () => {
+    const { robustnessJson, renderRobustness } = await import('./robustness.js');
+    return { json: (r) => robustnessJson(r as never), text: (s, r) => renderRobustness(s, r as never) };
+  },
+};
+
+export const mergeCommand: Command = {
+  name: 'merge',
+  summary: 'merge the partial results of a sharded run (--shard I/N) into the one-machine result',
+  usage: 'merge FILES... [--json] [--out FILE]',
+  details: [
+    'Each FILE is a partial result written by a command run with --shard I/N --out FILE. All N shards',
+    'of one run must be given (in any order), each once, from the same command, scenario, options and',
+    'Pronk version. The output is exactly what the command prints when run on one machine.',
+  ].join('\n'),
+  arguments: [{ name: 'FILES', description: 'the partial results (JSON), one per shard' }],
+  options: {
+    json: { type: 'boolean', description: 'print the merged result as JSON on stdout (and nothing else there)' },
+    out: { type: 'string', valueName: 'FILE', description: 'write the merged output to FILE instead of stdout' },
+  },
+  maxPositionals: Number.MAX_SAFE_INTEGER,
+  run: runMerge,
+};
+
+async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
+  if (positionals.length === 0) {
+    throw new UsageError(`pronk merge: no FILES given (usage: pronk ${mergeCommand.usage})`);
+  }
+  const out = outOption(values);
+  const parts: { source: string; partial: PartialResult }[] = [];
+  for (const file of positionals) parts.push({ source: file, partial: (await readPartialFile(file)) as PartialResult });
+  const { mergePartials } = await import('../core/merge.js');
+  const merged = await mergePartials(parts);
+  const load = Object.hasOwn(VIEWS, merged.command) ? VIEWS[merged.command] : undefined;
+  if (!load) throw new Error(`no view for the merged command ${merged.command}`);
+  const view = await load();
+  const text = values.json === true ? view.json(merged.result) : view.text(merged.scenario, merged.result);
+  await writeText(io, out, text);
+  return 0;
+}
+
+async function readPartialFile(file: string): Promise<unknown> {
+  const { readFile } = await import('node:fs/promises');
+  const { parseJson } = await import('../core/scenario.js');
+  let text: string;
+  try {
+    text = await readFile(file, 'utf8');
+  } catch (error) {
+    const code = (error as { code?: string }).code;
+    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : error instanceof Error ? error.message : String(error);
+    throw new InputError([{ path: '', expected: 'a readable partial result', found: 'an unreadable file', message: `cannot read the file (${why})` }], { source: file });
+  }
+  return parseJson(text, file);
+}

@@ -1,0 +1,252 @@
+// `pronk robustness [FILE] --sigma S [--rollouts R] [--seed N] ...`: Monte Carlo survival over
+// seeded random terrain, on the worker pool, optionally one shard of it (`--shard i/n`).
+
+import { InputError, describeFound } from '../core/errors.js';
+import type {
+  CanonicalRobustnessOptions,
+  RandomTerrainKind,
+  RobustnessOptionNames,
+  RobustnessOptions,
+  RobustnessResult,
+} from '../core/analysis/robustness.js';
+import { SAFETY_CAUTION } from '../core/safety.js';
+import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
+import { describeAngle, describeStiffness } from './simulate.js';
+
+const DEMO_SOURCE = 'scenarios/demo.json';
+const SOURCE = 'pronk robustness';
+export const DEFAULT_ROLLOUTS = 1000;
+export const DEFAULT_SEED = 1;
+
+/** The core's option names as flags, so its messages name what the user typed. */
+const FLAG_NAMES: RobustnessOptionNames = {
+  rollouts: '--rollouts',
+  sigma_m: '--sigma',
+  seed: '--seed',
+  strides: '--strides',
+  terrain: '--terrain',
+  target_height_m: '--target-height',
+  target_speed_m_per_s: '--target-speed',
+};
+
+export const robustnessCommand: Command = {
+  name: 'robustness',
+  summary: 'Monte Carlo survival on seeded random terrain: survival with its Wilson 95 % interval, failures, apex RMS',
+  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--workers N] [--shard I/N] [--json]',
+  details:
+    "Runs R rollouts of the scenario's strides from its start apex on random terrain that replaces the scenario's own: " +
+    'rollout r runs on terrain stream r of the seed, so the same seed gives the same terrains to every policy compared ' +
+    '(common random numbers). The result does not depend on --workers or on how the run is sharded.',
+  arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
+  options: {
+    json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
+    rollouts: { type: 'string', valueName: 'R', description: `number of rollouts (default ${DEFAULT_ROLLOUTS})` },
+    sigma: {
+      type: 'string',
+      valueName: 'S',
+      description: 'terrain standard deviation in metres: the Gaussian step of a random walk, or the height of random heights (required)',
+    },
+    seed: { type: 'string', valueName: 'N', description: `terrain seed, an integer >= 0 (default ${DEFAULT_SEED})` },
+    strides: { type: 'string', valueName: 'N', description: "strides per rollout (default the scenario's \"strides\")" },
+    terrain: {
+      type: 'string',
+      valueName: 'KIND',
+      description: 'random_walk (each touchdown the previous height plus N(0, S); default) or random_heights (each drawn afresh from N(0, S))',
+    },
+    'target-height': {
+      type: 'string',
+      valueName: 'M',
+      description: 'apex height (absolute, m) the apex RMS is taken about (default the start apex)',
+    },
+    'target-speed': {
+      type: 'string',
+      valueName: 'V',
+      description: 'forward speed (m/s) the speed RMS is taken about (default the start speed)',
+    },
+    workers: { type: 'string', valueName: 'N', description: 'worker threads (default: all cores); never changes the result' },
+    ...SHARD_OPTIONS,
+  },
+  maxPositionals: 1,
+  run: runRobustness,
+};
+
+async function runRobustness({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
+  const json = values.json === true;
+  const options = parseRobustnessFlags(values);
+  const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
+  const spec = shardOption(values);
+  const out = outOption(values);
+  const file = positionals[0];
+  let scenario: Scenario;
+  if (file === undefined) {
+    if (!json && spec === undefined) io.stderr.write(`${SOURCE}: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
+    scenario = demoScenario();
+  } else {
+    scenario = await readScenarioFile(file);
+  }
+  const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
+  let canonical: CanonicalRobustnessOptions;
+  try {
+    canonical = canonicalRobustnessOptions(scenario, options, FLAG_NAMES);
+  } catch (error) {
+    if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
+    throw error;
+  }
+  const { defaultWorkers } = await import('../worker/pool.js');
+  const execution = { workers: workers ?? defaultWorkers() };
+
+  if (spec !== undefined) {
+    const range = shardRange(canonical.rollouts, spec);
+    const rows = await robustnessRows(scenario, canonical, range, execution);
+    const partial = await makePartial({
+      command: 'robustness',
+      scenario,
+      options: { ...canonical },
+      spec,
+      range,
+      total: canonical.rollouts,
+      rows,
+    });
+    await writePartial(io, values, partial);
+    return 0;
+  }
+
+  const rows = await robustnessRows(scenario, canonical, undefined, execution);
+  const result = await finishRobustness(scenario, canonical, rows);
+  const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
+  await writeText(io, out, text);
+  return 0;
+}
+
+/** The analysis options from the command line (checked for syntax here, for range by the core). */
+export function parseRobustnessFlags(values: ParsedCommandLine['values']): RobustnessOptions {
+  const sigma = parseNumberOption(values.sigma, '--sigma', 'a finite number >= 0 (m)', SOURCE, (v) => v >= 0);
+  if (sigma === undefined) {
+    throw new InputError([{ path: '--sigma', expected: 'a terrain standard deviation in metres (required)', found: 'missing' }], { source: SOURCE });
+  }
+  const terrain = values.terrain;
+  if (terrain !== undefined && terrain !== 'random_walk' && terrain !== 'random_heights') {
+    throw new InputError([{ path: '--terrain', expected: 'random_walk or random_heights', found: describeFound(terrain) }], { source: SOURCE });
+  }
+  const targetHeight = parseNumberOption(values['target-height'], '--target-height', 'a finite number (m)', SOURCE);
+  const targetSpeed = parseNumberOption(values['target-speed'], '--target-speed', 'a finite number (m/s)', SOURCE);
+  const strides = parseIntegerOption(values.strides, '--strides', 1, undefined, SOURCE);
+  return {
+    rollouts: parseIntegerOption(values.rollouts, '--rollouts', 1, undefined, SOURCE) ?? DEFAULT_ROLLOUTS,
+    sigma_m: sigma,
+    seed: parseIntegerOption(values.seed, '--seed', 0, Number.MAX_SAFE_INTEGER, SOURCE) ?? DEFAULT_SEED,
+    ...(strides === undefined ? {} : { strides }),
+    ...(terrain === undefined ? {} : { terrain: terrain as RandomTerrainKind }),
+    ...(targetHeight === undefined ? {} : { target_height_m: targetHeight }),
+    ...(targetSpeed === undefined ? {} : { target_speed_m_per_s: targetSpeed }),
+  };
+}
+
+/** An integer option in [low, high] (high: no limit when undefined), or undefined when absent. */
+export function parseIntegerOption(
+  value: string | boolean | undefined,
+  flag: string,
+  low: number,
+  high: number | undefined,
+  source: string,
+): number | undefined {
+  if (value === undefined) return undefined;
+  const n = typeof value === 'string' && /^\s*\+?\d+\s*$/.test(value) ? Number(value) : NaN;
+  if (!(Number.isSafeInteger(n) && n >= low && (high === undefined || n <= high))) {
+    const range = high === undefined ? (low === 1 ? 'a positive integer' : `an integer >= ${low}`) : `an integer from ${low} to ${high}`;
+    throw new InputError([{ path: flag, expected: range, found: describeFound(value) }], { source });
+  }
+  return n;
+}
+
+/** A finite number option passing `ok`, or undefined when absent. */
+export function parseNumberOption(
+  value: string | boolean | undefined,
+  flag: string,
+  expected: string,
+  source: string,
+  ok: (v: number) => boolean = () => true,
+): number | undefined {
+  if (value === undefined) return undefined;
+  const n = typeof value === 'string' && value.trim() !== '' ? Number(value) : NaN;
+  if (!(Number.isFinite(n) && ok(n))) throw new InputError([{ path: flag, expected, found: describeFound(value) }], { source });
+  return n;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The two views (also used by `pronk merge`).
+
+/** The --json text. */
+export function robustnessJson(result: RobustnessResult): string {
+  return `${JSON.stringify(result, null, 2)}\n`;
+}
+
+const TEXT_WIDTH = 96;
+const MAX_STRIDE_ROWS = 25;
+
+export function renderRobustness(scenario: Scenario, r: RobustnessResult): string {
+  const pct = (x: number) => `${fixed(100 * x, 1)} %`;
+  const terrain =
+    r.terrain.kind === 'random_walk'
+      ? `random walk, each touchdown the previous height plus N(0, ${plain(r.terrain.sigma_m)} m)`
+      : `random heights, each touchdown drawn from N(0, ${plain(r.terrain.sigma_m)} m)`;
+  const header = [
+    scenario.name ?? 'Unnamed scenario',
+    fields([
+      ['policy', `${describeAngle(scenario.policy.angle)}; ${describeStiffness(scenario.policy.stiffness, scenario)}`],
+      ['terrain', `${terrain}, seed ${r.terrain.seed} (replaces the scenario's terrain; rollout r on stream r)`],
+      ['start', `apex ${plain(r.start.apex_height_m)} m at ${plain(r.start.forward_speed_m_per_s)} m/s`],
+      ['run', `${count(r.rollouts, 'rollout')} x ${count(r.strides, 'stride')}`],
+    ]),
+  ].join('\n');
+  const failures = Object.entries(r.failures).filter(([, n]) => n > 0);
+  const summary = fields([
+    ['survived', `${r.survived} of ${r.rollouts} = ${pct(r.survival)} (Wilson 95 %: ${pct(r.wilson95[0])} to ${pct(r.wilson95[1])})`],
+    ['strides completed', `${fixed(r.mean_strides_completed, 2)} per rollout on average (${r.strides_completed_total} in all)`],
+    [
+      'apex RMS',
+      r.apex_height_rms_m === null
+        ? '- (no stride completed)'
+        : `height ${fixed(r.apex_height_rms_m * 1000, 2)} mm about ${plain(r.target.apex_height_m)} m, ` +
+          `speed ${fixed(r.forward_speed_rms_m_per_s!, 4)} m/s about ${plain(r.target.forward_speed_m_per_s)} m/s`,
+    ],
+    ['failures', failures.length ? failures.map(([name, n]) => `${name} ${n}`).join(', ') : 'none'],
+  ]);
+  const columns: Column[] = [
+    { title: 'after stride', unit: '', align: 'left' },
+    { title: 'running', unit: 'rollouts' },
+    { title: 'survival', unit: '%' },
+    { title: 'Wilson 95 %', unit: '%', align: 'left' },
+  ];
+  const shown = strideRowsShown(r.survival_by_stride.length);
+  const rows = shown.map((i) => {
+    const s = r.survival_by_stride[i];
+    return [String(s.stride), String(s.running), fixed(100 * s.survival, 1), `${fixed(100 * s.wilson95[0], 1)} - ${fixed(100 * s.wilson95[1], 1)}`];
+  });
+  const byStride = table(columns, rows, '  ');
+  const lines = [
+    header,
+    '',
+    summary,
+    '',
+    `Survival after each stride${shown.length < r.survival_by_stride.length ? ' (a selection; --json lists every stride)' : ''}:`,
+    byStride,
+    '',
+    wrap(`Apex RMS: ${r.rms_definition}.`, TEXT_WIDTH, '', '  '),
+    '',
+    wrap(SAFETY_CAUTION, TEXT_WIDTH, 'Caution: ', '  '),
+    '',
+  ];
+  return lines.join('\n');
+}
+
+// Every stride up to MAX_STRIDE_ROWS, else evenly spaced ones, always the first and the last.
+function strideRowsShown(n: number): number[] {
+  if (n <= MAX_STRIDE_ROWS) return Array.from({ length: n }, (_, i) => i);
+  const picked = new Set<number>();
+  for (let j = 0; j < MAX_STRIDE_ROWS; j++) picked.add(Math.round((j * (n - 1)) / (MAX_STRIDE_ROWS - 1)));
+  return [...picked].sort((a, b) => a - b);
+}

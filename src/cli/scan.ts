@@ -1,0 +1,151 @@
+// `pronk scan [FILE] --x PATH:LO:HI:N --y PATH:LO:HI:N [--samples N] [--workers N]
+// [--shard I/N --out FILE] [--json]`: where in a plane of two parameters the return map has a
+// stable fixed point (a stability-region map).
+
+import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
+import { InputError, UsageError } from '../core/errors.js';
+import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { SAFETY_CAUTION } from '../core/safety.js';
+import { fields, fixed, plain, wrap } from './format.js';
+import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { parseIntegerOption } from './map.js';
+import { SHARD_OPTIONS, outOption, shardOption, writePartial, writeText } from './shard-output.js';
+import { describeAngle, describeStiffness } from './simulate.js';
+
+const DEMO_SOURCE = 'scenarios/demo.json';
+const SOURCE = 'pronk scan';
+const MAX_WORKERS = 256;
+const TEXT_WIDTH = 96;
+
+export const scanCommand: Command = {
+  name: 'scan',
+  summary: 'stability-region map: fixed points of the return map over a grid of two scenario parameters',
+  usage: 'scan [FILE] --x PATH:LO:HI:N --y PATH:LO:HI:N [--samples N] [--workers N] [--shard I/N --out FILE] [--json]',
+  details: [
+    'PATH is a dotted path to a numeric field of the scenario, e.g. policy.angle.attack_deg,',
+    'body.leg_stiffness_N_per_m, policy.angle.rate_deg_per_s; N values from LO to HI (inclusive; N = 1',
+    "gives LO alone). Every cell runs the return map (as in 'pronk map') at the scenario's start energy on",
+    'flat ground and is none (no fixed point), unstable (fixed points, none with |slope| < 1) or stable',
+    '(with the stable fixed point\'s height and slope). Cells are listed row-major, y outer:',
+    'cells[iy * nx + ix]. Results do not depend on --workers; shards merge with pronk merge.',
+  ].join('\n'),
+  arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
+  options: {
+    json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
+    x: { type: 'string', valueName: 'PATH:LO:HI:N', description: 'first parameter (columns): N values of the field PATH from LO to HI' },
+    y: { type: 'string', valueName: 'PATH:LO:HI:N', description: 'second parameter (rows): N values of the field PATH from LO to HI' },
+    samples: { type: 'string', valueName: 'N', description: "samples of each cell's map (default 201)" },
+    workers: { type: 'string', valueName: 'N', description: 'worker threads (default: the available cores)' },
+    ...SHARD_OPTIONS,
+  },
+  maxPositionals: 1,
+  run: runScan,
+};
+
+async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
+  const json = values.json === true;
+  for (const option of ['x', 'y'] as const) {
+    if (typeof values[option] !== 'string') {
+      throw new UsageError(`pronk scan: --${option} PATH:LO:HI:N is required (usage: pronk ${scanCommand.usage})`);
+    }
+  }
+  const samples = parseIntegerOption(values.samples, '--samples', 2, 100_000, SOURCE);
+  const workers = parseIntegerOption(values.workers, '--workers', 1, MAX_WORKERS, SOURCE);
+  const shard = withSource(() => shardOption(values));
+  const out = withSource(() => outOption(values));
+  const core = await import('../core/analysis/scan.js');
+  const options: ScanOptions = withSource(() =>
+    core.normalizeScanOptions({ x: values.x, y: values.y, ...(samples === undefined ? {} : { samples }) }),
+  );
+
+  const file = positionals[0];
+  let scenario: Scenario;
+  if (file === undefined) {
+    if (!json && !shard) io.stderr.write(`pronk scan: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
+    scenario = demoScenario();
+  } else {
+    scenario = await readScenarioFile(file);
+  }
+
+  // loaded on demand so that --help and input errors never wait for the WASM engine
+  const { runBatchParallel, defaultWorkers } = await import('../worker/pool.js');
+  const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: workers ?? defaultWorkers() }) };
+  if (shard) {
+    const partial = await withSourceAsync(() => core.scanShard(scenario, options, shard, run));
+    await writePartial(io, values, partial);
+    return 0;
+  }
+  const result = await withSourceAsync(() => core.scan(scenario, options, run));
+  await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result));
+  return 0;
+}
+
+function withSource<T>(f: () => T): T {
+  try {
+    return f();
+  } catch (error) {
+    if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
+    throw error;
+  }
+}
+
+async function withSourceAsync<T>(f: () => Promise<T>): Promise<T> {
+  try {
+    return await f();
+  } catch (error) {
+    if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
+    throw error;
+  }
+}
+
+/** The --json text of a scan result (also what `pronk merge --json` prints). */
+export function scanJson(result: ScanResult): string {
+  return `${JSON.stringify(result, null, 2)}\n`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The terminal view: the stability map as characters, then the stable cells' fixed points.
+
+const MAX_MAP_COLUMNS = 120; // wider grids are not drawn (--json lists every cell)
+const MAX_MAP_ROWS = 200;
+const MAX_LISTED = 40;
+const SYMBOL: Record<string, string> = { stable: '#', unstable: 'o', none: '.' };
+
+export function renderScan(scenario: Scenario, result: ScanResult): string {
+  const nx = result.x.values.length;
+  const ny = result.y.values.length;
+  const lines: string[] = [
+    scenario.name ?? 'Unnamed scenario',
+    fields([
+      ['policy', `${describeAngle(scenario.policy.angle)}; ${describeStiffness(scenario.policy.stiffness, scenario)}`],
+      ['energy', `${fixed(result.energy_J, 3)} J in every cell (the scenario's start), flat ground at 0 m`],
+      ['x', `${result.x.path}: ${nx} values from ${plain(result.x.values[0])} to ${plain(result.x.values[nx - 1])}`],
+      ['y', `${result.y.path}: ${ny} values from ${plain(result.y.values[0])} to ${plain(result.y.values[ny - 1])}`],
+      ['cells', `${result.counts.stable} stable, ${result.counts.unstable} unstable only, ${result.counts.none} without a fixed point`],
+    ]),
+    '',
+  ];
+  if (nx <= MAX_MAP_COLUMNS && ny <= MAX_MAP_ROWS) {
+    const labels = result.y.values.map((v) => plain(v));
+    const width = Math.max(...labels.map((l) => l.length));
+    lines.push(`Stability map (# stable, o unstable only, . no fixed point); rows ${result.y.path}, columns ${result.x.path}:`);
+    for (let iy = ny - 1; iy >= 0; iy--) {
+      let row = '';
+      for (let ix = 0; ix < nx; ix++) row += SYMBOL[result.cells[iy * nx + ix].class];
+      lines.push(`  ${labels[iy].padStart(width)} |${row}`);
+    }
+    lines.push(`  ${' '.repeat(width)} +${'-'.repeat(nx)}`, `  ${' '.repeat(width)}  ${plain(result.x.values[0])} .. ${plain(result.x.values[nx - 1])}`);
+  } else {
+    lines.push(`(the ${nx} x ${ny} grid is too large to draw; --json lists every cell)`);
+  }
+  const stable = result.cells.filter((c) => c.class === 'stable');
+  if (stable.length) {
+    lines.push('', 'Stable cells (x, y: fixed point height, slope):');
+    for (const c of stable.slice(0, MAX_LISTED)) {
+      lines.push(`  ${plain(c.x)}, ${plain(c.y)}: ${fixed(c.stable_apex_height_m, 6)} m, slope ${fixed(c.stable_slope, 4)}`);
+    }
+    if (stable.length > MAX_LISTED) lines.push(`  ... ${stable.length - MAX_LISTED} more (--json lists every cell)`);
+  }
+  lines.push('', wrap(`Note: ${result.stability_note}.`, TEXT_WIDTH), '', wrap(SAFETY_CAUTION, TEXT_WIDTH, 'Caution: ', '  '), '');
+  return lines.join('\n');
+}

@@ -1,0 +1,318 @@
+// `robustness`: Monte Carlo over random terrain. R rollouts of S strides from the scenario's start
+// apex, rollout r on terrain stream r of one seed (common random numbers: the same seed gives the
+// same R terrains to every policy compared, so comparisons and an optimizer's objective are
+// deterministic). The scenario's own terrain is replaced.
+//
+// The work splits into per-rollout rows (what `--shard i/n` writes) and a finisher that turns the
+// rows of all rollouts into the statistics; a one-machine run goes through the same finisher, so a
+// run joined from shards is bit-identical to it.
+
+import * as L from '../../../assembly/layout.js';
+import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
+import { InputError, describeFound, type InputIssue } from '../errors.js';
+import { buildModel, STATUS_NAMES } from '../model.js';
+import { SAFETY_CAUTION } from '../safety.js';
+import { MAX_STRIDES, type Scenario } from '../scenario.js';
+import type { ShardRange } from '../shard.js';
+import { wilsonInterval } from '../stats.js';
+
+export type RandomTerrainKind = 'random_walk' | 'random_heights';
+export const RANDOM_TERRAIN_KINDS: readonly RandomTerrainKind[] = ['random_walk', 'random_heights'];
+
+/** Rollouts per run at most: keeps the input and summary buffers of one batch modest. */
+export const MAX_ROLLOUTS = 10_000_000;
+
+export interface RobustnessOptions {
+  rollouts: number;
+  /** Terrain standard deviation, m: the Gaussian step (random walk) or the height (random heights). */
+  sigma_m: number;
+  /** Terrain seed, a safe integer >= 0. */
+  seed: number;
+  /** Strides per rollout; default the scenario's `strides`. */
+  strides?: number;
+  /** Default 'random_walk'. */
+  terrain?: RandomTerrainKind;
+  /** Apex height the RMS is taken about (absolute, m); default the scenario's start apex. */
+  target_height_m?: number;
+  /** Forward speed the RMS is taken about, m/s; default the scenario's start speed. */
+  target_speed_m_per_s?: number;
+}
+
+/** Everything that defines the list of rollouts and their statistics, defaults filled. */
+export interface CanonicalRobustnessOptions {
+  rollouts: number;
+  sigma_m: number;
+  seed: number;
+  strides: number;
+  terrain: RandomTerrainKind;
+  target_height_m: number;
+  target_speed_m_per_s: number;
+}
+
+/** How the run is spread over threads; never changes the result. */
+export interface RobustnessExecution {
+  /** Worker threads for Node's pool (default 1: this thread). */
+  workers?: number;
+  /** Runs the batch instead of Node's worker pool (the browser workbench passes its own pool). */
+  runBatch?: (req: BatchRequest) => Promise<BatchResult>;
+  onProgress?: (done: number, total: number) => void;
+  signal?: AbortSignal;
+}
+
+/** One rollout, as much as the finisher needs (numbers survive JSON exactly). */
+export interface RobustnessRow {
+  /** STATUS_NAMES code of the rollout: 'completed' or the failure. */
+  status: string;
+  strides_completed: number;
+  /** Sum over completed strides of (apex height − target)², m². */
+  sum_sq_height_error_m2: number;
+  /** Sum over completed strides of (apex speed − target)², (m/s)². */
+  sum_sq_speed_error_m2_per_s2: number;
+}
+
+export interface SurvivalAfterStride {
+  /** 0-based stride index. */
+  stride: number;
+  /** Rollouts still running after this stride (they completed stride + 1 strides or more). */
+  running: number;
+  survival: number;
+  wilson95: [number, number];
+}
+
+export interface RobustnessResult {
+  rollouts: number;
+  /** Rollouts that completed every stride. */
+  survived: number;
+  survival: number;
+  /** Wilson 1927 score interval at 95 % for the survival fraction. */
+  wilson95: [number, number];
+  mean_strides_completed: number;
+  strides: number;
+  terrain: { kind: RandomTerrainKind; sigma_m: number; seed: number; streams: string };
+  start: { apex_height_m: number; forward_speed_m_per_s: number };
+  target: { apex_height_m: number; forward_speed_m_per_s: number };
+  /** Strides completed over all rollouts: the samples of the two RMS values. */
+  strides_completed_total: number;
+  /** sqrt(Σ (apex height − target)² / strides_completed_total) over all completed strides; null if none. */
+  apex_height_rms_m: number | null;
+  /** The same for the apex forward speed; null if no stride completed. */
+  forward_speed_rms_m_per_s: number | null;
+  rms_definition: string;
+  /** Rollouts ended by each failure code (STATUS_NAMES), zeros included. */
+  failures: Record<string, number>;
+  survival_by_stride: SurvivalAfterStride[];
+  note: string;
+  caution: string;
+}
+
+/** Option names as shown in messages (the CLI passes its flags). */
+export interface RobustnessOptionNames {
+  rollouts: string;
+  sigma_m: string;
+  seed: string;
+  strides: string;
+  terrain: string;
+  target_height_m: string;
+  target_speed_m_per_s: string;
+}
+
+const DEFAULT_NAMES: RobustnessOptionNames = {
+  rollouts: 'rollouts',
+  sigma_m: 'sigma_m',
+  seed: 'seed',
+  strides: 'strides',
+  terrain: 'terrain',
+  target_height_m: 'target_height_m',
+  target_speed_m_per_s: 'target_speed_m_per_s',
+};
+
+export const RMS_DEFINITION =
+  'over every completed stride of every rollout, sqrt(sum of (apex after the stride - target)^2 / strides completed); ' +
+  'apex heights are absolute, so on a random walk the RMS includes the ground drifting away from the target';
+
+/** Check the options and fill the defaults; every problem is reported, each naming the option. */
+export function canonicalRobustnessOptions(
+  scenario: Scenario,
+  options: RobustnessOptions,
+  names: RobustnessOptionNames = DEFAULT_NAMES,
+): CanonicalRobustnessOptions {
+  const issues: InputIssue[] = [];
+  const check = (ok: boolean, path: string, expected: string, found: unknown) => {
+    if (!ok) issues.push({ path, expected, found: describeFound(found) });
+  };
+  const { rollouts, sigma_m, seed } = options;
+  const strides = options.strides ?? scenario.strides;
+  const terrain = options.terrain ?? 'random_walk';
+  const targetHeight = options.target_height_m ?? scenario.start.apex_height_m;
+  const targetSpeed = options.target_speed_m_per_s ?? scenario.start.forward_speed_m_per_s;
+  check(Number.isInteger(rollouts) && rollouts >= 1 && rollouts <= MAX_ROLLOUTS, names.rollouts, `a positive integer no larger than ${MAX_ROLLOUTS}`, rollouts);
+  check(typeof sigma_m === 'number' && Number.isFinite(sigma_m) && sigma_m >= 0, names.sigma_m, 'a finite number >= 0 (m)', sigma_m);
+  check(Number.isSafeInteger(seed) && seed >= 0, names.seed, `an integer from 0 to ${Number.MAX_SAFE_INTEGER}`, seed);
+  check(Number.isInteger(strides) && strides >= 1 && strides <= MAX_STRIDES, names.strides, `a positive integer no larger than ${MAX_STRIDES}`, strides);
+  check(RANDOM_TERRAIN_KINDS.includes(terrain), names.terrain, `one of ${RANDOM_TERRAIN_KINDS.join(', ')}`, terrain);
+  check(typeof targetHeight === 'number' && Number.isFinite(targetHeight), names.target_height_m, 'a finite number (m)', targetHeight);
+  check(typeof targetSpeed === 'number' && Number.isFinite(targetSpeed), names.target_speed_m_per_s, 'a finite number (m/s)', targetSpeed);
+  if (issues.length) throw new InputError(issues);
+  return {
+    rollouts,
+    sigma_m,
+    seed,
+    strides,
+    terrain,
+    target_height_m: targetHeight,
+    target_speed_m_per_s: targetSpeed,
+  };
+}
+
+/** The scenario's model on the random terrain of the options, RMS about their target. */
+export function robustnessModel(scenario: Scenario, options: CanonicalRobustnessOptions): ModelBlock {
+  const base = buildModel(scenario);
+  const model: ModelBlock = { ...base, fields: base.fields.slice(), groundHeights: undefined };
+  const f = model.fields;
+  f[L.M_TERRAIN_KIND] = options.terrain === 'random_walk' ? L.TERRAIN_RANDOM_WALK : L.TERRAIN_INDEPENDENT;
+  f[L.M_TERRAIN_SIGMA] = options.sigma_m;
+  f[L.M_TERRAIN_SEED] = options.seed;
+  f[L.M_STEPS_N] = 0;
+  f[L.M_TARGET_HEIGHT] = options.target_height_m;
+  f[L.M_TARGET_SPEED] = options.target_speed_m_per_s;
+  return model;
+}
+
+/** Rows of rollouts [range.start, range.end) (all of them by default); rollout r runs on stream r. */
+export async function robustnessRows(
+  scenario: Scenario,
+  options: RobustnessOptions,
+  range?: ShardRange,
+  execution: RobustnessExecution = {},
+): Promise<RobustnessRow[]> {
+  const canonical = canonicalRobustnessOptions(scenario, options);
+  const start = range?.start ?? 0;
+  const end = range?.end ?? canonical.rollouts;
+  const count = end - start;
+  if (count <= 0) return [];
+  const inputs = new Float64Array(count * L.I_SIZE); // (count x I_SIZE), stream = global rollout index
+  for (let i = 0; i < count; i++) {
+    inputs.set(rolloutInput(scenario.start.apex_height_m, scenario.start.forward_speed_m_per_s, start + i), i * L.I_SIZE);
+  }
+  const req: BatchRequest = { model: robustnessModel(scenario, canonical), inputs, strides: canonical.strides };
+  let batch: BatchResult;
+  if (execution.runBatch) {
+    batch = await execution.runBatch(req);
+  } else {
+    // loaded on demand: Node's pool pulls in node:worker_threads
+    const { runBatchParallel } = await import('../../worker/pool.js');
+    batch = await runBatchParallel(req, { workers: execution.workers ?? 1, onProgress: execution.onProgress, signal: execution.signal });
+  }
+  const rows: RobustnessRow[] = [];
+  for (let i = 0; i < count; i++) {
+    const s = (field: number) => batch.summaries[i * L.S_SIZE + field];
+    rows.push({
+      status: STATUS_NAMES[s(L.S_STATUS)] ?? `status_${s(L.S_STATUS)}`,
+      strides_completed: s(L.S_STRIDES_COMPLETED),
+      sum_sq_height_error_m2: s(L.S_SUM_SQ_HEIGHT_ERROR),
+      sum_sq_speed_error_m2_per_s2: s(L.S_SUM_SQ_SPEED_ERROR),
+    });
+  }
+  return rows;
+}
+
+/**
+ * The statistics of a full list of rollout rows (from one run, or joined from shards in order).
+ * Async so that callers treat every finisher alike.
+ */
+export async function finishRobustness(
+  scenario: Scenario,
+  options: RobustnessOptions,
+  rows: readonly RobustnessRow[],
+): Promise<RobustnessResult> {
+  const o = canonicalRobustnessOptions(scenario, options);
+  checkRows(rows, o);
+  const completedName = STATUS_NAMES[L.STATUS_OK];
+  const failures: Record<string, number> = {};
+  for (let code = 0; code < L.STATUS_COUNT; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
+  let survived = 0;
+  let stridesTotal = 0;
+  let sumSqHeight = 0;
+  let sumSqSpeed = 0;
+  for (const row of rows) {
+    if (row.status === completedName) survived++;
+    else failures[row.status]++;
+    stridesTotal += row.strides_completed;
+    sumSqHeight += row.sum_sq_height_error_m2;
+    sumSqSpeed += row.sum_sq_speed_error_m2_per_s2;
+    if (row.strides_completed > 0) runningAfter[row.strides_completed - 1]++;
+  }
+  // cumulative from the last stride back: running after stride s = completed more than s strides
+  for (let s = o.strides - 2; s >= 0; s--) runningAfter[s] += runningAfter[s + 1];
+  const n = o.rollouts;
+  return {
+    rollouts: n,
+    survived,
+    survival: survived / n,
+    wilson95: wilsonInterval(survived, n),
+    mean_strides_completed: stridesTotal / n,
+    strides: o.strides,
+    terrain: {
+      kind: o.terrain,
+      sigma_m: o.sigma_m,
+      seed: o.seed,
+      streams: `rollout r runs on terrain stream r (0 to ${n - 1}) of this seed, replacing the scenario's terrain`,
+    },
+    start: { apex_height_m: scenario.start.apex_height_m, forward_speed_m_per_s: scenario.start.forward_speed_m_per_s },
+    target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
+    strides_completed_total: stridesTotal,
+    apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
+    forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,
+    rms_definition: RMS_DEFINITION,
+    failures,
+    survival_by_stride: runningAfter.map((running, stride) => ({
+      stride,
+      running,
+      survival: running / n,
+      wilson95: wilsonInterval(running, n),
+    })),
+    note:
+      `${o.terrain === 'random_walk' ? 'random walk: each touchdown height is the previous one plus N(0, sigma)' : 'random heights: each touchdown height drawn afresh from N(0, sigma)'}` +
+      ', the first touchdown included; the scenario\'s own terrain is replaced. The same seed gives the same terrains to every policy (common random numbers).',
+    caution: SAFETY_CAUTION,
+  };
+}
+
+/** R rollouts x S strides on seeded random terrain; see the file comment. */
+export async function terrainRobustness(
+  scenario: Scenario,
+  options: RobustnessOptions,
+  execution: RobustnessExecution = {},
+): Promise<RobustnessResult> {
+  const rows = await robustnessRows(scenario, options, undefined, execution);
+  return finishRobustness(scenario, options, rows);
+}
+
+// Rows may come from files (joined shards): check them before trusting them.
+function checkRows(rows: readonly RobustnessRow[], o: CanonicalRobustnessOptions): void {
+  if (!Array.isArray(rows) || rows.length !== o.rollouts) {
+    throw new InputError([{ path: 'rows', expected: `${o.rollouts} rollout rows (--rollouts)`, found: Array.isArray(rows) ? `${rows.length} rows` : describeFound(rows) }]);
+  }
+  const known = new Set(Object.values(STATUS_NAMES));
+  const issues: InputIssue[] = [];
+  rows.forEach((row, i) => {
+    const bad = (field: string, expected: string, found: unknown) =>
+      issues.push({ path: `rows[${i}].${field}`, expected, found: describeFound(found) });
+    if (typeof row !== 'object' || row === null) {
+      issues.push({ path: `rows[${i}]`, expected: 'a rollout row object', found: describeFound(row) });
+      return;
+    }
+    if (!known.has(row.status)) bad('status', `one of ${[...known].join(', ')}`, row.status);
+    const k = row.strides_completed;
+    if (!(Number.isInteger(k) && k >= 0 && k <= o.strides)) bad('strides_completed', `an integer from 0 to ${o.strides}`, k);
+    else if ((row.status === STATUS_NAMES[L.STATUS_OK]) !== (k === o.strides)) {
+      bad('strides_completed', `${o.strides} exactly when the status is completed`, k);
+    }
+    for (const field of ['sum_sq_height_error_m2', 'sum_sq_speed_error_m2_per_s2'] as const) {
+      const v = row[field];
+      if (!(typeof v === 'number' && Number.isFinite(v) && v >= 0)) bad(field, 'a finite number >= 0', v);
+    }
+  });
+  if (issues.length) throw new InputError(issues.slice(0, 20));
+}

@@ -1,0 +1,388 @@
+// `scan`: the return map's fixed-point analysis over a grid of two scenario parameters, as a
+// stability-region map. Every cell holds the energy at the scenario's start energy and classifies
+// its 1-D apex map (ground flat at 0): `none` (no fixed point), `unstable` (fixed points, none
+// with |slope| < 1) or `stable` (at least one with |slope| < 1, reported with its height and
+// slope).
+//
+// Every stage runs all cells in one batch (each rollout picks its cell's model via I_MODEL):
+// one call for the samples of every map, one per Brent iteration for the brackets of all cells,
+// one for the slopes. A cell's numbers depend only on that cell, so any contiguous range of cells
+// (a shard, `--shard i/n`) gives exactly the rows a one-machine run gives for it, and
+// finishScan(rows of all shards in order) is the one-machine result bit for bit.
+
+import * as L from '../../../assembly/layout.js';
+import { InputError, closestName, describeFound } from '../errors.js';
+import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, shardRange, type PartialResult, type ShardSpec } from '../shard.js';
+import { SAFETY_CAUTION } from '../safety.js';
+import { parseScenario, type Scenario } from '../scenario.js';
+import { PRONK_VERSION, contentHash } from '../version.js';
+import {
+  DEFAULT_MAP_SAMPLES,
+  conservesEnergy,
+  findFixedPoints,
+  heightStep,
+  highestSurvivingSample,
+  inProcessRunner,
+  kernelEvaluator,
+  mapCell,
+  mapModel,
+  mapSlopes,
+  sampleMaps,
+  speedAt,
+  startEnergy,
+  type BatchRunner,
+} from './return-map.js';
+
+export interface ScanAxis {
+  /** Dotted path of a numeric field of the scenario, e.g. policy.angle.attack_deg. */
+  path: string;
+  lo: number;
+  hi: number;
+  /** Grid points, >= 1 (lo = hi when 1). */
+  n: number;
+}
+
+/** Everything that defines a scan's list of cells (what every shard of one run must agree on). */
+export interface ScanOptions {
+  x: ScanAxis;
+  y: ScanAxis;
+  /** Samples of each cell's map (default 201). */
+  samples: number;
+}
+
+export type ScanClass = 'none' | 'unstable' | 'stable';
+
+export interface ScanFixedPoint {
+  apex_height_m: number;
+  forward_speed_m_per_s: number;
+  slope: number;
+  slope_error: number;
+  stable: boolean;
+}
+
+/** One cell of the grid: cells[iy * nx + ix] (row-major, y outer). */
+export interface ScanCell {
+  index: number;
+  ix: number;
+  iy: number;
+  x: number;
+  y: number;
+  class: ScanClass;
+  /** The lowest stable fixed point's height and slope, or null. */
+  stable_apex_height_m: number | null;
+  stable_slope: number | null;
+  fixed_points: ScanFixedPoint[];
+  energy_conserving: boolean;
+  /** No sampled stride survived at this energy. */
+  domain_empty: boolean;
+  /** P(y) = y everywhere within the integrator's accuracy (e.g. a vertical leg). */
+  identity_map: boolean;
+}
+
+export interface ScanResult {
+  energy_J: number;
+  ground_height_m: 0;
+  scenario_sha256: string;
+  x: { path: string; values: number[] };
+  y: { path: string; values: number[] };
+  order: string;
+  samples: number;
+  cells: ScanCell[];
+  counts: { none: number; unstable: number; stable: number };
+  stability_note: string;
+  caution: string;
+}
+
+export const MAX_SCAN_CELLS = 1_000_000;
+export const MAX_SCAN_SAMPLES = 100_000;
+
+// ---------------------------------------------------------------------------------------------
+// Options: PATH:lo:hi:n, paths into the scenario.
+
+/** Parses `PATH:lo:hi:n` given for `option` (--x or --y); checks the range and count. */
+export function parseAxisOption(text: string, option: string): ScanAxis {
+  const expected = 'PATH:lo:hi:n, e.g. policy.angle.attack_deg:60:80:21 (lo <= hi, n an integer >= 1)';
+  const bad = (why: string) => new InputError([{ path: option, expected: `${expected}${why ? `; ${why}` : ''}`, found: describeFound(text) }]);
+  const parts = text.split(':');
+  if (parts.length !== 4) throw bad('');
+  const [path, loText, hiText, nText] = parts.map((p) => p.trim());
+  const number = (t: string) => (t === '' ? NaN : Number(t));
+  const lo = number(loText);
+  const hi = number(hiText);
+  const n = number(nText);
+  if (path === '') throw bad('the PATH is empty');
+  if (!Number.isFinite(lo) || !Number.isFinite(hi)) throw bad('lo and hi must be finite numbers');
+  if (!Number.isInteger(n) || n < 1) throw bad(`n must be an integer >= 1 (found ${nText || 'nothing'})`);
+  if (lo > hi) throw bad(`lo (${lo}) is above hi (${hi})`);
+  if (n > 1 && lo === hi) throw bad(`lo equals hi (${lo}) with n = ${n}: use n = 1 for a single value`);
+  return { path, lo, hi, n };
+}
+
+/** The grid values of an axis: n points from lo to hi, ends exact. */
+export function axisValues(axis: ScanAxis): number[] {
+  if (axis.n === 1) return [axis.lo];
+  return Array.from({ length: axis.n }, (_, i) => (i === axis.n - 1 ? axis.hi : axis.lo + ((axis.hi - axis.lo) * i) / (axis.n - 1)));
+}
+
+type Segment = string | number;
+
+// `policy.angle.attack_deg`, `terrain.ground_heights_m[0]` (or `.0`) -> its segments; null if malformed.
+function pathSegments(path: string): Segment[] | null {
+  const segments: Segment[] = [];
+  for (const part of path.split('.')) {
+    if (/^\d+$/.test(part)) {
+      segments.push(Number(part));
+      continue;
+    }
+    const m = /^([A-Za-z_$][\w$]*)((?:\[\d+\])*)$/.exec(part);
+    if (!m) return null;
+    segments.push(m[1]);
+    for (const index of m[2].matchAll(/\[(\d+)\]/g)) segments.push(Number(index[1]));
+  }
+  return segments;
+}
+
+// Own properties only, so that a PATH cannot reach into prototypes.
+function valueAt(root: unknown, segments: readonly Segment[]): unknown {
+  let node = root;
+  for (const s of segments) {
+    if (node === null || typeof node !== 'object' || !Object.hasOwn(node, s)) return undefined;
+    node = (node as Record<string | number, unknown>)[s];
+  }
+  return node;
+}
+
+function numericPaths(root: unknown, prefix = ''): string[] {
+  if (typeof root === 'number') return [prefix];
+  if (root === null || typeof root !== 'object') return [];
+  if (Array.isArray(root)) return root.flatMap((v, i) => numericPaths(v, `${prefix}[${i}]`));
+  return Object.entries(root).flatMap(([k, v]) => numericPaths(v, prefix ? `${prefix}.${k}` : k));
+}
+
+/** Checks that an axis' PATH names a numeric field of the (defaults-filled) scenario. */
+export function checkAxisPath(scenario: Scenario, axis: ScanAxis, option: string): Segment[] {
+  const segments = pathSegments(axis.path);
+  const found = segments ? valueAt(scenario, segments) : undefined;
+  if (typeof found === 'number') return segments!;
+  const numeric = numericPaths(scenario);
+  const listed = numeric.length > 12 ? `${numeric.slice(0, 12).join(', ')}, ...` : numeric.join(', ');
+  const suggestion = found === undefined ? closestName(axis.path, numeric) : undefined;
+  throw new InputError([
+    {
+      path: option,
+      expected: `a PATH to a numeric field of the scenario (e.g. ${listed})`,
+      found:
+        found === undefined
+          ? `${JSON.stringify(axis.path)}, which is not in the scenario${suggestion ? ` (did you mean ${suggestion}?)` : ''}`
+          : `${JSON.stringify(axis.path)}, which holds ${describeFound(found)}`,
+    },
+  ]);
+}
+
+/** Options as given (CLI or a partial result's `options`), checked and put in canonical form. */
+export function normalizeScanOptions(options: unknown): ScanOptions {
+  const o = (options ?? {}) as Record<string, unknown>;
+  const axis = (value: unknown, option: string): ScanAxis => {
+    if (typeof value === 'string') return parseAxisOption(value, option);
+    const a = (value ?? {}) as Record<string, unknown>;
+    if (typeof a.path !== 'string' || typeof a.lo !== 'number' || typeof a.hi !== 'number' || typeof a.n !== 'number') {
+      throw new InputError([{ path: option, expected: 'an axis PATH:lo:hi:n', found: describeFound(value) }]);
+    }
+    return parseAxisOption(`${a.path}:${a.lo}:${a.hi}:${a.n}`, option);
+  };
+  const x = axis(o.x, '--x');
+  const y = axis(o.y, '--y');
+  const samples = o.samples === undefined ? DEFAULT_MAP_SAMPLES : o.samples;
+  if (typeof samples !== 'number' || !Number.isInteger(samples) || samples < 2 || samples > MAX_SCAN_SAMPLES) {
+    throw new InputError([{ path: '--samples', expected: `an integer from 2 to ${MAX_SCAN_SAMPLES}`, found: describeFound(samples) }]);
+  }
+  if (x.n * y.n > MAX_SCAN_CELLS) {
+    throw new InputError([{ path: '--x, --y', expected: `at most ${MAX_SCAN_CELLS} cells in all`, found: `${x.n} x ${y.n} = ${x.n * y.n}` }]);
+  }
+  return { x: { ...x }, y: { ...y }, samples };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The grid of cell scenarios.
+
+interface ScanGrid {
+  options: ScanOptions;
+  xValues: number[];
+  yValues: number[];
+  /** Validated scenario of every cell, row-major with y outer. */
+  scenarios: Scenario[];
+  energy_J: number;
+}
+
+function setAt(root: unknown, segments: readonly Segment[], value: number): void {
+  let node = root as Record<string | number, unknown>;
+  for (const s of segments.slice(0, -1)) node = node[s] as Record<string | number, unknown>;
+  node[segments[segments.length - 1]] = value;
+}
+
+function buildGrid(scenario: Scenario, options: ScanOptions): ScanGrid {
+  const xs = checkAxisPath(scenario, options.x, '--x');
+  const ys = checkAxisPath(scenario, options.y, '--y');
+  const xValues = axisValues(options.x);
+  const yValues = axisValues(options.y);
+  const scenarios: Scenario[] = [];
+  for (const yv of yValues) {
+    for (const xv of xValues) {
+      const raw = structuredClone(scenario) as unknown;
+      setAt(raw, xs, xv);
+      setAt(raw, ys, yv);
+      try {
+        scenarios.push(parseScenario(raw));
+      } catch (error) {
+        if (!(error instanceof InputError)) throw error;
+        // blame the option whose value alone breaks the scenario (a cross-field rule may be the one hit)
+        const alone = (segments: readonly Segment[], value: number) => {
+          const one = structuredClone(scenario) as unknown;
+          setAt(one, segments, value);
+          try {
+            parseScenario(one);
+            return true;
+          } catch {
+            return false;
+          }
+        };
+        const option = !alone(xs, xv) ? '--x' : !alone(ys, yv) ? '--y' : '--x, --y';
+        throw new InputError([
+          {
+            path: option,
+            expected: 'values that keep the scenario valid in every cell',
+            found: `${options.x.path} = ${xv}, ${options.y.path} = ${yv}, where ${error.format().split('\n')[0]}`,
+          },
+        ]);
+      }
+    }
+  }
+  return { options, xValues, yValues, scenarios, energy_J: startEnergy(scenario) };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Running cells.
+
+/** The rows of cells [start, end) of the grid (all stages batched over those cells). */
+async function scanRows(grid: ScanGrid, start: number, end: number, runBatch: BatchRunner): Promise<ScanCell[]> {
+  const chosen = grid.scenarios.slice(start, end);
+  if (chosen.length === 0) return [];
+  const cells = chosen.map((s) => mapCell(s, grid.energy_J));
+  const evaluate = kernelEvaluator(chosen.map(mapModel), runBatch);
+  const sampled = await sampleMaps(cells, grid.options.samples, evaluate);
+  const roots = await findFixedPoints(cells, sampled, evaluate);
+  const requests = roots.flatMap((r, cell) => {
+    const top = highestSurvivingSample(sampled[cell]);
+    return r.roots.map((root) => ({ cell, y: root.y, h0: heightStep(cells[cell], root.y, top) }));
+  });
+  const slopes = await mapSlopes(cells, requests, evaluate);
+  let at = 0;
+  const nx = grid.xValues.length;
+  return chosen.map((scenario, i) => {
+    const index = start + i;
+    const fixedPoints: ScanFixedPoint[] = [];
+    for (const root of roots[i].roots) {
+      const d = slopes[at++];
+      if (!d) continue;
+      fixedPoints.push({
+        apex_height_m: root.y,
+        forward_speed_m_per_s: speedAt(cells[i], root.y),
+        slope: d.value,
+        slope_error: d.error,
+        stable: Math.abs(d.value) < 1,
+      });
+    }
+    const stable = fixedPoints.find((f) => f.stable);
+    const ix = index % nx;
+    const iy = Math.floor(index / nx);
+    return {
+      index,
+      ix,
+      iy,
+      x: grid.xValues[ix],
+      y: grid.yValues[iy],
+      class: stable ? 'stable' : fixedPoints.length ? 'unstable' : 'none',
+      stable_apex_height_m: stable ? stable.apex_height_m : null,
+      stable_slope: stable ? stable.slope : null,
+      fixed_points: fixedPoints,
+      energy_conserving: conservesEnergy(scenario),
+      domain_empty: ![sampled[i].probe, ...sampled[i].samples].some((p) => p?.outcome.status === L.STATUS_OK),
+      identity_map: roots[i].identity,
+    };
+  });
+}
+
+export interface ScanRunOptions {
+  /** How batches run (default: in-process engine; the CLI passes the worker pool). */
+  runBatch?: BatchRunner;
+}
+
+/** The whole scan on one machine. */
+export async function scan(scenario: Scenario, options: ScanOptions, run: ScanRunOptions = {}): Promise<ScanResult> {
+  const normalized = normalizeScanOptions(options);
+  const grid = buildGrid(scenario, normalized);
+  const rows = await scanRows(grid, 0, grid.scenarios.length, run.runBatch ?? inProcessRunner);
+  return finishScan(scenario, normalized, rows);
+}
+
+/** One shard (`--shard i/n`): the rows of a contiguous range of cells, as a partial result. */
+export async function scanShard(scenario: Scenario, options: ScanOptions, shard: ShardSpec, run: ScanRunOptions = {}): Promise<PartialResult<ScanCell>> {
+  const normalized = normalizeScanOptions(options);
+  const grid = buildGrid(scenario, normalized);
+  const total = grid.scenarios.length;
+  const range = shardRange(total, shard);
+  const rows = await scanRows(grid, range.start, range.end, run.runBatch ?? inProcessRunner);
+  return {
+    format: PARTIAL_FORMAT,
+    format_version: PARTIAL_FORMAT_VERSION,
+    command: 'scan',
+    pronk_version: PRONK_VERSION,
+    scenario_sha256: await contentHash(scenario),
+    scenario,
+    options: { ...normalized } as unknown as Record<string, unknown>,
+    shard: { index: shard.index, count: shard.count, start: range.start, end: range.end, total },
+    rows,
+  };
+}
+
+/**
+ * The scan result from all rows (one machine's, or every shard's joined in order): exactly what
+ * `pronk scan --json` prints. `scenario` and `options` may come straight from a partial result.
+ */
+export async function finishScan(scenario: unknown, options: unknown, rowsGiven: readonly unknown[]): Promise<ScanResult> {
+  const validated = parseScenario(scenario);
+  const normalized = normalizeScanOptions(options);
+  const xValues = axisValues(normalized.x);
+  const yValues = axisValues(normalized.y);
+  const total = xValues.length * yValues.length;
+  const rows = rowsGiven as readonly ScanCell[];
+  const classes = new Set<unknown>(['none', 'unstable', 'stable']);
+  const bad = rows.findIndex((row, i) => typeof row !== 'object' || row === null || row.index !== i || !classes.has(row.class));
+  if (rows.length !== total || bad >= 0) {
+    throw new InputError([
+      {
+        path: 'rows',
+        expected: `${total} scan cells with indices 0 to ${total - 1} in order`,
+        found: rows.length !== total ? `${rows.length} rows` : `row ${bad}: ${describeFound(rows[bad])}`,
+      },
+    ]);
+  }
+  const counts = { none: 0, unstable: 0, stable: 0 };
+  for (const row of rows) counts[row.class]++;
+  const conservative = rows.every((row) => row.energy_conserving);
+  return {
+    energy_J: startEnergy(validated),
+    ground_height_m: 0,
+    scenario_sha256: await contentHash(validated),
+    x: { path: normalized.x.path, values: xValues },
+    y: { path: normalized.y.path, values: yValues },
+    order: 'row-major, y outer: cells[iy * x.values.length + ix]',
+    samples: normalized.samples,
+    cells: rows.map((row) => ({ ...row })),
+    counts,
+    stability_note:
+      "each cell's 1-D apex map at the scenario's start energy on flat ground at 0; stable means |P'(y*)| < 1" +
+      (conservative ? '' : "; some cells change energy in stance, where this is the 1-D map's stability, not a periodic orbit's"),
+    caution: SAFETY_CAUTION,
+  };
+}

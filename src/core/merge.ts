@@ -1,0 +1,120 @@
+// `pronk merge`: the partial results of a sharded run (`--shard i/n`) put back together and handed
+// to the command's own finisher, the same function a one-machine run ends with, so the merged
+// result is exactly the one-machine result.
+
+import { InputError, describeFound, type InputIssue } from './errors.js';
+import { parseScenario, type Scenario } from './scenario.js';
+import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, joinShards, type PartialResult } from './shard.js';
+import { contentHash } from './version.js';
+
+export type Finisher = (scenario: Scenario, options: Record<string, unknown>, rows: unknown[]) => Promise<unknown>;
+
+// The finisher of each command that can be sharded, loaded on demand: the same function the
+// command's one-machine run ends with (each takes the validated scenario, the canonical options
+// and the rows of every shard in order).
+const FINISHERS: Record<string, () => Promise<Finisher>> = {
+  basin: async () => (await import('./analysis/basin.js')).finishBasin as Finisher,
+  scan: async () => (await import('./analysis/scan.js')).finishScan as unknown as Finisher,
+  robustness: async () => (await import('./analysis/robustness.js')).finishRobustness as unknown as Finisher,
+};
+
+export const MERGEABLE_COMMANDS: readonly string[] = Object.keys(FINISHERS);
+
+export interface MergedResult {
+  command: string;
+  scenario: Scenario;
+  options: Record<string, unknown>;
+  /** Exactly what the command returns when run on one machine. */
+  result: unknown;
+}
+
+/**
+ * Merge the partial results of one run: every shard exactly once, all from the same command,
+ * scenario, options, shard count and Pronk version. Problems are InputErrors naming the file.
+ */
+export async function mergePartials(parts: { source: string; partial: PartialResult }[]): Promise<MergedResult> {
+  const issues: InputIssue[] = [];
+  for (const { source, partial } of parts) issues.push(...partialShapeIssues(source, partial));
+  if (issues.length) throw new InputError(issues);
+
+  let joined: ReturnType<typeof joinShards>;
+  try {
+    joined = joinShards(parts);
+  } catch (error) {
+    // A run-wide problem (a shard missing, rows not tiling the run) names no single file: list them.
+    if (!(error instanceof InputError)) throw error;
+    const given = parts.map(({ source, partial }) => `${source} is ${partial.shard.index}/${partial.shard.count}`).join(', ');
+    throw new InputError(error.issues.map((issue) => (issue.path === 'FILES' ? { ...issue, found: `${issue.found} (given: ${given})` } : issue)));
+  }
+  const first = parts[0];
+  for (const { source, partial } of parts.slice(1)) {
+    if (partial.pronk_version !== first.partial.pronk_version) {
+      issues.push({
+        path: `${source}: pronk_version`,
+        expected: `${first.partial.pronk_version} (as in ${first.source}; every shard must come from one Pronk version)`,
+        found: describeFound(partial.pronk_version),
+      });
+    }
+  }
+  if (issues.length) throw new InputError(issues);
+  if ((await contentHash(joined.scenario)) !== first.partial.scenario_sha256) {
+    throw new InputError([
+      { path: `${first.source}: scenario`, expected: `the scenario whose hash is scenario_sha256`, found: 'a scenario with another hash (the file was edited)' },
+    ]);
+  }
+  const scenario = parseScenario(joined.scenario, { source: `${first.source}: scenario` });
+  const load = Object.hasOwn(FINISHERS, joined.command) ? FINISHERS[joined.command] : undefined;
+  if (!load) {
+    throw new InputError([
+      { path: `${first.source}: command`, expected: `a command that can be merged (${MERGEABLE_COMMANDS.join(', ')})`, found: describeFound(joined.command) },
+    ]);
+  }
+  const finish = await load();
+  let result: unknown;
+  try {
+    result = await finish(scenario, joined.options, joined.rows);
+  } catch (error) {
+    if (error instanceof InputError) {
+      const files = parts.map((part) => part.source).join(', ');
+      throw new InputError(error.issues, { source: `partial results ${files}` });
+    }
+    throw error;
+  }
+  return { command: joined.command, scenario, options: joined.options, result };
+}
+
+// Enough of the file's structure checked that joinShards can read it safely.
+function partialShapeIssues(source: string, partial: unknown): InputIssue[] {
+  const p = partial as Partial<PartialResult> | null;
+  if (typeof p !== 'object' || p === null || Array.isArray(p) || p.format !== PARTIAL_FORMAT) {
+    const format = typeof p === 'object' && p !== null && !Array.isArray(p) ? p.format : undefined;
+    return [{
+      path: source,
+      expected: `a partial result written by --shard (format "${PARTIAL_FORMAT}")`,
+      found: format === undefined ? `a file without "format" (${describeFound(partial)})` : `format ${describeFound(format)}`,
+    }];
+  }
+  if (p.format_version !== PARTIAL_FORMAT_VERSION) {
+    return [{ path: `${source}: format_version`, expected: String(PARTIAL_FORMAT_VERSION), found: describeFound(p.format_version) }];
+  }
+  const issues: InputIssue[] = [];
+  const need = (ok: boolean, field: string, expected: string, value: unknown) => {
+    if (!ok) issues.push({ path: `${source}: ${field}`, expected, found: describeFound(value) });
+  };
+  const isInteger = (x: unknown): x is number => typeof x === 'number' && Number.isSafeInteger(x);
+  need(typeof p.command === 'string', 'command', 'a command name', p.command);
+  need(typeof p.pronk_version === 'string', 'pronk_version', 'a version string', p.pronk_version);
+  need(typeof p.scenario_sha256 === 'string' && /^[0-9a-f]{64}$/.test(p.scenario_sha256), 'scenario_sha256', 'a SHA-256 in hex', p.scenario_sha256);
+  need(typeof p.scenario === 'object' && p.scenario !== null, 'scenario', 'the scenario object', p.scenario);
+  need(typeof p.options === 'object' && p.options !== null && !Array.isArray(p.options), 'options', 'an object', p.options);
+  need(Array.isArray(p.rows), 'rows', 'an array', p.rows);
+  const shard = p.shard as Partial<PartialResult['shard']> | undefined;
+  const shardOk =
+    typeof shard === 'object' && shard !== null &&
+    isInteger(shard.count) && shard.count >= 1 &&
+    isInteger(shard.index) && shard.index >= 1 && shard.index <= shard.count &&
+    isInteger(shard.total) && shard.total >= 0 &&
+    isInteger(shard.start) && isInteger(shard.end) && shard.start >= 0 && shard.start <= shard.end && shard.end <= shard.total;
+  need(shardOk, 'shard', '{index, count, start, end, total} with 1 <= index <= count and 0 <= start <= end <= total', shard);
+  return issues;
+}

@@ -1,0 +1,779 @@
+// The study file: what `pronk optimize` searches. A base scenario, the policy or body numbers set
+// free within bounds, the objective (a weighted sum of scores, each MAXIMIZED), the limits a
+// machine imposes, an optional model mismatch, the search settings, and the training and held-out
+// seeds. This file holds the schema, the validator (every problem reported, each naming the field
+// path, what was expected and what was found, with a "did you mean" for unknown fields and kinds)
+// and the file reader. The evaluator that scores a candidate is in objectives.ts.
+//
+// The validated Study is plain JSON (numbers, strings, arrays, objects): it survives
+// structuredClone / postMessage into a worker and JSON round trips exactly.
+//
+// Objective terms, each maximized (the weighted sum is `objective`; NLopt minimizes −objective):
+//  - survival: R rollouts of S strides from the start apex on random terrain (a random walk of
+//    Gaussian steps sigma_m, or independent Gaussian heights), rollout r on terrain stream r of the
+//    study's seed (common random numbers). Score = survived / R, in [0, 1].
+//  - tracking: the same rollouts; score = −(rms_height / height_scale_m + rms_speed /
+//    speed_scale_m_per_s) − fall_penalty · (fell / R), the RMS taken about the target apex over
+//    every completed stride of every rollout. The RMS part is capped at fall_penalty (and is
+//    fall_penalty when no stride completed), so the score lies in [−2·fall_penalty, 0] and a
+//    policy that falls everywhere scores worst. 0 is perfect tracking.
+//  - basin: fraction of a grid of start apexes (height × forward speed, or heights at the
+//    scenario's energy) attracted to a fixed point on flat ground within `strides` strides (the
+//    definition of `pronk basin`), in [0, 1].
+//  - step_down: the largest permanent drop met at the first touchdown that the policy survives for
+//    `strides_after` further strides (the definition of `pronk stepdown`, first failure boundary),
+//    divided by the leg length: in [0, 1].
+
+import { z } from 'zod';
+import { METHODS, type MethodName } from './nlopt.js';
+import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
+import { parseJson, parseScenario, readScenarioFile, type Scenario } from '../scenario.js';
+
+export const MAX_FREE_PARAMETERS = 64;
+export const MAX_TERM_ROLLOUTS = 1_000_000;
+export const MAX_TERM_STRIDES = 100_000;
+export const MAX_STUDY_BASIN_CELLS = 100_000;
+export const DEFAULT_FALL_PENALTY = 10;
+export const DEFAULT_BASIN_STRIDES = 30;
+export const DEFAULT_BASIN_TOLERANCE = 1e-4;
+export const DEFAULT_STEP_STRIDES_AFTER = 20;
+export const DEFAULT_STEP_RESOLUTION_M = 0.001;
+export const DEFAULT_STEP_GRID_M = 0.005;
+export const DEFAULT_MAX_EVALUATIONS = 200;
+export const DEFAULT_XTOL_REL = 1e-4;
+/**
+ * Quadratic penalty weight w: value = −objective + w · Σ max(0, normalized violation)². Objective
+ * terms are O(1) (a survival fraction), so a 10 % violation costs 0.01·w = 1, as much as losing
+ * every rollout; the penalized optimum may still violate by about (d objective / d violation)/(2w).
+ */
+export const DEFAULT_PENALTY_WEIGHT = 100;
+
+export type RandomTerrain = 'random_walk' | 'random_heights';
+export type TermKind = 'survival' | 'tracking' | 'basin' | 'step_down';
+export const TERM_KINDS: readonly TermKind[] = ['survival', 'tracking', 'basin', 'step_down'];
+
+// ---------------------------------------------------------------------------------------------
+// Field schemas; each carries its "expected" text (with the unit), used for every way it can fail.
+
+const positive = (unit: string) => z.number({ error: `a number > 0 (${unit})` }).gt(0);
+const nonNegative = (unit: string) => z.number({ error: `a number >= 0 (${unit})` }).gte(0);
+const finite = (unit: string) => z.number({ error: `a finite number (${unit})` });
+const integerIn = (low: number, high: number) =>
+  z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
+const seedSchema = integerIn(0, Number.MAX_SAFE_INTEGER);
+const weight = z.number({ error: 'a weight: a finite number > 0' }).gt(0).default(1);
+const terrainKind = z.enum(['random_walk', 'random_heights'], { error: 'one of random_walk, random_heights' });
+const angleDeg = z.number({ error: 'an angle in (0, 90] (deg from the horizontal)' }).gt(0).lte(90);
+
+function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
+  return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
+}
+
+const fields = (shape: z.ZodRawShape) => Object.keys(shape).join(', ');
+
+const freeParameterShape = {
+  path: z.string({ error: 'a dotted path into the scenario\'s policy or body, e.g. policy.angle.attack_deg' }),
+  lower: finite('the field\'s unit'),
+  upper: finite('the field\'s unit'),
+  start: finite('the field\'s unit').optional(),
+};
+const freeParameterSchema = strictObject(freeParameterShape, `an object with ${fields(freeParameterShape)}`);
+
+// Monte Carlo terms share their terrain fields.
+const monteCarloShape = {
+  weight,
+  terrain: terrainKind,
+  sigma_m: nonNegative('m'),
+  rollouts: integerIn(1, MAX_TERM_ROLLOUTS),
+  strides: integerIn(1, MAX_TERM_STRIDES).optional(),
+};
+
+const survivalTerm = strictObject({ kind: z.literal('survival'), ...monteCarloShape }, 'an object');
+
+const trackingTerm = strictObject(
+  {
+    kind: z.literal('tracking'),
+    ...monteCarloShape,
+    target_apex_height_m: finite('m').optional(),
+    target_forward_speed_m_per_s: nonNegative('m/s').optional(),
+    height_scale_m: positive('m'),
+    speed_scale_m_per_s: positive('m/s'),
+    fall_penalty: positive('score lost per fraction of rollouts fallen').default(DEFAULT_FALL_PENALTY),
+  },
+  'an object',
+);
+
+const axisCount = integerIn(1, MAX_STUDY_BASIN_CELLS);
+const heightAxisShape = { low_m: finite('m'), high_m: finite('m'), count: axisCount };
+const speedAxisShape = { low_m_per_s: nonNegative('m/s'), high_m_per_s: nonNegative('m/s'), count: axisCount };
+const basinTerm = strictObject(
+  {
+    kind: z.literal('basin'),
+    weight,
+    mode: z.enum(['grid', 'energy'], { error: 'one of grid (heights x speeds), energy (heights at the scenario\'s energy)' }),
+    heights: strictObject(heightAxisShape, `an object with ${fields(heightAxisShape)}`),
+    speeds: strictObject(speedAxisShape, `an object with ${fields(speedAxisShape)}`).optional(),
+    strides: integerIn(1, MAX_TERM_STRIDES).default(DEFAULT_BASIN_STRIDES),
+    height_tolerance_m: positive('m').default(DEFAULT_BASIN_TOLERANCE),
+    speed_tolerance_m_per_s: positive('m/s').default(DEFAULT_BASIN_TOLERANCE),
+  },
+  'an object',
+);
+
+const stepDownTerm = strictObject(
+  {
+    kind: z.literal('step_down'),
+    weight,
+    strides_after: integerIn(1, MAX_TERM_STRIDES).default(DEFAULT_STEP_STRIDES_AFTER),
+    resolution_m: positive('m').default(DEFAULT_STEP_RESOLUTION_M),
+    grid_m: positive('m').default(DEFAULT_STEP_GRID_M),
+  },
+  'an object',
+);
+
+const TERM_EXPECTED = `an object with kind ${TERM_KINDS.join(', ')}`;
+const termSchema = z.discriminatedUnion('kind', [survivalTerm, trackingTerm, basinTerm, stepDownTerm], {
+  error: (issue) => ((issue.code as string) === 'invalid_type' ? TERM_EXPECTED : undefined),
+});
+
+const objectiveShape = {
+  terms: z.array(termSchema, { error: 'a non-empty array of objective terms' }).min(1),
+};
+const objectiveSchema = strictObject(objectiveShape, `an object with ${fields(objectiveShape)}`);
+
+const angleRangeShape = { min_deg: angleDeg, max_deg: angleDeg };
+const stiffnessRangeShape = { min_N_per_m: positive('N/m'), max_N_per_m: positive('N/m') };
+const constraintsShape = {
+  max_leg_force_N: positive('N'),
+  friction_coefficient: positive('the friction coefficient mu, |Fx/Fy| <= mu'),
+  max_compression_fraction: z.number({ error: 'a fraction of the leg length in (0, 1)' }).gt(0).lt(1),
+  leg_angle_range_deg: strictObject(angleRangeShape, `an object with ${fields(angleRangeShape)}`),
+  max_hip_rate_deg_per_s: positive('deg/s'),
+  stiffness_range_N_per_m: strictObject(stiffnessRangeShape, `an object with ${fields(stiffnessRangeShape)}`),
+};
+const constraintsSchema = strictObject(
+  Object.fromEntries(Object.entries(constraintsShape).map(([k, v]) => [k, v.optional()])) as {
+    [K in keyof typeof constraintsShape]: z.ZodOptional<(typeof constraintsShape)[K]>;
+  },
+  `an object with any of ${fields(constraintsShape)}`,
+);
+
+const mismatchShape = {
+  distribution: z.enum(['uniform', 'normal'], {
+    error: 'one of uniform (factor in [1 - f, 1 + f]), normal (standard deviation f, truncated at 3 standard deviations)',
+  }),
+  mass_fraction: nonNegative('fraction of the nominal mass').default(0),
+  leg_stiffness_fraction: nonNegative('fraction of the nominal stiffness').default(0),
+  leg_length_fraction: nonNegative('fraction of the nominal leg length').default(0),
+};
+const mismatchSchema = strictObject(mismatchShape, `an object with ${fields(mismatchShape)}`);
+
+const METHOD_NAMES = Object.keys(METHODS) as MethodName[];
+const methodSchema = z.enum(METHOD_NAMES as [MethodName, ...MethodName[]], { error: `one of ${METHOD_NAMES.join(', ')}` });
+const searchShape = {
+  method: methodSchema.default('COBYLA'),
+  local_method: methodSchema.optional(),
+  max_evaluations: integerIn(1, 100_000_000).default(DEFAULT_MAX_EVALUATIONS),
+  max_time_s: nonNegative('s; 0 = no limit').default(0),
+  xtol_rel: z.number({ error: 'a number > 0 and < 1' }).gt(0).lt(1).default(DEFAULT_XTOL_REL),
+  restarts: integerIn(1, 10_000).default(1),
+  constraint_handling: z.enum(['native', 'penalty'], { error: 'one of native, penalty' }).optional(),
+  penalty_weight: positive('score per squared normalized violation').optional(),
+  seed: seedSchema.optional(),
+};
+const searchSchema = strictObject(searchShape, `an object with ${fields(searchShape)}`).prefault({});
+
+const holdoutShape = { seed: seedSchema, rollouts: integerIn(1, MAX_TERM_ROLLOUTS) };
+const holdoutSchema = strictObject(holdoutShape, `an object with ${fields(holdoutShape)}`);
+
+const studyShape = {
+  name: z.string({ error: 'a string' }).optional(),
+  description: z.string({ error: 'a string' }).optional(),
+  scenario: z.unknown().optional(),
+  scenario_file: z.string({ error: 'a path to a scenario file, relative to the study file' }).optional(),
+  free_parameters: z
+    .array(freeParameterSchema, { error: 'a non-empty array of free parameters {path, lower, upper, start?}' })
+    .min(1)
+    .max(MAX_FREE_PARAMETERS),
+  objective: objectiveSchema,
+  constraints: constraintsSchema.optional(),
+  model_mismatch: mismatchSchema.optional(),
+  search: searchSchema,
+  seed: seedSchema,
+  holdout: holdoutSchema.optional(),
+};
+export const studySchema = strictObject(studyShape, `a study object with ${fields(studyShape)}`);
+
+// ---------------------------------------------------------------------------------------------
+// The validated study.
+
+export interface FreeParameter {
+  /** Canonical dotted path, e.g. policy.angle.attack_deg[3]. */
+  path: string;
+  lower: number;
+  upper: number;
+  /** The search's start: given, or the base scenario's value. */
+  start: number;
+}
+
+export interface SurvivalTerm {
+  kind: 'survival';
+  weight: number;
+  terrain: RandomTerrain;
+  sigma_m: number;
+  rollouts: number;
+  strides: number;
+}
+
+export interface TrackingTerm {
+  kind: 'tracking';
+  weight: number;
+  terrain: RandomTerrain;
+  sigma_m: number;
+  rollouts: number;
+  strides: number;
+  target_apex_height_m: number;
+  target_forward_speed_m_per_s: number;
+  height_scale_m: number;
+  speed_scale_m_per_s: number;
+  fall_penalty: number;
+}
+
+export interface BasinTerm {
+  kind: 'basin';
+  weight: number;
+  mode: 'grid' | 'energy';
+  heights: { low_m: number; high_m: number; count: number };
+  /** null in energy mode. */
+  speeds: { low_m_per_s: number; high_m_per_s: number; count: number } | null;
+  strides: number;
+  height_tolerance_m: number;
+  speed_tolerance_m_per_s: number;
+}
+
+export interface StepDownTerm {
+  kind: 'step_down';
+  weight: number;
+  strides_after: number;
+  resolution_m: number;
+  grid_m: number;
+}
+
+export type ObjectiveTerm = SurvivalTerm | TrackingTerm | BasinTerm | StepDownTerm;
+export type MonteCarloTerm = SurvivalTerm | TrackingTerm;
+
+export interface StudyConstraints {
+  max_leg_force_N?: number;
+  friction_coefficient?: number;
+  max_compression_fraction?: number;
+  leg_angle_range_deg?: { min_deg: number; max_deg: number };
+  max_hip_rate_deg_per_s?: number;
+  stiffness_range_N_per_m?: { min_N_per_m: number; max_N_per_m: number };
+}
+
+export interface ModelMismatch {
+  distribution: 'uniform' | 'normal';
+  mass_fraction: number;
+  leg_stiffness_fraction: number;
+  leg_length_fraction: number;
+}
+
+export interface StudySearch {
+  method: MethodName;
+  /** For MLSL and AUGLAG; null otherwise. */
+  local_method: MethodName | null;
+  max_evaluations: number;
+  /** 0: no limit. */
+  max_time_s: number;
+  xtol_rel: number;
+  restarts: number;
+  /** 'none' when the study has no constraints. */
+  constraint_handling: 'native' | 'penalty' | 'none';
+  /** The quadratic penalty's weight (used with constraint_handling 'penalty'). */
+  penalty_weight: number;
+  /** Seed of the stochastic methods and restart points: default the study's seed. */
+  seed: number;
+}
+
+export interface Study {
+  name?: string;
+  description?: string;
+  /** The base scenario, validated, defaults filled. */
+  scenario: Scenario;
+  /** 'inline', or the scenario_file path as written in the study. */
+  scenario_source: string;
+  free_parameters: FreeParameter[];
+  objective: { terms: ObjectiveTerm[] };
+  constraints: StudyConstraints;
+  model_mismatch: ModelMismatch | null;
+  search: StudySearch;
+  /** Training terrain streams and model-mismatch draws. */
+  seed: number;
+  /** Held-out re-scoring: required when the objective has Monte Carlo terms; else null. */
+  holdout: { seed: number; rollouts: number } | null;
+}
+
+export const isMonteCarloTerm = (term: ObjectiveTerm): term is MonteCarloTerm =>
+  term.kind === 'survival' || term.kind === 'tracking';
+
+export const hasConstraints = (constraints: StudyConstraints): boolean =>
+  Object.values(constraints).some((value) => value !== undefined);
+
+// ---------------------------------------------------------------------------------------------
+// Parameter paths.
+
+export type PathSegment = string | number;
+
+const PATH_PATTERN = /^[A-Za-z_]\w*(?:\s*\.\s*[A-Za-z_]\w*|\s*\[\s*\d+\s*\])*$/;
+
+/** `policy.angle.attack_deg[3]` → ['policy', 'angle', 'attack_deg', 3]; null when malformed. */
+export function parseParameterPath(path: string): PathSegment[] | null {
+  const trimmed = path.trim();
+  if (!PATH_PATTERN.test(trimmed)) return null;
+  const segments: PathSegment[] = [];
+  for (const match of trimmed.matchAll(/([A-Za-z_]\w*)|\[\s*(\d+)\s*\]/g)) {
+    segments.push(match[1] !== undefined ? match[1] : Number(match[2]));
+  }
+  return segments;
+}
+
+/** The number at `segments` in the scenario (an object tree), or a reason why there is none. */
+export function numberAtPath(root: unknown, segments: readonly PathSegment[]): { value: number } | { problem: string } {
+  let value: unknown = root;
+  for (let i = 0; i < segments.length; i++) {
+    const segment = segments[i];
+    const where = formatPath(segments.slice(0, i)) || 'the scenario';
+    if (typeof segment === 'number') {
+      if (!Array.isArray(value)) return { problem: `${where} is not a table (no [${segment}])` };
+      if (segment >= value.length) {
+        return { problem: `${where} has ${value.length} value${value.length === 1 ? '' : 's'}: an index from 0 to ${value.length - 1}` };
+      }
+      value = value[segment];
+      continue;
+    }
+    if (typeof value !== 'object' || value === null || Array.isArray(value)) {
+      return { problem: `${where} is ${describeFound(value)}, which has no field ${segment}` };
+    }
+    const record = value as Record<string, unknown>;
+    if (!Object.prototype.hasOwnProperty.call(record, segment)) {
+      const known = Object.keys(record).filter((key) => key !== 'kind');
+      const suggestion = closestName(segment, known);
+      const kind = typeof record.kind === 'string' ? ` (a ${record.kind} ${formatPath(segments.slice(i - 1, i))} policy)` : '';
+      const hint = suggestion ? `; did you mean ${formatPath([...segments.slice(0, i), suggestion])}?` : '';
+      const optional = ' (an optional field must be in the base scenario to be searched)';
+      return {
+        problem: `${where}${kind} has no ${segment}: its fields are ${known.join(', ') || 'none'}${hint}${suggestion ? '' : optional}`,
+      };
+    }
+    value = record[segment];
+  }
+  if (Array.isArray(value)) {
+    return { problem: `${formatPath(segments)} is a table of ${value.length} values: give an index, e.g. ${formatPath([...segments, 0])}` };
+  }
+  if (typeof value !== 'number') return { problem: `${formatPath(segments)} is ${describeFound(value)}, not a number` };
+  return { value };
+}
+
+/** A deep copy of the scenario (a plain object) with the free parameters set to x. */
+export function scenarioValueAt(base: Scenario, parameters: readonly FreeParameter[], x: readonly number[]): Record<string, unknown> {
+  const copy = structuredClone(base) as unknown as Record<string, unknown>;
+  parameters.forEach((parameter, i) => {
+    const segments = parseParameterPath(parameter.path)!;
+    let parent: Record<PathSegment, unknown> = copy;
+    for (const segment of segments.slice(0, -1)) parent = parent[segment] as Record<PathSegment, unknown>;
+    parent[segments[segments.length - 1]] = x[i];
+  });
+  return copy;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Validation.
+
+export interface ParseStudyOptions {
+  /** The study file (for messages). */
+  source?: string;
+  /** The scenario read from scenario_file (readStudyFile passes it). */
+  scenarioFromFile?: Scenario;
+}
+
+/** Checks any JSON value against the study schema; throws an InputError naming every problem. */
+export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Study {
+  const knownFields = new Map<string, { known: string[]; present: string[] }>();
+  const parsed = studySchema.safeParse(value, {
+    error: (issue) => {
+      if (issue.code === 'unrecognized_keys') {
+        const shape = (issue.inst as unknown as { shape?: object } | undefined)?.shape;
+        const input = issue.input;
+        knownFields.set(formatPath(issue.path ?? []), {
+          known: shape ? Object.keys(shape) : [],
+          present: typeof input === 'object' && input !== null ? Object.keys(input) : [],
+        });
+      }
+      return undefined;
+    },
+  });
+  const issues: InputIssue[] = parsed.success ? [] : toInputIssues(parsed.error.issues, value, knownFields);
+
+  // The base scenario, whatever else failed (its own problems are reported under `scenario.`).
+  const raw = typeof value === 'object' && value !== null ? (value as Record<string, unknown>) : {};
+  let scenario: Scenario | undefined;
+  const hasInline = raw.scenario !== undefined;
+  const hasFile = raw.scenario_file !== undefined;
+  if (hasInline && hasFile) {
+    issues.push({ path: 'scenario_file', expected: 'either scenario (inline) or scenario_file, not both', found: describeFound(raw.scenario_file) });
+  } else if (!hasInline && !hasFile) {
+    issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
+  } else if (hasInline) {
+    try {
+      scenario = parseScenario(raw.scenario);
+    } catch (error) {
+      if (!(error instanceof InputError)) throw error;
+      for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
+    }
+  } else if (typeof raw.scenario_file === 'string') {
+    scenario = options.scenarioFromFile;
+    if (!scenario) {
+      issues.push({
+        path: 'scenario_file',
+        expected: 'an inline scenario (a scenario_file is read by readStudyFile, which knows where the study file is)',
+        found: describeFound(raw.scenario_file),
+      });
+    }
+  }
+  if (!parsed.success || !scenario) throw new InputError(issues, { source: options.source });
+
+  const data = parsed.data;
+  const free = checkFreeParameters(data.free_parameters, scenario, issues);
+  const terms = data.objective.terms.map((term, i) => completeTerm(term, i, scenario, issues));
+  const constraints = (data.constraints ?? {}) as StudyConstraints;
+  checkConstraints(constraints, issues);
+  const mismatch = data.model_mismatch ? checkMismatch(data.model_mismatch as ModelMismatch, issues) : null;
+  const search = completeSearch(data.search, constraints, data.seed, issues);
+  const monteCarlo = terms.some(isMonteCarloTerm);
+  let holdout: Study['holdout'] = null;
+  if (data.holdout) {
+    holdout = data.holdout;
+    if (holdout.seed === data.seed) {
+      issues.push({
+        path: 'holdout.seed',
+        expected: `a seed other than the training seed (${data.seed}): held-out scores must come from terrains the search never saw`,
+        found: describeFound(holdout.seed),
+      });
+    }
+  } else if (monteCarlo) {
+    issues.push({
+      path: 'holdout',
+      expected: 'an object {seed, rollouts}: the objective has Monte Carlo terms (survival, tracking), re-scored on held-out seeds',
+      found: 'missing',
+    });
+  }
+  if (issues.length) throw new InputError(issues, { source: options.source });
+  if (free.some((parameter) => parameter === null)) throw new Error('unreachable: a free parameter failed without an issue');
+
+  const study: Study = {
+    ...(data.name !== undefined ? { name: data.name } : {}),
+    ...(data.description !== undefined ? { description: data.description } : {}),
+    scenario,
+    scenario_source: hasInline ? 'inline' : (raw.scenario_file as string),
+    free_parameters: free as FreeParameter[],
+    objective: { terms },
+    constraints,
+    model_mismatch: mismatch,
+    search,
+    seed: data.seed,
+    holdout,
+  };
+  // The start point must itself be a valid scenario (e.g. a clamp pair must stay ordered).
+  const startIssue = startScenarioIssue(study);
+  if (startIssue) throw new InputError([startIssue], { source: options.source });
+  return study;
+}
+
+type ParsedFree = z.output<typeof freeParameterSchema>;
+
+function checkFreeParameters(list: ParsedFree[], scenario: Scenario, issues: InputIssue[]): (FreeParameter | null)[] {
+  const seen = new Map<string, number>();
+  return list.map((entry, i) => {
+    const at = (field: string) => `free_parameters[${i}].${field}`;
+    const segments = parseParameterPath(entry.path);
+    const expectedPath = 'a numeric field of the base scenario\'s policy or body, e.g. policy.angle.attack_deg or body.leg_stiffness_N_per_m';
+    if (!segments) {
+      issues.push({ path: at('path'), expected: `${expectedPath} (names joined by dots, table entries as [i])`, found: describeFound(entry.path) });
+      return null;
+    }
+    if (segments[0] !== 'policy' && segments[0] !== 'body') {
+      issues.push({
+        path: at('path'),
+        expected: expectedPath,
+        found: `${describeFound(entry.path)} (a path into ${segments[0]}; only policy and body numbers can be searched)`,
+      });
+      return null;
+    }
+    const canonical = formatPath(segments);
+    const located = numberAtPath(scenario, segments);
+    if ('problem' in located) {
+      issues.push({ path: at('path'), expected: expectedPath, found: `${describeFound(entry.path)}: ${located.problem}` });
+      return null;
+    }
+    const previous = seen.get(canonical);
+    if (previous !== undefined) {
+      issues.push({ path: at('path'), expected: `a path not listed before (free_parameters[${previous}].path is the same)`, found: describeFound(entry.path) });
+      return null;
+    }
+    seen.set(canonical, i);
+    const { lower, upper } = entry;
+    if (!(lower < upper)) {
+      issues.push({
+        path: at('upper'),
+        expected: `a number > lower (${lower})${lower === upper ? ': the bounds are empty' : ': the bounds are inverted'}`,
+        found: describeFound(upper),
+      });
+      return null;
+    }
+    let start = entry.start;
+    if (start === undefined) {
+      start = located.value;
+      if (!(start >= lower && start <= upper)) {
+        issues.push({
+          path: at('start'),
+          expected: `a start within [${lower}, ${upper}]: the base scenario's value ${start} lies outside the bounds (give start, or widen the bounds)`,
+          found: 'missing',
+        });
+        return null;
+      }
+    } else if (!(start >= lower && start <= upper)) {
+      issues.push({ path: at('start'), expected: `a start within [${lower}, ${upper}]`, found: describeFound(start) });
+      return null;
+    }
+    return { path: canonical, lower, upper, start };
+  });
+}
+
+type ParsedTerm = z.output<typeof termSchema>;
+
+function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: InputIssue[]): ObjectiveTerm {
+  const at = (field: string) => `objective.terms[${i}].${field}`;
+  switch (term.kind) {
+    case 'survival':
+      return { ...term, strides: term.strides ?? scenario.strides };
+    case 'tracking':
+      return {
+        ...term,
+        strides: term.strides ?? scenario.strides,
+        target_apex_height_m: term.target_apex_height_m ?? scenario.start.apex_height_m,
+        target_forward_speed_m_per_s: term.target_forward_speed_m_per_s ?? scenario.start.forward_speed_m_per_s,
+      };
+    case 'basin': {
+      const { heights, speeds } = term;
+      const axis = (path: string, low: number, high: number, count: number, unit: string) => {
+        if (count === 1 && low !== high) issues.push({ path, expected: `low = high for count 1 (one value), or count >= 2 for a range (${unit})`, found: `${low} to ${high}` });
+        if (count > 1 && !(low < high)) issues.push({ path, expected: `low < high for count >= 2 (${unit})`, found: `${low} to ${high}` });
+      };
+      axis(at('heights'), heights.low_m, heights.high_m, heights.count, 'm');
+      if (term.mode === 'grid') {
+        if (!speeds) issues.push({ path: at('speeds'), expected: 'a speed axis {low_m_per_s, high_m_per_s, count} in grid mode', found: 'missing' });
+        else axis(at('speeds'), speeds.low_m_per_s, speeds.high_m_per_s, speeds.count, 'm/s');
+      } else if (speeds) {
+        issues.push({ path: at('speeds'), expected: 'no speed axis in energy mode (each speed follows from the scenario\'s energy)', found: describeFound(speeds) });
+      }
+      const cells = heights.count * (term.mode === 'grid' && speeds ? speeds.count : 1);
+      if (cells > MAX_STUDY_BASIN_CELLS) {
+        issues.push({ path: at('heights'), expected: `at most ${MAX_STUDY_BASIN_CELLS} cells (heights x speeds) per evaluation`, found: `${cells} cells` });
+      }
+      return { ...term, speeds: term.mode === 'grid' ? (speeds ?? null) : null };
+    }
+    case 'step_down': {
+      const leg = scenario.body.leg_length_m;
+      const finest = leg / 1e6;
+      if (!(term.resolution_m >= finest && term.resolution_m <= leg / 10)) {
+        issues.push({ path: at('resolution_m'), expected: `a step size from ${finest} to ${leg / 10} m (leg length / 1e6 to leg length / 10)`, found: describeFound(term.resolution_m) });
+      } else if (!(term.grid_m >= term.resolution_m && term.grid_m <= leg)) {
+        issues.push({ path: at('grid_m'), expected: `a spacing from resolution_m (${term.resolution_m} m) to the leg length (${leg} m)`, found: describeFound(term.grid_m) });
+      }
+      return term;
+    }
+  }
+}
+
+function checkConstraints(c: StudyConstraints, issues: InputIssue[]): void {
+  const angle = c.leg_angle_range_deg;
+  if (angle && !(angle.min_deg < angle.max_deg)) {
+    issues.push({ path: 'constraints.leg_angle_range_deg.max_deg', expected: `an angle > min_deg (${angle.min_deg} deg)`, found: describeFound(angle.max_deg) });
+  }
+  const stiffness = c.stiffness_range_N_per_m;
+  if (stiffness && !(stiffness.min_N_per_m < stiffness.max_N_per_m)) {
+    issues.push({
+      path: 'constraints.stiffness_range_N_per_m.max_N_per_m',
+      expected: `a stiffness > min_N_per_m (${stiffness.min_N_per_m} N/m)`,
+      found: describeFound(stiffness.max_N_per_m),
+    });
+  }
+}
+
+function checkMismatch(m: ModelMismatch, issues: InputIssue[]): ModelMismatch {
+  // every drawn factor must stay > 0: 1 − f (uniform) or 1 − 3f (normal, truncated at 3σ)
+  const limit = m.distribution === 'uniform' ? 1 : 1 / 3;
+  for (const field of ['mass_fraction', 'leg_stiffness_fraction', 'leg_length_fraction'] as const) {
+    if (!(m[field] < limit)) {
+      issues.push({
+        path: `model_mismatch.${field}`,
+        expected: `a fraction >= 0 and < ${m.distribution === 'uniform' ? '1' : '1/3'} (${m.distribution}: every drawn factor must stay > 0)`,
+        found: describeFound(m[field]),
+      });
+    }
+  }
+  return m;
+}
+
+type ParsedSearch = z.output<typeof searchSchema>;
+
+function completeSearch(s: ParsedSearch, constraints: StudyConstraints, seed: number, issues: InputIssue[]): StudySearch {
+  const info = METHODS[s.method];
+  const constrained = hasConstraints(constraints);
+  if (info.needsLocal) {
+    if (s.local_method === undefined) {
+      issues.push({ path: 'search.local_method', expected: `a local method for ${s.method}, e.g. COBYLA or BOBYQA`, found: 'missing' });
+    } else {
+      const local = METHODS[s.local_method];
+      if (local.global || local.needsLocal) {
+        issues.push({
+          path: 'search.local_method',
+          expected: `a local method (${METHOD_NAMES.filter((n) => !METHODS[n].global && !METHODS[n].needsLocal).join(', ')})`,
+          found: describeFound(s.local_method),
+        });
+      }
+    }
+  } else if (s.local_method !== undefined) {
+    issues.push({ path: 'search.local_method', expected: `no local method: only MLSL and AUGLAG take one (method is ${s.method})`, found: describeFound(s.local_method) });
+  }
+  let handling: StudySearch['constraint_handling'] = 'none';
+  if (constrained) {
+    handling = s.constraint_handling ?? (info.constraints ? 'native' : 'penalty');
+    if (handling === 'native' && !info.constraints) {
+      issues.push({
+        path: 'search.constraint_handling',
+        expected: `penalty: ${s.method} cannot take constraints natively (COBYLA, ISRES and AUGLAG can)`,
+        found: describeFound('native'),
+      });
+    }
+  }
+  if (s.penalty_weight !== undefined && handling !== 'penalty') {
+    issues.push({
+      path: 'search.penalty_weight',
+      expected: constrained ? 'no penalty weight with native constraint handling' : 'no penalty weight: the study has no constraints',
+      found: describeFound(s.penalty_weight),
+    });
+  }
+  return {
+    method: s.method,
+    local_method: s.local_method ?? null,
+    max_evaluations: s.max_evaluations,
+    max_time_s: s.max_time_s,
+    xtol_rel: s.xtol_rel,
+    restarts: s.restarts,
+    constraint_handling: handling,
+    penalty_weight: s.penalty_weight ?? DEFAULT_PENALTY_WEIGHT,
+    seed: s.seed ?? seed,
+  };
+}
+
+function startScenarioIssue(study: Study): InputIssue | null {
+  try {
+    parseScenario(scenarioValueAt(study.scenario, study.free_parameters, study.free_parameters.map((p) => p.start)));
+    return null;
+  } catch (error) {
+    if (!(error instanceof InputError)) throw error;
+    const first = error.issues[0];
+    return {
+      path: 'free_parameters',
+      expected: 'start values that give a valid scenario',
+      found: `a scenario where ${first.path || 'the scenario'}: ${first.message ?? `expected ${first.expected}, found ${first.found}`}`,
+    };
+  }
+}
+
+// zod issues → InputIssues, one per field (as the scenario validator reports them).
+function toInputIssues(
+  zodIssues: readonly z.core.$ZodIssue[],
+  root: unknown,
+  knownFields: Map<string, { known: string[]; present: string[] }>,
+): InputIssue[] {
+  const issues: InputIssue[] = [];
+  const seen = new Set<string>();
+  const add = (issue: InputIssue) => {
+    if (seen.has(issue.path)) return;
+    seen.add(issue.path);
+    issues.push(issue);
+  };
+  for (const zodIssue of zodIssues) {
+    const path = formatPath(zodIssue.path);
+    const value = valueAt(root, zodIssue.path);
+    const found = describeFound(value);
+    switch (zodIssue.code) {
+      case 'unrecognized_keys': {
+        const fieldsHere = knownFields.get(path) ?? { known: [], present: [] };
+        const candidates = fieldsHere.known.filter((name) => !fieldsHere.present.includes(name));
+        for (const key of zodIssue.keys) {
+          const suggestion = closestName(key, candidates);
+          add({
+            path: formatPath([...zodIssue.path, key]),
+            expected: fieldsHere.known.length ? `one of the fields ${fieldsHere.known.join(', ')}` : 'no such field',
+            found: `unknown field ${JSON.stringify(key)}`,
+            message: suggestion ? `unknown field (did you mean ${suggestion}?)` : 'unknown field',
+          });
+        }
+        break;
+      }
+      case 'invalid_union': {
+        const options = ((zodIssue as { options?: unknown[] }).options ?? []).map(String);
+        const suggestion = typeof value === 'string' ? closestName(value, options) : undefined;
+        add({ path, expected: `one of ${options.join(', ')}`, found: suggestion ? `${found} (did you mean ${suggestion}?)` : found });
+        break;
+      }
+      case 'invalid_value': {
+        const options = ((zodIssue as { values?: unknown[] }).values ?? []).map(String);
+        const suggestion = typeof value === 'string' ? closestName(value, options) : undefined;
+        add({ path, expected: zodIssue.message, found: suggestion ? `${found} (did you mean ${suggestion}?)` : found });
+        break;
+      }
+      default:
+        add({ path, expected: zodIssue.message, found });
+    }
+  }
+  return issues;
+}
+
+function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
+  let value = root;
+  for (const segment of path) {
+    if (typeof value !== 'object' || value === null) return undefined;
+    if (!Object.prototype.hasOwnProperty.call(value, segment)) return undefined;
+    value = (value as Record<PropertyKey, unknown>)[segment];
+  }
+  return value;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Reading study files (Node only; fs and path are loaded on demand).
+
+/** Reads and validates a study file; a scenario_file is read relative to the study file's folder. */
+export async function readStudyFile(path: string): Promise<Study> {
+  const { readFile } = await import('node:fs/promises');
+  const { dirname, resolve } = await import('node:path');
+  let text: string;
+  try {
+    text = await readFile(path, 'utf8');
+  } catch (error) {
+    const code = (error as { code?: string }).code;
+    const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : error instanceof Error ? error.message : String(error);
+    throw new InputError([{ path: '', expected: 'a readable study file', found: 'an unreadable file', message: `cannot read the file (${reason})` }], { source: path });
+  }
+  const value = parseJson(text, path);
+  const file = typeof value === 'object' && value !== null ? (value as Record<string, unknown>).scenario_file : undefined;
+  let scenarioFromFile: Scenario | undefined;
+  if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
+    // the scenario file's own problems are reported against that file
+    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
+  }
+  return parseStudy(value, { source: path, scenarioFromFile });
+}
