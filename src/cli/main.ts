@@ -11,6 +11,8 @@ import { basinCommand } from './basin.js';
 import { mergeCommand } from './merge.js';
 import { mapCommand } from './map.js';
 import { scanCommand } from './scan.js';
+import { deadbeatCommand } from './deadbeat.js';
+import { optimizeCommand } from './optimize.js';
 
 export interface OutputStream {
   write(chunk: string): unknown;
@@ -49,7 +51,7 @@ export interface Command {
 
 const HELP_OPTION: OptionSpec = { type: 'boolean', short: 'h', description: 'show this help' };
 
-export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand];
+export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand, deadbeatCommand, optimizeCommand];
 
 function defaultIO(): CliIO {
   return { stdout: process.stdout, stderr: process.stderr, env: process.env };

@@ -13,6 +13,7 @@ import * as L from '../../dist/assembly/layout.js';
 import { odexStride } from '../reference/odex-stride.mjs';
 import { benchBasin } from './basin.mjs';
 import { benchMonteCarlo } from './montecarlo.mjs';
+import { benchOptimize } from './optimize.mjs';
 
 const DEG = Math.PI / 180;
 // Human-like body of Seyfarth, Geyer, Günther, Blickhan 2002, J. Biomech. 35(5):649–655.
@@ -313,6 +314,9 @@ async function all() {
   console.log();
   console.log('== basin of attraction on the worker pool');
   await benchBasin(console.log);
+  console.log();
+  console.log('== policy search');
+  await benchOptimize(console.log);
 }
 
 all().catch((err) => {

@@ -34,7 +34,6 @@ import {
   type BasinTerm,
   type ModelMismatch,
   type MonteCarloTerm,
-  type ObjectiveTerm,
   type StepDownTerm,
   type Study,
   type TermKind,
@@ -107,9 +106,9 @@ export interface Evaluation {
   x: number[];
   /** Free parameter path → value. */
   parameters: Record<string, number>;
-  /** Minimized: −objective, plus the penalty under penalty handling; a fixed worse-than-anything value for an invalid candidate. */
+  /** Minimized: −objective, plus the penalty under penalty handling. */
   value: number;
-  /** Σ weight × score (larger is better). */
+  /** Σ weight × score (larger is better); for an invalid candidate, 1 below the worst any valid one can score. */
   objective: number;
   /** penalty_weight × Σ max(0, normalized)² under penalty handling, else 0. */
   penalty: number;
@@ -129,18 +128,36 @@ export interface Evaluation {
 const MISMATCH_DOMAIN = 0x6d69736d61746368n;
 const MASK_64 = (1n << 64n) - 1n;
 
-// SplitMix64 (Steele, Lea, Flood 2014, "Fast splittable pseudorandom number generators",
-// OOPSLA; constants as in Vigna's splitmix64.c): uniform doubles in [0, 1) with 53 random bits.
-function splitMix64(seed: number): () => number {
+// Uniform doubles in [0, 1) with 53 random bits from xoshiro128** (Blackman & Vigna 2018,
+// "Scrambled linear pseudorandom number generators", reference code xoshiro128starstar.c), its
+// 128-bit state filled by SplitMix64 from the seed (Steele, Lea, Flood 2014, OOPSLA; constants as
+// in Vigna's splitmix64.c), as the xoshiro authors recommend. Two 32-bit outputs make one double
+// (a >>> 5, b >>> 6: the 53-bit construction of Matsumoto & Nishimura's genrand_res53).
+function seededUniform(seed: number): () => number {
   let state = (BigInt(seed) ^ MISMATCH_DOMAIN) & MASK_64;
-  return () => {
+  const splitMix64 = () => {
     state = (state + 0x9e3779b97f4a7c15n) & MASK_64;
     let z = state;
     z = ((z ^ (z >> 30n)) * 0xbf58476d1ce4e5b9n) & MASK_64;
     z = ((z ^ (z >> 27n)) * 0x94d049bb133111ebn) & MASK_64;
-    z ^= z >> 31n;
-    return Number(z >> 11n) / 2 ** 53;
+    return z ^ (z >> 31n);
   };
+  const first = splitMix64();
+  const second = splitMix64();
+  const s = new Uint32Array([Number(first & 0xffffffffn), Number(first >> 32n), Number(second & 0xffffffffn), Number(second >> 32n)]);
+  const rotl = (x: number, k: number) => (x << k) | (x >>> (32 - k));
+  const next = () => {
+    const result = Math.imul(rotl(Math.imul(s[1], 5), 7), 9) >>> 0;
+    const t = s[1] << 9;
+    s[2] ^= s[0];
+    s[3] ^= s[1];
+    s[1] ^= s[2];
+    s[0] ^= s[3];
+    s[2] ^= t;
+    s[3] = rotl(s[3], 11);
+    return result;
+  };
+  return () => ((next() >>> 5) * 67108864 + (next() >>> 6)) / 9007199254740992;
 }
 
 /**
@@ -151,7 +168,7 @@ function splitMix64(seed: number): () => number {
 export function mismatchFactors(mismatch: ModelMismatch | null, seed: number, count: number): Float64Array {
   const factors = new Float64Array(count * 3).fill(1);
   if (!mismatch) return factors;
-  const uniform = splitMix64(seed);
+  const uniform = seededUniform(seed);
   let spare: number | null = null;
   const gaussian = () => {
     if (spare !== null) {
@@ -261,7 +278,9 @@ export class StudyEvaluator {
   readonly constraintHandling: 'native' | 'penalty' | 'none';
   /** Names of the constraints, in the order of Evaluation.constraints and constraintFunctions(). */
   readonly constraintNames: string[];
-  /** The value reported for an invalid candidate. */
+  /** An invalid candidate's objective: the worst weighted sum any valid candidate can score, minus 1. */
+  readonly invalidObjective: number;
+  /** An invalid candidate's value: −invalidObjective, plus the penalty of every constraint violated by 1 (penalty handling). */
   readonly invalidValue: number;
 
   private readonly groups: BatchGroup[];
@@ -280,12 +299,8 @@ export class StudyEvaluator {
     this.paths = free.map((p) => p.path);
     this.set = set;
     const terms = study.objective.terms;
-    const monteCarlo = terms.some(isMonteCarloTerm);
-    if (set === 'holdout' && monteCarlo && !study.holdout) {
-      throw new InputError([{ path: 'holdout', expected: 'an object {seed, rollouts} for held-out re-scoring', found: 'missing' }]);
-    }
-    this.seed = set === 'holdout' && study.holdout ? study.holdout.seed : study.seed;
-    this.constraintHandling = study.search.constraint_handling;
+    this.seed = set === 'holdout' ? study.holdout.seed : study.seed;
+    this.constraintHandling = hasConstraints(study.constraints) ? study.search.constraint_handling : 'none';
     this.constraintNames = constraintNames(study);
 
     // Streams and robots, fixed for every candidate.
@@ -293,7 +308,7 @@ export class StudyEvaluator {
     let streams = 0;
     this.rolloutsPerTerm = terms.map((term, i) => {
       if (!isMonteCarloTerm(term)) return null;
-      const rollouts = set === 'holdout' ? study.holdout!.rollouts : term.rollouts;
+      const rollouts = set === 'holdout' ? study.holdout.rollouts : term.rollouts;
       plans.push({ term: i, rollouts, streamStart: streams });
       streams += rollouts;
       return rollouts;
@@ -333,18 +348,20 @@ export class StudyEvaluator {
       return { strides, members, inputs, legFactors };
     });
 
+    // scores are >= 0 except tracking's, >= −2·fall_penalty
     const worst = terms.reduce((sum, term) => sum + term.weight * (term.kind === 'tracking' ? -2 * term.fall_penalty : 0), 0);
-    const penaltyAll = this.constraintHandling === 'penalty' ? study.search.penalty_weight * this.constraintNames.length : 0;
-    this.invalidValue = -worst + INVALID_MARGIN + penaltyAll;
+    const penaltyAll = this.constraintHandling === 'penalty' ? study.search.penalty_weight * this.constraintNames.length * INVALID_MARGIN ** 2 : 0;
+    this.invalidObjective = worst - INVALID_MARGIN;
+    this.invalidValue = -this.invalidObjective + penaltyAll;
   }
 
   /** The candidate scenario: the base scenario with the free parameters set to x, validated (throws an InputError). */
   scenarioAt(x: readonly number[]): Scenario {
     this.checkLength(x);
-    return parseScenario(scenarioValueAt(this.study.scenario, this.study.free_parameters, x), { source: 'candidate' });
+    return parseScenario(scenarioValueAt(this.study.scenario, this.study.free_parameters, x));
   }
 
-  /** Scores, constraints and NLopt's value at x. The same x gives the identical Evaluation. */
+  /** Scores, constraints and NLopt's value at x. The same x gives the identical Evaluation (the last one is memoized: treat it as read-only). */
   evaluate(x: readonly number[]): Evaluation {
     return this.run(x).evaluation;
   }
@@ -370,7 +387,9 @@ export class StudyEvaluator {
   /** Per Monte Carlo term, which rollouts completed every stride (1) at x: the pairs of comparePolicies. */
   survivalByRollout(x: readonly number[]): { term: number; kind: TermKind; survived: Uint8Array }[] {
     const memo = this.run(x);
-    return [...memo.survived.entries()].map(([term, survived]) => ({ term, kind: this.study.objective.terms[term].kind, survived }));
+    return [...memo.survived.entries()]
+      .sort(([a], [b]) => a - b)
+      .map(([term, survived]) => ({ term, kind: this.study.objective.terms[term].kind, survived }));
   }
 
   private checkLength(x: readonly number[]): void {
@@ -394,8 +413,8 @@ export class StudyEvaluator {
         x,
         parameters,
         value: this.invalidValue,
-        objective: 0,
-        penalty: 0,
+        objective: this.invalidObjective,
+        penalty: this.invalidValue + this.invalidObjective,
         terms: [],
         constraints: [],
         feasible: false,
@@ -702,14 +721,14 @@ export function stiffnessValues(scenario: Scenario): number[] {
 export interface Rescore {
   set: 'holdout';
   seed: number;
-  rollouts_per_term: number | null;
+  rollouts_per_term: number;
   evaluation: Evaluation;
 }
 
 /** The candidate's scores (Wilson intervals on survival) and constraint margins on the held-out seeds. */
 export function rescore(study: Study, engine: Engine, x: readonly number[]): Rescore {
   const evaluator = new StudyEvaluator(study, engine, 'holdout');
-  return { set: 'holdout', seed: evaluator.seed, rollouts_per_term: study.holdout?.rollouts ?? null, evaluation: evaluator.evaluate(x) };
+  return { set: 'holdout', seed: evaluator.seed, rollouts_per_term: study.holdout.rollouts, evaluation: evaluator.evaluate(x) };
 }
 
 export interface SurvivalComparison {
@@ -794,7 +813,7 @@ export function comparePolicies(
 function checkSameRollouts(a: Study, b: Study): void {
   const signature = (s: Study) =>
     JSON.stringify({
-      terms: s.objective.terms.filter(isMonteCarloTerm).map((t: ObjectiveTerm & MonteCarloTerm) => [t.kind, t.terrain, t.sigma_m, t.strides]),
+      terms: s.objective.terms.filter(isMonteCarloTerm).map((t) => [t.kind, t.terrain, t.sigma_m, t.strides]),
       start: s.scenario.start,
       holdout: s.holdout,
       mismatch: s.model_mismatch,

@@ -23,6 +23,39 @@
 //  - step_down: the largest permanent drop met at the first touchdown that the policy survives for
 //    `strides_after` further strides (the definition of `pronk stepdown`, first failure boundary),
 //    divided by the leg length: in [0, 1].
+//
+// Fields (SI units in the names; defaults in brackets):
+//  scenario | scenario_file    the base scenario inline, or a path relative to the study file
+//  free_parameters[]           {path, lower, upper, start?}: a dotted path to a number in the base
+//                              scenario's policy or body (table entries as [i]); lower < upper;
+//                              start within the bounds [the base scenario's value]
+//  objective.terms[]           {kind, weight [1] > 0, ...}:
+//    survival, tracking        terrain (random_walk | random_heights), sigma_m, rollouts,
+//                              strides [the scenario's]; tracking also height_scale_m,
+//                              speed_scale_m_per_s, target_apex_height_m and
+//                              target_forward_speed_m_per_s [the start apex], fall_penalty [10]
+//    basin                     mode (grid | energy), heights {low_m, high_m, count}, speeds
+//                              {low_m_per_s, high_m_per_s, count} (grid only), strides [30],
+//                              height_tolerance_m, speed_tolerance_m_per_s [1e-4]
+//    step_down                 strides_after [20], resolution_m [0.001], grid_m [0.005]
+//  constraints                 any of: max_leg_force_N (peak leg force), friction_coefficient
+//                              (peak |Fx/Fy| <= mu), max_compression_fraction (of the leg length),
+//                              leg_angle_range_deg {min_deg, max_deg} (attack at every touchdown),
+//                              max_hip_rate_deg_per_s (|retraction rate|, or the steepest slope of
+//                              an angle table), stiffness_range_N_per_m {min_N_per_m, max_N_per_m}
+//                              (every stiffness the policy commands)
+//  model_mismatch              {distribution: uniform (factor in [1 − f, 1 + f]) | normal (sd f,
+//                              truncated at 3 sd), mass_fraction, leg_stiffness_fraction,
+//                              leg_length_fraction [0]}: each Monte Carlo rollout's body factors,
+//                              drawn once per study from its seed (the same robots for every candidate)
+//  search                      method [COBYLA] (METHODS in nlopt.ts), local_method (MLSL, AUGLAG
+//                              only), max_evaluations [200], max_time_s [0 = none], xtol_rel [1e-4],
+//                              restarts [1], constraint_handling [native if the method takes
+//                              constraints (COBYLA, ISRES, AUGLAG), else penalty], penalty_weight
+//                              [100], seed (stochastic methods, restart points) [the study's seed]
+//  seed                        training terrains and model-mismatch draws
+//  holdout                     {seed (not the training seed), rollouts per Monte Carlo term}: re-scoring
+//                              on terrains and robots the search never saw
 
 import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
@@ -112,7 +145,8 @@ const basinTerm = strictObject(
     weight,
     mode: z.enum(['grid', 'energy'], { error: 'one of grid (heights x speeds), energy (heights at the scenario\'s energy)' }),
     heights: strictObject(heightAxisShape, `an object with ${fields(heightAxisShape)}`),
-    speeds: strictObject(speedAxisShape, `an object with ${fields(speedAxisShape)}`).optional(),
+    // null or absent: none (energy mode)
+    speeds: strictObject(speedAxisShape, `an object with ${fields(speedAxisShape)}`).nullable().optional(),
     strides: integerIn(1, MAX_TERM_STRIDES).default(DEFAULT_BASIN_STRIDES),
     height_tolerance_m: positive('m').default(DEFAULT_BASIN_TOLERANCE),
     speed_tolerance_m_per_s: positive('m/s').default(DEFAULT_BASIN_TOLERANCE),
@@ -178,6 +212,7 @@ const searchShape = {
   xtol_rel: z.number({ error: 'a number > 0 and < 1' }).gt(0).lt(1).default(DEFAULT_XTOL_REL),
   restarts: integerIn(1, 10_000).default(1),
   constraint_handling: z.enum(['native', 'penalty'], { error: 'one of native, penalty' }).optional(),
+  // used with constraint_handling penalty only
   penalty_weight: positive('score per squared normalized violation').optional(),
   seed: seedSchema.optional(),
 };
@@ -191,16 +226,19 @@ const studyShape = {
   description: z.string({ error: 'a string' }).optional(),
   scenario: z.unknown().optional(),
   scenario_file: z.string({ error: 'a path to a scenario file, relative to the study file' }).optional(),
+  // provenance, written by the validator with the scenario it read: 'inline' or the scenario_file
+  scenario_source: z.string({ error: 'a string' }).optional(),
   free_parameters: z
     .array(freeParameterSchema, { error: 'a non-empty array of free parameters {path, lower, upper, start?}' })
     .min(1)
     .max(MAX_FREE_PARAMETERS),
   objective: objectiveSchema,
   constraints: constraintsSchema.optional(),
-  model_mismatch: mismatchSchema.optional(),
+  // null or absent: the nominal robot
+  model_mismatch: mismatchSchema.nullable().optional(),
   search: searchSchema,
   seed: seedSchema,
-  holdout: holdoutSchema.optional(),
+  holdout: holdoutSchema,
 };
 export const studySchema = strictObject(studyShape, `a study object with ${fields(studyShape)}`);
 
@@ -280,16 +318,16 @@ export interface ModelMismatch {
 
 export interface StudySearch {
   method: MethodName;
-  /** For MLSL and AUGLAG; null otherwise. */
-  local_method: MethodName | null;
+  /** For MLSL and AUGLAG; absent otherwise. */
+  local_method?: MethodName;
   max_evaluations: number;
   /** 0: no limit. */
   max_time_s: number;
   xtol_rel: number;
   restarts: number;
-  /** 'none' when the study has no constraints. */
-  constraint_handling: 'native' | 'penalty' | 'none';
-  /** The quadratic penalty's weight (used with constraint_handling 'penalty'). */
+  /** How constraints are handled (when the study has any): given, or native when the method takes them, else penalty. */
+  constraint_handling: 'native' | 'penalty';
+  /** The quadratic penalty's weight (used with constraint_handling 'penalty' only). */
   penalty_weight: number;
   /** Seed of the stochastic methods and restart points: default the study's seed. */
   seed: number;
@@ -309,8 +347,8 @@ export interface Study {
   search: StudySearch;
   /** Training terrain streams and model-mismatch draws. */
   seed: number;
-  /** Held-out re-scoring: required when the objective has Monte Carlo terms; else null. */
-  holdout: { seed: number; rollouts: number } | null;
+  /** Held-out re-scoring: seeds (terrains and robots) the search never sees, rollouts per Monte Carlo term. */
+  holdout: { seed: number; rollouts: number };
 }
 
 export const isMonteCarloTerm = (term: ObjectiveTerm): term is MonteCarloTerm =>
@@ -318,6 +356,10 @@ export const isMonteCarloTerm = (term: ObjectiveTerm): term is MonteCarloTerm =>
 
 export const hasConstraints = (constraints: StudyConstraints): boolean =>
   Object.values(constraints).some((value) => value !== undefined);
+
+/** Whether NLopt takes the study's constraints itself (else they are a penalty, or there are none). */
+export const usesNativeConstraints = (study: Study): boolean =>
+  hasConstraints(study.constraints) && study.search.constraint_handling === 'native';
 
 // ---------------------------------------------------------------------------------------------
 // Parameter paths.
@@ -360,9 +402,8 @@ export function numberAtPath(root: unknown, segments: readonly PathSegment[]): {
       const suggestion = closestName(segment, known);
       const kind = typeof record.kind === 'string' ? ` (a ${record.kind} ${formatPath(segments.slice(i - 1, i))} policy)` : '';
       const hint = suggestion ? `; did you mean ${formatPath([...segments.slice(0, i), suggestion])}?` : '';
-      const optional = ' (an optional field must be in the base scenario to be searched)';
       return {
-        problem: `${where}${kind} has no ${segment}: its fields are ${known.join(', ') || 'none'}${hint}${suggestion ? '' : optional}`,
+        problem: `${where}${kind} has no ${segment}: its fields are ${known.join(', ') || 'none'}${hint} (an optional field must be in the base scenario to be searched)`,
       };
     }
     value = record[segment];
@@ -449,22 +490,12 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
   checkConstraints(constraints, issues);
   const mismatch = data.model_mismatch ? checkMismatch(data.model_mismatch as ModelMismatch, issues) : null;
   const search = completeSearch(data.search, constraints, data.seed, issues);
-  const monteCarlo = terms.some(isMonteCarloTerm);
-  let holdout: Study['holdout'] = null;
-  if (data.holdout) {
-    holdout = data.holdout;
-    if (holdout.seed === data.seed) {
-      issues.push({
-        path: 'holdout.seed',
-        expected: `a seed other than the training seed (${data.seed}): held-out scores must come from terrains the search never saw`,
-        found: describeFound(holdout.seed),
-      });
-    }
-  } else if (monteCarlo) {
+  const holdout = data.holdout;
+  if (holdout.seed === data.seed) {
     issues.push({
-      path: 'holdout',
-      expected: 'an object {seed, rollouts}: the objective has Monte Carlo terms (survival, tracking), re-scored on held-out seeds',
-      found: 'missing',
+      path: 'holdout.seed',
+      expected: `a seed other than the training seed (${data.seed}): held-out scores must come from terrains and robots the search never saw`,
+      found: describeFound(holdout.seed),
     });
   }
   if (issues.length) throw new InputError(issues, { source: options.source });
@@ -474,7 +505,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     ...(data.name !== undefined ? { name: data.name } : {}),
     ...(data.description !== undefined ? { description: data.description } : {}),
     scenario,
-    scenario_source: hasInline ? 'inline' : (raw.scenario_file as string),
+    scenario_source: hasInline ? (data.scenario_source ?? 'inline') : (raw.scenario_file as string),
     free_parameters: free as FreeParameter[],
     objective: { terms },
     constraints,
@@ -646,27 +677,17 @@ function completeSearch(s: ParsedSearch, constraints: StudyConstraints, seed: nu
   } else if (s.local_method !== undefined) {
     issues.push({ path: 'search.local_method', expected: `no local method: only MLSL and AUGLAG take one (method is ${s.method})`, found: describeFound(s.local_method) });
   }
-  let handling: StudySearch['constraint_handling'] = 'none';
-  if (constrained) {
-    handling = s.constraint_handling ?? (info.constraints ? 'native' : 'penalty');
-    if (handling === 'native' && !info.constraints) {
-      issues.push({
-        path: 'search.constraint_handling',
-        expected: `penalty: ${s.method} cannot take constraints natively (COBYLA, ISRES and AUGLAG can)`,
-        found: describeFound('native'),
-      });
-    }
-  }
-  if (s.penalty_weight !== undefined && handling !== 'penalty') {
+  const handling = s.constraint_handling ?? (info.constraints ? 'native' : 'penalty');
+  if (constrained && handling === 'native' && !info.constraints) {
     issues.push({
-      path: 'search.penalty_weight',
-      expected: constrained ? 'no penalty weight with native constraint handling' : 'no penalty weight: the study has no constraints',
-      found: describeFound(s.penalty_weight),
+      path: 'search.constraint_handling',
+      expected: `penalty: ${s.method} cannot take constraints natively (COBYLA, ISRES and AUGLAG can)`,
+      found: describeFound('native'),
     });
   }
   return {
     method: s.method,
-    local_method: s.local_method ?? null,
+    ...(s.local_method !== undefined ? { local_method: s.local_method } : {}),
     max_evaluations: s.max_evaluations,
     max_time_s: s.max_time_s,
     xtol_rel: s.xtol_rel,

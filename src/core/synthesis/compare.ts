@@ -21,7 +21,7 @@
 // favour.
 
 import * as L from '../../../assembly/layout.js';
-import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
+import { loadEngine, rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import {
   canonicalRobustnessOptions,
@@ -31,7 +31,7 @@ import {
   type RobustnessRow,
 } from '../analysis/robustness.js';
 import { DEFAULT_AFTER, stepTolerance, type StepToleranceOptionNames } from '../analysis/stepdown.js';
-import { STATUS_NAMES } from '../model.js';
+import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { MAX_STRIDES, parseScenario, type Scenario } from '../scenario.js';
 import { newcombeDifferenceInterval } from '../stats.js';
@@ -205,21 +205,30 @@ function canonicalOptions(scenario: Scenario, options: ComparisonOptions, names:
   check(pair(attackRange) && attackRange[0] > 0 && attackRange[1] <= 90, names.attack_range_deg, 'angles 0 < lo < hi <= 90 (deg)', attackRange);
   check(pair(rateRange), names.rate_range_deg_per_s, 'two finite rates lo < hi (deg/s)', rateRange);
   check(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES, names.after, `a positive integer below ${MAX_STRIDES}`, after);
-  check(Number.isInteger(screen) && screen >= 1 && screen <= rollouts, names.screen_rollouts, `an integer from 1 to the rollouts (${rollouts})`, screen);
-  if (issues.length) throw new InputError(issues);
-  const mc = canonicalRobustnessOptions(
-    scenario,
-    { rollouts, sigma_m: options.sigma_m ?? DEFAULT_COMPARE_SIGMA_M, seed: options.seed ?? DEFAULT_COMPARE_SEED, terrain: 'random_walk' },
-    {
-      rollouts: names.rollouts,
-      sigma_m: names.sigma_m,
-      seed: names.seed,
-      strides: 'strides',
-      terrain: 'terrain',
-      target_height_m: 'target_height_m',
-      target_speed_m_per_s: 'target_speed_m_per_s',
-    },
-  );
+  const rolloutsOk = Number.isInteger(rollouts) && rollouts >= 1;
+  if (rolloutsOk) {
+    check(Number.isInteger(screen) && screen >= 1 && screen <= rollouts, names.screen_rollouts, `an integer from 1 to the rollouts (${rollouts})`, screen);
+  }
+  let mc: CanonicalRobustnessOptions | undefined;
+  try {
+    mc = canonicalRobustnessOptions(
+      scenario,
+      { rollouts, sigma_m: options.sigma_m ?? DEFAULT_COMPARE_SIGMA_M, seed: options.seed ?? DEFAULT_COMPARE_SEED, terrain: 'random_walk' },
+      {
+        rollouts: names.rollouts,
+        sigma_m: names.sigma_m,
+        seed: names.seed,
+        strides: 'strides',
+        terrain: 'terrain',
+        target_height_m: 'target_height_m',
+        target_speed_m_per_s: 'target_speed_m_per_s',
+      },
+    );
+  } catch (error) {
+    if (!(error instanceof InputError)) throw error;
+    issues.push(...error.issues);
+  }
+  if (issues.length || !mc) throw new InputError(issues);
   return { attackRange, rateRange, after, screenRollouts: screen, mc };
 }
 
@@ -323,21 +332,22 @@ interface SearchOutcome {
   finalists: number;
 }
 
-async function gridSearch(family: Family, mc: MonteCarlo, screenN: number, fullN: number): Promise<SearchOutcome> {
+async function gridSearch(family: Family, mc: MonteCarlo, screenN: number, fullN: number, rangeName: string): Promise<SearchOutcome> {
   const screened = new Map<string, { candidate: Candidate; score: Score }>();
   const skipped = new Set<string>();
   const keyOf = (p: number[]) => p.map((x) => x.toPrecision(12)).join(',');
   const run = async (points: number[][]) => {
-    const fresh: Candidate[] = [];
+    const fresh = new Map<string, Candidate>();
     for (const params of points) {
       const key = keyOf(params);
-      if (screened.has(key) || skipped.has(key) || fresh.some((c) => c.key === key)) continue;
+      if (screened.has(key) || skipped.has(key) || fresh.has(key)) continue;
       const scenario = family.make(params);
-      if (scenario) fresh.push({ key, params, scenario });
+      if (scenario) fresh.set(key, { key, params, scenario });
       else skipped.add(key);
     }
-    const rows = await mc.rows(fresh.map((c) => c.scenario), screenN);
-    fresh.forEach((candidate, i) => screened.set(candidate.key, { candidate, score: scoreOf(rows[i]) }));
+    const list = [...fresh.values()];
+    const rows = await mc.rows(list.map((c) => c.scenario), screenN);
+    list.forEach((candidate, i) => screened.set(candidate.key, { candidate, score: scoreOf(rows[i]) }));
   };
   // ranked best first; grid order breaks exact ties (the Map keeps insertion order, sort is stable)
   const ranked = () => [...screened.values()].sort((a, b) => (better(a.score, b.score) ? -1 : better(b.score, a.score) ? 1 : 0));
@@ -354,7 +364,7 @@ async function gridSearch(family: Family, mc: MonteCarlo, screenN: number, fullN
     await run(points);
   }
   if (screened.size === 0) {
-    throw new InputError([{ path: 'attack_range_deg', expected: 'a range holding at least one valid policy', found: 'none' }]);
+    throw new InputError([{ path: rangeName, expected: 'a range holding at least one valid policy', found: 'none' }]);
   }
   const finalists = ranked().slice(0, FINALISTS).map((x) => x.candidate);
   let best = finalists[0];
@@ -434,11 +444,19 @@ export async function compareDeadbeat(
   };
 
   const mc = new MonteCarlo(o.mc, options);
-  const fixed = await gridSearch(fixedFamily, mc, o.screenRollouts, o.mc.rollouts);
-  const retraction = await gridSearch(retractionFamily, mc, o.screenRollouts, o.mc.rollouts);
+  const fixed = await gridSearch(fixedFamily, mc, o.screenRollouts, o.mc.rollouts, names.attack_range_deg);
+  const retraction = await gridSearch(retractionFamily, mc, o.screenRollouts, o.mc.rollouts, names.attack_range_deg);
 
   const deadbeatScenario = withPolicy(table.policy);
-  if (!deadbeatScenario) throw new Error('the deadbeat table does not make a valid scenario');
+  if (!deadbeatScenario) {
+    throw new InputError([
+      {
+        path: 'table',
+        expected: "a table whose attack angle at the apex can be placed from the start apex on flat ground (both measures start there)",
+        found: `attack ${round(table.policy.angle.attack_deg[0], 6)} deg at the apex`,
+      },
+    ]);
+  }
   const entries: { name: ComparedPolicyName; scenario: Scenario; description: string }[] = [
     {
       name: 'deadbeat_table',
@@ -596,6 +614,111 @@ function rangeText(range: [number, number] | null): string {
 }
 
 // ---------------------------------------------------------------------------------------------
+// The table on permanent steps across its solved range.
+
+export interface TableStepCheck {
+  /** Strides run on each step: the one that meets it, then `strides_after`. */
+  strides: number;
+  strides_after: number;
+  /** Ground heights checked: every knot in the solved range and the midpoints between neighbours. */
+  ground_heights_checked: number;
+  all_survived: boolean;
+  /** Steps that failed (at most 20 listed), lowest first. */
+  failures: { ground_height_m: number; reason: string; failed_stride: number }[];
+  /** Largest |apex − target| after the last stride over the steps that survived, m; null if none did. */
+  max_final_apex_error_m: number | null;
+  /** The ground height where it happened; null if no step survived. */
+  worst_ground_height_m: number | null;
+  /** Largest |apex − target| after the first stride (the one that met the step), m; null if none. */
+  max_first_apex_error_m: number | null;
+  note: string;
+}
+
+/**
+ * Runs the table on one permanent step at the first touchdown, at every knot of its solved range
+ * and half-way between neighbouring knots, for 1 + `after` strides from the target apex. The
+ * target after the step is the table's own (absolute height, or height above the ground met).
+ * A one-step deadbeat table returns the first apex to its target; whether later strides stay
+ * there depends on how the closed loop treats the small errors left (first_apex vs final_apex).
+ */
+export async function tableStepCheck(scenario: Scenario, table: DeadbeatTable, after: number = DEFAULT_AFTER): Promise<TableStepCheck> {
+  if (!(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES)) {
+    throw new InputError([{ path: 'after', expected: `a positive integer below ${MAX_STRIDES}`, found: describeFound(after) }]);
+  }
+  const strides = 1 + after;
+  const range = table.solved_range_m;
+  const knots = range ? table.knots.map((k) => k.ground_height_m).filter((h) => h >= range[0] && h <= range[1]).sort((a, b) => a - b) : [];
+  const heights: number[] = [];
+  knots.forEach((h, i) => {
+    heights.push(h);
+    if (i + 1 < knots.length) heights.push(0.5 * (h + knots[i + 1]));
+  });
+  const note =
+    'one permanent step at the first touchdown from the target apex; the apex error is about the table\'s target ' +
+    `(${table.target.height_reference === 'absolute' ? 'the same absolute apex height' : 'the same height above the ground met'})`;
+  if (heights.length === 0) {
+    return {
+      strides,
+      strides_after: after,
+      ground_heights_checked: 0,
+      all_survived: false,
+      failures: [],
+      max_final_apex_error_m: null,
+      worst_ground_height_m: null,
+      max_first_apex_error_m: null,
+      note,
+    };
+  }
+  const engine = await loadEngine();
+  // validated on the lowest step checked, where the leg is always placeable if anywhere
+  const scenarioOf = parseScenario({ ...scenario, policy: table.policy, terrain: { kind: 'steps', ground_heights_m: [heights[0]] }, strides: 1 });
+  const base = buildModel(scenarioOf);
+  const models = heights.map((h) => {
+    const fields = base.fields.slice();
+    fields[L.M_TERRAIN_KIND] = L.TERRAIN_STEPS;
+    fields[L.M_STEPS_N] = 1;
+    return { ...base, fields, groundHeights: Float64Array.of(h) };
+  });
+  const { apex_height_m: y, forward_speed_m_per_s: v } = scenario.start;
+  const inputs = new Float64Array(heights.length * L.I_SIZE); // (heights x I_SIZE)
+  heights.forEach((_, i) => inputs.set(rolloutInput(y, v, 0, i), i * L.I_SIZE));
+  const batch = engine.runBatch({ model: models, inputs, strides, records: true });
+  const failures: TableStepCheck['failures'] = [];
+  let worst: number | null = null;
+  let worstAt: number | null = null;
+  let first: number | null = null;
+  heights.forEach((h, i) => {
+    const s = (field: number) => batch.summaries[i * L.S_SIZE + field];
+    const target = table.target.height_reference === 'absolute' ? table.target.apex_height_m : table.target.apex_height_m + h;
+    const completed = s(L.S_STRIDES_COMPLETED);
+    if (completed >= 1) {
+      const e1 = Math.abs(batch.records![i * strides * L.R_SIZE + L.R_NEXT_APEX_HEIGHT] - target);
+      first = Math.max(first ?? 0, e1);
+    }
+    if (s(L.S_STATUS) !== L.STATUS_OK) {
+      failures.push({ ground_height_m: h, reason: STATUS_NAMES[s(L.S_STATUS)] ?? `status_${s(L.S_STATUS)}`, failed_stride: completed });
+      return;
+    }
+    const e = Math.abs(s(L.S_FINAL_HEIGHT) - target);
+    if (worst === null || e > worst) {
+      worst = e;
+      worstAt = h;
+    }
+  });
+  return {
+    strides,
+    strides_after: after,
+    ground_heights_checked: heights.length,
+    all_survived: failures.length === 0,
+    failures: failures.slice(0, 20),
+    max_final_apex_error_m: worst,
+    worst_ground_height_m: worstAt,
+    max_first_apex_error_m: first,
+    note,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
 // The machine's loads along the table, and the result file.
 
 export interface DeadbeatLoads {
@@ -634,6 +757,8 @@ export const RESULT_FORMAT_VERSION = 1;
 /** The options a deadbeat result was made with, as recorded in its provenance. */
 export interface DeadbeatRunOptions {
   synthesis: DeadbeatOptions;
+  /** Strides after a step in the step check (and the comparison's step tolerance). */
+  after: number;
   comparison: ComparisonOptions | null;
 }
 
@@ -646,13 +771,15 @@ export interface DeadbeatResultFile {
   scenario_sha256: string;
   /** When the result was made (ISO 8601, UTC). */
   created: string;
-  options: { synthesis: Record<string, unknown>; comparison: Record<string, unknown> | null };
+  options: { synthesis: Record<string, unknown>; after: number; comparison: Record<string, unknown> | null };
   /** The scenario the table was made for, as validated (defaults filled, its own policy). */
   scenario: Scenario;
   /** The table as a policy block: `{ ...scenario, policy }` runs it (`pronk simulate`). */
   policy: DeadbeatTable['policy'];
   table: Omit<DeadbeatTable, 'policy'>;
   loads: DeadbeatLoads | null;
+  /** The table on permanent steps across its solved range (tableStepCheck). */
+  step_check: TableStepCheck | null;
   comparison: DeadbeatComparison | null;
   caution: string;
 }
@@ -661,7 +788,7 @@ export interface DeadbeatResultFile {
 export async function deadbeatResult(
   scenario: Scenario,
   table: DeadbeatTable,
-  comparison: DeadbeatComparison | null,
+  analyses: { stepCheck: TableStepCheck | null; comparison: DeadbeatComparison | null },
   options: DeadbeatRunOptions,
   created: Date = new Date(),
 ): Promise<DeadbeatResultFile> {
@@ -673,12 +800,17 @@ export async function deadbeatResult(
     pronk_version: PRONK_VERSION,
     scenario_sha256: await contentHash(scenario),
     created: created.toISOString(),
-    options: { synthesis: plainOptions(options.synthesis), comparison: options.comparison ? plainOptions(options.comparison) : null },
+    options: {
+      synthesis: plainOptions(options.synthesis),
+      after: options.after,
+      comparison: options.comparison ? plainOptions(options.comparison) : null,
+    },
     scenario,
     policy,
     table: details,
     loads: deadbeatLoads(scenario, table),
-    comparison,
+    step_check: analyses.stepCheck,
+    comparison: analyses.comparison,
     caution: SAFETY_CAUTION,
   };
 }
