@@ -17,6 +17,10 @@
 //    ground just met, at the same speed v*; that takes m g h of energy (a step down
 //    gives it, a step up takes it), supplied by switching to a different extension
 //    stiffness at maximum compression (the work is ½(k_ext − k_comp) δ²).
+// A table is exact for one stride from the target apex. Stride after stride on a permanent
+// step, an apex error looks to the angle-only table like a ground error, and on the human-like
+// reference body it grows by about 1.3× per stride; the angle-and-stiffness table holds the
+// apex (pronk deadbeat's step check runs this test for every table it makes).
 
 import * as L from '../../../assembly/layout.js';
 import { InputError } from '../errors.js';
@@ -295,6 +299,7 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
   const fullWindow: [number, number] = [aLo * DEG, aHi * DEG];
   const first = Array.from({ length: knots }, (_, i) => (i === knots - 1 ? hHi : hLo + ((hHi - hLo) * i) / (knots - 1)));
   let solutions = solve(first, first.map(() => null), first.map(() => fullWindow));
+
   // 5. The knots: final strides for residuals and the machine's loads along the table.
   const knotsOf = (sols: Solution[]) => {
     const finals = strides(sols.map((x) => variant(x.solved ? x.attack : 60 * DEG, x.h, x.solved ? x.extension : keBase)));
