@@ -6,6 +6,7 @@
 import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
+import { validateWith, valueAt } from './validation.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
@@ -291,85 +292,9 @@ function showAbove(bound: number, found: number): string {
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
 export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
-  const knownFields = new Map<string, { known: string[]; present: string[] }>();
-  const result = scenarioSchema.safeParse(value, {
-    error: (issue) => {
-      // Remember, per object, which fields it allows, to suggest one for each unknown key.
-      if (issue.code === 'unrecognized_keys') {
-        const shape = (issue.inst as unknown as { shape?: object } | undefined)?.shape;
-        const input = issue.input;
-        knownFields.set(formatPath(issue.path ?? []), {
-          known: shape ? Object.keys(shape) : [],
-          present: typeof input === 'object' && input !== null ? Object.keys(input) : [],
-        });
-      }
-      return undefined;
-    },
-  });
+  const result = validateWith(scenarioSchema, value);
   if (result.success) return result.data;
-  throw new InputError(toInputIssues(result.error.issues, value, knownFields), options);
-}
-
-function toInputIssues(
-  zodIssues: readonly z.core.$ZodIssue[],
-  root: unknown,
-  knownFields: Map<string, { known: string[]; present: string[] }>,
-): InputIssue[] {
-  const issues: InputIssue[] = [];
-  const seen = new Set<string>();
-  // one message per field: the first problem found there
-  const add = (issue: InputIssue) => {
-    if (seen.has(issue.path)) return;
-    seen.add(issue.path);
-    issues.push(issue);
-  };
-  for (const zodIssue of zodIssues) {
-    const path = formatPath(zodIssue.path);
-    const found = describeFound(valueAt(root, zodIssue.path));
-    switch (zodIssue.code) {
-      case 'unrecognized_keys': {
-        const fields = knownFields.get(path) ?? { known: [], present: [] };
-        const candidates = fields.known.filter((name) => !fields.present.includes(name));
-        for (const key of zodIssue.keys) {
-          const suggestion = closestName(key, candidates);
-          add({
-            path: formatPath([...zodIssue.path, key]),
-            expected: fields.known.length ? `one of the fields ${fields.known.join(', ')}` : 'no such field',
-            found: `unknown field ${JSON.stringify(key)}`,
-            message: suggestion ? `unknown field (did you mean ${suggestion}?)` : 'unknown field',
-          });
-        }
-        break;
-      }
-      case 'invalid_union': {
-        // a discriminated union's tag: the path already ends in the tag's name
-        const options = ((zodIssue as { options?: unknown[] }).options ?? []).map(String);
-        const tag = valueAt(root, zodIssue.path);
-        const suggestion = typeof tag === 'string' ? closestName(tag, options) : undefined;
-        add({
-          path,
-          expected: `one of ${options.join(', ')}`,
-          found: suggestion ? `${found} (did you mean ${suggestion}?)` : found,
-        });
-        break;
-      }
-      default: {
-        const params = (zodIssue as { params?: { found?: string } }).params;
-        add({ path, expected: zodIssue.message, found: params?.found ?? found });
-      }
-    }
-  }
-  return issues;
-}
-
-function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
-  let value = root;
-  for (const segment of path) {
-    if (typeof value !== 'object' || value === null) return undefined;
-    if (!Object.prototype.hasOwnProperty.call(value, segment)) return undefined;
-    value = (value as Record<PropertyKey, unknown>)[segment];
-  }
-  return value;
+  throw new InputError(result.issues, options);
 }
 
 // The built-in demo scenario (scenarios/demo.json), validated like any other.

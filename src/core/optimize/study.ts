@@ -60,6 +60,7 @@
 import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
+import { validateWith } from '../validation.js';
 import { parseJson, parseScenario, readScenarioFile, type Scenario } from '../scenario.js';
 
 export const MAX_FREE_PARAMETERS = 64;
@@ -439,21 +440,8 @@ export interface ParseStudyOptions {
 
 /** Checks any JSON value against the study schema; throws an InputError naming every problem. */
 export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Study {
-  const knownFields = new Map<string, { known: string[]; present: string[] }>();
-  const parsed = studySchema.safeParse(value, {
-    error: (issue) => {
-      if (issue.code === 'unrecognized_keys') {
-        const shape = (issue.inst as unknown as { shape?: object } | undefined)?.shape;
-        const input = issue.input;
-        knownFields.set(formatPath(issue.path ?? []), {
-          known: shape ? Object.keys(shape) : [],
-          present: typeof input === 'object' && input !== null ? Object.keys(input) : [],
-        });
-      }
-      return undefined;
-    },
-  });
-  const issues: InputIssue[] = parsed.success ? [] : toInputIssues(parsed.error.issues, value, knownFields);
+  const parsed = validateWith(studySchema, value);
+  const issues: InputIssue[] = [...parsed.issues];
 
   // The base scenario, whatever else failed (its own problems are reported under `scenario.`).
   const raw = typeof value === 'object' && value !== null ? (value as Record<string, unknown>) : {};
@@ -711,67 +699,6 @@ function startScenarioIssue(study: Study): InputIssue | null {
       found: `a scenario where ${first.path || 'the scenario'}: ${first.message ?? `expected ${first.expected}, found ${first.found}`}`,
     };
   }
-}
-
-// zod issues → InputIssues, one per field (as the scenario validator reports them).
-function toInputIssues(
-  zodIssues: readonly z.core.$ZodIssue[],
-  root: unknown,
-  knownFields: Map<string, { known: string[]; present: string[] }>,
-): InputIssue[] {
-  const issues: InputIssue[] = [];
-  const seen = new Set<string>();
-  const add = (issue: InputIssue) => {
-    if (seen.has(issue.path)) return;
-    seen.add(issue.path);
-    issues.push(issue);
-  };
-  for (const zodIssue of zodIssues) {
-    const path = formatPath(zodIssue.path);
-    const value = valueAt(root, zodIssue.path);
-    const found = describeFound(value);
-    switch (zodIssue.code) {
-      case 'unrecognized_keys': {
-        const fieldsHere = knownFields.get(path) ?? { known: [], present: [] };
-        const candidates = fieldsHere.known.filter((name) => !fieldsHere.present.includes(name));
-        for (const key of zodIssue.keys) {
-          const suggestion = closestName(key, candidates);
-          add({
-            path: formatPath([...zodIssue.path, key]),
-            expected: fieldsHere.known.length ? `one of the fields ${fieldsHere.known.join(', ')}` : 'no such field',
-            found: `unknown field ${JSON.stringify(key)}`,
-            message: suggestion ? `unknown field (did you mean ${suggestion}?)` : 'unknown field',
-          });
-        }
-        break;
-      }
-      case 'invalid_union': {
-        const options = ((zodIssue as { options?: unknown[] }).options ?? []).map(String);
-        const suggestion = typeof value === 'string' ? closestName(value, options) : undefined;
-        add({ path, expected: `one of ${options.join(', ')}`, found: suggestion ? `${found} (did you mean ${suggestion}?)` : found });
-        break;
-      }
-      case 'invalid_value': {
-        const options = ((zodIssue as { values?: unknown[] }).values ?? []).map(String);
-        const suggestion = typeof value === 'string' ? closestName(value, options) : undefined;
-        add({ path, expected: zodIssue.message, found: suggestion ? `${found} (did you mean ${suggestion}?)` : found });
-        break;
-      }
-      default:
-        add({ path, expected: zodIssue.message, found });
-    }
-  }
-  return issues;
-}
-
-function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
-  let value = root;
-  for (const segment of path) {
-    if (typeof value !== 'object' || value === null) return undefined;
-    if (!Object.prototype.hasOwnProperty.call(value, segment)) return undefined;
-    value = (value as Record<PropertyKey, unknown>)[segment];
-  }
-  return value;
 }
 
 // ---------------------------------------------------------------------------------------------
