@@ -187,7 +187,11 @@ describe('the result file', () => {
     const result = await deadbeatResult(body, table, { stepCheck: null, comparison: null }, { synthesis: { groundRange_m: [-0.2, 0.04], knots: 6, mode }, after: 20, comparison: null }, created);
     const file = JSON.parse(JSON.stringify(result));
     expect(file).toMatchObject({ format: 'pronk-result', format_version: 1, kind: 'deadbeat', pronk_version: PRONK_VERSION, created: '2026-01-02T03:04:05.000Z' });
-    expect(file.scenario_sha256).toBe(await contentHash(body));
+    // the file's scenario runs the table; its hash is of that scenario, and the base policy is kept
+    expect(file.scenario.policy).toEqual(file.policy);
+    expect(file.base_policy).toEqual(JSON.parse(JSON.stringify(body.policy)));
+    expect(file.scenario_sha256).toBe(await contentHash(file.scenario));
+    expect(file.provenance).toMatchObject({ pronk_version: PRONK_VERSION, scenario_sha256: file.scenario_sha256, date: '2026-01-02T03:04:05.000Z' });
     expect(file.scenario_sha256).toMatch(/^[0-9a-f]{64}$/);
     expect(file.caution).toBe(SAFETY_CAUTION);
     expect(file.table.knots.length).toBe(table.knots.length);

@@ -13,6 +13,7 @@ import { mapCommand } from './map.js';
 import { scanCommand } from './scan.js';
 import { deadbeatCommand } from './deadbeat.js';
 import { optimizeCommand } from './optimize.js';
+import { exportCommand } from './export.js';
 
 export interface OutputStream {
   write(chunk: string): unknown;
@@ -51,7 +52,7 @@ export interface Command {
 
 const HELP_OPTION: OptionSpec = { type: 'boolean', short: 'h', description: 'show this help' };
 
-export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand, deadbeatCommand, optimizeCommand];
+export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand, deadbeatCommand, optimizeCommand, exportCommand];
 
 function defaultIO(): CliIO {
   return { stdout: process.stdout, stderr: process.stderr, env: process.env };

@@ -772,8 +772,11 @@ export interface DeadbeatResultFile {
   /** When the result was made (ISO 8601, UTC). */
   created: string;
   options: { synthesis: Record<string, unknown>; after: number; comparison: Record<string, unknown> | null };
-  /** The scenario the table was made for, as validated (defaults filled, its own policy). */
+  provenance: { pronk_version: string; scenario_sha256: string; date: string; options: DeadbeatResultFile['options'] };
+  /** The scenario the table was made for, as validated (defaults filled), running the table. */
   scenario: Scenario;
+  /** The scenario's own policy before the table replaced it. */
+  base_policy: Scenario['policy'];
   /** The table as a policy block: `{ ...scenario, policy }` runs it (`pronk simulate`). */
   policy: DeadbeatTable['policy'];
   table: Omit<DeadbeatTable, 'policy'>;
@@ -793,19 +796,31 @@ export async function deadbeatResult(
   created: Date = new Date(),
 ): Promise<DeadbeatResultFile> {
   const { policy, ...details } = table;
+  // the scenario the table was made for, now running the table (as an optimization result's does)
+  const running = { ...scenario, policy } as unknown as Scenario;
+  const scenarioSha256 = await contentHash(running);
+  const runOptions = {
+    synthesis: plainOptions(options.synthesis),
+    after: options.after,
+    comparison: options.comparison ? plainOptions(options.comparison) : null,
+  };
   return {
     format: RESULT_FORMAT,
     format_version: RESULT_FORMAT_VERSION,
     kind: 'deadbeat',
     pronk_version: PRONK_VERSION,
-    scenario_sha256: await contentHash(scenario),
+    scenario_sha256: scenarioSha256,
     created: created.toISOString(),
-    options: {
-      synthesis: plainOptions(options.synthesis),
-      after: options.after,
-      comparison: options.comparison ? plainOptions(options.comparison) : null,
+    options: runOptions,
+    // the same provenance block as an optimization result (pronk export reads it)
+    provenance: {
+      pronk_version: PRONK_VERSION,
+      scenario_sha256: scenarioSha256,
+      date: created.toISOString(),
+      options: runOptions,
     },
-    scenario,
+    scenario: running,
+    base_policy: scenario.policy,
     policy,
     table: details,
     loads: deadbeatLoads(scenario, table),
