@@ -52,7 +52,19 @@ export interface Command {
 
 const HELP_OPTION: OptionSpec = { type: 'boolean', short: 'h', description: 'show this help' };
 
-export const COMMANDS: readonly Command[] = [simulateCommand, basinCommand, mergeCommand, stepdownCommand, robustnessCommand, mapCommand, scanCommand, deadbeatCommand, optimizeCommand, exportCommand];
+// In the order of the work: run a policy, analyse it, search for a better one, export it; then merging.
+export const COMMANDS: readonly Command[] = [
+  simulateCommand,
+  mapCommand,
+  scanCommand,
+  basinCommand,
+  stepdownCommand,
+  robustnessCommand,
+  optimizeCommand,
+  deadbeatCommand,
+  exportCommand,
+  mergeCommand,
+];
 
 function defaultIO(): CliIO {
   return { stdout: process.stdout, stderr: process.stderr, env: process.env };
