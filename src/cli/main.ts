@@ -4,6 +4,8 @@
 
 import { parseArgs } from 'node:util';
 import { InputError, UsageError, closestName } from '../core/errors.js';
+import { SAFETY_CAUTION } from '../core/safety.js';
+import { wrap } from './format.js';
 import { simulateCommand } from './simulate.js';
 import { stepdownCommand } from './stepdown.js';
 import { robustnessCommand } from './robustness.js';
@@ -210,6 +212,8 @@ function programHelp(): string {
     'Exit codes: 0 the command ran (a robot that falls is a result, not an error);',
     '            2 bad input or usage (the message names the field or option);',
     '            1 internal error (set PRONK_DEBUG=1 for a stack trace).',
+    '',
+    wrap(`Caution: ${SAFETY_CAUTION}`, 100, '', '  '),
     '',
   ];
   return lines.join('\n');
