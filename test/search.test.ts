@@ -124,3 +124,21 @@ describe('pronk optimize (built CLI)', () => {
     expect(pronk(['optimize', bad, '--workers', '0']).stderr).toMatch(/--workers/);
   });
 });
+
+describe('pronk optimize --plot', () => {
+  it('draws the convergence of every restart as an SVG, and refuses a bad file name', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'pronk-optimize-plot-'));
+    const file = join(dir, 'study.json');
+    writeFileSync(file, JSON.stringify(JSON.parse(JSON.stringify(study({ method: 'COBYLA', max_evaluations: 8, restarts: 2 })))));
+    const svg = join(dir, 'convergence.svg');
+    const run = spawnSync(process.execPath, ['bin/pronk.js', 'optimize', file, '--workers', '1', '--plot', svg], { encoding: 'utf8', timeout: 120_000 });
+    expect(run.status).toBe(0);
+    const text = readFileSync(svg, 'utf8');
+    expect(text).toMatch(/^<svg/);
+    expect(text).toMatch(/restart 0/);
+    expect(text).toMatch(/restart 1/);
+    const bad = spawnSync(process.execPath, ['bin/pronk.js', 'optimize', file, '--plot', join(dir, 'x.png')], { encoding: 'utf8' });
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/--plot/);
+  });
+});

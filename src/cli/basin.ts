@@ -7,6 +7,7 @@ import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../c
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, writePartial, writeText } from './shard-output.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -16,7 +17,7 @@ const MAX_WORKERS = 256;
 export const basinCommand: Command = {
   name: 'basin',
   summary: 'basin of attraction on flat ground over a grid of start apex heights and speeds',
-  usage: 'basin [FILE] [--heights LO:HI:N] [--speeds LO:HI:N | --energy] [--strides N] [--tolerance M] [--workers N] [--shard I/N --out FILE] [--json]',
+  usage: 'basin [FILE] [--heights LO:HI:N] [--speeds LO:HI:N | --energy] [--strides N] [--tolerance M] [--workers N] [--shard I/N --out FILE] [--plot FILE.svg] [--json]',
   details: [
     'Each cell of the grid starts at one apex (height, forward speed) and runs N strides on flat ground',
     "(the scenario's terrain is not used). A cell is converged when it completes them all and its",
@@ -41,6 +42,7 @@ export const basinCommand: Command = {
     },
     workers: { type: 'string', valueName: 'N', description: 'worker threads (default: the available cores)' },
     ...SHARD_OPTIONS,
+    plot: PLOT_OPTION,
   },
   maxPositionals: 1,
   run: runBasin,
@@ -69,6 +71,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const workers = parsePositiveInteger(values.workers, '--workers', MAX_WORKERS);
   const shard = shardOption(values);
   const out = outOption(values);
+  const plot = await plotOption(values.plot, { shard: shard !== undefined, out });
 
   const file = positionals[0];
   let scenario: Scenario;
@@ -101,6 +104,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   }
   const result = await core.finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
   await writeText(io, out, json ? basinJson(result) : renderBasin(scenario, result));
+  if (plot !== undefined) await writePlot(io.stderr, 'basin', plot, result);
   return 0;
 }
 

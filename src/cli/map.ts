@@ -6,6 +6,7 @@ import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map
 import { InputError, describeFound } from '../core/errors.js';
 import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { describeAngle, describeStiffness } from './simulate.js';
@@ -19,7 +20,7 @@ export const MAX_STAIRCASE_ITERATIONS = 100_000;
 export const mapCommand: Command = {
   name: 'map',
   summary: "apex return map at the scenario's energy: fixed points, their stability and eigenvalues, the staircase",
-  usage: 'map [FILE] [--samples N] [--iterations N] [--approx] [--json]',
+  usage: 'map [FILE] [--samples N] [--iterations N] [--approx] [--plot FILE.svg] [--json]',
   details: [
     'Apex height y -> next apex height on flat ground at height 0 (the scenario\'s terrain is not used),',
     "with the forward speed at every apex from the scenario's start energy. The domain runs from the",
@@ -36,6 +37,7 @@ export const mapCommand: Command = {
       type: 'boolean',
       description: 'add the closed-form approximate map (Geyer, Seyfarth, Blickhan 2005) beside the exact one',
     },
+    plot: PLOT_OPTION,
   },
   maxPositionals: 1,
   run: runMap,
@@ -45,6 +47,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const json = values.json === true;
   const samples = parseIntegerOption(values.samples, '--samples', 2, MAX_MAP_SAMPLES);
   const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
+  const plot = await plotOption(values.plot);
   const file = positionals[0];
   let scenario: Scenario;
   if (file === undefined) {
@@ -67,6 +70,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
     throw error;
   }
   io.stdout.write(json ? `${JSON.stringify(result, null, 2)}\n` : renderMap(scenario, result));
+  if (plot !== undefined) await writePlot(io.stderr, 'map', plot, result);
   return 0;
 }
 

@@ -6,6 +6,7 @@ import type { Scenario } from '../core/scenario.js';
 import type { PartialResult } from '../core/shard.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { outOption, writeText } from './shard-output.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 
 // Each mergeable command's two views, the same functions the command itself prints with; loaded
 // on demand so that merging one command's results never loads the others'.
@@ -31,7 +32,7 @@ const VIEWS: Record<string, () => Promise<View>> = {
 export const mergeCommand: Command = {
   name: 'merge',
   summary: 'merge the partial results of a sharded run (--shard I/N) into the one-machine result',
-  usage: 'merge FILES... [--json] [--out FILE]',
+  usage: 'merge FILES... [--json] [--out FILE] [--plot FILE.svg]',
   details: [
     'Each FILE is a partial result written by a command run with --shard I/N --out FILE. All N shards',
     'of one run must be given (in any order), each once, from the same command, scenario, options and',
@@ -41,6 +42,7 @@ export const mergeCommand: Command = {
   options: {
     json: { type: 'boolean', description: 'print the merged result as JSON on stdout (and nothing else there)' },
     out: { type: 'string', valueName: 'FILE', description: 'write the merged output to FILE instead of stdout' },
+    plot: PLOT_OPTION,
   },
   maxPositionals: Number.MAX_SAFE_INTEGER,
   run: runMerge,
@@ -51,6 +53,7 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
     throw new UsageError(`pronk merge: no FILES given (usage: pronk ${mergeCommand.usage})`);
   }
   const out = outOption(values);
+  const plot = await plotOption(values.plot, { out });
   const parts: { source: string; partial: PartialResult }[] = [];
   for (const file of positionals) parts.push({ source: file, partial: (await readPartialFile(file)) as PartialResult });
   const { mergePartials } = await import('../core/merge.js');
@@ -60,6 +63,7 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const view = await load();
   const text = values.json === true ? view.json(merged.result) : view.text(merged.scenario, merged.result);
   await writeText(io, out, text);
+  if (plot !== undefined) await writePlot(io.stderr, merged.command, plot, merged.result, `pronk merge (${merged.command})`);
   return 0;
 }
 

@@ -6,6 +6,7 @@ import { InputError, describeFound } from '../core/errors.js';
 import type { Evaluation } from '../core/optimize/objectives.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -15,7 +16,7 @@ const SOURCE = 'pronk optimize';
 export const optimizeCommand: Command = {
   name: 'optimize',
   summary: "NLopt search over a study's free policy parameters, re-scored on held-out seeds; writes a result file",
-  usage: 'optimize STUDY [--json] [--out RESULT] [--workers N]',
+  usage: 'optimize STUDY [--json] [--out RESULT] [--workers N] [--plot FILE.svg]',
   details:
     'The study names a base scenario, the free parameters with their bounds, the objective terms, the machine\'s ' +
     'limits, the NLopt method and budget, the training seed and the held-out seed. Each restart runs in a worker ' +
@@ -26,6 +27,7 @@ export const optimizeCommand: Command = {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
     out: { type: 'string', valueName: 'RESULT', description: 'also write the result file (JSON) to RESULT, for pronk export' },
     workers: { type: 'string', valueName: 'N', description: 'worker threads for restarts (default: all cores); never changes the result' },
+    plot: { ...PLOT_OPTION, description: "also draw the search's convergence (best objective per restart) as an SVG file of 1280 x 800 px" },
   },
   maxPositionals: 1,
   run: runOptimize,
@@ -42,6 +44,7 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   if (out !== undefined && out.trim() === '') {
     throw new InputError([{ path: '--out', expected: 'a file path', found: '""' }], { source: SOURCE });
   }
+  const plot = await plotOption(values.plot, { out });
   const study = await readStudyFile(file);
   const { optimizeStudy } = await import('../core/optimize/search.js');
   const controller = new AbortController();
@@ -71,6 +74,7 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
     if (!json) io.stderr.write(`pronk optimize: wrote the result file ${out}\n`);
   }
   io.stdout.write(json ? text : renderOptimization(study, result));
+  if (plot !== undefined) await writePlot(io.stderr, 'optimize', plot, result);
   return 0;
 }
 

@@ -14,6 +14,7 @@ import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -35,7 +36,7 @@ const FLAG_NAMES: RobustnessOptionNames = {
 export const robustnessCommand: Command = {
   name: 'robustness',
   summary: 'Monte Carlo survival on seeded random terrain: survival with its Wilson 95 % interval, failures, apex RMS',
-  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--workers N] [--shard I/N] [--json]',
+  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--workers N] [--shard I/N] [--plot FILE.svg] [--json]',
   details:
     "Runs R rollouts of the scenario's strides from its start apex on random terrain that replaces the scenario's own: " +
     'rollout r runs on terrain stream r of the seed, so the same seed gives the same terrains to every policy compared ' +
@@ -68,6 +69,7 @@ export const robustnessCommand: Command = {
     },
     workers: { type: 'string', valueName: 'N', description: 'worker threads (default: all cores); never changes the result' },
     ...SHARD_OPTIONS,
+    plot: PLOT_OPTION,
   },
   maxPositionals: 1,
   run: runRobustness,
@@ -79,6 +81,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
   const spec = shardOption(values);
   const out = outOption(values);
+  const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
   const file = positionals[0];
   let scenario: Scenario;
   if (file === undefined) {
@@ -118,6 +121,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const result = await finishRobustness(scenario, canonical, rows);
   const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
   await writeText(io, out, text);
+  if (plot !== undefined) await writePlot(io.stderr, 'robustness', plot, result);
   return 0;
 }
 

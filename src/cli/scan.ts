@@ -10,6 +10,7 @@ import { fields, fixed, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption } from './map.js';
 import { SHARD_OPTIONS, outOption, shardOption, writePartial, writeText } from './shard-output.js';
+import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -20,7 +21,7 @@ const TEXT_WIDTH = 96;
 export const scanCommand: Command = {
   name: 'scan',
   summary: 'stability-region map: fixed points of the return map over a grid of two scenario parameters',
-  usage: 'scan [FILE] --x PATH:LO:HI:N --y PATH:LO:HI:N [--samples N] [--workers N] [--shard I/N --out FILE] [--json]',
+  usage: 'scan [FILE] --x PATH:LO:HI:N --y PATH:LO:HI:N [--samples N] [--workers N] [--shard I/N --out FILE] [--plot FILE.svg] [--json]',
   details: [
     'PATH is a dotted path to a numeric field of the scenario, e.g. policy.angle.attack_deg,',
     'body.leg_stiffness_N_per_m, policy.angle.rate_deg_per_s; N values from LO to HI (inclusive; N = 1',
@@ -37,6 +38,7 @@ export const scanCommand: Command = {
     samples: { type: 'string', valueName: 'N', description: "samples of each cell's map (default 201)" },
     workers: { type: 'string', valueName: 'N', description: 'worker threads (default: the available cores)' },
     ...SHARD_OPTIONS,
+    plot: PLOT_OPTION,
   },
   maxPositionals: 1,
   run: runScan,
@@ -53,6 +55,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   const workers = parseIntegerOption(values.workers, '--workers', 1, MAX_WORKERS, SOURCE);
   const shard = withSource(() => shardOption(values));
   const out = withSource(() => outOption(values));
+  const plot = await withSourceAsync(() => plotOption(values.plot, { shard: shard !== undefined, out }));
   const core = await import('../core/analysis/scan.js');
   const options: ScanOptions = withSource(() =>
     core.normalizeScanOptions({ x: values.x, y: values.y, ...(samples === undefined ? {} : { samples }) }),
@@ -77,6 +80,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   }
   const result = await withSourceAsync(() => core.scan(scenario, options, run));
   await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result));
+  if (plot !== undefined) await withSourceAsync(() => writePlot(io.stderr, 'scan', plot, result));
   return 0;
 }
 

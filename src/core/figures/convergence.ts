@@ -1,0 +1,67 @@
+// Figure 6: optimizer convergence — the best objective so far against the evaluation count, one
+// line per restart (the result file's `restarts[].trace`, src/core/optimize/search.ts). Lower is
+// better (the objective is minimized). A logarithmic scale when every value is > 0 and they span
+// more than two decades (penalties for infeasible starts otherwise flatten the rest).
+//
+// Series ids: restart-<restart> (data [evaluation, best]); the best restart drawn thicker.
+
+import type { LineSeriesOption } from 'echarts';
+import { InputError, describeFound } from '../errors.js';
+import type { TracePoint } from '../optimize/nlopt.js';
+import { PALETTE, baseOption, legend, num, seriesColor, seriesDash, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+
+/** What the figure needs of a restart (RestartSummary has it). */
+export interface ConvergenceRestart {
+  restart: number;
+  trace: readonly TracePoint[];
+}
+
+export interface ConvergenceFigureOptions {
+  /** The restart that won (OptimizationResult.best_restart), drawn thicker. */
+  bestRestart?: number;
+  title?: string;
+}
+
+export function convergenceFigure(restarts: readonly ConvergenceRestart[], options: ConvergenceFigureOptions = {}): FigureOption {
+  if (!(restarts?.length > 0)) {
+    throw new InputError([{ path: 'restarts', expected: 'at least one restart with a trace', found: describeFound(restarts) }]);
+  }
+  // non-finite values (a failed evaluation before any finite one) leave a gap, never a NaN point
+  const points = restarts.map((r) => r.trace.filter((p) => Number.isFinite(p.best)).map((p) => [p.evaluation, p.best] as [number, number]));
+  const values = points.flat().map((p) => p[1]);
+  const low = values.length ? Math.min(...values) : 1;
+  const high = values.length ? Math.max(...values) : 1;
+  const log = values.length > 0 && low > 0 && high / low > 100;
+  const series: LineSeriesOption[] = restarts.map((r, i) => {
+    const best = r.restart === options.bestRestart;
+    return {
+      id: `restart-${r.restart}`,
+      name: `restart ${r.restart}${best ? ' (best)' : ''}`,
+      type: 'line',
+      step: 'end',
+      data: points[i],
+      symbol: 'none',
+      lineStyle: { width: best ? 3.5 : 1.8, type: seriesDash(i), color: seriesColor(i) },
+      itemStyle: { color: seriesColor(i) },
+      z: best ? 4 : 2,
+      tooltip: { valueFormatter: (v) => num(v as number, 6) },
+    };
+  });
+  const evaluations = restarts.reduce((n, r) => n + r.trace.length, 0);
+  const winner = restarts.find((r) => r.restart === options.bestRestart);
+  const finalBest = (r: ConvergenceRestart) => points[restarts.indexOf(r)].at(-1)?.[1];
+  const subtitle =
+    `${restarts.length} restart${restarts.length === 1 ? '' : 's'}, ${evaluations} traced evaluations; the objective is minimized` +
+    (winner ? `\nbest: restart ${winner.restart}, objective ${num(finalBest(winner), 6)}` : '') +
+    (log ? ' (logarithmic scale)' : '');
+  return {
+    ...baseOption(`Optimizer convergence over ${restarts.length} restarts.`),
+    title: title(options.title ?? 'Optimizer convergence', subtitle),
+    legend: legend({ top: 96, type: 'scroll', width: '90%' }),
+    tooltip: tooltip(),
+    grid: { left: 110, right: 48, top: 140, bottom: 72 },
+    xAxis: valueXAxis('evaluation', { min: 0, minInterval: 1 }),
+    yAxis: valueYAxis('best objective so far (lower is better)', log ? { type: 'log', splitLine: { show: true, lineStyle: { color: PALETTE.grid } } } : { scale: true }),
+    series,
+  };
+}

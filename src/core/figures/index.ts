@@ -1,0 +1,74 @@
+// Pronk's figures: pure functions from analysis results to Apache ECharts option objects, the same
+// in the browser workbench (echarts.init(element).setOption(option)) and in the CLI's SVG files
+// (svg.ts, Node only). No DOM, no I/O, nothing imported at run time but Pronk's own errors.
+
+import { InputError, describeFound } from '../errors.js';
+import type { BasinResult } from '../analysis/basin.js';
+import type { ReturnMapResult } from '../analysis/return-map.js';
+import type { RobustnessResult } from '../analysis/robustness.js';
+import type { ScanResult } from '../analysis/scan.js';
+import { basinFigure } from './basin.js';
+import { policyComparisonFigure } from './comparison.js';
+import { convergenceFigure } from './convergence.js';
+import { returnMapFigure } from './return-map.js';
+import { stabilityRegionsFigure } from './stability-regions.js';
+import { stanceForceFigure } from './stance-forces.js';
+import { strideScene } from './stride-scene.js';
+import { survivalFigure } from './survival.js';
+import type { FigureOption } from './theme.js';
+
+export { basinFigure, basinCellPosition, type BasinFigureOptions } from './basin.js';
+export { policyComparisonFigure, type ComparisonFigureOptions, type PolicyRun } from './comparison.js';
+export { convergenceFigure, type ConvergenceFigureOptions, type ConvergenceRestart } from './convergence.js';
+export { cobweb, returnMapFigure, type ReturnMapFigureOptions } from './return-map.js';
+export { stabilityRegionsFigure, type StabilityRegionsFigureOptions } from './stability-regions.js';
+export { stanceForceFigure, stanceSamples, type StanceBody, type StanceForceFigureOptions, type StanceSamples } from './stance-forces.js';
+export { groundFromTrajectory, strideScene, type GroundProfile, type SceneView } from './stride-scene.js';
+export { bandSeries, survivalBand, survivalFigure, type SurvivalFigureOptions } from './survival.js';
+export { FIGURE_SIZE, OUTCOME_COLORS, PALETTE, SERIES_COLORS, STABILITY_COLORS, lightness, type FigureOption } from './theme.js';
+
+/** Every figure builder by name. */
+export const FIGURES = {
+  /** Figure 1, `pronk map`: returnMapFigure(result: ReturnMapResult, options?) */
+  returnMap: returnMapFigure,
+  /** Figure 2, `pronk scan`: stabilityRegionsFigure(result: ScanResult, options?) */
+  stabilityRegions: stabilityRegionsFigure,
+  /** Figure 3, `pronk basin`: basinFigure(result: BasinResult, options?) */
+  basin: basinFigure,
+  /** Figure 4, `pronk robustness`: survivalFigure(result: RobustnessResult, options?) */
+  survival: survivalFigure,
+  /** Figure 5, simulate's trajectory: stanceForceFigure(trajectory, body, options?) */
+  stanceForces: stanceForceFigure,
+  /** Figure 6, an optimization result's restarts: convergenceFigure(restarts, options?) */
+  convergence: convergenceFigure,
+  /** Figure 7, two policies on the same seeds: policyComparisonFigure(a, b, options?) */
+  policyComparison: policyComparisonFigure,
+  /** Figure 8, one animation frame: strideScene(trajectory, index, terrain?, view?) */
+  strideScene,
+} as const;
+
+export type FigureName = keyof typeof FIGURES;
+
+/** The commands whose result has a figure of its own (`--plot`), and `pronk merge` of them. */
+export const PLOTTABLE_COMMANDS = ['map', 'scan', 'basin', 'robustness', 'optimize'] as const;
+export type PlottableCommand = (typeof PLOTTABLE_COMMANDS)[number];
+
+/** The figure of a command's result: map -> return map, scan -> stability regions, basin, robustness -> survival, optimize -> convergence. */
+export function figureForCommand(command: string, result: unknown): FigureOption {
+  switch (command) {
+    case 'map':
+      return returnMapFigure(result as ReturnMapResult);
+    case 'scan':
+      return stabilityRegionsFigure(result as ScanResult);
+    case 'basin':
+      return basinFigure(result as BasinResult);
+    case 'robustness':
+      return survivalFigure(result as RobustnessResult);
+    case 'optimize': {
+      const r = result as { restarts: Parameters<typeof convergenceFigure>[0]; best_restart: number };
+      return convergenceFigure(r.restarts, { bestRestart: r.best_restart });
+    }
+    default:
+      throw new InputError([{ path: 'command', expected: `a command with a figure (${PLOTTABLE_COMMANDS.join(', ')})`, found: describeFound(command) }]);
+  }
+}
