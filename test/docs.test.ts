@@ -20,7 +20,7 @@ describe('README examples', () => {
     const paragraphs = readme.split(/\n\n/);
     expect(paragraphs[1]).toMatch(/spring-loaded\s+inverted\s+pendulum/);
     const commands = [...readme.matchAll(/```sh\n(.*?)\n```/g)].map((m) => m[1]);
-    expect(commands[0]).toBe('npm ci && npx pronk simulate');
+    expect(commands[0]).toBe('npm ci && npm start');
     expect(commands[1]).toBe('npm ci && npm test');
   });
 });

@@ -14,6 +14,7 @@ import { odexStride } from '../reference/odex-stride.mjs';
 import { benchBasin } from './basin.mjs';
 import { benchMonteCarlo } from './montecarlo.mjs';
 import { benchOptimize } from './optimize.mjs';
+import { benchLongTasks } from './ui-longtask.mjs';
 
 const DEG = Math.PI / 180;
 // Human-like body of Seyfarth, Geyer, Günther, Blickhan 2002, J. Biomech. 35(5):649–655.
@@ -317,6 +318,9 @@ async function all() {
   console.log();
   console.log('== policy search');
   await benchOptimize(console.log);
+  console.log();
+  console.log('== workbench: longest main-thread task while an optimization runs (headless Chromium)');
+  await benchLongTasks(console.log);
 }
 
 all().catch((err) => {

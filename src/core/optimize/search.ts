@@ -10,7 +10,7 @@ import { loadEngine } from '../engine.js';
 import { comparePolicies, rescore, StudyEvaluator } from './objectives.js';
 import { assembleResult, pickBest, restartStarts, type FinalScores, type OptimizationResult } from './result.js';
 import type { RestartProgress, RestartResult, RestartTask } from './restart.js';
-import type { Study } from './study.js';
+import { isMonteCarloTerm, type Study } from './study.js';
 import { compiledWorkerUrl } from '../../worker/paths.js';
 import type { OptimizeWorkerApi } from '../../worker/optimize-worker.js';
 
@@ -99,7 +99,8 @@ export async function optimizeStudy(study: Study, options: SearchOptions = {}): 
       start: training.evaluate(training.start),
       holdoutStart: rescore(study, engine, training.start) as unknown as FinalScoresHoldout,
       holdoutBest: rescore(study, engine, best.outcome.x) as unknown as FinalScoresHoldout,
-      comparison: comparePolicies(study, engine, training.start, best.outcome.x),
+      // a paired survival comparison needs Monte Carlo terms (survival, tracking)
+      comparison: study.objective.terms.some(isMonteCarloTerm) ? comparePolicies(study, engine, training.start, best.outcome.x) : null,
       scenario: training.scenarioAt(best.outcome.x),
       paths: training.paths,
       lower: training.lower,

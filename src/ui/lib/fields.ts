@@ -1,0 +1,325 @@
+// What the editors show: every field's path in the file, its label and its unit, and the kinds
+// of each policy, terrain and objective term with the values a switch of kind starts from. Paths
+// and units follow design/CONTRACT.md; nothing here checks values (the validators do).
+
+import { getAt } from './draft.js';
+
+export interface FieldDef {
+  /** Path relative to the section's root (the scenario, or the study). */
+  path: string;
+  label: string;
+  /** Shown beside the input; '' for a pure number (a count, a seed, a fraction). */
+  unit: string;
+  hint?: string;
+  /** Empty is allowed (the field is left out of the file). */
+  optional?: boolean;
+}
+
+export const BODY_FIELDS: FieldDef[] = [
+  { path: 'body.mass_kg', label: 'Mass', unit: 'kg' },
+  { path: 'body.leg_length_m', label: 'Leg length (rest)', unit: 'm' },
+  { path: 'body.leg_stiffness_N_per_m', label: 'Leg stiffness', unit: 'N/m' },
+  { path: 'body.gravity_m_per_s2', label: 'Gravity', unit: 'm/s²', optional: true, hint: 'empty: 9.80665' },
+  { path: 'body.leg_damping_N_s_per_m', label: 'Leg damping', unit: 'N·s/m', optional: true, hint: 'empty: 0' },
+];
+
+export const START_FIELDS: FieldDef[] = [
+  { path: 'start.apex_height_m', label: 'Apex height', unit: 'm', hint: 'absolute, above the starting ground' },
+  { path: 'start.forward_speed_m_per_s', label: 'Forward speed', unit: 'm/s' },
+  { path: 'strides', label: 'Strides', unit: '' },
+];
+
+export const INTEGRATOR_FIELDS: FieldDef[] = [
+  { path: 'integrator.relative_tolerance', label: 'Relative tolerance', unit: '', optional: true, hint: 'empty: 1e-10' },
+  { path: 'integrator.absolute_tolerance', label: 'Absolute tolerance', unit: '', optional: true, hint: 'empty: 1e-12' },
+  { path: 'integrator.max_steps_per_stance', label: 'Max steps per stance', unit: '', optional: true, hint: 'empty: 100000' },
+];
+
+export interface TableColumn {
+  key: string;
+  label: string;
+  unit: string;
+}
+
+export interface KindDef {
+  kind: string;
+  label: string;
+  fields: FieldDef[];
+  /** A table of knots: columns (each an array field of the same length). */
+  table?: TableColumn[];
+}
+
+export const ANGLE_KINDS: KindDef[] = [
+  { kind: 'fixed', label: 'Fixed angle', fields: [{ path: 'attack_deg', label: 'Attack angle', unit: '°' }] },
+  {
+    kind: 'retraction',
+    label: 'Swing-leg retraction',
+    fields: [
+      { path: 'attack_at_apex_deg', label: 'Attack angle at apex', unit: '°' },
+      { path: 'rate_deg_per_s', label: 'Retraction rate', unit: '°/s', hint: '> 0 steepens the leg' },
+      { path: 'min_deg', label: 'Clamp, lowest', unit: '°', optional: true, hint: 'empty: none' },
+      { path: 'max_deg', label: 'Clamp, steepest', unit: '°', optional: true, hint: 'empty: none' },
+    ],
+  },
+  {
+    kind: 'time_table',
+    label: 'Table on time since apex',
+    fields: [],
+    table: [
+      { key: 'time_since_apex_s', label: 'Time since apex', unit: 's' },
+      { key: 'attack_deg', label: 'Attack angle', unit: '°' },
+    ],
+  },
+];
+
+export const STIFFNESS_KINDS: KindDef[] = [
+  { kind: 'constant', label: 'Constant (body stiffness)', fields: [] },
+  {
+    kind: 'split',
+    label: 'Split at maximum compression',
+    fields: [
+      { path: 'compression_N_per_m', label: 'Compression stiffness', unit: 'N/m' },
+      { path: 'extension_N_per_m', label: 'Extension stiffness', unit: 'N/m' },
+    ],
+  },
+  {
+    kind: 'time_table',
+    label: 'Table on touchdown time since apex',
+    fields: [],
+    table: [
+      { key: 'time_since_apex_s', label: 'Touchdown time since apex', unit: 's' },
+      { key: 'compression_N_per_m', label: 'Compression', unit: 'N/m' },
+      { key: 'extension_N_per_m', label: 'Extension', unit: 'N/m' },
+    ],
+  },
+];
+
+export const TERRAIN_KINDS: KindDef[] = [
+  { kind: 'flat', label: 'Flat', fields: [] },
+  {
+    kind: 'steps',
+    label: 'Steps (height per touchdown)',
+    fields: [],
+    table: [{ key: 'ground_heights_m', label: 'Ground height at touchdown', unit: 'm' }],
+  },
+  {
+    kind: 'random_walk',
+    label: 'Random walk',
+    fields: [
+      { path: 'sigma_m', label: 'Step standard deviation', unit: 'm' },
+      { path: 'seed', label: 'Seed', unit: '' },
+    ],
+  },
+  {
+    kind: 'random_heights',
+    label: 'Random heights',
+    fields: [
+      { path: 'sigma_m', label: 'Height standard deviation', unit: 'm' },
+      { path: 'seed', label: 'Seed', unit: '' },
+    ],
+  },
+];
+
+const num = (value: unknown, fallback: number) => (typeof value === 'number' && Number.isFinite(value) ? value : fallback);
+
+/** The attack angle a policy commands at the apex, read loosely from a draft (for kind switches). */
+function apexAttack(angle: unknown): number {
+  const a = (angle ?? {}) as Record<string, unknown>;
+  if (a.kind === 'fixed') return num(a.attack_deg, 65);
+  if (a.kind === 'retraction') return num(a.attack_at_apex_deg, 65);
+  if (a.kind === 'time_table' && Array.isArray(a.attack_deg)) return num(a.attack_deg[0], 65);
+  return 65;
+}
+
+/** A new angle policy of `kind`, starting from the current one's apex angle. */
+export function angleOfKind(kind: string, current: unknown): Record<string, unknown> {
+  const a = apexAttack(current);
+  switch (kind) {
+    case 'fixed':
+      return { kind, attack_deg: a };
+    case 'retraction':
+      return { kind, attack_at_apex_deg: a, rate_deg_per_s: 0 };
+    default:
+      return { kind: 'time_table', time_since_apex_s: [0, 0.2], attack_deg: [a, a] };
+  }
+}
+
+/** A new stiffness policy of `kind`, starting from the body's stiffness. */
+export function stiffnessOfKind(kind: string, scenario: unknown): Record<string, unknown> {
+  const k = num(getAt(scenario, 'body.leg_stiffness_N_per_m'), 5000);
+  switch (kind) {
+    case 'constant':
+      return { kind };
+    case 'split':
+      return { kind, compression_N_per_m: k, extension_N_per_m: k };
+    default:
+      return { kind: 'time_table', time_since_apex_s: [0, 0.2], compression_N_per_m: [k, k], extension_N_per_m: [k, k] };
+  }
+}
+
+export function terrainOfKind(kind: string, current: unknown): Record<string, unknown> {
+  const t = (current ?? {}) as Record<string, unknown>;
+  const sigma = num(t.sigma_m, 0.005);
+  const seed = num(t.seed, 1);
+  switch (kind) {
+    case 'flat':
+      return { kind };
+    case 'steps':
+      return { kind, ground_heights_m: [0, -0.02] };
+    default:
+      return { kind, sigma_m: sigma, seed };
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// The study (src/core/optimize/study.ts): limits, search, held-out seeds, objective terms.
+
+export const LIMIT_FIELDS: FieldDef[] = [
+  { path: 'constraints.max_leg_force_N', label: 'Peak leg force', unit: 'N', optional: true, hint: 'empty: no limit' },
+  { path: 'constraints.friction_coefficient', label: 'Friction coefficient μ', unit: '|Fx/Fy|', optional: true, hint: 'empty: no limit' },
+  { path: 'constraints.max_compression_fraction', label: 'Leg compression', unit: '× L₀', optional: true, hint: 'fraction of the rest length' },
+  { path: 'constraints.leg_angle_range_deg.min_deg', label: 'Touchdown angle, lowest', unit: '°', optional: true },
+  { path: 'constraints.leg_angle_range_deg.max_deg', label: 'Touchdown angle, steepest', unit: '°', optional: true },
+  { path: 'constraints.max_hip_rate_deg_per_s', label: 'Hip (retraction) rate', unit: '°/s', optional: true, hint: 'empty: no limit' },
+  { path: 'constraints.stiffness_range_N_per_m.min_N_per_m', label: 'Actuator stiffness, lowest', unit: 'N/m', optional: true },
+  { path: 'constraints.stiffness_range_N_per_m.max_N_per_m', label: 'Actuator stiffness, highest', unit: 'N/m', optional: true },
+];
+
+export const SEARCH_FIELDS: FieldDef[] = [
+  { path: 'search.max_evaluations', label: 'Evaluations per restart', unit: '' },
+  { path: 'search.restarts', label: 'Restarts', unit: '' },
+  { path: 'search.xtol_rel', label: 'x tolerance (relative)', unit: '', optional: true, hint: 'empty: 1e-4' },
+  { path: 'search.max_time_s', label: 'Time limit per restart', unit: 's', optional: true, hint: 'empty or 0: none' },
+  { path: 'seed', label: 'Training seed', unit: '' },
+  { path: 'holdout.seed', label: 'Held-out seed', unit: '' },
+  { path: 'holdout.rollouts', label: 'Held-out rollouts per term', unit: '' },
+];
+
+export const MISMATCH_FIELDS: FieldDef[] = [
+  { path: 'model_mismatch.mass_fraction', label: 'Mass spread', unit: '× m', optional: true },
+  { path: 'model_mismatch.leg_stiffness_fraction', label: 'Stiffness spread', unit: '× k', optional: true },
+  { path: 'model_mismatch.leg_length_fraction', label: 'Leg length spread', unit: '× L₀', optional: true },
+];
+
+export const TERM_KINDS: KindDef[] = [
+  {
+    kind: 'survival',
+    label: 'Survival on rough ground',
+    fields: [
+      { path: 'weight', label: 'Weight', unit: '' },
+      { path: 'sigma_m', label: 'Terrain σ', unit: 'm' },
+      { path: 'rollouts', label: 'Rollouts', unit: '' },
+      { path: 'strides', label: 'Strides', unit: '', optional: true, hint: "empty: the scenario's" },
+    ],
+  },
+  {
+    kind: 'tracking',
+    label: 'Apex tracking',
+    fields: [
+      { path: 'weight', label: 'Weight', unit: '' },
+      { path: 'sigma_m', label: 'Terrain σ', unit: 'm' },
+      { path: 'rollouts', label: 'Rollouts', unit: '' },
+      { path: 'strides', label: 'Strides', unit: '', optional: true, hint: "empty: the scenario's" },
+      { path: 'height_scale_m', label: 'Height error scale', unit: 'm' },
+      { path: 'speed_scale_m_per_s', label: 'Speed error scale', unit: 'm/s' },
+      { path: 'fall_penalty', label: 'Fall penalty', unit: '', optional: true, hint: 'empty: 10' },
+    ],
+  },
+  {
+    kind: 'basin',
+    label: 'Basin of attraction',
+    fields: [
+      { path: 'weight', label: 'Weight', unit: '' },
+      { path: 'heights.low_m', label: 'Apex heights from', unit: 'm' },
+      { path: 'heights.high_m', label: 'Apex heights to', unit: 'm' },
+      { path: 'heights.count', label: 'Height points', unit: '' },
+      { path: 'speeds.low_m_per_s', label: 'Speeds from', unit: 'm/s', optional: true },
+      { path: 'speeds.high_m_per_s', label: 'Speeds to', unit: 'm/s', optional: true },
+      { path: 'speeds.count', label: 'Speed points', unit: '', optional: true },
+      { path: 'strides', label: 'Strides per cell', unit: '', optional: true, hint: 'empty: 30' },
+    ],
+  },
+  {
+    kind: 'step_down',
+    label: 'Step-down tolerance',
+    fields: [
+      { path: 'weight', label: 'Weight', unit: '' },
+      { path: 'strides_after', label: 'Strides after the step', unit: '', optional: true, hint: 'empty: 20' },
+    ],
+  },
+];
+
+export function termOfKind(kind: string, current: unknown, scenario: unknown): Record<string, unknown> {
+  const t = (current ?? {}) as Record<string, unknown>;
+  const weight = num(t.weight, 1);
+  switch (kind) {
+    case 'survival':
+      return { kind, weight, terrain: 'random_walk', sigma_m: num(t.sigma_m, 0.01), rollouts: num(t.rollouts, 100) };
+    case 'tracking':
+      return {
+        kind, weight, terrain: 'random_heights', sigma_m: num(t.sigma_m, 0.005), rollouts: num(t.rollouts, 50),
+        height_scale_m: 0.01, speed_scale_m_per_s: 0.1,
+      };
+    case 'basin': {
+      const y = num(getAt(scenario, 'start.apex_height_m'), 1);
+      const v = num(getAt(scenario, 'start.forward_speed_m_per_s'), 3);
+      return {
+        kind, weight, mode: 'grid',
+        heights: { low_m: Number((0.9 * y).toPrecision(3)), high_m: Number((1.3 * y).toPrecision(3)), count: 9 },
+        speeds: { low_m_per_s: Number((0.8 * v).toPrecision(3)), high_m_per_s: Number((1.2 * v).toPrecision(3)), count: 9 },
+      };
+    }
+    default:
+      return { kind: 'step_down', weight };
+  }
+}
+
+/** Numeric fields of a policy and body in a scenario draft: the paths a study may set free. */
+export function searchablePaths(scenario: unknown): string[] {
+  const out: string[] = [];
+  const walk = (node: unknown, path: string) => {
+    if (typeof node === 'number') out.push(path);
+    else if (Array.isArray(node)) node.forEach((v, i) => walk(v, `${path}[${i}]`));
+    else if (node !== null && typeof node === 'object') {
+      for (const [k, v] of Object.entries(node)) walk(v, path ? `${path}.${k}` : k);
+    }
+  };
+  const s = (scenario ?? {}) as Record<string, unknown>;
+  walk(s.policy, 'policy');
+  walk(s.body, 'body');
+  return out;
+}
+
+/** Numeric fields anywhere in a scenario (for the two axes of a stability scan). */
+export function numericPaths(scenario: unknown): string[] {
+  const out: string[] = [];
+  const walk = (node: unknown, path: string) => {
+    if (typeof node === 'number') out.push(path);
+    else if (Array.isArray(node)) node.forEach((v, i) => walk(v, `${path}[${i}]`));
+    else if (node !== null && typeof node === 'object') {
+      for (const [k, v] of Object.entries(node)) walk(v, path ? `${path}.${k}` : k);
+    }
+  };
+  walk(scenario, '');
+  return out.filter((p) => !p.startsWith('integrator.') && p !== 'strides' && !p.endsWith('.seed'));
+}
+
+/** The unit of a scenario path, from its name (design/CONTRACT.md: every field carries its unit). */
+export function unitOfPath(path: string): string {
+  const name = path.replace(/\[\d+\]$/, '').split('.').pop() ?? '';
+  const units: [RegExp, string][] = [
+    [/_deg_per_s$/, '°/s'],
+    [/_deg$/, '°'],
+    [/_N_s_per_m$/, 'N·s/m'],
+    [/_N_per_m$/, 'N/m'],
+    [/_m_per_s2$/, 'm/s²'],
+    [/_m_per_s$/, 'm/s'],
+    [/_kg$/, 'kg'],
+    [/_s$/, 's'],
+    [/_m$/, 'm'],
+    [/_N$/, 'N'],
+    [/_J$/, 'J'],
+  ];
+  for (const [pattern, unit] of units) if (pattern.test(name)) return unit;
+  return '';
+}

@@ -1,0 +1,599 @@
+// The workbench's state: the drafts being edited, their validation, the last valid scenario that
+// every computation uses, the results (each stamped with the scenario it was computed for), the
+// jobs running on the workers, and the notices shown to the user. Components read and write it;
+// it runs the analyses through the worker pool (compute.ts) and autosaves (persist.ts).
+
+import demoStudyJson from '../../../scenarios/demo-study.json' with { type: 'json' };
+import demoScenarioJson from '../../../scenarios/demo.json' with { type: 'json' };
+import { basinRunOptions, defaultBasinAxes, type BasinOptions, type BasinResult } from '../../core/analysis/basin.js';
+import type { ReturnMapResult } from '../../core/analysis/return-map.js';
+import { canonicalRobustnessOptions, type RobustnessOptions } from '../../core/analysis/robustness.js';
+import type { ScanOptions, ScanResult } from '../../core/analysis/scan.js';
+import type { StepToleranceResult } from '../../core/analysis/stepdown.js';
+import { InputError, type InputIssue } from '../../core/errors.js';
+import type { OptimizationResult } from '../../core/optimize/search.js';
+import { parseStudy, type Study } from '../../core/optimize/study.js';
+import { canonicalJson } from '../../core/version.js';
+import { parseScenario, type Scenario } from '../../core/scenario.js';
+import type { SimulationResult } from '../../core/simulate.js';
+import { EnginePool, JobCancelled, WorkerLost, type PoolEvent } from '../../worker/browser-pool.js';
+import type { BrowserSearchProgress } from '../../worker/browser-optimize.js';
+import {
+  checkScan,
+  pairSurvival,
+  runBasin,
+  runReturnMap,
+  runRobustness,
+  runScan,
+  runStepdown,
+  runTrace,
+  type MonteCarloRun,
+  type PairedSurvival,
+} from './compute.js';
+import { clone, setAt } from './draft.js';
+import { loadDrafts, loadResults, saveDrafts, saveResult } from './persist.js';
+
+export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare';
+
+export type Json = Record<string, unknown>;
+
+/** Settings of the views' analyses: drafts too (a field may hold what was typed). */
+export interface Settings {
+  map: { samples: unknown; iterations: unknown };
+  trace: { interval_s: unknown };
+  scan: { x: { path: unknown; lo: unknown; hi: unknown; n: unknown }; y: { path: unknown; lo: unknown; hi: unknown; n: unknown }; samples: unknown };
+  basin: { mode: 'grid' | 'energy'; heights: { lo: unknown; hi: unknown; n: unknown }; speeds: { lo: unknown; hi: unknown; n: unknown }; strides: unknown };
+  montecarlo: { rollouts: unknown; sigma_m: unknown; seed: unknown; terrain: 'random_walk' | 'random_heights'; strides: unknown };
+}
+
+/** A result and what it was computed from. */
+export interface Stamped<T> {
+  value: T;
+  /** canonicalJson of the scenario it was computed for. */
+  scenarioKey: string;
+  at: number;
+  seconds: number;
+  /** The options it ran with (canonical, for the view's caption). */
+  options?: unknown;
+}
+
+export interface OptimizationStamp extends Stamped<OptimizationResult> {
+  /** The study's base scenario (the baseline policy). */
+  baseScenario: Scenario;
+  study: Json;
+}
+
+export interface ComparisonData {
+  baseline: { scenario: Scenario; montecarlo: MonteCarloRun; map: ReturnMapResult; stepdown: StepToleranceResult };
+  candidate: { scenario: Scenario; montecarlo: MonteCarloRun; map: ReturnMapResult; stepdown: StepToleranceResult };
+  paired: PairedSurvival;
+  options: RobustnessOptions;
+}
+
+export interface Results {
+  map?: Stamped<ReturnMapResult>;
+  trace?: Stamped<SimulationResult>;
+  stepdown?: Stamped<StepToleranceResult>;
+  scan?: Stamped<ScanResult>;
+  basin?: Stamped<BasinResult>;
+  montecarlo?: Stamped<MonteCarloRun>;
+  optimization?: OptimizationStamp;
+  compare?: Stamped<ComparisonData>;
+}
+
+export interface Job {
+  id: number;
+  label: string;
+  startedAt: number;
+  done: number | null;
+  total: number | null;
+  detail: string;
+  cancel: () => void;
+}
+
+export interface Notice {
+  id: number;
+  kind: 'error' | 'info';
+  text: string;
+  at: number;
+}
+
+export interface Check<T> {
+  value: T | null;
+  issues: InputIssue[];
+}
+
+export interface OptimizationLive {
+  /** Date.now() when the search began (0: none yet). */
+  startedAt: number;
+  progress: BrowserSearchProgress | null;
+  /** Per restart: (evaluation, best so far) as the search went. */
+  history: { evaluation: number; best: number }[][];
+}
+
+const SAVED_VERSION = 1;
+/** The live optimizer view is redrawn at most this often, ms. */
+const LIVE_REDRAW_MS = 250;
+
+interface Saved {
+  version: number;
+  scenario: Json;
+  /** The last valid scenario (the draft may be invalid when the page closes). */
+  lastValid?: Scenario;
+  study: Json;
+  settings: Settings;
+  view: ViewName;
+}
+
+export function demoStudyDraft(): Json {
+  const { scenario_file: _file, ...study } = clone(demoStudyJson) as Json;
+  return study;
+}
+
+export function demoScenarioDraft(): Json {
+  return clone(demoScenarioJson) as Json;
+}
+
+export function defaultSettings(scenario: Scenario): Settings {
+  const axes = defaultBasinAxes(scenario, false);
+  const round = (x: number) => Number(x.toPrecision(4));
+  const angle = scenario.policy.angle;
+  const x = angle.kind === 'fixed'
+    ? { path: 'policy.angle.attack_deg', lo: 55, hi: 80, n: 26 }
+    : angle.kind === 'retraction'
+      ? { path: 'policy.angle.attack_at_apex_deg', lo: 55, hi: 75, n: 21 }
+      : { path: 'start.forward_speed_m_per_s', lo: round(0.6 * scenario.start.forward_speed_m_per_s), hi: round(1.4 * scenario.start.forward_speed_m_per_s), n: 21 };
+  const y = angle.kind === 'retraction'
+    ? { path: 'policy.angle.rate_deg_per_s', lo: 0, hi: 150, n: 16 }
+    : { path: 'body.leg_stiffness_N_per_m', lo: round(0.6 * scenario.body.leg_stiffness_N_per_m), hi: round(1.4 * scenario.body.leg_stiffness_N_per_m), n: 16 };
+  return {
+    map: { samples: 201, iterations: 30 },
+    trace: { interval_s: 0.002 },
+    scan: { x, y, samples: 101 },
+    basin: {
+      mode: 'grid',
+      heights: { lo: round(axes.heights.low), hi: round(axes.heights.high), n: 41 },
+      speeds: { lo: round(axes.speeds!.low), hi: round(axes.speeds!.high), n: 41 },
+      strides: 30,
+    },
+    montecarlo: { rollouts: 1000, sigma_m: 0.01, seed: 1, terrain: 'random_walk', strides: scenario.strides },
+  };
+}
+
+export function checkScenario(draft: unknown): Check<Scenario> {
+  try {
+    return { value: parseScenario(draft), issues: [] };
+  } catch (error) {
+    if (error instanceof InputError) return { value: null, issues: error.issues };
+    return { value: null, issues: [{ path: '', expected: 'a scenario', found: String(error) }] };
+  }
+}
+
+/** The study with the scenario draft inline; issues under `scenario.` belong to the scenario editor. */
+export function checkStudy(draft: unknown, scenario: unknown): Check<Study> & { scenarioIssues: number } {
+  try {
+    return { value: parseStudy({ ...(draft as Json), scenario }), issues: [], scenarioIssues: 0 };
+  } catch (error) {
+    if (!(error instanceof InputError)) return { value: null, issues: [{ path: '', expected: 'a study', found: String(error) }], scenarioIssues: 0 };
+    const own = error.issues.filter((i) => !(i.path === 'scenario' || i.path.startsWith('scenario.')));
+    return { value: null, issues: own, scenarioIssues: error.issues.length - own.length };
+  }
+}
+
+const num = (v: unknown) => v as number;
+
+/** Settings → the options each analysis takes (numbers as typed; the analyses' checks report). */
+export function scanOptions(s: Settings['scan']): ScanOptions {
+  const axis = (a: Settings['scan']['x']) => ({ path: String(a.path ?? ''), lo: num(a.lo), hi: num(a.hi), n: num(a.n) });
+  return { x: axis(s.x), y: axis(s.y), samples: num(s.samples) };
+}
+
+export function basinOptions(s: Settings['basin']): BasinOptions {
+  const axis = (a: { lo: unknown; hi: unknown; n: unknown }) => ({ low: num(a.lo), high: num(a.hi), count: num(a.n) });
+  return s.mode === 'energy'
+    ? { energy: true, heights: axis(s.heights), strides: num(s.strides) }
+    : { heights: axis(s.heights), speeds: axis(s.speeds), strides: num(s.strides) };
+}
+
+export function montecarloOptions(s: Settings['montecarlo']): RobustnessOptions {
+  return { rollouts: num(s.rollouts), sigma_m: num(s.sigma_m), seed: num(s.seed), terrain: s.terrain, strides: s.strides === undefined ? undefined : num(s.strides) };
+}
+
+/** Issue paths of the analyses' option checks → the settings fields they name. */
+const SETTING_PATHS: Record<string, Record<string, string>> = {
+  scan: { '--x': 'scan.x', '--y': 'scan.y', '--samples': 'scan.samples', '--x, --y': 'scan.x' },
+  basin: { heights: 'basin.heights', speeds: 'basin.speeds', strides: 'basin.strides', 'heights × speeds': 'basin.heights' },
+  montecarlo: {},
+};
+
+export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo', error: unknown): InputIssue[] | null {
+  if (!(error instanceof InputError)) return null;
+  return error.issues.map((issue) => ({ ...issue, path: SETTING_PATHS[kind][issue.path] ?? (kind === 'montecarlo' ? `montecarlo.${issue.path}` : `${kind}.${issue.path}`) }));
+}
+
+let noticeId = 0;
+let jobId = 0;
+
+export class Workbench {
+  scenarioDraft = $state<Json>(demoScenarioDraft());
+  studyDraft = $state<Json>(demoStudyDraft());
+  settings = $state<Settings>(defaultSettings(parseScenario(demoScenarioJson)));
+  view = $state<ViewName>('map');
+
+  scenarioCheck = $derived(checkScenario(this.scenarioDraft));
+  studyCheck = $derived(checkStudy(this.studyDraft, this.scenarioDraft));
+
+  /** The scenario every computation uses: the draft when valid, else the last valid one. */
+  lastValid = $state.raw<{ scenario: Scenario; key: string; at: number }>({
+    scenario: parseScenario(demoScenarioJson),
+    key: canonicalJson(parseScenario(demoScenarioJson)),
+    at: Date.now(),
+  });
+
+  results = $state.raw<Results>({});
+  jobs = $state<Record<string, Job>>({});
+  notices = $state<Notice[]>([]);
+  live = $state.raw<OptimizationLive>({ startedAt: 0, progress: null, history: [] });
+  /** Issues of the views' settings, by settings path (scan.x, basin.strides, montecarlo.rollouts...). */
+  settingsIssues = $state<InputIssue[]>([]);
+  autosaveFailed = $state(false);
+  /** Asks the export dialog to open, for a policy source ('scenario' or 'result'). */
+  exportRequest = $state<{ source: 'scenario' | 'result'; n: number }>({ source: 'scenario', n: 0 });
+  /** The drafts came from this browser's autosave (not the demo). */
+  readonly restored: boolean = false;
+
+  readonly pool: EnginePool;
+  private autoTimer: ReturnType<typeof setTimeout> | undefined;
+  private autoPending = false;
+
+  constructor(options: { workers?: number; pool?: EnginePool } = {}) {
+    const cores = typeof navigator !== 'undefined' && navigator.hardwareConcurrency ? navigator.hardwareConcurrency : 2;
+    this.pool = options.pool ?? new EnginePool(options.workers ?? Math.max(1, Math.min(4, cores)), undefined, (e) => this.onPoolEvent(e));
+    const saved = loadDrafts<Saved>();
+    if (saved && saved.version === SAVED_VERSION) {
+      this.scenarioDraft = saved.scenario;
+      this.studyDraft = saved.study;
+      this.settings = { ...this.settings, ...saved.settings };
+      this.view = saved.view;
+      this.restored = true;
+    }
+    const check = checkScenario(this.scenarioDraft);
+    const last = check.value ?? (saved?.lastValid ? checkScenario(saved.lastValid).value : null);
+    if (last) this.lastValid = { scenario: last, key: canonicalJson(last), at: Date.now() };
+  }
+
+  /** Starts the effects (autosave, last valid scenario, automatic analyses); call in a component's init. */
+  start(): void {
+    $effect(() => {
+      const check = this.scenarioCheck;
+      if (!check.value) return;
+      const key = canonicalJson(check.value);
+      if (key !== this.lastValid.key) this.lastValid = { scenario: check.value, key, at: Date.now() };
+    });
+    $effect(() => {
+      const saved: Saved = {
+        version: SAVED_VERSION,
+        scenario: $state.snapshot(this.scenarioDraft) as Json,
+        study: $state.snapshot(this.studyDraft) as Json,
+        settings: $state.snapshot(this.settings) as Settings,
+        view: this.view,
+        lastValid: this.lastValid.scenario,
+      };
+      this.autosaveFailed = !saveDrafts(saved);
+    });
+    $effect(() => {
+      void this.lastValid.key;
+      void this.settings.map.samples;
+      void this.settings.map.iterations;
+      void this.settings.trace.interval_s;
+      clearTimeout(this.autoTimer);
+      this.autoTimer = setTimeout(() => void this.runAutomatic(), 150);
+    });
+    void loadResults().then((stored) => {
+      const restored = { ...this.results };
+      for (const [name, value] of Object.entries(stored)) {
+        if (!(name in restored)) (restored as Record<string, unknown>)[name] = value;
+      }
+      this.results = restored;
+    });
+  }
+
+  // -------------------------------------------------------------------------------------------
+  // Drafts.
+
+  setScenarioField(path: string, value: unknown): void {
+    setAt(this.scenarioDraft, path, value);
+  }
+
+  setStudyField(path: string, value: unknown): void {
+    setAt(this.studyDraft, path, value);
+  }
+
+  /** Replaces the drafts wholesale (an opened file); results of another scenario become stale. */
+  loadScenarioDraft(draft: Json): void {
+    this.scenarioDraft = clone(draft);
+  }
+
+  loadStudyDraft(draft: Json): void {
+    this.studyDraft = clone(draft);
+  }
+
+  resetToDemo(): void {
+    this.scenarioDraft = demoScenarioDraft();
+    this.studyDraft = demoStudyDraft();
+    this.settings = defaultSettings(parseScenario(demoScenarioJson));
+  }
+
+  isCurrent(stamp: { scenarioKey: string } | undefined): boolean {
+    return stamp !== undefined && stamp.scenarioKey === this.lastValid.key;
+  }
+
+  // -------------------------------------------------------------------------------------------
+  // Notices and jobs.
+
+  notify(kind: Notice['kind'], text: string): void {
+    const notice = { id: ++noticeId, kind, text, at: Date.now() };
+    this.notices = [...this.notices.slice(-5), notice];
+    if (kind === 'info') setTimeout(() => this.dismiss(notice.id), 8000);
+  }
+
+  dismiss(id: number): void {
+    this.notices = this.notices.filter((n) => n.id !== id);
+  }
+
+  private onPoolEvent(event: PoolEvent): void {
+    if (event.kind === 'worker-died') {
+      this.notify('error', `A compute worker stopped (${event.message}). It was restarted; your edits and results are kept.`);
+    } else if (event.kind === 'worker-failed-to-start') {
+      this.notify('error', `A compute worker could not start: ${event.message}`);
+    }
+  }
+
+  running(name: string): boolean {
+    return name in this.jobs;
+  }
+
+  cancel(name: string): void {
+    this.jobs[name]?.cancel();
+  }
+
+  /**
+   * Runs one named job: progress into `jobs[name]`, a cancel, and every failure as a notice.
+   * Returns undefined when it was cancelled or failed.
+   */
+  async job<T>(name: string, label: string, body: (signal: AbortSignal, progress: (done: number, total: number, detail?: string) => void) => Promise<T>): Promise<T | undefined> {
+    if (this.jobs[name]) this.jobs[name].cancel();
+    const controller = new AbortController();
+    const id = ++jobId;
+    const job: Job = { id, label, startedAt: Date.now(), done: null, total: null, detail: '', cancel: () => controller.abort() };
+    this.jobs[name] = job;
+    try {
+      return await body(controller.signal, (done, total, detail) => {
+        const j = this.jobs[name];
+        if (!j || j.id !== id || controller.signal.aborted) return;
+        j.done = done;
+        j.total = total;
+        if (detail !== undefined) j.detail = detail;
+      });
+    } catch (error) {
+      if (error instanceof JobCancelled) this.notify('info', `${label}: cancelled.`);
+      else this.reportError(label, error);
+      return undefined;
+    } finally {
+      if (this.jobs[name]?.id === id) delete this.jobs[name];
+    }
+  }
+
+  private reportError(label: string, error: unknown): void {
+    if (error instanceof WorkerLost) {
+      this.notify('error', `${label} stopped: a worker failed (${error.message}). It was restarted; your edits are kept — run it again.`);
+    } else if (error instanceof InputError) {
+      this.notify('error', `${label}: ${error.format()}`);
+    } else {
+      this.notify('error', `${label} failed: ${error instanceof Error ? error.message : String(error)}`);
+    }
+  }
+
+  private stamp<T>(value: T, started: number, options?: unknown, scenarioKey = this.lastValid.key): Stamped<T> {
+    return { value, scenarioKey, at: Date.now(), seconds: (performance.now() - started) / 1000, options };
+  }
+
+  private keep<K extends keyof Results>(name: K, value: Results[K]): void {
+    this.results = { ...this.results, [name]: value };
+    void saveResult(name, $state.snapshot(value));
+  }
+
+  // -------------------------------------------------------------------------------------------
+  // Analyses. Each uses the last valid scenario.
+
+  /** The return map, the stride trace and the step tolerance follow every valid edit. */
+  async runAutomatic(): Promise<void> {
+    if (this.jobs.auto) {
+      this.autoPending = true;
+      return;
+    }
+    const { scenario, key } = this.lastValid;
+    const samples = Number(this.settings.map.samples);
+    const iterations = Number(this.settings.map.iterations);
+    const interval = Number(this.settings.trace.interval_s);
+    const started = performance.now();
+    await this.job('auto', 'Return map and stride', async (signal, progress) => {
+      progress(0, 3, 'return map');
+      const mapOk = Number.isInteger(samples) && samples >= 2 && samples <= 5000 && Number.isInteger(iterations) && iterations >= 0 && iterations <= 1000;
+      const [map, trace, stepdown] = await Promise.all([
+        mapOk ? runReturnMap(this.pool, scenario, { samples, iterations }, { signal }) : Promise.resolve(undefined),
+        interval > 0 && interval <= 0.1 ? runTrace(this.pool, scenario, { strides: scenario.strides, interval_s: interval }, { signal }) : Promise.resolve(undefined),
+        runStepdown(this.pool, scenario, { signal }),
+      ]);
+      progress(3, 3);
+      if (map) this.keep('map', this.stamp(map, started, { samples, iterations }, key));
+      if (trace) this.keep('trace', this.stamp(trace, started, { interval_s: interval }, key));
+      this.keep('stepdown', this.stamp(stepdown, started, undefined, key));
+    });
+    if (this.autoPending) {
+      this.autoPending = false;
+      void this.runAutomatic();
+    }
+  }
+
+  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo', check: () => void): boolean {
+    const others = this.settingsIssues.filter((i) => !i.path.startsWith(`${kind}.`));
+    try {
+      check();
+      this.settingsIssues = others;
+      return true;
+    } catch (error) {
+      const issues = settingsIssues(kind, error);
+      if (!issues) throw error;
+      this.settingsIssues = [...others, ...issues];
+      return false;
+    }
+  }
+
+  async runScan(): Promise<void> {
+    const { scenario, key } = this.lastValid;
+    const options = scanOptions(this.settings.scan);
+    if (!this.checkSettings('scan', () => checkScan(scenario, options))) return;
+    const started = performance.now();
+    const result = await this.job('scan', 'Stability scan', (signal, progress) =>
+      runScan(this.pool, scenario, options, { signal, onProgress: (d, t) => progress(d, t, 'cells') }),
+    );
+    if (result) this.keep('scan', this.stamp(result, started, options, key));
+  }
+
+  async runBasin(): Promise<void> {
+    const { scenario, key } = this.lastValid;
+    const options = basinOptions(this.settings.basin);
+    if (!this.checkSettings('basin', () => runBasinCheck(scenario, options))) return;
+    const started = performance.now();
+    const result = await this.job('basin', 'Basin of attraction', (signal, progress) =>
+      runBasin(this.pool, scenario, options, { signal, onProgress: (d, t) => progress(d, t, 'ranges') }),
+    );
+    if (result) this.keep('basin', this.stamp(result, started, options, key));
+  }
+
+  async runMonteCarlo(): Promise<void> {
+    const { scenario, key } = this.lastValid;
+    const options = montecarloOptions(this.settings.montecarlo);
+    if (!this.checkSettings('montecarlo', () => runMonteCarloCheck(scenario, options))) return;
+    const started = performance.now();
+    const result = await this.job('montecarlo', 'Monte Carlo', (signal, progress) =>
+      runRobustness(this.pool, scenario, options, { signal, onProgress: (d, t) => progress(d, t, 'ranges') }),
+    );
+    if (result) this.keep('montecarlo', this.stamp(result, started, options, key));
+  }
+
+  /** The study's search, with the last valid scenario as its base. */
+  async runOptimization(): Promise<void> {
+    const { scenario, key } = this.lastValid;
+    const check = checkStudy(this.studyDraft, scenario);
+    if (!check.value) {
+      this.notify('error', `The study has ${check.issues.length} problem${check.issues.length === 1 ? '' : 's'}; see the Study section.`);
+      return;
+    }
+    const study = { ...($state.snapshot(this.studyDraft) as Json), scenario };
+    const { optimizeInBrowser } = await import('../../worker/browser-optimize.js');
+    const started = performance.now();
+    const restarts = check.value.search.restarts;
+    const history: OptimizationLive['history'] = Array.from({ length: restarts }, () => []);
+    const startedAt = Date.now();
+    this.live = { startedAt, progress: null, history };
+    // The page redraws the live figure at most every LIVE_REDRAW_MS: the main thread stays free.
+    let shown = 0;
+    let latest: BrowserSearchProgress | null = null;
+    const show = (progress: (done: number, total: number, detail?: string) => void) => {
+      if (!latest) return;
+      shown = performance.now();
+      this.live = { startedAt, progress: latest, history: history.map((h) => h.slice()) };
+      progress(latest.evaluations, latest.budget, `${latest.restartsDone} of ${latest.restarts} restarts done`);
+    };
+    const result = await this.job('optimize', 'Optimization', async (signal, progress) => {
+      const flush = setInterval(() => show(progress), LIVE_REDRAW_MS);
+      try {
+        return await optimizeInBrowser(study, {
+          signal,
+          onProgress: (p) => {
+            for (const r of p.perRestart) {
+              const h = history[r.restart];
+              if (h && r.evaluations > 0 && (h.length === 0 || h[h.length - 1].evaluation !== r.evaluations)) {
+                if (h.length < 5000) h.push({ evaluation: r.evaluations, best: r.best });
+              }
+            }
+            latest = p;
+            if (performance.now() - shown >= LIVE_REDRAW_MS) show(progress);
+          },
+        });
+      } finally {
+        clearInterval(flush);
+      }
+    });
+    if (result) {
+      const stamp: OptimizationStamp = { ...this.stamp(result, started, undefined, key), baseScenario: scenario, study: clone(study) };
+      this.keep('optimization', stamp);
+      this.notify('info', result.cancelled ? 'Optimization cancelled: the best point found so far is kept.' : 'Optimization finished.');
+    }
+  }
+
+  /** Baseline (the study's start) and optimized policy on the same terrain streams. */
+  async runComparison(): Promise<void> {
+    const opt = this.results.optimization;
+    if (!opt) return;
+    const options = montecarloOptions(this.settings.montecarlo);
+    const baseline = opt.baseScenario;
+    let candidate: Scenario;
+    try {
+      candidate = parseScenario(opt.value.scenario);
+    } catch (error) {
+      this.reportError('Comparison', error);
+      return;
+    }
+    if (!this.checkSettings('montecarlo', () => { runMonteCarloCheck(baseline, options); runMonteCarloCheck(candidate, options); })) return;
+    const started = performance.now();
+    const mapOptions = { samples: 201, iterations: 30 };
+    const result = await this.job('compare', 'Comparison', async (signal, progress) => {
+      let done = 0;
+      const step = <T>(p: Promise<T>) => p.then((v) => { progress(++done, 6); return v; });
+      const [mcA, mcB, mapA, mapB, sdA, sdB] = await Promise.all([
+        step(runRobustness(this.pool, baseline, options, { signal })),
+        step(runRobustness(this.pool, candidate, options, { signal })),
+        step(runReturnMap(this.pool, baseline, mapOptions, { signal })),
+        step(runReturnMap(this.pool, candidate, mapOptions, { signal })),
+        step(runStepdown(this.pool, baseline, { signal })),
+        step(runStepdown(this.pool, candidate, { signal })),
+      ]);
+      const data: ComparisonData = {
+        baseline: { scenario: baseline, montecarlo: mcA, map: mapA, stepdown: sdA },
+        candidate: { scenario: candidate, montecarlo: mcB, map: mapB, stepdown: sdB },
+        paired: pairSurvival(mcA.rows, mcB.rows),
+        options,
+      };
+      return data;
+    });
+    if (result) this.keep('compare', this.stamp(result, started, options, opt.scenarioKey));
+  }
+
+  /** Copies the optimized parameters into the scenario draft. */
+  applyOptimized(): void {
+    const opt = this.results.optimization;
+    if (!opt) return;
+    for (const p of opt.value.parameters) setAt(this.scenarioDraft, p.path, p.value);
+    this.notify('info', 'The optimized parameters are now in the scenario.');
+  }
+
+  openExport(source: 'scenario' | 'result'): void {
+    this.exportRequest = { source, n: this.exportRequest.n + 1 };
+  }
+
+  /** Diagnostics: makes a worker fail, to see the recovery. */
+  crashWorker(): void {
+    this.pool.crash(0);
+  }
+}
+
+function runBasinCheck(scenario: Scenario, options: BasinOptions): void {
+  basinRunOptions(scenario, options); // throws an InputError naming the option
+}
+
+function runMonteCarloCheck(scenario: Scenario, options: RobustnessOptions): void {
+  canonicalRobustnessOptions(scenario, options);
+}

@@ -1,0 +1,64 @@
+// A browser module worker holding one engine (the WASM kernel) and the analyses, behind comlink.
+// The workbench runs a small pool of these (browser-pool.ts). Analyses that are lists of
+// independent rollouts (scan, basin, Monte Carlo) run here a contiguous range at a time, and the
+// main thread joins the ranges with the same finisher as `pronk merge`, so a workbench result is
+// the CLI's result bit for bit. Everything crossing the boundary is plain data (structured clone).
+
+import * as Comlink from 'comlink';
+import { loadEngine, type BatchRequest, type BatchResult } from '../core/engine.js';
+import { apexReturnMap, type ReturnMapOptions, type ReturnMapResult } from '../core/analysis/return-map.js';
+import { scanShard, type ScanOptions, type ScanCell } from '../core/analysis/scan.js';
+import { basinRows, type BasinRow, type BasinRunOptions } from '../core/analysis/basin.js';
+import { robustnessRows, type RobustnessOptions, type RobustnessRow } from '../core/analysis/robustness.js';
+import { stepTolerance, type StepToleranceOptions, type StepToleranceResult } from '../core/analysis/stepdown.js';
+import { simulate, type SimulateOptions, type SimulationResult } from '../core/simulate.js';
+import { parseScenario, type Scenario } from '../core/scenario.js';
+import type { PartialResult, ShardRange, ShardSpec } from '../core/shard.js';
+
+const inWorker = async (req: BatchRequest): Promise<BatchResult> => (await loadEngine()).runBatch(req);
+
+// A worker trusts nothing it is sent: every scenario is validated again here.
+const checked = (scenario: unknown): Scenario => parseScenario(scenario);
+
+const api = {
+  /** Loads the kernel; resolves once the worker can compute. */
+  async ready(): Promise<true> {
+    await loadEngine();
+    return true;
+  },
+
+  async simulate(scenario: unknown, options: SimulateOptions = {}): Promise<SimulationResult> {
+    return simulate(checked(scenario), options);
+  },
+
+  async returnMap(scenario: unknown, options: Omit<ReturnMapOptions, 'runBatch'> = {}): Promise<ReturnMapResult> {
+    return apexReturnMap(checked(scenario), { ...options, runBatch: inWorker });
+  },
+
+  async scanShard(scenario: unknown, options: ScanOptions, shard: ShardSpec): Promise<PartialResult<ScanCell>> {
+    return scanShard(checked(scenario), options, shard, { runBatch: inWorker });
+  },
+
+  async basinRows(scenario: unknown, run: BasinRunOptions, range: ShardRange): Promise<BasinRow[]> {
+    return basinRows(checked(scenario), run, range, { runBatch: inWorker });
+  },
+
+  async robustnessRows(scenario: unknown, options: RobustnessOptions, range: ShardRange): Promise<RobustnessRow[]> {
+    return robustnessRows(checked(scenario), options, range, { runBatch: inWorker });
+  },
+
+  async stepdown(scenario: unknown, options: StepToleranceOptions = {}): Promise<StepToleranceResult> {
+    return stepTolerance(checked(scenario), options);
+  },
+
+  /** Diagnostics: an uncaught error on the worker's own event loop (the pool must notice and recover). */
+  crash(): void {
+    setTimeout(() => {
+      throw new Error('worker crash requested (diagnostics)');
+    }, 0);
+  },
+};
+
+export type EngineWorkerApi = typeof api;
+
+Comlink.expose(api);

@@ -1,0 +1,169 @@
+// @vitest-environment happy-dom
+// The workbench's editors: every invalid value is flagged beside its field with the validator's
+// own reason (parseScenario / parseStudy issues, mapped by path), kept as typed, never silently
+// accepted; the editor's summary says that the computations use the last valid scenario.
+import { fireEvent, render, screen, within } from '@testing-library/svelte';
+import { beforeEach, describe, expect, it } from 'vitest';
+import Editor from '../../src/ui/components/Editor.svelte';
+import { Workbench } from '../../src/ui/lib/workbench.svelte.js';
+import type { EnginePool } from '../../src/worker/browser-pool.js';
+
+// The editors never compute: a pool that is never called.
+const idlePool = { size: 1, dispose() {} } as unknown as EnginePool;
+
+function setup() {
+  const wb = new Workbench({ pool: idlePool });
+  const view = render(Editor, { props: { wb } });
+  return { wb, view };
+}
+
+/** The message linked to an input by aria-describedby (the text beside the field). */
+function describedBy(input: HTMLElement): string {
+  const ids = (input.getAttribute('aria-describedby') ?? '').split(/\s+/).filter(Boolean);
+  return ids.map((id) => document.getElementById(id)?.textContent ?? '').join(' ').trim();
+}
+
+function type(input: HTMLElement, text: string) {
+  fireEvent.input(input, { target: { value: text } });
+  fireEvent.blur(input);
+}
+
+beforeEach(() => {
+  localStorage.clear();
+  document.body.innerHTML = '';
+});
+
+describe('scenario editor', () => {
+  it('shows the demo scenario as valid, with a unit beside every number', () => {
+    const { view } = setup();
+    expect(screen.getByTestId('scenario-check').textContent).toMatch(/Scenario valid/);
+    const mass = screen.getByLabelText('Mass') as HTMLInputElement;
+    expect(mass.value).toBe('9'); // scenarios/demo.json: mass_kg 9
+    expect(mass.closest('.field')?.textContent).toContain('kg');
+    expect((screen.getByLabelText('Leg stiffness').closest('.field') as HTMLElement).textContent).toContain('N/m');
+    // the angle convention is stated in the editor
+    expect(view.container.textContent).toMatch(/from the horizontal.*90° is a vertical leg/s);
+  });
+
+  it('flags a negative mass beside the field with the validator\'s reason, and keeps it as typed', async () => {
+    const { wb } = setup();
+    const mass = screen.getByLabelText('Mass');
+    type(mass, '-9');
+    await Promise.resolve();
+    // the message of src/core/scenario.ts's positive('kg') field schema, as parseScenario reports it
+    expect(mass.getAttribute('aria-invalid')).toBe('true');
+    expect(describedBy(mass)).toBe('expected a number > 0 (kg), found -9');
+    expect(wb.scenarioDraft.body).toMatchObject({ mass_kg: -9 });
+    expect(wb.scenarioCheck.value).toBeNull();
+    const summary = screen.getByTestId('scenario-check').textContent ?? '';
+    expect(summary).toMatch(/1 problem in the scenario/);
+    expect(summary).toMatch(/Computations use the last valid scenario/);
+    expect(summary).toContain('body.mass_kg');
+  });
+
+  it('keeps text that is not a number and reports what it found', async () => {
+    setup();
+    const stiffness = screen.getByLabelText('Leg stiffness');
+    type(stiffness, '5 kN/m');
+    await Promise.resolve();
+    expect(describedBy(stiffness)).toBe('expected a number > 0 (N/m), found "5 kN/m"');
+    expect((stiffness as HTMLInputElement).value).toBe('5 kN/m');
+  });
+
+  it('leaves an emptied optional field out, so that its default applies', async () => {
+    const { wb } = setup();
+    type(screen.getByLabelText('Gravity'), '');
+    await Promise.resolve();
+    expect('gravity_m_per_s2' in (wb.scenarioDraft.body as object)).toBe(false);
+    // the schema's default: standard gravity, 9.80665 m/s² (CGPM 1901, exact)
+    expect(wb.scenarioCheck.value?.body.gravity_m_per_s2).toBe(9.80665);
+  });
+
+  it('puts the cross-field start-height rule on the apex height field', async () => {
+    setup();
+    const apex = screen.getByLabelText('Apex height');
+    type(apex, '0.3');
+    await Promise.resolve();
+    // law: the leg touches down at y = L0·sin(attack at apex) = 0.45 m · sin(64°) = 0.404456 m
+    const text = describedBy(apex);
+    expect(text).toMatch(/^expected > 0\.40445\d* m \(ground \+ leg length \* sin\(attack at apex\)\), found 0\.3$/);
+    expect(Number(/> ([\d.]+) m/.exec(text)![1])).toBeCloseTo(0.45 * Math.sin((64 * Math.PI) / 180), 5);
+  });
+
+  it('edits a table as rows and flags a knot time that does not increase in its own cell', async () => {
+    const { wb } = setup();
+    fireEvent.change(screen.getByLabelText('Touchdown angle'), { target: { value: 'time_table' } });
+    await Promise.resolve();
+    // the kind switch starts the table from the apex angle of the retraction policy (64°)
+    expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'time_table', time_since_apex_s: [0, 0.2], attack_deg: [64, 64] } });
+    const time1 = screen.getByLabelText('Time since apex, row 1');
+    type(time1, '0');
+    await Promise.resolve();
+    expect(describedBy(time1)).toBe('expected a time > 0 s (knot times must strictly increase), found 0');
+    fireEvent.click(screen.getByRole('button', { name: 'Add row' }));
+    await Promise.resolve();
+    const angle = wb.scenarioDraft.policy as { angle: { time_since_apex_s: unknown[]; attack_deg: unknown[] } };
+    expect(angle.angle.time_since_apex_s).toHaveLength(3);
+    expect(angle.angle.attack_deg).toHaveLength(3);
+    fireEvent.click(screen.getByRole('button', { name: 'Remove row 0' }));
+    await Promise.resolve();
+    expect(angle.angle.attack_deg).toHaveLength(2);
+  });
+
+  it('brings back the values of a kind when switched back to it', async () => {
+    const { wb } = setup();
+    const kind = screen.getByLabelText('Touchdown angle');
+    fireEvent.change(kind, { target: { value: 'fixed' } });
+    await Promise.resolve();
+    expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'fixed', attack_deg: 64 } });
+    fireEvent.change(kind, { target: { value: 'retraction' } });
+    await Promise.resolve();
+    // scenarios/demo.json: retraction at 64° from the apex, 40°/s, clamped at 80°
+    expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: 40, max_deg: 80 } });
+  });
+
+  it('takes the user to the field a problem names', async () => {
+    setup();
+    type(screen.getByLabelText('Forward speed'), '-1');
+    await Promise.resolve();
+    const summary = screen.getByTestId('scenario-check');
+    fireEvent.click(within(summary).getByRole('button', { name: /start\.forward_speed_m_per_s/ }));
+    expect(document.activeElement).toBe(screen.getByLabelText('Forward speed'));
+  });
+});
+
+describe('study editor', () => {
+  it('reports half an angle range at its missing end', async () => {
+    const { wb } = setup();
+    const steepest = screen.getByLabelText('Touchdown angle, steepest');
+    type(steepest, '');
+    await Promise.resolve();
+    // src/core/optimize/study.ts: leg_angle_range_deg {min_deg, max_deg}, both angles in (0, 90]
+    expect(describedBy(steepest)).toBe('expected an angle in (0, 90] (deg from the horizontal), found missing');
+    expect(wb.studyCheck.value).toBeNull();
+    // emptying the other end too leaves the range out of the study: valid again
+    type(screen.getByLabelText('Touchdown angle, lowest'), '');
+    await Promise.resolve();
+    expect(wb.studyCheck.issues).toEqual([]);
+    expect(wb.studyCheck.value?.constraints.leg_angle_range_deg).toBeUndefined();
+  });
+
+  it('flags a free parameter the scenario no longer has after a kind switch', async () => {
+    const { wb } = setup();
+    fireEvent.change(screen.getByLabelText('Touchdown angle'), { target: { value: 'fixed' } });
+    await Promise.resolve();
+    const issue = wb.studyCheck.issues.find((i) => i.path === 'free_parameters[0].path');
+    expect(issue?.found).toMatch(/has no attack_at_apex_deg/);
+    const select = screen.getByLabelText('Parameter 1');
+    expect(select.getAttribute('aria-invalid')).toBe('true');
+    expect(describedBy(select)).toMatch(/has no attack_at_apex_deg/);
+  });
+
+  it('flags inverted bounds at the upper bound', async () => {
+    setup();
+    const upper = screen.getAllByLabelText('Upper bound')[0];
+    type(upper, '50'); // below the lower bound, 55 (scenarios/demo-study.json)
+    await Promise.resolve();
+    expect(describedBy(upper)).toMatch(/^expected a number > lower \(55\): the bounds are inverted, found 50$/);
+  });
+});
