@@ -1,6 +1,7 @@
 // `pronk basin [FILE] [--heights lo:hi:n] [--speeds lo:hi:n | --energy] [--strides N] [--tolerance M]
 // [--workers N] [--shard I/N --out FILE] [--json]`: the basin of attraction on flat ground.
 
+import { scenarioArgument } from './scenario-argument.js';
 import type { BasinOptions, BasinResult, GridAxis } from '../core/analysis/basin.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
@@ -74,13 +75,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const plot = await plotOption(values.plot, { shard: shard !== undefined, out });
 
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json && !shard) io.stderr.write(`pronk basin: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'basin', json || shard !== undefined);
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const core = await import('../core/analysis/basin.js');

@@ -3,6 +3,7 @@
 // a one-step deadbeat table on time since apex (src/core/synthesis/deadbeat.ts), optionally
 // compared with the best fixed-angle and retraction policies (src/core/synthesis/compare.ts).
 
+import { scenarioArgument } from './scenario-argument.js';
 import type { ComparisonOptionNames, ComparisonOptions, DeadbeatComparison, DeadbeatLoads, TableStepCheck } from '../core/synthesis/compare.js';
 import type { DeadbeatMode, DeadbeatOptions, DeadbeatTable } from '../core/synthesis/deadbeat.js';
 import { InputError, describeFound } from '../core/errors.js';
@@ -198,13 +199,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
   const json = values.json === true;
   const flags = parseDeadbeatFlags(values);
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json) io.stderr.write(`${SOURCE}: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'deadbeat', json);
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { synthesizeDeadbeat } = await import('../core/synthesis/deadbeat.js');
   const { compareDeadbeat, deadbeatLoads, deadbeatResult, tableStepCheck } = await import('../core/synthesis/compare.js');

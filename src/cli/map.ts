@@ -2,6 +2,7 @@
 // scenario's energy, its fixed points with slope, eigenvalues and stance symmetry, and the staircase
 // from the start apex.
 
+import { scenarioArgument } from './scenario-argument.js';
 import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
@@ -49,13 +50,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
   const plot = await plotOption(values.plot);
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json) io.stderr.write(`pronk map: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'map', json);
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { apexReturnMap } = await import('../core/analysis/return-map.js');
   let result: ReturnMapResult;

@@ -1,6 +1,7 @@
 // `pronk robustness [FILE] --sigma S [--rollouts R] [--seed N] ...`: Monte Carlo survival over
 // seeded random terrain, on the worker pool, optionally one shard of it (`--shard i/n`).
 
+import { scenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
 import type {
   CanonicalRobustnessOptions,
@@ -83,13 +84,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const out = outOption(values);
   const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json && spec === undefined) io.stderr.write(`${SOURCE}: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'robustness', json || spec !== undefined);
   const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
   try {

@@ -2,6 +2,7 @@
 // [--shard I/N --out FILE] [--json]`: where in a plane of two parameters the return map has a
 // stable fixed point (a stability-region map).
 
+import { scenarioArgument } from './scenario-argument.js';
 import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
 import { InputError, UsageError } from '../core/errors.js';
 import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
@@ -62,13 +63,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   );
 
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json && !shard) io.stderr.write(`pronk scan: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'scan', json || shard !== undefined);
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { runBatchParallel, defaultWorkers } = await import('../worker/pool.js');

@@ -1,5 +1,6 @@
 // `pronk simulate [FILE] [--json] [--strides N] [--trace-interval S]`: one rollout of a scenario, shown stride by stride.
 
+import { scenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import {
@@ -40,13 +41,7 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json) io.stderr.write(`pronk simulate: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'simulate', json);
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { simulate } = await import('../core/simulate.js');
   const result = await simulate(scenario, {

@@ -1,6 +1,7 @@
 // `pronk stepdown [FILE] [--after N] [--resolution M]`: the largest single permanent drop and rise
 // of the ground, met at the first touchdown, that the policy survives for N further strides.
 
+import { scenarioArgument } from './scenario-argument.js';
 import { InputError } from '../core/errors.js';
 import type { StepDirectionResult, StepToleranceOptionNames, StepToleranceResult } from '../core/analysis/stepdown.js';
 import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES } from '../core/analysis/stepdown.js';
@@ -57,13 +58,7 @@ async function runStepdown({ values, positionals }: ParsedCommandLine, io: CliIO
   const settleStrides = parseIntegerOption(values['settle-strides'], '--settle-strides', 2, MAX_STRIDES, SOURCE);
   const settleBand = parseNumberOption(values['settle-band'], '--settle-band', 'a band > 0 (m)', SOURCE, positive);
   const file = positionals[0];
-  let scenario: Scenario;
-  if (file === undefined) {
-    if (!json) io.stderr.write(`${SOURCE}: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
-    scenario = demoScenario();
-  } else {
-    scenario = await readScenarioFile(file);
-  }
+  const scenario = await scenarioArgument(file, io, 'stepdown', json);
   const { stepTolerance } = await import('../core/analysis/stepdown.js');
   let result: StepToleranceResult;
   try {
