@@ -105,7 +105,8 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
 
   for (let s = 0; s < strides; s++) {
     const rec = rec0 != 0 ? rec0 + (<usize>s * R_SIZE << 3) : SCRATCH_RECORD;
-    for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
+    // Only a kept record is read: the scratch one needs no clearing.
+    if (rec0 != 0) for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
     put(rec, R_APEX_HEIGHT, ya);
     put(rec, R_APEX_SPEED, vx);
     put(rec, R_APEX_TIME, t);

@@ -35,10 +35,6 @@ export function traceEnd(): i32 {
   return count;
 }
 
-export function traceFull(): bool {
-  return count >= capacity;
-}
-
 export function emit(
   t: f64, x: f64, y: f64, vx: f64, vy: f64, fx: f64, fy: f64, force: f64, phase: i32, stride: i32,
 ): void {

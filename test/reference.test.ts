@@ -2,6 +2,7 @@
 // same stance, the Arenstorf orbit for the bare stepper, and energy
 // conservation over many strides. Sources are named beside every check value.
 
+import { fixedAngleModel } from './reference/models.mjs';
 import { beforeAll, describe, expect, it } from 'vitest';
 import * as L from '../assembly/layout.js';
 import { loadEngine, rolloutInput, type Engine, type ModelBlock } from '../src/core/engine.js';
@@ -38,22 +39,7 @@ const SEYFARTH = { mass: 80, leg: 1, k: 20_000, g: 9.81 };
 
 /** A fixed-angle, undamped, flat-ground model block for the Seyfarth body. */
 function seyfarthModel(attackDeg: number, rtol: number, atol: number): ModelBlock {
-  const f = new Float64Array(L.M_SIZE);
-  f[L.M_MASS] = SEYFARTH.mass;
-  f[L.M_LEG_LENGTH] = SEYFARTH.leg;
-  f[L.M_STIFFNESS] = SEYFARTH.k;
-  f[L.M_GRAVITY] = SEYFARTH.g;
-  f[L.M_DAMPING] = 0;
-  f[L.M_ANGLE_KIND] = L.ANGLE_FIXED;
-  f[L.M_ATTACK] = attackDeg * DEG;
-  f[L.M_ANGLE_MIN] = -1e300;
-  f[L.M_ANGLE_MAX] = 1e300;
-  f[L.M_STIFFNESS_KIND] = L.STIFFNESS_CONSTANT;
-  f[L.M_TERRAIN_KIND] = L.TERRAIN_FLAT;
-  f[L.M_RTOL] = rtol;
-  f[L.M_ATOL] = atol;
-  f[L.M_MAX_STEPS] = 100_000;
-  return { fields: f };
+  return fixedAngleModel(L, SEYFARTH, attackDeg * DEG, { rtol, atol });
 }
 
 let engine: Engine;

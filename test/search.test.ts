@@ -63,27 +63,20 @@ describe('optimizeStudy', () => {
   it('cancel stops a long search and returns the best point so far', async () => {
     const controller = new AbortController();
     let evaluations = 0;
-    let cancelledAt = 0;
     const running = optimizeStudy(study({ method: 'SUBPLEX', max_evaluations: 1_000_000, restarts: 1 }, 200), {
       workers: 1,
       signal: controller.signal,
       onProgress: (p) => {
         evaluations = p.evaluations;
-        if (p.evaluations >= 5 && !controller.signal.aborted) {
-          cancelledAt = performance.now();
-          controller.abort();
-        }
+        if (p.evaluations >= 5 && !controller.signal.aborted) controller.abort();
       },
     });
     const r = await running;
-    const latency = performance.now() - cancelledAt;
     expect(r.cancelled).toBe(true);
     expect(r.restarts[0].reason).toBe('cancelled');
     expect(r.restarts[0].evaluations).toBeLessThan(1000);
     expect(evaluations).toBeGreaterThanOrEqual(5);
-    // stops within one objective evaluation plus the held-out re-scoring; the latency itself is
-    // measured in the benchmark, not asserted here
-    expect(latency).toBeLessThan(30_000);
+    // how soon it stops is measured in the benchmark (test/bench/optimize.mjs), not asserted here
   });
 
   it('restart start points: the study start first, the rest spread inside the bounds, fixed by the seed', () => {

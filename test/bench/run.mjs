@@ -11,6 +11,7 @@
 import { loadEngine, rolloutInput } from '../../dist/src/core/engine.js';
 import * as L from '../../dist/assembly/layout.js';
 import { odexStride } from '../reference/odex-stride.mjs';
+import { fixedAngleModel } from '../reference/models.mjs';
 import { benchBasin } from './basin.mjs';
 import { benchMonteCarlo } from './montecarlo.mjs';
 import { benchOptimize } from './optimize.mjs';
@@ -34,28 +35,7 @@ const gc = globalThis.gc ?? (() => {});
 const now = () => performance.now() / 1000;
 
 /** Fixed-angle, undamped Seyfarth body at the given tolerances, flat or random-walk ground. */
-function modelBlock({ rtol, atol, terrain }) {
-  const f = new Float64Array(L.M_SIZE);
-  f[L.M_MASS] = BODY.mass;
-  f[L.M_LEG_LENGTH] = BODY.leg;
-  f[L.M_STIFFNESS] = BODY.k;
-  f[L.M_GRAVITY] = BODY.g;
-  f[L.M_DAMPING] = 0;
-  f[L.M_ANGLE_KIND] = L.ANGLE_FIXED;
-  f[L.M_ATTACK] = ATTACK_DEG * DEG;
-  f[L.M_ANGLE_MIN] = -1e300;
-  f[L.M_ANGLE_MAX] = 1e300;
-  f[L.M_STIFFNESS_KIND] = L.STIFFNESS_CONSTANT;
-  f[L.M_TERRAIN_KIND] = terrain ? L.TERRAIN_RANDOM_WALK : L.TERRAIN_FLAT;
-  if (terrain) {
-    f[L.M_TERRAIN_SIGMA] = terrain.sigma;
-    f[L.M_TERRAIN_SEED] = terrain.seed;
-  }
-  f[L.M_RTOL] = rtol;
-  f[L.M_ATOL] = atol;
-  f[L.M_MAX_STEPS] = 100_000;
-  return { fields: f };
-}
+const modelBlock = (options) => fixedAngleModel(L, BODY, ATTACK_DEG * DEG, options);
 
 /** (rollouts x I_SIZE) inputs, all from one apex state; stream = rollout index. */
 function inputs(rollouts, apexHeight, speed) {
