@@ -3,6 +3,18 @@
 // and units follow design/CONTRACT.md; nothing here checks values (the validators do).
 
 import { getAt } from './draft.js';
+import {
+  DEFAULT_ABSOLUTE_TOLERANCE,
+  DEFAULT_MAX_STEPS_PER_STANCE,
+  DEFAULT_RELATIVE_TOLERANCE,
+  STANDARD_GRAVITY_M_PER_S2,
+} from '../../core/scenario.js';
+import {
+  DEFAULT_BASIN_STRIDES,
+  DEFAULT_FALL_PENALTY,
+  DEFAULT_STEP_STRIDES_AFTER,
+  DEFAULT_XTOL_REL,
+} from '../../core/optimize/study.js';
 
 export interface FieldDef {
   /** Path relative to the section's root (the scenario, or the study). */
@@ -19,7 +31,7 @@ export const BODY_FIELDS: FieldDef[] = [
   { path: 'body.mass_kg', label: 'Mass', unit: 'kg' },
   { path: 'body.leg_length_m', label: 'Leg length (rest)', unit: 'm' },
   { path: 'body.leg_stiffness_N_per_m', label: 'Leg stiffness', unit: 'N/m' },
-  { path: 'body.gravity_m_per_s2', label: 'Gravity', unit: 'm/s²', optional: true, hint: 'empty: 9.80665' },
+  { path: 'body.gravity_m_per_s2', label: 'Gravity', unit: 'm/s²', optional: true, hint: `empty: ${STANDARD_GRAVITY_M_PER_S2}` },
   { path: 'body.leg_damping_N_s_per_m', label: 'Leg damping', unit: 'N·s/m', optional: true, hint: 'empty: 0' },
 ];
 
@@ -30,9 +42,9 @@ export const START_FIELDS: FieldDef[] = [
 ];
 
 export const INTEGRATOR_FIELDS: FieldDef[] = [
-  { path: 'integrator.relative_tolerance', label: 'Relative tolerance', unit: '', optional: true, hint: 'empty: 1e-10' },
-  { path: 'integrator.absolute_tolerance', label: 'Absolute tolerance', unit: '', optional: true, hint: 'empty: 1e-12' },
-  { path: 'integrator.max_steps_per_stance', label: 'Max steps per stance', unit: '', optional: true, hint: 'empty: 100000' },
+  { path: 'integrator.relative_tolerance', label: 'Relative tolerance', unit: '', optional: true, hint: `empty: ${DEFAULT_RELATIVE_TOLERANCE}` },
+  { path: 'integrator.absolute_tolerance', label: 'Absolute tolerance', unit: '', optional: true, hint: `empty: ${DEFAULT_ABSOLUTE_TOLERANCE}` },
+  { path: 'integrator.max_steps_per_stance', label: 'Max steps per stance', unit: '', optional: true, hint: `empty: ${DEFAULT_MAX_STEPS_PER_STANCE}` },
 ];
 
 export interface TableColumn {
@@ -188,7 +200,7 @@ export const LIMIT_FIELDS: FieldDef[] = [
 export const SEARCH_FIELDS: FieldDef[] = [
   { path: 'search.max_evaluations', label: 'Evaluations per restart', unit: '' },
   { path: 'search.restarts', label: 'Restarts', unit: '' },
-  { path: 'search.xtol_rel', label: 'x tolerance (relative)', unit: '', optional: true, hint: 'empty: 1e-4' },
+  { path: 'search.xtol_rel', label: 'x tolerance (relative)', unit: '', optional: true, hint: `empty: ${DEFAULT_XTOL_REL}` },
   { path: 'search.max_time_s', label: 'Time limit per restart', unit: 's', optional: true, hint: 'empty or 0: none' },
   { path: 'seed', label: 'Training seed', unit: '' },
   { path: 'holdout.seed', label: 'Held-out seed', unit: '' },
@@ -201,28 +213,28 @@ export const MISMATCH_FIELDS: FieldDef[] = [
   { path: 'model_mismatch.leg_length_fraction', label: 'Leg length spread', unit: '× L₀', optional: true },
 ];
 
+// The fields every Monte Carlo term has (the study schema's monteCarloShape).
+const MONTE_CARLO_FIELDS = [
+  { path: 'weight', label: 'Weight', unit: '' },
+  { path: 'sigma_m', label: 'Terrain σ', unit: 'm' },
+  { path: 'rollouts', label: 'Rollouts', unit: '' },
+  { path: 'strides', label: 'Strides', unit: '', optional: true, hint: "empty: the scenario's" },
+];
+
 export const TERM_KINDS: KindDef[] = [
   {
     kind: 'survival',
     label: 'Survival on rough ground',
-    fields: [
-      { path: 'weight', label: 'Weight', unit: '' },
-      { path: 'sigma_m', label: 'Terrain σ', unit: 'm' },
-      { path: 'rollouts', label: 'Rollouts', unit: '' },
-      { path: 'strides', label: 'Strides', unit: '', optional: true, hint: "empty: the scenario's" },
-    ],
+    fields: MONTE_CARLO_FIELDS,
   },
   {
     kind: 'tracking',
     label: 'Apex tracking',
     fields: [
-      { path: 'weight', label: 'Weight', unit: '' },
-      { path: 'sigma_m', label: 'Terrain σ', unit: 'm' },
-      { path: 'rollouts', label: 'Rollouts', unit: '' },
-      { path: 'strides', label: 'Strides', unit: '', optional: true, hint: "empty: the scenario's" },
+      ...MONTE_CARLO_FIELDS,
       { path: 'height_scale_m', label: 'Height error scale', unit: 'm' },
       { path: 'speed_scale_m_per_s', label: 'Speed error scale', unit: 'm/s' },
-      { path: 'fall_penalty', label: 'Fall penalty', unit: '', optional: true, hint: 'empty: 10' },
+      { path: 'fall_penalty', label: 'Fall penalty', unit: '', optional: true, hint: `empty: ${DEFAULT_FALL_PENALTY}` },
     ],
   },
   {
@@ -236,7 +248,7 @@ export const TERM_KINDS: KindDef[] = [
       { path: 'speeds.low_m_per_s', label: 'Speeds from', unit: 'm/s', optional: true },
       { path: 'speeds.high_m_per_s', label: 'Speeds to', unit: 'm/s', optional: true },
       { path: 'speeds.count', label: 'Speed points', unit: '', optional: true },
-      { path: 'strides', label: 'Strides per cell', unit: '', optional: true, hint: 'empty: 30' },
+      { path: 'strides', label: 'Strides per cell', unit: '', optional: true, hint: `empty: ${DEFAULT_BASIN_STRIDES}` },
     ],
   },
   {
@@ -244,7 +256,7 @@ export const TERM_KINDS: KindDef[] = [
     label: 'Step-down tolerance',
     fields: [
       { path: 'weight', label: 'Weight', unit: '' },
-      { path: 'strides_after', label: 'Strides after the step', unit: '', optional: true, hint: 'empty: 20' },
+      { path: 'strides_after', label: 'Strides after the step', unit: '', optional: true, hint: `empty: ${DEFAULT_STEP_STRIDES_AFTER}` },
     ],
   },
 ];
