@@ -38,7 +38,7 @@ function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: strin
 }
 
 function fieldList(shape: z.ZodRawShape): string {
-  return Object.keys(shape).join(', ');
+  return Object.keys(shape).filter((name) => name !== '$schema').join(', ');
 }
 
 // Knot times of a time table: measured from the flight apex, >= 0, strictly increasing.
@@ -204,7 +204,12 @@ const integratorShape = {
 };
 export const integratorSchema = strictObject(integratorShape, `an object with ${fieldList(integratorShape)}`).prefault({});
 
+// "$schema": where an editor finds the file's JSON Schema (schemas/scenario.schema.json). It
+// belongs to the file, not to the scenario: the validator accepts it and leaves it out.
+export const schemaReference = text('a string (the JSON Schema this file follows, for editors)').optional();
+
 const scenarioShape = {
+  $schema: schemaReference,
   name: text('a string').optional(),
   description: text('a string').optional(),
   body: bodySchema,
@@ -220,7 +225,7 @@ export const scenarioSchema = strictObject(
   `a scenario object with ${fieldList(scenarioShape)}`,
 ).superRefine(checkStartAboveTouchdown, always);
 
-export type Scenario = z.output<typeof scenarioSchema>;
+export type Scenario = Omit<z.output<typeof scenarioSchema>, '$schema'>;
 export type Body = z.output<typeof bodySchema>;
 export type Start = z.output<typeof startSchema>;
 export type AnglePolicy = z.output<typeof anglePolicySchema>;
@@ -293,8 +298,9 @@ function showAbove(bound: number, found: number): string {
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
 export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
   const result = validateWith(scenarioSchema, value);
-  if (result.success) return result.data;
-  throw new InputError(result.issues, options);
+  if (!result.success) throw new InputError(result.issues, options);
+  const { $schema: _reference, ...scenario } = result.data;
+  return scenario;
 }
 
 // The built-in demo scenario (scenarios/demo.json), validated like any other.

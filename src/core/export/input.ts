@@ -79,7 +79,7 @@ const provenanceSchema = z.object(
   { error: 'an object with pronk_version, scenario_sha256, date' },
 );
 
-const resultSchema = z.object(
+export const resultSchema = z.object(
   {
     format: z.literal(RESULT_FORMAT, { error: `"${RESULT_FORMAT}" (a result file; a scenario file has no format field)` }),
     format_version: z.literal(RESULT_FORMAT_VERSION, { error: String(RESULT_FORMAT_VERSION) }),

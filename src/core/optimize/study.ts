@@ -61,7 +61,7 @@ import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
-import { parseJson, parseScenario, readScenarioFile, type Scenario } from '../scenario.js';
+import { parseJson, parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -103,7 +103,7 @@ function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: strin
   return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
 }
 
-const fields = (shape: z.ZodRawShape) => Object.keys(shape).join(', ');
+const fields = (shape: z.ZodRawShape) => Object.keys(shape).filter((name) => name !== '$schema').join(', ');
 
 const freeParameterShape = {
   path: z.string({ error: 'a dotted path into the scenario\'s policy or body, e.g. policy.angle.attack_deg' }),
@@ -223,6 +223,7 @@ const holdoutShape = { seed: seedSchema, rollouts: integerIn(1, MAX_TERM_ROLLOUT
 const holdoutSchema = strictObject(holdoutShape, `an object with ${fields(holdoutShape)}`);
 
 const studyShape = {
+  $schema: schemaReference,
   name: z.string({ error: 'a string' }).optional(),
   description: z.string({ error: 'a string' }).optional(),
   scenario: z.unknown().optional(),
