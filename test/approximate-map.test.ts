@@ -73,7 +73,7 @@ describe('the closed form', () => {
   });
 
   it('is exact for a vertical hop: the spring-mass oscillator with a constant force', () => {
-    // law / closed form (REFERENCES.md "Vertical spring-mass hop"): attack 90°, no forward speed,
+    // law / closed form (docs/references.md, laws: vertical hop): attack 90°, no forward speed,
     // so ω0 = 0 and every approximation is exact; t_c = 2(π - atan(v ω / g)) / ω, max compression g/ω² + A
     const v = 1.3;
     const w = Math.sqrt(k / m);
@@ -87,7 +87,7 @@ describe('the closed form', () => {
   });
 
   it('energy correction: the next apex carries the touchdown energy plus the split stiffness work ½ (ke - kc) δ²', () => {
-    // law: mechanical energy at liftoff (REFERENCES.md "Energy", split stiffness)
+    // law: mechanical energy at liftoff (docs/references.md, laws: energy, split stiffness)
     const [kc, ke, attack, vx, vy] = [19000, 22000, 66 * DEG, 5, -1.1];
     const a = approximateStride({ ...body, compression_stiffness_N_per_m: kc, extension_stiffness_N_per_m: ke, attack_rad: attack, touchdown_vx_m_per_s: vx, touchdown_vy_m_per_s: vy });
     const before = m * g * L0 * Math.sin(attack) + 0.5 * m * (vx * vx + vy * vy);

@@ -20,7 +20,7 @@ import { scenario } from './helpers.js';
 
 afterAll(() => closeWorkerPool());
 
-// The human-like body of Seyfarth et al. 2002/2003 (REFERENCES.md: 80 kg, 1 m, 20 kN/m, g 9.81,
+// The human-like body of Seyfarth et al. 2002/2003 (docs/references.md: 80 kg, 1 m, 20 kN/m, g 9.81,
 // 1 m apex at 5 m/s), at the kernel's default tolerances (the basin needs apex heights to 1e-4 m,
 // not the helpers' 1e-12).
 const DEFAULT_TOLERANCES = { relative_tolerance: 1e-10, absolute_tolerance: 1e-12 };
@@ -90,7 +90,7 @@ describe('cells whose fate is known', () => {
 
   it('a cell far below the touchdown height falls with leg_not_placeable at stride 0', async () => {
     const s = fixed68();
-    // touchdown height L0·sin(68°) = 0.927 m (CONTRACT.md, touchdown when y = ground + L0·sin(attack))
+    // touchdown height L0·sin(68°) = 0.927 m (docs/contract.md, touchdown when y = ground + L0·sin(attack))
     expect(flatTouchdownHeightM(s)).toBeCloseTo(Math.sin((68 * Math.PI) / 180), 15);
     const r = await basinOfAttraction(s, { heights: { low: 0.2, high: 0.2, count: 1 }, speeds: { low: 5, high: 5, count: 1 } }, { workers: 1 });
     expect(r.cells[0]).toMatchObject({ outcome: 'fell', reason: 'leg_not_placeable', failed_stride: 0, strides_completed: 0 });
@@ -100,7 +100,7 @@ describe('cells whose fate is known', () => {
     const s = fixed68();
     const fp = await settledApex(s);
     const E = startEnergyJ(s);
-    expect(E).toBeCloseTo(80 * 9.81 * 1 + 0.5 * 80 * 25, 9); // m g y + ½ m v² (CONTRACT conventions)
+    expect(E).toBeCloseTo(80 * 9.81 * 1 + 0.5 * 80 * 25, 9); // m g y + ½ m v² (docs/contract.md conventions)
     const top = E / (80 * 9.81); // the apex where the speed reaches 0 (energy conservation)
     const r = await basinOfAttraction(s, { energy: true, heights: { low: fp.height, high: top + 0.1, count: 2 } }, { workers: 1 });
     expect(r.mode).toBe('energy');
@@ -137,9 +137,9 @@ describe('the basin runs on flat ground whatever the scenario says', () => {
 });
 
 describe('Seyfarth, Geyer, Herr 2003: retraction enlarges the basin at the energy of 5 m/s, 1 m apex', () => {
-  // Published (J. Exp. Biol. 206(15):2547–2555, read off a figure; REFERENCES.md): the largest
+  // Published (J. Exp. Biol. 206(15):2547–2555, read off a figure; docs/references.md): the largest
   // attracted apex height is about 1.3, 1.9 and 2.2 m at 0, 25 and 50 °/s. Test the trend and a
-  // band of ±0.3 m only. REFERENCES.md does not give the attack angle of that figure, so for each
+  // band of ±0.3 m only. The attack angle of that figure is not recalled of that figure, so for each
   // rate we take the attack at apex (60–70° in 1° steps) with the largest attracted apex height.
   // Pronk finds 1.33 m (68°, the Seyfarth 2002 angle), 2.04 m (67°) and 2.26 m (62°) on this grid.
   const heights = { low: 0.85, high: 2.27, count: 143 }; // 1 cm steps up to just below E/(m g) = 2.274 m

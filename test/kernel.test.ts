@@ -13,7 +13,7 @@ const omega = Math.sqrt(k / m);
 
 describe('vertical hop (attack 90°) against the spring-mass oscillator with constant force', () => {
   // law / closed form: m x'' = -k x - m g with x = r - L0, x(0) = 0, x'(0) = -v
-  // (REFERENCES.md "Vertical spring-mass hop").
+  // (docs/references.md, laws: vertical hop).
   const apex = 1.2;
   const v = Math.sqrt(2 * g * (apex - L0)); // law: free fall from the apex to touchdown at y = L0
   const amplitude = Math.hypot(g / omega ** 2, v / omega);
@@ -118,7 +118,7 @@ describe('running strides', () => {
       const liftCot = 1 / Math.tan(r.rec(0, L.R_LIFTOFF_ANGLE));
       expect(rel(r.rec(0, L.R_PEAK_FRICTION), Math.max(cot, liftCot))).toBeLessThan(1e-9);
     }
-    expect(1 / Math.tan(68 * DEG)).toBeCloseTo(0.404, 3); // REFERENCES.md: 0.404 at 68°
+    expect(1 / Math.tan(68 * DEG)).toBeCloseTo(0.404, 3); // law (docs/references.md, friction demand): 0.404 at 68°
   });
 
   it('stance at a fixed point is symmetric (Ghigliazza, Altendorfer, Holmes, Koditschek 2003)', async () => {
@@ -149,7 +149,7 @@ describe('running strides', () => {
     const last = r.rec(49, L.R_NEXT_APEX_HEIGHT);
     expect(Math.abs(r.rec(48, L.R_NEXT_APEX_HEIGHT) - last)).toBeLessThan(1e-6);
     expect(Math.abs(r.rec(0, L.R_NEXT_APEX_HEIGHT) - 1)).toBeGreaterThan(1e-3); // it did move
-    // Contact time of a human runner at 3-5 m/s is about 0.2-0.3 s (from memory, REFERENCES.md): loose band.
+    // Contact time of a human runner at 3-5 m/s is about 0.2-0.3 s (from memory, docs/references.md): loose band.
     expect(r.rec(49, L.R_CONTACT)).toBeGreaterThan(0.1);
     expect(r.rec(49, L.R_CONTACT)).toBeLessThan(0.3);
   });
@@ -161,7 +161,7 @@ describe('scheduled touchdown angles', () => {
     const r = await run(scenario({ start: { apex_height_m: 1.25, forward_speed_m_per_s: 3 }, policy: { angle: { kind: 'retraction', attack_at_apex_deg: 60, rate_deg_per_s: rate } } }));
     expect(r.status).toBe(L.STATUS_OK);
     const t = r.rec(0, L.R_APEX_TO_TOUCHDOWN);
-    const attack = (60 + rate * t) * DEG; // CONTRACT.md: attack(t) = attack_at_apex + rate t
+    const attack = (60 + rate * t) * DEG; // docs/contract.md: attack(t) = attack_at_apex + rate t
     expect(Math.abs(r.rec(0, L.R_ATTACK) - attack)).toBeLessThan(1e-14);
     // law: ballistic fall from the apex; an independent bisection of the same condition
     const gap = (s: number) => 1.25 - 0.5 * g * s * s - Math.sin((60 + rate * s) * DEG);
@@ -245,7 +245,7 @@ describe('terrain', () => {
     const ground = (r: number, st: number) => b.records![(r * 10 + st) * L.R_SIZE + L.R_GROUND];
     let walk = 0;
     for (let st = 0; st < b.summaries[L.S_STRIDES_COMPLETED]; st++) {
-      walk += 0.01 * engine.terrainGaussian(7, 0, st); // CONTRACT.md: previous height plus a Gaussian step
+      walk += 0.01 * engine.terrainGaussian(7, 0, st); // docs/contract.md: previous height plus a Gaussian step
       expect(ground(0, st)).toBeCloseTo(walk, 15);
       expect(ground(2, st)).toBe(ground(0, st));
       expect(ground(1, st)).not.toBe(ground(0, st));

@@ -23,7 +23,7 @@ const bin = join(repo, 'bin', 'pronk.js');
 const directory = mkdtempSync(join(tmpdir(), 'pronk-merge-'));
 const at = (name: string) => join(directory, name);
 
-// Seyfarth, Geyer, Herr 2003's human-like body with swing-leg retraction (REFERENCES.md), a policy
+// Seyfarth, Geyer, Herr 2003's human-like body with swing-leg retraction (docs/references.md), a policy
 // with a sizable basin; random terrain in the file, which a basin ignores (it runs on flat ground).
 const robot = {
   body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },

@@ -115,7 +115,9 @@ describe('Arenstorf orbit (published: Hairer, Nørsett, Wanner, Solving ODEs I, 
   // Published initial values and period of the closed orbit.
   const MU = 0.012277471;
   const X0 = 0.994;
+  // biome-ignore lint/correctness/noPrecisionLoss: the published digits, as printed (rounded to double here)
   const VY0 = -2.00158510637908252240537862224;
+  // biome-ignore lint/correctness/noPrecisionLoss: the published digits, as printed (rounded to double here)
   const PERIOD = 17.0652165601579625588917206249;
 
   const closure = (r: { x: number; y: number }) => Math.hypot(r.x - X0, r.y);

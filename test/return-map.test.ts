@@ -89,7 +89,7 @@ describe('Seyfarth et al. 2002, human-like body at the energy of 5 m/s, 68°', (
 
   it('energy-direction eigenvalue 1 and the other equal to the 1-D slope, to 1e-6', async () => {
     // law: energy conservation makes E(y, v) invariant, so 1 is an eigenvalue of the 2-D map's
-    // Jacobian (REFERENCES.md, Ghigliazza et al. 2003) and the other is the 1-D map's slope
+    // Jacobian (docs/references.md, Ghigliazza et al. 2003) and the other is the 1-D map's slope
     const r = await get();
     expect(r.energy_conserving).toBe(true);
     expect(r.fixed_points.length).toBeGreaterThanOrEqual(2); // the stable one and an unstable one above it

@@ -2,7 +2,7 @@
 // and an accepted scenario always simulates to finite numbers (a fall is a status, never a NaN).
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../src/core/errors.js';
-import { demoScenario, parseScenario } from '../src/core/scenario.js';
+import { demoScenario, parseScenario, type Scenario } from '../src/core/scenario.js';
 import { simulate } from '../src/core/simulate.js';
 
 // Small deterministic generator (mulberry32, common practice for test data).
@@ -52,7 +52,7 @@ describe('mutated scenarios', () => {
     for (let i = 0; i < 400; i++) {
       let candidate = mutate(base, r);
       if (r() < 0.3) candidate = mutate(candidate, r);
-      let scenario;
+      let scenario: Scenario;
       try {
         scenario = parseScenario(candidate);
       } catch (error) {

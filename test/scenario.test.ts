@@ -1,5 +1,5 @@
 // Scenario validation: every class of bad input is rejected with a message naming the field, what
-// was expected and what was found (design/CONTRACT.md; the field list is the contract's).
+// was expected and what was found (docs/contract.md; the field list is the contract's).
 
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -19,7 +19,7 @@ import {
   scenarioSchema,
 } from '../src/core/scenario.js';
 
-// The example scenario of design/CONTRACT.md.
+// The example scenario of docs/contract.md.
 const CONTRACT_EXAMPLE = {
   body: { mass_kg: 80, leg_length_m: 1.0, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },
   start: { apex_height_m: 1.0, forward_speed_m_per_s: 5.0 },
@@ -352,7 +352,7 @@ describe('random terrain seeds', () => {
 });
 
 describe('start apex above the first touchdown', () => {
-  // touchdown when y = ground + L0·sin(attack) (design/CONTRACT.md)
+  // touchdown when y = ground + L0·sin(attack) (docs/contract.md)
   const threshold = (ground: number, legLength: number, attackDeg: number) => ground + legLength * Math.sin((attackDeg * Math.PI) / 180);
 
   it('rejects an apex at or below touchdown height for a fixed angle', () => {

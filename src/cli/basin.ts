@@ -2,7 +2,7 @@
 // [--workers N] [--shard I/N --out FILE] [--json]`: the basin of attraction on flat ground.
 
 import { scenarioArgument } from './scenario-argument.js';
-import type { BasinOptions, BasinResult, GridAxis } from '../core/analysis/basin.js';
+import type { BasinOptions, BasinResult, BasinRunOptions, GridAxis } from '../core/analysis/basin.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
@@ -79,7 +79,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const core = await import('../core/analysis/basin.js');
-  let run;
+  let run: BasinRunOptions;
   try {
     run = core.basinRunOptions(scenario, options);
   } catch (error) {

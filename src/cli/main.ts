@@ -1,5 +1,5 @@
 // The `pronk` command: argument parsing, help, and the mapping of errors to exit codes
-// (0 ran, 2 bad input or usage, 1 internal error; design/CONTRACT.md). Each command is a
+// (0 ran, 2 bad input or usage, 1 internal error; docs/contract.md). Each command is a
 // description of its options plus a `run` that presents the result of one core analysis.
 
 import { parseArgs } from 'node:util';

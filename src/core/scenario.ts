@@ -1,4 +1,4 @@
-// The scenario file: its schema (field names and meanings from design/CONTRACT.md), the validator
+// The scenario file: its schema (field names and meanings: docs/contract.md), the validator
 // that turns any JSON value into a checked, defaults-filled Scenario or an InputError listing every
 // problem, and the file reader. Everything downstream (kernel, analyses, CLI, UI) runs unchecked on
 // the Scenario this returns.
@@ -400,12 +400,12 @@ export function locateJsonSyntaxError(text: string): { offset: number; reason: s
       }
       if (code < 0x20) fail('control character in string (escape it, e.g. \\n)');
       if (code === 0x5c) {
-        const escape = text[at + 1];
-        if (escape === 'u') {
+        const escaped = text[at + 1];
+        if (escaped === 'u') {
           if (!/^[0-9a-fA-F]{4}$/.test(text.slice(at + 2, at + 6))) fail('bad \\u escape in string');
           at += 6;
-        } else if (escape !== undefined && '"\\/bfnrt'.includes(escape)) at += 2;
-        else fail(`bad escape \\${escape ?? ''} in string`);
+        } else if (escaped !== undefined && '"\\/bfnrt'.includes(escaped)) at += 2;
+        else fail(`bad escape \\${escaped ?? ''} in string`);
       } else at++;
     }
   };

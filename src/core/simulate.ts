@@ -1,5 +1,5 @@
 // `simulate`: one rollout of a scenario, stride by stride, as plain data in the
-// contract's shape (shared/design/CONTRACT.md). Angles leave in degrees.
+// contract's shape (docs/contract.md). Angles leave in degrees.
 
 import * as L from '../../assembly/layout.js';
 import { loadEngine } from './engine.js';

@@ -54,7 +54,7 @@ function median(xs) {
 
 const STATUS_NAMES = Object.entries(L)
   .filter(([name, v]) => name.startsWith('STATUS_') && name !== 'STATUS_COUNT' && typeof v === 'number')
-  .reduce((names, [name, v]) => ((names[v] = name.slice(7).toLowerCase()), names), {});
+  .reduce((names, [name, v]) => Object.assign(names, { [v]: name.slice(7).toLowerCase() }), {});
 
 /** "ok 130, leg_not_placeable 812, …" over the rollout summaries. */
 function statusBreakdown(summaries, rollouts) {

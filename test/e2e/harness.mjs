@@ -1,10 +1,10 @@
 // Running the built workbench in a real browser, for the end-to-end tests and the long-task bench:
-// build it when the sources are newer than the build, serve it with `vite preview` on a free
+// build it when its sources changed since the last build, serve it with `vite preview` on a free
 // localhost port, and drive Debian's /usr/bin/chromium through playwright-core (never a
-// downloaded browser; STACK.md gives the flags).
+// downloaded browser; the flags below keep it off the network).
 
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -30,23 +30,12 @@ export function haveChromium() {
   return existsSync(CHROMIUM);
 }
 
-function newest(dir) {
-  let latest = 0;
-  for (const entry of readdirSync(dir, { withFileTypes: true })) {
-    const path = join(dir, entry.name);
-    latest = Math.max(latest, entry.isDirectory() ? newest(path) : statSync(path).mtimeMs);
-  }
-  return latest;
-}
-
-/** Builds the workbench unless dist/workbench is newer than everything it is built from. */
+/** Builds the workbench when its inputs changed since it was built (scripts/build.mjs: content, not time stamps). */
 export function ensureBuilt(log = () => undefined) {
-  const sources = [join(ROOT, 'src'), join(ROOT, 'assembly'), join(ROOT, 'scenarios')];
-  const inputs = Math.max(...sources.map(newest), statSync(join(ROOT, 'index.html')).mtimeMs, statSync(join(ROOT, 'vite.config.ts')).mtimeMs);
-  if (existsSync(BUILT) && statSync(BUILT).mtimeMs >= inputs && existsSync(join(ROOT, 'build/pronk.wasm'))) return;
-  log('building the workbench (sources are newer than dist/workbench)');
-  if (!existsSync(join(ROOT, 'build/pronk.wasm'))) run('npm', ['run', 'build:wasm']);
-  run(process.execPath, [VITE, 'build', '--logLevel', 'warn']);
+  const check = spawnSync(process.execPath, ['scripts/build.mjs', 'ui', '--check'], { cwd: ROOT, encoding: 'utf8', env: cleanEnv() });
+  if (check.status === 0 && check.stdout.trim() === '') return;
+  log('building the workbench (its sources changed since the last build)');
+  run(process.execPath, ['scripts/build.mjs', 'ui']);
 }
 
 // The build and the server must not see the test runner's environment: with VITEST set, the

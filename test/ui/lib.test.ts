@@ -35,7 +35,7 @@ describe('draft paths', () => {
     expect(draft.constraints).toEqual({ leg_angle_range_deg: {} });
   });
 
-  it('name the unit of a field from its name (design/CONTRACT.md: the unit is in every field name)', () => {
+  it('name the unit of a field from its name (docs/contract.md: the unit is in every field name)', () => {
     expect(unitOfPath('policy.angle.rate_deg_per_s')).toBe('°/s');
     expect(unitOfPath('policy.angle.attack_deg[2]')).toBe('°');
     expect(unitOfPath('body.leg_damping_N_s_per_m')).toBe('N·s/m');

@@ -20,7 +20,7 @@
 // The angle from the conserved angular momentum to first order in ρ:
 //   ψ' = ω0 (1 + ρ/L0)^-2 ≈ ω0 (1 - 2ρ/L0)  =>  ψ(t) = ψ0 + ω0 t - (2 ω0 / L0) ∫0^t ρ dτ,
 //   ∫0^t ρ = (a/ω̂²)(t - sin(ω̂t)/ω̂) + (ṙ0/ω̂²)(1 - cos ω̂t).
-// This is the form the project's REFERENCES.md recalls from the paper. With one stiffness the
+// This is the paper's form as recalled (docs/references.md), re-derived here. With one stiffness the
 // solution is symmetric about maximum compression (a linear oscillator under a constant force),
 // so liftoff (ρ = 0 again) is at tan(ω̂ t_c / 2) = -ṙ0 ω̂ / a and the radial speed reverses.
 // A split stiffness (kc until maximum compression, ke after) uses the same solution piecewise:

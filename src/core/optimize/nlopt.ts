@@ -42,7 +42,7 @@ export interface MethodInfo {
   summary: string;
 }
 
-/** Derivative-free methods offered in studies (NLopt names; references in REFERENCES.md). */
+/** Derivative-free methods offered in studies (NLopt names; references in docs/references.md). */
 export const METHODS: Record<MethodName, MethodInfo> = {
   COBYLA: { algorithm: 'LN_COBYLA', global: false, constraints: true, needsLocal: false, summary: 'local, linear approximations, constraints (Powell 1994)' },
   BOBYQA: { algorithm: 'LN_BOBYQA', global: false, constraints: false, needsLocal: false, summary: 'local, quadratic models, bounds only (Powell 2009)' },

@@ -1,6 +1,6 @@
 // What the editors show: every field's path in the file, its label and its unit, and the kinds
 // of each policy, terrain and objective term with the values a switch of kind starts from. Paths
-// and units follow design/CONTRACT.md; nothing here checks values (the validators do).
+// and units follow docs/contract.md; nothing here checks values (the validators do).
 
 import { getAt } from './draft.js';
 import {
@@ -316,7 +316,7 @@ export function numericPaths(scenario: unknown): string[] {
   return out.filter((p) => !p.startsWith('integrator.') && p !== 'strides' && !p.endsWith('.seed'));
 }
 
-/** The unit of a scenario path, from its name (design/CONTRACT.md: every field carries its unit). */
+/** The unit of a scenario path, from its name (docs/contract.md: every field carries its unit). */
 export function unitOfPath(path: string): string {
   const name = path.replace(/\[\d+\]$/, '').split('.').pop() ?? '';
   const units: [RegExp, string][] = [
