@@ -1,12 +1,14 @@
 // Pronk as a library: `import { simulate, returnMap, basin, robustness, optimize, exportPolicy }
 // from 'pronk'`. The same analyses as the `pronk` command, on the same validators: every function
 // takes a scenario or study as plain JSON (an object read from a file, or built in code), checks
-// it, and returns the plain data that `pronk <command> --json` prints. Bad input throws an
+// it, and returns the plain data that `pronk <command> --json` prints (format, format_version,
+// model and section first; src/core/json-output.ts). Bad input throws an
 // InputError whose `issues` name each field, what was expected and what was found.
 //
 // Node only for basin, robustness and optimize (worker threads); simulate, returnMap and
 // exportPolicy run wherever the WASM kernel loads.
 
+import { described, type Described } from './core/json-output.js';
 import { parseScenario } from './core/scenario.js';
 import type { SimulateOptions, SimulationResult } from './core/simulate.js';
 import type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-map.js';
@@ -22,6 +24,7 @@ export { PRONK_VERSION } from './core/version.js';
 export { demoScenario, parseScenario, readScenarioFile, type Scenario } from './core/scenario.js';
 export { parseStudy, readStudyFile, type Study } from './core/optimize/study.js';
 export { jsonSchema, JSON_SCHEMA_NAMES, type JsonSchemaName } from './core/json-schemas.js';
+export type { Described, JsonHeader } from './core/json-output.js';
 export type { SimulateOptions, SimulationResult } from './core/simulate.js';
 export type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-map.js';
 export type { BasinOptions, BasinResult, BasinRunControl } from './core/analysis/basin.js';
@@ -30,33 +33,33 @@ export type { OptimizationResult, SearchOptions } from './core/optimize/search.j
 export type { ExportOptions, PolicyExport } from './core/export/build.js';
 
 /** One rollout of a scenario, stride by stride (`pronk simulate --json`). */
-export async function simulate(scenario: unknown, options: SimulateOptions = {}): Promise<SimulationResult> {
+export async function simulate(scenario: unknown, options: SimulateOptions = {}): Promise<Described<SimulationResult>> {
   const checked = parseScenario(scenario);
   const { simulate: run } = await import('./core/simulate.js');
-  return run(checked, options);
+  return described('simulate', await run(checked, options));
 }
 
 /** The apex return map at the scenario's energy: fixed points, slopes, eigenvalues (`pronk map --json`). */
-export async function returnMap(scenario: unknown, options: ReturnMapOptions = {}): Promise<ReturnMapResult> {
+export async function returnMap(scenario: unknown, options: ReturnMapOptions = {}): Promise<Described<ReturnMapResult>> {
   const checked = parseScenario(scenario);
   const { apexReturnMap } = await import('./core/analysis/return-map.js');
-  return apexReturnMap(checked, options);
+  return described('map', await apexReturnMap(checked, options));
 }
 
 /** The basin of attraction on flat ground (`pronk basin --json`); `workers` threads, all cores by default. */
-export async function basin(scenario: unknown, options: BasinOptions & BasinRunControl = {}): Promise<BasinResult> {
+export async function basin(scenario: unknown, options: BasinOptions & BasinRunControl = {}): Promise<Described<BasinResult>> {
   const checked = parseScenario(scenario);
   const { workers, onProgress, signal, runBatch, ...grid } = options;
   const { basinOfAttraction } = await import('./core/analysis/basin.js');
-  return basinOfAttraction(checked, grid, { workers, onProgress, signal, runBatch });
+  return described('basin', await basinOfAttraction(checked, grid, { workers, onProgress, signal, runBatch }));
 }
 
 /** Monte Carlo survival on random terrain with Wilson intervals (`pronk robustness --json`). */
-export async function robustness(scenario: unknown, options: RobustnessOptions & RobustnessExecution): Promise<RobustnessResult> {
+export async function robustness(scenario: unknown, options: RobustnessOptions & RobustnessExecution): Promise<Described<RobustnessResult>> {
   const checked = parseScenario(scenario);
   const { workers, onProgress, signal, runBatch, ...terms } = options;
   const { terrainRobustness } = await import('./core/analysis/robustness.js');
-  return terrainRobustness(checked, terms, { workers, onProgress, signal, runBatch });
+  return described('robustness', await terrainRobustness(checked, terms, { workers, onProgress, signal, runBatch }));
 }
 
 /**
@@ -103,7 +106,7 @@ export async function exportPolicy(source: unknown, options: ExportPolicyOptions
     const prefix = givenPrefix === undefined ? defaultPrefix(from.scenario.name) : checkPrefix(givenPrefix);
     const header = headerName ?? `${prefix}_policy.h`;
     const c = writeC(exported, prefix, header);
-    return { files: [{ name: header, text: c.header }, { name: header.replace(/\.h$/, '') + '.c', text: c.source }], export: exported };
+    return { files: [{ name: header, text: c.header }, { name: `${header.replace(/\.h$/, '')}.c`, text: c.source }], export: exported };
   }
   if (format === 'json') {
     const { writeJson } = await import('./core/export/json.js');

@@ -6,12 +6,12 @@
 // and runs the real engine; it is skipped until `npm run build` has produced dist/.
 
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { beforeEach, describe, expect, it, vi } from 'vitest';
-import { COMMANDS, main } from '../src/cli/main.js';
+import { COMMANDS, commandHelp, loadCommands, main, wrapUsage } from '../src/cli/main.js';
 import { InputError } from '../src/core/errors.js';
 import { SAFETY_CAUTION } from '../src/core/safety.js';
 import { demoScenario } from '../src/core/scenario.js';
@@ -84,6 +84,10 @@ function scenarioFile(name: string, content: unknown): string {
 }
 
 const noStackTrace = /^\s+at\s|Error:|\.ts:\d+|\.js:\d+/m;
+const LOADED = await loadCommands();
+const DEMO_NOTE = (command: string) => `pronk ${command}: no FILE given; running the built-in demo scenario (scenarios/demo.json)\n`;
+// Help is wrapped to the width: compare texts with their white space collapsed.
+const flat = (text: string) => text.replace(/\s+/g, ' ');
 
 describe('help', () => {
   it.each([['--help'], ['-h'], ['help']])('pronk %s lists the commands, exit 0', async (flag) => {
@@ -94,22 +98,61 @@ describe('help', () => {
     for (const command of COMMANDS) expect(run.stdout).toContain(`  ${command.name}`);
   });
 
-  for (const command of COMMANDS) {
+  for (const command of LOADED) {
     it.each([[command.name, '--help'], [command.name, '-h'], ['help', command.name], [command.name, '--help', '--no-such-option']])(
       'pronk %s %s prints usage with every option, exit 0',
       async (...args) => {
         const run = await pronk(args);
         expect(run.code).toBe(0);
         expect(run.stderr).toBe('');
-        expect(run.stdout).toContain(`Usage: pronk ${command.usage}`);
+        expect(flat(run.stdout)).toContain(flat(`Usage: pronk ${command.usage}`));
         for (const [name, spec] of Object.entries(command.options)) {
           expect(run.stdout).toContain(`--${name}`);
-          expect(run.stdout).toContain(spec.description);
+          expect(flat(run.stdout)).toContain(flat(spec.description));
         }
         expect(run.stdout).toContain('--help');
       },
     );
+
+    it(`pronk ${command.name}: every option is in the usage line, and the command list shows its own summary`, () => {
+      for (const name of Object.keys(command.options)) expect(command.usage, `--${name}`).toMatch(new RegExp(`--${name}\\b`));
+      expect(COMMANDS.find((entry) => entry.name === command.name)?.summary).toBe(command.summary);
+    });
   }
+
+  it.each([40, 60, 80, 132])('wraps every help text to the width (COLUMNS=%i), losing no word', async (width) => {
+    const texts = [(await pronk(['--help'], { COLUMNS: String(width) })).stdout];
+    for (const command of LOADED) texts.push((await pronk([command.name, '--help'], { COLUMNS: String(width) })).stdout);
+    for (const text of texts) {
+      // a line may overrun only when it is a single word (a long option group)
+      for (const line of text.split('\n')) if (line.length > width) expect(line.trim(), line).not.toMatch(/\s/);
+    }
+    for (const command of LOADED) expect(flat(commandHelp(command, width))).toBe(flat(commandHelp(command, 1000)));
+  });
+
+  it('wraps the usage line between option groups, never inside [--option VALUE]', () => {
+    const usage = wrapUsage('pronk basin [FILE] [--heights LO:HI:N] [--speeds LO:HI:N | --energy] --x PATH:LO:HI:N [--json]', 60);
+    expect(usage.split('\n')).toEqual([
+      'Usage: pronk basin [FILE] [--heights LO:HI:N]',
+      '                   [--speeds LO:HI:N | --energy]',
+      '                   --x PATH:LO:HI:N [--json]',
+    ]);
+  });
+
+  it('uses the terminal width when stdout is a terminal', async () => {
+    let stdout = '';
+    await main(['--help'], { stdout: { write: (c: string) => (stdout += c), isTTY: true, columns: 50 }, stderr: { write: () => true }, env: {} });
+    expect(Math.max(...stdout.split('\n').map((line) => line.length))).toBeLessThanOrEqual(50);
+    expect(stdout).toContain('Commands:');
+  });
+
+  it('pronk --version prints the package version', async () => {
+    const { version } = JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8'));
+    for (const flag of ['--version', '-V']) {
+      const run = await pronk([flag]);
+      expect(run).toEqual({ code: 0, stdout: `pronk ${version}\n`, stderr: '' });
+    }
+  });
 
   it('simulate --help describes FILE, --json and --strides N', async () => {
     const { stdout } = await pronk(['simulate', '--help']);
@@ -214,12 +257,12 @@ describe('internal errors exit 1', () => {
     const quiet = await pronk(['simulate', '--json']);
     expect(quiet.code).toBe(1);
     expect(quiet.stdout).toBe('');
-    expect(quiet.stderr).toBe('pronk: internal error: engine exploded (set PRONK_DEBUG=1 for a stack trace)\n');
+    expect(quiet.stderr).toBe(`${DEMO_NOTE('simulate')}pronk: internal error: engine exploded (set PRONK_DEBUG=1 for a stack trace)\n`);
 
     engine.simulate.mockRejectedValueOnce(new Error('engine exploded'));
     const debug = await pronk(['simulate', '--json'], { PRONK_DEBUG: '1' });
     expect(debug.code).toBe(1);
-    expect(debug.stderr).toMatch(/^pronk: internal error: engine exploded\n/);
+    expect(debug.stderr).toMatch(/^pronk: internal error: engine exploded\n/m);
     expect(debug.stderr).toMatch(/^\s+at /m);
   });
 });
@@ -265,12 +308,13 @@ describe('pronk simulate (stub engine)', () => {
     expect(run.stdout).toContain('Outcome: completed 3 strides.');
   });
 
-  it('--json prints the result as JSON and nothing else', async () => {
+  it('--json prints the result as JSON and nothing else; status lines stay on stderr', async () => {
     const run = await pronk(['simulate', '--json', '--strides', '2']);
     expect(run.code).toBe(0);
-    expect(run.stderr).toBe('');
-    expect(JSON.parse(run.stdout)).toEqual(engine.fakeResult(2));
-    expect(run.stdout).toBe(`${JSON.stringify(engine.fakeResult(2), null, 2)}\n`);
+    expect(run.stderr).toBe(DEMO_NOTE('simulate'));
+    const described = { format: 'pronk-simulate', format_version: 1, model: 'single_leg', section: 'apex', ...engine.fakeResult(2) };
+    expect(JSON.parse(run.stdout)).toEqual(described);
+    expect(run.stdout).toBe(`${JSON.stringify(described, null, 2)}\n`);
   });
 
   it('reads a scenario file', async () => {
@@ -351,8 +395,9 @@ describe.skipIf(!built)('node bin/pronk.js (built CLI, real engine)', () => {
   it('simulate --json runs the demo with the contract fields', () => {
     const run = spawnPronk(['simulate', '--json', '--strides', '3']);
     expect(run.code).toBe(0);
-    expect(run.stderr).toBe('');
+    expect(run.stderr).toBe(DEMO_NOTE('simulate'));
     const result = JSON.parse(run.stdout);
+    expect(result).toMatchObject({ format: 'pronk-simulate', format_version: 1, model: 'single_leg', section: 'apex' });
     expect(result.apexes).toHaveLength(4);
     expect(result.apexes[0]).toMatchObject({ height_m: 0.45, forward_speed_m_per_s: 3.35, time_s: 0 });
     for (const key of ['apex_to_touchdown_s', 'contact_s', 'stride_s', 'attack_deg', 'ground_height_m', 'peak_leg_force_N', 'max_compression_m', 'peak_friction_ratio']) {

@@ -112,7 +112,7 @@ describe('pronk deadbeat', () => {
     const result = join(directory, 'deadbeat-result.json');
     const run = pronk(['deadbeat', file, ...small, '--compare', '--rollouts', '40', '--workers', '2', '--out', result]);
     expect(run.code).toBe(0);
-    expect(run.stdout).toContain(`written to ${result}`);
+    expect(run.stderr).toContain(`pronk deadbeat: result written to ${result}`);
     expect(run.stdout).toMatch(/^ {2}deadbeat table +[>= \d.]+ +[\d.]+ +\d+\/40 /m);
     expect(run.stdout).toMatch(/^ {2}best fixed angle /m);
     expect(run.stdout).toMatch(/^ {2}best retraction /m);

@@ -112,8 +112,10 @@ describe.skipIf(!built)('the packed package, installed in an empty project', () 
   it('the installed pronk command runs', () => {
     const bin = join(app, 'node_modules', '.bin', 'pronk');
     const out = spawnSync(bin, ['simulate', '--strides', '2', '--json'], { cwd: app, encoding: 'utf8' });
-    expect(out.stderr).toBe('');
+    expect(out.stderr).toBe('pronk simulate: no FILE given; running the built-in demo scenario (scenarios/demo.json)\n');
     expect(out.status).toBe(0);
-    expect(JSON.parse(out.stdout).outcome.strides_completed).toBe(2);
+    expect(JSON.parse(out.stdout)).toMatchObject({ format: 'pronk-simulate', outcome: { strides_completed: 2 } });
+    const version = spawnSync(bin, ['--version'], { cwd: app, encoding: 'utf8' });
+    expect(version.stdout).toBe(`pronk ${JSON.parse(readFileSync(join(root, 'package.json'), 'utf8')).version}\n`);
   });
 });

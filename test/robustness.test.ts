@@ -4,6 +4,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { described, jsonText } from '../src/core/json-output.js';
 import { main } from '../src/cli/main.js';
 import {
   canonicalRobustnessOptions,
@@ -268,7 +269,8 @@ describe('pronk robustness', () => {
       expect(out).toHaveProperty(key);
     }
     const scenarioRead = { ...fixed68, name: 'Seyfarth 2002 body' };
-    expect(out).toEqual(JSON.parse(JSON.stringify(await terrainRobustness(scenarioRead, { rollouts: 60, sigma_m: 0.005, seed: 4, strides: 8 }))));
+    const core = await terrainRobustness(scenarioRead, { rollouts: 60, sigma_m: 0.005, seed: 4, strides: 8 });
+    expect(out).toEqual(JSON.parse(JSON.stringify(described('robustness', core))));
   });
 
   it('--shard i/n --out writes partial results that join to the one-machine --json', async () => {
@@ -286,7 +288,7 @@ describe('pronk robustness', () => {
     const merged = await finishRobustness(parseScenario(joined.scenario), joined.options as unknown as RobustnessOptions, joined.rows as never);
     const whole = await pronk(['robustness', ...args, '--json']);
     expect(whole.code).toBe(0);
-    expect(`${JSON.stringify(merged, null, 2)}\n`).toBe(whole.stdout);
+    expect(jsonText('robustness', merged)).toBe(whole.stdout);
   });
 
   it('the terminal report shows the survival with its interval, the failures and the caution', async () => {

@@ -4,6 +4,7 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { jsonText } from '../src/core/json-output.js';
 import { main } from '../src/cli/main.js';
 import { apexReturnMap } from '../src/core/analysis/return-map.js';
 import { axisValues, finishScan, parseAxisOption, scan, scanShard, type ScanCell, type ScanOptions } from '../src/core/analysis/scan.js';
@@ -173,7 +174,7 @@ describe('pronk scan', () => {
     }
     const joined = joinShards(parts);
     const merged = await finishScan(joined.scenario, joined.options, joined.rows);
-    expect(`${JSON.stringify(merged, null, 2)}\n`).toBe(run.stdout);
+    expect(jsonText('scan', merged)).toBe(run.stdout);
   });
 
   it('prints the stability map as characters', async () => {

@@ -4,7 +4,9 @@
 import { scenarioArgument } from './scenario-argument.js';
 import type { BasinOptions, BasinResult, BasinRunOptions, GridAxis } from '../core/analysis/basin.js';
 import { InputError, describeFound } from '../core/errors.js';
-import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { jsonText } from '../core/json-output.js';
+import { startProgress } from './progress.js';
+import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, writePartial, writeText } from './shard-output.js';
@@ -75,7 +77,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const plot = await plotOption(values.plot, { shard: shard !== undefined, out });
 
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'basin', json || shard !== undefined);
+  const scenario = await scenarioArgument(file, io, 'basin');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const core = await import('../core/analysis/basin.js');
@@ -86,10 +88,10 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
     throw error instanceof InputError ? renameOptionIssues(error) : error;
   }
   const total = core.basinCellCount(run);
-  const progress = progressReporter(io);
   const range = shard ? (await import('../core/shard.js')).shardRange(total, shard) : { start: 0, end: total };
-  const rows = await core.basinRows(scenario, run, range, { workers, onProgress: progress.update });
-  progress.done();
+  const progress = startProgress(io, 'basin', { unit: 'rollouts' });
+  const onProgress = (done: number, cells: number) => progress.update(done, cells);
+  const rows = await core.basinRows(scenario, run, range, { workers, onProgress }).finally(progress.done);
 
   if (shard) {
     const options = run as unknown as Record<string, unknown>;
@@ -98,14 +100,14 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
     return 0;
   }
   const result = await core.finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
-  await writeText(io, out, json ? basinJson(result) : renderBasin(scenario, result));
+  await writeText(io, out, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
   if (plot !== undefined) await writePlot(io.stderr, 'basin', plot, result);
   return 0;
 }
 
 /** The --json text of a basin result (also what `pronk merge --json` prints). */
 export function basinJson(result: BasinResult): string {
-  return `${JSON.stringify(result, null, 2)}\n`;
+  return jsonText('basin', result);
 }
 
 // The core names its options by their API names; on the command line they are the flags.
@@ -160,25 +162,6 @@ function parseToleranceOption(value: string | boolean | undefined): number | und
     throw new InputError([{ path: '--tolerance', expected: 'a number > 0 (m in height, m/s in speed)', found: describeFound(value) }], { source: SOURCE });
   }
   return tolerance;
-}
-
-// Progress on stderr, only on a terminal, rewritten in place at most once per percent.
-function progressReporter(io: CliIO): { update?: (done: number, total: number) => void; done: () => void } {
-  if (!io.stderr.isTTY) return { done: () => {} };
-  let shown = -1;
-  let wrote = false;
-  return {
-    update: (done, total) => {
-      const percent = Math.floor((100 * done) / total);
-      if (percent === shown) return;
-      shown = percent;
-      wrote = true;
-      io.stderr.write(`\rpronk basin: ${done} of ${total} rollouts (${percent}%)`);
-    },
-    done: () => {
-      if (wrote) io.stderr.write('\r\x1b[K');
-    },
-  };
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -1,5 +1,5 @@
 // `pronk deadbeat [FILE] --ground LO:HI [--mode M] [--knots N] [--tolerance M] [--attack-range LO:HI]
-// [--compare [--sigma S] [--rollouts R] [--seed N] [--after N] [--rate-range LO:HI]] [--json] [--out RESULT]`:
+// [--compare [--sigma S] [--rollouts R] [--seed N] [--after N] [--rate-range LO:HI] [--workers N]] [--json] [--out RESULT]`:
 // a one-step deadbeat table on time since apex (src/core/synthesis/deadbeat.ts), optionally
 // compared with the best fixed-angle and retraction policies (src/core/synthesis/compare.ts).
 
@@ -8,7 +8,9 @@ import type { ComparisonOptionNames, ComparisonOptions, DeadbeatComparison, Dead
 import type { DeadbeatMode, DeadbeatOptions, DeadbeatTable } from '../core/synthesis/deadbeat.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { jsonText } from '../core/json-output.js';
+import { startProgress, type Progress } from './progress.js';
+import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './robustness.js';
@@ -47,7 +49,7 @@ export const deadbeatCommand: Command = {
   summary: 'one-step deadbeat table of attack angle (and extension stiffness) on time since apex, for unknown ground height',
   usage:
     'deadbeat [FILE] --ground LO:HI [--mode angle|angle_and_stiffness] [--knots N] [--tolerance M] [--attack-range LO:HI] ' +
-    '[--compare [--sigma S] [--rollouts R] [--seed N] [--after N] [--rate-range LO:HI]] [--json] [--out RESULT]',
+    '[--after N] [--compare [--sigma S] [--rollouts R] [--seed N] [--rate-range LO:HI] [--workers N]] [--json] [--out RESULT]',
   details: [
     "From the scenario's start apex (the target), the fall time to touchdown maps one-to-one onto the ground height met",
     '(Ernst, Geyer & Blickhan 2009; Wu & Geyer 2013). For each ground height in LO:HI the attack angle (and with',
@@ -199,12 +201,28 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
   const json = values.json === true;
   const flags = parseDeadbeatFlags(values);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'deadbeat', json);
+  const scenario = await scenarioArgument(file, io, 'deadbeat');
+  const progress = startProgress(io, 'deadbeat', { unit: 'rollouts' });
+  try {
+    return await deadbeatWithProgress(scenario, flags, json, io, progress);
+  } finally {
+    progress.done();
+  }
+}
+
+async function deadbeatWithProgress(
+  scenario: Scenario,
+  flags: Flags,
+  json: boolean,
+  io: CliIO,
+  progress: Progress,
+): Promise<number> {
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { synthesizeDeadbeat } = await import('../core/synthesis/deadbeat.js');
   const { compareDeadbeat, deadbeatLoads, deadbeatResult, tableStepCheck } = await import('../core/synthesis/compare.js');
   const { PRONK_VERSION, contentHash } = await import('../core/version.js');
   let deadbeat: DeadbeatTable;
+  progress.phase('solving the table');
   try {
     deadbeat = await synthesizeDeadbeat(scenario, flags.synthesis);
   } catch (error) {
@@ -216,6 +234,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
       { source: SOURCE },
     );
   }
+  progress.phase('checking the table on steps');
   const stepCheck = deadbeat.knots.length ? await tableStepCheck(scenario, deadbeat, flags.after) : null;
   let comparison: DeadbeatComparison | null = null;
   let comparisonSkipped: string | null = null;
@@ -223,9 +242,13 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
     if (deadbeat.knots.length === 0) {
       comparisonSkipped = 'no knot was solved, so there is no table to compare';
     } else {
-      const { defaultWorkers } = await import('../worker/pool.js');
+      const { defaultWorkers, runBatchParallel } = await import('../worker/pool.js');
+      const workers = flags.workers ?? defaultWorkers();
+      progress.phase('comparing with the best fixed angle and retraction');
+      const onProgress = (done: number, total: number) => progress.update(done, total);
+      const runBatch = (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers, onProgress });
       try {
-        comparison = await compareDeadbeat(scenario, deadbeat, { ...flags.comparison, workers: flags.workers ?? defaultWorkers() }, COMPARE_FLAGS);
+        comparison = await compareDeadbeat(scenario, deadbeat, { ...flags.comparison, workers, runBatch }, COMPARE_FLAGS);
       } catch (error) {
         if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
         throw error;
@@ -236,7 +259,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
   const options = { synthesis: flags.synthesis, after: flags.after, comparison: flags.comparison };
   if (flags.out !== undefined) {
     const result = await deadbeatResult(scenario, deadbeat, { stepCheck, comparison }, options);
-    await writeText(io, flags.out, `${JSON.stringify(result, null, 2)}\n`);
+    await writeText(io, flags.out, `${JSON.stringify(result, null, 2)}\n`, 'deadbeat');
   }
   if (json) {
     const output = {
@@ -250,7 +273,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
       options,
       caution: SAFETY_CAUTION,
     };
-    io.stdout.write(`${JSON.stringify(output, null, 2)}\n`);
+    io.stdout.write(jsonText('deadbeat', output));
   } else {
     io.stdout.write(renderDeadbeat(scenario, deadbeat, { loads, stepCheck, comparison }, { options: flags.synthesis, out: flags.out, comparisonSkipped }));
   }
@@ -362,7 +385,6 @@ export function renderDeadbeat(
   if (stepCheck) parts.push(renderStepCheck(stepCheck), '');
   if (comparison) parts.push(renderComparison(comparison), '');
   if (extra.comparisonSkipped) parts.push(`Comparison skipped: ${extra.comparisonSkipped}.`, '');
-  if (extra.out) parts.push(`Result file (policy, table, provenance) written to ${extra.out}.`, '');
   parts.push(wrap(SAFETY_CAUTION, TEXT_WIDTH, 'Caution: ', '  '), '');
   return parts.join('\n');
 }

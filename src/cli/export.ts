@@ -3,6 +3,7 @@
 // a policy written as tables firmware can run (src/core/export/).
 
 import { InputError, describeFound } from '../core/errors.js';
+import { jsonText } from '../core/json-output.js';
 import { buildExport, describeGrid, EXPORT_CAUTION, T_MAX_RANGE_S, type PolicyExport } from '../core/export/build.js';
 import { checkPrefix, defaultPrefix, writeC } from '../core/export/c99.js';
 import { writeCsv } from '../core/export/csv.js';
@@ -165,14 +166,14 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
     await write(flags.out, writeCsv(exported), 'CSV: one row per grid point, float64, # comment lines');
   }
   const report = exportReport(exported, flags.format, written, prefix);
-  io.stdout.write(json ? `${JSON.stringify(report, null, 2)}\n` : renderExport(exported, flags.format, written, prefix));
+  io.stdout.write(json ? jsonText('export', report) : renderExport(exported, flags.format, written, prefix));
   return 0;
 }
 
 export function exportReport(e: PolicyExport, format: Format, written: Written[], prefix: string | undefined) {
   const axis = e.grid.axes[0].points;
   return {
-    format,
+    file_format: format, // `format` is the report's own (pronk-export)
     written,
     ...(prefix === undefined ? {} : { prefix }),
     source: {

@@ -5,8 +5,9 @@
 import { scenarioArgument } from './scenario-argument.js';
 import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map.js';
 import { InputError, describeFound } from '../core/errors.js';
-import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
+import { jsonText } from '../core/json-output.js';
 import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -50,7 +51,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
   const plot = await plotOption(values.plot);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'map', json);
+  const scenario = await scenarioArgument(file, io, 'map');
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { apexReturnMap } = await import('../core/analysis/return-map.js');
   let result: ReturnMapResult;
@@ -64,7 +65,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
     if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
     throw error;
   }
-  io.stdout.write(json ? `${JSON.stringify(result, null, 2)}\n` : renderMap(scenario, result));
+  io.stdout.write(json ? jsonText('map', result) : renderMap(scenario, result));
   if (plot !== undefined) await writePlot(io.stderr, 'map', plot, result);
   return 0;
 }

@@ -62,7 +62,7 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
   if (!load) throw new Error(`no view for the merged command ${merged.command}`);
   const view = await load();
   const text = values.json === true ? view.json(merged.result) : view.text(merged.scenario, merged.result);
-  await writeText(io, out, text);
+  await writeText(io, out, text, 'merge');
   if (plot !== undefined) await writePlot(io.stderr, merged.command, plot, merged.result, `pronk merge (${merged.command})`);
   return 0;
 }

@@ -8,6 +8,7 @@ import type { OptimizationResult, SearchProgress } from '../core/optimize/search
 import { readStudyFile, type Study } from '../core/optimize/study.js';
 import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
+import { startProgress, status } from './progress.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
@@ -49,17 +50,17 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   const { optimizeStudy } = await import('../core/optimize/search.js');
   const controller = new AbortController();
   const onSigint = () => {
-    io.stderr.write('\npronk optimize: stopping (the best point so far will be reported)\n');
+    status(io, 'optimize', 'stopping (the best point so far will be reported)');
     controller.abort();
   };
   process.once('SIGINT', onSigint);
-  const bar = progressBar(io);
+  const progress = startProgress(io, 'optimize', { unit: 'evaluations' });
   let result: OptimizationResult;
   try {
-    result = await optimizeStudy(study, { workers, signal: controller.signal, onProgress: bar.update });
+    result = await optimizeStudy(study, { workers, signal: controller.signal, onProgress: (p) => progress.update(p.evaluations, p.budget, searchDetail(p)) });
   } finally {
     process.off('SIGINT', onSigint);
-    bar.done();
+    progress.done();
   }
   const text = `${JSON.stringify(result, null, 2)}\n`;
   if (out !== undefined) {
@@ -71,7 +72,7 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
         { source: SOURCE },
       );
     }
-    if (!json) io.stderr.write(`pronk optimize: wrote the result file ${out}\n`);
+    status(io, 'optimize', `result written to ${out}`);
   }
   io.stdout.write(json ? text : renderOptimization(study, result));
   if (plot !== undefined) await writePlot(io.stderr, 'optimize', plot, result);
@@ -87,30 +88,11 @@ function parseWorkers(value: string | boolean | undefined): number | undefined {
   return n;
 }
 
-// A one-line progress bar on a terminal's stderr, redrawn at most ten times a second.
-function progressBar(io: CliIO): { update?: (p: SearchProgress) => void; done: () => void } {
-  if (!io.stderr.isTTY) return { done: () => {} };
-  let last = 0;
-  let drawn = false;
-  return {
-    update: (p) => {
-      const now = Date.now();
-      if (now - last < 100 && p.restartsDone < p.restarts) return;
-      last = now;
-      const width = 24;
-      const filled = Math.min(width, Math.round((width * p.evaluations) / Math.max(1, p.budget)));
-      const point = p.x.map((v) => fixed(v, 3)).join(', ');
-      const best = Number.isFinite(p.best) ? fixed(p.best, 5) : '-';
-      io.stderr.write(
-        `\r[${'#'.repeat(filled)}${'.'.repeat(width - filled)}] ${p.evaluations}/${p.budget} evaluations, ` +
-          `restarts ${p.restartsDone}/${p.restarts}, best ${best} at (${point})\u001b[K`,
-      );
-      drawn = true;
-    },
-    done: () => {
-      if (drawn) io.stderr.write('\n');
-    },
-  };
+// The progress line's detail: restarts finished and the best point so far.
+function searchDetail(p: SearchProgress): string {
+  const point = p.x.map((v) => fixed(v, 3)).join(', ');
+  const best = Number.isFinite(p.best) ? fixed(p.best, 5) : '-';
+  return `restarts ${p.restartsDone}/${p.restarts} done, best ${best} at (${point})`;
 }
 
 const pct = (x: number) => `${fixed(100 * x, 1)} %`;

@@ -3,6 +3,8 @@
 
 import { scenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
+import { jsonText } from '../core/json-output.js';
+import { startProgress } from './progress.js';
 import type {
   CanonicalRobustnessOptions,
   RandomTerrainKind,
@@ -11,7 +13,7 @@ import type {
   RobustnessResult,
 } from '../core/analysis/robustness.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
@@ -37,7 +39,7 @@ const FLAG_NAMES: RobustnessOptionNames = {
 export const robustnessCommand: Command = {
   name: 'robustness',
   summary: 'Monte Carlo survival on seeded random terrain: survival with its Wilson 95 % interval, failures, apex RMS',
-  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--workers N] [--shard I/N] [--plot FILE.svg] [--json]',
+  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--target-height M] [--target-speed V] [--workers N] [--shard I/N] [--out FILE] [--plot FILE.svg] [--json]',
   details:
     "Runs R rollouts of the scenario's strides from its start apex on random terrain that replaces the scenario's own: " +
     'rollout r runs on terrain stream r of the seed, so the same seed gives the same terrains to every policy compared ' +
@@ -84,7 +86,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const out = outOption(values);
   const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'robustness', json || spec !== undefined);
+  const scenario = await scenarioArgument(file, io, 'robustness');
   const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
   try {
@@ -94,11 +96,12 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
     throw error;
   }
   const { defaultWorkers } = await import('../worker/pool.js');
-  const execution = { workers: workers ?? defaultWorkers() };
+  const progress = startProgress(io, 'robustness', { unit: 'rollouts' });
+  const execution = { workers: workers ?? defaultWorkers(), onProgress: (done: number, total: number) => progress.update(done, total) };
 
   if (spec !== undefined) {
     const range = shardRange(canonical.rollouts, spec);
-    const rows = await robustnessRows(scenario, canonical, range, execution);
+    const rows = await robustnessRows(scenario, canonical, range, execution).finally(progress.done);
     const partial = await makePartial({
       command: 'robustness',
       scenario,
@@ -112,10 +115,10 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
     return 0;
   }
 
-  const rows = await robustnessRows(scenario, canonical, undefined, execution);
+  const rows = await robustnessRows(scenario, canonical, undefined, execution).finally(progress.done);
   const result = await finishRobustness(scenario, canonical, rows);
   const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
-  await writeText(io, out, text);
+  await writeText(io, out, text, 'robustness');
   if (plot !== undefined) await writePlot(io.stderr, 'robustness', plot, result);
   return 0;
 }
@@ -180,7 +183,7 @@ export function parseNumberOption(
 
 /** The --json text. */
 export function robustnessJson(result: RobustnessResult): string {
-  return `${JSON.stringify(result, null, 2)}\n`;
+  return jsonText('robustness', result);
 }
 
 const TEXT_WIDTH = 96;

@@ -5,7 +5,9 @@
 import { scenarioArgument } from './scenario-argument.js';
 import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
 import { InputError, UsageError } from '../core/errors.js';
-import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { jsonText } from '../core/json-output.js';
+import { startProgress } from './progress.js';
+import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { fields, fixed, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -63,18 +65,22 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   );
 
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'scan', json || shard !== undefined);
+  const scenario = await scenarioArgument(file, io, 'scan');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { runBatchParallel, defaultWorkers } = await import('../worker/pool.js');
-  const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: workers ?? defaultWorkers() }) };
+  // A scan runs several batches (the sampled maps, then the fixed points' polish and slopes): the
+  // progress shows the batch under way; the first, the sampling, is most of the work.
+  const progress = startProgress(io, 'scan', { unit: 'rollouts' });
+  const onProgress = (done: number, total: number) => progress.update(done, total);
+  const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: workers ?? defaultWorkers(), onProgress }) };
   if (shard) {
-    const partial = await withSourceAsync(() => core.scanShard(scenario, options, shard, run));
+    const partial = await withSourceAsync(() => core.scanShard(scenario, options, shard, run)).finally(progress.done);
     await writePartial(io, values, partial);
     return 0;
   }
-  const result = await withSourceAsync(() => core.scan(scenario, options, run));
-  await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result));
+  const result = await withSourceAsync(() => core.scan(scenario, options, run)).finally(progress.done);
+  await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result), 'scan');
   if (plot !== undefined) await withSourceAsync(() => writePlot(io.stderr, 'scan', plot, result));
   return 0;
 }
@@ -99,7 +105,7 @@ async function withSourceAsync<T>(f: () => Promise<T>): Promise<T> {
 
 /** The --json text of a scan result (also what `pronk merge --json` prints). */
 export function scanJson(result: ScanResult): string {
-  return `${JSON.stringify(result, null, 2)}\n`;
+  return jsonText('scan', result);
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -1,12 +1,15 @@
 // The FILE argument every scenario command takes: a scenario file, or without it the built-in
-// demo (said on stderr unless the output is machine-readable).
-import { demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+// demo (said in a status line on stderr; stdout holds the result only).
+import type { Scenario } from '../core/scenario.js';
 import type { CliIO } from './main.js';
+import { status } from './progress.js';
 
 export const DEMO_SOURCE = 'scenarios/demo.json';
 
-export async function scenarioArgument(file: string | undefined, io: CliIO, command: string, quiet: boolean): Promise<Scenario> {
+export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
+  // loaded here, not with the command, so that `pronk COMMAND --help` never waits for the validators
+  const { demoScenario, readScenarioFile } = await import('../core/scenario.js');
   if (file !== undefined) return readScenarioFile(file);
-  if (!quiet) io.stderr.write(`pronk ${command}: no FILE given; running the built-in demo scenario (${DEMO_SOURCE})\n`);
+  status(io, command, `no FILE given; running the built-in demo scenario (${DEMO_SOURCE})`);
   return demoScenario();
 }

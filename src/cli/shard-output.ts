@@ -3,6 +3,7 @@
 // every command that can be sharded (basin, scan, robustness).
 
 import { InputError } from '../core/errors.js';
+import { status } from './progress.js';
 import {
   PARTIAL_FORMAT,
   PARTIAL_FORMAT_VERSION,
@@ -91,14 +92,15 @@ export async function writePartial(io: CliIO, values: ParsedCommandLine['values'
   await writeText(io, out, text);
   if (out !== undefined) {
     const { index, count, start, end, total } = partial.shard;
-    io.stderr.write(
-      `pronk ${partial.command}: shard ${index}/${count} (items ${start} to ${end - 1} of ${total}) written to ${out}\n`,
-    );
+    status(io, partial.command, `shard ${index}/${count} (items ${start} to ${end - 1} of ${total}) written to ${out}`);
   }
 }
 
-/** Write `text` to the file `out`, or to stdout when `out` is undefined. */
-export async function writeText(io: CliIO, out: string | undefined, text: string): Promise<void> {
+/**
+ * Write `text` to the file `out`, or to stdout when `out` is undefined; with `command`, a file
+ * written is said in a status line on stderr.
+ */
+export async function writeText(io: CliIO, out: string | undefined, text: string, command?: string): Promise<void> {
   if (out === undefined) {
     io.stdout.write(text);
     return;
@@ -111,4 +113,5 @@ export async function writeText(io: CliIO, out: string | undefined, text: string
     const why = code === 'ENOENT' ? 'no such directory' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : error instanceof Error ? error.message : String(error);
     throw new InputError([{ path: '--out', expected: 'a writable file', found: JSON.stringify(out), message: `cannot write ${JSON.stringify(out)} (${why})` }]);
   }
+  if (command !== undefined) status(io, command, `result written to ${out}`);
 }

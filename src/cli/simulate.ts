@@ -5,14 +5,13 @@ import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import {
   MAX_STRIDES,
-  demoScenario,
-  readScenarioFile,
   type AnglePolicy,
   type Scenario,
   type StiffnessPolicy,
   type Terrain,
 } from '../core/scenario.js';
 import type { SimulationResult } from '../core/simulate.js';
+import { jsonText } from '../core/json-output.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
@@ -41,7 +40,7 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'simulate', json);
+  const scenario = await scenarioArgument(file, io, 'simulate');
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { simulate } = await import('../core/simulate.js');
   const result = await simulate(scenario, {
@@ -49,7 +48,7 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
     ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
   });
   if (json) {
-    io.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
+    io.stdout.write(jsonText('simulate', result));
   } else {
     io.stdout.write(renderSimulation(scenario, result, { stridesRequested: strides ?? scenario.strides }));
   }

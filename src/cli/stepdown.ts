@@ -6,7 +6,8 @@ import { InputError } from '../core/errors.js';
 import type { StepDirectionResult, StepToleranceOptionNames, StepToleranceResult } from '../core/analysis/stepdown.js';
 import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES } from '../core/analysis/stepdown.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { MAX_STRIDES, demoScenario, readScenarioFile, type Scenario } from '../core/scenario.js';
+import { jsonText } from '../core/json-output.js';
+import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './robustness.js';
@@ -26,7 +27,7 @@ const FLAG_NAMES: StepToleranceOptionNames = {
 export const stepdownCommand: Command = {
   name: 'stepdown',
   summary: 'largest single permanent drop and rise of the ground the policy survives, to 1 mm',
-  usage: 'stepdown [FILE] [--after N] [--resolution M] [--grid M] [--settle-strides N] [--json]',
+  usage: 'stepdown [FILE] [--after N] [--resolution M] [--grid M] [--settle-strides N] [--settle-band M] [--json]',
   details:
     "One permanent step of the ground, met at the first touchdown from the scenario's start apex, replaces the " +
     'scenario\'s terrain; the policy survives a step when it completes 1 + N strides. Step sizes are scanned on a coarse ' +
@@ -58,7 +59,7 @@ async function runStepdown({ values, positionals }: ParsedCommandLine, io: CliIO
   const settleStrides = parseIntegerOption(values['settle-strides'], '--settle-strides', 2, MAX_STRIDES, SOURCE);
   const settleBand = parseNumberOption(values['settle-band'], '--settle-band', 'a band > 0 (m)', SOURCE, positive);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'stepdown', json);
+  const scenario = await scenarioArgument(file, io, 'stepdown');
   const { stepTolerance } = await import('../core/analysis/stepdown.js');
   let result: StepToleranceResult;
   try {
@@ -77,7 +78,7 @@ async function runStepdown({ values, positionals }: ParsedCommandLine, io: CliIO
     if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
     throw error;
   }
-  io.stdout.write(json ? `${JSON.stringify(result, null, 2)}\n` : renderStepTolerance(scenario, result));
+  io.stdout.write(json ? jsonText('stepdown', result) : renderStepTolerance(scenario, result));
   return 0;
 }
 

@@ -15,6 +15,7 @@ import { z } from 'zod';
 import { InputError, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { parseJson, parseScenario, type Scenario } from '../scenario.js';
 import { contentHash } from '../version.js';
+import { MODEL_KIND } from '../json-output.js';
 import type { Policy } from './sample.js';
 
 export const RESULT_FORMAT = 'pronk-result';
@@ -84,6 +85,8 @@ export const resultSchema = z.object(
     format: z.literal(RESULT_FORMAT, { error: `"${RESULT_FORMAT}" (a result file; a scenario file has no format field)` }),
     format_version: z.literal(RESULT_FORMAT_VERSION, { error: String(RESULT_FORMAT_VERSION) }),
     kind: z.enum(RESULT_KINDS, { error: `one of ${RESULT_KINDS.join(', ')}` }),
+    // written since the result files said which model they describe; older files have none
+    model: z.literal(MODEL_KIND, { error: `"${MODEL_KIND}" (the model of this Pronk version)` }).optional(),
     scenario: z.unknown(),
     policy: z.unknown(),
     constraints: z.array(constraintSchema, { error: 'an array of constraints { name, value, limit, margin }' }).optional(),

@@ -1,6 +1,7 @@
 // The parts of a policy search that do not depend on where it runs (Node worker threads or
 // browser workers): the restarts' start points, the choice of the winner, and the result file.
 
+import { MODEL_KIND } from '../json-output.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { contentHash, PRONK_VERSION } from '../version.js';
 import type { StopReason, TracePoint } from './nlopt.js';
@@ -26,6 +27,8 @@ export interface OptimizationResult {
   format: 'pronk-result';
   format_version: 1;
   kind: 'optimization';
+  /** The model the policy was made for (see json-output.ts). */
+  model: typeof MODEL_KIND;
   /** The base scenario with the best parameters set (runs in `pronk simulate`). */
   scenario: unknown;
   policy: unknown;
@@ -122,6 +125,7 @@ export async function assembleResult(
     format: 'pronk-result',
     format_version: 1,
     kind: 'optimization',
+    model: MODEL_KIND,
     scenario: scores.scenario,
     policy: scores.scenario.policy,
     parameters: scores.paths.map((path, i) => ({

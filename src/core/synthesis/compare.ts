@@ -33,6 +33,7 @@ import {
 import { DEFAULT_AFTER, stepTolerance, type StepToleranceOptionNames } from '../analysis/stepdown.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
+import { MODEL_KIND } from '../json-output.js';
 import { MAX_STRIDES, parseScenario, type Scenario } from '../scenario.js';
 import { newcombeDifferenceInterval } from '../stats.js';
 import { PRONK_VERSION, contentHash } from '../version.js';
@@ -766,6 +767,8 @@ export interface DeadbeatResultFile {
   format: typeof RESULT_FORMAT;
   format_version: typeof RESULT_FORMAT_VERSION;
   kind: 'deadbeat';
+  /** The model the policy was made for (see json-output.ts). */
+  model: typeof MODEL_KIND;
   pronk_version: string;
   /** SHA-256 of the canonical JSON of `scenario`. */
   scenario_sha256: string;
@@ -808,6 +811,7 @@ export async function deadbeatResult(
     format: RESULT_FORMAT,
     format_version: RESULT_FORMAT_VERSION,
     kind: 'deadbeat',
+    model: MODEL_KIND,
     pronk_version: PRONK_VERSION,
     scenario_sha256: scenarioSha256,
     created: created.toISOString(),

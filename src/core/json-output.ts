@@ -1,0 +1,40 @@
+// What every `--json` output (and every result the library returns) says about itself, before
+// its own fields: which output it is and in which version of its layout (`format`,
+// `format_version`), and which model and section its numbers describe (`model`, `section`), so a
+// script never has to guess what `apex_height_m` or a fixed point's state means.
+//
+//   format          "pronk-<command>": pronk-simulate, pronk-map, pronk-scan, pronk-basin,
+//                   pronk-stepdown, pronk-robustness, pronk-deadbeat, pronk-export. Files keep
+//                   their own formats: pronk-result (optimize, deadbeat --out), pronk-partial
+//                   (--shard), pronk-policy (export --format json).
+//   format_version  1; raised only when a field is renamed or changes meaning (adding fields
+//                   does not raise it).
+//   model           "single_leg": the spring-mass runner on one massless leg (the scenario files
+//                   of today; a future model kind gets its own name).
+//   section         "apex": strides run from one flight apex to the next, and maps, basins and
+//                   fixed points are taken at the apex (height and forward speed).
+
+export const JSON_FORMAT_VERSION = 1;
+export const MODEL_KIND = 'single_leg';
+export const SECTION = 'apex';
+
+export type JsonCommand = 'simulate' | 'map' | 'scan' | 'basin' | 'stepdown' | 'robustness' | 'deadbeat' | 'export';
+
+export interface JsonHeader {
+  format: `pronk-${JsonCommand}`;
+  format_version: typeof JSON_FORMAT_VERSION;
+  model: typeof MODEL_KIND;
+  section: typeof SECTION;
+}
+
+export type Described<T> = JsonHeader & T;
+
+/** The result with its header first. */
+export function described<T extends object>(command: JsonCommand, result: T): Described<T> {
+  return { format: `pronk-${command}`, format_version: JSON_FORMAT_VERSION, model: MODEL_KIND, section: SECTION, ...result };
+}
+
+/** The `--json` text: the described result, 2-space indented, with a final newline. */
+export function jsonText(command: JsonCommand, result: object): string {
+  return `${JSON.stringify(described(command, result), null, 2)}\n`;
+}
