@@ -9,6 +9,8 @@ import {
   ANGLE_FIXED, ANGLE_RETRACTION, STIFFNESS_CONSTANT, STIFFNESS_SPLIT,
 } from "./layout";
 
+const HALF_PI: f64 = 1.5707963267948966;
+
 @inline export function mget(model: usize, field: i32): f64 {
   return load<f64>(model + (<usize>field << 3));
 }
@@ -77,6 +79,42 @@ export function angleBreakpoints(model: usize, dst: usize, maxCount: i32): i32 {
     if (t > 0.0) { store<f64>(dst + (<usize>n << 3), t); n++; }
   }
   return n;
+}
+
+// d attack / dt of the schedule at time t since the apex, rad/s (0 where it is held or clamped);
+// t should lie inside a piece between breakpoints, where the rate is constant.
+export function angleRateAt(model: usize, t: f64): f64 {
+  const kind = <i32>mget(model, M_ANGLE_KIND);
+  if (kind == ANGLE_FIXED) return 0.0;
+  if (kind == ANGLE_RETRACTION) {
+    const w = mget(model, M_RETRACTION_RATE);
+    const a = mget(model, M_ATTACK) + w * t;
+    return a < mget(model, M_ANGLE_MIN) || a > mget(model, M_ANGLE_MAX) ? 0.0 : w;
+  }
+  const tPtr = <usize>mget(model, M_ANGLE_TABLE_T);
+  const aPtr = <usize>mget(model, M_ANGLE_TABLE_A);
+  const n = <i32>mget(model, M_ANGLE_TABLE_N);
+  if (t <= at(tPtr, 0) || t >= at(tPtr, n - 1)) return 0.0;
+  let lo = 0;
+  let hi = n - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (at(tPtr, mid) <= t) lo = mid;
+    else hi = mid;
+  }
+  return (at(aPtr, hi) - at(aPtr, lo)) / (at(tPtr, hi) - at(tPtr, lo));
+}
+
+// The first time since the apex after which the commanded angle is no longer an attack angle in
+// (0, 90 deg], or +Infinity when it never leaves: only a retraction without the clamp on the side
+// it moves towards leaves (tables and clamps hold angles the validator checked).
+export function angleExitTime(model: usize): f64 {
+  if (<i32>mget(model, M_ANGLE_KIND) != ANGLE_RETRACTION) return Infinity;
+  const w = mget(model, M_RETRACTION_RATE);
+  const a0 = mget(model, M_ATTACK);
+  if (w > 0.0 && mget(model, M_ANGLE_MAX) > HALF_PI) return (HALF_PI - a0) / w;
+  if (w < 0.0 && mget(model, M_ANGLE_MIN) <= 0.0) return a0 / -w;
+  return Infinity;
 }
 
 // Largest |d attack / dt| of the schedule, rad/s (for the concavity test).
