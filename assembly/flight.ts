@@ -25,7 +25,7 @@
 // without a clamp leaves that range at a known time, and the search stops
 // there (TOUCHDOWN_ANGLE_LEFT: no touchdown while the leg could be placed).
 
-import { attackAt, angleBreakpoints, angleExitTime, angleRateAt, maxAngleRate, mget } from "./policy";
+import { attackAt, nextAngleBreakpoint, angleExitTime, angleRateAt, maxAngleRate, mget } from "./policy";
 import { M_ANGLE_KIND, ANGLE_FIXED } from "./layout";
 
 export const TOUCHDOWN_NOT_PLACEABLE: f64 = -1.0; // apex too low for the leg
@@ -40,8 +40,6 @@ const MAX_MARCH_STEPS: i32 = 100000;
 const MIN_STEP_FRACTION: f64 = 2.220446049250313e-14;
 
 const HALF_PI: f64 = 1.5707963267948966;
-const BREAKS: usize = memory.data(8 * 512, 16); // (512) f64 schedule breakpoints, scratch
-const MAX_BREAKS: i32 = 510;
 
 // sin and cos of a leg angle, exact at 90 degrees so that a vertical leg has
 // no horizontal component at all (cos(pi/2) is 6e-17 in floating point).
@@ -117,14 +115,12 @@ export function touchdownTime(model: usize, ya: f64, ground: f64, leg: f64, g: f
   const tExit = angleExitTime(model);
   const noRoot = tExit < tEnd ? TOUCHDOWN_ANGLE_LEFT : TOUCHDOWN_GROUND_FIRST;
   const w = maxAngleRate(model);
-  const nb = angleBreakpoints(model, BREAKS, MAX_BREAKS);
-  if (!(leg * w * w <= g)) return march(model, nb, f0, ya, ground, leg, g, tExit < tEnd ? tExit : tEnd, noRoot);
+  if (!(leg * w * w <= g)) return march(model, f0, ya, ground, leg, g, tExit < tEnd ? tExit : tEnd, noRoot);
   let a: f64 = 0.0;
   let fa = f0;
-  for (let i = 0; i <= nb; i++) {
-    let b = i < nb ? load<f64>(BREAKS + (<usize>i << 3)) : tEnd;
+  for (;;) {
+    let b = nextAngleBreakpoint(model, a);
     if (b > tEnd) b = tEnd;
-    if (b <= a) continue;
     const fb = gap(model, b, ya, ground, leg, g);
     if (fb <= 0.0) return brent(model, a, b, fa, fb, ya, ground, leg, g);
     a = b;
@@ -136,15 +132,14 @@ export function touchdownTime(model: usize, ya: f64, ground: f64, leg: f64, g: f
 
 // The first root on [0, tStop] when some piece is not concave: concave pieces by their ends,
 // the others by the guaranteed steps of the file comment.
-function march(model: usize, nb: i32, f0: f64, ya: f64, ground: f64, leg: f64, g: f64, tStop: f64, noRoot: f64): f64 {
+function march(model: usize, f0: f64, ya: f64, ground: f64, leg: f64, g: f64, tStop: f64, noRoot: f64): f64 {
   const minStep = MIN_STEP_FRACTION * tStop;
   let t: f64 = 0.0;
   let ft = f0;
   let steps = 0;
-  for (let i = 0; i <= nb; i++) {
-    let b = i < nb ? load<f64>(BREAKS + (<usize>i << 3)) : tStop;
+  for (;;) {
+    let b = nextAngleBreakpoint(model, t);
     if (b > tStop) b = tStop;
-    if (b <= t) continue;
     const w = angleRateAt(model, 0.5 * (t + b));
     if (leg * w * w <= g) {
       const fb = gap(model, b, ya, ground, leg, g);

@@ -185,3 +185,19 @@ describe('touchdown of fast angle schedules = the first root of a dense independ
     expect(r.status).toBe(L.STATUS_ATTACK_OUT_OF_RANGE);
   });
 });
+
+describe('long time tables: every knot is a piece of the search', () => {
+  it('a 2000-knot table with a dip that only its late knots hold: the first root, not a later one', async () => {
+    // 2000 knots, 0.1 ms apart from 0.05 s: flat 40° except a spike to 89° around knot 1500
+    // (t = 0.2 s), where the foot reaches down far enough for an early touchdown
+    const times = Array.from({ length: 2000 }, (_, i) => 0.05 + i * 1e-4);
+    const angles = times.map((t) => (Math.abs(t - 0.2) < 0.004 ? 89 : 40));
+    const apex = 1.15;
+    const ref = denseFirstRoot(apex, tableSchedule(times, angles), times);
+    expect(ref.touchdown).not.toBeNull();
+    expect(ref.touchdown!).toBeGreaterThan(0.19);
+    expect(ref.touchdown!).toBeLessThan(0.21);
+    const r = await run(scenario({ start: { apex_height_m: apex, forward_speed_m_per_s: 4 }, policy: { angle: { kind: 'time_table', time_since_apex_s: times, attack_deg: angles } } }));
+    expect(Math.abs(r.rec(0, L.R_APEX_TO_TOUCHDOWN) - ref.touchdown!)).toBeLessThan(1e-11);
+  });
+});
