@@ -6,20 +6,40 @@
 //   f''(t) = -g + L0 w^2 sin(attack(t)),   w = the piece's angle rate,
 // and f is concave wherever L0 w^2 <= g. A concave f that is positive at the
 // start of a piece and positive at its end is positive in between, so the
-// endpoint signs find the first crossing exactly, grazing touchdowns included;
-// only faster schedules fall back to sampling each piece finely. The crossing
-// is then polished with Brent's method (Brent 1973, "Algorithms for
-// Minimization without Derivatives", ch. 4, zeroin).
+// endpoint signs find the first crossing exactly, grazing touchdowns included.
+// Faster pieces are marched with steps that provably skip no root. While the
+// commanded angle is an attack angle, a in (0, 90 deg], the leg term
+// -L0 sin(a(t)) is convex on each piece (its second derivative is
+// L0 w^2 sin(a) >= 0), so f'' >= -g there whatever the rate, and from a point t
+// with f > 0
+//   f(t + s) >= f(t) + f'(t) s - g s^2 / 2 > 0   for s below the positive root
+// of that parabola. The march takes exactly that step (at least ~100 ulp of the
+// search window, so it ends): towards a crossing it closes in like Newton's
+// method from the safe side, past a near-graze it halves its distance to the
+// minimum each step, so a few dozen steps do (a cap turns anything else into a
+// status). The first sample with f <= 0 brackets the first crossing, which is
+// then polished with Brent's method (Brent 1973, "Algorithms for Minimization
+// without Derivatives", ch. 4, zeroin).
+//
+// A commanded angle is an attack angle only in (0, 90 deg]: a retraction
+// without a clamp leaves that range at a known time, and the search stops
+// there (TOUCHDOWN_ANGLE_LEFT: no touchdown while the leg could be placed).
 
-import { attackAt, angleBreakpoints, maxAngleRate, mget } from "./policy";
+import { attackAt, nextAngleBreakpoint, angleExitTime, angleRateAt, maxAngleRate, mget } from "./policy";
 import { M_ANGLE_KIND, ANGLE_FIXED } from "./layout";
 
 export const TOUCHDOWN_NOT_PLACEABLE: f64 = -1.0; // apex too low for the leg
 export const TOUCHDOWN_GROUND_FIRST: f64 = -2.0; // the body reaches the ground first
+export const TOUCHDOWN_ANGLE_LEFT: f64 = -3.0; // the commanded angle left (0, 90 deg] before touchdown
+export const TOUCHDOWN_SEARCH_LIMIT: f64 = -4.0; // the march took MAX_MARCH_STEPS without deciding
+
+// A march needs a few dozen steps per piece (see above); this cap turns a
+// schedule that would need more into a status instead of a long loop.
+const MAX_MARCH_STEPS: i32 = 100000;
+// The march's minimum step, relative to the search window (about 100 ulp).
+const MIN_STEP_FRACTION: f64 = 2.220446049250313e-14;
 
 const HALF_PI: f64 = 1.5707963267948966;
-const BREAKS: usize = memory.data(8 * 512, 16); // (512) f64 schedule breakpoints, scratch
-const MAX_BREAKS: i32 = 510;
 
 // sin and cos of a leg angle, exact at 90 degrees so that a vertical leg has
 // no horizontal component at all (cos(pi/2) is 6e-17 in floating point).
@@ -80,7 +100,9 @@ function brent(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64, grou
   return b;
 }
 
-// Time from the apex to touchdown, or TOUCHDOWN_NOT_PLACEABLE / TOUCHDOWN_GROUND_FIRST.
+// Time from the apex to touchdown, or TOUCHDOWN_NOT_PLACEABLE / TOUCHDOWN_GROUND_FIRST /
+// TOUCHDOWN_ANGLE_LEFT / TOUCHDOWN_SEARCH_LIMIT. A root found here past the angle's exit time
+// (concave schedules search to the ground) is reported by the caller from the attack angle.
 export function touchdownTime(model: usize, ya: f64, ground: f64, leg: f64, g: f64): f64 {
   if (<i32>mget(model, M_ANGLE_KIND) == ANGLE_FIXED) {
     const f0 = gap(model, 0.0, ya, ground, leg, g);
@@ -90,25 +112,56 @@ export function touchdownTime(model: usize, ya: f64, ground: f64, leg: f64, g: f
   const f0 = gap(model, 0.0, ya, ground, leg, g);
   if (!(f0 > 0.0)) return TOUCHDOWN_NOT_PLACEABLE;
   const tEnd = Math.sqrt((2.0 * (ya - ground)) / g); // body at ground level
+  const tExit = angleExitTime(model);
+  const noRoot = tExit < tEnd ? TOUCHDOWN_ANGLE_LEFT : TOUCHDOWN_GROUND_FIRST;
   const w = maxAngleRate(model);
-  const concave = leg * w * w <= g;
-  const nb = angleBreakpoints(model, BREAKS, MAX_BREAKS);
+  if (!(leg * w * w <= g)) return march(model, f0, ya, ground, leg, g, tExit < tEnd ? tExit : tEnd, noRoot);
   let a: f64 = 0.0;
   let fa = f0;
-  for (let i = 0; i <= nb; i++) {
-    let b = i < nb ? load<f64>(BREAKS + (<usize>i << 3)) : tEnd;
+  for (;;) {
+    let b = nextAngleBreakpoint(model, a);
     if (b > tEnd) b = tEnd;
-    if (b <= a) continue;
-    const pieces = concave ? 1 : 64;
-    const width = (b - a) / <f64>pieces;
-    for (let j = 1; j <= pieces; j++) {
-      const tb = j == pieces ? b : a + width * <f64>j;
-      const fb = gap(model, tb, ya, ground, leg, g);
-      if (fb <= 0.0) return brent(model, a, tb, fa, fb, ya, ground, leg, g);
-      a = tb;
-      fa = fb;
-    }
+    const fb = gap(model, b, ya, ground, leg, g);
+    if (fb <= 0.0) return brent(model, a, b, fa, fb, ya, ground, leg, g);
+    a = b;
+    fa = fb;
     if (b >= tEnd) break;
   }
-  return TOUCHDOWN_GROUND_FIRST;
+  return noRoot;
+}
+
+// The first root on [0, tStop] when some piece is not concave: concave pieces by their ends,
+// the others by the guaranteed steps of the file comment.
+function march(model: usize, f0: f64, ya: f64, ground: f64, leg: f64, g: f64, tStop: f64, noRoot: f64): f64 {
+  const minStep = MIN_STEP_FRACTION * tStop;
+  let t: f64 = 0.0;
+  let ft = f0;
+  let steps = 0;
+  for (;;) {
+    let b = nextAngleBreakpoint(model, t);
+    if (b > tStop) b = tStop;
+    const w = angleRateAt(model, 0.5 * (t + b));
+    if (leg * w * w <= g) {
+      const fb = gap(model, b, ya, ground, leg, g);
+      if (fb <= 0.0) return brent(model, t, b, ft, fb, ya, ground, leg, g);
+      t = b;
+      ft = fb;
+    } else {
+      while (t < b) {
+        if (++steps > MAX_MARCH_STEPS) return TOUCHDOWN_SEARCH_LIMIT;
+        const slope = -g * t - leg * w * legCos(attackAt(model, t)); // f'(t) on this piece
+        const root = Math.sqrt(slope * slope + 2.0 * g * ft);
+        // positive root of ft + slope s - g s^2 / 2, in the form without cancellation
+        let h = slope > 0.0 ? (slope + root) / g : (2.0 * ft) / (root - slope);
+        if (h < minStep) h = minStep;
+        const tb = t + h < b ? t + h : b;
+        const fb = gap(model, tb, ya, ground, leg, g);
+        if (fb <= 0.0) return brent(model, t, tb, ft, fb, ya, ground, leg, g);
+        t = tb;
+        ft = fb;
+      }
+    }
+    if (b >= tStop) break;
+  }
+  return noRoot;
 }

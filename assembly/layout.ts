@@ -9,7 +9,7 @@
 // at the boundary.
 
 // ---------------------------------------------------------------------------
-export const LAYOUT_VERSION = 2; // bump on any change below
+export const LAYOUT_VERSION = 3; // bump on any change below
 
 // Model block: (M_SIZE) f64, written by the TS core before a call, read-only
 // inside the kernel. A batch takes an array of them, (models x M_SIZE), and
@@ -143,8 +143,9 @@ export const STATUS_NO_APEX = 4; // left the ground still descending
 export const STATUS_LEG_NOT_PLACEABLE = 5; // apex below the touchdown height
 export const STATUS_STEP_UNDERFLOW = 6; // integrator step size underflow
 export const STATUS_NON_FINITE = 7; // a state became NaN or infinite
-export const STATUS_STEP_LIMIT = 8; // integrator step limit reached
-export const STATUS_COUNT = 9;
+export const STATUS_STEP_LIMIT = 8; // integrator step limit reached (or the touchdown search's)
+export const STATUS_ATTACK_OUT_OF_RANGE = 9; // the commanded angle left (0, 90 deg] before touchdown
+export const STATUS_COUNT = 10;
 
 // ---------------------------------------------------------------------------
 // Trajectory samples: (samples x T_SIZE) f64, written by traceRollout.

@@ -9,6 +9,8 @@ import {
   ANGLE_FIXED, ANGLE_RETRACTION, STIFFNESS_CONSTANT, STIFFNESS_SPLIT,
 } from "./layout";
 
+const HALF_PI: f64 = 1.5707963267948966;
+
 @inline export function mget(model: usize, field: i32): f64 {
   return load<f64>(model + (<usize>field << 3));
 }
@@ -52,31 +54,71 @@ export function attackAt(model: usize, t: f64): f64 {
   );
 }
 
-// Times (s since apex) where the angle schedule's slope may change, written in
-// increasing order into dst (at most 2 + table knots); returns how many.
-export function angleBreakpoints(model: usize, dst: usize, maxCount: i32): i32 {
+// The first time after t (s since apex) where the angle schedule's slope may
+// change, or +Infinity: a retraction's clamp times, a table's knots. The
+// touchdown search walks the pieces with it, however many knots a table has.
+export function nextAngleBreakpoint(model: usize, t: f64): f64 {
   const kind = <i32>mget(model, M_ANGLE_KIND);
-  if (kind == ANGLE_FIXED) return 0;
+  if (kind == ANGLE_FIXED) return Infinity;
   if (kind == ANGLE_RETRACTION) {
     const w = mget(model, M_RETRACTION_RATE);
-    if (w == 0.0) return 0;
+    if (w == 0.0) return Infinity;
     const a0 = mget(model, M_ATTACK);
     let t1 = (mget(model, M_ANGLE_MIN) - a0) / w;
     let t2 = (mget(model, M_ANGLE_MAX) - a0) / w;
     if (t1 > t2) { const s = t1; t1 = t2; t2 = s; }
-    let n = 0;
-    if (t1 > 0.0 && isFinite(t1)) { store<f64>(dst, t1); n++; }
-    if (t2 > 0.0 && isFinite(t2)) { store<f64>(dst + (<usize>n << 3), t2); n++; }
-    return n;
+    if (t1 > t && isFinite(t1)) return t1;
+    if (t2 > t && isFinite(t2)) return t2;
+    return Infinity;
   }
   const tPtr = <usize>mget(model, M_ANGLE_TABLE_T);
-  const knots = <i32>mget(model, M_ANGLE_TABLE_N);
-  let n = 0;
-  for (let i = 0; i < knots && n < maxCount; i++) {
-    const t = at(tPtr, i);
-    if (t > 0.0) { store<f64>(dst + (<usize>n << 3), t); n++; }
+  const n = <i32>mget(model, M_ANGLE_TABLE_N);
+  if (at(tPtr, n - 1) <= t) return Infinity;
+  if (at(tPtr, 0) > t) return at(tPtr, 0);
+  let lo = 0; // at(lo) <= t < at(hi)
+  let hi = n - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (at(tPtr, mid) <= t) lo = mid;
+    else hi = mid;
   }
-  return n;
+  return at(tPtr, hi);
+}
+
+// d attack / dt of the schedule at time t since the apex, rad/s (0 where it is held or clamped);
+// t should lie inside a piece between breakpoints, where the rate is constant.
+export function angleRateAt(model: usize, t: f64): f64 {
+  const kind = <i32>mget(model, M_ANGLE_KIND);
+  if (kind == ANGLE_FIXED) return 0.0;
+  if (kind == ANGLE_RETRACTION) {
+    const w = mget(model, M_RETRACTION_RATE);
+    const a = mget(model, M_ATTACK) + w * t;
+    return a < mget(model, M_ANGLE_MIN) || a > mget(model, M_ANGLE_MAX) ? 0.0 : w;
+  }
+  const tPtr = <usize>mget(model, M_ANGLE_TABLE_T);
+  const aPtr = <usize>mget(model, M_ANGLE_TABLE_A);
+  const n = <i32>mget(model, M_ANGLE_TABLE_N);
+  if (t <= at(tPtr, 0) || t >= at(tPtr, n - 1)) return 0.0;
+  let lo = 0;
+  let hi = n - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (at(tPtr, mid) <= t) lo = mid;
+    else hi = mid;
+  }
+  return (at(aPtr, hi) - at(aPtr, lo)) / (at(tPtr, hi) - at(tPtr, lo));
+}
+
+// The first time since the apex after which the commanded angle is no longer an attack angle in
+// (0, 90 deg], or +Infinity when it never leaves: only a retraction without the clamp on the side
+// it moves towards leaves (tables and clamps hold angles the validator checked).
+export function angleExitTime(model: usize): f64 {
+  if (<i32>mget(model, M_ANGLE_KIND) != ANGLE_RETRACTION) return Infinity;
+  const w = mget(model, M_RETRACTION_RATE);
+  const a0 = mget(model, M_ATTACK);
+  if (w > 0.0 && mget(model, M_ANGLE_MAX) > HALF_PI) return (HALF_PI - a0) / w;
+  if (w < 0.0 && mget(model, M_ANGLE_MIN) <= 0.0) return a0 / -w;
+  return Infinity;
 }
 
 // Largest |d attack / dt| of the schedule, rad/s (for the concavity test).

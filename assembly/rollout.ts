@@ -18,10 +18,13 @@ import {
   S_SUM_SQ_HEIGHT_ERROR, S_SUM_SQ_SPEED_ERROR, S_TIME, S_DISTANCE, S_STEPS, S_REJECTED, S_SIZE,
   TERRAIN_FLAT, TERRAIN_STEPS, TERRAIN_RANDOM_WALK,
   STATUS_OK, STATUS_BODY_HIT_GROUND, STATUS_NO_APEX, STATUS_LEG_NOT_PLACEABLE, STATUS_NON_FINITE,
+  STATUS_ATTACK_OUT_OF_RANGE, STATUS_STEP_LIMIT,
   PHASE_STANCE, PHASE_FLIGHT,
 } from "./layout";
 import { mget, attackAt, chooseStiffness, stanceKc, stanceKe, stanceSplit } from "./policy";
-import { touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE } from "./flight";
+import {
+  touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE, TOUCHDOWN_GROUND_FIRST, TOUCHDOWN_ANGLE_LEFT,
+} from "./flight";
 import { gaussian } from "./rng";
 import {
   runStance, outContact, outPx, outPy, outVx, outVy, outMaxCompression, outMaxCompressionTime,
@@ -31,6 +34,7 @@ import {
   tracing, traceFlight, emit, traceStride, traceFootX, traceGround, traceTouchdownTime,
 } from "./trace";
 
+const MAX_ATTACK: f64 = 1.5707963267948966 + 1e-15; // rad, 90 deg and legSin's slack
 const SCRATCH_RECORD: usize = memory.data(8 * R_SIZE, 16); // (R_SIZE) f64, when no record buffer
 
 @inline function put(p: usize, field: i32, v: f64): void {
@@ -119,11 +123,20 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
     put(rec, R_GROUND, ground);
     const tTouch = touchdownTime(model, ya, ground, leg, g);
     if (tTouch < 0.0) {
-      status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE : STATUS_BODY_HIT_GROUND;
+      status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
+        : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
+        : tTouch == TOUCHDOWN_ANGLE_LEFT ? STATUS_ATTACK_OUT_OF_RANGE
+        : STATUS_STEP_LIMIT;
       put(rec, R_STATUS, <f64>status);
       break;
     }
     const attack = attackAt(model, tTouch);
+    // an attack angle lies in (0, 90 deg]; the slack is legSin's "exactly vertical"
+    if (!(attack > 0.0 && attack <= MAX_ATTACK)) {
+      status = STATUS_ATTACK_OUT_OF_RANGE;
+      put(rec, R_STATUS, <f64>status);
+      break;
+    }
     if (attack < minAttack) minAttack = attack;
     if (attack > maxAttack) maxAttack = attack;
     const cosA = legCos(attack);

@@ -209,7 +209,7 @@ describe('bad input files exit 2, naming the field, without a stack trace', () =
     expect(run.code).toBe(2);
     expect(run.stdout).toBe('');
     expect(run.stderr.trimEnd().split('\n')).toEqual([
-      `${path}: body.mass_kg: expected a number > 0 (kg), found -9`,
+      `${path}: body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -9`,
       `${path}: body.mas_kg: unknown field`,
       `${path}: policy.angle.kind: expected one of fixed, retraction, time_table, found "fixd" (did you mean fixed?)`,
       `${path}: strides: expected an integer from 1 to 1000000, found 0`,
@@ -381,7 +381,7 @@ describe.skipIf(!built)('node bin/pronk.js (built CLI, real engine)', () => {
     const path = scenarioFile('spawn-bad.json', { ...demoScenario(), body: { mass_kg: 0, leg_length_m: 0.45, leg_stiffness_N_per_m: 5000 } });
     const run = spawnPronk(['simulate', path]);
     expect(run.code).toBe(2);
-    expect(run.stderr).toBe(`${path}: body.mass_kg: expected a number > 0 (kg), found 0\n`);
+    expect(run.stderr).toBe(`${path}: body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found 0\n`);
   });
 
   it('nonexistent and invalid-JSON files exit 2', () => {

@@ -58,7 +58,7 @@ describe('pronk deadbeat', () => {
     expect(run.code).toBe(0);
     expect(run.stderr).toBe('');
     expect(run.stdout).toContain('Usage: pronk deadbeat [FILE] --ground LO:HI');
-    for (const flag of ['--ground', '--mode', '--knots', '--tolerance', '--attack-range', '--compare', '--sigma', '--rollouts', '--seed', '--json', '--out']) {
+    for (const flag of ['--ground', '--mode', '--target', '--knots', '--tolerance', '--attack-range', '--compare', '--sigma', '--rollouts', '--seed', '--json', '--out']) {
       expect(run.stdout).toContain(flag);
     }
     expect(pronk(['--help']).stdout).toMatch(/^ {2}deadbeat\s/m);
@@ -90,6 +90,10 @@ describe('pronk deadbeat', () => {
     expect(out.max_abs_residual_between_knots_m).toBeLessThanOrEqual(1e-5); // --tolerance
     expect(out.loads.peak_leg_force_body_weights[1]).toBeCloseTo(out.loads.peak_leg_force_N[1] / (80 * 9.81), 9); // definition
     expect(out.step_check).toMatchObject({ strides: 21, all_survived: true, failures: [] });
+    // what the table holds and where it stops being valid; how the refinement ended
+    expect(out.validity).toMatchObject({ ground_reference: 'start_ground', valid_ground_m: [-0.2, 0.04] });
+    expect(out.validity.valid_while).toMatch(/within -0\.2 to 0\.04 m of the start's ground/);
+    expect(out.refinement).toMatchObject({ stopped_by: 'tolerance_met', max_knots: 4000, max_rounds: 12, tolerance_m: 1e-5, tolerance_floor_m: 1.01e-8 });
     expect(nullPaths(out)).toEqual(['comparison', 'options.comparison']);
     expect(run.stdout).not.toMatch(/NaN|Infinity/);
   });
@@ -98,6 +102,8 @@ describe('pronk deadbeat', () => {
     const run = pronk(['deadbeat', file, ...small, '--mode', 'angle_and_stiffness']);
     expect(run.code).toBe(0);
     expect(run.stdout).toContain('next apex 1 m above the ground met, at 5 m/s');
+    expect(run.stdout.replace(/\s+/g, ' ')).toContain('The table holds the next apex 1 m above the ground of the last touchdown, at 5 m/s');
+    expect(run.stdout.replace(/\s+/g, ' ')).toContain("It is valid while each touchdown's ground is within -0.2 to 0.04 m of the previous touchdown's");
     expect(run.stdout).toContain('attack angle and extension stiffness');
     expect(run.stdout).toMatch(/solved -0\.2 to 0\.04 m/);
     expect(run.stdout).toMatch(/residual +apex error at the knots at most/);
@@ -144,6 +150,9 @@ describe('pronk deadbeat', () => {
     [['--ground=-0.1:0.1', '--tolerance', '0'], /--tolerance: expected a length > 0 \(m\), found "0"/],
     [['--ground=-0.1:0.1', '--tolerance=-1e-6'], /--tolerance: expected a length > 0/],
     [['--ground=-0.1:0.1', '--mode', 'stiffness'], /--mode: expected angle or angle_and_stiffness, found "stiffness"/],
+    [['--ground=-0.1:0.1', '--tolerance', '1e-300'], /--tolerance: expected a length from 1\.01e-8 to 1 m \(the leg length\): at least 100 x the integrator's accuracy.*found 1e-300/],
+    [['--ground=-0.1:0.1', '--target', 'above_ground_met'], /--target: expected absolute with --mode angle/],
+    [['--ground=-0.1:0.1', '--mode', 'angle_and_stiffness', '--target', 'ground'], /--target: expected absolute or above_ground_met, found "ground"/],
     [['--ground=-0.1:0.1', '--attack-range=80:70'], /--attack-range: expected two angles LO:HI in degrees/],
     [['--ground=-0.1:0.1', '--attack-range=0:70'], /--attack-range: expected two angles/],
     [['--ground=-0.1:0.1', '--sigma', '0.01'], /--sigma: expected --compare alongside it/],

@@ -83,5 +83,95 @@ describe('deadbeat options', () => {
     await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.1], knots: 1 })).rejects.toBeInstanceOf(InputError);
     await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.1], attackRange_deg: [80, 70] })).rejects.toThrow(/attack_range_deg/);
     await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.1], tolerance_m: 0 })).rejects.toThrow(/tolerance_m/);
+    await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.1], mode: 'angle', target: 'above_ground_met' })).rejects.toThrow(/target: expected absolute with mode angle/);
+  });
+
+  it('a tolerance below 100 x the integrator accuracy is refused before any work, naming the floor', async () => {
+    // this body's integrator: rtol 1e-11, atol 1e-13, apex 1 m = L0: floor 100 (1e-11 x 1 + 1e-13) = 1.01e-9 m
+    const error = await synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.05], tolerance_m: 1e-300 }).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(InputError);
+    expect((error as InputError).issues[0].path).toBe('tolerance_m');
+    expect((error as InputError).issues[0].expected).toMatch(/^a length from 1\.01e-9 to 1 m \(the leg length\)/);
+    await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.05], tolerance_m: 2 })).rejects.toThrow(/tolerance_m/);
+    await expect(synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.05], maxKnots: 5000 })).rejects.toThrow(/max_knots: expected an integer from knots \(41\) to 4000/);
+  });
+
+  it('the refinement reports how it ended: the tolerance met, or the knot cap', async () => {
+    const met = await synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.04], knots: 5, tolerance_m: 1e-4 });
+    expect(met.refinement).toMatchObject({ stopped_by: 'tolerance_met', max_rounds: 12, max_knots: 4000, tolerance_m: 1e-4 });
+    expect(met.max_abs_residual_between_knots_m!).toBeLessThanOrEqual(1e-4);
+    const capped = await synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.04], knots: 5, maxKnots: 7, tolerance_m: 1.01e-9 });
+    expect(capped.refinement.stopped_by).toBe('knot_cap');
+    expect(capped.knots.length).toBeLessThanOrEqual(7);
+    expect(capped.max_abs_residual_between_knots_m!).toBeGreaterThan(1.01e-9);
+  });
+});
+
+describe('what a table holds, on rising random ground (the README robot: split leg 20/21 kN/m, ground range -0.3 to 0.05 m)', () => {
+  // README's example scenario; the deadbeat table replaces its angle policy
+  const robot = parseScenario({
+    body: { mass_kg: 80, leg_length_m: 1.0, leg_stiffness_N_per_m: 20000 },
+    start: { apex_height_m: 1.0, forward_speed_m_per_s: 5.0 },
+    policy: {
+      angle: { kind: 'retraction', attack_at_apex_deg: 62, rate_deg_per_s: 50, max_deg: 80 },
+      stiffness: { kind: 'split', compression_N_per_m: 20000, extension_N_per_m: 21000 },
+    },
+    terrain: { kind: 'random_walk', sigma_m: 0.01, seed: 7 },
+    strides: 30,
+  });
+  // rising random ground: each touchdown 5 mm lower to 20 mm higher than the last (Park-Miller
+  // minimal standard generator, common practice), 0.29 m up after 40 strides
+  let seed = 1;
+  const uniform = () => {
+    seed = (seed * 16807) % 2147483647;
+    return seed / 2147483647;
+  };
+  let ground = 0;
+  const rising = Array.from({ length: 40 }, () => {
+    ground += -0.005 + 0.025 * uniform();
+    return ground;
+  });
+  const onRising = (table: DeadbeatTable) =>
+    simulate(parseScenario({ ...robot, policy: table.policy, terrain: { kind: 'steps', ground_heights_m: rising }, strides: 40 }));
+
+  it('angle mode holds the absolute apex: it fails once the ground leaves its range; above_ground_met follows the ground', async () => {
+    expect(rising[39]).toBeGreaterThan(0.25);
+    const absolute = await synthesizeDeadbeat(robot, { groundRange_m: [-0.3, 0.05], mode: 'angle', knots: 11, tolerance_m: 1e-4 });
+    const relative = await synthesizeDeadbeat(robot, { groundRange_m: [-0.3, 0.05], mode: 'angle_and_stiffness', knots: 11, tolerance_m: 1e-4 });
+    expect(absolute.target.height_reference).toBe('absolute');
+    expect(relative.target.height_reference).toBe('above_ground_met');
+
+    const a = await onRising(absolute);
+    expect(a.outcome.status).toBe('failed');
+    expect(a.outcome.reason).toBe('leg_not_placeable');
+    // it fails only after the ground has left the table's range (law: the apex stays near 1 m while the ground rises)
+    expect(rising[a.outcome.strides_completed]).toBeGreaterThan(0.05);
+
+    const r = await onRising(relative);
+    expect(r.outcome.status).toBe('completed');
+    // stride after stride the apex stays 1 m above the ground of the last touchdown
+    r.strides.forEach((stride, i) => expect(Math.abs(r.apexes[i + 1].height_m - stride.ground_height_m - 1)).toBeLessThan(0.02));
+  });
+
+  it('each table says what it holds and where it stops being valid', async () => {
+    const absolute = await synthesizeDeadbeat(robot, { groundRange_m: [-0.3, 0.05], mode: 'angle', knots: 11, tolerance_m: 1e-4 });
+    expect(absolute.validity).toMatchObject({ ground_reference: 'start_ground', valid_ground_m: absolute.solved_range_m });
+    expect(absolute.validity.holds).toMatch(/next apex at 1 m, an absolute height .*not the speed: this leg gains or loses energy/);
+    expect(absolute.validity.valid_while).toMatch(/every touchdown's ground is within -0\.3 to 0\.05 m of the start's ground/);
+    const relative = await synthesizeDeadbeat(robot, { groundRange_m: [-0.3, 0.05], mode: 'angle_and_stiffness', knots: 11, tolerance_m: 1e-4 });
+    expect(relative.validity).toMatchObject({ ground_reference: 'previous_touchdown', valid_ground_m: [-0.3, 0.05] });
+    expect(relative.validity.holds).toMatch(/next apex 1 m above the ground of the last touchdown, at 5 m\/s/);
+    expect(relative.validity.valid_while).toMatch(/within -0\.3 to 0\.05 m of the previous touchdown's/);
+    for (const t of [absolute, relative]) expect(t.validity.beyond).toMatch(/holds its end values/);
+  });
+
+  it('angle_and_stiffness with target absolute holds the absolute height and the speed on a step', async () => {
+    const table = await synthesizeDeadbeat(body, { groundRange_m: [-0.1, 0.04], knots: 7, mode: 'angle_and_stiffness', target: 'absolute', tolerance_m: 1e-5 });
+    expect(table.target.height_reference).toBe('absolute');
+    for (const h of [-0.07, 0.013]) {
+      const apex = await nextApex(table, h);
+      expect(Math.abs(apex.height_m - 1)).toBeLessThanOrEqual(1e-5);
+      expect(Math.abs(apex.forward_speed_m_per_s - 5)).toBeLessThanOrEqual(1e-5);
+    }
   });
 });

@@ -205,9 +205,15 @@ describe('refusals and --force', () => {
   });
 
   it('refuses a stiffness beyond the float32 range (Infinity once rounded)', async () => {
-    // a stiffness of 1e39 N/m is a valid (finite) scenario value, but float32 tops out near 3.4e38 (IEEE 754)
+    // float32 tops out near 3.4e38 (IEEE 754). The scenario validator already refuses 1e39 N/m (its
+    // physical bound is 1e12), so the policy is altered after validation: the exporter's own check
+    // is the last guard in front of firmware.
     const huge = { ...tables, stiffness: { ...tables.stiffness, compression_N_per_m: [1e39, 21000, 22500] } };
-    const src = await source(scenarioWith(huge));
+    expect(messages(() => parseScenario(scenarioWith(huge)))).toEqual([
+      'policy.stiffness.compression_N_per_m[0]: expected a stiffness from 1e-3 to 1e12 (N/m), found 1e+39',
+    ]);
+    const src = await source(scenarioWith(tables));
+    (src.policy.stiffness as { compression_N_per_m: number[] }).compression_N_per_m = [1e39, 21000, 22500];
     const problems = messages(() => buildExport(src));
     expect(problems[0]).toBe('compression table point 0 (t = 0 s) is Infinity in float32 (1e+39 N/m is beyond the float32 range)');
   });
@@ -272,7 +278,7 @@ describe('result files', () => {
     const { provenance: _, ...noProvenance } = good;
     expect(await problemsOf(noProvenance)).toBe('r.json: provenance: expected an object with pronk_version, scenario_sha256, date, found missing');
     expect(await problemsOf({ ...good, scenario: { ...good.scenario, body: { ...good.scenario.body, mass_kg: -1 } } })).toBe(
-      'r.json: scenario.body.mass_kg: expected a number > 0 (kg), found -1',
+      'r.json: scenario.body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -1',
     );
     expect(await problemsOf({ ...good, policy: { angle: { kind: 'fixed', attack_deg: 95 } } })).toBe(
       'r.json: policy.angle.attack_deg: expected an angle in (0, 90] (deg from the horizontal), found 95',

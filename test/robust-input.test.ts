@@ -72,3 +72,47 @@ describe('mutated scenarios', () => {
     expect(accepted).toBeGreaterThan(40); // the generator also exercises the simulator
   });
 });
+
+describe('scenarios at the corners of the physical bounds (DEVELOPERS.md, scenario files)', () => {
+  const at = (body: object, start: object, angle: object = { kind: 'fixed', attack_deg: 60 }, terrain: object = { kind: 'flat' }) =>
+    parseScenario({ body, start, policy: { angle }, terrain, strides: 3 });
+  const corners = {
+    'a 1 mg robot on a 0.1 mm leg with the stiffest spring (ω = 1e9 rad/s)': at(
+      { mass_kg: 1e-6, leg_length_m: 1e-4, leg_stiffness_N_per_m: 1e12 },
+      { apex_height_m: 1.5e-4, forward_speed_m_per_s: 0.01 },
+    ),
+    'a 1000 t machine on a 100 m leg with the softest spring, at 1000 m/s², 1000 m/s': at(
+      { mass_kg: 1e6, leg_length_m: 100, leg_stiffness_N_per_m: 1e-3, gravity_m_per_s2: 1000 },
+      { apex_height_m: 150, forward_speed_m_per_s: 1000 },
+    ),
+    'the weakest gravity, the highest apex and the fastest speed': at(
+      { mass_kg: 1, leg_length_m: 0.1, leg_stiffness_N_per_m: 1, gravity_m_per_s2: 1e-5 },
+      { apex_height_m: 1e4, forward_speed_m_per_s: 1000 },
+    ),
+    'the strongest damping on the lightest body': at(
+      { mass_kg: 1e-6, leg_length_m: 1, leg_stiffness_N_per_m: 100, leg_damping_N_s_per_m: 1e9 },
+      { apex_height_m: 1.2, forward_speed_m_per_s: 1 },
+    ),
+    'the fastest retraction, and the lowest ground': at(
+      { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000 },
+      { apex_height_m: -9998, forward_speed_m_per_s: 5 },
+      { kind: 'retraction', attack_at_apex_deg: 60, rate_deg_per_s: 1e5 },
+      { kind: 'steps', ground_heights_m: [-1e4] },
+    ),
+  };
+
+  it.each(Object.entries(corners))('%s: simulate and map give finite numbers (a fall is a status)', async (_name, scenario) => {
+    const { apexReturnMap } = await import('../src/core/analysis/return-map.js');
+    const result = await simulate(scenario, { strides: 3 });
+    expect(allFinite(result.apexes)).toBe(true);
+    expect(allFinite(result.strides)).toBe(true);
+    const map = await apexReturnMap(scenario, { samples: 11, iterations: 2 });
+    expect(Number.isFinite(map.energy_J)).toBe(true);
+    expect(allFinite(map.domain)).toBe(true);
+    for (const sample of map.samples) {
+      expect(Number.isFinite(sample.apex_height_m)).toBe(true);
+      expect(Number.isFinite(sample.forward_speed_m_per_s)).toBe(true);
+    }
+    expect(allFinite(map.fixed_points)).toBe(true);
+  });
+});

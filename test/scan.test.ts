@@ -9,6 +9,7 @@ import { main } from '../src/cli/main.js';
 import { apexReturnMap } from '../src/core/analysis/return-map.js';
 import { axisValues, finishScan, parseAxisOption, scan, scanShard, type ScanCell, type ScanOptions } from '../src/core/analysis/scan.js';
 import { InputError } from '../src/core/errors.js';
+import { parseScenario } from '../src/core/scenario.js';
 import { joinShards, type PartialResult } from '../src/core/shard.js';
 import { closeWorkerPool, runBatchParallel } from '../src/worker/pool.js';
 import { scenario } from './helpers.js';
@@ -101,6 +102,64 @@ describe('Seyfarth, Geyer, Herr 2003 at the energy of 3 m/s (1 m apex)', () => {
   });
 });
 
+describe("every cell is the map of the scenario with that cell's values, at that cell's own start energy", () => {
+  // The cell's scenario built here by hand (not by the scan's own grid code): the base input with
+  // the two fields set, validated. The map of that scenario is the truth each cell must equal.
+  const cellScenario = (base: Record<string, any>, xPath: string, x: number, yPath: string, y: number) => {
+    const raw = structuredClone(base);
+    for (const [path, value] of [[xPath, x], [yPath, y]] as const) {
+      const keys = path.split('.');
+      let node = raw;
+      for (const key of keys.slice(0, -1)) node = node[key];
+      node[keys[keys.length - 1]] = value;
+    }
+    return parseScenario(raw);
+  };
+  const base = JSON.parse(JSON.stringify(seyfarth)) as Record<string, any>;
+
+  it.each([
+    // the figure of Seyfarth, Geyer & Herr 2003: attack angle against forward speed
+    { name: 'attack angle x forward speed', x: axis('policy.angle.attack_deg', 66, 70, 3), y: axis('start.forward_speed_m_per_s', 4, 6, 3) },
+    { name: 'start apex height x mass', x: axis('start.apex_height_m', 0.98, 1.06, 2), y: axis('body.mass_kg', 70, 90, 2) },
+    { name: 'gravity x leg stiffness', x: axis('body.gravity_m_per_s2', 9, 10.5, 2), y: axis('body.leg_stiffness_N_per_m', 18000, 22000, 2) },
+  ])('$name', async ({ x, y }) => {
+    const [xPath, yPath] = [x.path, y.path];
+    const r = await scan(seyfarth, { x, y, samples: 51 });
+    const energies = new Set<number>();
+    for (const cell of r.cells) {
+      const own = cellScenario(base, xPath, cell.x, yPath, cell.y);
+      const { body, start } = own;
+      // law: E = m g y0 + m v0^2 / 2 of the cell's own start
+      const energy = body.mass_kg * body.gravity_m_per_s2 * start.apex_height_m + 0.5 * body.mass_kg * start.forward_speed_m_per_s ** 2;
+      expect(cell.energy_J).toBeCloseTo(energy, 9);
+      energies.add(cell.energy_J);
+      const map = await apexReturnMap(own, { samples: 51, iterations: 0 });
+      expect(map.energy_J).toBe(cell.energy_J);
+      // the same fixed points, bit for bit, and so the same class; the slopes within their
+      // error estimates (map refines the domain's top edge first, which may shorten its step)
+      expect(cell.fixed_points.map((f) => f.apex_height_m)).toEqual(map.fixed_points.map((f) => f.apex_height_m));
+      cell.fixed_points.forEach((f, i) => {
+        const m = map.fixed_points[i];
+        expect(Math.abs(f.slope - m.slope)).toBeLessThanOrEqual(2 * (f.slope_error + m.slope_error) + 1e-9);
+        expect(f.stable).toBe(m.stable);
+      });
+      const stable = map.fixed_points.find((f) => f.stable);
+      expect(cell.class).toBe(stable ? 'stable' : map.fixed_points.length ? 'unstable' : 'none');
+      expect(cell.stable_apex_height_m).toBe(stable ? stable.apex_height_m : null);
+      expect(cell.domain_empty).toBe(map.domain.empty);
+    }
+    // every axis here changes the start energy, so the cells do not share one
+    expect(energies.size).toBeGreaterThan(1);
+    expect(r.cell_energy_range_J).toEqual([Math.min(...energies), Math.max(...energies)]);
+  });
+
+  it('the rows of an angle x speed scan differ from each other (one energy per row)', async () => {
+    const r = await scan(seyfarth, { x: axis('policy.angle.attack_deg', 66, 70, 3), y: axis('start.forward_speed_m_per_s', 4, 6, 3), samples: 51 });
+    const row = (iy: number) => JSON.stringify(r.cells.slice(iy * 3, iy * 3 + 3).map((c) => c.fixed_points));
+    expect(new Set([row(0), row(1), row(2)]).size).toBe(3);
+  });
+});
+
 describe('bad scan input is an InputError naming the option', () => {
   const run = (options: Partial<ScanOptions> & Record<string, unknown>) => scan(seyfarth, { ...aroundSeyfarth, ...options } as ScanOptions).catch((e: unknown) => e);
   const expectIssue = (error: unknown, option: string, text: RegExp) => {
@@ -126,6 +185,14 @@ describe('bad scan input is an InputError naming the option', () => {
     bad('policy.angle.attack_deg:60:eighty:5', /finite numbers/);
     bad('policy.angle.attack_deg:60:60:3', /use n = 1/);
     expect(axisValues(parseAxisOption('a:1:2:3', '--x'))).toEqual([1, 1.5, 2]);
+  });
+
+  it('the same PATH on both axes is refused, naming --y', async () => {
+    expectIssue(await run({ x: axis('policy.angle.attack_deg', 60, 70, 2), y: axis('policy.angle.attack_deg', 62, 64, 2) }), '--y', /a PATH other than --x's \(policy\.angle\.attack_deg\)/);
+    // one field, two spellings
+    const steps = scenario({ terrain: { kind: 'steps', ground_heights_m: [0, 0.01] } });
+    const error = await scan(steps, { x: axis('terrain.ground_heights_m[1]', 0, 0.01, 2), y: axis('terrain.ground_heights_m.1', 0, 0.01, 2), samples: 11 }).catch((e: unknown) => e);
+    expectIssue(error, '--y', /other than --x's/);
   });
 
   it('unknown path, non-numeric path, a cell whose scenario is invalid', async () => {
@@ -195,6 +262,7 @@ describe('pronk scan', () => {
       [['--x', 'policy.angle.attack_deg:60:80:3', '--y', 'body.stiffness:1:2:2'], /--y: .*not in the scenario/],
       [['--x', 'policy.angle.kind:60:80:3', '--y', 'body.leg_stiffness_N_per_m:1:2:2'], /--x: .*holds "fixed"/],
       [['--x', 'policy.angle.attack_deg:60:80:3'], /--y PATH:LO:HI:N is required/],
+      [['--x', 'policy.angle.attack_deg:60:80:3', '--y', 'policy.angle.attack_deg:60:70:2'], /--y: expected a PATH other than --x's \(policy\.angle\.attack_deg\)/],
       [['--x', 'policy.angle.attack_deg:60:80:3', '--y', 'body.leg_stiffness_N_per_m:1:2:2', '--workers', '0'], /--workers/],
       [['--x', 'policy.angle.attack_deg:60:80:3', '--y', 'body.leg_stiffness_N_per_m:1:2:2', '--shard', '4/3'], /--shard/],
     ] as const) {

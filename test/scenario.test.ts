@@ -117,7 +117,7 @@ describe('missing fields and wrong types', () => {
   });
 
   it('names a missing nested field', () => {
-    expect(issueLines(edited(['body', 'mass_kg'], undefined))).toEqual(['body.mass_kg: expected a number > 0 (kg), found missing']);
+    expect(issueLines(edited(['body', 'mass_kg'], undefined))).toEqual(['body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found missing']);
     expect(issueLines(edited(['policy', 'angle', 'attack_deg'], undefined))).toContain(
       'policy.angle.attack_deg: expected an angle in (0, 90] (deg from the horizontal), found missing',
     );
@@ -129,11 +129,11 @@ describe('missing fields and wrong types', () => {
   });
 
   it('rejects wrong types with the value found', () => {
-    expect(issueLines(edited(['body', 'mass_kg'], '80'))).toEqual(['body.mass_kg: expected a number > 0 (kg), found "80"']);
+    expect(issueLines(edited(['body', 'mass_kg'], '80'))).toEqual(['body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found "80"']);
     expect(issueLines(edited(['body'], 5))[0]).toMatch(/^body: expected an object with mass_kg, .*found 5$/);
     expect(issueLines(edited(['name'], 7))).toEqual(['name: expected a string, found 7']);
     expect(issueLines(edited(['body', 'gravity_m_per_s2'], null))).toEqual([
-      'body.gravity_m_per_s2: expected a number > 0 (m/s^2), found null',
+      'body.gravity_m_per_s2: expected a number from 1e-5 to 1000 (m/s^2), found null',
     ]);
   });
 
@@ -144,8 +144,8 @@ describe('missing fields and wrong types', () => {
       strides: 0,
     };
     expect(issueLines(value)).toEqual([
-      'body.mass_kg: expected a number > 0 (kg), found -1',
-      'body.leg_length_m: expected a number > 0 (m), found 0',
+      'body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -1',
+      'body.leg_length_m: expected a number from 1e-4 to 100 (m), found 0',
       'strides: expected an integer from 1 to 1000000, found 0',
     ]);
   });
@@ -158,14 +158,14 @@ describe('missing fields and wrong types', () => {
 
 describe('numbers out of range', () => {
   it.each([
-    ['mass_kg', 0, 'body.mass_kg: expected a number > 0 (kg), found 0'],
-    ['mass_kg', -9, 'body.mass_kg: expected a number > 0 (kg), found -9'],
-    ['leg_length_m', -1, 'body.leg_length_m: expected a number > 0 (m), found -1'],
-    ['leg_length_m', 0, 'body.leg_length_m: expected a number > 0 (m), found 0'],
-    ['leg_stiffness_N_per_m', 0, 'body.leg_stiffness_N_per_m: expected a number > 0 (N/m), found 0'],
-    ['leg_stiffness_N_per_m', -5, 'body.leg_stiffness_N_per_m: expected a number > 0 (N/m), found -5'],
-    ['gravity_m_per_s2', 0, 'body.gravity_m_per_s2: expected a number > 0 (m/s^2), found 0'],
-    ['leg_damping_N_s_per_m', -0.1, 'body.leg_damping_N_s_per_m: expected a number >= 0 (N s/m), found -0.1'],
+    ['mass_kg', 0, 'body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found 0'],
+    ['mass_kg', -9, 'body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -9'],
+    ['leg_length_m', -1, 'body.leg_length_m: expected a number from 1e-4 to 100 (m), found -1'],
+    ['leg_length_m', 0, 'body.leg_length_m: expected a number from 1e-4 to 100 (m), found 0'],
+    ['leg_stiffness_N_per_m', 0, 'body.leg_stiffness_N_per_m: expected a number from 1e-3 to 1e12 (N/m), found 0'],
+    ['leg_stiffness_N_per_m', -5, 'body.leg_stiffness_N_per_m: expected a number from 1e-3 to 1e12 (N/m), found -5'],
+    ['gravity_m_per_s2', 0, 'body.gravity_m_per_s2: expected a number from 1e-5 to 1000 (m/s^2), found 0'],
+    ['leg_damping_N_s_per_m', -0.1, 'body.leg_damping_N_s_per_m: expected a number from 0 to 1e9 (N s/m), found -0.1'],
   ])('rejects body.%s = %s', (field, value, line) => {
     expect(issueLines(edited(['body', field], value))).toContain(line);
   });
@@ -196,26 +196,26 @@ describe('numbers out of range', () => {
   it('reports Infinity (JSON 1e999) as Infinity, not null', () => {
     const value = JSON.parse('{"mass_kg": 1e999, "leg_length_m": -1e999, "leg_stiffness_N_per_m": 20000}');
     expect(issueLines(edited(['body'], value))).toEqual([
-      'body.mass_kg: expected a number > 0 (kg), found Infinity',
-      'body.leg_length_m: expected a number > 0 (m), found -Infinity',
+      'body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found Infinity',
+      'body.leg_length_m: expected a number from 1e-4 to 100 (m), found -Infinity',
     ]);
   });
 
   it('rejects NaN and the string "NaN"', () => {
     expect(issueLines(edited(['start', 'apex_height_m'], 'NaN'))).toEqual([
-      'start.apex_height_m: expected a finite number (m), found "NaN"',
+      'start.apex_height_m: expected a number from -1e4 to 1e4 (m), found "NaN"',
     ]);
     expect(issueLines(edited(['start', 'forward_speed_m_per_s'], Number.NaN))).toEqual([
-      'start.forward_speed_m_per_s: expected a number >= 0 (m/s), found NaN',
+      'start.forward_speed_m_per_s: expected a number from 0 to 1000 (m/s), found NaN',
     ]);
     expect(issueLines(edited(['policy', 'angle'], { kind: 'retraction', attack_at_apex_deg: 60, rate_deg_per_s: Infinity }))).toEqual([
-      'policy.angle.rate_deg_per_s: expected a finite number (deg/s), found Infinity',
+      'policy.angle.rate_deg_per_s: expected a number from -1e5 to 1e5 (deg/s), found Infinity',
     ]);
   });
 
   it('rejects a negative forward speed', () => {
     expect(issueLines(edited(['start', 'forward_speed_m_per_s'], -1))).toEqual([
-      'start.forward_speed_m_per_s: expected a number >= 0 (m/s), found -1',
+      'start.forward_speed_m_per_s: expected a number from 0 to 1000 (m/s), found -1',
     ]);
   });
 
@@ -235,6 +235,67 @@ describe('numbers out of range', () => {
       'integrator.absolute_tolerance: expected a number > 0 and < 0.1, found 0',
       'integrator.max_steps_per_stance: expected an integer from 10 to 10000000, found 9.5',
     ]);
+  });
+});
+
+describe('physical bounds: every number in a stated range, so the physics stays finite', () => {
+  // [path, just below, low end, high end, just above, expected text]; the ends are accepted
+  const bounds: [(string | number)[], number, number, number, number, string][] = [
+    [['body', 'mass_kg'], 9e-7, 1e-6, 1e6, 1.1e6, 'a number from 1e-6 to 1e6 (kg)'],
+    [['body', 'leg_length_m'], 9e-5, 1e-4, 100, 101, 'a number from 1e-4 to 100 (m)'],
+    [['body', 'leg_stiffness_N_per_m'], 9e-4, 1e-3, 1e12, 1.1e12, 'a number from 1e-3 to 1e12 (N/m)'],
+    [['body', 'gravity_m_per_s2'], 5e-324, 1e-5, 1000, 1001, 'a number from 1e-5 to 1000 (m/s^2)'],
+    [['body', 'leg_damping_N_s_per_m'], -1e-9, 0, 1e9, 1.1e9, 'a number from 0 to 1e9 (N s/m)'],
+    [['start', 'forward_speed_m_per_s'], -1e-9, 0, 1000, 1e308, 'a number from 0 to 1000 (m/s)'],
+    [['start', 'apex_height_m'], -2e4, -1e4, 1e4, 1.0001e4, 'a number from -1e4 to 1e4 (m)'],
+  ];
+  it.each(bounds)('%s: the ends accepted, beyond them refused naming the range and the value', (path, below, low, high, above, text) => {
+    const accepted = (value: number) => {
+      // a start apex of -1e4 m needs ground below it for the first touchdown
+      let base: unknown = CONTRACT_EXAMPLE;
+      if (path[1] === 'apex_height_m' && value < 0) base = edited(['terrain'], { kind: 'steps', ground_heights_m: [-1e4] });
+      if (path[1] === 'leg_length_m') base = edited(['start', 'apex_height_m'], 1000); // a 100 m leg needs a higher apex
+      return parseScenario(edited(path, value, base));
+    };
+    if (path[1] !== 'apex_height_m') expect(() => accepted(low)).not.toThrow();
+    expect(() => accepted(high)).not.toThrow();
+    for (const value of [below, above]) {
+      expect(issueLines(edited(path, value))).toContain(`${path.join('.')}: expected ${text}, found ${value}`);
+    }
+  });
+
+  it('subnormal gravity and a speed of 1e308 are refused at their own fields (not downstream)', () => {
+    expect(issueLines(edited(['body', 'gravity_m_per_s2'], 5e-324))).toEqual(['body.gravity_m_per_s2: expected a number from 1e-5 to 1000 (m/s^2), found 5e-324']);
+    expect(issueLines(edited(['start', 'forward_speed_m_per_s'], 1e308))).toEqual(['start.forward_speed_m_per_s: expected a number from 0 to 1000 (m/s), found 1e+308']);
+  });
+
+  it('policy and terrain numbers: rates, knot times, stiffness values, ground heights, sigma', () => {
+    expect(issueLines(edited(['policy', 'angle'], { kind: 'retraction', attack_at_apex_deg: 60, rate_deg_per_s: 2e5 }))).toEqual([
+      'policy.angle.rate_deg_per_s: expected a number from -1e5 to 1e5 (deg/s), found 200000',
+    ]);
+    expect(issueLines(edited(['policy', 'angle'], { kind: 'time_table', time_since_apex_s: [0, 2e6], attack_deg: [60, 70] }))).toEqual([
+      'policy.angle.time_since_apex_s[1]: expected a time from 0 to 1e6 (s), found 2000000',
+    ]);
+    expect(issueLines(edited(['policy', 'stiffness'], { kind: 'split', compression_N_per_m: 2 ** 53, extension_N_per_m: 1e-46 }))).toEqual([
+      'policy.stiffness.compression_N_per_m: expected a number from 1e-3 to 1e12 (N/m), found 9007199254740992',
+      'policy.stiffness.extension_N_per_m: expected a number from 1e-3 to 1e12 (N/m), found 1e-46',
+    ]);
+    expect(issueLines(edited(['terrain'], { kind: 'steps', ground_heights_m: [0, -2e4] }))).toEqual([
+      'terrain.ground_heights_m[1]: expected a ground height from -1e4 to 1e4 (m), found -20000',
+    ]);
+    expect(issueLines(edited(['terrain'], { kind: 'random_walk', sigma_m: 1e4, seed: 1 }))).toEqual([
+      'terrain.sigma_m: expected a number from 0 to 1000 (m), found 10000',
+    ]);
+    const long = Array.from({ length: 100_001 }, (_, i) => i * 1e-3);
+    expect(issueLines(edited(['policy', 'angle'], { kind: 'time_table', time_since_apex_s: long, attack_deg: long.map(() => 60) }))).toEqual([
+      'policy.angle.time_since_apex_s: expected a non-empty array of at most 100000 times from 0 to 1e6 (s), strictly increasing, found 100001 entries',
+      'policy.angle.attack_deg: expected a non-empty array of angles in (0, 90] (deg), one per knot, found 100001 entries',
+    ]);
+  });
+
+  it('every example scenario of the repository is inside the bounds', () => {
+    expect(() => demoScenario()).not.toThrow();
+    expect(() => parseScenario(CONTRACT_EXAMPLE)).not.toThrow();
   });
 });
 
@@ -261,31 +322,31 @@ describe('tables', () => {
   it('rejects negative and non-finite times, and bad values by index', () => {
     const angle = { kind: 'time_table', time_since_apex_s: [-0.1, Infinity], attack_deg: [60, 95] };
     expect(issueLines(edited(['policy', 'angle'], angle))).toEqual([
-      'policy.angle.time_since_apex_s[0]: expected a time >= 0 (s), found -0.1',
-      'policy.angle.time_since_apex_s[1]: expected a time >= 0 (s), found Infinity',
+      'policy.angle.time_since_apex_s[0]: expected a time from 0 to 1e6 (s), found -0.1',
+      'policy.angle.time_since_apex_s[1]: expected a time from 0 to 1e6 (s), found Infinity',
       'policy.angle.attack_deg[1]: expected an angle in (0, 90] (deg from the horizontal), found 95',
     ]);
     const stiffness = { kind: 'time_table', time_since_apex_s: [0], compression_N_per_m: [0], extension_N_per_m: ['x'] };
     expect(issueLines(edited(['policy', 'stiffness'], stiffness))).toEqual([
-      'policy.stiffness.compression_N_per_m[0]: expected a number > 0 (N/m), found 0',
-      'policy.stiffness.extension_N_per_m[0]: expected a number > 0 (N/m), found "x"',
+      'policy.stiffness.compression_N_per_m[0]: expected a stiffness from 1e-3 to 1e12 (N/m), found 0',
+      'policy.stiffness.extension_N_per_m[0]: expected a stiffness from 1e-3 to 1e12 (N/m), found "x"',
     ]);
   });
 
   it('rejects empty tables and empty step lists', () => {
     const angle = { kind: 'time_table', time_since_apex_s: [], attack_deg: [] };
     expect(issueLines(edited(['policy', 'angle'], angle))).toEqual([
-      'policy.angle.time_since_apex_s: expected a non-empty array of times >= 0 (s), strictly increasing, found []',
+      'policy.angle.time_since_apex_s: expected a non-empty array of at most 100000 times from 0 to 1e6 (s), strictly increasing, found []',
       'policy.angle.attack_deg: expected a non-empty array of angles in (0, 90] (deg), one per knot, found []',
     ]);
     expect(issueLines(edited(['terrain'], { kind: 'steps', ground_heights_m: [] }))).toEqual([
-      'terrain.ground_heights_m: expected a non-empty array of ground heights (m), found []',
+      'terrain.ground_heights_m: expected a non-empty array of at most 100000 ground heights from -1e4 to 1e4 (m), found []',
     ]);
   });
 
   it('rejects a split stiffness that is not positive', () => {
     expect(issueLines(edited(['policy', 'stiffness'], { kind: 'split', compression_N_per_m: -1, extension_N_per_m: 1 }))).toEqual([
-      'policy.stiffness.compression_N_per_m: expected a number > 0 (N/m), found -1',
+      'policy.stiffness.compression_N_per_m: expected a number from 1e-3 to 1e12 (N/m), found -1',
     ]);
   });
 });
@@ -310,7 +371,7 @@ describe('kinds and unknown fields', () => {
   it('rejects an unknown field with its full path and a suggestion', () => {
     const value = edited(['body', 'mas_kg'], 80, edited(['body', 'mass_kg'], undefined));
     expect(issueLines(value)).toEqual([
-      'body.mass_kg: expected a number > 0 (kg), found missing',
+      'body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found missing',
       'body.mas_kg: unknown field (did you mean mass_kg?)',
     ]);
   });
@@ -346,7 +407,7 @@ describe('random terrain seeds', () => {
 
   it('rejects a negative sigma', () => {
     expect(issueLines(edited(['terrain'], { kind: 'random_walk', sigma_m: -0.01, seed: 1 }))).toEqual([
-      'terrain.sigma_m: expected a number >= 0 (m), found -0.01',
+      'terrain.sigma_m: expected a number from 0 to 1000 (m), found -0.01',
     ]);
   });
 });
@@ -393,7 +454,7 @@ describe('start apex above the first touchdown', () => {
 
   it('is skipped when the fields it needs are themselves invalid', () => {
     const value = edited(['body', 'leg_length_m'], -1, edited(['start', 'apex_height_m'], 0.5));
-    expect(issueLines(value)).toEqual(['body.leg_length_m: expected a number > 0 (m), found -1']);
+    expect(issueLines(value)).toEqual(['body.leg_length_m: expected a number from 1e-4 to 100 (m), found -1']);
   });
 });
 
@@ -414,7 +475,7 @@ describe('reading scenario files', () => {
     const path = file('bad.json', JSON.stringify(edited(['body', 'mass_kg'], -9)));
     const error = await readScenarioFile(path).catch((caught: unknown) => caught);
     expect(error).toBeInstanceOf(InputError);
-    expect((error as InputError).format()).toBe(`${path}: body.mass_kg: expected a number > 0 (kg), found -9`);
+    expect((error as InputError).format()).toBe(`${path}: body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -9`);
   });
 
   it('reports a missing file', async () => {

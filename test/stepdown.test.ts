@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
 import { main } from '../src/cli/main.js';
-import { stepModel, stepTolerance, type StepToleranceResult } from '../src/core/analysis/stepdown.js';
+import { MAX_GRID_POINTS, stepModel, stepTolerance, type StepToleranceResult } from '../src/core/analysis/stepdown.js';
 import { loadEngine, rolloutInput } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
 import { buildModel, DEG } from '../src/core/model.js';
@@ -145,6 +145,41 @@ describe('a policy that falls even without a step', () => {
   });
 });
 
+describe('the work is bounded by the physics, not by the resolution', () => {
+  // from a 1e4 m apex the rise search range is the apex clearance, about 1e4 m (law: above it the
+  // leg cannot be placed): 2e6 sizes at the default 5 mm spacing, so that direction's grid widens
+  const high = scenario({ integrator, strides: 20, start: { apex_height_m: 1e4, forward_speed_m_per_s: 5 } });
+
+  it('1e4 m apex: each direction scans at most MAX_GRID_POINTS sizes, the widened grid reported', async () => {
+    const engine = await loadEngine();
+    const spy = vi.spyOn(engine, 'runBatch');
+    try {
+      const r = await stepTolerance(high);
+      const [first] = spy.mock.calls[0];
+      expect((first.model as unknown[]).length).toBeLessThanOrEqual(2 * MAX_GRID_POINTS);
+      const clearance = 1e4 - Math.sin(68 * DEG); // law: apex - L0 sin(attack)
+      expect(r.apex_clearance_m).toBeCloseTo(clearance, 9);
+      expect(r.step_up.grid_m).toBeGreaterThanOrEqual(clearance / MAX_GRID_POINTS);
+      expect(r.step_up.grid_m).toBeLessThan((2 * clearance) / MAX_GRID_POINTS);
+      expect(r.step_down.grid_m).toBe(0.005); // one leg length needs only 201 sizes
+      expect(r.method).toMatch(/rises every 5\.\d+ m: at most 2000 sizes per direction/);
+      // bisection from the widened spacing to 1 mm: ceil(log2(spacing / 1 mm)) halvings, one call each
+      const halvings = Math.ceil(Math.log2(r.step_up.grid_m / 0.001));
+      expect(spy.mock.calls.length).toBeLessThanOrEqual(1 + halvings + 1);
+      expect(r.resolution_m).toBe(0.001);
+    } finally {
+      spy.mockRestore();
+    }
+  });
+
+  it('an explicit grid too fine for the range is refused, naming the option and the spacing needed', async () => {
+    const error = await stepTolerance(high, { grid_m: 0.005 }).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(InputError);
+    expect((error as InputError).issues[0].path).toBe('grid_m');
+    expect((error as InputError).message).toMatch(/a spacing of at least 5\.\d+ m: the rise search range of 9999\.07\d* m holds at most 2000 coarse sizes/);
+  });
+});
+
 describe('bad input', () => {
   it('a start apex below the touchdown height on flat ground is refused, naming start.apex_height_m', async () => {
     // valid as a scenario (its first touchdown is on a 0.1 m lower step), but steps are measured from flat ground
@@ -224,5 +259,18 @@ describe('pronk stepdown', () => {
     expect(run.stdout).toBe('');
     expect(run.stderr.trim()).toMatch(message);
     expect(run.stderr.split('\n').filter(Boolean)).toHaveLength(1);
+  });
+
+  it('a 1e5 m apex is outside the scenario bounds (exit 2 naming the field); from 1e4 m a too fine --grid names --grid', async () => {
+    const far = join(directory, 'far.json');
+    const body = JSON.parse(JSON.stringify(scenario({ integrator, strides: 20 })));
+    writeFileSync(far, JSON.stringify({ ...body, start: { apex_height_m: 1e5, forward_speed_m_per_s: 5 } }));
+    const refused = await pronk(['stepdown', far, '--json']);
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toMatch(/start\.apex_height_m: expected a number from -1e4 to 1e4 \(m\), found 100000/);
+    writeFileSync(far, JSON.stringify({ ...body, start: { apex_height_m: 1e4, forward_speed_m_per_s: 5 } }));
+    const fine = await pronk(['stepdown', far, '--grid', '0.001']);
+    expect(fine.code).toBe(2);
+    expect(fine.stderr.trim()).toMatch(/^pronk stepdown: --grid: expected a spacing of at least 5\.\d+ m: the rise search range/);
   });
 });

@@ -273,7 +273,7 @@ describe('bad studies name the field', () => {
   });
 
   it('the scenario: inline problems under scenario., both or neither source', () => {
-    expect(lineFor(edited(['scenario', 'body', 'mass_kg'], -80), 'scenario.body.mass_kg')).toMatch(/expected a number > 0 \(kg\), found -80/);
+    expect(lineFor(edited(['scenario', 'body', 'mass_kg'], -80), 'scenario.body.mass_kg')).toMatch(/expected a number from 1e-6 to 1e6 \(kg\), found -80/);
     expect(lineFor(edited(['scenario_file'], 'x.json'), 'scenario_file')).toMatch(/not both/);
     expect(lineFor(edited(['scenario'], undefined), 'scenario')).toMatch(/found missing/);
     // a file path given to parseStudy directly (only readStudyFile knows where the study is)
@@ -295,6 +295,6 @@ describe('bad studies name the field', () => {
     writeFileSync(join(dir, 'study.json'), JSON.stringify(edited(['scenario_file'], 'robot.json', edited(['scenario'], undefined))));
     const error = await readStudyFile(join(dir, 'study.json')).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(InputError);
-    expect((error as InputError).format()).toMatch(/robot\.json: body\.leg_length_m: expected a number > 0 \(m\), found 0/);
+    expect((error as InputError).format()).toMatch(/robot\.json: body\.leg_length_m: expected a number from 1e-4 to 100 \(m\), found 0/);
   });
 });

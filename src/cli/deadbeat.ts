@@ -5,7 +5,8 @@
 
 import { scenarioArgument } from './scenario-argument.js';
 import type { ComparisonOptionNames, ComparisonOptions, DeadbeatComparison, DeadbeatLoads, TableStepCheck } from '../core/synthesis/compare.js';
-import type { DeadbeatMode, DeadbeatOptions, DeadbeatTable } from '../core/synthesis/deadbeat.js';
+import type { DeadbeatMode, DeadbeatOptions, DeadbeatTable, DeadbeatTarget } from '../core/synthesis/deadbeat.js';
+import { DEADBEAT_MAX_KNOTS, DEADBEAT_MAX_ROUNDS, TOLERANCE_NOISE_FACTOR } from '../core/synthesis/deadbeat.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
@@ -40,6 +41,7 @@ const SYNTHESIS_FLAGS: Record<string, string> = {
   ground_range_m: '--ground',
   knots: '--knots',
   mode: '--mode',
+  target: '--target',
   attack_range_deg: '--attack-range',
   tolerance_m: '--tolerance',
 };
@@ -48,16 +50,21 @@ export const deadbeatCommand: Command = {
   name: 'deadbeat',
   summary: 'one-step deadbeat table of attack angle (and extension stiffness) on time since apex, for unknown ground height',
   usage:
-    'deadbeat [FILE] --ground LO:HI [--mode angle|angle_and_stiffness] [--knots N] [--tolerance M] [--attack-range LO:HI] ' +
-    '[--after N] [--compare [--sigma S] [--rollouts R] [--seed N] [--rate-range LO:HI] [--workers N]] [--json] [--out RESULT]',
+    'deadbeat [FILE] --ground LO:HI [--mode angle|angle_and_stiffness] [--target absolute|above_ground_met] [--knots N] ' +
+    '[--tolerance M] [--attack-range LO:HI] [--after N] ' +
+    '[--compare [--sigma S] [--rollouts R] [--seed N] [--rate-range LO:HI] [--workers N]] [--json] [--out RESULT]',
   details: [
     "From the scenario's start apex (the target), the fall time to touchdown maps one-to-one onto the ground height met",
     '(Ernst, Geyer & Blickhan 2009; Wu & Geyer 2013). For each ground height in LO:HI the attack angle (and with',
     'angle_and_stiffness the extension stiffness) that brings the body back to the target apex on the next stride is',
     'solved; the table of (touchdown time, attack) then runs without knowing the ground. Mode angle returns the next apex',
-    'to the same absolute height (and so, with a conservative leg, the same speed); angle_and_stiffness returns it to the',
-    'same height above the ground met at the same speed. Knots are added until the apex error half-way between knots is',
-    'within --tolerance. A range starting below zero needs "=": --ground=-0.3:0.05.',
+    'to the same absolute height (and so, with a conservative leg, the same speed): it holds only while every touchdown',
+    "stays within LO:HI of the start's ground, so it does not follow a slope or stairs. angle_and_stiffness returns it,",
+    'by default (--target above_ground_met), to the same height above the ground met at the same speed, the spring adding',
+    'or removing m g h: stride after stride it holds the apex above the ground of the last touchdown while each step',
+    'between touchdowns stays within LO:HI (slopes, stairs); --target absolute holds the absolute height and the speed.',
+    'The report and --json (validity) say what the table holds and where it stops being valid. Knots are added until',
+    'the apex error half-way between knots is within --tolerance. A range starting below zero needs "=": --ground=-0.3:0.05.',
     '',
     '--compare adds the best fixed attack angle and the best swing-leg retraction (a grid search within the attack and',
     'rate ranges: the most rollouts surviving on the Monte Carlo terrain, ties broken by mean strides completed, then by',
@@ -80,11 +87,20 @@ export const deadbeatCommand: Command = {
       valueName: 'MODE',
       description: 'angle (next apex at the same absolute height; default) or angle_and_stiffness (same height above the ground met, same speed)',
     },
+    target: {
+      type: 'string',
+      valueName: 'REF',
+      description:
+        'the next apex height measured from: absolute (the start\'s ground; mode angle\'s only target) or above_ground_met ' +
+        '(the ground of the last touchdown; the default of angle_and_stiffness)',
+    },
     knots: { type: 'string', valueName: 'N', description: `ground heights solved first, evenly spaced, >= 2 (default ${DEFAULT_KNOTS})` },
     tolerance: {
       type: 'string',
       valueName: 'M',
-      description: `largest apex error allowed half-way between knots, m, > 0 (default ${DEFAULT_TOLERANCE_M})`,
+      description:
+        `largest apex error allowed half-way between knots, m (default ${DEFAULT_TOLERANCE_M}); from ${TOLERANCE_NOISE_FACTOR} x the ` +
+        `integrator's accuracy at the apex to the leg length; knots are added for at most ${DEADBEAT_MAX_ROUNDS} rounds, up to ${DEADBEAT_MAX_KNOTS} knots`,
     },
     'attack-range': {
       type: 'string',
@@ -131,6 +147,23 @@ export function parseDeadbeatFlags(values: ParsedCommandLine['values']): Flags {
   if (mode !== undefined && mode !== 'angle' && mode !== 'angle_and_stiffness') {
     throw new InputError([{ path: '--mode', expected: 'angle or angle_and_stiffness', found: describeFound(mode) }], { source: SOURCE });
   }
+  const target = values.target;
+  if (target !== undefined && target !== 'absolute' && target !== 'above_ground_met') {
+    throw new InputError([{ path: '--target', expected: 'absolute or above_ground_met', found: describeFound(target) }], { source: SOURCE });
+  }
+  if (target === 'above_ground_met' && (mode ?? 'angle') === 'angle') {
+    throw new InputError(
+      [
+        {
+          path: '--target',
+          expected:
+            'absolute with --mode angle (an attack angle alone cannot add or remove the energy m g h a height above the ground met needs: use --mode angle_and_stiffness)',
+          found: describeFound(target),
+        },
+      ],
+      { source: SOURCE },
+    );
+  }
   const knots = parseIntegerOption(values.knots, '--knots', 2, MAX_KNOTS, SOURCE);
   const tolerance = parseNumberOption(values.tolerance, '--tolerance', 'a length > 0 (m)', SOURCE, (v) => v > 0);
   const attackRange = parseRangeOption(values['attack-range'], '--attack-range', 'two angles LO:HI in degrees with 0 < LO < HI <= 90', (lo, hi) => lo > 0 && hi <= 90);
@@ -156,6 +189,7 @@ export function parseDeadbeatFlags(values: ParsedCommandLine['values']): Flags {
   const synthesis: DeadbeatOptions = {
     groundRange_m: ground,
     mode: (mode as DeadbeatMode | undefined) ?? 'angle',
+    ...(target === undefined ? {} : { target: target as DeadbeatTarget }),
     knots: knots ?? DEFAULT_KNOTS,
     tolerance_m: tolerance ?? DEFAULT_TOLERANCE_M,
     ...(attackRange === undefined ? {} : { attackRange_deg: attackRange }),
@@ -300,7 +334,8 @@ export function renderDeadbeat(
   const withStiffness = t.mode === 'angle_and_stiffness';
   const target =
     t.target.height_reference === 'absolute'
-      ? `next apex at ${plain(t.target.apex_height_m)} m (absolute) and so ${plain(t.target.forward_speed_m_per_s)} m/s`
+      ? `next apex at ${plain(t.target.apex_height_m)} m (absolute)` +
+        (withStiffness ? ` at ${plain(t.target.forward_speed_m_per_s)} m/s` : ` and so ${plain(t.target.forward_speed_m_per_s)} m/s`)
       : `next apex ${plain(t.target.apex_height_m)} m above the ground met, at ${plain(t.target.forward_speed_m_per_s)} m/s`;
   const solved =
     t.solved_range_m === null
@@ -324,7 +359,8 @@ export function renderDeadbeat(
       [
         'knots',
         `${t.knots.length} (${extra.options.knots ?? DEFAULT_KNOTS} evenly spaced first, more where the error half-way between knots ` +
-          `exceeded ${plain(extra.options.tolerance_m ?? DEFAULT_TOLERANCE_M)} m)`,
+          `exceeded ${plain(extra.options.tolerance_m ?? DEFAULT_TOLERANCE_M)} m)` +
+          refinementNote(t.refinement),
       ],
       [
         'residual',
@@ -381,12 +417,30 @@ export function renderDeadbeat(
       ]
     : ['No knot was solved: there is no table.'];
 
-  const parts = [header, '', ...unsolved, '', ...knotTable, ''];
+  const validity = [
+    wrap(`The table holds ${t.validity.holds}.`, TEXT_WIDTH),
+    wrap(`It is valid while ${t.validity.valid_while}; ${t.validity.beyond}.`, TEXT_WIDTH),
+  ];
+  const parts = [header, '', ...validity, '', ...unsolved, '', ...knotTable, ''];
   if (stepCheck) parts.push(renderStepCheck(stepCheck), '');
   if (comparison) parts.push(renderComparison(comparison), '');
   if (extra.comparisonSkipped) parts.push(`Comparison skipped: ${extra.comparisonSkipped}.`, '');
   parts.push(wrap(SAFETY_CAUTION, TEXT_WIDTH, 'Caution: ', '  '), '');
   return parts.join('\n');
+}
+
+// Why the knot refinement stopped, when it was not because the tolerance was met.
+function refinementNote(r: DeadbeatTable['refinement']): string {
+  switch (r.stopped_by) {
+    case 'tolerance_met':
+      return '';
+    case 'knot_cap':
+      return `; stopped at the cap of ${r.max_knots} knots before the tolerance was met`;
+    case 'round_cap':
+      return `; stopped after the cap of ${r.max_rounds} refinement rounds before the tolerance was met`;
+    case 'too_few_knots':
+      return '; fewer than 2 knots solved, nothing to refine';
+  }
 }
 
 function renderStepCheck(c: TableStepCheck): string {

@@ -28,10 +28,11 @@ export const scanCommand: Command = {
   details: [
     'PATH is a dotted path to a numeric field of the scenario, e.g. policy.angle.attack_deg,',
     'body.leg_stiffness_N_per_m, policy.angle.rate_deg_per_s; N values from LO to HI (inclusive; N = 1',
-    "gives LO alone). Every cell runs the return map (as in 'pronk map') at the scenario's start energy on",
-    'flat ground and is none (no fixed point), unstable (fixed points, none with |slope| < 1) or stable',
-    '(with the stable fixed point\'s height and slope). Cells are listed row-major, y outer:',
-    'cells[iy * nx + ix]. Results do not depend on --workers; shards merge with pronk merge.',
+    "gives LO alone); the two PATHs must differ. Every cell runs the return map (as 'pronk map' does on the",
+    "scenario with that cell's two values) at that cell's own start energy, on flat ground, and is none (no",
+    'fixed point), unstable (fixed points, none with |slope| < 1) or stable (with the stable fixed point\'s',
+    'height and slope). Cells are listed row-major, y outer: cells[iy * nx + ix]. Results do not depend on',
+    '--workers; shards merge with pronk merge.',
   ].join('\n'),
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
@@ -123,7 +124,13 @@ export function renderScan(scenario: Scenario, result: ScanResult): string {
     scenario.name ?? 'Unnamed scenario',
     fields([
       ['policy', `${describeAngle(scenario.policy.angle)}; ${describeStiffness(scenario.policy.stiffness, scenario)}`],
-      ['energy', `${fixed(result.energy_J, 3)} J in every cell (the scenario's start), flat ground at 0 m`],
+      [
+        'energy',
+        result.cell_energy_range_J[0] === result.cell_energy_range_J[1]
+          ? `${fixed(result.energy_J, 3)} J in every cell (the scenario's start), flat ground at 0 m`
+          : `each cell's own start energy, ${fixed(result.cell_energy_range_J[0], 3)} to ${fixed(result.cell_energy_range_J[1], 3)} J ` +
+            `(the scenario's: ${fixed(result.energy_J, 3)} J), flat ground at 0 m`,
+      ],
       ['x', `${result.x.path}: ${nx} values from ${plain(result.x.values[0])} to ${plain(result.x.values[nx - 1])}`],
       ['y', `${result.y.path}: ${ny} values from ${plain(result.y.values[0])} to ${plain(result.y.values[ny - 1])}`],
       ['cells', `${result.counts.stable} stable, ${result.counts.unstable} unstable only, ${result.counts.none} without a fixed point`],

@@ -4,7 +4,7 @@
 import { scenarioArgument } from './scenario-argument.js';
 import { InputError } from '../core/errors.js';
 import type { StepDirectionResult, StepToleranceOptionNames, StepToleranceResult } from '../core/analysis/stepdown.js';
-import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES } from '../core/analysis/stepdown.js';
+import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES, MAX_GRID_POINTS } from '../core/analysis/stepdown.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
@@ -99,7 +99,14 @@ export function renderStepTolerance(scenario: Scenario, r: StepToleranceResult):
           `${mm(r.apex_clearance_m)} mm above the touchdown height (no higher step can be met)`,
       ],
       ['survival', `1 + ${count(r.strides_after, 'stride')} after one permanent step at the first touchdown (replaces the terrain)`],
-      ['search', `every ${mm(r.grid_m)} mm, then bisected to ${mm(r.resolution_m)} mm: the first failure boundary`],
+      [
+        'search',
+        `every ${mm(r.grid_m)} mm` +
+          (r.step_down.grid_m !== r.grid_m || r.step_up.grid_m !== r.grid_m
+            ? ` (drops every ${mm(r.step_down.grid_m)} mm, rises every ${mm(r.step_up.grid_m)} mm: at most ${MAX_GRID_POINTS} sizes per direction)`
+            : '') +
+          `, then bisected to ${mm(r.resolution_m)} mm: the first failure boundary`,
+      ],
     ]),
   ].join('\n');
   const columns: Column[] = [

@@ -121,9 +121,13 @@ export class Engine {
     return new Float64Array(this.kernel.memory.buffer, ptr, count);
   }
 
-  /** Copy the models and their tables into the arena; returns the (models x M_SIZE) pointer. */
+  /**
+   * Copy the models and their tables into the arena; returns the (models x M_SIZE) pointer. A table
+   * shared by several models (the same array) is placed once: the kernel only reads it.
+   */
   private placeModels(models: readonly ModelBlock[]): number {
     const all = new Float64Array(models.length * L.M_SIZE);
+    const placed = new Map<Float64Array, number>();
     models.forEach((model, i) => {
       if (model.fields.length !== L.M_SIZE) {
         throw new EngineError(`model block ${i} has ${model.fields.length} fields, expected ${L.M_SIZE}`);
@@ -131,7 +135,13 @@ export class Engine {
       const fields = all.subarray(i * L.M_SIZE, (i + 1) * L.M_SIZE);
       fields.set(model.fields);
       const table = (arr: Float64Array | undefined, ptrField: number) => {
-        if (arr) fields[ptrField] = this.put(arr);
+        if (!arr) return;
+        let ptr = placed.get(arr);
+        if (ptr === undefined) {
+          ptr = this.put(arr);
+          placed.set(arr, ptr);
+        }
+        fields[ptrField] = ptr;
       };
       table(model.angleTimes, L.M_ANGLE_TABLE_T);
       table(model.angleValues, L.M_ANGLE_TABLE_A);

@@ -23,7 +23,7 @@ export class InputError extends Error {
     this.source = options.source;
   }
 
-  // One line per issue: `demo.json: body.mass_kg: expected a number > 0 (kg), found -9`.
+  // One line per issue: `demo.json: body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found -9`.
   format(source: string | undefined = this.source): string {
     return formatIssues(this.issues, source);
   }

@@ -112,6 +112,7 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_STEP_UNDERFLOW]: 'step_size_underflow',
   [L.STATUS_NON_FINITE]: 'non_finite_state',
   [L.STATUS_STEP_LIMIT]: 'step_limit',
+  [L.STATUS_ATTACK_OUT_OF_RANGE]: 'attack_out_of_range',
 };
 
 /** What each failure means, in words for a report. */
@@ -124,5 +125,7 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_LEG_NOT_PLACEABLE]: 'the apex was below the touchdown height (the leg cannot be placed)',
   [L.STATUS_STEP_UNDERFLOW]: 'numeric trouble: integrator step size underflow',
   [L.STATUS_NON_FINITE]: 'numeric trouble: the state became non-finite',
-  [L.STATUS_STEP_LIMIT]: 'numeric trouble: integrator step limit reached in one stance',
+  [L.STATUS_STEP_LIMIT]: 'numeric trouble: step limit reached (the integrator in one stance, or the touchdown search)',
+  [L.STATUS_ATTACK_OUT_OF_RANGE]:
+    'the commanded leg angle left (0, 90] deg before touchdown (a retraction without a clamp on that side: add max_deg or min_deg)',
 };

@@ -15,13 +15,56 @@ export const DEFAULT_MAX_STEPS_PER_STANCE = 100_000;
 export const MAX_STRIDES = 1_000_000;
 
 // ---------------------------------------------------------------------------------------------
+// Physical bounds. Wide enough for any legged machine from a milligram micro-robot to a
+// thousand-tonne walker, on any body from a small asteroid to a star, and narrow enough that every
+// derived quantity stays a finite, meaningful double: the energy m g y + m v²/2 (< 1e14 J), the
+// spring's ω = sqrt(k/m) (<= 1e9 rad/s), the fall time to touchdown sqrt(2 h / g) (about 6e4 s
+// across the whole 2e4 m of heights) and the speed bound E/(m g) of the return map (< 1e11 m).
+// A subnormal gravity or a speed of 1e308 is refused here, naming the field, instead of turning
+// into NaN or Infinity downstream. Each range is inclusive; the message gives it with the unit
+// (DEVELOPERS.md lists them all).
+
+export interface PhysicalBound {
+  low: number;
+  high: number;
+  unit: string;
+  /** The low end is excluded (a number > low). */
+  lowExclusive?: boolean;
+}
+
+export const BOUNDS = {
+  mass_kg: { low: 1e-6, high: 1e6, unit: 'kg' },
+  leg_length_m: { low: 1e-4, high: 100, unit: 'm' },
+  stiffness_N_per_m: { low: 1e-3, high: 1e12, unit: 'N/m' },
+  gravity_m_per_s2: { low: 1e-5, high: 1e3, unit: 'm/s^2' },
+  damping_N_s_per_m: { low: 0, high: 1e9, unit: 'N s/m' },
+  height_m: { low: -1e4, high: 1e4, unit: 'm' },
+  forward_speed_m_per_s: { low: 0, high: 1e3, unit: 'm/s' },
+  rate_deg_per_s: { low: -1e5, high: 1e5, unit: 'deg/s' },
+  time_since_apex_s: { low: 0, high: 1e6, unit: 's' },
+  sigma_m: { low: 0, high: 1e3, unit: 'm' },
+} as const satisfies Record<string, PhysicalBound>;
+
+/** Most knots in a time table, and most entries in a list of ground heights. */
+export const MAX_TABLE_KNOTS = 100_000;
+
+/** `a number from 1e-6 to 1e6 (kg)`: the text of a bound, as a message shows it. */
+export function boundText(bound: PhysicalBound, what = 'a number'): string {
+  return `${what} from ${showNumber(bound.low)} to ${showNumber(bound.high)} (${bound.unit})`;
+}
+
+function showNumber(x: number): string {
+  if (x !== 0 && (Math.abs(x) >= 1e4 || Math.abs(x) < 1e-2)) return x.toExponential().replace('e+', 'e');
+  return String(x);
+}
+
+const bounded = (bound: PhysicalBound, what?: string) => z.number({ error: boundText(bound, what) }).gte(bound.low).lte(bound.high);
+
+// ---------------------------------------------------------------------------------------------
 // Field schemas. Each carries its own "expected" text (with the unit), used for every way the
 // field can be wrong: missing, wrong type, non-finite (zod's number rejects NaN and ±Infinity) or
 // out of range.
 
-const positive = (unit: string) => z.number({ error: `a number > 0 (${unit})` }).gt(0);
-const nonNegative = (unit: string) => z.number({ error: `a number >= 0 (${unit})` }).gte(0);
-const finite = (unit: string) => z.number({ error: `a finite number (${unit})` });
 const integerIn = (low: number, high: number) =>
   z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
 const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
@@ -43,10 +86,11 @@ function fieldList(shape: z.ZodRawShape): string {
 
 // Knot times of a time table: measured from the flight apex, >= 0, strictly increasing.
 const knotTimes = z
-  .array(z.number({ error: 'a time >= 0 (s)' }).gte(0), {
-    error: 'a non-empty array of times >= 0 (s), strictly increasing',
+  .array(bounded(BOUNDS.time_since_apex_s, 'a time'), {
+    error: `a non-empty array of at most ${MAX_TABLE_KNOTS} ${boundText(BOUNDS.time_since_apex_s, 'times')}, strictly increasing`,
   })
   .min(1)
+  .max(MAX_TABLE_KNOTS)
   .superRefine((times, ctx) => {
     for (let i = 1; i < times.length; i++) {
       if (!(times[i] > times[i - 1])) {
@@ -61,7 +105,7 @@ const knotTimes = z
   });
 
 const knotValues = (element: z.ZodNumber, what: string) =>
-  z.array(element, { error: `a non-empty array of ${what}, one per knot` }).min(1);
+  z.array(element, { error: `a non-empty array of ${what}, one per knot` }).min(1).max(MAX_TABLE_KNOTS);
 
 // Every value column of a table has one entry per knot time. Runs even when some entries are
 // malformed, so a short column is reported alongside them.
@@ -92,17 +136,17 @@ const always = { when: () => true };
 // Body, start, policy, terrain, integrator.
 
 const bodyShape = {
-  mass_kg: positive('kg'),
-  leg_length_m: positive('m'),
-  leg_stiffness_N_per_m: positive('N/m'),
-  gravity_m_per_s2: positive('m/s^2').default(STANDARD_GRAVITY_M_PER_S2),
-  leg_damping_N_s_per_m: nonNegative('N s/m').default(0),
+  mass_kg: bounded(BOUNDS.mass_kg),
+  leg_length_m: bounded(BOUNDS.leg_length_m),
+  leg_stiffness_N_per_m: bounded(BOUNDS.stiffness_N_per_m),
+  gravity_m_per_s2: bounded(BOUNDS.gravity_m_per_s2).default(STANDARD_GRAVITY_M_PER_S2),
+  leg_damping_N_s_per_m: bounded(BOUNDS.damping_N_s_per_m).default(0),
 };
 export const bodySchema = strictObject(bodyShape, `an object with ${fieldList(bodyShape)}`);
 
 const startShape = {
-  apex_height_m: finite('m'),
-  forward_speed_m_per_s: nonNegative('m/s'),
+  apex_height_m: bounded(BOUNDS.height_m),
+  forward_speed_m_per_s: bounded(BOUNDS.forward_speed_m_per_s),
 };
 export const startSchema = strictObject(startShape, `an object with ${fieldList(startShape)}`);
 
@@ -114,7 +158,7 @@ const retractionAngle = strictObject(
   {
     kind: z.literal('retraction'),
     attack_at_apex_deg: attackAngleDeg,
-    rate_deg_per_s: finite('deg/s'),
+    rate_deg_per_s: bounded(BOUNDS.rate_deg_per_s),
     min_deg: attackAngleDeg.optional(),
     max_deg: attackAngleDeg.optional(),
   },
@@ -150,7 +194,7 @@ export const stiffnessPolicySchema = z
       strictObject({ kind: z.literal('constant') }, 'an object'),
       // compression stiffness until maximum compression, extension stiffness after
       strictObject(
-        { kind: z.literal('split'), compression_N_per_m: positive('N/m'), extension_N_per_m: positive('N/m') },
+        { kind: z.literal('split'), compression_N_per_m: bounded(BOUNDS.stiffness_N_per_m), extension_N_per_m: bounded(BOUNDS.stiffness_N_per_m) },
         'an object',
       ),
       // indexed by the touchdown time measured from the apex
@@ -158,8 +202,8 @@ export const stiffnessPolicySchema = z
         {
           kind: z.literal('time_table'),
           time_since_apex_s: knotTimes,
-          compression_N_per_m: knotValues(positive('N/m'), 'stiffnesses > 0 (N/m)'),
-          extension_N_per_m: knotValues(positive('N/m'), 'stiffnesses > 0 (N/m)'),
+          compression_N_per_m: knotValues(bounded(BOUNDS.stiffness_N_per_m, 'a stiffness'), boundText(BOUNDS.stiffness_N_per_m, 'stiffnesses')),
+          extension_N_per_m: knotValues(bounded(BOUNDS.stiffness_N_per_m, 'a stiffness'), boundText(BOUNDS.stiffness_N_per_m, 'stiffnesses')),
         },
         'an object',
       ).superRefine(checkKnotCounts(['compression_N_per_m', 'extension_N_per_m']), always),
@@ -183,15 +227,18 @@ export const terrainSchema = z
         {
           kind: z.literal('steps'),
           ground_heights_m: z
-            .array(finite('m'), { error: 'a non-empty array of ground heights (m)' })
-            .min(1),
+            .array(bounded(BOUNDS.height_m, 'a ground height'), {
+              error: `a non-empty array of at most ${MAX_TABLE_KNOTS} ${boundText(BOUNDS.height_m, 'ground heights')}`,
+            })
+            .min(1)
+            .max(MAX_TABLE_KNOTS),
         },
         'an object',
       ),
       // each touchdown's ground height is the previous one plus N(0, sigma), the first included
-      strictObject({ kind: z.literal('random_walk'), sigma_m: nonNegative('m'), seed }, 'an object'),
+      strictObject({ kind: z.literal('random_walk'), sigma_m: bounded(BOUNDS.sigma_m), seed }, 'an object'),
       // each touchdown's ground height drawn independently from N(0, sigma)
-      strictObject({ kind: z.literal('random_heights'), sigma_m: nonNegative('m'), seed }, 'an object'),
+      strictObject({ kind: z.literal('random_heights'), sigma_m: bounded(BOUNDS.sigma_m), seed }, 'an object'),
     ],
     { error: (issue) => ((issue.code as string) === 'invalid_type' ? TERRAIN_KINDS : undefined) },
   )

@@ -74,7 +74,9 @@ function toInputIssues(zodIssues: readonly z.core.$ZodIssue[], root: unknown, kn
       }
       default: {
         const params = (zodIssue as { params?: { found?: string } }).params;
-        add({ path, expected: zodIssue.message, found: params?.found ?? found });
+        // an over-long array: its length says more than its first entries
+        const tooLong = zodIssue.code === 'too_big' && Array.isArray(value) ? `${value.length} entries` : undefined;
+        add({ path, expected: zodIssue.message, found: params?.found ?? tooLong ?? found });
       }
     }
   }

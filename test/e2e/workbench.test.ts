@@ -100,7 +100,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     const shown = await firstFixedPoint();
     await setField('Mass', '-9');
     // the message of the scenario validator (src/core/scenario.ts, body.mass_kg)
-    await expect.poll(() => describedBy('Mass')).toBe('expected a number > 0 (kg), found -9');
+    await expect.poll(() => describedBy('Mass')).toBe('expected a number from 1e-6 to 1e6 (kg), found -9');
     expect(await field('Mass').getAttribute('aria-invalid')).toBe('true');
     const summary = await page.getByTestId('scenario-check').textContent();
     expect(summary).toContain('1 problem in the scenario');

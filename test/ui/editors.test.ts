@@ -52,7 +52,7 @@ describe('scenario editor', () => {
     await Promise.resolve();
     // the message of src/core/scenario.ts's positive('kg') field schema, as parseScenario reports it
     expect(mass.getAttribute('aria-invalid')).toBe('true');
-    expect(describedBy(mass)).toBe('expected a number > 0 (kg), found -9');
+    expect(describedBy(mass)).toBe('expected a number from 1e-6 to 1e6 (kg), found -9');
     expect(wb.scenarioDraft.body).toMatchObject({ mass_kg: -9 });
     expect(wb.scenarioCheck.value).toBeNull();
     const summary = screen.getByTestId('scenario-check').textContent ?? '';
@@ -66,7 +66,7 @@ describe('scenario editor', () => {
     const stiffness = screen.getByLabelText('Leg stiffness');
     type(stiffness, '5 kN/m');
     await Promise.resolve();
-    expect(describedBy(stiffness)).toBe('expected a number > 0 (N/m), found "5 kN/m"');
+    expect(describedBy(stiffness)).toBe('expected a number from 1e-3 to 1e12 (N/m), found "5 kN/m"');
     expect((stiffness as HTMLInputElement).value).toBe('5 kN/m');
   });
 

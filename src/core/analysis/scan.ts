@@ -1,6 +1,7 @@
 // `scan`: the return map's fixed-point analysis over a grid of two scenario parameters, as a
-// stability-region map. Every cell holds the energy at the scenario's start energy and classifies
-// its 1-D apex map (ground flat at 0): `none` (no fixed point), `unstable` (fixed points, none
+// stability-region map. Every cell is the scenario with that cell's two values, and its 1-D apex
+// map is taken at that cell's own start energy (an axis over the start apex, the speed, the mass or
+// gravity changes it), exactly as `map` takes it for that scenario (ground flat at 0): `none` (no fixed point), `unstable` (fixed points, none
 // with |slope| < 1) or `stable` (at least one with |slope| < 1, reported with its height and
 // slope).
 //
@@ -67,6 +68,8 @@ export interface ScanCell {
   iy: number;
   x: number;
   y: number;
+  /** This cell's start energy, J: the energy its map is taken at (E = m g y0 + m v0² / 2 of the cell's scenario). */
+  energy_J: number;
   class: ScanClass;
   /** The lowest stable fixed point's height and slope, or null. */
   stable_apex_height_m: number | null;
@@ -80,7 +83,10 @@ export interface ScanCell {
 }
 
 export interface ScanResult {
+  /** The base scenario's start energy, J; each cell's own is its energy_J. */
   energy_J: number;
+  /** The smallest and largest start energy over the cells, J. */
+  cell_energy_range_J: [number, number];
   ground_height_m: 0;
   scenario_sha256: string;
   x: { path: string; values: number[] };
@@ -116,6 +122,14 @@ export function parseAxisOption(text: string, option: string): ScanAxis {
   if (lo > hi) throw bad(`lo (${lo}) is above hi (${hi})`);
   if (n > 1 && lo === hi) throw bad(`lo equals hi (${lo}) with n = ${n}: use n = 1 for a single value`);
   return { path, lo, hi, n };
+}
+
+// `a.b[0]` and `a.b.0` name the same field.
+function samePath(a: string, b: string): boolean {
+  const sa = pathSegments(a);
+  const sb = pathSegments(b);
+  if (sa === null || sb === null) return a === b;
+  return sa.length === sb.length && sa.every((segment, i) => segment === sb[i]);
 }
 
 /** The grid values of an axis: n points from lo to hi, ends exact. */
@@ -192,6 +206,15 @@ export function normalizeScanOptions(options: unknown): ScanOptions {
   };
   const x = axis(o.x, '--x');
   const y = axis(o.y, '--y');
+  if (samePath(x.path, y.path)) {
+    throw new InputError([
+      {
+        path: '--y',
+        expected: `a PATH other than --x's (${x.path}): the two axes must vary two different fields`,
+        found: describeFound(y.path),
+      },
+    ]);
+  }
   const samples = o.samples === undefined ? DEFAULT_MAP_SAMPLES : o.samples;
   if (typeof samples !== 'number' || !Number.isInteger(samples) || samples < 2 || samples > MAX_SCAN_SAMPLES) {
     throw new InputError([{ path: '--samples', expected: `an integer from 2 to ${MAX_SCAN_SAMPLES}`, found: describeFound(samples) }]);
@@ -211,7 +234,6 @@ interface ScanGrid {
   yValues: number[];
   /** Validated scenario of every cell, row-major with y outer. */
   scenarios: Scenario[];
-  energy_J: number;
 }
 
 function setAt(root: unknown, segments: readonly Segment[], value: number): void {
@@ -257,7 +279,7 @@ function buildGrid(scenario: Scenario, options: ScanOptions): ScanGrid {
       }
     }
   }
-  return { options, xValues, yValues, scenarios, energy_J: startEnergy(scenario) };
+  return { options, xValues, yValues, scenarios };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -267,7 +289,8 @@ function buildGrid(scenario: Scenario, options: ScanOptions): ScanGrid {
 async function scanRows(grid: ScanGrid, start: number, end: number, runBatch: BatchRunner): Promise<ScanCell[]> {
   const chosen = grid.scenarios.slice(start, end);
   if (chosen.length === 0) return [];
-  const cells = chosen.map((s) => mapCell(s, grid.energy_J));
+  // each cell at its own start energy, as `map` takes the cell's scenario
+  const cells = chosen.map((s) => mapCell(s, startEnergy(s)));
   const evaluate = kernelEvaluator(chosen.map(mapModel), runBatch);
   const sampled = await sampleMaps(cells, grid.options.samples, evaluate);
   const roots = await findFixedPoints(cells, sampled, evaluate);
@@ -301,6 +324,7 @@ async function scanRows(grid: ScanGrid, start: number, end: number, runBatch: Ba
       iy,
       x: grid.xValues[ix],
       y: grid.yValues[iy],
+      energy_J: cells[i].energy_J,
       class: stable ? 'stable' : fixedPoints.length ? 'unstable' : 'none',
       stable_apex_height_m: stable ? stable.apex_height_m : null,
       stable_slope: stable ? stable.slope : null,
@@ -357,7 +381,9 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
   const total = xValues.length * yValues.length;
   const rows = rowsGiven as readonly ScanCell[];
   const classes = new Set<unknown>(['none', 'unstable', 'stable']);
-  const bad = rows.findIndex((row, i) => typeof row !== 'object' || row === null || row.index !== i || !classes.has(row.class));
+  const bad = rows.findIndex(
+    (row, i) => typeof row !== 'object' || row === null || row.index !== i || !classes.has(row.class) || !Number.isFinite(row.energy_J),
+  );
   if (rows.length !== total || bad >= 0) {
     throw new InputError([
       {
@@ -370,8 +396,15 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
   const counts = { none: 0, unstable: 0, stable: 0 };
   for (const row of rows) counts[row.class]++;
   const conservative = rows.every((row) => row.energy_conserving);
+  let lowest = Infinity;
+  let highest = -Infinity;
+  for (const row of rows) {
+    lowest = Math.min(lowest, row.energy_J);
+    highest = Math.max(highest, row.energy_J);
+  }
   return {
     energy_J: startEnergy(validated),
+    cell_energy_range_J: [lowest, highest],
     ground_height_m: 0,
     scenario_sha256: await contentHash(validated),
     x: { path: normalized.x.path, values: xValues },
@@ -381,7 +414,9 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
     cells: rows.map((row) => ({ ...row })),
     counts,
     stability_note:
-      "each cell's 1-D apex map at the scenario's start energy on flat ground at 0; stable means |P'(y*)| < 1" +
+      "each cell's 1-D apex map at that cell's own start energy on flat ground at 0" +
+      (lowest === highest ? ' (the same in every cell)' : ` (from ${lowest} to ${highest} J over the cells)`) +
+      "; stable means |P'(y*)| < 1" +
       (conservative ? '' : "; some cells change energy in stance, where this is the 1-D map's stability, not a periodic orbit's"),
     caution: SAFETY_CAUTION,
   };

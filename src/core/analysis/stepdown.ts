@@ -12,7 +12,10 @@
 // Search limits: a rise must stay below the apex clearance (start apex − leg length·sin(attack at
 // apex)); at or above it the leg cannot be placed at all (law: the foot would already be below the
 // ground at the apex), so the rise grid ends just past it and always holds a failure. Drops are
-// searched up to one leg length.
+// searched up to one leg length. The work is bounded by those ranges, not by the resolution: each
+// direction's coarse grid holds at most MAX_GRID_POINTS sizes (a range too long for the default
+// spacing, e.g. the clearance under a 1e4 m apex, widens that direction's grid, and the result says
+// so), and the bisection then takes log2(spacing / resolution) batched calls.
 
 import * as L from '../../../assembly/layout.js';
 import { loadEngine, rolloutInput, type Engine, type ModelBlock } from '../engine.js';
@@ -55,8 +58,10 @@ export const DEFAULT_RESOLUTION_M = 0.001;
 export const DEFAULT_GRID_M = 0.005;
 export const DEFAULT_SETTLE_STRIDES = 200;
 export const DEFAULT_SETTLE_BAND_M = 0.001;
-/** Candidate step sizes per direction at most (leg length / resolution). */
+/** The finest resolution is the leg length over this. */
 const MAX_LATTICE = 1_000_000;
+/** Coarse-grid sizes per direction at most: a longer range widens that direction's grid. */
+export const MAX_GRID_POINTS = 2000;
 /** The long run's last two apexes must agree this well (m, m/s) for a fixed point. */
 const FIXED_POINT_TOLERANCE = 1e-6;
 
@@ -87,6 +92,8 @@ export interface StepDirectionResult {
   first_failure_m: number | null;
   /** How the rollout just past the threshold failed; null when nothing failed. */
   failure_just_past: StepFailure | null;
+  /** Spacing of this direction's coarse grid, m: grid_m, or wider when the range would need more than MAX_GRID_POINTS sizes. */
+  grid_m: number;
   /** The largest size searched, m, and why there. */
   search_limit_m: number;
   search_limit_reason: string;
@@ -203,14 +210,30 @@ export async function stepTolerance(
   }
   const downLimit = Math.round(legLength / o.resolution);
   const upLimit = Math.floor(clearance / o.resolution + 1e-9) + 1; // first lattice size above the clearance
-  const grid = (limit: number) => {
+  // each direction's spacing, in resolutions: the one asked for, widened to at most MAX_GRID_POINTS sizes
+  const spacing = (limit: number) => Math.max(o.gridSteps, Math.ceil(limit / (MAX_GRID_POINTS - 1)));
+  const downSpacing = spacing(downLimit);
+  const upSpacing = spacing(upLimit);
+  if (options.grid_m !== undefined && (downSpacing > o.gridSteps || upSpacing > o.gridSteps)) {
+    const [range, need] = upSpacing > o.gridSteps ? [upLimit, upSpacing] : [downLimit, downSpacing];
+    throw new InputError([
+      {
+        path: names.grid_m,
+        expected:
+          `a spacing of at least ${sizeOf(need, o)} m: the ${upSpacing > o.gridSteps ? 'rise' : 'drop'} search range of ` +
+          `${sizeOf(range, o)} m holds at most ${MAX_GRID_POINTS} coarse sizes (leave it out to widen the grid automatically)`,
+        found: describeFound(options.grid_m),
+      },
+    ]);
+  }
+  const grid = (limit: number, step: number) => {
     const ks: number[] = [];
-    for (let k = 0; k < limit; k += o.gridSteps) ks.push(k);
+    for (let k = 0; k < limit; k += step) ks.push(k);
     ks.push(limit);
     return ks;
   };
-  const downGrid = grid(downLimit);
-  const upGrid = grid(upLimit);
+  const downGrid = grid(downLimit, downSpacing);
+  const upGrid = grid(upLimit, upSpacing);
   evaluate([...downGrid, ...upGrid.map((k) => -k)]);
 
   // First grid failure per direction, then bisect both gaps together (one call per iteration).
@@ -253,6 +276,7 @@ export async function stepTolerance(
     b: { lo: number; hi: number | null; j: number },
     ks: number[],
     sign: 1 | -1,
+    step: number,
     limit: number,
     limitReason: string,
     longIndex: number,
@@ -265,6 +289,7 @@ export async function stepTolerance(
       failure_just_past: failing
         ? { reason: STATUS_NAMES[failing.status], detail: STATUS_TEXT[failing.status], failed_stride: failing.completed }
         : null,
+      grid_m: sizeOf(step, o),
       search_limit_m: sizeOf(limit, o),
       search_limit_reason: limitReason,
       bounded_by: b.hi === null ? 'search_limit' : 'first_failure',
@@ -274,11 +299,12 @@ export async function stepTolerance(
     };
   };
 
-  const stepDown = direction(down, downGrid, 1, downLimit, 'one leg length', 0);
+  const stepDown = direction(down, downGrid, 1, downSpacing, downLimit, 'one leg length', 0);
   const stepUp = direction(
     up,
     upGrid,
     -1,
+    upSpacing,
     upLimit,
     'just above the apex clearance (start apex - leg length x sin(attack at apex)): a higher step cannot be met',
     1,
@@ -297,6 +323,7 @@ export async function stepTolerance(
     method:
       `one permanent step met at the first touchdown from the start apex (the scenario's terrain is replaced); ` +
       `survival = completing 1 + ${o.after} strides; sizes scanned every ${plainMetres(o.gridSteps * o.resolution)} ` +
+      widened([['drops', downSpacing], ['rises', upSpacing]], o) +
       `in one batch, then bisected to ${plainMetres(o.resolution)} between the last survivor and the first failure: ` +
       `the answer is the first failure boundary`,
     note:
@@ -347,6 +374,13 @@ function sizeOf(k: number, o: Canonical): number {
   return Number((k * o.resolution).toPrecision(12));
 }
 
+// "(rises every 5 m: at most 2000 sizes per direction) ", or nothing when no grid was widened.
+function widened(directions: [string, number][], o: Canonical): string {
+  const wide = directions.filter(([, step]) => step > o.gridSteps).map(([name, step]) => `${name} every ${plainMetres(step * o.resolution)}`);
+  return wide.length ? `(${wide.join(', ')}: at most ${MAX_GRID_POINTS} sizes per direction) ` : '';
+}
+
 function plainMetres(m: number): string {
+  if (m >= 1) return `${Number(m.toPrecision(6))} m`;
   return m >= 0.01 ? `${Number((m * 100).toPrecision(6))} cm` : `${Number((m * 1000).toPrecision(6))} mm`;
 }

@@ -9,14 +9,20 @@
 // stride; the pairs (t(h), α(h)) are then a table on time since apex that the robot can
 // run without knowing h: the ground it meets picks the right entry by the time it lands.
 //
-// Two targets:
-//  - mode 'angle': the next apex returns to the same absolute height y*. With a
-//    conservative leg the speed then returns to v* as well (energy is conserved, heights
-//    are absolute), so one table holds the whole apex state.
-//  - mode 'angle_and_stiffness': the next apex is y* + h, the same height above the
-//    ground just met, at the same speed v*; that takes m g h of energy (a step down
-//    gives it, a step up takes it), supplied by switching to a different extension
-//    stiffness at maximum compression (the work is ½(k_ext − k_comp) δ²).
+// Two targets (`target`):
+//  - 'absolute' (mode 'angle', and on request 'angle_and_stiffness'): the next apex returns
+//    to the same absolute height y*. With a conservative leg the speed then returns to v*
+//    as well (energy is conserved, heights are absolute), so one table holds the whole apex
+//    state — but only while the ground met stays within the table's range of the start's
+//    ground: on ground that keeps rising (a slope, stairs) the apex does not rise with it,
+//    and the leg can no longer be placed.
+//  - 'above_ground_met' (mode 'angle_and_stiffness', its default): the next apex is y* + h,
+//    the same height above the ground just met, at the same speed v*; that takes m g h of
+//    energy (a step down gives it, a step up takes it), supplied by switching to a
+//    different extension stiffness at maximum compression (the work is ½(k_ext − k_comp) δ²).
+//    Heights and times are the same from any apex (the flight only sees differences), so
+//    stride after stride the table holds the apex y* above the ground of the last touchdown
+//    while each step between touchdowns stays within its range: it follows slopes and stairs.
 // A table is exact for one stride from the target apex. Stride after stride on a permanent
 // step, an apex error looks to the angle-only table like a ground error, and on the human-like
 // reference body it grows by about 1.3× per stride; the angle-and-stiffness table holds the
@@ -26,9 +32,12 @@ import * as L from '../../../assembly/layout.js';
 import { InputError } from '../errors.js';
 import { loadEngine, rolloutInput, type Engine, type ModelBlock } from '../engine.js';
 import { buildModel, DEG, STATUS_NAMES } from '../model.js';
-import { parseScenario, type Scenario } from '../scenario.js';
+import { BOUNDS, boundText, parseScenario, type Scenario } from '../scenario.js';
 
 export type DeadbeatMode = 'angle' | 'angle_and_stiffness';
+/** What the next apex height is measured from: the start's ground (absolute), or the ground just met. */
+export type DeadbeatTarget = 'absolute' | 'above_ground_met';
+export const DEADBEAT_TARGETS: readonly DeadbeatTarget[] = ['absolute', 'above_ground_met'];
 
 export interface DeadbeatOptions {
   /** Ground heights met at the next touchdown, m (absolute), lo < hi. */
@@ -36,6 +45,8 @@ export interface DeadbeatOptions {
   /** Ground heights solved for (table knots before sorting by time), >= 2. */
   knots?: number;
   mode?: DeadbeatMode;
+  /** The next apex's height reference; default: absolute for mode angle, above_ground_met for angle_and_stiffness. */
+  target?: DeadbeatTarget;
   /** Attack angles searched, deg. */
   attackRange_deg?: [number, number];
   /** Attack angles sampled per ground height to find every root. */
@@ -44,8 +55,39 @@ export interface DeadbeatOptions {
   extensionStiffnessRange_N_per_m?: [number, number];
   /** Largest apex error allowed half-way between knots; knots are added until it holds, m. */
   tolerance_m?: number;
-  /** Most knots the table may grow to. */
+  /** Most knots the table may grow to (at most DEADBEAT_MAX_KNOTS). */
   maxKnots?: number;
+}
+
+/** The knot refinement's caps: the work a tolerance can imply is bounded by these. */
+export const DEADBEAT_MAX_KNOTS = 4000;
+export const DEADBEAT_MAX_ROUNDS = 12;
+/** The smallest tolerance is this many times the integrator's accuracy at the target apex. */
+export const TOLERANCE_NOISE_FACTOR = 100;
+/** Strides per kernel call: bounds the memory a large refinement takes. */
+const STRIDES_PER_CALL = 8192;
+
+export interface DeadbeatValidity {
+  /** What the table returns the body to, stride after stride. */
+  holds: string;
+  /** What a touchdown's ground height is measured from for the table to apply. */
+  ground_reference: 'start_ground' | 'previous_touchdown';
+  /** The ground heights (relative to ground_reference) over which the table was solved, m; null when none was. */
+  valid_ground_m: [number, number] | null;
+  valid_while: string;
+  beyond: string;
+}
+
+/** How the knot refinement ended (the work it did, against its caps). */
+export interface DeadbeatRefinement {
+  /** Refinement rounds run (each solves the midpoints whose apex error exceeded the tolerance). */
+  rounds: number;
+  max_rounds: number;
+  max_knots: number;
+  tolerance_m: number;
+  /** The smallest tolerance accepted for this scenario, m (TOLERANCE_NOISE_FACTOR × the integrator's accuracy). */
+  tolerance_floor_m: number;
+  stopped_by: 'tolerance_met' | 'knot_cap' | 'round_cap' | 'too_few_knots';
 }
 
 export interface DeadbeatKnot {
@@ -77,8 +119,10 @@ export interface DeadbeatTable {
     apex_height_m: number;
     forward_speed_m_per_s: number;
     /** How the next apex height is measured: absolute, or above the ground met. */
-    height_reference: 'absolute' | 'above_ground_met';
+    height_reference: DeadbeatTarget;
   };
+  /** What the table holds and where it stops being valid, in numbers and in words. */
+  validity: DeadbeatValidity;
   ground_range_m: [number, number];
   /** Knots in increasing time since apex (decreasing ground height). */
   knots: DeadbeatKnot[];
@@ -96,6 +140,7 @@ export interface DeadbeatTable {
   check: { ground_height_m: number; residual_height_m: number | null; residual_speed_m_per_s: number | null; status: string }[];
   max_abs_residual_at_knots_m: number;
   max_abs_residual_between_knots_m: number | null;
+  refinement: DeadbeatRefinement;
 }
 
 interface StrideOutcome {
@@ -115,6 +160,16 @@ function optionIssue(path: string, expected: string, found: unknown): InputError
 
 export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOptions): Promise<DeadbeatTable> {
   const mode = options.mode ?? 'angle';
+  if (mode !== 'angle' && mode !== 'angle_and_stiffness') throw optionIssue('mode', 'angle or angle_and_stiffness', mode);
+  const target: DeadbeatTarget = options.target ?? (mode === 'angle' ? 'absolute' : 'above_ground_met');
+  if (!DEADBEAT_TARGETS.includes(target)) throw optionIssue('target', DEADBEAT_TARGETS.join(' or '), target);
+  if (mode === 'angle' && target !== 'absolute') {
+    throw optionIssue(
+      'target',
+      'absolute with mode angle (an attack angle alone cannot add or remove the energy m g h that a height above the ground met needs: use mode angle_and_stiffness)',
+      target,
+    );
+  }
   const [hLo, hHi] = options.groundRange_m;
   if (!(Number.isFinite(hLo) && Number.isFinite(hHi) && hLo < hHi)) {
     throw optionIssue('ground_range_m', 'two finite heights [lo, hi] with lo < hi (m)', options.groundRange_m);
@@ -125,10 +180,22 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
   if (!(aLo > 0 && aHi <= 90 && aLo < aHi)) throw optionIssue('attack_range_deg', 'angles 0 < lo < hi <= 90 (deg)', options.attackRange_deg);
   const samples = options.angleSamples ?? 240;
   const tolerance = options.tolerance_m ?? 1e-6;
-  if (!(tolerance > 0)) throw optionIssue('tolerance_m', 'a length > 0 (m)', tolerance);
-  const maxKnots = options.maxKnots ?? 4000;
-  if (!Number.isInteger(maxKnots) || maxKnots < knots) throw optionIssue('max_knots', `an integer >= knots (${knots})`, maxKnots);
-  if (!Number.isInteger(samples) || samples < 8) throw optionIssue('angle_samples', 'an integer >= 8', samples);
+  const toleranceFloor = deadbeatToleranceFloor(scenario);
+  const legLength = scenario.body.leg_length_m;
+  if (!(typeof tolerance === 'number' && tolerance >= toleranceFloor && tolerance <= legLength)) {
+    throw optionIssue(
+      'tolerance_m',
+      `a length from ${showLength(toleranceFloor)} to ${legLength} m (the leg length): at least ${TOLERANCE_NOISE_FACTOR} x the ` +
+        "integrator's accuracy at the target apex, relative_tolerance x max(leg length, apex height) + absolute_tolerance, " +
+        'below which an apex error cannot be told from integration error',
+      tolerance,
+    );
+  }
+  const maxKnots = options.maxKnots ?? DEADBEAT_MAX_KNOTS;
+  if (!Number.isInteger(maxKnots) || maxKnots < knots || maxKnots > DEADBEAT_MAX_KNOTS) {
+    throw optionIssue('max_knots', `an integer from knots (${knots}) to ${DEADBEAT_MAX_KNOTS}`, maxKnots);
+  }
+  if (!Number.isInteger(samples) || samples < 8 || samples > 10_000) throw optionIssue('angle_samples', 'an integer from 8 to 10000', samples);
 
   const engine = await loadEngine();
   const m = scenario.body.mass_kg;
@@ -139,9 +206,10 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
   const stiff = scenario.policy.stiffness;
   const kc = stiff.kind === 'split' ? stiff.compression_N_per_m : scenario.body.leg_stiffness_N_per_m;
   const keBase = stiff.kind === 'split' ? stiff.extension_N_per_m : kc;
-  const [keLo, keHi] = options.extensionStiffnessRange_N_per_m ?? [0.25 * kc, 4 * kc];
-  if (mode === 'angle_and_stiffness' && !(keLo > 0 && keLo < keHi)) {
-    throw optionIssue('extension_stiffness_range_N_per_m', 'stiffnesses 0 < lo < hi (N/m)', options.extensionStiffnessRange_N_per_m);
+  const kBound = BOUNDS.stiffness_N_per_m;
+  const [keLo, keHi] = options.extensionStiffnessRange_N_per_m ?? [Math.max(kBound.low, 0.25 * kc), Math.min(kBound.high, 4 * kc)];
+  if (mode === 'angle_and_stiffness' && !(keLo >= kBound.low && keLo < keHi && keHi <= kBound.high)) {
+    throw optionIssue('extension_stiffness_range_N_per_m', `stiffnesses lo < hi, both from ${boundText(kBound, '').trim()}`, options.extensionStiffnessRange_N_per_m);
   }
 
   // The model of one stride: fixed angle, split stiffness, a single permanent ground height.
@@ -160,7 +228,7 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
     return { ...base, fields, groundHeights: Float64Array.of(h) };
   };
   const strides = (models: ModelBlock[]): StrideOutcome[] => runStrides(engine, models, yTarget, vTarget);
-  const heightTarget = (h: number) => (mode === 'angle' ? yTarget : yTarget + h);
+  const heightTarget = (h: number) => (target === 'absolute' ? yTarget : yTarget + h);
 
   const ownAttack = attackAtApexRad(scenario);
 
@@ -179,7 +247,12 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
       const [w0, w1] = window[i];
       return Array.from({ length: samples }, (_, j) => w0 + ((w1 - w0) * j) / (samples - 1));
     });
-    const grid = strides(hs.flatMap((h, i) => sampled[i].map((a) => variant(a, h, keBase))));
+    const grid: StrideOutcome[] = [];
+    const heightsPerCall = Math.max(1, Math.floor(STRIDES_PER_CALL / samples));
+    for (let from = 0; from < hs.length; from += heightsPerCall) {
+      const part = hs.slice(from, from + heightsPerCall).flatMap((h, k) => sampled[from + k].map((a) => variant(a, h, keBase)));
+      for (const outcome of strides(part)) grid.push(outcome);
+    }
     const rootsAt = hs.map((h, i) => {
       const brackets: [number, number, number, number][] = []; // [a0, a1, f0, f1]
       for (let j = 0; j + 1 < samples; j++) {
@@ -266,7 +339,7 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
           const dk = 1e-6 * ke;
           const [f, fa, fk] = strides([variant(a, h, ke), variant(a + da, h, ke), variant(a, h, ke + dk)]);
           if (!f.ok || !fa.ok || !fk.ok) break;
-          const r1 = f.height - (yTarget + h);
+          const r1 = f.height - heightTarget(h);
           const r2 = f.speed - vTarget;
           if (Math.abs(r1) < 1e-11 && Math.abs(r2) < 1e-11) {
             ok = true;
@@ -378,9 +451,19 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
   };
   let table = knotsOf(solutions);
   let checks = table.length >= 2 ? runTable(table) : [];
-  for (let round = 0; round < 12 && table.length >= 2 && table.length < maxKnots; round++) {
+  let rounds = 0;
+  let stoppedBy: DeadbeatRefinement['stopped_by'] = table.length >= 2 ? 'round_cap' : 'too_few_knots';
+  for (let round = 0; round < DEADBEAT_MAX_ROUNDS && table.length >= 2; round++) {
     const bad = checks.filter((c) => !c.knot && c.err > tolerance);
-    if (bad.length === 0) break;
+    if (bad.length === 0) {
+      stoppedBy = 'tolerance_met';
+      break;
+    }
+    if (table.length >= maxKnots) {
+      stoppedBy = 'knot_cap';
+      break;
+    }
+    rounds++;
     const room = maxKnots - table.length;
     const add = bad.slice(0, room);
     const anchors = add.map((c) => 0.5 * (c.left.attack_deg + c.right.attack_deg) * DEG);
@@ -394,6 +477,10 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
     solutions = [...solutions, ...fresh].sort((a, b) => a.h - b.h);
     table = knotsOf(solutions);
     checks = runTable(table);
+  }
+  if (stoppedBy === 'round_cap' && table.length >= 2) {
+    if (!checks.some((c) => !c.knot && c.err > tolerance)) stoppedBy = 'tolerance_met';
+    else if (table.length >= maxKnots) stoppedBy = 'knot_cap';
   }
   const policy = policyOf(table);
   const check: DeadbeatTable['check'] = checks
@@ -417,8 +504,9 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
     target: {
       apex_height_m: yTarget,
       forward_speed_m_per_s: vTarget,
-      height_reference: mode === 'angle' ? 'absolute' : 'above_ground_met',
+      height_reference: target,
     },
+    validity: deadbeatValidity(target, yTarget, vTarget, solvedRange, mode === 'angle_and_stiffness' ? 'stiffness' : conservativeLeg(scenario) ? 'conservative' : 'no'),
     ground_range_m: [hLo, hHi],
     knots: table,
     unsolved,
@@ -427,7 +515,79 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
     check,
     max_abs_residual_at_knots_m: atKnots,
     max_abs_residual_between_knots_m: between,
+    refinement: {
+      rounds,
+      max_rounds: DEADBEAT_MAX_ROUNDS,
+      max_knots: maxKnots,
+      tolerance_m: tolerance,
+      tolerance_floor_m: toleranceFloor,
+      stopped_by: stoppedBy,
+    },
   };
+}
+
+// The leg keeps the energy in angle mode: no damping, and the same stiffness before and after
+// maximum compression (a split leg gains or loses a fixed amount per stance).
+function conservativeLeg(scenario: Scenario): boolean {
+  if (scenario.body.leg_damping_N_s_per_m > 0) return false;
+  const k = scenario.policy.stiffness;
+  return k.kind !== 'split' || k.compression_N_per_m === k.extension_N_per_m;
+}
+
+function deadbeatValidity(
+  target: DeadbeatTarget,
+  y: number,
+  v: number,
+  range: [number, number] | null,
+  speed: 'stiffness' | 'conservative' | 'no',
+): DeadbeatValidity {
+  const span = range ? `${range[0]} to ${range[1]} m` : 'no range (nothing was solved)';
+  const beyond =
+    'past that range the table holds its end values and the next apex misses the target (far enough past it, the leg cannot ' +
+    'be placed or the body falls); inside it the table is exact at its knots for one stride, and the error left between ' +
+    'knots can grow over later strides (the step check measures it)';
+  if (target === 'absolute') {
+    return {
+      holds:
+        `the next apex at ${y} m, an absolute height (from the start's ground, 0)` +
+        (speed === 'stiffness'
+          ? `, at ${v} m/s (the extension stiffness makes up what the leg gains or loses)`
+          : speed === 'conservative'
+            ? `, and so the speed ${v} m/s (the leg keeps the energy)`
+            : ' (not the speed: this leg gains or loses energy in stance)'),
+      ground_reference: 'start_ground',
+      valid_ground_m: range,
+      valid_while:
+        `every touchdown's ground is within ${span} of the start's ground: the apex does not follow ground that keeps rising or ` +
+        'falling (a slope, stairs), which soon leaves that range',
+      beyond,
+    };
+  }
+  return {
+    holds:
+      `the next apex ${y} m above the ground of the last touchdown, at ${v} m/s: the extension stiffness adds the energy ` +
+      'a step up takes and removes what a step down gives (m g Δh per stride)',
+    ground_reference: 'previous_touchdown',
+    valid_ground_m: range,
+    valid_while:
+      `each touchdown's ground is within ${span} of the previous touchdown's (of the start's ground for the first): ` +
+      'slopes, stairs and uneven ground whose step per stride stays in that range, with extension stiffnesses in the range searched',
+    beyond,
+  };
+}
+
+/**
+ * The smallest between-knot apex tolerance that means something for this scenario, m:
+ * TOLERANCE_NOISE_FACTOR × the integrator's error scale at the target apex (common practice: a
+ * target a hundred times above the solver's accuracy is still resolved by it).
+ */
+export function deadbeatToleranceFloor(scenario: Scenario): number {
+  const { relative_tolerance: rtol, absolute_tolerance: atol } = scenario.integrator;
+  return TOLERANCE_NOISE_FACTOR * (rtol * Math.max(scenario.body.leg_length_m, Math.abs(scenario.start.apex_height_m)) + atol);
+}
+
+function showLength(m: number): string {
+  return String(Number(m.toPrecision(3)));
 }
 
 function withSteps(fields: Float64Array): Float64Array {
@@ -447,6 +607,13 @@ function attackAtApexRad(s: Scenario): number {
 /** One stride per model from the target apex; the next apex and the stance loads. */
 function runStrides(engine: Engine, models: ModelBlock[], y: number, v: number): StrideOutcome[] {
   if (models.length === 0) return [];
+  if (models.length > STRIDES_PER_CALL) {
+    const out: StrideOutcome[] = [];
+    for (let from = 0; from < models.length; from += STRIDES_PER_CALL) {
+      for (const outcome of runStrides(engine, models.slice(from, from + STRIDES_PER_CALL), y, v)) out.push(outcome);
+    }
+    return out;
+  }
   const inputs = new Float64Array(models.length * L.I_SIZE);
   for (let r = 0; r < models.length; r++) inputs.set(rolloutInput(y, v, 0, r), r * L.I_SIZE);
   const b = engine.runBatch({ model: models, inputs, strides: 1, records: true });

@@ -48,7 +48,7 @@ const NUMBER_TEXT = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
 /**
  * The value a number field holds for what was typed: '' → undefined (the field is left out, so
  * a default applies or the validator says it is missing), a number → that number, anything else
- * → the text itself, which the validator then reports ("expected a number > 0 (kg), found "9x"").
+ * → the text itself, which the validator then reports ("expected a number from 1e-6 to 1e6 (kg), found "9x"").
  */
 export function numberFromText(text: string): number | string | undefined {
   const t = text.trim();
