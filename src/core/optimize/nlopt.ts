@@ -78,9 +78,10 @@ export interface Problem {
   stopValue?: number;
   /**
    * Seed for the stochastic methods. nlopt-js cannot call nlopt_srand; NLopt seeds itself once per
-   * module instance from the clock (gettimeofday → Date.now), so the first stochastic run in a
-   * module instance is made to see a clock derived from the seed. Later stochastic runs in the same
-   * instance continue that random stream: for one seed → one result, give each run a fresh worker.
+   * module instance from the clock (gettimeofday → Date.now) at the first optimization of any
+   * method, so the first run in a module instance is made to see a clock derived from the seed.
+   * Later runs in the same instance continue that random stream: for one seed → one result, give
+   * each stochastic run a module that has run nothing yet (a fresh worker).
    */
   seed?: number;
 }
@@ -105,6 +106,12 @@ export interface Outcome {
   trace: TracePoint[];
   /** False when a stochastic method ran on a random stream an earlier run had already used. */
   reproducible: boolean;
+  /** The value of the first evaluation (null when none ran). */
+  firstValue: number | null;
+  /** Every evaluation returned exactly the first value: the run saw a plateau (no direction to follow). */
+  flat: boolean;
+  /** The evaluation (1-based) at which the best point was found (0 when none ran). */
+  bestAt: number;
 }
 
 export interface RunControl {
@@ -212,6 +219,9 @@ interface Slot {
   error: unknown;
   trace: TracePoint[];
   traceEvery: number;
+  firstValue: number | null;
+  flat: boolean;
+  bestAt: number;
 }
 
 let slot: Slot | null = null;
@@ -251,9 +261,12 @@ function evaluate(x: number[]): number {
   const feasible = violations.every((v) => v <= tol);
   // NaN is "worse than anything": NLopt would otherwise compare it arbitrarily.
   if (Number.isNaN(value)) value = Infinity;
+  if (s.firstValue === null) s.firstValue = value;
+  else if (!Object.is(value, s.firstValue)) s.flat = false;
   const b = s.best;
   if (!b || (feasible && !b.feasible) || (feasible === b.feasible && value < b.value)) {
     s.best = { x: point, value, feasible };
+    s.bestAt = s.evaluations;
   }
   if (s.evaluations % s.traceEvery === 0 || s.evaluations === 1) {
     s.trace.push({ evaluation: s.evaluations, value, best: s.best!.value });
@@ -293,7 +306,18 @@ function constraintTrampoline(i: number): (x: number[]) => number {
 
 // Whether this module instance's random stream has been seeded yet (see Problem.seed).
 let streamSeeded = false;
-const STOCHASTIC: ReadonlySet<MethodName> = new Set(['CRS2_LM', 'ISRES', 'ESCH', 'MLSL']);
+// Methods that draw from NLopt's random stream (nlopt_urand): the global ones, and PRAXIS, whose
+// random steps out of resolution valleys (Brent 1973) NLopt's praxis.c takes from the same stream.
+const STOCHASTIC: ReadonlySet<MethodName> = new Set(['CRS2_LM', 'ISRES', 'ESCH', 'MLSL', 'PRAXIS']);
+
+/**
+ * Whether a run of this method (with this local method) draws random numbers: such a run gives one
+ * result per seed only in a fresh module instance (see Problem.seed). The other methods are
+ * deterministic given x0, so one module may run many of them in turn.
+ */
+export function drawsRandomNumbers(method: MethodName, localMethod?: MethodName): boolean {
+  return STOCHASTIC.has(method) || (localMethod !== undefined && STOCHASTIC.has(localMethod));
+}
 
 // ---------------------------------------------------------------------------------------------
 // Validation (NLopt's own errors are bare strings) and the run.
@@ -350,6 +374,9 @@ export async function minimize(problem: Problem, control: RunControl = {}): Prom
     error: undefined,
     trace: [],
     traceEvery: Math.max(1, Math.ceil(problem.maxEvaluations / 2000)),
+    firstValue: null,
+    flat: true,
+    bestAt: 0,
   };
   slot = s;
   let final = { x: problem.x0.slice(), value: NaN };
@@ -373,13 +400,16 @@ export async function minimize(problem: Problem, control: RunControl = {}): Prom
     // NLopt's own budget is a backstop; the trampoline enforces the exact one.
     opt.setMaxeval(problem.maxEvaluations + 1);
     if (problem.maxTime_s) opt.setMaxtime(problem.maxTime_s + 1);
-    const stochastic = STOCHASTIC.has(problem.method);
-    const seedClock = stochastic && !streamSeeded;
+    // NLopt seeds its random stream at the first nlopt_optimize of a module instance, whatever the
+    // method: the first run sees the seeded clock, and a stochastic run after any other run in the
+    // same instance continues a stream it does not own.
+    const stochastic = drawsRandomNumbers(problem.method, info.needsLocal ? problem.localMethod : undefined);
+    const seedClock = !streamSeeded;
     reproducible = !stochastic || seedClock;
     const clock = Date.now;
     if (seedClock) {
       // NLopt's seed is gettimeofday's sec ^ usec: give it a clock made from the seed.
-      const seedMs = 1000 * (Math.abs(Math.trunc(problem.seed ?? 0)) % 2 ** 31) + 1;
+      const seedMs = 1000 * seedToClock(problem.seed ?? 0) + 1;
       Date.now = () => seedMs;
       streamSeeded = true;
     }
@@ -399,7 +429,8 @@ export async function minimize(problem: Problem, control: RunControl = {}): Prom
   }
   if (s.error !== undefined) throw s.error;
   const best = s.best ?? { x: problem.x0.slice(), value: Infinity, feasible: false };
-  if (s.trace.length === 0 || s.trace[s.trace.length - 1].evaluation !== s.evaluations) {
+  // the last evaluation closes the trace (none when nothing was evaluated: no point without a value)
+  if (s.evaluations > 0 && s.trace[s.trace.length - 1].evaluation !== s.evaluations) {
     s.trace.push({ evaluation: s.evaluations, value: Number.isFinite(final.value) ? final.value : best.value, best: best.value });
   }
   return {
@@ -411,5 +442,14 @@ export async function minimize(problem: Problem, control: RunControl = {}): Prom
     final,
     trace: s.trace,
     reproducible,
+    firstValue: s.firstValue,
+    flat: s.evaluations > 1 && s.flat,
+    bestAt: s.bestAt,
   };
+}
+
+/** NLopt's seed as the seconds of the clock it reads: seed mod 2^31 (exact for every integer seed). */
+export function seedToClock(seed: number): number {
+  const n = Math.abs(Math.trunc(seed));
+  return Number.isSafeInteger(n) ? n % 2 ** 31 : Number(BigInt(n) % 2n ** 31n);
 }
