@@ -242,11 +242,11 @@ describe('bad studies name the field', () => {
   it('an unknown objective kind, with a did-you-mean', () => {
     const line = lineFor(edited(['objective', 'terms', 0, 'kind'], 'survial'), 'objective.terms[0].kind');
     expect(line).toMatch(/expected one of survival, tracking, basin, step_down, found "survial" \(did you mean survival\?\)/);
-    expect(lineFor(edited(['objective', 'terms'], []), 'objective.terms')).toMatch(/non-empty/);
+    expect(lineFor(edited(['objective', 'terms'], []), 'objective.terms')).toMatch(/an array of 1 to 32 objective terms, found \[\]/);
   });
 
-  it.each([0, -1, '1', null, Infinity])('a bad weight: %s', (weight) => {
-    expect(lineFor(edited(['objective', 'terms', 1, 'weight'], weight), 'objective.terms[1].weight')).toMatch(/expected a weight: a finite number > 0/);
+  it.each([0, -1, '1', null, Infinity, 1e200, 1e-9])('a bad weight: %s', (weight) => {
+    expect(lineFor(edited(['objective', 'terms', 1, 'weight'], weight), 'objective.terms[1].weight')).toMatch(/expected a weight from 0\.000001 to 1000000, found/);
   });
 
   it('unknown fields get a did-you-mean, at any depth', () => {
@@ -259,17 +259,58 @@ describe('bad studies name the field', () => {
 
   it('term, constraint and mismatch values', () => {
     expect(lineFor(edited(['objective', 'terms', 0, 'terrain'], 'bumpy'), 'objective.terms[0].terrain')).toMatch(/one of random_walk, random_heights/);
-    expect(lineFor(edited(['objective', 'terms', 0, 'sigma_m'], -0.01), 'objective.terms[0].sigma_m')).toMatch(/a number >= 0 \(m\), found -0\.01/);
+    expect(lineFor(edited(['objective', 'terms', 0, 'sigma_m'], -0.01), 'objective.terms[0].sigma_m')).toMatch(/a number from 0 to 10 \(m\), found -0\.01/);
     expect(lineFor(edited(['objective', 'terms', 1, 'height_scale_m'], undefined), 'objective.terms[1].height_scale_m')).toMatch(/found missing/);
     expect(lineFor(edited(['objective', 'terms', 2, 'speeds'], { low_m_per_s: 4, high_m_per_s: 6, count: 3 }), 'objective.terms[2].speeds')).toMatch(/no speed axis in energy mode/);
     expect(lineFor(edited(['objective', 'terms', 2, 'mode'], 'grid'), 'objective.terms[2].speeds')).toMatch(/a speed axis .* in grid mode/);
     expect(lineFor(edited(['objective', 'terms', 2, 'heights', 'high_m'], 0.9), 'objective.terms[2].heights')).toMatch(/low < high/);
     expect(lineFor(edited(['objective', 'terms', 3, 'resolution_m'], 0.5), 'objective.terms[3].resolution_m')).toMatch(/leg length \/ 10/);
     expect(lineFor(edited(['constraints', 'leg_angle_range_deg'], { min_deg: 70, max_deg: 60 }), 'constraints.leg_angle_range_deg.max_deg')).toMatch(/an angle > min_deg \(70 deg\), found 60/);
-    expect(lineFor(edited(['constraints', 'max_compression_fraction'], 1.5), 'constraints.max_compression_fraction')).toMatch(/in \(0, 1\)/);
+    expect(lineFor(edited(['constraints', 'max_compression_fraction'], 1.5), 'constraints.max_compression_fraction')).toMatch(/a number from 0\.000001 to below 1 \(a fraction of the leg length\), found 1\.5/);
     const normal = { distribution: 'normal', leg_stiffness_fraction: 0.4 };
     expect(lineFor(edited(['model_mismatch'], normal), 'model_mismatch.leg_stiffness_fraction')).toMatch(/< 1\/3 \(normal: every drawn factor must stay > 0\), found 0\.4/);
     expect(lineFor(edited(['model_mismatch'], { distribution: 'triangular' }), 'model_mismatch.distribution')).toMatch(/one of uniform/);
+  });
+
+  // Every number a study accepts keeps the objective finite and of a size NLopt handles (COBYLA
+  // failed inside NLopt on an objective weight of 1e200, measured), and an evaluation's work bounded.
+  it.each([
+    [['objective', 'terms', 1, 'fall_penalty'], 1e6, 'objective.terms[1].fall_penalty', /a number > 0 and <= 1000/],
+    [['objective', 'terms', 1, 'height_scale_m'], 1e-300, 'objective.terms[1].height_scale_m', /a number from 1e-9 to 1000 \(m\), found 1e-300/],
+    [['objective', 'terms', 1, 'target_apex_height_m'], 1e300, 'objective.terms[1].target_apex_height_m', /a number from -1000 to 1000 \(m\)/],
+    [['objective', 'terms', 0, 'sigma_m'], 1e300, 'objective.terms[0].sigma_m', /a number from 0 to 10 \(m\), found 1e\+300/],
+    [['objective', 'terms', 2, 'heights', 'high_m'], 1e308, 'objective.terms[2].heights.high_m', /a number from -1000 to 1000 \(m\)/],
+    [['free_parameters', 0, 'upper'], 1e300, 'free_parameters[0].upper', /a number from -1000000000 to 1000000000/],
+    [['constraints', 'max_leg_force_N'], 5e-324, 'constraints.max_leg_force_N', /a number from 0\.001 to 1000000000 \(N\), found 5e-324/],
+    [['constraints', 'friction_coefficient'], 1e300, 'constraints.friction_coefficient', /a number from 0\.001 to 100/],
+    [['constraints', 'leg_angle_range_deg'], { min_deg: 1e-300, max_deg: 80 }, 'constraints.leg_angle_range_deg.min_deg', /a number from 0\.01 to 90 \(deg from the horizontal\)/],
+    [['search'], { penalty_weight: 1e300 }, 'search.penalty_weight', /a number > 0 and <= 1000000/],
+    [['search'], { max_time_s: 1e300 }, 'search.max_time_s', /a number from 0 to 1000000/],
+    [['search'], { restarts: 1001 }, 'search.restarts', /an integer from 1 to 1000, found 1001/],
+    [['search'], { restarts: 1000, max_evaluations: 1e6 }, 'search.max_evaluations', /at most 10000000 evaluations in all \(restarts x max_evaluations; 1000 restarts: max_evaluations <= 10000\), found 1000000/],
+    [['objective', 'terms', 0], { kind: 'survival', terrain: 'random_walk', sigma_m: 0.01, rollouts: 1e6, strides: 200 }, 'objective.terms',
+      /at most 100000000 Monte Carlo strides per evaluation \(the sum over survival and tracking terms of rollouts x strides\), found 200001000 strides/],
+  ] as const)('bounds: %s = %s', (path, value, field, message) => {
+    expect(lineFor(edited([...path], value), field)).toMatch(message);
+  });
+
+  it('the held-out rollouts of one candidate are bounded too', () => {
+    const long = edited(['objective', 'terms', 0, 'strides'], 100, edited(['holdout'], { seed: 2, rollouts: 1e6 }));
+    expect(lineFor(long, 'holdout.rollouts')).toMatch(/at most 100000000 held-out strides per candidate .*found 1000000 \(120000000 strides\)/);
+  });
+
+  it('an objective weight of 1e200 is refused before NLopt sees it; the largest weights still give a finite objective', () => {
+    expect(lineFor(edited(['objective', 'terms', 0, 'weight'], 1e200), 'objective.terms[0].weight')).toMatch(/found 1e\+200/);
+    const big = edited(['objective', 'terms', 1, 'fall_penalty'], 1000, edited(['objective', 'terms', 1, 'weight'], 1e6));
+    expect(parseStudy(big).objective.terms[1]).toMatchObject({ weight: 1e6, fall_penalty: 1000 });
+  });
+
+  it('the work of one step-down and one basin evaluation is bounded', () => {
+    // 1 m leg, 1e-6 m grid: about a million probes of 21 strides
+    const fine = edited(['objective', 'terms', 3], { kind: 'step_down', resolution_m: 1e-6, grid_m: 1e-6 });
+    expect(lineFor(fine, 'objective.terms[3].grid_m')).toMatch(/at most 10000000 strides per evaluation \(probes x \(1 \+ strides_after\)\).*found 0\.000001 \(1000001 probes of 21 strides\)/);
+    const basin = edited(['objective', 'terms', 2], { kind: 'basin', mode: 'energy', heights: { low_m: 0.95, high_m: 2, count: 100000 }, strides: 1000 });
+    expect(lineFor(basin, 'objective.terms[2].strides')).toMatch(/at most 10000000 strides per evaluation \(cells x strides; this grid has 100000 cells: strides <= 100\), found 1000/);
   });
 
   it('the scenario: inline problems under scenario., both or neither source', () => {

@@ -67,6 +67,45 @@ export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
 export const MAX_TERM_STRIDES = 100_000;
 export const MAX_STUDY_BASIN_CELLS = 100_000;
+
+// Bounds on what a study may ask for. Every score is then finite and of a size NLopt handles (its
+// COBYLA squares values: an objective near 1e200 makes it fail inside; these keep |objective| below
+// about 1e11 and the penalty below about 1e19), and one evaluation's work is bounded.
+/** Term weights lie in [MIN_TERM_WEIGHT, MAX_TERM_WEIGHT]: a ratio of 1e12 between terms is plenty. */
+export const MIN_TERM_WEIGHT = 1e-6;
+export const MAX_TERM_WEIGHT = 1e6;
+export const MAX_TERMS = 32;
+/** A tracking term's fall_penalty (its score then lies in [−2·fall_penalty, 0]). */
+export const MAX_FALL_PENALTY = 1000;
+/** Tracking scales (height_scale_m, speed_scale_m_per_s), in their units. */
+export const MIN_TRACKING_SCALE = 1e-9;
+export const MAX_TRACKING_SCALE = 1000;
+/** Targets, basin axes: apex heights within ±MAX_APEX_HEIGHT_M, forward speeds up to MAX_SPEED_M_PER_S. */
+export const MAX_APEX_HEIGHT_M = 1000;
+export const MAX_SPEED_M_PER_S = 1000;
+/** Random-terrain sigma of a Monte Carlo term, m. */
+export const MAX_TERRAIN_SIGMA_M = 10;
+/** The quadratic penalty's weight. */
+export const MAX_PENALTY_WEIGHT = 1e6;
+/** Free parameter bounds and starts lie within ±MAX_PARAMETER_MAGNITUDE (in the field's unit). */
+export const MAX_PARAMETER_MAGNITUDE = 1e9;
+/** Strides one evaluation may run in its Monte Carlo terms (Σ rollouts × strides), training or held out. */
+export const MAX_EVALUATION_STRIDES = 100_000_000;
+/** Strides a basin term (cells × strides) or a step-down term (probes × (1 + strides_after)) may run. */
+export const MAX_PROBE_STRIDES = 10_000_000;
+/** Evaluations of a whole search: restarts × max_evaluations. */
+export const MAX_SEARCH_EVALUATIONS = 10_000_000;
+export const MAX_RESTARTS = 1000;
+export const MAX_SEARCH_TIME_S = 1_000_000;
+/** Limits: each within its range below (units in the field names). */
+export const LIMIT_RANGES = {
+  max_leg_force_N: [1e-3, 1e9],
+  friction_coefficient: [1e-3, 100],
+  max_compression_fraction: [1e-6, 1],
+  angle_deg: [0.01, 90],
+  max_hip_rate_deg_per_s: [1e-3, 1e7],
+  stiffness_N_per_m: [1e-3, 1e12],
+} as const;
 export const DEFAULT_FALL_PENALTY = 10;
 export const DEFAULT_BASIN_STRIDES = 30;
 export const DEFAULT_BASIN_TOLERANCE = 1e-4;
@@ -91,13 +130,22 @@ export const TERM_KINDS: readonly TermKind[] = ['survival', 'tracking', 'basin',
 
 const positive = (unit: string) => z.number({ error: `a number > 0 (${unit})` }).gt(0);
 const nonNegative = (unit: string) => z.number({ error: `a number >= 0 (${unit})` }).gte(0);
-const finite = (unit: string) => z.number({ error: `a finite number (${unit})` });
+/** A number in [low, high] (high excluded when `below`), the range and unit in its message. */
+const between = (low: number, high: number, unit: string, below = false) => {
+  const schema = z.number({ error: `a number from ${low} to ${below ? 'below ' : ''}${high} (${unit})` }).gte(low);
+  return below ? schema.lt(high) : schema.lte(high);
+};
 const integerIn = (low: number, high: number) =>
   z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
 const seedSchema = integerIn(0, Number.MAX_SAFE_INTEGER);
-const weight = z.number({ error: 'a weight: a finite number > 0' }).gt(0).default(1);
+const weight = z
+  .number({ error: `a weight from ${MIN_TERM_WEIGHT} to ${MAX_TERM_WEIGHT}` })
+  .gte(MIN_TERM_WEIGHT)
+  .lte(MAX_TERM_WEIGHT)
+  .default(1);
 const terrainKind = z.enum(['random_walk', 'random_heights'], { error: 'one of random_walk, random_heights' });
-const angleDeg = z.number({ error: 'an angle in (0, 90] (deg from the horizontal)' }).gt(0).lte(90);
+const angleDeg = between(LIMIT_RANGES.angle_deg[0], LIMIT_RANGES.angle_deg[1], 'deg from the horizontal');
+const parameterValue = between(-MAX_PARAMETER_MAGNITUDE, MAX_PARAMETER_MAGNITUDE, "the field's unit");
 
 function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
   return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
@@ -107,9 +155,9 @@ const fields = (shape: z.ZodRawShape) => Object.keys(shape).filter((name) => nam
 
 const freeParameterShape = {
   path: z.string({ error: 'a dotted path into the scenario\'s policy or body, e.g. policy.angle.attack_deg' }),
-  lower: finite('the field\'s unit'),
-  upper: finite('the field\'s unit'),
-  start: finite('the field\'s unit').optional(),
+  lower: parameterValue,
+  upper: parameterValue,
+  start: parameterValue.optional(),
 };
 const freeParameterSchema = strictObject(freeParameterShape, `an object with ${fields(freeParameterShape)}`);
 
@@ -117,7 +165,7 @@ const freeParameterSchema = strictObject(freeParameterShape, `an object with ${f
 const monteCarloShape = {
   weight,
   terrain: terrainKind,
-  sigma_m: nonNegative('m'),
+  sigma_m: between(0, MAX_TERRAIN_SIGMA_M, 'm'),
   rollouts: integerIn(1, MAX_TERM_ROLLOUTS),
   strides: integerIn(1, MAX_TERM_STRIDES).optional(),
 };
@@ -128,18 +176,24 @@ const trackingTerm = strictObject(
   {
     kind: z.literal('tracking'),
     ...monteCarloShape,
-    target_apex_height_m: finite('m').optional(),
-    target_forward_speed_m_per_s: nonNegative('m/s').optional(),
-    height_scale_m: positive('m'),
-    speed_scale_m_per_s: positive('m/s'),
-    fall_penalty: positive('score lost per fraction of rollouts fallen').default(DEFAULT_FALL_PENALTY),
+    target_apex_height_m: between(-MAX_APEX_HEIGHT_M, MAX_APEX_HEIGHT_M, 'm').optional(),
+    target_forward_speed_m_per_s: between(0, MAX_SPEED_M_PER_S, 'm/s').optional(),
+    height_scale_m: between(MIN_TRACKING_SCALE, MAX_TRACKING_SCALE, 'm'),
+    speed_scale_m_per_s: between(MIN_TRACKING_SCALE, MAX_TRACKING_SCALE, 'm/s'),
+    fall_penalty: z
+      .number({ error: `a number > 0 and <= ${MAX_FALL_PENALTY} (score lost per fraction of rollouts fallen)` })
+      .gt(0)
+      .lte(MAX_FALL_PENALTY)
+      .default(DEFAULT_FALL_PENALTY),
   },
   'an object',
 );
 
 const axisCount = integerIn(1, MAX_STUDY_BASIN_CELLS);
-const heightAxisShape = { low_m: finite('m'), high_m: finite('m'), count: axisCount };
-const speedAxisShape = { low_m_per_s: nonNegative('m/s'), high_m_per_s: nonNegative('m/s'), count: axisCount };
+const apexHeight = between(-MAX_APEX_HEIGHT_M, MAX_APEX_HEIGHT_M, 'm');
+const forwardSpeed = between(0, MAX_SPEED_M_PER_S, 'm/s');
+const heightAxisShape = { low_m: apexHeight, high_m: apexHeight, count: axisCount };
+const speedAxisShape = { low_m_per_s: forwardSpeed, high_m_per_s: forwardSpeed, count: axisCount };
 const basinTerm = strictObject(
   {
     kind: z.literal('basin'),
@@ -172,18 +226,20 @@ const termSchema = z.discriminatedUnion('kind', [survivalTerm, trackingTerm, bas
 });
 
 const objectiveShape = {
-  terms: z.array(termSchema, { error: 'a non-empty array of objective terms' }).min(1),
+  terms: z.array(termSchema, { error: `an array of 1 to ${MAX_TERMS} objective terms` }).min(1).max(MAX_TERMS),
 };
 const objectiveSchema = strictObject(objectiveShape, `an object with ${fields(objectiveShape)}`);
 
 const angleRangeShape = { min_deg: angleDeg, max_deg: angleDeg };
-const stiffnessRangeShape = { min_N_per_m: positive('N/m'), max_N_per_m: positive('N/m') };
+const R = LIMIT_RANGES;
+const stiffnessLimit = between(R.stiffness_N_per_m[0], R.stiffness_N_per_m[1], 'N/m');
+const stiffnessRangeShape = { min_N_per_m: stiffnessLimit, max_N_per_m: stiffnessLimit };
 const constraintsShape = {
-  max_leg_force_N: positive('N'),
-  friction_coefficient: positive('the friction coefficient mu, |Fx/Fy| <= mu'),
-  max_compression_fraction: z.number({ error: 'a fraction of the leg length in (0, 1)' }).gt(0).lt(1),
+  max_leg_force_N: between(R.max_leg_force_N[0], R.max_leg_force_N[1], 'N'),
+  friction_coefficient: between(R.friction_coefficient[0], R.friction_coefficient[1], 'the friction coefficient mu, |Fx/Fy| <= mu'),
+  max_compression_fraction: between(R.max_compression_fraction[0], R.max_compression_fraction[1], 'a fraction of the leg length', true),
   leg_angle_range_deg: strictObject(angleRangeShape, `an object with ${fields(angleRangeShape)}`),
-  max_hip_rate_deg_per_s: positive('deg/s'),
+  max_hip_rate_deg_per_s: between(R.max_hip_rate_deg_per_s[0], R.max_hip_rate_deg_per_s[1], 'deg/s'),
   stiffness_range_N_per_m: strictObject(stiffnessRangeShape, `an object with ${fields(stiffnessRangeShape)}`),
 };
 const constraintsSchema = strictObject(
@@ -208,13 +264,17 @@ const methodSchema = z.enum(METHOD_NAMES as [MethodName, ...MethodName[]], { err
 const searchShape = {
   method: methodSchema.default('COBYLA'),
   local_method: methodSchema.optional(),
-  max_evaluations: integerIn(1, 100_000_000).default(DEFAULT_MAX_EVALUATIONS),
-  max_time_s: nonNegative('s; 0 = no limit').default(0),
+  max_evaluations: integerIn(1, MAX_SEARCH_EVALUATIONS).default(DEFAULT_MAX_EVALUATIONS),
+  max_time_s: between(0, MAX_SEARCH_TIME_S, 's; 0 = no limit').default(0),
   xtol_rel: z.number({ error: 'a number > 0 and < 1' }).gt(0).lt(1).default(DEFAULT_XTOL_REL),
-  restarts: integerIn(1, 10_000).default(1),
+  restarts: integerIn(1, MAX_RESTARTS).default(1),
   constraint_handling: z.enum(['native', 'penalty'], { error: 'one of native, penalty' }).optional(),
   // used with constraint_handling penalty only
-  penalty_weight: positive('score per squared normalized violation').optional(),
+  penalty_weight: z
+    .number({ error: `a number > 0 and <= ${MAX_PENALTY_WEIGHT} (score per squared normalized violation)` })
+    .gt(0)
+    .lte(MAX_PENALTY_WEIGHT)
+    .optional(),
   seed: seedSchema.optional(),
 };
 const searchSchema = strictObject(searchShape, `an object with ${fields(searchShape)}`).prefault({});
@@ -480,6 +540,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
   const mismatch = data.model_mismatch ? checkMismatch(data.model_mismatch as ModelMismatch, issues) : null;
   const search = completeSearch(data.search, constraints, data.seed, issues);
   const holdout = data.holdout;
+  checkWork(terms, holdout.rollouts, search, issues);
   if (holdout.seed === data.seed) {
     issues.push({
       path: 'holdout.seed',
@@ -599,6 +660,12 @@ function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: I
       const cells = heights.count * (term.mode === 'grid' && speeds ? speeds.count : 1);
       if (cells > MAX_STUDY_BASIN_CELLS) {
         issues.push({ path: at('heights'), expected: `at most ${MAX_STUDY_BASIN_CELLS} cells (heights x speeds) per evaluation`, found: `${cells} cells` });
+      } else if (cells * term.strides > MAX_PROBE_STRIDES) {
+        issues.push({
+          path: at('strides'),
+          expected: `at most ${MAX_PROBE_STRIDES} strides per evaluation (cells x strides; this grid has ${cells} cells: strides <= ${Math.floor(MAX_PROBE_STRIDES / cells)})`,
+          found: describeFound(term.strides),
+        });
       }
       return { ...term, speeds: term.mode === 'grid' ? (speeds ?? null) : null };
     }
@@ -609,9 +676,57 @@ function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: I
         issues.push({ path: at('resolution_m'), expected: `a step size from ${finest} to ${leg / 10} m (leg length / 1e6 to leg length / 10)`, found: describeFound(term.resolution_m) });
       } else if (!(term.grid_m >= term.resolution_m && term.grid_m <= leg)) {
         issues.push({ path: at('grid_m'), expected: `a spacing from resolution_m (${term.resolution_m} m) to the leg length (${leg} m)`, found: describeFound(term.grid_m) });
+      } else {
+        const probes = stepDownProbes(leg, term);
+        if (probes * (1 + term.strides_after) > MAX_PROBE_STRIDES) {
+          issues.push({
+            path: at('grid_m'),
+            expected: `at most ${MAX_PROBE_STRIDES} strides per evaluation (probes x (1 + strides_after)); a coarser grid_m or fewer strides_after`,
+            found: `${describeFound(term.grid_m)} (${probes} probes of ${1 + term.strides_after} strides)`,
+          });
+        }
       }
       return term;
     }
+  }
+}
+
+/** Step-down probes of one evaluation at most: the coarse grid up to one leg length, then the bisection. */
+export function stepDownProbes(legLength: number, term: { resolution_m: number; grid_m: number }): number {
+  const steps = Math.max(1, Math.round(term.grid_m / term.resolution_m));
+  return Math.ceil(Math.round(legLength / term.resolution_m) / steps) + 1 + Math.ceil(Math.log2(steps));
+}
+
+// The work of one evaluation and of the whole search, bounded (MAX_EVALUATION_STRIDES, MAX_SEARCH_EVALUATIONS).
+function checkWork(terms: ObjectiveTerm[], holdoutRollouts: number, search: StudySearch, issues: InputIssue[]): void {
+  let training = 0;
+  let heldOut = 0;
+  terms.forEach((term) => {
+    if (!isMonteCarloTerm(term)) return;
+    training += term.rollouts * term.strides;
+    heldOut += holdoutRollouts * term.strides;
+  });
+  if (training > MAX_EVALUATION_STRIDES) {
+    issues.push({
+      path: 'objective.terms',
+      expected: `at most ${MAX_EVALUATION_STRIDES} Monte Carlo strides per evaluation (the sum over survival and tracking terms of rollouts x strides)`,
+      found: `${training} strides`,
+    });
+  }
+  if (heldOut > MAX_EVALUATION_STRIDES) {
+    issues.push({
+      path: 'holdout.rollouts',
+      expected: `at most ${MAX_EVALUATION_STRIDES} held-out strides per candidate (holdout.rollouts x the strides of every survival and tracking term)`,
+      found: `${describeFound(holdoutRollouts)} (${heldOut} strides)`,
+    });
+  }
+  const budget = search.restarts * search.max_evaluations;
+  if (budget > MAX_SEARCH_EVALUATIONS) {
+    issues.push({
+      path: 'search.max_evaluations',
+      expected: `at most ${MAX_SEARCH_EVALUATIONS} evaluations in all (restarts x max_evaluations; ${search.restarts} restarts: max_evaluations <= ${Math.floor(MAX_SEARCH_EVALUATIONS / search.restarts)})`,
+      found: describeFound(search.max_evaluations),
+    });
   }
 }
 
