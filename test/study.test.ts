@@ -283,7 +283,7 @@ describe('bad studies name the field', () => {
     [['free_parameters', 0, 'upper'], 1e300, 'free_parameters[0].upper', /a number from -1000000000 to 1000000000/],
     [['constraints', 'max_leg_force_N'], 5e-324, 'constraints.max_leg_force_N', /a number from 0\.001 to 1000000000 \(N\), found 5e-324/],
     [['constraints', 'friction_coefficient'], 1e300, 'constraints.friction_coefficient', /a number from 0\.001 to 100/],
-    [['constraints', 'leg_angle_range_deg'], { min_deg: 1e-300, max_deg: 80 }, 'constraints.leg_angle_range_deg.min_deg', /a number from 0\.01 to 90 \(deg from the horizontal\)/],
+    [['constraints', 'leg_angle_range_deg'], { min_deg: 1e-300, max_deg: 80 }, 'constraints.leg_angle_range_deg.min_deg', /an angle from 0\.01 to 90 \(deg from the horizontal\), found 1e-300/],
     [['search'], { penalty_weight: 1e300 }, 'search.penalty_weight', /a number > 0 and <= 1000000/],
     [['search'], { max_time_s: 1e300 }, 'search.max_time_s', /a number from 0 to 1000000/],
     [['search'], { restarts: 1001 }, 'search.restarts', /an integer from 1 to 1000, found 1001/],

@@ -138,8 +138,8 @@ describe('study editor', () => {
     const steepest = screen.getByLabelText('Touchdown angle, steepest');
     type(steepest, '');
     await Promise.resolve();
-    // src/core/optimize/study.ts: leg_angle_range_deg {min_deg, max_deg}, both angles in (0, 90]
-    expect(describedBy(steepest)).toBe('expected an angle in (0, 90] (deg from the horizontal), found missing');
+    // src/core/optimize/study.ts: leg_angle_range_deg {min_deg, max_deg}, both angles in [0.01, 90]
+    expect(describedBy(steepest)).toBe('expected an angle from 0.01 to 90 (deg from the horizontal), found missing');
     expect(wb.studyCheck.value).toBeNull();
     // emptying the other end too leaves the range out of the study: valid again
     type(screen.getByLabelText('Touchdown angle, lowest'), '');

@@ -11,9 +11,12 @@
 // Objective terms, each maximized (the weighted sum is `objective`; NLopt minimizes −objective):
 //  - survival: R rollouts of S strides from the start apex on random terrain (a random walk of
 //    Gaussian steps sigma_m, or independent Gaussian heights), rollout r on terrain stream r of the
-//    study's seed (common random numbers). Score = survived / R, in [0, 1].
+//    study's seed (common random numbers). Score = (survived + ½·f)/R, in [0, 1], f the mean
+//    fraction of their strides that the fallen rollouts completed (0 when none fell): a tie-break
+//    worth less than one survivor, which gives a search a slope where every rollout falls
+//    (FALL_TIE_BREAK in objectives.ts).
 //  - tracking: the same rollouts; score = −(rms_height / height_scale_m + rms_speed /
-//    speed_scale_m_per_s) − fall_penalty · (fell / R), the RMS taken about the target apex over
+//    speed_scale_m_per_s) − fall_penalty · (fell − ½·f) / R, the RMS taken about the target apex over
 //    every completed stride of every rollout. The RMS part is capped at fall_penalty (and is
 //    fall_penalty when no stride completed), so the score lies in [−2·fall_penalty, 0] and a
 //    policy that falls everywhere scores worst. 0 is perfect tracking.
@@ -56,6 +59,13 @@
 //  seed                        training terrains and model-mismatch draws
 //  holdout                     {seed (not the training seed), rollouts per Monte Carlo term}: re-scoring
 //                              on terrains and robots the search never saw
+//
+// Bounds (the constants below): weights in [1e-6, 1e6], at most 32 terms, fall_penalty <= 1000,
+// tracking scales in [1e-9, 1000], targets and basin axes within ±1000 m and up to 1000 m/s, terrain
+// sigma <= 10 m, penalty_weight <= 1e6, free parameter bounds within ±1e9, each limit within its
+// LIMIT_RANGES, restarts <= 1000, restarts × max_evaluations <= 1e7, max_time_s <= 1e6, and the
+// strides of one evaluation bounded (Monte Carlo <= 1e8 training or held out; basin and step-down
+// probes <= 1e7). Every score is then finite and of a size NLopt handles.
 
 import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
@@ -144,7 +154,10 @@ const weight = z
   .lte(MAX_TERM_WEIGHT)
   .default(1);
 const terrainKind = z.enum(['random_walk', 'random_heights'], { error: 'one of random_walk, random_heights' });
-const angleDeg = between(LIMIT_RANGES.angle_deg[0], LIMIT_RANGES.angle_deg[1], 'deg from the horizontal');
+const angleDeg = z
+  .number({ error: `an angle from ${LIMIT_RANGES.angle_deg[0]} to ${LIMIT_RANGES.angle_deg[1]} (deg from the horizontal)` })
+  .gte(LIMIT_RANGES.angle_deg[0])
+  .lte(LIMIT_RANGES.angle_deg[1]);
 const parameterValue = between(-MAX_PARAMETER_MAGNITUDE, MAX_PARAMETER_MAGNITUDE, "the field's unit");
 
 function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
