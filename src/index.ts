@@ -15,7 +15,8 @@ import type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-m
 import type { BasinOptions, BasinResult, BasinRunControl } from './core/analysis/basin.js';
 import type { RobustnessExecution, RobustnessOptions, RobustnessResult } from './core/analysis/robustness.js';
 import { parseStudy } from './core/optimize/study.js';
-import type { OptimizationResult, SearchOptions } from './core/optimize/search.js';
+import type { OptimizationResult } from './core/optimize/search.js';
+import type { NodeSearchOptions } from './worker/node-optimize.js';
 import type { ExportOptions, PolicyExport } from './core/export/build.js';
 
 export { InputError, type InputIssue } from './core/errors.js';
@@ -29,7 +30,8 @@ export type { SimulateOptions, SimulationResult } from './core/simulate.js';
 export type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-map.js';
 export type { BasinOptions, BasinResult, BasinRunControl } from './core/analysis/basin.js';
 export type { RobustnessExecution, RobustnessOptions, RobustnessResult } from './core/analysis/robustness.js';
-export type { OptimizationResult, SearchOptions } from './core/optimize/search.js';
+export type { OptimizationResult, SearchOptions, SearchProgress, SearchPhase } from './core/optimize/search.js';
+export type { NodeSearchOptions } from './worker/node-optimize.js';
 export type { ExportOptions, PolicyExport } from './core/export/build.js';
 
 /** One rollout of a scenario, stride by stride (`pronk simulate --json`). */
@@ -67,9 +69,9 @@ export async function robustness(scenario: unknown, options: RobustnessOptions &
  * inline `scenario`; for a study file with `scenario_file`, pass `await readStudyFile(path)` (a
  * validated study validates again as it is).
  */
-export async function optimize(study: unknown, options: SearchOptions = {}): Promise<OptimizationResult> {
+export async function optimize(study: unknown, options: NodeSearchOptions = {}): Promise<OptimizationResult> {
   const checked = parseStudy(study);
-  const { optimizeStudy } = await import('./core/optimize/search.js');
+  const { optimizeStudy } = await import('./worker/node-optimize.js');
   return optimizeStudy(checked, options);
 }
 

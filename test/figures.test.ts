@@ -283,7 +283,8 @@ beforeAll(async () => {
       objective: ([a, b]) => (a - 1) ** 2 + 3 * (b - 2) ** 2,
       maxEvaluations: 40,
     });
-    restarts.push({ restart: k, trace: outcome.trace });
+    // the result file's trace: scores, larger is better (NLopt minimized value = −score)
+    restarts.push({ restart: k, trace: outcome.trace.map((p) => ({ evaluation: p.evaluation, score: -p.value, best_score: -p.best })) });
   }
 }, 60_000);
 
@@ -507,16 +508,25 @@ describe('convergence figure', () => {
   it('carries best-so-far per restart from a real NLopt trace', () => {
     const option = convergenceFigure(restarts, { bestRestart: 1 });
     restarts.forEach((r) => {
-      expect(values(series(option, `restart-${r.restart}`))).toEqual(r.trace.map((p) => [p.evaluation, p.best]));
-      // law: a running best never increases
-      r.trace.forEach((p, k) => k === 0 || expect(p.best).toBeLessThanOrEqual(r.trace[k - 1].best));
+      const trace = r.trace as { evaluation: number; best_score: number }[];
+      expect(values(series(option, `restart-${r.restart}`))).toEqual(trace.map((p) => [p.evaluation, p.best_score]));
+      // law: a running best score never decreases (larger is better)
+      trace.forEach((p, k) => k === 0 || expect(p.best_score).toBeGreaterThanOrEqual(trace[k - 1].best_score));
     });
     expect(series(option, 'restart-1').name).toContain('(best)');
     expect(() => convergenceFigure([])).toThrow(InputError);
   });
 
+  it('draws an older file\'s minimized trace (best) as the same score, −best', () => {
+    const legacy = restarts.map((r) => ({
+      restart: r.restart,
+      trace: (r.trace as { evaluation: number; best_score: number }[]).map((p) => ({ evaluation: p.evaluation, value: -p.best_score, best: -p.best_score })),
+    }));
+    expect(values(series(convergenceFigure(legacy), 'restart-0'))).toEqual(values(series(convergenceFigure(restarts), 'restart-0')));
+  });
+
   it('renders to a well-formed SVG', () => {
-    expectSvg(convergenceFigure(restarts, { bestRestart: 0 }), ['evaluation', 'best objective so far (lower is better)']);
+    expectSvg(convergenceFigure(restarts, { bestRestart: 0 }), ['evaluation', 'best score so far (larger is better)']);
   });
 });
 

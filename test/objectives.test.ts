@@ -8,8 +8,12 @@ import { stepTolerance } from '../src/core/analysis/stepdown.js';
 import { loadEngine, type BatchRequest, type Engine } from '../src/core/engine.js';
 import { buildModel, DEG } from '../src/core/model.js';
 import {
+  FALL_TIE_BREAK,
   StudyEvaluator,
   comparePolicies,
+  markBinding,
+  type ConstraintResult,
+  type Screening,
   mismatchFactors,
   pairedDifferenceInterval,
   rescore,
@@ -17,6 +21,7 @@ import {
   type TrackingDetails,
 } from '../src/core/optimize/objectives.js';
 import { minimize } from '../src/core/optimize/nlopt.js';
+import { chooseStarts, restartStarts } from '../src/core/optimize/result.js';
 import { parseStudy, readStudyFile, type Study } from '../src/core/optimize/study.js';
 import { newcombeDifferenceInterval } from '../src/core/stats.js';
 import { L } from './helpers.js';
@@ -134,6 +139,10 @@ describe('constraints under COBYLA', () => {
     for (const c of tight.evaluation.constraints) expect(c.margin!).toBeGreaterThanOrEqual(0);
     // binds: within 0.1 % of the limit (measured 8e-11 N of 3311 N), and the objective pays for it (measured −1.77)
     expect(force.margin!).toBeLessThan(1e-3 * force.limit);
+    // the margin as a percentage of the limit, and the force limit marked as the one that binds
+    expect(force.margin_percent).toBeCloseTo((100 * force.margin!) / force.limit, 12);
+    expect(tight.evaluation.constraints.filter((c) => c.binding).map((c) => c.name)).toEqual(['max_leg_force_N']);
+    for (const c of tight.evaluation.constraints) expect(c.margin_percent!).toBeGreaterThanOrEqual(force.margin_percent!);
     expect(tight.evaluation.objective).toBeLessThan(free.evaluation.objective);
   });
 
@@ -425,5 +434,91 @@ describe('paired difference interval (Newcombe 1998, paired method 10)', () => {
     const [lo, hi] = pairedDifferenceInterval(0, 30, 0, 0);
     expect(lo).toBeGreaterThan(0);
     expect(hi).toBe(1);
+  });
+});
+
+describe('a fall is a tie-break inside the Monte Carlo terms', () => {
+  // Fixed attack angles on the human-like body, random walk of 3 cm: every rollout falls below
+  // about 65.5° and above about 67.5° (measured), a plateau of zero survival on both sides.
+  const fixedStudy = () => study(FIXED, [{ path: 'policy.angle.attack_deg', lower: 55, upper: 80 }], survivalOnly(0.03, 50));
+
+  it('when every rollout falls, the score follows the strides they completed, and is worth less than one survivor', () => {
+    const e = new StudyEvaluator(fixedStudy(), engine);
+    const at = (angle: number) => e.evaluate([angle]).terms[0];
+    for (const angle of [60, 62, 70, 72]) {
+      const term = at(angle);
+      const d = term.details as SurvivalDetails;
+      expect(d.survival).toBe(0);
+      expect(d.fallen_stride_fraction).toBeCloseTo(d.mean_strides_completed / 20, 12);
+      expect(term.score).toBeCloseTo((FALL_TIE_BREAK * d.fallen_stride_fraction!) / 50, 15);
+      expect(term.score).toBeLessThan(1 / 50);
+    }
+    // closer to the survivable angles, farther before falling (measured 2.0, 2.9, 1.3, 0.9 strides)
+    expect(at(62).score).toBeGreaterThan(at(60).score);
+    expect(at(70).score).toBeGreaterThan(at(72).score);
+    // where some survive, the tie-break never adds a whole survivor
+    const peak = at(66);
+    const d = peak.details as SurvivalDetails;
+    expect(d.survived).toBeGreaterThan(0);
+    expect(peak.score).toBeGreaterThanOrEqual(d.survival);
+    expect(peak.score).toBeLessThan(d.survival + 1 / 50);
+  });
+
+  it('gives a local search a slope off the plateau: COBYLA from 72° (all fall) climbs to the survivable angles', async () => {
+    const e = new StudyEvaluator(fixedStudy(), engine);
+    const outcome = await minimize({ method: 'COBYLA', lower: e.lower, upper: e.upper, x0: [72], objective: e.objectiveFunction(), maxEvaluations: 60, xtolRel: 1e-4 });
+    expect(outcome.flat).toBe(false);
+    // measured: 66.35°, 31 of 50 survive
+    expect(survivalOf(e.evaluate(outcome.x)).survival).toBeGreaterThan(0.3);
+  });
+});
+
+describe('screening candidate start points', () => {
+  it('a candidate is viable when its nominal gait completes and a screening rollout survives; the demo\'s first Halton points are not', async () => {
+    const demo = await readStudyFile('scenarios/demo-study.json');
+    const e = new StudyEvaluator(demo, engine, 'screening');
+    expect(e.rolloutsPerTerm).toEqual([16, 16, null]);
+    const free = demo.free_parameters;
+    const candidates = restartStarts(free.map((p) => p.start), free.map((p) => p.lower), free.map((p) => p.upper), 3, demo.search.seed);
+    const start = e.screen(candidates[0]);
+    expect(start).toMatchObject({ valid: true, viable: true, rollouts: 32, nominal: { strides: 20, strides_completed: 20, status: 'completed' } });
+    // the two points that restarts 1 and 2 once started from: steep attacks where the body leaves the
+    // ground still descending in the first stride (an all-fall plateau; measured)
+    for (const x of candidates.slice(1)) {
+      const s = e.screen(x);
+      expect(s).toMatchObject({ valid: true, viable: false, survived: 0, nominal: { strides_completed: 0, status: 'no_apex' } });
+    }
+    // the screening rollouts are each term's first training rollouts (same streams, same robots)
+    const training = new StudyEvaluator(demo, engine, 'training');
+    const survivedFirst16 = training.survivalByRollout(candidates[0]).reduce((n, o) => n + o.survived.subarray(0, 16).reduce((a, b) => a + b, 0), 0);
+    expect(start.survived).toBe(survivedFirst16);
+  });
+
+  it('starts: the study start, then the viable candidates in order, then the best-ranked of the rest', () => {
+    const look = (viable: boolean, rank: number): Screening =>
+      ({ x: [], valid: true, viable, rank, nominal: { strides_completed: 0, strides: 1, status: '' }, rollouts: 0, survived: 0, stride_fraction: 0 });
+    const candidates = [[0], [1], [2], [3], [4], [5]];
+    const screenings = [look(false, 0), look(false, 1), look(true, 3), look(false, 2.5), look(true, 3), null];
+    const chosen = chooseStarts(candidates, screenings, 5);
+    expect(chosen.map((c) => c.candidate)).toEqual([0, 2, 4, 3, 1]);
+    expect(chosen.map((c) => c.origin)).toEqual(['study start', 'screened: viable', 'screened: viable', 'screened: best of the rest', 'screened: best of the rest']);
+    // the same screenings in any order of arrival give the same starts (they are indexed, not queued)
+    expect(chooseStarts(candidates, [...screenings], 5)).toEqual(chosen);
+  });
+});
+
+describe('margins as a percentage of the limit', () => {
+  it('marks the smallest percentage as binding (the first of equals), none when nothing was measured', () => {
+    const c = (name: string, margin_percent: number | null): ConstraintResult =>
+      ({ name, bound: 'upper', measured_on: 'rollouts', value: null, limit: 1, margin: null, margin_percent, binding: false, normalized: 0 });
+    const list = [c('a', 30), c('b', 5), c('c', null), c('d', 5), c('e', -2)];
+    markBinding(list);
+    expect(list.filter((x) => x.binding).map((x) => x.name)).toEqual(['e']);
+    const ties = [c('a', 30), c('b', 5), c('d', 5)];
+    markBinding(ties);
+    expect(ties.filter((x) => x.binding).map((x) => x.name)).toEqual(['b']);
+    const none = [c('a', null)];
+    markBinding(none);
+    expect(none[0].binding).toBe(false);
   });
 });

@@ -2,14 +2,14 @@
 // parameters (multi-start over worker threads), held-out re-scoring, and the result file.
 
 import { writeFile } from 'node:fs/promises';
+import { availableParallelism } from 'node:os';
 import { InputError, describeFound } from '../core/errors.js';
-import type { Evaluation } from '../core/optimize/objectives.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
 import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { startProgress, status } from './progress.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
+import { startProgress, status } from './progress.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
 const SOURCE = 'pronk optimize';
@@ -21,8 +21,10 @@ export const optimizeCommand: Command = {
   details:
     'The study names a base scenario, the free parameters with their bounds, the objective terms, the machine\'s ' +
     'limits, the NLopt method and budget, the training seed and the held-out seed. Each restart runs in a worker ' +
-    'thread of its own (the same study and seed give the same result). Ctrl-C stops the search and reports the best ' +
-    'point found so far, marked cancelled.',
+    'thread; the same study and seed give the same result on any number of threads. Three phases: candidate start points ' +
+    'are screened, the restarts search, and the start and the best point are re-scored on the held-out seeds. Every score ' +
+    'is larger-is-better. Ctrl-C stops the search, writes the result with the best point so far (marked cancelled) and ' +
+    'exits 130; a second Ctrl-C also skips the held-out re-scoring.',
   arguments: [{ name: 'STUDY', description: 'study file (JSON)' }],
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
@@ -33,6 +35,9 @@ export const optimizeCommand: Command = {
   maxPositionals: 1,
   run: runOptimize,
 };
+
+/** The exit code of a search stopped by Ctrl-C (128 + SIGINT), after its result file is written. */
+export const EXIT_CANCELLED = 130;
 
 async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
   const json = values.json === true;
@@ -47,17 +52,45 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   }
   const plot = await plotOption(values.plot, { out });
   const study = await readStudyFile(file);
-  const { optimizeStudy } = await import('../core/optimize/search.js');
-  const controller = new AbortController();
+  const { optimizeStudy, usefulWorkers } = await import('../worker/node-optimize.js');
+  // Ctrl-C once: stop the search and keep the best point; twice: skip the held-out re-scoring too;
+  // three times: leave at once, without a result.
+  const stopSearch = new AbortController();
+  const skipHoldout = new AbortController();
+  let interrupts = 0;
   const onSigint = () => {
-    status(io, 'optimize', 'stopping (the best point so far will be reported)');
-    controller.abort();
+    interrupts++;
+    if (interrupts === 1) {
+      status(io, 'optimize', 'stopping the search; the best point so far will be re-scored and written (Ctrl-C again skips the held-out re-scoring)');
+      stopSearch.abort();
+    } else if (interrupts === 2) {
+      status(io, 'optimize', 'skipping the held-out re-scoring; the result carries the training margins (Ctrl-C again leaves without a result)');
+      skipHoldout.abort();
+    } else {
+      status(io, 'optimize', 'stopped without writing a result');
+      process.exit(EXIT_CANCELLED);
+    }
   };
-  process.once('SIGINT', onSigint);
-  const progress = startProgress(io, 'optimize', { unit: 'evaluations' });
+  process.on('SIGINT', onSigint);
+  const threads = Math.min(workers ?? availableParallelism(), usefulWorkers(study));
+  status(
+    io,
+    'optimize',
+    `${study.search.method}, ${study.search.restarts} restart(s) x ${study.search.max_evaluations} evaluations on ` +
+      `${threads} worker thread(s); Ctrl-C stops the search and keeps the best point so far`,
+  );
+  const progress = startProgress(io, 'optimize');
+  let phase = '';
+  const onProgress = (p: SearchProgress) => {
+    if (p.phase !== phase) {
+      phase = p.phase;
+      progress.phase(p.label, p.total, p.unit);
+    }
+    progress.update(p.done, p.total, searchDetail(p));
+  };
   let result: OptimizationResult;
   try {
-    result = await optimizeStudy(study, { workers, signal: controller.signal, onProgress: (p) => progress.update(p.evaluations, p.budget, searchDetail(p)) });
+    result = await optimizeStudy(study, { workers, signal: stopSearch.signal, holdoutSignal: skipHoldout.signal, onProgress });
   } finally {
     process.off('SIGINT', onSigint);
     progress.done();
@@ -72,11 +105,11 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
         { source: SOURCE },
       );
     }
-    status(io, 'optimize', `result written to ${out}`);
+    status(io, 'optimize', `result written to ${out}${result.cancelled ? ' (marked cancelled)' : ''}`);
   }
   io.stdout.write(json ? text : renderOptimization(study, result));
   if (plot !== undefined) await writePlot(io.stderr, 'optimize', plot, result);
-  return 0;
+  return result.cancelled ? EXIT_CANCELLED : 0;
 }
 
 function parseWorkers(value: string | boolean | undefined): number | undefined {
@@ -88,30 +121,36 @@ function parseWorkers(value: string | boolean | undefined): number | undefined {
   return n;
 }
 
-// The progress line's detail: restarts finished and the best point so far.
+// The progress line's detail in the search phase: restarts finished and the best score so far
+// (larger is better). The held-out phase re-scores on other seeds: no training score there.
 function searchDetail(p: SearchProgress): string {
-  const point = p.x.map((v) => fixed(v, 3)).join(', ');
-  const best = Number.isFinite(p.best) ? fixed(p.best, 5) : '-';
-  return `restarts ${p.restartsDone}/${p.restarts} done, best ${best} at (${point})`;
+  if (p.phase !== 'search') return '';
+  const best = p.bestScore === null ? '' : `, best score ${fixed(p.bestScore, 5)} at (${p.x.map((v) => fixed(v, 3)).join(', ')})`;
+  return `restarts ${p.restartsDone}/${p.restarts} done${best}`;
 }
 
 const pct = (x: number) => `${fixed(100 * x, 1)} %`;
+const signedPct = (x: number) => `${x > 0 ? '+' : ''}${fixed(100 * x, 1)} %`;
 
-interface Scored {
-  survival?: number;
-  wilson95?: [number, number];
-}
-
-/** The terminal view of a result. */
+/** The terminal view of a result. Every score is larger-is-better. */
 export function renderOptimization(study: Study, r: OptimizationResult): string {
   const lines: string[] = [];
+  const p = r.provenance;
   lines.push(study.name ?? 'Policy search');
   lines.push(
-    `  search   ${r.provenance.method}${r.provenance.local_method ? ` with ${r.provenance.local_method}` : ''}, ` +
-      `${r.provenance.budget.restarts} restart(s) x ${r.provenance.budget.max_evaluations} evaluations, ` +
-      `constraints ${r.provenance.constraint_handling}, seed ${r.provenance.seed}, held-out seed ${r.provenance.holdout_seed}`,
+    `  search   ${p.method}${p.local_method ? ` with ${p.local_method}` : ''}, ` +
+      `${p.budget.restarts} restart(s) x ${p.budget.max_evaluations} evaluations, ` +
+      `constraints ${p.constraint_handling}, seed ${p.seed}, held-out seed ${p.holdout_seed}`,
   );
-  lines.push(`  ran      ${r.provenance.evaluations} evaluations in ${fixed(r.provenance.seconds, 1)} s${r.cancelled ? ' (cancelled: best point so far)' : ''}`);
+  const phases = p.phase_seconds
+    ? ` (screening ${fixed(p.phase_seconds.screening, 1)} s, search ${fixed(p.phase_seconds.search, 1)} s, held-out ${fixed(p.phase_seconds.holdout, 1)} s)`
+    : '';
+  lines.push(`  ran      ${p.evaluations} evaluations in ${fixed(p.seconds, 1)} s${phases}${r.cancelled ? '; CANCELLED: the best point found so far' : ''}`);
+  const sc = r.screening;
+  lines.push(
+    `  starts   ${sc.screened} of ${sc.candidates} candidate start points screened, ${sc.viable} viable; ` +
+      r.restarts.map((x) => `restart ${x.restart}: ${x.start_origin}`).join(', '),
+  );
   lines.push('');
   const paramColumns: Column[] = [
     { title: 'parameter', unit: '(scenario path)', align: 'left' },
@@ -122,55 +161,60 @@ export function renderOptimization(study: Study, r: OptimizationResult): string 
   lines.push(
     table(
       paramColumns,
-      r.parameters.map((p) => [p.path, fixed(p.start, 4), fixed(p.value, 4), `[${plain(p.lower)}, ${plain(p.upper)}]`]),
+      r.parameters.map((q) => [q.path, fixed(q.start, 4), fixed(q.value, 4), `[${plain(q.lower)}, ${plain(q.upper)}]`]),
     ),
   );
   lines.push('');
   const t = r.scores.training;
-  lines.push(`Objective (training seeds, larger is better): start ${fixed(t.start.objective, 5)} -> best ${fixed(t.best.objective, 5)}`);
+  const penalty = t.best.penalty !== 0 || t.start.penalty !== 0 ? ' (objective minus the limits\' penalty)' : '';
+  lines.push(`Score, larger is better${penalty}: training seeds: start ${fixed(r.summary.training_score.start, 5)} -> best ${fixed(r.summary.training_score.best, 5)}`);
   for (const term of t.best.terms) {
     const before = t.start.terms.find((x) => x.kind === term.kind);
     lines.push(`  ${term.kind} (weight ${plain(term.weight)}): ${before ? fixed(before.score, 5) : '-'} -> ${fixed(term.score, 5)}`);
   }
-  const holdout = r.scores.holdout as unknown as {
-    start: { evaluation: Evaluation };
-    best: { evaluation: Evaluation };
-    comparison: { comparisons: { kind: string; a: Scored; b: Scored; difference: number; paired95?: [number, number]; newcombe95: [number, number] }[] };
-  };
-  for (const c of holdout.comparison.comparisons) {
-    const band = (x: Scored) => (x.wilson95 ? ` [${pct(x.wilson95[0])}, ${pct(x.wilson95[1])}]` : '');
-    const interval = c.paired95 ?? c.newcombe95;
+  const hs = r.summary.holdout_score;
+  if (hs) lines.push(`  held-out seeds: start ${fixed(hs.start, 5)} -> best ${fixed(hs.best, 5)}`);
+  else lines.push('  held-out seeds: not re-scored (skipped by a second Ctrl-C)');
+  const comparisons = r.scores.holdout.comparison?.comparisons ?? [];
+  for (const h of r.summary.holdout_survival) {
+    const c = comparisons.find((x) => x.term === h.term);
+    const band = (w?: [number, number]) => (w ? ` [${pct(w[0])}, ${pct(w[1])}]` : '');
     lines.push(
-      `Held-out survival, ${c.kind} term (seeds the search never saw): start ${pct(c.a.survival!)}${band(c.a)} -> best ` +
-        `${pct(c.b.survival!)}${band(c.b)}; gain ${pct(-c.difference)} [${pct(-interval[1])}, ${pct(-interval[0])}]` +
-        `${c.paired95 ? ' (paired 95 %)' : ' (Newcombe 95 %)'}`,
+      `Held-out survival, ${h.kind} term (${h.rollouts} rollouts on seeds the search never saw): start ${pct(h.start)}${band(c?.a.wilson95)} -> best ` +
+        `${pct(h.best)}${band(c?.b.wilson95)}; gain ${signedPct(h.gain)} [${signedPct(h.gain_paired95[0])}, ${signedPct(h.gain_paired95[1])}] (paired 95 %)`,
     );
   }
   lines.push('');
-  const trainingMargins = new Map(t.best.constraints.map((c) => [c.name, c]));
   if (r.constraints.length) {
+    const training = new Map(t.best.constraints.map((c) => [c.name, c]));
+    const heldOut = r.constraints_set === 'holdout';
     const cc: Column[] = [
-      { title: 'constraint', unit: '(study field)', align: 'left' },
-      { title: 'limit', unit: "(limit's unit)" },
+      { title: 'limit', unit: '(study field)', align: 'left' },
+      { title: 'bound', unit: "(limit's unit)" },
       { title: 'training', unit: 'value' },
-      { title: 'margin', unit: 'training' },
-      { title: 'held-out', unit: 'value' },
-      { title: 'margin', unit: 'held-out' },
+      { title: 'margin', unit: '% of limit' },
+      ...(heldOut ? [{ title: 'held-out', unit: 'value' }, { title: 'margin', unit: '% of limit' }] : []),
+      { title: '', unit: '', align: 'left' },
     ];
+    const percent = (m: number | null | undefined) => (m === null || m === undefined ? '-' : `${fixed(m, 1)}${m < 0 ? ' !' : ''}`);
+    lines.push(`Limits at the best point: margin as % of the limit (negative: exceeded, marked !); the binding limit${heldOut ? ' (held-out seeds)' : ' (training seeds)'} is marked`);
     lines.push(
       table(
         cc,
         r.constraints.map((c) => {
-          const tr = trainingMargins.get(c.name);
-          const mark = (m: number | null | undefined) => (m === null || m === undefined ? '-' : `${fixed(m, 4)}${m < 0 ? ' !' : ''}`);
-          return [c.name, plain(c.limit), tr?.value == null ? '-' : fixed(tr.value, 4), mark(tr?.margin), c.value === null ? '-' : fixed(c.value, 4), mark(c.margin)];
+          const tr = training.get(c.name);
+          const bound = `${c.bound === 'upper' ? '<=' : '>='} ${plain(c.limit)}`;
+          const row = [c.name, bound, tr?.value == null ? '-' : fixed(tr.value, 4), percent(tr?.margin_percent)];
+          if (heldOut) row.push(c.value === null ? '-' : fixed(c.value, 4), percent(c.margin_percent));
+          row.push(c.binding ? '<- binding' : '');
+          return row;
         }),
       ),
     );
     if (r.constraints.some((c) => c.margin !== null && c.margin < 0)) {
       lines.push(
         wrap(
-          'Warning: a limit is exceeded on the held-out seeds (marked !): more rollouts meet rarer terrain than the search saw. ' +
+          `Warning: a limit is exceeded${heldOut ? ' on the held-out seeds (marked !): more rollouts meet rarer terrain than the search saw' : ' (marked !)'}. ` +
             'Tighten the limit in the study, add training rollouts, or accept the margin knowingly; pronk export refuses a ' +
             'policy with a negative margin unless forced.',
           100,
@@ -179,13 +223,14 @@ export function renderOptimization(study: Study, r: OptimizationResult): string 
         ),
       );
     }
+    if (!heldOut) lines.push('  (the held-out re-scoring was skipped: these margins are on the training seeds only)');
     lines.push('');
   }
   const rc: Column[] = [
     { title: 'restart', unit: '', align: 'left' },
     { title: 'evaluations', unit: 'count' },
-    { title: 'stopped', unit: 'reason' },
-    { title: 'objective', unit: 'training' },
+    { title: 'score', unit: 'start' },
+    { title: 'score', unit: 'best' },
     { title: 'feasible', unit: 'training' },
   ];
   lines.push(
@@ -194,12 +239,13 @@ export function renderOptimization(study: Study, r: OptimizationResult): string 
       r.restarts.map((x) => [
         `${x.restart}${x.restart === r.best_restart ? ' (best)' : ''}`,
         String(x.evaluations),
-        x.reason,
-        fixed(x.objective, 5),
+        fixed(x.start_score, 5),
+        fixed(x.score, 5),
         x.feasible ? 'yes' : 'no',
       ]),
     ),
   );
+  for (const x of r.restarts) lines.push(wrap(`restart ${x.restart} ${x.stopped_because}.`, 100, '  ', '    '));
   lines.push('');
   lines.push(wrap(`Caution: ${SAFETY_CAUTION}`, 100, '', '  '));
   return `${lines.join('\n')}\n`;

@@ -8,8 +8,8 @@
 import type { CliIO, OutputStream } from './main.js';
 
 export interface Progress {
-  /** Starts a named phase (e.g. "held-out re-scoring"), with its total when it is known. */
-  phase(label: string, total?: number): void;
+  /** Starts a named phase (e.g. "held-out re-scoring"), with its total when it is known, and what it counts when that differs from the start's unit. */
+  phase(label: string, total?: number, unit?: string): void;
   /** Work done in the current phase (of `total`, when known), with an optional short detail. */
   update(done: number, total?: number, detail?: string): void;
   /** Erases the line; call once the work has ended, also when it failed. */
@@ -36,7 +36,7 @@ export function startProgress(io: CliIO, command: string, options: ProgressOptio
   if (!stream.isTTY || io.env.TERM === 'dumb') return NO_PROGRESS;
   const now = options.now ?? (() => performance.now());
   const delay = options.delay_ms ?? 250;
-  const unit = options.unit ?? '';
+  let unit = options.unit ?? '';
   const started = now();
   let phaseStarted = started;
   let label = '';
@@ -80,9 +80,10 @@ export function startProgress(io: CliIO, command: string, options: ProgressOptio
   active.set(stream, { clear, redraw: () => draw(true) });
 
   return {
-    phase(name, phaseTotal) {
+    phase(name, phaseTotal, phaseUnit) {
       label = name;
       total = phaseTotal;
+      if (phaseUnit !== undefined) unit = phaseUnit;
       done = 0;
       detail = '';
       phaseStarted = now();

@@ -1,63 +1,53 @@
-// A browser module worker for one restart of a study's search (runRestart: NLopt on the study's
-// training objective), and for the held-out re-scoring of the winner. The workbench starts a fresh
-// one per restart, as the Node search does, so every restart's stochastic stream is its own.
-// Cancel: the caller sets the Int32 on the task's SharedArrayBuffer; the run ends at the next
-// evaluation with reason 'cancelled' and its best point so far.
+// A browser module worker of a study's search: restarts (runRestart: NLopt on the study's training
+// objective) and scoring jobs (screening start points, held-out re-scoring), for
+// browser-optimize.ts, as optimize-worker.ts does in Node. Cancel: the caller sets the Int32 on the
+// job's SharedArrayBuffer; a restart then ends at its next evaluation with reason 'cancelled' and
+// its best point so far, a scoring job with ScoreCancelled.
 
 import './browser-atob-shim.js';
 import * as Comlink from 'comlink';
-import { loadEngine } from '../core/engine.js';
-import { comparePolicies, rescore, StudyEvaluator, type Evaluation, type PolicyComparison, type Rescore } from '../core/optimize/objectives.js';
 import { runRestart, type RestartProgress, type RestartResult, type RestartTask } from '../core/optimize/restart.js';
-import { parseStudy } from '../core/optimize/study.js';
+import { runScoreTask, type ScoreResult, type ScoreTask } from '../core/optimize/score.js';
 
-/** Progress is sent at most this often (ms), and always for the last evaluation. */
+/** Progress is sent at most this often (ms), and always for the last report. */
 const PROGRESS_INTERVAL_MS = 100;
 
-export interface FinishedScores {
-  start: Evaluation;
-  holdoutStart: Rescore | null;
-  holdoutBest: Rescore | null;
-  comparison: PolicyComparison | null;
-  /** The base scenario with the best parameters set. */
-  bestScenario: unknown;
+type Callback<P> = ((p: P) => void) & { [Comlink.releaseProxy]?: () => void };
+
+// Sends progress at most every PROGRESS_INTERVAL_MS, the last one always; releases the proxy at the end.
+async function throttled<P, T>(callback: Callback<P> | undefined, body: (report?: (p: P) => void) => Promise<T>): Promise<T> {
+  let last = 0;
+  let pending: P | null = null;
+  const report = (p: P) => {
+    pending = p;
+    const now = performance.now();
+    if (now - last < PROGRESS_INTERVAL_MS) return;
+    last = now;
+    pending = null;
+    void callback?.(p);
+  };
+  try {
+    const result = await body(callback ? report : undefined);
+    if (pending !== null) void callback?.(pending);
+    return result;
+  } finally {
+    callback?.[Comlink.releaseProxy]?.();
+  }
 }
 
+const flagOf = (cancel?: SharedArrayBuffer) => (cancel ? new Int32Array(cancel) : null);
+
 const api = {
-  async run(task: Omit<RestartTask, 'cancel'> & { cancel?: SharedArrayBuffer }, onProgress?: (p: RestartProgress) => void): Promise<RestartResult> {
-    const flag = task.cancel ? new Int32Array(task.cancel) : null;
-    let last = 0;
-    let pending: RestartProgress | null = null;
-    const send = (p: RestartProgress) => {
-      pending = p;
-      const now = performance.now();
-      if (now - last < PROGRESS_INTERVAL_MS) return;
-      last = now;
-      pending = null;
-      void onProgress?.(p);
-    };
-    const result = await runRestart(task as RestartTask, {
-      shouldStop: () => flag !== null && Atomics.load(flag, 0) !== 0,
-      onProgress: onProgress ? send : undefined,
-    });
-    if (pending) void onProgress?.(pending);
-    return result;
+  restart(task: RestartTask, cancel: SharedArrayBuffer | undefined, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
+    const flag = flagOf(cancel);
+    return throttled(onProgress, (report) => runRestart(task, { shouldStop: () => flag !== null && Atomics.load(flag, 0) !== 0, onProgress: report }));
   },
 
-  /** The start point's training scores and both candidates' held-out scores and paired comparison. */
-  async finish(studyJson: unknown, start: number[], best: number[]): Promise<FinishedScores> {
-    const study = parseStudy(studyJson);
-    const engine = await loadEngine();
-    const training = new StudyEvaluator(study, engine, 'training');
-    const holdout = study.holdout !== null;
-    const monteCarlo = study.objective.terms.some((t) => t.kind === 'survival' || t.kind === 'tracking');
-    return {
-      start: training.evaluate(start),
-      holdoutStart: holdout ? rescore(study, engine, start) : null,
-      holdoutBest: holdout ? rescore(study, engine, best) : null,
-      comparison: holdout && monteCarlo ? comparePolicies(study, engine, start, best) : null,
-      bestScenario: training.scenarioAt(best),
-    };
+  score(task: ScoreTask, cancel: SharedArrayBuffer | undefined, onProgress?: Callback<{ done: number; total: number }>): Promise<ScoreResult> {
+    const flag = flagOf(cancel);
+    return throttled(onProgress, (report) =>
+      runScoreTask(task, { shouldStop: () => flag !== null && Atomics.load(flag, 0) !== 0, onProgress: report && ((done, total) => report({ done, total })) }),
+    );
   },
 };
 

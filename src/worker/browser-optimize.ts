@@ -1,176 +1,135 @@
-// A study's policy search in the browser: the same multi-start NLopt as `pronk optimize`
-// (src/core/optimize/search.ts), each restart in a fresh module worker (runRestart), at most
-// `concurrency` at a time; then the winner is re-scored on the held-out seeds in one more worker
-// and the result file is assembled in the shape search.ts writes. Main-thread side: nothing here
-// computes more than a few comparisons, so the page stays responsive while the workers search.
+// A study's policy search in the browser: the same search as `pronk optimize`
+// (src/core/optimize/search.ts) over module workers (browser-optimize-worker.ts), at most
+// `concurrency` jobs at a time. Workers are kept between jobs, except that a restart of a method
+// that draws random numbers gets a worker that has run no NLopt yet (one seed → one result, as in
+// Node). Main-thread side: nothing here computes more than a few comparisons, so the page stays
+// responsive while the workers search.
 
 import * as Comlink from 'comlink';
+import { drawsRandomNumbers } from '../core/optimize/nlopt.js';
+import type { RestartProgress, RestartResult, RestartTask } from '../core/optimize/restart.js';
+import type { ScoreResult, ScoreTask } from '../core/optimize/score.js';
+import { searchStudy, type OptimizationResult, type RunnerControl, type SearchProgress, type SearchRunner } from '../core/optimize/search.js';
 import { parseStudy, type Study } from '../core/optimize/study.js';
-import { assembleResult, pickBest, restartStarts, type FinalScores } from '../core/optimize/result.js';
-import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
-import type { RestartProgress, RestartResult } from '../core/optimize/restart.js';
 import type { OptimizeWorkerApi } from './browser-optimize-worker.js';
 import { JobCancelled, WorkerHandle, WorkerLost } from './browser-pool.js';
+
+export type { LiveRestart } from '../core/optimize/search.js';
 
 export function optimizeWorker(): Worker {
   return new Worker(new URL('./browser-optimize-worker.ts', import.meta.url), { type: 'module', name: 'pronk-optimizer' });
 }
 
-export interface LiveRestart {
-  restart: number;
-  evaluations: number;
-  best: number;
-  x: number[];
-  done: boolean;
-}
-
-export interface BrowserSearchProgress extends SearchProgress {
-  /** Per restart, for the convergence view. */
-  perRestart: LiveRestart[];
-}
+/** The search's progress (phase, counts, best score, per restart). */
+export type BrowserSearchProgress = SearchProgress;
 
 export interface BrowserSearchOptions {
-  /** Restarts running at once (default: cores − 1, at least 1). */
+  /** Jobs running at once (default: cores − 1, at least 1). */
   concurrency?: number;
+  /** Stops the search; the best point so far is kept and re-scored on the held-out seeds. */
   signal?: AbortSignal;
+  /** Skips the held-out re-scoring (the result then carries the training margins). */
+  holdoutSignal?: AbortSignal;
   onProgress?: (p: BrowserSearchProgress) => void;
   /** Worker factory (tests may pass their own). */
   make?: () => Worker;
 }
 
+/** Restarts a worker runs before it is replaced (nlopt-js leaks a little per run). */
+const RUNS_PER_WORKER = 32;
+
+interface Slot {
+  handle: WorkerHandle<OptimizeWorkerApi>;
+  nloptRuns: number;
+}
+
+// Without cross-origin isolation there is no shared memory: a cancelled job's worker is then
+// terminated instead (the job is lost, and a search without any restart result is JobCancelled).
 function cancelBuffer(): SharedArrayBuffer | undefined {
   return typeof SharedArrayBuffer === 'function' && globalThis.crossOriginIsolated ? new SharedArrayBuffer(4) : undefined;
 }
 
-async function inWorker<T>(make: () => Worker, body: (api: Comlink.Remote<OptimizeWorkerApi>, handle: WorkerHandle<OptimizeWorkerApi>) => Promise<T>): Promise<T> {
-  const handle = new WorkerHandle<OptimizeWorkerApi>(make);
-  try {
-    return await handle.race(body(handle.api, handle));
-  } finally {
-    handle.terminate();
+class BrowserSearchRunner implements SearchRunner {
+  private readonly idle: Slot[] = [];
+  private readonly all = new Set<Slot>();
+  private running = 0;
+  private readonly waiting: (() => void)[] = [];
+
+  constructor(
+    readonly concurrency: number,
+    private readonly make: () => Worker,
+    private readonly needsFreshModule: boolean,
+  ) {}
+
+  restart(task: RestartTask, control: RunnerControl<RestartProgress>): Promise<RestartResult> {
+    return this.job(this.needsFreshModule, control.signal, (slot, cancel) => {
+      slot.nloptRuns++;
+      return slot.handle.api.restart(task, cancel, control.onProgress && Comlink.proxy(control.onProgress));
+    });
+  }
+
+  score(task: ScoreTask, control: RunnerControl<{ done: number; total: number }>): Promise<ScoreResult> {
+    return this.job(false, control.signal, (slot, cancel): Promise<ScoreResult> => slot.handle.api.score(task, cancel, control.onProgress && Comlink.proxy(control.onProgress)));
+  }
+
+  close(): void {
+    for (const slot of this.all) slot.handle.terminate();
+    this.all.clear();
+    this.idle.length = 0;
+  }
+
+  private async job<T>(pristine: boolean, signal: AbortSignal, body: (slot: Slot, cancel: SharedArrayBuffer | undefined) => Promise<T>): Promise<T> {
+    while (this.running >= this.concurrency) await new Promise<void>((resolve) => this.waiting.push(resolve));
+    this.running++;
+    const cancel = cancelBuffer();
+    const flag = cancel ? new Int32Array(cancel) : null;
+    const at = this.idle.findIndex((s) => !pristine || s.nloptRuns === 0);
+    const slot = at >= 0 ? this.idle.splice(at, 1)[0] : { handle: new WorkerHandle<OptimizeWorkerApi>(this.make), nloptRuns: 0 };
+    this.all.add(slot);
+    let lost: (error: Error) => void = () => undefined;
+    const terminated = new Promise<never>((_, reject) => (lost = reject));
+    terminated.catch(() => undefined);
+    const onAbort = () => {
+      if (flag) Atomics.store(flag, 0, 1);
+      else {
+        slot.handle.terminate();
+        lost(new JobCancelled());
+      }
+    };
+    if (signal.aborted) onAbort();
+    signal.addEventListener('abort', onAbort);
+    let healthy = false;
+    try {
+      const result = await Promise.race([slot.handle.race(body(slot, cancel)), terminated]);
+      healthy = true;
+      return result;
+    } catch (error) {
+      if (error instanceof WorkerLost) throw new WorkerLost(`in the optimizer: ${error.message}`);
+      throw error;
+    } finally {
+      signal.removeEventListener('abort', onAbort);
+      const retire = !healthy || (this.needsFreshModule && slot.nloptRuns > 0) || slot.nloptRuns >= RUNS_PER_WORKER;
+      if (retire) {
+        this.all.delete(slot);
+        slot.handle.terminate();
+      } else {
+        this.idle.push(slot);
+      }
+      this.running--;
+      this.waiting.shift()?.();
+    }
   }
 }
 
 export async function optimizeInBrowser(studyValue: unknown, options: BrowserSearchOptions = {}): Promise<OptimizationResult> {
-  const started = performance.now();
   const study: Study = parseStudy(studyValue);
-  const studyJson = JSON.parse(JSON.stringify(study)) as unknown;
-  const make = options.make ?? optimizeWorker;
-  const free = study.free_parameters;
-  const lower = free.map((p) => p.lower);
-  const upper = free.map((p) => p.upper);
-  const start = free.map((p) => p.start);
-  const restarts = study.search.restarts;
-  const starts = restartStarts(start, lower, upper, restarts, study.search.seed);
   const cores = typeof navigator !== 'undefined' && navigator.hardwareConcurrency ? navigator.hardwareConcurrency : 2;
-  const concurrency = Math.max(1, Math.min(options.concurrency ?? Math.max(1, cores - 1), restarts));
-
-  // Cancel: the shared flag ends every running restart at its next evaluation with its best point.
-  // Without cross-origin isolation there is no shared memory: the workers are terminated instead.
-  const cancel = cancelBuffer();
-  const flag = cancel ? new Int32Array(cancel) : null;
-  const running = new Set<WorkerHandle<OptimizeWorkerApi>>();
-  let cancelled = options.signal?.aborted ?? false;
-  let rejectCancel: (error: Error) => void = () => undefined;
-  const cancelledHard = new Promise<never>((_, reject) => {
-    rejectCancel = reject;
-  });
-  cancelledHard.catch(() => undefined);
-  const onAbort = () => {
-    cancelled = true;
-    if (flag) Atomics.store(flag, 0, 1);
-    else {
-      for (const handle of running) handle.terminate();
-      rejectCancel(new JobCancelled());
-    }
-  };
-  if (cancelled) onAbort();
-  options.signal?.addEventListener('abort', onAbort);
-
-  const live: LiveRestart[] = starts.map((x, restart) => ({ restart, evaluations: 0, best: Infinity, x, done: false }));
-  const budget = restarts * study.search.max_evaluations;
-  let restartsDone = 0;
-  const report = () => {
-    if (!options.onProgress) return;
-    let evaluations = 0;
-    let best: LiveRestart | undefined;
-    for (const r of live) {
-      evaluations += r.evaluations;
-      if (r.evaluations > 0 && (!best || r.best < best.best)) best = r;
-    }
-    options.onProgress({
-      evaluations,
-      budget,
-      best: best?.best ?? Infinity,
-      x: best?.x ?? start,
-      restartsDone,
-      restarts,
-      perRestart: live.map((r) => ({ ...r })),
-    });
-  };
-
-  const results: RestartResult[] = [];
-  let next = 0;
+  const useful = Math.max(2, study.search.restarts);
+  const concurrency = Math.max(1, Math.min(options.concurrency ?? Math.max(1, cores - 1), useful));
+  const runner = new BrowserSearchRunner(concurrency, options.make ?? optimizeWorker, drawsRandomNumbers(study.search.method, study.search.local_method));
   try {
-    await Promise.race([
-      cancelledHard,
-      Promise.all(
-        Array.from({ length: concurrency }, async () => {
-          // after a cancel no further restart begins; the running ones end with their best so far
-          while (next < restarts && !cancelled) {
-            const restart = next++;
-            const task = { study: studyJson, restart, x0: starts[restart], ...(cancel ? { cancel } : {}) };
-            const onProgress = Comlink.proxy((p: RestartProgress) => {
-              const r = live[p.restart];
-              r.evaluations = p.evaluations;
-              r.best = p.best;
-              r.x = p.x;
-              report();
-            });
-            const result = await inWorker(make, async (api, handle) => {
-              running.add(handle);
-              try {
-                return await api.run(task, onProgress);
-              } finally {
-                running.delete(handle);
-              }
-            });
-            const r = live[restart];
-            r.evaluations = result.outcome.evaluations;
-            r.best = result.outcome.value;
-            r.x = result.outcome.x;
-            r.done = true;
-            results.push(result);
-            restartsDone++;
-            report();
-          }
-        }),
-      ),
-    ]);
-  } catch (error) {
-    if (error instanceof WorkerLost) throw new WorkerLost(`in the optimizer: ${error.message}`);
-    throw error;
+    return await searchStudy(study, runner, { signal: options.signal, holdoutSignal: options.holdoutSignal, onProgress: options.onProgress });
   } finally {
-    options.signal?.removeEventListener('abort', onAbort);
+    runner.close();
   }
-  if (results.length === 0) throw new JobCancelled();
-  const best = pickBest(results);
-  const scores = await inWorker(make, (api) => api.finish(studyJson, start, best.outcome.x));
-  return assembleResult(
-    study,
-    results,
-    {
-      start: scores.start,
-      holdoutStart: scores.holdoutStart as unknown as FinalScores['holdoutStart'],
-      holdoutBest: scores.holdoutBest as unknown as FinalScores['holdoutBest'],
-      comparison: scores.comparison,
-      scenario: scores.bestScenario as { policy: unknown },
-      paths: free.map((p) => p.path),
-      lower,
-      upper,
-      startPoint: start,
-    },
-    cancelled,
-    (performance.now() - started) / 1000,
-  );
 }

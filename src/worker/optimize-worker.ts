@@ -1,20 +1,40 @@
-// One restart of a policy search, in a worker thread of its own (worker_threads, driven
-// through comlink like the workbench's browser workers). A fresh worker per restart gives
-// each run a fresh NLopt module, so a seeded stochastic method gives one result per seed,
-// and no run inherits another's random stream or leaked state.
+// A worker thread of a policy search (worker_threads, driven through comlink like the workbench's
+// browser workers): it runs restarts (NLopt on the study's training objective) and scoring jobs
+// (screening start points, held-out re-scoring) for src/worker/node-optimize.ts. A restart of a
+// method that draws random numbers gets a thread that has run no NLopt yet (one seed → one
+// result, see nlopt.ts); the other methods and the scoring jobs reuse threads.
 
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
 import { parentPort } from 'node:worker_threads';
-import { runRestart, type RestartTask, type RestartProgress } from '../core/optimize/restart.js';
+import { runRestart, type RestartProgress, type RestartResult, type RestartTask } from '../core/optimize/restart.js';
+import { runScoreTask, type ScoreResult, type ScoreTask } from '../core/optimize/score.js';
 
 const port = parentPort;
 if (!port) throw new Error('optimize-worker.js runs only as a worker thread');
 
+type Callback<P> = ((p: P) => void) & { [Comlink.releaseProxy]?: () => void };
+
+// The caller's progress callback crosses as a proxy: released when the job ends, so no port stays open.
+async function withCallback<P, T>(callback: Callback<P> | undefined, body: (report?: (p: P) => void) => Promise<T>): Promise<T> {
+  try {
+    return await body(callback ? (p) => void callback(p) : undefined);
+  } finally {
+    callback?.[Comlink.releaseProxy]?.();
+  }
+}
+
 const api = {
-  run(task: RestartTask, onProgress: (p: RestartProgress) => void) {
-    const cancel = new Int32Array(task.cancel);
-    return runRestart(task, { shouldStop: () => Atomics.load(cancel, 0) !== 0, onProgress });
+  restart(task: RestartTask, cancel: SharedArrayBuffer, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
+    const flag = new Int32Array(cancel);
+    return withCallback(onProgress, (report) => runRestart(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report }));
+  },
+
+  score(task: ScoreTask, cancel: SharedArrayBuffer, onProgress?: Callback<{ done: number; total: number }>): Promise<ScoreResult> {
+    const flag = new Int32Array(cancel);
+    return withCallback(onProgress, (report) =>
+      runScoreTask(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report && ((done, total) => report({ done, total })) }),
+    );
   },
 };
 export type OptimizeWorkerApi = typeof api;

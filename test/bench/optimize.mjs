@@ -5,7 +5,7 @@ import { availableParallelism, loadavg } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { loadEngine } from '../../dist/src/core/engine.js';
 import { StudyEvaluator } from '../../dist/src/core/optimize/objectives.js';
-import { optimizeStudy } from '../../dist/src/core/optimize/search.js';
+import { optimizeStudy } from '../../dist/src/worker/node-optimize.js';
 import { parseStudy } from '../../dist/src/core/optimize/study.js';
 
 const median = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];

@@ -1,19 +1,22 @@
-// Figure 6: optimizer convergence — the best objective so far against the evaluation count, one
-// line per restart (the result file's `restarts[].trace`, src/core/optimize/search.ts). Lower is
-// better (the objective is minimized). A logarithmic scale when every value is > 0 and they span
-// more than two decades (penalties for infeasible starts otherwise flatten the rest).
+// Figure 6: optimizer convergence — the best SCORE so far (larger is better, the sign convention of
+// every Pronk view) against the evaluation count, one line per restart (the result file's
+// `restarts[].trace`, src/core/optimize/result.ts). Traces of older result files carry NLopt's
+// minimized `best` instead: drawn as −best, the same score. A logarithmic scale when every value is
+// > 0 and they span more than two decades.
 //
-// Series ids: restart-<restart> (data [evaluation, best]); the best restart drawn thicker.
+// Series ids: restart-<restart> (data [evaluation, best score]); the best restart drawn thicker.
 
 import type { LineSeriesOption } from 'echarts';
 import { InputError, describeFound } from '../errors.js';
-import type { TracePoint } from '../optimize/nlopt.js';
 import { PALETTE, baseOption, legend, num, seriesColor, seriesDash, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+
+/** A trace point: best_score (larger is better), or an older file's minimized best. */
+export type ConvergencePoint = { evaluation: number; best_score: number } | { evaluation: number; best: number };
 
 /** What the figure needs of a restart (RestartSummary has it). */
 export interface ConvergenceRestart {
   restart: number;
-  trace: readonly TracePoint[];
+  trace: readonly ConvergencePoint[];
 }
 
 export interface ConvergenceFigureOptions {
@@ -22,12 +25,19 @@ export interface ConvergenceFigureOptions {
   title?: string;
 }
 
+/** The best score so far at a trace point (larger is better). */
+export function bestScoreOf(p: ConvergencePoint): number {
+  return 'best_score' in p ? p.best_score : -p.best;
+}
+
 export function convergenceFigure(restarts: readonly ConvergenceRestart[], options: ConvergenceFigureOptions = {}): FigureOption {
   if (!(restarts?.length > 0)) {
     throw new InputError([{ path: 'restarts', expected: 'at least one restart with a trace', found: describeFound(restarts) }]);
   }
   // non-finite values (a failed evaluation before any finite one) leave a gap, never a NaN point
-  const points = restarts.map((r) => r.trace.filter((p) => Number.isFinite(p.best)).map((p) => [p.evaluation, p.best] as [number, number]));
+  const points = restarts.map((r) =>
+    r.trace.map((p) => [p.evaluation, bestScoreOf(p)] as [number, number]).filter((p) => Number.isFinite(p[1])),
+  );
   const values = points.flat().map((p) => p[1]);
   const low = values.length ? Math.min(...values) : 1;
   const high = values.length ? Math.max(...values) : 1;
@@ -51,8 +61,8 @@ export function convergenceFigure(restarts: readonly ConvergenceRestart[], optio
   const winner = restarts.find((r) => r.restart === options.bestRestart);
   const finalBest = (r: ConvergenceRestart) => points[restarts.indexOf(r)].at(-1)?.[1];
   const subtitle =
-    `${restarts.length} restart${restarts.length === 1 ? '' : 's'}, ${evaluations} traced evaluations; the objective is minimized` +
-    (winner ? `\nbest: restart ${winner.restart}, objective ${num(finalBest(winner), 6)}` : '') +
+    `${restarts.length} restart${restarts.length === 1 ? '' : 's'}, ${evaluations} traced evaluations; the score is maximized (larger is better)` +
+    (winner ? `\nbest: restart ${winner.restart}, score ${num(finalBest(winner), 6)}` : '') +
     (log ? ' (logarithmic scale)' : '');
   return {
     ...baseOption(`Optimizer convergence over ${restarts.length} restarts.`),
@@ -61,7 +71,7 @@ export function convergenceFigure(restarts: readonly ConvergenceRestart[], optio
     tooltip: tooltip(),
     grid: { left: 110, right: 48, top: 140, bottom: 72 },
     xAxis: valueXAxis('evaluation', { min: 0, minInterval: 1 }),
-    yAxis: valueYAxis('best objective so far (lower is better)', log ? { type: 'log', splitLine: { show: true, lineStyle: { color: PALETTE.grid } } } : { scale: true }),
+    yAxis: valueYAxis('best score so far (larger is better)', log ? { type: 'log', splitLine: { show: true, lineStyle: { color: PALETTE.grid } } } : { scale: true }),
     series,
   };
 }

@@ -39,7 +39,27 @@ import {
   type TermKind,
 } from './study.js';
 
-export type EvaluationSet = 'training' | 'holdout';
+/**
+ * 'training': the search's rollouts. 'holdout': the held-out seed, holdout.rollouts per term.
+ * 'screening': the first SCREENING_ROLLOUTS training rollouts of each Monte Carlo term, for the cheap
+ * look at candidate start points (screen()).
+ */
+export type EvaluationSet = 'training' | 'holdout' | 'screening';
+
+/** Rollouts per Monte Carlo term when screening candidate start points. */
+export const SCREENING_ROLLOUTS = 16;
+
+/**
+ * How much the strides a fallen rollout completed count in a Monte Carlo term's score: the mean
+ * fraction of its strides that the fallen rollouts completed, times this, counts as that many
+ * survivors. Below 1, so it only breaks ties: it never outweighs one more rollout that survives,
+ * and it gives the search a slope on a plateau where every rollout falls (the farther they get
+ * before falling, the better).
+ */
+export const FALL_TIE_BREAK = 0.5;
+
+/** A limit violated by more than this many times its own size counts as this much (keeps NLopt's values finite). */
+export const MAX_NORMALIZED_VIOLATION = 1e6;
 
 export interface SurvivalDetails {
   rollouts: number;
@@ -48,6 +68,8 @@ export interface SurvivalDetails {
   /** Wilson 1927 score interval at 95 %. */
   wilson95: [number, number];
   mean_strides_completed: number;
+  /** Mean over the fallen rollouts of the fraction of their strides they completed; null when none fell (the tie-break, FALL_TIE_BREAK). */
+  fallen_stride_fraction: number | null;
   /** Rollouts ended by each failure code (STATUS_NAMES), only codes that occurred. */
   failures: Record<string, number>;
 }
@@ -60,7 +82,7 @@ export interface TrackingDetails extends SurvivalDetails {
   strides_completed_total: number;
   /** rms_height/height_scale + rms_speed/speed_scale, capped at fall_penalty (fall_penalty when nothing completed). */
   tracking_error: number;
-  /** fall_penalty × fell / rollouts. */
+  /** fall_penalty × (fell − FALL_TIE_BREAK × fallen_stride_fraction) / rollouts. */
   fall_cost: number;
 }
 
@@ -98,7 +120,11 @@ export interface ConstraintResult {
   limit: number;
   /** Distance inside the limit, in its units: limit − value (upper) or value − limit (lower); >= 0 is feasible; null with value. */
   margin: number | null;
-  /** −margin / |limit|: <= 0 is feasible (NLopt's c(x) <= 0); 0 when nothing was measured. */
+  /** The margin as a percentage of the limit: 100 · margin / |limit| (negative: violated by that much); null with value. */
+  margin_percent: number | null;
+  /** The limit with the smallest margin_percent at this point (the first of equals): the one that binds. */
+  binding: boolean;
+  /** −margin / |limit|, at most MAX_NORMALIZED_VIOLATION: <= 0 is feasible (NLopt's c(x) <= 0); 0 when nothing was measured. */
   normalized: number;
 }
 
@@ -106,9 +132,11 @@ export interface Evaluation {
   x: number[];
   /** Free parameter path → value. */
   parameters: Record<string, number>;
-  /** Minimized: −objective, plus the penalty under penalty handling. */
+  /** The score, LARGER IS BETTER: objective − penalty. What the search maximizes and every view shows. */
+  score: number;
+  /** NLopt's minimized value: −score (kept for readers of older result files). */
   value: number;
-  /** Σ weight × score (larger is better); for an invalid candidate, 1 below the worst any valid one can score. */
+  /** Σ weight × term score (larger is better); for an invalid candidate, 1 below the worst any valid one can score. */
   objective: number;
   /** penalty_weight × Σ max(0, normalized)² under penalty handling, else 0. */
   penalty: number;
@@ -116,9 +144,30 @@ export interface Evaluation {
   /** Empty for an invalid candidate. */
   constraints: ConstraintResult[];
   feasible: boolean;
-  /** False when the candidate scenario does not validate (e.g. min_deg >= max_deg after a move). */
+  /** False when the candidate scenario does not validate (e.g. min_deg >= max_deg after a move), or its score is not finite. */
   valid: boolean;
   message?: string;
+}
+
+/** A cheap look at a candidate start point (StudyEvaluator.screen, on the 'screening' set). */
+export interface Screening {
+  x: number[];
+  /** The candidate scenario validates. */
+  valid: boolean;
+  /** The nominal gait (flat ground, the scenario's strides, nominal robot): strides completed of how many, and how it ended. */
+  nominal: { strides_completed: number; strides: number; status: string };
+  /** Over the screening rollouts of every Monte Carlo term together (0 and 0 when the study has none). */
+  rollouts: number;
+  survived: number;
+  /** Mean fraction of their strides that the screening rollouts completed (1 when the study has none). */
+  stride_fraction: number;
+  /**
+   * Viable: valid, the nominal gait completes every stride, and (when the study has Monte Carlo
+   * terms) at least one screening rollout survives. A search started there has a slope to follow.
+   */
+  viable: boolean;
+  /** Ranks candidates that are not viable: nominal fraction completed + survival + stride fraction (each in [0, 1]); −1 when invalid. */
+  rank: number;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -263,6 +312,8 @@ interface Memo {
 
 // A candidate with no scores: worse than any valid one without a constraint violation.
 const INVALID_MARGIN = 1;
+// Rollouts per kernel call when an evaluation reports its progress.
+const PROGRESS_CHUNK_ROLLOUTS = 250;
 
 export class StudyEvaluator {
   readonly dimension: number;
@@ -308,9 +359,11 @@ export class StudyEvaluator {
     let streams = 0;
     this.rolloutsPerTerm = terms.map((term, i) => {
       if (!isMonteCarloTerm(term)) return null;
-      const rollouts = set === 'holdout' ? study.holdout.rollouts : term.rollouts;
+      // screening runs the first rollouts of each term's training streams (and robots)
+      const span = set === 'holdout' ? study.holdout.rollouts : term.rollouts;
+      const rollouts = set === 'screening' ? Math.min(term.rollouts, SCREENING_ROLLOUTS) : span;
       plans.push({ term: i, rollouts, streamStart: streams });
-      streams += rollouts;
+      streams += span;
       return rollouts;
     });
     const robots = mismatchFactors(study.model_mismatch, this.seed, streams);
@@ -361,9 +414,58 @@ export class StudyEvaluator {
     return parseScenario(scenarioValueAt(this.study.scenario, this.study.free_parameters, x));
   }
 
-  /** Scores, constraints and NLopt's value at x. The same x gives the identical Evaluation (the last one is memoized: treat it as read-only). */
-  evaluate(x: readonly number[]): Evaluation {
-    return this.run(x).evaluation;
+  /**
+   * Scores, constraints and NLopt's value at x. The same x gives the identical Evaluation (the last
+   * one is memoized: treat it as read-only). onRollouts, when given, hears how many of the Monte
+   * Carlo and nominal rollouts (rolloutCount) are done; they then run in chunks (the same numbers).
+   */
+  evaluate(x: readonly number[], onRollouts?: (done: number, total: number) => void): Evaluation {
+    return this.run(x, onRollouts).evaluation;
+  }
+
+  /** The rollouts one evaluation runs in its Monte Carlo terms and nominal gait (the unit of evaluate's progress). */
+  get rolloutCount(): number {
+    return this.groups.reduce((n, g) => n + g.inputs.length / L.I_SIZE, 0);
+  }
+
+  /** A cheap look at x for choosing start points: valid, nominal gait, screening rollouts (use a 'screening' evaluator). */
+  screen(xIn: readonly number[]): Screening {
+    this.checkLength(xIn);
+    const x = Array.from(xIn);
+    const nominalStrides = this.study.scenario.strides;
+    let scenario: Scenario;
+    try {
+      if (!x.every(Number.isFinite)) throw new InputError([{ path: 'x', expected: 'finite parameter values', found: describeFound(x) }]);
+      scenario = this.scenarioAt(x);
+    } catch (error) {
+      if (!(error instanceof InputError)) throw error;
+      return { x, valid: false, nominal: { strides_completed: 0, strides: nominalStrides, status: 'invalid' }, rollouts: 0, survived: 0, stride_fraction: 0, viable: false, rank: -1 };
+    }
+    const runs = this.runGroups(scenario);
+    let rollouts = 0;
+    let survived = 0;
+    let fraction = 0;
+    for (const term of runs.monteCarlo) {
+      const d = term.result.details as SurvivalDetails;
+      const strides = (this.study.objective.terms[term.term] as MonteCarloTerm).strides;
+      rollouts += d.rollouts;
+      survived += d.survived;
+      fraction += (d.mean_strides_completed / strides) * d.rollouts;
+    }
+    const nominal = runs.nominal;
+    const strideFraction = rollouts > 0 ? fraction / rollouts : 1;
+    const survival = rollouts > 0 ? survived / rollouts : 1;
+    const nominalDone = nominal.strides_completed === nominalStrides;
+    return {
+      x,
+      valid: true,
+      nominal: { strides_completed: nominal.strides_completed, strides: nominalStrides, status: nominal.status },
+      rollouts,
+      survived,
+      stride_fraction: strideFraction,
+      viable: nominalDone && (rollouts === 0 || survived > 0),
+      rank: nominal.strides_completed / nominalStrides + survival + strideFraction,
+    };
   }
 
   /** NLopt's objective: evaluate(x).value. */
@@ -396,11 +498,14 @@ export class StudyEvaluator {
     if (x.length !== this.dimension) throw new Error(`a candidate has ${this.dimension} values (free_parameters), found ${x.length}`);
   }
 
-  private run(xIn: readonly number[]): Memo {
+  private run(xIn: readonly number[], onRollouts?: (done: number, total: number) => void): Memo {
     this.checkLength(xIn);
     const x = Array.from(xIn);
     const memo = this.memo;
-    if (memo && memo.x.every((v, i) => Object.is(v, x[i]))) return memo;
+    if (memo && memo.x.every((v, i) => Object.is(v, x[i]))) {
+      if (onRollouts) onRollouts(this.rolloutCount, this.rolloutCount);
+      return memo;
+    }
     const parameters: Record<string, number> = {};
     this.paths.forEach((path, i) => (parameters[path] = x[i]));
     let scenario: Scenario;
@@ -409,41 +514,18 @@ export class StudyEvaluator {
       scenario = this.scenarioAt(x);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
-      return this.remember(x, new Map(), {
-        x,
-        parameters,
-        value: this.invalidValue,
-        objective: this.invalidObjective,
-        penalty: this.invalidValue + this.invalidObjective,
-        terms: [],
-        constraints: [],
-        feasible: false,
-        valid: false,
-        message: `invalid candidate: ${error.message}`,
-      });
+      return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, `invalid candidate: ${error.message}`));
     }
 
     const terms = this.study.objective.terms;
     const results: (TermResult | null)[] = terms.map(() => null);
+    const runs = this.runGroups(scenario, onRollouts);
     const survived = new Map<number, Uint8Array>();
-    const extremes = new Extremes();
-
-    for (const group of this.groups) {
-      const models = group.members.map(({ plan }) => (plan ? monteCarloModel(scenario, terms[plan.term] as MonteCarloTerm, this.seed) : flatModel(scenario)));
-      const batch = this.engine.runBatch({ model: models, inputs: group.inputs, strides: group.strides });
-      const s = batch.summaries; // (rollouts × S_SIZE)
-      for (const member of group.members) {
-        for (let r = member.first; r < member.first + member.count; r++) {
-          extremes.add(s, r, scenario.body.leg_length_m * group.legFactors[r]);
-        }
-        if (!member.plan) continue;
-        const term = terms[member.plan.term] as MonteCarloTerm;
-        const flags = new Uint8Array(member.count);
-        for (let r = 0; r < member.count; r++) flags[r] = s[(member.first + r) * L.S_SIZE + L.S_STATUS] === L.STATUS_OK ? 1 : 0;
-        survived.set(member.plan.term, flags);
-        results[member.plan.term] = monteCarloResult(term, s, member.first, member.count);
-      }
+    for (const term of runs.monteCarlo) {
+      results[term.term] = term.result;
+      survived.set(term.term, term.survived);
     }
+    const extremes = runs.extremes;
     terms.forEach((term, i) => {
       if (term.kind === 'basin') results[i] = this.basin(scenario, term);
       else if (term.kind === 'step_down') results[i] = this.stepDown(scenario, term);
@@ -458,8 +540,72 @@ export class StudyEvaluator {
         : 0;
     const feasible = constraints.every((c) => c.margin === null || c.margin >= 0);
     const value = -objective + penalty;
-    if (!Number.isFinite(value)) throw new Error(`non-finite objective at x = ${JSON.stringify(x)}`);
-    return this.remember(x, survived, { x, parameters, value, objective, penalty, terms: termResults, constraints, feasible, valid: true });
+    // The study's bounds keep every score finite; should one not be, the candidate is a status, never an abort.
+    if (!Number.isFinite(value) || termResults.some((t) => !Number.isFinite(t.score))) {
+      return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, 'numerical failure: a score is not finite at this candidate'));
+    }
+    return this.remember(x, survived, { x, parameters, score: objective - penalty, value, objective, penalty, terms: termResults, constraints, feasible, valid: true });
+  }
+
+  private invalidEvaluation(x: number[], parameters: Record<string, number>, message: string): Evaluation {
+    return {
+      x,
+      parameters,
+      score: -this.invalidValue,
+      value: this.invalidValue,
+      objective: this.invalidObjective,
+      penalty: this.invalidValue + this.invalidObjective,
+      terms: [],
+      constraints: [],
+      feasible: false,
+      valid: false,
+      message,
+    };
+  }
+
+  // The Monte Carlo rollouts and the nominal gait of a candidate, in one kernel call per stride
+  // count (in chunks when someone listens to the progress: rollouts are independent, so the
+  // numbers are the same).
+  private runGroups(scenario: Scenario, onRollouts?: (done: number, total: number) => void) {
+    const terms = this.study.objective.terms;
+    const extremes = new Extremes();
+    const monteCarlo: { term: number; result: TermResult; survived: Uint8Array }[] = [];
+    let nominal = { strides_completed: 0, status: 'not run' };
+    const total = this.rolloutCount;
+    let done = 0;
+    for (const group of this.groups) {
+      const models = group.members.map(({ plan }) => (plan ? monteCarloModel(scenario, terms[plan.term] as MonteCarloTerm, this.seed) : flatModel(scenario)));
+      const rollouts = group.inputs.length / L.I_SIZE;
+      let s: Float64Array; // (rollouts × S_SIZE)
+      if (!onRollouts) {
+        s = this.engine.runBatch({ model: models, inputs: group.inputs, strides: group.strides }).summaries;
+      } else {
+        s = new Float64Array(rollouts * L.S_SIZE);
+        for (let first = 0; first < rollouts; first += PROGRESS_CHUNK_ROLLOUTS) {
+          const end = Math.min(rollouts, first + PROGRESS_CHUNK_ROLLOUTS);
+          const part = this.engine.runBatch({ model: models, inputs: group.inputs.subarray(first * L.I_SIZE, end * L.I_SIZE), strides: group.strides });
+          s.set(part.summaries, first * L.S_SIZE);
+          done += end - first;
+          onRollouts(done, total);
+        }
+      }
+      for (const member of group.members) {
+        for (let r = member.first; r < member.first + member.count; r++) {
+          extremes.add(s, r, scenario.body.leg_length_m * group.legFactors[r]);
+        }
+        if (!member.plan) {
+          const at = member.first * L.S_SIZE;
+          nominal = { strides_completed: s[at + L.S_STRIDES_COMPLETED], status: s[at + L.S_STATUS] === L.STATUS_OK ? 'completed' : (STATUS_NAMES[s[at + L.S_STATUS]] ?? `status_${s[at + L.S_STATUS]}`) };
+          continue;
+        }
+        const term = terms[member.plan.term] as MonteCarloTerm;
+        const flags = new Uint8Array(member.count);
+        for (let r = 0; r < member.count; r++) flags[r] = s[(member.first + r) * L.S_SIZE + L.S_STATUS] === L.STATUS_OK ? 1 : 0;
+        monteCarlo.push({ term: member.plan.term, result: monteCarloResult(term, s, member.first, member.count), survived: flags });
+      }
+    }
+    monteCarlo.sort((a, b) => a.term - b.term);
+    return { extremes, monteCarlo, nominal };
   }
 
   private remember(x: number[], survived: Map<number, Uint8Array>, evaluation: Evaluation): Memo {
@@ -575,6 +721,7 @@ function flatModel(scenario: Scenario): ModelBlock {
 function monteCarloResult(term: MonteCarloTerm, s: Float64Array, first: number, count: number): TermResult {
   let survived = 0;
   let completedTotal = 0;
+  let fallenCompleted = 0;
   let sumSqHeight = 0;
   let sumSqSpeed = 0;
   const failures: Record<string, number> = {};
@@ -585,27 +732,33 @@ function monteCarloResult(term: MonteCarloTerm, s: Float64Array, first: number, 
     else {
       const name = STATUS_NAMES[status] ?? `status_${status}`;
       failures[name] = (failures[name] ?? 0) + 1;
+      fallenCompleted += s[at + L.S_STRIDES_COMPLETED];
     }
     completedTotal += s[at + L.S_STRIDES_COMPLETED];
     sumSqHeight += s[at + L.S_SUM_SQ_HEIGHT_ERROR];
     sumSqSpeed += s[at + L.S_SUM_SQ_SPEED_ERROR];
   }
-  const survival = {
+  const fell = count - survived;
+  const fallenFraction = fell > 0 ? fallenCompleted / (fell * term.strides) : null;
+  // survivors, plus the tie-break of the fallen (FALL_TIE_BREAK < 1: worth less than one survivor)
+  const credited = survived + FALL_TIE_BREAK * (fallenFraction ?? 0);
+  const survival: SurvivalDetails = {
     rollouts: count,
     survived,
     survival: survived / count,
     wilson95: wilsonInterval(survived, count),
     mean_strides_completed: completedTotal / count,
+    fallen_stride_fraction: fallenFraction,
     failures,
   };
-  if (term.kind === 'survival') return { kind: 'survival', weight: term.weight, score: survival.survival, details: survival };
+  if (term.kind === 'survival') return { kind: 'survival', weight: term.weight, score: credited / count, details: survival };
   const rmsHeight = completedTotal > 0 ? Math.sqrt(sumSqHeight / completedTotal) : null;
   const rmsSpeed = completedTotal > 0 ? Math.sqrt(sumSqSpeed / completedTotal) : null;
   const error =
     rmsHeight === null || rmsSpeed === null
       ? term.fall_penalty
       : Math.min(term.fall_penalty, rmsHeight / term.height_scale_m + rmsSpeed / term.speed_scale_m_per_s);
-  const fallCost = (term.fall_penalty * (count - survived)) / count;
+  const fallCost = (term.fall_penalty * (count - credited)) / count;
   const details: TrackingDetails = {
     ...survival,
     target: { apex_height_m: term.target_apex_height_m, forward_speed_m_per_s: term.target_forward_speed_m_per_s },
@@ -661,7 +814,18 @@ function measureConstraints(study: Study, scenario: Scenario, e: Extremes): Cons
   const out: ConstraintResult[] = [];
   const add = (name: string, bound: 'upper' | 'lower', measured_on: 'rollouts' | 'parameters', value: number | null, limit: number) => {
     const margin = value === null ? null : bound === 'upper' ? limit - value : value - limit;
-    out.push({ name, bound, measured_on, value, limit, margin, normalized: margin === null ? 0 : -margin / Math.abs(limit) });
+    const normalized = margin === null ? 0 : Math.min(MAX_NORMALIZED_VIOLATION, -margin / Math.abs(limit));
+    out.push({
+      name,
+      bound,
+      measured_on,
+      value,
+      limit,
+      margin,
+      margin_percent: margin === null ? null : (100 * margin) / Math.abs(limit),
+      binding: false,
+      normalized: Number.isNaN(normalized) ? MAX_NORMALIZED_VIOLATION : normalized,
+    });
   };
   const stridesDone = e.completed > 0;
   const touched = Number.isFinite(e.minAttack);
@@ -680,7 +844,18 @@ function measureConstraints(study: Study, scenario: Scenario, e: Extremes): Cons
     add('stiffness_range_N_per_m.min_N_per_m', 'lower', 'parameters', Math.min(...values), c.stiffness_range_N_per_m.min_N_per_m);
     add('stiffness_range_N_per_m.max_N_per_m', 'upper', 'parameters', Math.max(...values), c.stiffness_range_N_per_m.max_N_per_m);
   }
+  markBinding(out);
   return out;
+}
+
+/** Marks the limit with the smallest margin as a percentage of the limit (the first of equals); none when nothing was measured. */
+export function markBinding(constraints: ConstraintResult[]): void {
+  let binding: ConstraintResult | null = null;
+  for (const c of constraints) {
+    c.binding = false;
+    if (c.margin_percent !== null && (binding === null || c.margin_percent < binding.margin_percent!)) binding = c;
+  }
+  if (binding) binding.binding = true;
 }
 
 /** The largest |rate| the touchdown-angle schedule commands in flight, deg/s (0 for a fixed angle). */
@@ -772,12 +947,24 @@ export function comparePolicies(
   const b = studyB === study ? a : new StudyEvaluator(studyB, engine, 'holdout');
   const outcomesA = a.survivalByRollout(xA).map((o) => ({ ...o, survived: o.survived.slice() }));
   const outcomesB = b.survivalByRollout(xB);
+  return pairSurvival(a.seed, outcomesA, outcomesB);
+}
+
+/** Which rollouts of each Monte Carlo term a candidate survived (StudyEvaluator.survivalByRollout). */
+export type RolloutOutcomes = { term: number; kind: TermKind; survived: Uint8Array }[];
+
+/**
+ * The comparison of comparePolicies from outcomes already run: candidate A's and B's survival on the
+ * same rollouts (the held-out re-scoring's own, so nothing runs twice).
+ */
+export function pairSurvival(seed: number, outcomesA: RolloutOutcomes, outcomesB: RolloutOutcomes): PolicyComparison {
   if (outcomesA.length === 0) {
     throw new InputError([{ path: 'objective.terms', expected: 'a survival or tracking term to compare survival on', found: 'no Monte Carlo term' }]);
   }
   const comparisons = outcomesA.map((oa, i) => {
     const ob = outcomesB[i];
     const n = oa.survived.length;
+    if (!ob || ob.term !== oa.term || ob.survived.length !== n) throw new Error('pairSurvival: the two candidates ran different rollouts');
     let both = 0;
     let aOnly = 0;
     let bOnly = 0;
@@ -802,7 +989,7 @@ export function comparePolicies(
     };
   });
   return {
-    seed: a.seed,
+    seed,
     comparisons,
     note:
       'held-out seed: both candidates ran the same terrain streams and robots, so the outcomes are paired; ' +

@@ -1,9 +1,10 @@
 // One restart of a study's search: NLopt on the study's training objective from one start
 // point. Runs wherever it is called (a Node worker thread, a browser worker); the caller owns
-// parallelism, cancellation (shouldStop) and progress.
+// parallelism, cancellation (shouldStop) and progress. Progress speaks in scores (larger is
+// better); NLopt's minimized values stay inside nlopt.ts and the Outcome.
 
 import { loadEngine } from '../engine.js';
-import { minimize, type Outcome } from './nlopt.js';
+import { minimize, seedToClock, type Outcome } from './nlopt.js';
 import { StudyEvaluator, type Evaluation } from './objectives.js';
 import { parseStudy, usesNativeConstraints } from './study.js';
 
@@ -12,14 +13,13 @@ export interface RestartTask {
   study: unknown;
   restart: number;
   x0: number[];
-  /** Int32Array(1) on this buffer: non-zero asks the run to stop. */
-  cancel: SharedArrayBuffer;
 }
 
 export interface RestartProgress {
   restart: number;
   evaluations: number;
-  best: number;
+  /** The best score so far (larger is better; feasible points first, as the search ranks them). */
+  bestScore: number;
   x: number[];
 }
 
@@ -27,6 +27,8 @@ export interface RestartResult {
   restart: number;
   x0: number[];
   outcome: Outcome;
+  /** The training evaluation at the start point x0. */
+  start: Evaluation;
   /** The training evaluation at the best point found. */
   evaluation: Evaluation;
   seconds: number;
@@ -37,12 +39,19 @@ export interface RestartControl {
   onProgress?: (p: RestartProgress) => void;
 }
 
+/** The seed of restart r's stochastic method: the search seed moved by a fixed stride per restart (seed mod 2^31 is what NLopt sees). */
+export function restartSeed(searchSeed: number, restart: number): number {
+  return seedToClock(searchSeed) + 7919 * restart;
+}
+
 export async function runRestart(task: RestartTask, control: RestartControl = {}): Promise<RestartResult> {
   const started = performance.now();
   const study = parseStudy(task.study);
   const engine = await loadEngine();
   const evaluator = new StudyEvaluator(study, engine, 'training');
   const native = usesNativeConstraints(study);
+  // the start point first: its scores go in the result, and NLopt's first evaluation (at x0) reuses them
+  const start = evaluator.evaluate(task.x0);
   const outcome = await minimize(
     {
       method: study.search.method,
@@ -55,17 +64,20 @@ export async function runRestart(task: RestartTask, control: RestartControl = {}
       maxEvaluations: study.search.max_evaluations,
       maxTime_s: study.search.max_time_s,
       xtolRel: study.search.xtol_rel,
-      seed: study.search.seed + 7919 * task.restart,
+      seed: restartSeed(study.search.seed, task.restart),
     },
     {
       shouldStop: control.shouldStop,
-      onProgress: control.onProgress && ((p) => control.onProgress!({ restart: task.restart, ...p })),
+      onProgress:
+        control.onProgress &&
+        ((p) => control.onProgress!({ restart: task.restart, evaluations: p.evaluations, bestScore: -p.best, x: p.x })),
     },
   );
   return {
     restart: task.restart,
     x0: task.x0,
     outcome,
+    start,
     evaluation: evaluator.evaluate(outcome.x),
     seconds: (performance.now() - started) / 1000,
   };

@@ -107,8 +107,8 @@ export interface OptimizationLive {
   /** Date.now() when the search began (0: none yet). */
   startedAt: number;
   progress: BrowserSearchProgress | null;
-  /** Per restart: (evaluation, best so far) as the search went. */
-  history: { evaluation: number; best: number }[][];
+  /** Per restart: (evaluation, best score so far, larger is better) as the search went. */
+  history: { evaluation: number; bestScore: number }[][];
 }
 
 const SAVED_VERSION = 1;
@@ -505,7 +505,7 @@ export class Workbench {
       if (!latest) return;
       shown = performance.now();
       this.live = { startedAt, progress: latest, history: history.map((h) => h.slice()) };
-      progress(latest.evaluations, latest.budget, `${latest.restartsDone} of ${latest.restarts} restarts done`);
+      progress(latest.done, latest.total, latest.phase === 'search' ? `${latest.label}: ${latest.restartsDone} of ${latest.restarts} restarts done` : latest.label);
     };
     const result = await this.job('optimize', 'Optimization', async (signal, progress) => {
       const flush = setInterval(() => show(progress), LIVE_REDRAW_MS);
@@ -515,8 +515,8 @@ export class Workbench {
           onProgress: (p) => {
             for (const r of p.perRestart) {
               const h = history[r.restart];
-              if (h && r.evaluations > 0 && (h.length === 0 || h[h.length - 1].evaluation !== r.evaluations)) {
-                if (h.length < 5000) h.push({ evaluation: r.evaluations, best: r.best });
+              if (h && r.evaluations > 0 && r.bestScore !== null && (h.length === 0 || h[h.length - 1].evaluation !== r.evaluations)) {
+                if (h.length < 5000) h.push({ evaluation: r.evaluations, bestScore: r.bestScore });
               }
             }
             latest = p;
