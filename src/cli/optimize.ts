@@ -2,7 +2,6 @@
 // parameters (multi-start over worker threads), held-out re-scoring, and the result file.
 
 import { writeFile } from 'node:fs/promises';
-import { availableParallelism } from 'node:os';
 import { InputError, describeFound } from '../core/errors.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
@@ -29,7 +28,11 @@ export const optimizeCommand: Command = {
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
     out: { type: 'string', valueName: 'RESULT', description: 'also write the result file (JSON) to RESULT, for pronk export' },
-    workers: { type: 'string', valueName: 'N', description: 'worker threads for restarts (default: all cores); never changes the result' },
+    workers: {
+      type: 'string',
+      valueName: 'N',
+      description: 'worker threads (default: one per restart, at least 2, at most twice the cores); never changes the result',
+    },
     plot: { ...PLOT_OPTION, description: "also draw the search's convergence (best objective per restart) as an SVG file of 1280 x 800 px" },
   },
   maxPositionals: 1,
@@ -52,7 +55,7 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   }
   const plot = await plotOption(values.plot, { out });
   const study = await readStudyFile(file);
-  const { optimizeStudy, usefulWorkers } = await import('../worker/node-optimize.js');
+  const { optimizeStudy, usefulWorkers, defaultWorkers } = await import('../worker/node-optimize.js');
   // Ctrl-C once: stop the search and keep the best point; twice: skip the held-out re-scoring too;
   // three times: leave at once, without a result.
   const stopSearch = new AbortController();
@@ -72,7 +75,7 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
     }
   };
   process.on('SIGINT', onSigint);
-  const threads = Math.min(workers ?? availableParallelism(), usefulWorkers(study));
+  const threads = Math.min(workers ?? defaultWorkers(study), usefulWorkers(study));
   status(
     io,
     'optimize',

@@ -20,7 +20,7 @@ import { compiledWorkerUrl } from './paths.js';
 export { SearchError, type OptimizationResult, type SearchProgress, type SearchOptions } from '../core/optimize/search.js';
 
 export interface NodeSearchOptions extends SearchOptions {
-  /** Worker threads (default: the machine's available parallelism, at most the useful number). */
+  /** Worker threads (default: defaultWorkers; never more than the useful number). */
   workers?: number;
 }
 
@@ -32,9 +32,18 @@ export function usefulWorkers(study: Study): number {
   return Math.max(2, study.search.restarts);
 }
 
+/**
+ * Threads by default: one per restart, up to twice the cores. Restarts cannot be split, and they
+ * differ in length: three restarts on two cores in two threads leave one core idle while the
+ * last one runs alone; in three threads the cores share all three to the end.
+ */
+export function defaultWorkers(study: Study, cores: number = availableParallelism()): number {
+  return Math.min(usefulWorkers(study), 2 * Math.max(1, cores));
+}
+
 /** Runs a study's search on worker threads and returns the result file. */
 export async function optimizeStudy(study: Study, options: NodeSearchOptions = {}): Promise<OptimizationResult> {
-  const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), usefulWorkers(study)));
+  const workers = Math.max(1, Math.min(options.workers ?? defaultWorkers(study), usefulWorkers(study)));
   const runner = new NodeSearchRunner(workers, drawsRandomNumbers(study.search.method, study.search.local_method));
   try {
     return await searchStudy(study, runner, options);
