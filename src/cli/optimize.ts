@@ -33,7 +33,7 @@ export const optimizeCommand: Command = {
       valueName: 'N',
       description: 'worker threads (default: one per restart, at least 2, at most twice the cores); never changes the result',
     },
-    plot: { ...PLOT_OPTION, description: "also draw the search's convergence (best objective per restart) as an SVG file of 1280 x 800 px" },
+    plot: { ...PLOT_OPTION, description: "also draw the search's convergence (best score so far per restart, larger is better) as an SVG file of 1280 x 800 px" },
   },
   maxPositionals: 1,
   run: runOptimize,
@@ -169,15 +169,15 @@ export function renderOptimization(study: Study, r: OptimizationResult): string 
   );
   lines.push('');
   const t = r.scores.training;
-  const penalty = t.best.penalty !== 0 || t.start.penalty !== 0 ? ' (objective minus the limits\' penalty)' : '';
-  lines.push(`Score, larger is better${penalty}: training seeds: start ${fixed(r.summary.training_score.start, 5)} -> best ${fixed(r.summary.training_score.best, 5)}`);
+  const penalty = t.best.penalty !== 0 || t.start.penalty !== 0 ? '; the objective minus the limits\' penalty' : '';
+  lines.push(`Score (larger is better${penalty}) on the training seeds: start ${fixed(r.summary.training_score.start, 5)} -> best ${fixed(r.summary.training_score.best, 5)}`);
   for (const term of t.best.terms) {
     const before = t.start.terms.find((x) => x.kind === term.kind);
     lines.push(`  ${term.kind} (weight ${plain(term.weight)}): ${before ? fixed(before.score, 5) : '-'} -> ${fixed(term.score, 5)}`);
   }
   const hs = r.summary.holdout_score;
-  if (hs) lines.push(`  held-out seeds: start ${fixed(hs.start, 5)} -> best ${fixed(hs.best, 5)}`);
-  else lines.push('  held-out seeds: not re-scored (skipped by a second Ctrl-C)');
+  if (hs) lines.push(`  on the held-out seeds: start ${fixed(hs.start, 5)} -> best ${fixed(hs.best, 5)}`);
+  else lines.push('  on the held-out seeds: not re-scored (skipped by a second Ctrl-C)');
   const comparisons = r.scores.holdout.comparison?.comparisons ?? [];
   for (const h of r.summary.holdout_survival) {
     const c = comparisons.find((x) => x.term === h.term);
