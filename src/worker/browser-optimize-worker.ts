@@ -6,6 +6,8 @@
 
 import './browser-atob-shim.js';
 import * as Comlink from 'comlink';
+import { loadEngine } from '../core/engine.js';
+import { loadNlopt } from '../core/optimize/nlopt.js';
 import { runRestart, type RestartProgress, type RestartResult, type RestartTask } from '../core/optimize/restart.js';
 import { runScoreTask, type ScoreResult, type ScoreTask } from '../core/optimize/score.js';
 
@@ -38,6 +40,11 @@ async function throttled<P, T>(callback: Callback<P> | undefined, body: (report?
 const flagOf = (cancel?: SharedArrayBuffer) => (cancel ? new Int32Array(cancel) : null);
 
 const api = {
+  /** Loads the kernel and NLopt now, so that a worker started ahead of its first job is ready for it. */
+  async warm(): Promise<void> {
+    await Promise.all([loadEngine(), loadNlopt()]);
+  },
+
   restart(task: RestartTask, cancel: SharedArrayBuffer | undefined, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
     const flag = flagOf(cancel);
     return throttled(onProgress, (report) => runRestart(task, { shouldStop: () => flag !== null && Atomics.load(flag, 0) !== 0, onProgress: report }));

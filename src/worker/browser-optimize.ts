@@ -72,6 +72,16 @@ class BrowserSearchRunner implements SearchRunner {
     return this.job(false, control.signal, (slot, cancel): Promise<ScoreResult> => slot.handle.api.score(task, cancel, control.onProgress && Comlink.proxy(control.onProgress)));
   }
 
+  /** Starts every worker now, so that loading its modules overlaps the first jobs. */
+  warm(): void {
+    while (this.all.size < this.concurrency) {
+      const slot: Slot = { handle: new WorkerHandle<OptimizeWorkerApi>(this.make), nloptRuns: 0 };
+      this.all.add(slot);
+      this.idle.push(slot);
+      slot.handle.race(slot.handle.api.warm()).catch(() => undefined);
+    }
+  }
+
   close(): void {
     for (const slot of this.all) slot.handle.terminate();
     this.all.clear();
@@ -127,6 +137,7 @@ export async function optimizeInBrowser(studyValue: unknown, options: BrowserSea
   const useful = Math.max(2, study.search.restarts);
   const concurrency = Math.max(1, Math.min(options.concurrency ?? Math.max(1, cores - 1), useful));
   const runner = new BrowserSearchRunner(concurrency, options.make ?? optimizeWorker, drawsRandomNumbers(study.search.method, study.search.local_method));
+  runner.warm();
   try {
     return await searchStudy(study, runner, { signal: options.signal, holdoutSignal: options.holdoutSignal, onProgress: options.onProgress });
   } finally {

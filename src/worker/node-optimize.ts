@@ -45,6 +45,7 @@ export function defaultWorkers(study: Study, cores: number = availableParallelis
 export async function optimizeStudy(study: Study, options: NodeSearchOptions = {}): Promise<OptimizationResult> {
   const workers = Math.max(1, Math.min(options.workers ?? defaultWorkers(study), usefulWorkers(study)));
   const runner = new NodeSearchRunner(workers, drawsRandomNumbers(study.search.method, study.search.local_method));
+  runner.warm();
   try {
     return await searchStudy(study, runner, options);
   } finally {
@@ -100,6 +101,20 @@ export class NodeSearchRunner implements SearchRunner {
 
   score(task: ScoreTask, control: RunnerControl<{ done: number; total: number }>): Promise<ScoreResult> {
     return this.job(false, control.signal, (thread, cancel): Promise<ScoreResult> => thread.api.score(task, cancel, control.onProgress && Comlink.proxy(control.onProgress)));
+  }
+
+  /**
+   * Starts every thread now: each spends about a second loading its modules, which then overlaps
+   * the first jobs instead of delaying a later one (the held-out re-scoring's second candidate).
+   */
+  warm(): void {
+    while (this.all.size < this.concurrency) {
+      const thread = new Thread(this.url);
+      this.all.add(thread);
+      this.idle.push(thread);
+      // loading NLopt does not run it: the thread stays pristine for a stochastic restart
+      Promise.race([thread.api.warm(), thread.died]).catch(() => undefined);
+    }
   }
 
   async close(): Promise<void> {

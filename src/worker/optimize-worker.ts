@@ -7,6 +7,8 @@
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
 import { parentPort } from 'node:worker_threads';
+import { loadEngine } from '../core/engine.js';
+import { loadNlopt } from '../core/optimize/nlopt.js';
 import { runRestart, type RestartProgress, type RestartResult, type RestartTask } from '../core/optimize/restart.js';
 import { runScoreTask, type ScoreResult, type ScoreTask } from '../core/optimize/score.js';
 
@@ -25,6 +27,11 @@ async function withCallback<P, T>(callback: Callback<P> | undefined, body: (repo
 }
 
 const api = {
+  /** Loads the kernel and NLopt now, so that a thread started ahead of its first job is ready for it. */
+  async warm(): Promise<void> {
+    await Promise.all([loadEngine(), loadNlopt()]);
+  },
+
   restart(task: RestartTask, cancel: SharedArrayBuffer, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
     const flag = new Int32Array(cancel);
     return withCallback(onProgress, (report) => runRestart(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report }));
