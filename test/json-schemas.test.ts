@@ -67,7 +67,7 @@ describe('the schema files', () => {
   }
   it('fields carry the validator\'s "expected" text, with the unit, as their description', () => {
     const scenario = jsonSchema('scenario') as { properties: { body: { properties: Record<string, { description?: string }> } } };
-    expect(scenario.properties.body.properties.mass_kg.description).toBe('a number > 0 (kg)');
+    expect(scenario.properties.body.properties.mass_kg.description).toBe('a number from 1e-6 to 1e6 (kg)');
   });
   it('the package ships the schemas (package.json files and exports)', () => {
     const pkg = readJson('package.json');
