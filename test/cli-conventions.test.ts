@@ -182,7 +182,7 @@ describe.skipIf(!built)('every --json output describes itself; stdout holds only
       holdout: { seed: 2, rollouts: 20 },
     }),
   );
-  const header = { format_version: 1, model: 'single_leg', section: 'apex' };
+  const header = { format_version: 1, model: 'slip', section: 'flight_apex' };
   const cases: [string, string[], Record<string, unknown>][] = [
     ['simulate', [demo, '--strides', '2'], { format: 'pronk-simulate', ...header }],
     ['map', [demo, '--samples', '21'], { format: 'pronk-map', ...header }],
@@ -192,7 +192,7 @@ describe.skipIf(!built)('every --json output describes itself; stdout holds only
     ['robustness', [demo, '--sigma', '0.005', '--rollouts', '10', '--strides', '5', '--workers', '1'], { format: 'pronk-robustness', ...header }],
     ['deadbeat', [demo, '--ground=-0.02:0.01', '--knots', '3'], { format: 'pronk-deadbeat', ...header }],
     ['export', [demo, '--format', 'csv', '--out', 'policy.csv'], { format: 'pronk-export', ...header, file_format: 'csv' }],
-    ['optimize', [study, '--workers', '1'], { format: 'pronk-result', format_version: 1, kind: 'optimization', model: 'single_leg' }],
+    ['optimize', [study, '--workers', '1'], { format: 'pronk-result', format_version: 1, kind: 'optimization', model: 'slip' }],
   ];
   for (const [command, args, expected] of cases) {
     it(`pronk ${command} --json`, () => {

@@ -312,7 +312,7 @@ describe('pronk simulate (stub engine)', () => {
     const run = await pronk(['simulate', '--json', '--strides', '2']);
     expect(run.code).toBe(0);
     expect(run.stderr).toBe(DEMO_NOTE('simulate'));
-    const described = { format: 'pronk-simulate', format_version: 1, model: 'single_leg', section: 'apex', ...engine.fakeResult(2) };
+    const described = { format: 'pronk-simulate', format_version: 1, model: 'slip', section: 'flight_apex', ...engine.fakeResult(2) };
     expect(JSON.parse(run.stdout)).toEqual(described);
     expect(run.stdout).toBe(`${JSON.stringify(described, null, 2)}\n`);
   });
@@ -397,7 +397,7 @@ describe.skipIf(!built)('node bin/pronk.js (built CLI, real engine)', () => {
     expect(run.code).toBe(0);
     expect(run.stderr).toBe(DEMO_NOTE('simulate'));
     const result = JSON.parse(run.stdout);
-    expect(result).toMatchObject({ format: 'pronk-simulate', format_version: 1, model: 'single_leg', section: 'apex' });
+    expect(result).toMatchObject({ format: 'pronk-simulate', format_version: 1, model: 'slip', section: 'flight_apex' });
     expect(result.apexes).toHaveLength(4);
     expect(result.apexes[0]).toMatchObject({ height_m: 0.45, forward_speed_m_per_s: 3.35, time_s: 0 });
     for (const key of ['apex_to_touchdown_s', 'contact_s', 'stride_s', 'attack_deg', 'ground_height_m', 'peak_leg_force_N', 'max_compression_m', 'peak_friction_ratio']) {

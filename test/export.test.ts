@@ -360,7 +360,7 @@ describe.skipIf(!built)('pronk export (built CLI)', () => {
     const r = pronk('export', scenarioFile, '--format', 'json', '--out', 'p.json', '--points', '12', '--json');
     expect(r.code).toBe(0);
     const report = JSON.parse(r.stdout);
-    expect(report).toMatchObject({ format: 'pronk-export', format_version: 1, model: 'single_leg', file_format: 'json' });
+    expect(report).toMatchObject({ format: 'pronk-export', format_version: 1, model: 'slip', file_format: 'json' });
     expect(report.written[0].path).toBe('p.json');
     expect(report.grid.points).toBe(13); // 12 evenly spaced + the clamp at 0.4 s
     expect(report.tables[0].interpolation_error.float64_max_abs).toBeLessThan(1e-12);

@@ -371,7 +371,7 @@ describe('pronk map', () => {
     expect(run.code).toBe(0);
     expect(run.stderr).toBe('pronk map: no FILE given; running the built-in demo scenario (scenarios/demo.json)\n');
     const r = JSON.parse(run.stdout);
-    expect(r).toMatchObject({ format: 'pronk-map', format_version: 1, model: 'single_leg', section: 'apex' });
+    expect(r).toMatchObject({ format: 'pronk-map', format_version: 1, model: 'slip', section: 'flight_apex' });
     for (const key of ['energy_J', 'domain', 'samples', 'fixed_points', 'staircase', 'caution']) expect(r).toHaveProperty(key);
     expect(r.domain).toHaveProperty('low_m');
     expect(r.domain).toHaveProperty('high_m');

@@ -9,14 +9,14 @@
 //                   (--shard), pronk-policy (export --format json).
 //   format_version  1; raised only when a field is renamed or changes meaning (adding fields
 //                   does not raise it).
-//   model           "single_leg": the spring-mass runner on one massless leg (the scenario files
-//                   of today; a future model kind gets its own name).
-//   section         "apex": strides run from one flight apex to the next, and maps, basins and
-//                   fixed points are taken at the apex (height and forward speed).
+//   model           the scenario's model kind: "slip", the spring-loaded inverted pendulum (a point
+//                   mass on one massless spring leg; a scenario file without "model" is one).
+//   section         the Poincaré section its strides run between and its states are taken on:
+//                   "flight_apex" for the single-leg runner (apex height and forward speed).
 
 export const JSON_FORMAT_VERSION = 1;
-export const MODEL_KIND = 'single_leg';
-export const SECTION = 'apex';
+export const MODEL_KIND = 'slip';
+export const SECTION = 'flight_apex';
 
 export type JsonCommand = 'simulate' | 'map' | 'scan' | 'basin' | 'stepdown' | 'robustness' | 'deadbeat' | 'export';
 
