@@ -25,6 +25,11 @@ import {
   OUTCOME_COLORS,
   PALETTE,
   STABILITY_COLORS,
+  STATE_COLORS,
+  cellEdges,
+  legendRows,
+  niceTicks,
+  returnMapComparisonFigure,
   basinFigure,
   cobweb,
   convergenceFigure,
@@ -327,10 +332,25 @@ describe('palette (CIE 1976 L*; lightness survives colour-vision deficiencies an
     expect(lightness(STABILITY_COLORS.none) - lightness(STABILITY_COLORS.unstable)).toBeGreaterThan(10);
   });
 
-  it('keeps converged apart from every other basin outcome in lightness', () => {
+  it('keeps the basin outcomes apart, and fell at stride 0 far from the paper', () => {
     const converged = lightness(OUTCOME_COLORS.converged);
-    for (const other of [OUTCOME_COLORS.wandering, ...OUTCOME_COLORS.fellRamp]) expect(lightness(other) - converged).toBeGreaterThan(15);
+    // wandering is much lighter than converged; fell is told apart by its cross as well (common practice: ~10 L* at a glance)
+    expect(lightness(OUTCOME_COLORS.wandering) - converged).toBeGreaterThan(15);
+    expect(lightness(OUTCOME_COLORS.fellRamp[1]) - lightness(OUTCOME_COLORS.fellRamp[0])).toBeGreaterThan(25);
+    // fell at stride 0 must not look like the background (the paper is L* 100)
+    expect(lightness(PALETTE.paper) - lightness(OUTCOME_COLORS.fellRamp[0])).toBeGreaterThan(50);
     expect(lightness(PALETTE.ink)).toBeLessThan(20);
+  });
+
+  it('gives every state one colour, the same in the figures that show it', () => {
+    expect(new Set(Object.values(STATE_COLORS)).size).toBe(Object.keys(STATE_COLORS).length);
+    expect(STABILITY_COLORS.stableRamp[0]).toBe(STATE_COLORS.stable);
+    expect(STABILITY_COLORS.unstable).toBe(STATE_COLORS.unstable);
+    expect(OUTCOME_COLORS.converged).toBe(STATE_COLORS.converged);
+    expect(OUTCOME_COLORS.wandering).toBe(STATE_COLORS.wandering);
+    expect(OUTCOME_COLORS.fellRamp[0]).toBe(STATE_COLORS.fell);
+    const stableMarker = series(returnMapFigure(map), 'fixed-points-stable') as AnySeries & { itemStyle: { color: string } };
+    expect(stableMarker.itemStyle.color).toBe(STATE_COLORS.stable);
   });
 });
 
@@ -398,16 +418,26 @@ describe('stability regions figure', () => {
   it('puts every cell in its class with |slope| for the stable ones', () => {
     const option = stabilityRegionsFigure(scanned);
     const by = (c: string) => scanned.cells.filter((cell) => cell.class === c);
-    expect(values(series(option, 'stable'))).toEqual(by('stable').map((c) => [c.ix, c.iy, Math.abs(c.stable_slope!)]));
-    expect(values(series(option, 'unstable'))).toEqual(by('unstable').map((c) => [c.ix, c.iy, c.fixed_points.length]));
-    expect(values(series(option, 'none'))).toEqual(by('none').map((c) => [c.ix, c.iy, 0]));
+    expect(values(series(option, 'stable'))).toEqual(by('stable').map((c) => [c.x, c.y, Math.abs(c.stable_slope!), c.index]));
+    expect(values(series(option, 'unstable'))).toEqual(by('unstable').map((c) => [c.x, c.y, c.fixed_points.length, c.index]));
+    expect(values(series(option, 'none'))).toEqual(by('none').map((c) => [c.x, c.y, 0, c.index]));
     // this grid (the demo's attack and retraction rate) has all three classes
     expect(scanned.counts.stable * scanned.counts.unstable * scanned.counts.none).toBeGreaterThan(0);
     const [x] = axes(option, 'xAxis');
     const [y] = axes(option, 'yAxis');
-    expect(x.name).toBe('policy.angle.attack_at_apex_deg');
-    expect(y.name).toBe('policy.angle.rate_deg_per_s');
-    expect((x.data as string[]).map(Number)).toEqual(scanned.x.values.map((v) => Number(v.toFixed(2))));
+    // the labels a person reads, the units from the field names
+    expect(x.name).toBe('Attack angle at apex (°)');
+    expect(y.name).toBe('Retraction rate (°/s)');
+    // value axes over the cells' full extent (half a step beyond the first and last value)
+    const dx = scanned.x.values[1] - scanned.x.values[0];
+    expect(x.min).toBeCloseTo(scanned.x.values[0] - dx / 2, 12);
+    expect(x.max).toBeCloseTo(scanned.x.values.at(-1)! + dx / 2, 12);
+    // round ticks only: every tick a whole multiple of a 1-2-5 step
+    const ticks = (x.axisLabel as { customValues: number[] }).customValues;
+    const step = ticks[1] - ticks[0];
+    expect(ticks.length).toBeGreaterThanOrEqual(3);
+    for (const t of ticks) expect(Math.abs(t / step - Math.round(t / step))).toBeLessThan(1e-9);
+    expect(String(step)).toMatch(/^(1|2|5|0\.0*[125]|[125]0*)$/);
     const visualMaps = option.visualMap as { seriesIndex: number; show?: boolean; min?: number; max?: number }[];
     const stableIndex = seriesOf(option).findIndex((s) => s.id === 'stable');
     const shown = visualMaps.find((v) => v.show !== false)!;
@@ -415,8 +445,16 @@ describe('stability regions figure', () => {
     expect([shown.min, shown.max]).toEqual([0, 1]);
   });
 
+  it('marks the current scenario\'s point', () => {
+    const option = stabilityRegionsFigure(scanned, { current: { x: 66, y: 40 } });
+    expect(values(series(option, 'current'))).toEqual([[66, 40]]);
+    expect(seriesOf(stabilityRegionsFigure(scanned)).some((s) => s.id === 'current')).toBe(false);
+  });
+
   it('renders to a well-formed SVG', () => {
-    expectSvg(stabilityRegionsFigure(scanned), ['policy.angle.attack_at_apex_deg', 'policy.angle.rate_deg_per_s']);
+    const svg = expectSvg(stabilityRegionsFigure(scanned, { current: { x: 66, y: 40 } }), ['Attack angle at apex (°)', 'Retraction rate (°/s)']);
+    // a slash in every unstable-only cell (colour is not the only cue)
+    expect((svg.match(/<path /g) ?? []).length).toBeGreaterThan(scanned.counts.unstable);
   });
 });
 
@@ -428,13 +466,19 @@ describe('basin figure', () => {
       const expected = basinGrid.cells
         .map((cell, i) => ({ cell, i }))
         .filter(({ cell }) => cell.outcome === outcome)
-        .map(({ cell, i }) => [i % nv, Math.floor(i / nv), outcome === 'fell' ? cell.failed_stride : 0]);
+        .map(({ cell, i }) => [basinGrid.speeds_m_per_s[i % nv], basinGrid.heights_m[Math.floor(i / nv)], outcome === 'fell' ? cell.failed_stride : 0, i]);
       expect(values(series(option, outcome))).toEqual(expected);
     }
     // this grid has converged and fallen cells
     expect(basinGrid.counts.converged * basinGrid.counts.fell).toBeGreaterThan(0);
     expect((option.title as { text: string }).text).toContain(`attracted fraction ${Number(basinGrid.attracted_fraction.toPrecision(3))}`);
-    expect((axes(option, 'yAxis')[0].data as string[]).map(Number)).toEqual(basinGrid.heights_m.map((h) => Number(h.toFixed(3))));
+    const [y] = axes(option, 'yAxis');
+    expect(y.type).toBe('value');
+    const dy = basinGrid.heights_m[1] - basinGrid.heights_m[0];
+    expect(y.min).toBeCloseTo(basinGrid.heights_m[0] - dy / 2, 12);
+    // round ticks with the decimals their step needs (no 0.49171 on the axis)
+    const labels = (y.axisLabel as { customValues: number[]; formatter: (v: number) => string });
+    for (const v of labels.customValues) expect(labels.formatter(v)).toMatch(/^\d+\.\d{1,2}$/);
   });
 
   it('energy mode: a strip over height', () => {
@@ -442,8 +486,14 @@ describe('basin figure', () => {
     const all = seriesOf(option).flatMap((s) => values(s)) as number[][];
     expect(all.length).toBe(basinEnergy.cells.length);
     expect(all.every((p) => p[1] === 0)).toBe(true);
-    expect(all.map((p) => p[0]).sort((a, b) => a - b)).toEqual(basinEnergy.cells.map((_, i) => i));
-    expect(axes(option, 'yAxis')[0].data).toEqual([`E = ${Number(basinEnergy.energy_J!.toPrecision(5))} J`]);
+    expect(all.map((p) => p[3]).sort((a, b) => a - b)).toEqual(basinEnergy.cells.map((_, i) => i));
+    expect(all.map((p) => p[0]).sort((a, b) => a - b)).toEqual(basinEnergy.heights_m);
+    expect(axes(option, 'yAxis')[0].name).toBe(`E = ${Number(basinEnergy.energy_J!.toPrecision(5))} J`);
+  });
+
+  it('marks the start apex, in either mode', () => {
+    expect(values(series(basinFigure(basinGrid, { current: { apex_height_m: 0.5, forward_speed_m_per_s: 3 } }), 'current'))).toEqual([[3, 0.5]]);
+    expect(values(series(basinFigure(basinEnergy, { current: { apex_height_m: 0.5 } }), 'current'))).toEqual([[0.5, 0]]);
   });
 
   it('renders both modes to well-formed SVGs', () => {
@@ -464,8 +514,24 @@ describe('survival figure', () => {
     expect(robust.survival).toBeLessThan(1);
   });
 
+  it('zooms the survival axis to the data, with round per-cent ticks', () => {
+    const lowest = Math.min(...robust.survival_by_stride.map((s) => s.wilson95[0]));
+    const [y] = axes(survivalFigure(robust), 'yAxis');
+    expect(y.max).toBe(1);
+    // the axis starts at a round value at most one tick below the lowest Wilson bound, not at 0
+    expect(y.min as number).toBeLessThanOrEqual(lowest);
+    expect(lowest - (y.min as number)).toBeLessThanOrEqual((y.interval as number) * 1.000001 + 0.08 * (1 - lowest));
+    // a run where 97.9 % survive: 100 % and 97.9 % are more than a tenth of the axis apart
+    const high = { ...robust, survival: 0.979, wilson95: [0.9697, 0.9853] as [number, number], survival_by_stride: robust.survival_by_stride.map((s) => ({ ...s, survival: Math.max(0.979, s.survival), wilson95: [Math.max(0.9697, s.wilson95[0]), 1] as [number, number] })) };
+    const [z] = axes(survivalFigure(high), 'yAxis');
+    expect((1 - 0.979) / (1 - (z.min as number))).toBeGreaterThan(0.1);
+    const format = (z.axisLabel as { formatter: (v: number) => string }).formatter;
+    expect(format(0.97)).toBe('97 %');
+    expect(format(1)).toBe('100 %');
+  });
+
   it('renders to a well-formed SVG with a band polygon per interval', () => {
-    const svg = expectSvg(survivalFigure(robust), ['stride (0-based index; survival counted after it)', 'survival fraction (rollouts still running)']);
+    const svg = expectSvg(survivalFigure(robust), ['stride (0-based index; survival counted after it)', 'survival (rollouts still running)']);
     expect((svg.match(/<polygon /g) ?? []).length).toBe(robust.survival_by_stride.length - 1);
   });
 });
@@ -487,8 +553,15 @@ describe('stance force figure', () => {
     const demand = values(series(option, 'friction-demand')) as number[][];
     expect(demand[0][1]).toBeCloseTo(1 / Math.tan((run.strides[1].attack_deg * Math.PI) / 180), 10);
     s.indices.forEach((i, k) => expect(demand[k][1]).toBe(Math.abs(t.x_m[i] - t.foot_x_m[i]) / Math.abs(t.y_m[i] - t.foot_y_m[i])));
-    const mark = series(option, 'friction-demand').markLine!.data[0];
-    expect(mark.yAxis).toBe(0.7);
+    expect(values(series(option, 'friction-limit')).map((p) => p[1])).toEqual([0.7, 0.7]);
+    expect(seriesOf(option).some((x) => x.id === 'force-limit')).toBe(false);
+    // the peak-force limit beside the friction limit, on the force plot, inside its axis
+    const limited = stanceForceFigure(t, demo.body, { stride: 1, frictionLimit: 0.7, forceLimit: 900 });
+    const line = series(limited, 'force-limit');
+    expect(values(line).map((p) => p[1])).toEqual([900, 900]);
+    expect([line.xAxisIndex, line.yAxisIndex]).toEqual([0, 0]);
+    expect(axes(limited, 'yAxis')[0].max as number).toBeGreaterThanOrEqual(900);
+    expect(line.name).toContain('900 N');
     const y = axes(option, 'yAxis');
     const weight = demo.body.mass_kg * demo.body.gravity_m_per_s2;
     expect(y[1].max as number).toBeCloseTo((y[0].max as number) / weight, 12);
@@ -500,7 +573,7 @@ describe('stance force figure', () => {
   });
 
   it('renders to a well-formed SVG', () => {
-    expectSvg(stanceForceFigure(run.trajectory!, demo.body, { frictionLimit: 0.7 }), ['leg force (N)', 'leg force (body weights m·g)', 'time since touchdown (s)', '|Fx/Fy|']);
+    expectSvg(stanceForceFigure(run.trajectory!, demo.body, { frictionLimit: 0.7, forceLimit: 900 }), ['leg force (N)', '× body weight', 'time since touchdown (s)', '|Fx/Fy|']);
   });
 });
 
@@ -554,7 +627,60 @@ describe('policy comparison figure', () => {
   });
 
   it('renders to a well-formed SVG', () => {
-    expectSvg(policyComparisonFigure(a(), b()), ['stride (0-based index)', 'survival fraction', 'largest single step survived (m)']);
+    expectSvg(policyComparisonFigure(a(), b()), ['stride (0-based index)', 'survival (rollouts still running)', 'largest single step survived (mm)']);
+  });
+});
+
+describe('return maps of two policies in one plot', () => {
+  it('carries both maps, one diagonal and both sets of fixed points, in the states\' colours', () => {
+    const other = { ...map, fixed_points: map.fixed_points.map((f) => ({ ...f, apex_height_m: f.apex_height_m + 0.01 })) };
+    const option = returnMapComparisonFigure({ label: 'baseline', map }, { label: 'optimized', map: other });
+    expect(values(series(option, 'map-a'))).toEqual([map.edge_probe!, ...map.samples].map((s) => [s.apex_height_m, s.next_apex_height_m]));
+    expect(values(series(option, 'fixed-b'))).toEqual(other.fixed_points.map((f) => [f.apex_height_m, f.apex_height_m]));
+    const colours = (series(option, 'fixed-a').data as { itemStyle: { color: string; borderColor: string } }[]).map((d, i) =>
+      map.fixed_points[i].stable ? d.itemStyle.color : d.itemStyle.borderColor,
+    );
+    expect(colours).toEqual(map.fixed_points.map((f) => (f.stable ? STATE_COLORS.stable : STATE_COLORS.unstable)));
+    const [x] = axes(option, 'xAxis');
+    const [y] = axes(option, 'yAxis');
+    expect([x.min, x.max]).toEqual([y.min, y.max]);
+    expectSvg(option, ['apex height y (m)', 'next apex height P(y) (m)']);
+  });
+});
+
+describe('layout: legends, frames and ticks', () => {
+  it('packs every legend entry into rows, never a paged legend, and starts the plot below them', () => {
+    const names = seriesOf(returnMapFigure(map)).map((s) => s.name);
+    for (const width of [480, 700, 1280]) {
+      const option = returnMapFigure(map, { frame: { width, height: 600, title: false } });
+      const legends = option.legend as { type?: string; data: string[]; top: number }[];
+      expect(legends.every((l) => l.type === undefined || l.type === 'plain')).toBe(true);
+      expect(legends.flatMap((l) => l.data)).toEqual(names);
+      const top = (option.grid as { top: number }).top;
+      expect(top).toBeGreaterThan(Math.max(...legends.map((l) => l.top)) + 20);
+      expect(option.title).toBeUndefined();
+    }
+    expect(legendRows(names, 480).length).toBeGreaterThan(legendRows(names, 1280).length);
+    // a file keeps its title
+    expect((returnMapFigure(map).title as { text: string }).text).toBe('Apex return map');
+  });
+
+  it('lays the stance plots out inside the frame', () => {
+    for (const height of [420, 560, 800]) {
+      const option = stanceForceFigure(run.trajectory!, demo.body, { frictionLimit: 0.7, forceLimit: 900, frame: { width: 700, height, title: height === 800 } });
+      const [upper, lower] = option.grid as { top: number; height?: number; bottom?: number }[];
+      expect(upper.top + upper.height!).toBeLessThan(lower.top - 30);
+      expect(lower.top).toBeLessThan(height - lower.bottom! - 60);
+    }
+  });
+
+  it('picks round ticks (1, 2 or 5 × 10^k) and the cell edges half-way between values', () => {
+    // common practice for axis ticks: steps of 1, 2 or 5 times a power of ten
+    const t = niceTicks(0.4035, 0.4965);
+    expect(t.step).toBe(0.02);
+    expect(t.decimals).toBe(2);
+    expect(t.values).toEqual([0.42, 0.44, 0.46, 0.48]);
+    expect(cellEdges([1, 2, 4])).toEqual([0.5, 1.5, 3, 5]);
   });
 });
 

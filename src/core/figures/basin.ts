@@ -1,16 +1,22 @@
-// Figure 3: the basin of attraction of `pronk basin` — a heat map over start forward speed (x)
-// and start apex height (y) in grid mode, or a strip over apex height at the scenario's energy
-// in energy mode; cells coloured by outcome, fell cells shaded by the stride they fell at.
+// Figure 3: the basin of attraction of `pronk basin` — a map over start forward speed (x) and start
+// apex height (y) in grid mode, or a strip over apex height at the scenario's energy in energy
+// mode; cells coloured by outcome (the states' colours), fell cells shaded by the stride they fell
+// at (darkest at stride 0, never the paper's colour) and crossed, wandering cells dotted.
 //
-// Series ids: converged, wandering (data [i, j, 0]) and fell ([i, j, failed stride]); in grid
-// mode i is the speed index and j the height index, in energy mode i is the height index, j = 0.
+// Series ids: converged, wandering (data [x, y, 0, cell index]) and fell ([x, y, failed stride,
+// index]), and `current` (the scenario's start apex) when given; in grid mode x is the start speed
+// and y the start height, in energy mode x is the height and y is 0.
 
-import type { HeatmapSeriesOption, VisualMapComponentOption } from 'echarts';
+import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { BasinCell, BasinResult } from '../analysis/basin.js';
-import { OUTCOME_COLORS, PALETTE, TYPE, baseOption, categoryXAxis, categoryYAxis, gridLabels, legend, num, title, tooltip, type FigureOption } from './theme.js';
+import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { OUTCOME_COLORS, PALETTE, STATE_COLORS, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface BasinFigureOptions {
   title?: string;
+  frame?: Frame;
+  /** The scenario's start apex, marked on the map (grid mode: height and speed; energy mode: height). */
+  current?: { apex_height_m: number; forward_speed_m_per_s?: number };
 }
 
 /** Grid position of cell `index`: [x index, y index] as plotted. */
@@ -22,36 +28,44 @@ export function basinCellPosition(result: BasinResult, index: number): [number, 
 
 function cellText(cell: BasinCell): string {
   const start = `start apex ${num(cell.apex_height_m, 5)} m at ${cell.forward_speed_m_per_s === null ? 'no speed (energy too low)' : `${num(cell.forward_speed_m_per_s, 4)} m/s`}`;
-  if (cell.outcome === 'fell') return `${start}<br/>fell at stride ${cell.failed_stride} (${cell.reason})`;
+  if (cell.outcome === 'fell') return `${start}<br/>fell at stride ${cell.failed_stride} (${String(cell.reason).replaceAll('_', ' ')})`;
   const last = cell.last_apex ? `<br/>last apex ${num(cell.last_apex.height_m, 5)} m, ${num(cell.last_apex.forward_speed_m_per_s, 4)} m/s` : '';
   return `${start}<br/>${cell.outcome} after ${cell.strides_completed} strides${last}`;
 }
 
 export function basinFigure(result: BasinResult, options: BasinFigureOptions = {}): FigureOption {
+  const frame = frameOf(options.frame);
   const grid = result.mode === 'grid';
-  const positioned = result.cells.map((cell, index) => ({ cell, at: basinCellPosition(result, index) }));
-  const cellAt = new Map(positioned.map(({ cell, at }) => [`${at[0]},${at[1]}`, cell]));
-  const formatter = (p: unknown) => {
-    const value = (p as { value: number[] }).value;
-    const cell = cellAt.get(`${value[0]},${value[1]}`);
-    return cell ? cellText(cell) : '';
+  const xs = grid ? result.speeds_m_per_s : result.heights_m;
+  const ys = grid ? result.heights_m : [0];
+  const place = (index: number): [number, number] => {
+    const [ix, iy] = basinCellPosition(result, index);
+    return [xs[ix], ys[iy]];
   };
-  const border = { borderColor: PALETTE.paper, borderWidth: result.cells.length <= 2500 ? 1 : 0 };
-  const heat = (id: BasinCell['outcome'], name: string, color: string, value: (cell: BasinCell) => number): HeatmapSeriesOption => ({
-    id,
-    name,
-    type: 'heatmap',
-    data: positioned.filter(({ cell }) => cell.outcome === id).map(({ cell, at }) => [at[0], at[1], value(cell)]),
-    itemStyle: { color, ...border },
-    emphasis: { itemStyle: { borderColor: PALETTE.ink, borderWidth: 2 } },
-    tooltip: { formatter },
-  });
+  const of = (outcome: BasinCell['outcome'], value: (cell: BasinCell) => number): CellDatum[] =>
+    result.cells.flatMap((cell, index) => (cell.outcome === outcome ? [[...place(index), value(cell), index] as CellDatum] : []));
+  const tip = (index: number) => cellText(result.cells[index]);
   const lastStride = Math.max(1, result.strides - 1);
-  const series: HeatmapSeriesOption[] = [
-    heat('converged', 'converged (settled on a fixed point)', OUTCOME_COLORS.converged, () => 0),
-    heat('wandering', 'wandering (survived, not settled)', OUTCOME_COLORS.wandering, () => 0),
-    heat('fell', 'fell (shade: the stride it fell at)', OUTCOME_COLORS.fellRamp[1], (cell) => cell.failed_stride as number),
+  const series: SeriesOption[] = [
+    cellSeries({ id: 'converged', name: 'converged (settled on a fixed point)', data: of('converged', () => 0), xs, ys, color: STATE_COLORS.converged, tooltip: tip }),
+    cellSeries({ id: 'wandering', name: 'wandering (survived, not settled; dotted)', data: of('wandering', () => 0), xs, ys, color: STATE_COLORS.wandering, glyph: 'dot', glyphColor: PALETTE.ink, tooltip: tip }),
+    cellSeries({
+      id: 'fell',
+      name: 'fell (crossed; shade: the stride it fell at)',
+      data: of('fell', (cell) => cell.failed_stride as number),
+      xs,
+      ys,
+      color: STATE_COLORS.fell,
+      glyph: 'cross',
+      glyphColor: (stride) => (stride < lastStride * 0.55 ? 'rgba(255,255,255,0.85)' : 'rgba(34,38,46,0.7)'),
+      tooltip: tip,
+    }),
   ];
+  const current = options.current;
+  if (current && Number.isFinite(current.apex_height_m)) {
+    if (!grid) series.push(currentPointSeries(current.apex_height_m, 0));
+    else if (current.forward_speed_m_per_s !== undefined && Number.isFinite(current.forward_speed_m_per_s)) series.push(currentPointSeries(current.forward_speed_m_per_s, current.apex_height_m));
+  }
   const visualMap: VisualMapComponentOption[] = [
     { type: 'piecewise', show: false, seriesIndex: 0, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [OUTCOME_COLORS.converged] } },
     { type: 'piecewise', show: false, seriesIndex: 1, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [OUTCOME_COLORS.wandering] } },
@@ -67,9 +81,9 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
       calculable: true,
       precision: 0,
       orient: 'vertical',
-      right: 24,
+      right: 16,
       top: 'middle',
-      itemHeight: 240,
+      itemHeight: Math.max(80, Math.min(240, frame.height - 260)),
     },
   ];
   const c = result.counts;
@@ -80,10 +94,11 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
   const subtitle =
     `${c.converged} converged, ${c.wandering} wandering, ${c.fell} fell of ${extent}; flat ground\n` +
     `converged: ${result.strides} strides completed and the last two apexes within ${num(result.tolerance.height_m, 3)} m and ${num(result.tolerance.forward_speed_m_per_s, 3)} m/s`;
+  const head = header(frame, heading, subtitle, series.map((s) => String(s.name)));
   const common = {
     ...baseOption(`Basin of attraction: ${c.converged} of ${c.cells} start apexes converged (fraction ${num(result.attracted_fraction, 3)}).`),
-    title: title(heading, subtitle),
-    legend: legend({ top: 96 }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
     visualMap,
     series,
@@ -91,15 +106,16 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
   if (grid) {
     return {
       ...common,
-      grid: { left: 110, right: 190, top: 140, bottom: 80 },
-      xAxis: categoryXAxis('start forward speed (m/s)', gridLabels(result.speeds_m_per_s)),
-      yAxis: categoryYAxis('start apex height (m)', gridLabels(result.heights_m), { nameGap: 72 }),
+      grid: { left: 96, right: 170, top: head.top, bottom: 72 },
+      xAxis: cellAxis('x', 'start forward speed (m/s)', xs) as never,
+      yAxis: cellAxis('y', 'start apex height (m)', ys, { nameGap: 64 }) as never,
     };
   }
+  const stripHeight = Math.max(60, Math.min(200, frame.height - head.top - 120));
   return {
     ...common,
-    grid: { left: 110, right: 190, top: 200, height: 200 },
-    xAxis: categoryXAxis('start apex height (m)', gridLabels(result.heights_m)),
-    yAxis: categoryYAxis('', [`E = ${num(result.energy_J, 5)} J`], { axisLabel: { fontSize: TYPE.axisLabel, color: PALETTE.ink, rotate: 90 } }),
+    grid: { left: 96, right: 170, top: head.top, height: stripHeight },
+    xAxis: cellAxis('x', 'start apex height (m)', xs) as never,
+    yAxis: cellAxis('y', `E = ${num(result.energy_J, 5)} J`, ys, { axisLabel: { show: false }, axisTick: { show: false }, nameGap: 16 }) as never,
   };
 }

@@ -10,8 +10,8 @@ import type { BarSeriesOption, LineSeriesOption, SeriesOption, XAXisComponentOpt
 import type { RobustnessResult } from '../analysis/robustness.js';
 import type { StepToleranceResult } from '../analysis/stepdown.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
-import { bandSeries, survivalBand, terrainText } from './survival.js';
-import { PALETTE, TYPE, baseOption, categoryXAxis, legend, num, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+import { bandSeries, survivalAxis, survivalBand, terrainText } from './survival.js';
+import { PALETTE, TYPE, baseOption, categoryXAxis, frameOf, header, num, tooltip, valueXAxis, valueYAxis, type FigureOption, type Frame } from './theme.js';
 
 export interface PolicyRun {
   /** The policy's name in the legend, e.g. "baseline" or a file name. */
@@ -22,6 +22,7 @@ export interface PolicyRun {
 
 export interface ComparisonFigureOptions {
   title?: string;
+  frame?: Frame;
 }
 
 const STYLE = {
@@ -80,14 +81,16 @@ export function policyComparisonFigure(a: PolicyRun, b: PolicyRun, options: Comp
   const xAxis: XAXisComponentOption[] = [
     valueXAxis('stride (0-based index)', { gridIndex: 0, min: 0, max: Math.max(1, ra.strides - 1), minInterval: 1 }),
   ];
-  const yAxis: YAXisComponentOption[] = [valueYAxis('survival fraction', { gridIndex: 0, min: 0, max: 1 })];
+  const lowest = Math.min(...[a, b].flatMap((run) => [run.robustness.wilson95[0], ...run.robustness.survival_by_stride.map((s) => s.wilson95[0])]));
+  const yAxis: YAXisComponentOption[] = [survivalAxis('survival (rollouts still running)', lowest, { gridIndex: 0 })];
+  const frame = frameOf(options.frame);
   const grids: { left: number | string; right: number | string; top: number; bottom: number }[] = [
-    { left: 96, right: withSteps ? '36%' : 48, top: 150, bottom: 72 },
+    { left: 96, right: withSteps ? '36%' : 48, top: 0, bottom: 72 },
   ];
   if (withSteps) {
-    grids.push({ left: '71%', right: 40, top: 150, bottom: 72 });
+    grids.push({ left: '71%', right: 40, top: 0, bottom: 72 });
     xAxis.push(categoryXAxis('', ['step down', 'step up'], { gridIndex: 1 }));
-    yAxis.push(valueYAxis('largest single step survived (m)', { gridIndex: 1, min: 0, nameGap: 56 }));
+    yAxis.push(valueYAxis('largest single step survived (mm)', { gridIndex: 1, min: 0, nameGap: 56, axisLabel: { formatter: (v: number) => num(v * 1000, 4) } }));
     for (const [key, run] of [['a', a], ['b', b]] as const) {
       const step = run.stepdown!;
       series.push({
@@ -99,7 +102,7 @@ export function policyComparisonFigure(a: PolicyRun, b: PolicyRun, options: Comp
         data: [step.max_step_down_m, step.max_step_up_m],
         barMaxWidth: 56,
         itemStyle: { color: STYLE[key].color, borderColor: PALETTE.ink, borderWidth: 1, ...(key === 'b' ? { decal: { symbol: 'rect', dashArrayX: [1, 0], dashArrayY: [4, 3], rotation: -Math.PI / 4, color: 'rgba(34,38,46,0.35)' } } : {}) },
-        label: { show: true, position: 'top', fontSize: TYPE.label, color: PALETTE.ink, formatter: (p: unknown) => `${num(((p as { value: number }).value) * 1000, 4)} mm` },
+        label: { show: true, position: 'top', fontSize: TYPE.label, color: PALETTE.ink, formatter: (p: unknown) => num(((p as { value: number }).value) * 1000, 3) },
       } satisfies BarSeriesOption);
     }
   }
@@ -108,10 +111,12 @@ export function policyComparisonFigure(a: PolicyRun, b: PolicyRun, options: Comp
     `the same ${ra.rollouts} terrains for both (${terrainText(ra)}; rollout r on stream r), ${ra.strides} strides each\n` +
     `survived all strides: ${line(a)}, ${line(b)}` +
     (withSteps ? `; steps: one permanent drop or rise, survived for ${a.stepdown!.strides_after} strides after, to ${num(a.stepdown!.resolution_m * 1000, 3)} mm` : '');
+  const head = header(frame, options.title ?? `${a.label} vs ${b.label} on common random terrain`, subtitle, series.map((s) => String(s.name)));
+  for (const g of grids) g.top = head.top;
   return {
     ...baseOption(`Policies ${a.label} and ${b.label} compared on the same ${ra.rollouts} random terrains.`),
-    title: title(options.title ?? `${a.label} vs ${b.label} on common random terrain`, subtitle),
-    legend: legend({ top: 100, width: '92%' }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
     grid: grids,
     xAxis,

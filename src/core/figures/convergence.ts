@@ -8,7 +8,7 @@
 
 import type { LineSeriesOption } from 'echarts';
 import { InputError, describeFound } from '../errors.js';
-import { PALETTE, baseOption, legend, num, seriesColor, seriesDash, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+import { PALETTE, baseOption, frameOf, header, num, seriesColor, seriesDash, tooltip, valueXAxis, valueYAxis, type FigureOption, type Frame } from './theme.js';
 
 /** A trace point: best_score (larger is better), or an older file's minimized best. */
 export type ConvergencePoint = { evaluation: number; best_score: number } | { evaluation: number; best: number };
@@ -23,6 +23,7 @@ export interface ConvergenceFigureOptions {
   /** The restart that won (OptimizationResult.best_restart), drawn thicker. */
   bestRestart?: number;
   title?: string;
+  frame?: Frame;
 }
 
 /** The best score so far at a trace point (larger is better). */
@@ -64,12 +65,13 @@ export function convergenceFigure(restarts: readonly ConvergenceRestart[], optio
     `${restarts.length} restart${restarts.length === 1 ? '' : 's'}, ${evaluations} traced evaluations; the score is maximized (larger is better)` +
     (winner ? `\nbest: restart ${winner.restart}, score ${num(finalBest(winner), 6)}` : '') +
     (log ? ' (logarithmic scale)' : '');
+  const head = header(frameOf(options.frame), options.title ?? 'Optimizer convergence', subtitle, series.map((s) => String(s.name)));
   return {
     ...baseOption(`Optimizer convergence over ${restarts.length} restarts.`),
-    title: title(options.title ?? 'Optimizer convergence', subtitle),
-    legend: legend({ top: 96, type: 'scroll', width: '90%' }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
-    grid: { left: 110, right: 48, top: 140, bottom: 72 },
+    grid: { left: 110, right: 48, top: head.top, bottom: 72 },
     xAxis: valueXAxis('evaluation', { min: 0, minInterval: 1 }),
     yAxis: valueYAxis('best score so far (larger is better)', log ? { type: 'log', splitLine: { show: true, lineStyle: { color: PALETTE.grid } } } : { scale: true }),
     series,

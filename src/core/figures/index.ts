@@ -20,12 +20,14 @@ import type { FigureOption } from './theme.js';
 export { basinFigure, basinCellPosition, type BasinFigureOptions } from './basin.js';
 export { policyComparisonFigure, type ComparisonFigureOptions, type PolicyRun } from './comparison.js';
 export { convergenceFigure, type ConvergenceFigureOptions, type ConvergenceRestart } from './convergence.js';
-export { cobweb, returnMapFigure, type ReturnMapFigureOptions } from './return-map.js';
+export { cobweb, returnMapComparisonFigure, returnMapFigure, type LabelledMap, type ReturnMapFigureOptions } from './return-map.js';
+export { cellAxis, cellEdges, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+export { parameterName, parameterTitle, unitOfPath, type ParameterName } from './labels.js';
 export { stabilityRegionsFigure, type StabilityRegionsFigureOptions } from './stability-regions.js';
 export { stanceForceFigure, stanceSamples, type StanceBody, type StanceForceFigureOptions, type StanceSamples } from './stance-forces.js';
 export { groundFromTrajectory, strideScene, type GroundProfile, type SceneView } from './stride-scene.js';
-export { bandSeries, survivalBand, survivalFigure, type SurvivalFigureOptions } from './survival.js';
-export { FIGURE_SIZE, OUTCOME_COLORS, PALETTE, SERIES_COLORS, STABILITY_COLORS, lightness, type FigureOption } from './theme.js';
+export { bandSeries, survivalAxis, survivalBand, survivalFigure, type SurvivalFigureOptions } from './survival.js';
+export { FIGURE_SIZE, FILE_FRAME, OUTCOME_COLORS, PALETTE, SERIES_COLORS, STABILITY_COLORS, STATE_COLORS, STATE_GLYPHS, legendRows, lightness, niceTicks, type FigureOption, type Frame, type StateName } from './theme.js';
 
 /** Every figure builder by name. */
 export const FIGURES = {

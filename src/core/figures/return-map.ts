@@ -9,10 +9,11 @@
 
 import type { LineSeriesOption, ScatterSeriesOption, SeriesOption } from 'echarts';
 import type { MapSampleOut, ReturnMapResult } from '../analysis/return-map.js';
-import { PALETTE, TYPE, baseOption, legend, niceRange, num, plural, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+import { PALETTE, STATE_COLORS, TYPE, baseOption, frameOf, header, niceRange, num, plural, tooltip, valueXAxis, valueYAxis, type FigureOption, type Frame } from './theme.js';
 
 export interface ReturnMapFigureOptions {
   title?: string;
+  frame?: Frame;
 }
 
 type Point = [number, number | null];
@@ -98,7 +99,7 @@ export function returnMapFigure(result: ReturnMapResult, options: ReturnMapFigur
       data: stable.map((f) => ({ name: fixedLabel(f), value: [f.apex_height_m, f.apex_height_m] })),
       symbol: 'circle',
       symbolSize: 15,
-      itemStyle: { color: PALETTE.deepBlue, borderColor: PALETTE.ink, borderWidth: 2 },
+      itemStyle: { color: STATE_COLORS.stable, borderColor: PALETTE.ink, borderWidth: 2 },
       label: { show: true, position: 'right', formatter: '{b}', fontSize: TYPE.label, color: PALETTE.ink, backgroundColor: 'rgba(255,255,255,0.85)', padding: 3 },
       tooltip: { formatter: (p) => `stable fixed point<br/>${(p as { name: string }).name}` },
       z: 6,
@@ -110,7 +111,7 @@ export function returnMapFigure(result: ReturnMapResult, options: ReturnMapFigur
       data: unstable.map((f) => ({ name: fixedLabel(f), value: [f.apex_height_m, f.apex_height_m] })),
       symbol: 'circle',
       symbolSize: 15,
-      itemStyle: { color: PALETTE.paper, borderColor: PALETTE.ink, borderWidth: 2.5 },
+      itemStyle: { color: PALETTE.paper, borderColor: STATE_COLORS.unstable, borderWidth: 3.5 },
       label: { show: true, position: 'left', formatter: '{b}', fontSize: TYPE.label, color: PALETTE.ink, backgroundColor: 'rgba(255,255,255,0.85)', padding: 3 },
       tooltip: { formatter: (p) => `unstable fixed point<br/>${(p as { name: string }).name}` },
       z: 6,
@@ -180,12 +181,103 @@ export function returnMapFigure(result: ReturnMapResult, options: ReturnMapFigur
     d.empty ? 'no sampled stride survives at this energy' : `${fixedText}; ${stairs}`,
   ].join('\n');
 
+  const head = header(frameOf(options.frame), options.title ?? 'Apex return map', subtitle, series.map((s) => String(s.name)));
   return {
     ...baseOption(`Apex return map at ${num(result.energy_J, 5)} J: ${fixedText}.`),
-    title: title(options.title ?? 'Apex return map', subtitle),
-    legend: legend({ top: 96, width: '90%' }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
-    grid: { left: 96, right: 48, top: 170, bottom: 72, containLabel: false },
+    grid: { left: 96, right: 48, top: head.top, bottom: 72, containLabel: false },
+    xAxis: valueXAxis('apex height y (m)', { min: lo, max: hi }),
+    yAxis: valueYAxis('next apex height P(y) (m)', { min: lo, max: hi }),
+    series,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Two policies' maps in one plot (the workbench's Compare view): the same axes, one diagonal, each
+// map its own line (solid and dashed), fixed points in the states' colours (filled: stable,
+// hollow: unstable) with the policy told by the marker's shape (circle and triangle).
+//
+// Series ids: map-a, map-b, diagonal, fixed-a, fixed-b.
+
+export interface LabelledMap {
+  label: string;
+  map: ReturnMapResult;
+}
+
+const LINE = {
+  a: { color: PALETTE.slate, dash: 'solid' as const, symbol: 'circle' },
+  b: { color: PALETTE.brick, dash: 'dashed' as const, symbol: 'triangle' },
+};
+
+export function returnMapComparisonFigure(a: LabelledMap, b: LabelledMap, options: ReturnMapFigureOptions = {}): FigureOption {
+  const runs = [['a', a], ['b', b]] as const;
+  const pointsOf = (m: ReturnMapResult) => [...(m.edge_probe ? samplePoints([m.edge_probe]) : []), ...samplePoints(m.samples)];
+  const all = runs.flatMap(([, r]) => [r.map.domain.low_m, r.map.domain.high_m, ...pointsOf(r.map).flatMap((p) => (p[1] === null ? [p[0]] : [p[0], p[1]]))]);
+  const [lo, hi] = niceRange(Math.min(...all), Math.max(...all));
+  const series: SeriesOption[] = [];
+  for (const [key, run] of runs) {
+    const style = LINE[key];
+    series.push({
+      id: `map-${key}`,
+      name: `${run.label}: P(y)`,
+      type: 'line',
+      data: pointsOf(run.map),
+      symbol: 'none',
+      connectNulls: false,
+      lineStyle: { width: 2.5, type: style.dash, color: style.color },
+      itemStyle: { color: style.color },
+      z: key === 'a' ? 3 : 4,
+      tooltip: { valueFormatter: (v) => (typeof v === 'number' ? `${num(v, 6)} m` : 'stride fails') },
+    } satisfies LineSeriesOption);
+  }
+  series.push({
+    id: 'diagonal',
+    name: 'y = x',
+    type: 'line',
+    data: [
+      [lo, lo],
+      [hi, hi],
+    ],
+    symbol: 'none',
+    lineStyle: { width: 1.5, type: 'dotted', color: PALETTE.muted },
+    itemStyle: { color: PALETTE.muted },
+    silent: true,
+    z: 2,
+  } satisfies LineSeriesOption);
+  for (const [key, run] of runs) {
+    const style = LINE[key];
+    series.push({
+      id: `fixed-${key}`,
+      name: `${run.label}: fixed points (filled stable, hollow unstable)`,
+      type: 'scatter',
+      data: run.map.fixed_points.map((f) => ({
+        name: `${run.label}: y* = ${num(f.apex_height_m, 5)} m, slope ${num(f.slope, 3)} (${f.stable ? 'stable' : 'unstable'})`,
+        value: [f.apex_height_m, f.apex_height_m],
+        itemStyle: f.stable
+          ? { color: STATE_COLORS.stable, borderColor: PALETTE.ink, borderWidth: 1.5 }
+          : { color: PALETTE.paper, borderColor: STATE_COLORS.unstable, borderWidth: 3 },
+      })),
+      symbol: style.symbol,
+      symbolSize: key === 'a' ? 15 : 17,
+      itemStyle: { color: style.color, borderColor: PALETTE.ink },
+      tooltip: { formatter: (p) => (p as { name: string }).name },
+      z: 6,
+    } satisfies ScatterSeriesOption);
+  }
+  const describe = (r: LabelledMap) => {
+    const st = r.map.fixed_points.filter((f) => f.stable);
+    return st.length ? `${r.label} stable at ${st.map((f) => `${num(f.apex_height_m, 4)} m (slope ${num(f.slope, 2)})`).join(', ')}` : `${r.label}: no stable fixed point`;
+  };
+  const subtitle = `energy ${num(a.map.energy_J, 5)} J and ${num(b.map.energy_J, 5)} J, flat ground\n${describe(a)}; ${describe(b)}`;
+  const head = header(frameOf(options.frame), options.title ?? `Apex return maps: ${a.label} and ${b.label}`, subtitle, series.map((s) => String(s.name)));
+  return {
+    ...baseOption(`Apex return maps of ${a.label} and ${b.label}: ${describe(a)}; ${describe(b)}.`),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
+    tooltip: tooltip(),
+    grid: { left: 96, right: 48, top: head.top, bottom: 72 },
     xAxis: valueXAxis('apex height y (m)', { min: lo, max: hi }),
     yAxis: valueYAxis('next apex height P(y) (m)', { min: lo, max: hi }),
     series,

@@ -1,20 +1,26 @@
-// Figure 2: stability regions of `pronk scan` — a heat map over the two scanned parameters, each
-// cell none / unstable / stable, the stable cells shaded by |slope| of their stable fixed point
-// (a continuous visual map: dark = strongly stable, light = marginal).
+// Figure 2: stability regions of `pronk scan` — a map over the two scanned parameters, each cell
+// none / unstable / stable, the stable cells shaded by |slope| of their stable fixed point (a
+// continuous visual map: dark = strongly stable, light = marginal). Axes in the parameters' units
+// with round ticks; unstable-only cells carry a slash, so the classes differ without colour too.
 //
-// Series ids: stable (data [ix, iy, |slope|]), unstable ([ix, iy, fixed points]), none
-// ([ix, iy, 0]); x and y are category axes over the grid values, named by the parameter paths.
+// Series ids: stable (data [x, y, |slope|, cell index]), unstable ([x, y, fixed points, index]),
+// none ([x, y, 0, index]), and `current` (the scenario's own point) when given.
 
-import type { HeatmapSeriesOption, VisualMapComponentOption } from 'echarts';
+import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { ScanCell, ScanResult } from '../analysis/scan.js';
-import { STABILITY_COLORS, PALETTE, TYPE, baseOption, categoryXAxis, categoryYAxis, gridLabels, legend, num, title, tooltip, type FigureOption } from './theme.js';
+import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { parameterTitle } from './labels.js';
+import { STABILITY_COLORS, STATE_COLORS, PALETTE, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface StabilityRegionsFigureOptions {
   title?: string;
+  frame?: Frame;
+  /** The scenario's own values of the two parameters, marked on the map. */
+  current?: { x: number; y: number };
 }
 
 function cellText(result: ScanResult, cell: ScanCell): string {
-  const where = `${result.x.path} = ${num(cell.x, 6)}<br/>${result.y.path} = ${num(cell.y, 6)}`;
+  const where = `${parameterTitle(result.x.path)} = ${num(cell.x, 6)}<br/>${parameterTitle(result.y.path)} = ${num(cell.y, 6)}`;
   if (cell.class === 'stable') {
     return `${where}<br/>stable fixed point at ${num(cell.stable_apex_height_m, 6)} m, slope ${num(cell.stable_slope, 4)}`;
   }
@@ -25,30 +31,21 @@ function cellText(result: ScanResult, cell: ScanCell): string {
 }
 
 export function stabilityRegionsFigure(result: ScanResult, options: StabilityRegionsFigureOptions = {}): FigureOption {
-  const byClass = (c: ScanCell['class']) => result.cells.filter((cell) => cell.class === c);
-  const cellAt = new Map(result.cells.map((cell) => [`${cell.ix},${cell.iy}`, cell]));
-  const formatter = (p: unknown) => {
-    const value = (p as { value: number[] }).value;
-    const cell = cellAt.get(`${value[0]},${value[1]}`);
-    return cell ? cellText(result, cell) : '';
-  };
-  const heat = (id: string, name: string, data: number[][]): HeatmapSeriesOption => ({
-    id,
-    name,
-    type: 'heatmap',
-    data,
-    itemStyle: { borderColor: PALETTE.paper, borderWidth: result.cells.length <= 2500 ? 1 : 0 },
-    emphasis: { itemStyle: { borderColor: PALETTE.ink, borderWidth: 2 } },
-    tooltip: { formatter },
-  });
-  const stable = byClass('stable');
-  const series: HeatmapSeriesOption[] = [
-    { ...heat('stable', 'stable (|slope| < 1)', stable.map((c) => [c.ix, c.iy, Math.abs(c.stable_slope as number)])), itemStyle: { color: STABILITY_COLORS.stableRamp[0], borderColor: PALETTE.paper, borderWidth: result.cells.length <= 2500 ? 1 : 0 } },
-    { ...heat('unstable', 'unstable fixed points only', byClass('unstable').map((c) => [c.ix, c.iy, c.fixed_points.length])), itemStyle: { color: STABILITY_COLORS.unstable, borderColor: PALETTE.paper, borderWidth: result.cells.length <= 2500 ? 1 : 0 } },
-    { ...heat('none', 'no fixed point', byClass('none').map((c) => [c.ix, c.iy, 0])), itemStyle: { color: STABILITY_COLORS.none, borderColor: PALETTE.grid, borderWidth: result.cells.length <= 2500 ? 1 : 0 } },
+  const frame = frameOf(options.frame);
+  const of = (c: ScanCell['class'], value: (cell: ScanCell) => number): CellDatum[] =>
+    result.cells.filter((cell) => cell.class === c).map((cell) => [cell.x, cell.y, value(cell), cell.index]);
+  const xs = result.x.values;
+  const ys = result.y.values;
+  const tip = (index: number) => cellText(result, result.cells[index]);
+  const series: SeriesOption[] = [
+    cellSeries({ id: 'stable', name: 'stable (|slope| < 1)', data: of('stable', (c) => Math.abs(c.stable_slope as number)), xs, ys, color: STATE_COLORS.stable, tooltip: tip }),
+    cellSeries({ id: 'unstable', name: 'unstable fixed points only (slashed)', data: of('unstable', (c) => c.fixed_points.length), xs, ys, color: STATE_COLORS.unstable, glyph: 'slash', glyphColor: PALETTE.ink, tooltip: tip }),
+    cellSeries({ id: 'none', name: 'no fixed point', data: of('none', () => 0), xs, ys, color: STATE_COLORS.none, outline: '#cfcac0', tooltip: tip }),
   ];
-  // ECharts colours heat-map cells only through a visual map: one shown for the stable ramp, and
-  // one constant, hidden map for each of the other two classes.
+  const current = options.current && Number.isFinite(options.current.x) && Number.isFinite(options.current.y) ? options.current : undefined;
+  if (current) series.push(currentPointSeries(current.x, current.y));
+  // ECharts colours custom series through a visual map: one shown for the stable ramp, one
+  // constant, hidden map for each other class.
   const visualMap: VisualMapComponentOption[] = [
     {
       type: 'continuous',
@@ -62,9 +59,9 @@ export function stabilityRegionsFigure(result: ScanResult, options: StabilityReg
       calculable: true,
       precision: 2,
       orient: 'vertical',
-      right: 24,
+      right: 16,
       top: 'middle',
-      itemHeight: 240,
+      itemHeight: Math.max(80, Math.min(240, frame.height - 260)),
     },
     { type: 'piecewise', show: false, seriesIndex: 1, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [STABILITY_COLORS.unstable] } },
     { type: 'piecewise', show: false, seriesIndex: 2, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [STABILITY_COLORS.none] } },
@@ -73,15 +70,17 @@ export function stabilityRegionsFigure(result: ScanResult, options: StabilityReg
   const subtitle =
     `${result.counts.stable} stable, ${result.counts.unstable} unstable only, ${result.counts.none} without a fixed point, of ${total} cells; ` +
     `return map at ${num(result.energy_J, 5)} J on flat ground\n` +
-    `stable: the 1-D apex map has a fixed point with |P'(y*)| < 1 (shade: |slope| of the lowest stable one)`;
+    `stable: the 1-D apex map has a fixed point with |P'(y*)| < 1 (shade: |slope| of the lowest stable one); x: ${result.x.path}, y: ${result.y.path}`;
+  const names = series.map((s) => String(s.name));
+  const head = header(frame, options.title ?? 'Stability regions', subtitle, names);
   return {
-    ...baseOption(`Stability regions over ${result.x.path} and ${result.y.path}: ${result.counts.stable} of ${total} cells stable.`),
-    title: title(options.title ?? 'Stability regions', subtitle),
-    legend: legend({ top: 96 }),
+    ...baseOption(`Stability regions over ${parameterTitle(result.x.path)} and ${parameterTitle(result.y.path)}: ${result.counts.stable} of ${total} cells stable.`),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
-    grid: { left: 110, right: 190, top: 140, bottom: 80 },
-    xAxis: categoryXAxis(result.x.path, gridLabels(result.x.values)),
-    yAxis: categoryYAxis(result.y.path, gridLabels(result.y.values), { nameGap: 80 }),
+    grid: { left: 96, right: 170, top: head.top, bottom: 72 },
+    xAxis: cellAxis('x', parameterTitle(result.x.path), xs) as never,
+    yAxis: cellAxis('y', parameterTitle(result.y.path), ys, { nameGap: 64 }) as never,
     visualMap,
     series,
   };

@@ -11,7 +11,7 @@
 import type { LineSeriesOption } from 'echarts';
 import { InputError, describeFound } from '../errors.js';
 import type { Trajectory } from '../simulate.js';
-import { PALETTE, TYPE, baseOption, legend, niceStep, num, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+import { PALETTE, baseOption, frameOf, header, niceStep, num, tooltip, valueXAxis, valueYAxis, type FigureOption, type Frame } from './theme.js';
 
 export interface StanceBody {
   mass_kg: number;
@@ -23,7 +23,10 @@ export interface StanceForceFigureOptions {
   stride?: number;
   /** A friction coefficient drawn as a limit line on the friction demand. */
   frictionLimit?: number;
+  /** A peak leg force, N, drawn as a limit line on the leg force. */
+  forceLimit?: number;
   title?: string;
+  frame?: Frame;
 }
 
 export interface StanceSamples {
@@ -79,12 +82,17 @@ export function stanceForceFigure(trajectory: Trajectory, body: StanceBody, opti
   if (mu !== undefined && !(Number.isFinite(mu) && mu > 0)) {
     throw new InputError([{ path: 'frictionLimit', expected: 'a friction coefficient > 0', found: describeFound(mu) }]);
   }
+  const fmax = options.forceLimit;
+  if (fmax !== undefined && !(Number.isFinite(fmax) && fmax > 0)) {
+    throw new InputError([{ path: 'forceLimit', expected: 'a peak leg force > 0 (N)', found: describeFound(fmax) }]);
+  }
   const s = stanceSamples(trajectory, options.stride);
   const peak = Math.max(0, ...s.leg_force_N);
   const peakAt = s.time_s[s.leg_force_N.indexOf(peak)] ?? 0;
   const contact = s.time_s[s.time_s.length - 1];
-  const step = niceStep(peak || 1);
-  const forceMax = Math.max(step, Math.ceil(peak / step) * step);
+  const top = Math.max(peak, fmax ?? 0);
+  const step = niceStep(top || 1);
+  const forceMax = Math.max(step, Math.ceil((top * 1.04) / step) * step);
   const demandMax = Math.max(...s.friction_demand.filter(Number.isFinite), mu ?? 0);
   const demandStep = niceStep(demandMax || 1);
 
@@ -111,49 +119,68 @@ export function stanceForceFigure(trajectory: Trajectory, body: StanceBody, opti
     lineStyle: { width: 2.5, type: 'dashed', color: PALETTE.brick },
     itemStyle: { color: PALETTE.brick },
     tooltip: { valueFormatter: (v) => num(v as number, 4) },
-    ...(mu !== undefined
-      ? {
-          markLine: {
-            silent: true,
-            symbol: 'none',
-            lineStyle: { color: PALETTE.ink, type: 'dotted', width: 2 },
-            label: { formatter: `friction limit μ = ${num(mu, 3)}`, position: 'insideEndTop', fontSize: TYPE.label, color: PALETTE.ink },
-            data: [{ yAxis: mu }],
-          },
-        }
-      : {}),
   };
+  const end = contact > 0 ? contact : 1;
+  const limitLine = (id: string, name: string, value: number, xAxisIndex: number, yAxisIndex: number, dash: 'dashed' | 'dotted'): LineSeriesOption => ({
+    id,
+    name,
+    type: 'line',
+    xAxisIndex,
+    yAxisIndex,
+    data: [
+      [0, value],
+      [end, value],
+    ],
+    symbol: 'none',
+    silent: true,
+    lineStyle: { width: 2, type: dash, color: PALETTE.ink },
+    itemStyle: { color: PALETTE.ink },
+    z: 5,
+  });
+  const limits: LineSeriesOption[] = [
+    ...(fmax !== undefined ? [limitLine('force-limit', `peak-force limit ${num(fmax, 5)} N`, fmax, 0, 0, 'dashed')] : []),
+    ...(mu !== undefined ? [limitLine('friction-limit', `friction limit μ = ${num(mu, 3)}`, mu, 1, 2, 'dotted')] : []),
+  ];
   const subtitle =
     `stride ${s.stride}: contact ${num(contact * 1000, 4)} ms, peak leg force ${num(peak, 5)} N = ${num(peak / weight, 3)} body weights at ${num(peakAt * 1000, 4)} ms\n` +
     `friction demand along the leg |x − x_foot| / (y − y_foot) (largest where the force is small, at touchdown and liftoff)` +
-    (mu !== undefined ? `; limit μ = ${num(mu, 3)}` : '');
+    (mu !== undefined ? `; limit μ = ${num(mu, 3)}` : '') +
+    (fmax !== undefined ? `; peak-force limit ${num(fmax, 5)} N` : '');
   const timeAxis = (gridIndex: number, name: string) => valueXAxis(name, { gridIndex, min: 0, max: contact > 0 ? contact : 1, axisLabel: { showMaxLabel: false } });
+  const frame = frameOf(options.frame);
+  const series = [force, friction, ...limits];
+  const head = header(frame, options.title ?? 'Leg force and friction demand over a stance', subtitle, series.map((x) => String(x.name)));
+  // two plots sharing the time axis: the force gets 60 % of the height left, the friction demand 40 %
+  const bottom = 64;
+  const between = 44;
+  const room = Math.max(160, frame.height - head.top - bottom - between);
+  const upper = Math.round(room * 0.6);
   return {
     ...baseOption(`Leg force and friction demand over the stance of stride ${s.stride}: peak ${num(peak / weight, 3)} body weights.`),
-    title: title(options.title ?? 'Leg force and friction demand over a stance', subtitle),
-    legend: legend({ top: 96 }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip({ trigger: 'axis' }),
     axisPointer: { link: [{ xAxisIndex: 'all' }] },
     grid: [
-      { left: 110, right: 110, top: 140, height: 320 },
-      { left: 110, right: 110, top: 540, bottom: 64 },
+      { left: 96, right: 96, top: head.top, height: upper },
+      { left: 96, right: 96, top: head.top + upper + between, bottom },
     ],
     xAxis: [timeAxis(0, ''), timeAxis(1, 'time since touchdown (s)')],
     yAxis: [
-      valueYAxis('leg force (N)', { gridIndex: 0, min: 0, max: forceMax, interval: step }),
-      valueYAxis('leg force (body weights m·g)', {
+      valueYAxis('leg force (N)', { gridIndex: 0, min: 0, max: forceMax, interval: step, nameGap: 58 }),
+      valueYAxis('× body weight', {
         gridIndex: 0,
         position: 'right',
         min: 0,
         max: forceMax / weight,
         // its own round ticks (not aligned with the newton grid lines, which it does not draw)
         interval: niceStep(forceMax / weight),
-        nameGap: 56,
+        nameGap: 46,
         splitLine: { show: false },
         axisLabel: { showMaxLabel: false, formatter: (v: number) => num(v, 3) },
       }),
-      valueYAxis('|Fx/Fy|', { gridIndex: 1, min: 0, max: Math.ceil(demandMax / demandStep) * demandStep || 1, nameGap: 56 }),
+      valueYAxis('|Fx/Fy|', { gridIndex: 1, min: 0, max: Math.ceil((demandMax * 1.04) / demandStep) * demandStep || 1, nameGap: 58 }),
     ],
-    series: [force, friction],
+    series,
   };
 }

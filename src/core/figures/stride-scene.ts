@@ -23,6 +23,8 @@ export interface SceneView {
   /** The figure's size in px (the aspect is exact for this size); default 1280 × 800. */
   width?: number;
   height?: number;
+  /** The title and its line of numbers (default true; a workbench panel shows them itself). */
+  title?: boolean;
 }
 
 // Plot area margins, px: the axes' data ranges are fitted to what is left.
@@ -84,7 +86,8 @@ export function strideScene(trajectory: Trajectory, index: number, terrain?: Gro
   const width = view.width ?? FIGURE_SIZE.width;
   const height = view.height ?? FIGURE_SIZE.height;
   const plotW = Math.max(1, width - MARGIN.left - MARGIN.right);
-  const plotH = Math.max(1, height - MARGIN.top - MARGIN.bottom);
+  const top = view.title === false ? 20 : MARGIN.top;
+  const plotH = Math.max(1, height - top - MARGIN.bottom);
 
   // the leg length, from the samples (the leg is drawn at its rest length in flight)
   let leg = 0;
@@ -166,8 +169,8 @@ export function strideScene(trajectory: Trajectory, index: number, terrain?: Gro
   const subtitle = `t = ${num(trajectory.time_s[index], 4)} s, stride ${trajectory.stride[index]}, ${stance ? `stance, leg force ${num(force, 4)} N` : 'flight'}; sample ${index + 1} of ${n}`;
   return {
     ...baseOption(`The body, leg and ground at t = ${num(trajectory.time_s[index], 4)} s.`),
-    title: title('Stride', subtitle),
-    grid: { left: MARGIN.left, right: MARGIN.right, top: MARGIN.top, bottom: MARGIN.bottom },
+    ...(view.title === false ? {} : { title: title('Stride', subtitle) }),
+    grid: { left: MARGIN.left, right: MARGIN.right, top, bottom: MARGIN.bottom },
     xAxis: valueXAxis('forward position x (m)', { min: xMin, max: xMax, axisLabel: { showMinLabel: false, showMaxLabel: false, formatter: (v: number) => num(v, 3) } }),
     yAxis: valueYAxis('height y (m)', { min: yMin, max: yMax, nameGap: 54, axisLabel: { showMinLabel: false, showMaxLabel: false, formatter: (v: number) => num(v, 3) } }),
     series,

@@ -7,10 +7,32 @@
 
 import type { CustomSeriesOption, CustomSeriesRenderItemAPI, CustomSeriesRenderItemParams, LineSeriesOption } from 'echarts';
 import type { RobustnessResult } from '../analysis/robustness.js';
-import { PALETTE, baseOption, legend, num, title, tooltip, valueXAxis, valueYAxis, type FigureOption } from './theme.js';
+import type { YAXisComponentOption } from 'echarts';
+import { PALETTE, baseOption, frameOf, header, niceStep, num, tickText, tooltip, valueXAxis, valueYAxis, type FigureOption, type Frame } from './theme.js';
 
 export interface SurvivalFigureOptions {
   title?: string;
+  frame?: Frame;
+}
+
+/**
+ * The survival axis, zoomed to the data: from a round value just below the lowest Wilson bound to
+ * 100 %, ticks in per cent with the decimals their step needs (97.9 % and 100 % are a visible
+ * distance apart, and the band has height).
+ */
+export function survivalAxis(name: string, lowest: number, extra: Record<string, unknown> = {}): YAXisComponentOption {
+  const low = Number.isFinite(lowest) ? Math.min(1, Math.max(0, lowest)) : 0;
+  const span = Math.max(1 - low, 0.002);
+  const step = niceStep(span, 5);
+  const min = Math.max(0, Math.floor((1 - span * 1.08) / step - 1e-9) * step);
+  const decimals = Math.max(0, -Math.floor(Math.log10(step * 100) + 1e-9));
+  return valueYAxis(name, {
+    min: Number(min.toFixed(12)),
+    max: 1,
+    interval: step,
+    axisLabel: { formatter: (v: number) => `${tickText(v * 100, decimals)} %` },
+    ...extra,
+  });
 }
 
 /**
@@ -78,14 +100,18 @@ export function survivalFigure(result: RobustnessResult, options: SurvivalFigure
     `survived ${result.survived} = ${pct(result.survival)} (Wilson 95 %: ${pct(result.wilson95[0])} to ${pct(result.wilson95[1])}); ` +
     `${num(result.mean_strides_completed, 4)} strides completed on average`;
   const last = Math.max(0, result.strides - 1);
+  const frame = frameOf(options.frame);
+  const band = bandSeries('survival-band', 'Wilson 95 % interval', survivalBand(result), PALETTE.sky);
+  const head = header(frame, options.title ?? 'Monte Carlo survival on random terrain', subtitle, [String(band.name), String(line.name)]);
+  const lowest = Math.min(...result.survival_by_stride.map((s) => s.wilson95[0]), result.wilson95[0]);
   return {
     ...baseOption(`Survival after each stride over ${result.rollouts} rollouts: ${pct(result.survival)} survive all ${result.strides} strides.`),
-    title: title(options.title ?? 'Monte Carlo survival on random terrain', subtitle),
-    legend: legend({ top: 96 }),
+    ...(head.title ? { title: head.title } : {}),
+    legend: head.legend,
     tooltip: tooltip(),
-    grid: { left: 96, right: 48, top: 140, bottom: 72 },
+    grid: { left: 96, right: 48, top: head.top, bottom: 72 },
     xAxis: valueXAxis('stride (0-based index; survival counted after it)', { min: 0, max: last === 0 ? 1 : last, minInterval: 1 }),
-    yAxis: valueYAxis('survival fraction (rollouts still running)', { min: 0, max: 1 }),
-    series: [bandSeries('survival-band', 'Wilson 95 % interval', survivalBand(result), PALETTE.sky), line],
+    yAxis: survivalAxis('survival (rollouts still running)', lowest),
+    series: [band, line],
   };
 }

@@ -48,20 +48,47 @@ export function seriesDash(i: number): (typeof DASHES)[number] {
   return DASHES[Math.floor(i / SERIES_COLORS.length) % DASHES.length];
 }
 
-/** Stability classes (scan): stable is a dark ramp, unstable light amber, none near-white. */
-export const STABILITY_COLORS = {
-  /** |slope| = 0 (strongly stable) to |slope| -> 1 (marginal): L* 24 to 58. */
-  stableRamp: ['#1b3a66', '#5d8fc9'],
-  unstable: '#f2c46d', // L* 82
-  none: '#f4f2ee', // L* 96
+/**
+ * One colour per state, the same in every figure and in the workbench's text (where a glyph in
+ * the colour stands beside the word, so that colour is never the only cue). L* beside each.
+ * stable / unstable: fixed points and scan cells; converged / wandering / fell: basin and rollout
+ * outcomes. Figures add a second cue: marker shape (return map), a glyph in the cell (heat maps).
+ */
+export const STATE_COLORS = {
+  stable: '#1f4e8c', // L* 33, blue
+  unstable: '#e69a2e', // L* 70, amber
+  converged: '#2f7f6f', // L* 48, teal
+  wandering: '#f2cf5b', // L* 84, light yellow, with a dot in the cell
+  fell: '#8f2f1b', // L* 32, brick, with a cross in the cell
+  none: '#ebe8e1', // L* 92, "no fixed point": near the paper, outlined
 } as const;
 
-/** Basin outcomes: converged dark blue; wandering saturated amber; fell a neutral ramp by stride. */
+export type StateName = keyof typeof STATE_COLORS;
+
+/** The glyph that goes with each state in text and legends (shape, not colour, tells them apart). */
+export const STATE_GLYPHS: Record<StateName, string> = {
+  stable: '●',
+  unstable: '○',
+  converged: '■',
+  wandering: '◆',
+  fell: '✕',
+  none: '·',
+};
+
+/** Stability classes (scan): stable shaded by |slope| from the state's blue to a lighter blue. */
+export const STABILITY_COLORS = {
+  /** |slope| = 0 (strongly stable) to |slope| -> 1 (marginal): L* 33 to 58. */
+  stableRamp: [STATE_COLORS.stable, '#5d8fc9'],
+  unstable: STATE_COLORS.unstable,
+  none: STATE_COLORS.none,
+} as const;
+
+/** Basin outcomes: fell shaded by the stride it fell at, darkest (never pale) at stride 0. */
 export const OUTCOME_COLORS = {
-  converged: PALETTE.deepBlue, // L* 33
-  wandering: PALETTE.amber, // L* 70, chroma ~60 against the ramp's ~5
-  /** Fell at stride 0 (pale, L* 92) to fell at the last stride (darker, L* 55). */
-  fellRamp: ['#ece9e5', '#8a8178'],
+  converged: STATE_COLORS.converged,
+  wandering: STATE_COLORS.wandering,
+  /** Fell at stride 0 (the state's brick, L* 32) to fell at the last stride (L* 66). */
+  fellRamp: [STATE_COLORS.fell, '#d98f78'],
 } as const;
 
 /** CIE 1976 L* of an sRGB colour '#rrggbb' (sRGB transfer curve, IEC 61966-2-1; D65 white). */
@@ -114,6 +141,90 @@ export function legend(extra: LegendComponentOption = {}): LegendComponentOption
     itemGap: 22,
     textStyle: { fontSize: TYPE.legend, color: PALETTE.ink },
     ...extra,
+  };
+}
+
+/** Where a figure is drawn: its size in px and whether it carries its title and subtitle. */
+export interface Frame {
+  width: number;
+  height: number;
+  /** Title and subtitle drawn (a file: yes; a workbench panel, which has its own headings: no). */
+  title?: boolean;
+}
+
+/** The frame of a figure file (the CLI's --plot, the workbench's SVG and PNG downloads). */
+export const FILE_FRAME: Required<Frame> = { ...FIGURE_SIZE, title: true };
+
+export function frameOf(frame?: Frame): Required<Frame> {
+  if (!frame) return FILE_FRAME;
+  const size = (v: number, fallback: number) => (Number.isFinite(v) && v >= 120 ? v : fallback);
+  return { width: size(frame.width, FIGURE_SIZE.width), height: size(frame.height, FIGURE_SIZE.height), title: frame.title ?? true };
+}
+
+// Glyph widths of a sans-serif face in em, on the wide side (Helvetica, Arial, Liberation Sans and
+// DejaVu Sans all fit under them), so that a legend row estimated to fit does fit.
+function glyphEm(ch: string): number {
+  if (' .,:;\'|!il()[]'.includes(ch)) return 0.34;
+  if ('fjrt-'.includes(ch)) return 0.42;
+  if ('mwMW%@'.includes(ch)) return 0.95;
+  if (/[A-Z]/.test(ch)) return 0.72;
+  if (/[0-9]/.test(ch)) return 0.62;
+  return 0.62;
+}
+
+/** A text's width in px at `fontSize`, estimated on the wide side (no DOM here). */
+export function textWidth(text: string, fontSize: number): number {
+  let em = 0;
+  for (const ch of text) em += glyphEm(ch);
+  return em * fontSize;
+}
+
+const LEGEND_ICON = 25;
+const LEGEND_ICON_GAP = 5;
+const LEGEND_GAP = 20;
+/** Vertical distance between legend rows, px. */
+export const LEGEND_ROW = 24;
+
+/** Legend entries packed into rows no wider than `width` (every entry shown: never a paged legend). */
+export function legendRows(names: readonly string[], width: number): string[][] {
+  const rows: string[][] = [];
+  let row: string[] = [];
+  let used = 0;
+  for (const name of names) {
+    const w = LEGEND_ICON + LEGEND_ICON_GAP + textWidth(name, TYPE.legend);
+    if (row.length > 0 && used + LEGEND_GAP + w > width) {
+      rows.push(row);
+      row = [];
+      used = 0;
+    }
+    used += (row.length > 0 ? LEGEND_GAP : 0) + w;
+    row.push(name);
+  }
+  if (row.length) rows.push(row);
+  return rows;
+}
+
+export interface Header {
+  title: TitleComponentOption | undefined;
+  legend: LegendComponentOption[];
+  /** The top of the plot area, px: below the title and every legend row, with room for a value axis' top label. */
+  top: number;
+}
+
+/**
+ * A figure's title (when the frame has one) and its legend, one legend component per row, each
+ * row centred, as many rows as the entries need at the frame's width; `top` is where the plot
+ * area can start.
+ */
+export function header(frame: Required<Frame>, text: string, subtext: string, names: readonly string[], gap = 28): Header {
+  const lines = subtext ? subtext.split('\n').length : 0;
+  const titleHeight = frame.title ? 14 + 24 + (lines ? 8 + 20 * lines : 0) + 12 : 8;
+  const rows = legendRows(names, frame.width - 48);
+  const legends = rows.map((row, i) => legend({ data: row, top: titleHeight + i * LEGEND_ROW }));
+  return {
+    title: frame.title ? title(text, subtext) : undefined,
+    legend: legends,
+    top: titleHeight + rows.length * LEGEND_ROW + gap,
   };
 }
 
@@ -213,6 +324,22 @@ export function niceRange(lo: number, hi: number, pad = 0.02): [number, number] 
   const step = niceStep(span + 2 * pad * span, 10);
   const round = (x: number) => Number(x.toPrecision(12));
   return [round(Math.floor((lo - pad * span) / step) * step), round(Math.ceil((hi + pad * span) / step) * step)];
+}
+
+/** Round tick values (1, 2 or 5 × 10^k apart) inside [lo, hi], and the decimals they need. */
+export function niceTicks(lo: number, hi: number, target = 6): { values: number[]; decimals: number; step: number } {
+  const step = niceStep(hi - lo, target);
+  const decimals = Math.max(0, -Math.floor(Math.log10(step) + 1e-9));
+  const values: number[] = [];
+  const first = Math.ceil(lo / step - 1e-9);
+  for (let k = first; k * step <= hi + step * 1e-9; k++) values.push(Number((k * step).toFixed(Math.min(12, decimals + 2))));
+  return { values, decimals, step };
+}
+
+/** A tick label with exactly `decimals` decimals (no -0). */
+export function tickText(value: number, decimals: number): string {
+  const text = value.toFixed(decimals);
+  return /^-0(\.0*)?$/.test(text) ? text.slice(1) : text;
 }
 
 /** `1 stride`, `3 strides`. */
