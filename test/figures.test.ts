@@ -497,8 +497,8 @@ describe('basin figure', () => {
   });
 
   it('renders both modes to well-formed SVGs', () => {
-    expectSvg(basinFigure(basinGrid), ['start forward speed (m/s)', 'start apex height (m)']);
-    expectSvg(basinFigure(basinEnergy), ['start apex height (m)']);
+    expectSvg(basinFigure(basinGrid), ['Start forward speed (m/s)', 'Start apex height (m)']);
+    expectSvg(basinFigure(basinEnergy), ['Start apex height (m)']);
   });
 });
 

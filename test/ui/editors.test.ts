@@ -28,6 +28,11 @@ function type(input: HTMLElement, text: string) {
   fireEvent.blur(input);
 }
 
+/** Lets the promises and effects of an interaction run. */
+async function settle() {
+  for (let i = 0; i < 5; i++) await new Promise((r) => setTimeout(r, 0));
+}
+
 beforeEach(() => {
   localStorage.clear();
   document.body.innerHTML = '';
@@ -58,7 +63,37 @@ describe('scenario editor', () => {
     const summary = screen.getByTestId('scenario-check').textContent ?? '';
     expect(summary).toMatch(/1 problem in the scenario/);
     expect(summary).toMatch(/Computations use the last valid scenario/);
-    expect(summary).toContain('body.mass_kg');
+    // the summary names the field by the label on screen, not by its path in the file
+    expect(summary).toContain('Mass: expected a number > 0 (kg), found -9');
+    expect(summary).not.toContain('body.mass_kg');
+  });
+
+  it('shows a field\'s problem while the field has the focus', async () => {
+    setup();
+    const mass = screen.getByLabelText('Mass');
+    type(mass, '-9');
+    await Promise.resolve();
+    fireEvent.focus(mass);
+    await Promise.resolve();
+    expect(mass.getAttribute('aria-invalid')).toBe('true');
+    expect(describedBy(mass)).toBe('expected a number > 0 (kg), found -9');
+  });
+
+  it('marks both clamp fields when the lowest angle is above the steepest', async () => {
+    const { wb } = setup();
+    const lowest = screen.getByLabelText('Clamp: lowest angle');
+    const steepest = screen.getByLabelText('Clamp: steepest angle');
+    type(lowest, '85'); // the demo's clamp is at most 80° (scenarios/demo.json)
+    await Promise.resolve();
+    expect(describedBy(lowest)).toBe('must be below Clamp: steepest angle (80°); found 85°');
+    expect(describedBy(steepest)).toBe('must be above Clamp: lowest angle (85°); found 80°');
+    expect(lowest.getAttribute('aria-invalid')).toBe('true');
+    expect(steepest.getAttribute('aria-invalid')).toBe('true');
+    // one problem, named by both labels
+    const summary = screen.getByTestId('scenario-check').textContent ?? '';
+    expect(summary).toMatch(/1 problem in the scenario/);
+    expect(summary).toContain('Clamp: lowest angle and Clamp: steepest angle: 85 is not below 80');
+    expect(wb.scenarioCheck.issues).toHaveLength(1);
   });
 
   it('keeps text that is not a number and reports what it found', async () => {
@@ -81,7 +116,7 @@ describe('scenario editor', () => {
 
   it('puts the cross-field start-height rule on the apex height field', async () => {
     setup();
-    const apex = screen.getByLabelText('Apex height');
+    const apex = screen.getByLabelText('Start apex height');
     type(apex, '0.3');
     await Promise.resolve();
     // law: the leg touches down at y = L0·sin(attack at apex) = 0.45 m · sin(64°) = 0.404456 m
@@ -93,7 +128,11 @@ describe('scenario editor', () => {
   it('edits a table as rows and flags a knot time that does not increase in its own cell', async () => {
     const { wb } = setup();
     fireEvent.change(screen.getByLabelText('Touchdown angle'), { target: { value: 'time_table' } });
-    await Promise.resolve();
+    await settle();
+    // the demo study sets retraction parameters free: asked, and they go
+    expect(wb.question?.title).toBe('The study uses the old policy');
+    wb.respond('drop');
+    await settle();
     // the kind switch starts the table from the apex angle of the retraction policy (64°)
     expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'time_table', time_since_apex_s: [0, 0.2], attack_deg: [64, 64] } });
     const time1 = screen.getByLabelText('Time since apex, row 1');
@@ -114,21 +153,24 @@ describe('scenario editor', () => {
     const { wb } = setup();
     const kind = screen.getByLabelText('Touchdown angle');
     fireEvent.change(kind, { target: { value: 'fixed' } });
-    await Promise.resolve();
+    await settle();
+    wb.respond('drop');
+    await settle();
     expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'fixed', attack_deg: 64 } });
     fireEvent.change(kind, { target: { value: 'retraction' } });
-    await Promise.resolve();
+    await settle();
+    expect(wb.question).toBeNull(); // the study no longer names anything of the fixed policy
     // scenarios/demo.json: retraction at 64° from the apex, 40°/s, clamped at 80°
     expect(wb.scenarioDraft.policy).toMatchObject({ angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: 40, max_deg: 80 } });
   });
 
   it('takes the user to the field a problem names', async () => {
     setup();
-    type(screen.getByLabelText('Forward speed'), '-1');
+    type(screen.getByLabelText('Start forward speed'), '-1');
     await Promise.resolve();
     const summary = screen.getByTestId('scenario-check');
-    fireEvent.click(within(summary).getByRole('button', { name: /start\.forward_speed_m_per_s/ }));
-    expect(document.activeElement).toBe(screen.getByLabelText('Forward speed'));
+    fireEvent.click(within(summary).getByRole('button', { name: /^Start forward speed:/ }));
+    expect(document.activeElement).toBe(screen.getByLabelText('Start forward speed'));
   });
 });
 
@@ -148,22 +190,69 @@ describe('study editor', () => {
     expect(wb.studyCheck.value?.constraints.leg_angle_range_deg).toBeUndefined();
   });
 
-  it('flags a free parameter the scenario no longer has after a kind switch', async () => {
+  it('asks what to do when a policy kind switch would leave the study naming parameters of the old kind', async () => {
     const { wb } = setup();
-    fireEvent.change(screen.getByLabelText('Touchdown angle'), { target: { value: 'fixed' } });
-    await Promise.resolve();
-    const issue = wb.studyCheck.issues.find((i) => i.path === 'free_parameters[0].path');
-    expect(issue?.found).toMatch(/has no attack_at_apex_deg/);
-    const select = screen.getByLabelText('Parameter 1');
-    expect(select.getAttribute('aria-invalid')).toBe('true');
-    expect(describedBy(select)).toMatch(/has no attack_at_apex_deg/);
+    const kind = screen.getByLabelText('Touchdown angle') as HTMLSelectElement;
+    fireEvent.change(kind, { target: { value: 'fixed' } });
+    await settle();
+    // scenarios/demo-study.json sets the retraction's apex angle, rate and clamp free
+    expect(wb.question?.text).toMatch(/free parameters 1 \(Attack angle at apex\), 2 \(Retraction rate\), 3 \(Clamp: steepest angle\) belong to the retraction policy/);
+    expect(wb.question?.choices.map((c) => c.id)).toEqual(['drop', 'keep']);
+    // keep: nothing changes, and the select shows the kind in use again
+    wb.respond('keep');
+    await settle();
+    expect((wb.scenarioDraft.policy as { angle: { kind: string } }).angle.kind).toBe('retraction');
+    expect(kind.value).toBe('retraction');
+    expect(wb.studyCheck.issues).toEqual([]);
+    // drop: the new kind, and the study without those free parameters (one undo step brings both back)
+    fireEvent.change(kind, { target: { value: 'fixed' } });
+    await settle();
+    wb.respond('drop');
+    await settle();
+    expect((wb.scenarioDraft.policy as { angle: { kind: string } }).angle.kind).toBe('fixed');
+    expect(wb.studyDraft.free_parameters).toEqual([]);
+    wb.undo();
+    await settle();
+    expect((wb.scenarioDraft.policy as { angle: { kind: string } }).angle.kind).toBe('retraction');
+    expect(wb.studyDraft.free_parameters).toHaveLength(3);
   });
 
-  it('flags inverted bounds at the upper bound', async () => {
+  it('marks both bounds of a free parameter whose lower bound is above its upper', async () => {
     setup();
     const upper = screen.getAllByLabelText('Upper bound')[0];
+    const lower = screen.getAllByLabelText('Lower bound')[0];
     type(upper, '50'); // below the lower bound, 55 (scenarios/demo-study.json)
     await Promise.resolve();
-    expect(describedBy(upper)).toMatch(/^expected a number > lower \(55\): the bounds are inverted, found 50$/);
+    expect(describedBy(upper)).toBe('must be above Free parameter 1 (Attack angle at apex): lower bound (55); found 50');
+    expect(describedBy(lower)).toBe('must be below Free parameter 1 (Attack angle at apex): upper bound (50); found 55');
+    expect(lower.getAttribute('aria-invalid')).toBe('true');
+  });
+
+  it('marks both ends of the limits\' touchdown angle range', async () => {
+    setup();
+    const lowest = screen.getByLabelText('Touchdown angle, lowest');
+    const steepest = screen.getByLabelText('Touchdown angle, steepest');
+    type(lowest, '88'); // above the demo study's steepest, 85°
+    await Promise.resolve();
+    expect(describedBy(lowest)).toBe('must be below Touchdown angle, steepest (85°); found 88°');
+    expect(describedBy(steepest)).toBe('must be above Touchdown angle, lowest (88°); found 85°');
+  });
+});
+
+describe('undo and redo', () => {
+  it('undoes a run of typing in one field in one step, and redoes it', async () => {
+    const { wb } = setup();
+    const mass = screen.getByLabelText('Mass') as HTMLInputElement;
+    for (const text of ['1', '12', '12.5']) fireEvent.input(mass, { target: { value: text } });
+    await settle();
+    expect((wb.scenarioDraft.body as { mass_kg: number }).mass_kg).toBe(12.5);
+    wb.undo();
+    await settle();
+    expect((wb.scenarioDraft.body as { mass_kg: number }).mass_kg).toBe(9);
+    // the focused field shows the undone value too
+    expect(mass.value).toBe('9');
+    wb.redo();
+    await settle();
+    expect(mass.value).toBe('12.5');
   });
 });

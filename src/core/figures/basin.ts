@@ -10,6 +10,7 @@
 import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { BasinCell, BasinResult } from '../analysis/basin.js';
 import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { parameterTitle } from './labels.js';
 import { OUTCOME_COLORS, PALETTE, STATE_COLORS, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface BasinFigureOptions {
@@ -107,15 +108,15 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
     return {
       ...common,
       grid: { left: 96, right: 170, top: head.top, bottom: 72 },
-      xAxis: cellAxis('x', 'start forward speed (m/s)', xs) as never,
-      yAxis: cellAxis('y', 'start apex height (m)', ys, { nameGap: 64 }) as never,
+      xAxis: cellAxis('x', parameterTitle('start.forward_speed_m_per_s'), xs) as never,
+      yAxis: cellAxis('y', parameterTitle('start.apex_height_m'), ys, { nameGap: 64 }) as never,
     };
   }
   const stripHeight = Math.max(60, Math.min(200, frame.height - head.top - 120));
   return {
     ...common,
     grid: { left: 96, right: 170, top: head.top, height: stripHeight },
-    xAxis: cellAxis('x', 'start apex height (m)', xs) as never,
+    xAxis: cellAxis('x', parameterTitle('start.apex_height_m'), xs) as never,
     yAxis: cellAxis('y', `E = ${num(result.energy_J, 5)} J`, ys, { axisLabel: { show: false }, axisTick: { show: false }, nameGap: 16 }) as never,
   };
 }

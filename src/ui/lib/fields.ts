@@ -3,6 +3,7 @@
 // and units follow docs/contract.md; nothing here checks values (the validators do).
 
 import { getAt } from './draft.js';
+import { parameterName } from '../../core/figures/labels.js';
 import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
@@ -27,24 +28,30 @@ export interface FieldDef {
   optional?: boolean;
 }
 
+/** A scenario field with the label and unit every view uses for it (core/figures/labels.ts). */
+function scenarioField(path: string, extra: Partial<FieldDef> = {}, base = ''): FieldDef {
+  const name = parameterName(base ? `${base}.${path}` : path);
+  return { path, label: name.label, unit: name.unit, ...extra };
+}
+
 export const BODY_FIELDS: FieldDef[] = [
-  { path: 'body.mass_kg', label: 'Mass', unit: 'kg' },
-  { path: 'body.leg_length_m', label: 'Leg length (rest)', unit: 'm' },
-  { path: 'body.leg_stiffness_N_per_m', label: 'Leg stiffness', unit: 'N/m' },
-  { path: 'body.gravity_m_per_s2', label: 'Gravity', unit: 'm/s²', optional: true, hint: `empty: ${STANDARD_GRAVITY_M_PER_S2}` },
-  { path: 'body.leg_damping_N_s_per_m', label: 'Leg damping', unit: 'N·s/m', optional: true, hint: 'empty: 0' },
+  scenarioField('body.mass_kg'),
+  scenarioField('body.leg_length_m'),
+  scenarioField('body.leg_stiffness_N_per_m'),
+  scenarioField('body.gravity_m_per_s2', { optional: true, hint: `empty: ${STANDARD_GRAVITY_M_PER_S2}` }),
+  scenarioField('body.leg_damping_N_s_per_m', { optional: true, hint: 'empty: 0' }),
 ];
 
 export const START_FIELDS: FieldDef[] = [
-  { path: 'start.apex_height_m', label: 'Apex height', unit: 'm', hint: 'absolute, above the starting ground' },
-  { path: 'start.forward_speed_m_per_s', label: 'Forward speed', unit: 'm/s' },
-  { path: 'strides', label: 'Strides', unit: '' },
+  scenarioField('start.apex_height_m', { hint: 'absolute, above the starting ground' }),
+  scenarioField('start.forward_speed_m_per_s'),
+  scenarioField('strides'),
 ];
 
 export const INTEGRATOR_FIELDS: FieldDef[] = [
-  { path: 'integrator.relative_tolerance', label: 'Relative tolerance', unit: '', optional: true, hint: `empty: ${DEFAULT_RELATIVE_TOLERANCE}` },
-  { path: 'integrator.absolute_tolerance', label: 'Absolute tolerance', unit: '', optional: true, hint: `empty: ${DEFAULT_ABSOLUTE_TOLERANCE}` },
-  { path: 'integrator.max_steps_per_stance', label: 'Max steps per stance', unit: '', optional: true, hint: `empty: ${DEFAULT_MAX_STEPS_PER_STANCE}` },
+  scenarioField('integrator.relative_tolerance', { optional: true, hint: `empty: ${DEFAULT_RELATIVE_TOLERANCE}` }),
+  scenarioField('integrator.absolute_tolerance', { optional: true, hint: `empty: ${DEFAULT_ABSOLUTE_TOLERANCE}` }),
+  scenarioField('integrator.max_steps_per_stance', { optional: true, hint: `empty: ${DEFAULT_MAX_STEPS_PER_STANCE}` }),
 ];
 
 export interface TableColumn {
@@ -62,15 +69,15 @@ export interface KindDef {
 }
 
 export const ANGLE_KINDS: KindDef[] = [
-  { kind: 'fixed', label: 'Fixed angle', fields: [{ path: 'attack_deg', label: 'Attack angle', unit: '°' }] },
+  { kind: 'fixed', label: 'Fixed angle', fields: [scenarioField('attack_deg', {}, 'policy.angle')] },
   {
     kind: 'retraction',
     label: 'Swing-leg retraction',
     fields: [
-      { path: 'attack_at_apex_deg', label: 'Attack angle at apex', unit: '°' },
-      { path: 'rate_deg_per_s', label: 'Retraction rate', unit: '°/s', hint: '> 0 steepens the leg' },
-      { path: 'min_deg', label: 'Clamp, lowest', unit: '°', optional: true, hint: 'empty: none' },
-      { path: 'max_deg', label: 'Clamp, steepest', unit: '°', optional: true, hint: 'empty: none' },
+      scenarioField('attack_at_apex_deg', {}, 'policy.angle'),
+      scenarioField('rate_deg_per_s', { hint: '> 0 steepens the leg' }, 'policy.angle'),
+      scenarioField('min_deg', { optional: true, hint: 'empty: none' }, 'policy.angle'),
+      scenarioField('max_deg', { optional: true, hint: 'empty: none' }, 'policy.angle'),
     ],
   },
   {
@@ -89,10 +96,7 @@ export const STIFFNESS_KINDS: KindDef[] = [
   {
     kind: 'split',
     label: 'Split at maximum compression',
-    fields: [
-      { path: 'compression_N_per_m', label: 'Compression stiffness', unit: 'N/m' },
-      { path: 'extension_N_per_m', label: 'Extension stiffness', unit: 'N/m' },
-    ],
+    fields: [scenarioField('compression_N_per_m', {}, 'policy.stiffness'), scenarioField('extension_N_per_m', {}, 'policy.stiffness')],
   },
   {
     kind: 'time_table',
@@ -316,22 +320,4 @@ export function numericPaths(scenario: unknown): string[] {
   return out.filter((p) => !p.startsWith('integrator.') && p !== 'strides' && !p.endsWith('.seed'));
 }
 
-/** The unit of a scenario path, from its name (docs/contract.md: every field carries its unit). */
-export function unitOfPath(path: string): string {
-  const name = path.replace(/\[\d+\]$/, '').split('.').pop() ?? '';
-  const units: [RegExp, string][] = [
-    [/_deg_per_s$/, '°/s'],
-    [/_deg$/, '°'],
-    [/_N_s_per_m$/, 'N·s/m'],
-    [/_N_per_m$/, 'N/m'],
-    [/_m_per_s2$/, 'm/s²'],
-    [/_m_per_s$/, 'm/s'],
-    [/_kg$/, 'kg'],
-    [/_s$/, 's'],
-    [/_m$/, 'm'],
-    [/_N$/, 'N'],
-    [/_J$/, 'J'],
-  ];
-  for (const [pattern, unit] of units) if (pattern.test(name)) return unit;
-  return '';
-}
+export { unitOfPath } from '../../core/figures/labels.js';

@@ -3,6 +3,7 @@
 // optimizations) go to IndexedDB, which holds large structured values.
 
 const DRAFT_KEY = 'pronk.workbench.drafts.v1';
+const HISTORY_KEY = 'pronk.workbench.history.v1';
 const DB_NAME = 'pronk-workbench';
 const STORE = 'results';
 
@@ -28,8 +29,36 @@ export function saveDrafts(value: unknown): boolean {
 export function clearDrafts(): void {
   try {
     globalThis.localStorage?.removeItem(DRAFT_KEY);
+    globalThis.localStorage?.removeItem(HISTORY_KEY);
   } catch {
     // nothing to clear
+  }
+}
+
+export function loadHistory<T>(): T | null {
+  try {
+    const text = globalThis.localStorage?.getItem(HISTORY_KEY);
+    return text ? (JSON.parse(text) as T) : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * Saves the undo history; when the browser's storage is full, the oldest steps go first (the
+ * drafts themselves are saved separately and always win).
+ */
+export function saveHistory(history: { past: unknown[]; future: unknown[] }): boolean {
+  let { past, future } = history;
+  for (;;) {
+    try {
+      globalThis.localStorage?.setItem(HISTORY_KEY, JSON.stringify({ past, future }));
+      return true;
+    } catch {
+      if (past.length + future.length <= 1) return false;
+      past = past.slice(Math.ceil(past.length / 2));
+      future = future.slice(Math.ceil(future.length / 2));
+    }
   }
 }
 

@@ -30,8 +30,11 @@ import {
   type MonteCarloRun,
   type PairedSurvival,
 } from './compute.js';
-import { clone, setAt } from './draft.js';
-import { loadDrafts, loadResults, saveDrafts, saveResult } from './persist.js';
+import { clone, getAt, setAt } from './draft.js';
+import { classifyFile, downloadText, fileStem, PROJECT_FORMAT, PROJECT_FORMAT_VERSION, type OpenedFile, type ProjectFile } from './files.js';
+import { History, type Drafts, type HistoryState } from './history.js';
+import { explainIssues, fieldLabel, type FieldIssue } from './issues.js';
+import { loadDrafts, loadHistory, loadResults, saveDrafts, saveHistory, saveResult } from './persist.js';
 
 export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare';
 
@@ -88,6 +91,10 @@ export interface Job {
   done: number | null;
   total: number | null;
   detail: string;
+  /** A phase of the job ("searching", "re-scoring on held-out seeds"), shown with its own progress. */
+  phase: string;
+  /** Set the moment Cancel is pressed: the button says so at once, before the workers have stopped. */
+  cancelling: boolean;
   cancel: () => void;
 }
 
@@ -101,6 +108,14 @@ export interface Notice {
 export interface Check<T> {
   value: T | null;
   issues: InputIssue[];
+}
+
+/** A question the page asks before it does something that could lose work (an in-page dialog). */
+export interface Question {
+  id: number;
+  title: string;
+  text: string;
+  choices: { id: string; label: string; primary?: boolean }[];
 }
 
 export interface OptimizationLive {
@@ -118,6 +133,8 @@ const LIVE_REDRAW_MS = 250;
 interface Saved {
   version: number;
   scenario: Json;
+  /** The drafts as last saved, opened or loaded from the demo (what "unsaved edits" are measured from). */
+  savedKey?: string;
   /** The last valid scenario (the draft may be invalid when the page closes). */
   lastValid?: Scenario;
   study: Json;
@@ -213,6 +230,12 @@ export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo', error: unk
 
 let noticeId = 0;
 let jobId = 0;
+let questionId = 0;
+
+/** The drafts as one comparable text. */
+export function draftsKey(scenario: unknown, study: unknown): string {
+  return JSON.stringify({ scenario, study });
+}
 
 export class Workbench {
   scenarioDraft = $state<Json>(demoScenarioDraft());
@@ -222,6 +245,26 @@ export class Workbench {
 
   scenarioCheck = $derived(checkScenario(this.scenarioDraft));
   studyCheck = $derived(checkStudy(this.studyDraft, this.scenarioDraft));
+  /** The issues as the editors show them: labelled, two-field errors on both fields. */
+  scenarioIssues = $derived<FieldIssue[]>(explainIssues('sc', this.scenarioCheck.issues, this.scenarioDraft));
+  studyIssues = $derived<FieldIssue[]>(explainIssues('st', this.studyCheck.issues, this.studyDraft));
+
+  /** The drafts as last saved, opened or loaded; edits since then are "unsaved". */
+  savedKey = $state(draftsKey(demoScenarioDraft(), demoStudyDraft()));
+  dirty = $derived(draftsKey(this.scenarioDraft, this.studyDraft) !== this.savedKey);
+
+  /** Undo and redo of the drafts (kept across a reload). */
+  readonly history: History;
+  /** Bumped on every change of the history, for the buttons that read it. */
+  historyRevision = $state(0);
+  undoLabel = $derived.by(() => (void this.historyRevision, this.history.past.at(-1)?.label ?? null));
+  redoLabel = $derived.by(() => (void this.historyRevision, this.history.future.at(-1)?.label ?? null));
+  private grouped = false;
+  private tickRecorded = false;
+
+  /** The question on screen, and its answer's resolver. */
+  question = $state<Question | null>(null);
+  private answer: ((choice: string) => void) | null = null;
 
   /** The scenario every computation uses: the draft when valid, else the last valid one. */
   lastValid = $state.raw<{ scenario: Scenario; key: string; at: number }>({
@@ -256,7 +299,10 @@ export class Workbench {
       this.settings = { ...this.settings, ...saved.settings };
       this.view = saved.view;
       this.restored = true;
+      // an autosave from before "unsaved" was tracked: unsaved unless it is the demo
+      if (typeof saved.savedKey === 'string') this.savedKey = saved.savedKey;
     }
+    this.history = new History(loadHistory<HistoryState>());
     const check = checkScenario(this.scenarioDraft);
     const last = check.value ?? (saved?.lastValid ? checkScenario(saved.lastValid).value : null);
     if (last) this.lastValid = { scenario: last, key: canonicalJson(last), at: Date.now() };
@@ -278,8 +324,13 @@ export class Workbench {
         settings: $state.snapshot(this.settings) as Settings,
         view: this.view,
         lastValid: this.lastValid.scenario,
+        savedKey: this.savedKey,
       };
       this.autosaveFailed = !saveDrafts(saved);
+    });
+    $effect(() => {
+      void this.historyRevision;
+      saveHistory(this.history.toJSON());
     });
     $effect(() => {
       void this.lastValid.key;
@@ -301,27 +352,257 @@ export class Workbench {
   // -------------------------------------------------------------------------------------------
   // Drafts.
 
+  private drafts(): Drafts {
+    return { scenario: $state.snapshot(this.scenarioDraft) as Json, study: $state.snapshot(this.studyDraft) as Json };
+  }
+
+  /**
+   * Records the drafts as they are before a change. Everything one action changes (in one task)
+   * is one step; keystrokes in one field (`key`) soon after each other are one step.
+   */
+  private record(label: string, key: string | null = null): void {
+    if (this.grouped || this.tickRecorded) return;
+    this.history.record(this.drafts(), label, key);
+    this.tickRecorded = true;
+    queueMicrotask(() => (this.tickRecorded = false));
+    this.historyRevision++;
+  }
+
+  /** Runs `change` as one undoable step called `label`. */
+  group(label: string, change: () => void): void {
+    this.record(label);
+    this.history.seal();
+    const outer = this.grouped;
+    this.grouped = true;
+    try {
+      change();
+    } finally {
+      this.grouped = outer;
+    }
+  }
+
   setScenarioField(path: string, value: unknown): void {
+    this.record(fieldLabel('sc', path), `sc:${path}`);
     setAt(this.scenarioDraft, path, value);
   }
 
   setStudyField(path: string, value: unknown): void {
+    this.record(fieldLabel('st', path, this.studyDraft), `st:${path}`);
     setAt(this.studyDraft, path, value);
   }
 
   /** Replaces the drafts wholesale (an opened file); results of another scenario become stale. */
   loadScenarioDraft(draft: Json): void {
+    this.record('Scenario replaced');
     this.scenarioDraft = clone(draft);
   }
 
   loadStudyDraft(draft: Json): void {
+    this.record('Study replaced');
     this.studyDraft = clone(draft);
   }
 
-  resetToDemo(): void {
-    this.scenarioDraft = demoScenarioDraft();
-    this.studyDraft = demoStudyDraft();
+  undo(): void {
+    const step = this.history.undo(this.drafts());
+    if (!step) return;
+    this.scenarioDraft = clone(step.drafts.scenario);
+    this.studyDraft = clone(step.drafts.study);
+    this.historyRevision++;
+  }
+
+  redo(): void {
+    const step = this.history.redo(this.drafts());
+    if (!step) return;
+    this.scenarioDraft = clone(step.drafts.scenario);
+    this.studyDraft = clone(step.drafts.study);
+    this.historyRevision++;
+  }
+
+  /** The drafts (or one of them) now match a file, saved or opened: nothing of them is unsaved. */
+  markSaved(part?: 'scenario' | 'study'): void {
+    const now = JSON.parse(draftsKey(this.scenarioDraft, this.studyDraft)) as { scenario: unknown; study: unknown };
+    if (part) {
+      let before: { scenario: unknown; study: unknown };
+      try {
+        before = JSON.parse(this.savedKey) as typeof before;
+      } catch {
+        before = { scenario: null, study: null };
+      }
+      if (part === 'scenario') now.study = before.study;
+      else now.scenario = before.scenario;
+    }
+    this.savedKey = draftsKey(now.scenario, now.study);
+  }
+
+  /** Asks a question in the page; resolves with the chosen id ('cancel' when dismissed). */
+  ask(title: string, text: string, choices: Question['choices']): Promise<string> {
+    this.answer?.('cancel');
+    return new Promise((resolve) => {
+      this.question = { id: ++questionId, title, text, choices };
+      this.answer = (choice) => {
+        this.question = null;
+        this.answer = null;
+        resolve(choice);
+      };
+    });
+  }
+
+  respond(choice: string): void {
+    this.answer?.(choice);
+  }
+
+  /** Before the drafts are replaced: asks when there are unsaved edits. False: leave them. */
+  async mayReplace(what: string): Promise<boolean> {
+    if (!this.dirty) return true;
+    const choice = await this.ask(
+      'Replace the unsaved edits?',
+      `${what} replaces the scenario and the study being edited, which have changes that are not saved in a file. Undo (Ctrl+Z) brings them back.`,
+      [
+        { id: 'save', label: 'Save the project first' },
+        { id: 'replace', label: 'Replace them', primary: true },
+        { id: 'cancel', label: 'Keep editing' },
+      ],
+    );
+    if (choice === 'save') {
+      this.saveProject();
+      return true;
+    }
+    return choice === 'replace';
+  }
+
+  async resetToDemo(): Promise<void> {
+    if (!(await this.mayReplace('The demo'))) return;
+    this.group('Demo loaded', () => {
+      this.scenarioDraft = demoScenarioDraft();
+      this.studyDraft = demoStudyDraft();
+    });
     this.settings = defaultSettings(parseScenario(demoScenarioJson));
+    this.markSaved();
+  }
+
+  // -------------------------------------------------------------------------------------------
+  // Files.
+
+  projectFile(): ProjectFile {
+    return {
+      format: PROJECT_FORMAT,
+      format_version: PROJECT_FORMAT_VERSION,
+      saved: new Date().toISOString(),
+      scenario: $state.snapshot(this.scenarioDraft),
+      study: $state.snapshot(this.studyDraft),
+      settings: $state.snapshot(this.settings),
+      optimization: this.results.optimization ? $state.snapshot(this.results.optimization) : null,
+    };
+  }
+
+  saveProject(): void {
+    downloadText(`${JSON.stringify(this.projectFile(), null, 2)}\n`, `${fileStem(this.scenarioDraft.name, 'scenario')}.pronk-project.json`);
+    this.markSaved();
+  }
+
+  /**
+   * Opens a file's text: refused with the reasons when it is not a scenario, a study, a result or
+   * a project (nothing changes); asks first when it would replace unsaved edits.
+   */
+  async openFile(text: string, name: string): Promise<OpenedFile['kind'] | null> {
+    let opened: OpenedFile;
+    try {
+      opened = classifyFile(text, name, { scenario: $state.snapshot(this.scenarioDraft) });
+    } catch (error) {
+      this.notify('error', error instanceof InputError ? error.format() : `${name}: not opened: ${error instanceof Error ? error.message : String(error)}`);
+      return null;
+    }
+    if (opened.kind === 'result') {
+      let stamp: OptimizationStamp;
+      try {
+        stamp = stampFromResult(opened.result);
+      } catch (error) {
+        this.notify('error', error instanceof InputError ? error.format(name) : `${name}: not opened: ${String(error)}`);
+        return null;
+      }
+      this.results = { ...this.results, optimization: stamp, compare: undefined };
+      this.view = 'optimize';
+      this.notify('info', `Opened the optimization result ${name}.`);
+      return 'result';
+    }
+    if (!(await this.mayReplace(`Opening ${name}`))) return null;
+    switch (opened.kind) {
+      case 'scenario':
+        this.group(`Opened ${name}`, () => (this.scenarioDraft = clone(opened.scenario)));
+        this.notify('info', `Opened the scenario ${name}.`);
+        break;
+      case 'study':
+        this.group(`Opened ${name}`, () => {
+          this.studyDraft = clone(opened.study);
+          if (opened.scenario) this.scenarioDraft = clone(opened.scenario);
+        });
+        this.notify(
+          'info',
+          opened.scenarioFile
+            ? `Opened the study ${name}. It names the scenario file ${opened.scenarioFile}: it runs on the scenario in the editor (open that file too if it is another).`
+            : `Opened the study ${name} with its scenario.`,
+        );
+        break;
+      case 'project': {
+        const p = opened.project;
+        this.group(`Opened ${name}`, () => {
+          this.scenarioDraft = clone(p.scenario as Json);
+          this.studyDraft = clone(p.study as Json);
+        });
+        const check = checkScenario(this.scenarioDraft).value;
+        const settings = (p.settings ?? {}) as Partial<Settings>;
+        this.settings = { ...(check ? defaultSettings(check) : this.settings), ...settings };
+        if (p.optimization) this.results = { ...this.results, optimization: p.optimization as OptimizationStamp, compare: undefined };
+        this.notify('info', `Opened the project ${name}.`);
+        break;
+      }
+    }
+    this.markSaved();
+    return opened.kind;
+  }
+
+  /**
+   * Switches a policy's kind. When the study sets free parameters that the new kind does not
+   * have, asks: drop those free parameters, or keep the old kind.
+   */
+  async switchPolicyKind(base: 'policy.angle' | 'policy.stiffness', next: Json, kindLabel: string): Promise<boolean> {
+    const after = clone($state.snapshot(this.scenarioDraft) as Json);
+    setAt(after, base, next);
+    const free = (Array.isArray(this.studyDraft.free_parameters) ? this.studyDraft.free_parameters : []) as Json[];
+    const orphaned = free
+      .map((p, i) => ({ p, i }))
+      .filter(({ p }) => typeof p.path === 'string' && (p.path === base || p.path.startsWith(`${base}.`)) && typeof getAt(after, p.path) !== 'number');
+    const oldKind = String((getAt(this.scenarioDraft, base) as Json | undefined)?.kind ?? '');
+    if (orphaned.length > 0) {
+      const names = orphaned.map(({ p, i }) => `${i + 1} (${fieldLabel('sc', String(p.path))})`).join(', ');
+      const all = orphaned.length === free.length;
+      const choice = await this.ask(
+        'The study uses the old policy',
+        `The study's free parameter${orphaned.length === 1 ? '' : 's'} ${names} belong${orphaned.length === 1 ? 's' : ''} to the ${oldKind.replaceAll('_', ' ')} policy, which a ${kindLabel.toLowerCase()} does not have.` +
+          (all ? ' Dropping them leaves the study without free parameters: add one for the new policy.' : ''),
+        [
+          { id: 'drop', label: `Drop ${orphaned.length === 1 ? 'that free parameter' : 'those free parameters'}`, primary: true },
+          { id: 'keep', label: `Keep the ${oldKind.replaceAll('_', ' ')} policy` },
+        ],
+      );
+      if (choice !== 'drop') return false;
+      const dropped = new Set(orphaned.map(({ i }) => i));
+      this.group(`${kindLabel}; free parameters dropped`, () => {
+        setAt(this.scenarioDraft, base, next);
+        this.studyDraft.free_parameters = clone(free.filter((_, i) => !dropped.has(i)));
+      });
+      return true;
+    }
+    this.group(kindLabel, () => setAt(this.scenarioDraft, base, next));
+    return true;
+  }
+
+  /** Loads a point of a map into the scenario (one undoable step). */
+  loadPoint(label: string, values: { path: string; value: number }[]): void {
+    this.group(label, () => {
+      for (const v of values) setAt(this.scenarioDraft, v.path, Number(v.value.toPrecision(12)));
+    });
+    this.notify('info', `${label}: ${values.map((v) => `${fieldLabel('sc', v.path)} ${Number(v.value.toPrecision(6))}`).join(', ')}. Undo (Ctrl+Z) goes back.`);
   }
 
   isCurrent(stamp: { scenarioKey: string } | undefined): boolean {
@@ -354,26 +635,35 @@ export class Workbench {
   }
 
   cancel(name: string): void {
-    this.jobs[name]?.cancel();
+    const job = this.jobs[name];
+    if (!job || job.cancelling) return;
+    job.cancelling = true;
+    job.cancel();
   }
 
   /**
    * Runs one named job: progress into `jobs[name]`, a cancel, and every failure as a notice.
    * Returns undefined when it was cancelled or failed.
    */
-  async job<T>(name: string, label: string, body: (signal: AbortSignal, progress: (done: number, total: number, detail?: string) => void) => Promise<T>): Promise<T | undefined> {
+  async job<T>(
+    name: string,
+    label: string,
+    body: (signal: AbortSignal, progress: (done: number, total: number, detail?: string, phase?: string) => void) => Promise<T>,
+  ): Promise<T | undefined> {
     if (this.jobs[name]) this.jobs[name].cancel();
     const controller = new AbortController();
     const id = ++jobId;
-    const job: Job = { id, label, startedAt: Date.now(), done: null, total: null, detail: '', cancel: () => controller.abort() };
+    const job: Job = { id, label, startedAt: Date.now(), done: null, total: null, detail: '', phase: '', cancelling: false, cancel: () => controller.abort() };
     this.jobs[name] = job;
     try {
-      return await body(controller.signal, (done, total, detail) => {
+      return await body(controller.signal, (done, total, detail, phase) => {
         const j = this.jobs[name];
-        if (!j || j.id !== id || controller.signal.aborted) return;
+        // after a cancel, only a new phase (the held-out re-scoring of the best point so far) reports
+        if (!j || j.id !== id || (controller.signal.aborted && (phase === undefined || phase === j.phase))) return;
         j.done = done;
         j.total = total;
         if (detail !== undefined) j.detail = detail;
+        if (phase !== undefined) j.phase = phase;
       });
     } catch (error) {
       if (error instanceof JobCancelled) this.notify('info', `${label}: cancelled.`);
@@ -572,12 +862,14 @@ export class Workbench {
     if (result) this.keep('compare', this.stamp(result, started, options, opt.scenarioKey));
   }
 
-  /** Copies the optimized parameters into the scenario draft. */
+  /** Copies the optimized parameters into the scenario draft (one undoable step). */
   applyOptimized(): void {
     const opt = this.results.optimization;
     if (!opt) return;
-    for (const p of opt.value.parameters) setAt(this.scenarioDraft, p.path, p.value);
-    this.notify('info', 'The optimized parameters are now in the scenario.');
+    this.group('Optimized parameters used', () => {
+      for (const p of opt.value.parameters) setAt(this.scenarioDraft, p.path, p.value);
+    });
+    this.notify('info', 'The optimized parameters are now in the scenario. Undo (Ctrl+Z) goes back.');
   }
 
   openExport(source: 'scenario' | 'result'): void {
@@ -588,6 +880,22 @@ export class Workbench {
   crashWorker(): void {
     this.pool.crash(0);
   }
+}
+
+/** An optimization result file as the workbench keeps it: its baseline is the start of every parameter. */
+export function stampFromResult(result: Json): OptimizationStamp {
+  const best = parseScenario(result.scenario);
+  const base = structuredClone(best) as unknown as Json;
+  for (const p of (result.parameters ?? []) as { path: string; start: number }[]) setAt(base, p.path, p.start);
+  const baseScenario = parseScenario(base);
+  return {
+    value: result as never,
+    scenarioKey: canonicalJson(baseScenario),
+    at: Date.now(),
+    seconds: Number((result.provenance as Json | undefined)?.seconds ?? 0),
+    baseScenario,
+    study: {},
+  };
 }
 
 function runBasinCheck(scenario: Scenario, options: BasinOptions): void {
