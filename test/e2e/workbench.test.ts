@@ -2,13 +2,15 @@
 // build): the demo loads and computes in the workers, an edit updates the return map to the very
 // numbers the core computes in Node, an invalid value is flagged beside its field while the views
 // keep the last valid scenario, edits survive a reload, an optimization runs and another is
-// cancelled, the C export carries the same tables as `pronk export`, a dead worker is replaced.
-// Screenshots of the main views go to test-output/screenshots/ for review.
+// cancelled (the button says so at once), the C export carries the same tables as `pronk export`,
+// a dead worker is replaced; the figures are readable (legends whole, the survival axis zoomed to
+// the data, the peak-force limit drawn, the optimizer's tables apart at every width from 1280 px),
+// a click on a basin or scan cell loads its point, and figures and tables download as SVG, PNG and
+// CSV. Screenshots of every view at 1440 × 900 go to test-output/screenshots/ for review.
 //
 // Skipped, with the reason printed, when /usr/bin/chromium is absent (CI installs it).
 
 import { mkdirSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import type { Download, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { apexReturnMap } from '../../src/core/analysis/return-map.js';
@@ -16,9 +18,9 @@ import { buildExport } from '../../src/core/export/build.js';
 import { scenarioSource } from '../../src/core/export/input.js';
 import { hex32 } from '../../src/core/export/lookup.js';
 import { demoScenario, parseScenario, type Scenario } from '../../src/core/scenario.js';
-import { ensureBuilt, haveChromium, launchBrowser, ROOT, startPreview, CHROMIUM } from './harness.mjs';
+import { ensureBuilt, haveChromium, launchBrowser, startPreview, CHROMIUM } from './harness.mjs';
+import { expectLegendsWhole, overlaps, pageTools, SCREEN, SHOTS } from './page.js';
 
-const SHOTS = join(ROOT, 'test-output/screenshots');
 const available = haveChromium();
 if (!available) console.warn(`e2e: skipped: ${CHROMIUM} is absent (install it with: apt-get update && apt-get install -y chromium)`);
 
@@ -35,19 +37,9 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
   let page: Page;
   const pageErrors: string[] = [];
 
-  const shot = (name: string) => page.screenshot({ path: join(SHOTS, `${name}.png`) });
-  const field = (label: string) => page.getByLabel(label, { exact: true });
+  const t = pageTools(() => page);
+  const { shot, field, setField, describedBy, revision } = t;
   const firstFixedPoint = async () => Number(await page.getByTestId('fixed-point').first().locator('td').first().textContent());
-  const revision = async (testId: string) => Number(await page.getByTestId(testId).getAttribute('data-revision'));
-  async function setField(label: string, value: string) {
-    await field(label).fill(value);
-    await field(label).press('Tab');
-  }
-  async function describedBy(label: string): Promise<string> {
-    return field(label).evaluate((el) =>
-      (el.getAttribute('aria-describedby') ?? '').split(/\s+/).map((id) => document.getElementById(id)?.textContent ?? '').join(' ').trim(),
-    );
-  }
   /** The fixed point the map shows once it is current for the edited scenario. */
   async function currentFixedPoint(unlike: number): Promise<number> {
     await expect.poll(async () => (await firstFixedPoint()) !== unlike && (await page.getByTestId('provenance').first().getAttribute('data-current')) === 'true', { timeout: 20_000 }).toBe(true);
@@ -58,7 +50,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     mkdirSync(SHOTS, { recursive: true });
     ensureBuilt((m) => console.log(`e2e: ${m}`));
     preview = await startPreview();
-    browser = await launchBrowser();
+    browser = await launchBrowser({ viewport: SCREEN });
     page = await browser.context.newPage();
     page.on('pageerror', (e) => pageErrors.push(e.message));
     await page.goto(preview.url);
@@ -133,35 +125,105 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
   it('runs a short optimization in the workers', async () => {
     await setField('Evaluations per restart', '6');
     await setField('Restarts', '1');
-    await page.locator('#tab-optimize').click();
+    await t.view('optimize');
     await page.getByTestId('start-optimize').click();
     await expect.poll(() => page.getByTestId('optimize-outcome').textContent(), { timeout: 90_000 }).toMatch(/^\s*Finished\.\s+6 evaluations/);
-    // the demo study's three free parameters (scenarios/demo-study.json)
-    expect(await page.getByTestId('optimized-parameters').locator('tbody tr').count()).toBe(3);
+    // the demo study's three free parameters (scenarios/demo-study.json), by the labels a person reads
+    const rows = page.getByTestId('optimized-parameters').locator('tbody tr');
+    expect(await rows.count()).toBe(3);
+    expect(await rows.first().locator('td').first().textContent()).toBe('Attack angle at apex (°)');
+    expect(await rows.first().locator('td').first().getAttribute('title')).toBe('policy.angle.attack_at_apex_deg');
     expect(await revision('figure-convergence')).toBeGreaterThan(0);
+    expectLegendsWhole(await t.option('figure-convergence'));
+    // the margins as a share of each limit, the binding one marked
+    const margins = page.getByTestId('limit-margins');
+    expect(await margins.locator('thead').textContent()).toContain('% of limit');
+    expect(await margins.locator('tr[data-binding="true"]').count()).toBe(1);
+    expect(await margins.locator('tr[data-binding="true"]').textContent()).toContain('binding');
     await shot('optimizer');
   }, 120_000);
 
-  it('cancels a long optimization and keeps its best point', async () => {
+  it('keeps the optimizer\'s parameter, limit and restart tables apart at 1280, 1440 and 1920 px', async () => {
+    for (const width of [1280, 1440, 1920]) {
+      await page.setViewportSize({ width, height: 900 });
+      await page.waitForTimeout(200);
+      const boxes = [];
+      for (const id of ['table-parameters', 'table-limits', 'table-restarts']) {
+        const box = (await page.getByTestId(id).boundingBox())!;
+        boxes.push({ id, box });
+        // every cell of the table inside its own box
+        const cells = await page.getByTestId(id).locator('th, td').evaluateAll((els) => els.map((el) => el.getBoundingClientRect().toJSON() as { x: number; y: number; width: number; height: number; right: number }));
+        const scroller = (await page.getByTestId(id).locator('.scroll').boundingBox())!;
+        for (const c of cells) {
+          expect(c.x, `${id} at ${width} px`).toBeGreaterThanOrEqual(scroller.x - 0.5);
+          expect(c.x + c.width, `${id} at ${width} px`).toBeLessThanOrEqual(scroller.x + scroller.width + 0.5 + (await page.getByTestId(id).locator('.scroll').evaluate((el) => el.scrollWidth - el.clientWidth)));
+        }
+      }
+      for (let i = 0; i < boxes.length; i++) {
+        for (let j = i + 1; j < boxes.length; j++) expect(overlaps(boxes[i].box, boxes[j].box), `${boxes[i].id} and ${boxes[j].id} at ${width} px`).toBe(false);
+      }
+      // and no table spills out of the view's panel
+      const panel = (await page.locator('.panel').boundingBox())!;
+      for (const { box } of boxes) expect(box.x + box.width).toBeLessThanOrEqual(panel.x + panel.width + 0.5);
+    }
+    await page.setViewportSize(SCREEN);
+  });
+
+  it('acknowledges a Cancel at once, re-scores the best point as its own phase, and counts the evaluations once', async () => {
     await setField('Evaluations per restart', '500');
     await setField('Restarts', '2');
     await page.getByTestId('start-optimize').click();
-    await expect.poll(async () => Number(/^(\d+) \//.exec((await page.getByTestId('optimize-live').textContent().catch(() => '')) ?? '')?.[1] ?? 0), { timeout: 60_000 }).toBeGreaterThan(1);
-    const clicked = Date.now();
-    await page.getByTestId('cancel-optimize').click();
+    await expect.poll(async () => Number((await page.getByTestId('optimize-evaluations').textContent().catch(() => '0')) ?? 0), { timeout: 60_000 }).toBeGreaterThan(1);
+    expect(await page.getByTestId('phase-optimize').textContent()).toBe('Searching');
+    // the time from the click to the changed button, measured in the page (MutationObserver)
+    const acknowledged = await page.getByTestId('cancel-optimize').evaluate(
+      (button) =>
+        new Promise<number>((resolve) => {
+          const t0 = performance.now();
+          const observer = new MutationObserver(() => {
+            if (button.getAttribute('data-cancelling') === 'true') {
+              observer.disconnect();
+              resolve(performance.now() - t0);
+            }
+          });
+          observer.observe(button, { attributes: true, childList: true, characterData: true, subtree: true });
+          (button as HTMLButtonElement).click();
+        }),
+    );
+    console.log(`e2e: Cancel acknowledged in ${acknowledged.toFixed(1)} ms`);
+    expect(acknowledged).toBeLessThan(200);
+    expect(await page.getByTestId('cancel-optimize').textContent()).toBe('Cancelling…');
+    expect(await page.getByTestId('cancel-optimize').isDisabled()).toBe(true);
+    // the held-out re-scoring of the best point so far: a phase of its own, with its own progress
+    await expect.poll(() => page.getByTestId('optimize-live').getAttribute('data-phase'), { timeout: 30_000 }).toBe('Re-scoring on the held-out seeds');
+    expect(await page.getByTestId('optimize-live').textContent()).toMatch(/Re-scoring on the held-out seeds: \d+ of \d+ steps/);
+    await shot('optimizer-rescoring');
+    const stoppedAt = Number(await page.getByTestId('optimize-evaluations').textContent());
     await expect.poll(() => page.getByTestId('optimize-outcome').textContent(), { timeout: 60_000 }).toMatch(/^\s*Cancelled/);
-    console.log(`e2e: cancel to result (held-out re-scoring included): ${Date.now() - clicked} ms`);
     const outcome = (await page.getByTestId('optimize-outcome').textContent()) ?? '';
-    expect(Number(/(\d+) evaluations/.exec(outcome)![1])).toBeLessThan(1000);
+    const evaluations = Number(/(\d+) evaluations/.exec(outcome)![1]);
+    // one count: what the live line said when the search stopped is what the result says
+    expect(evaluations).toBe(stoppedAt);
+    expect(evaluations).toBeLessThan(1000);
     await setField('Evaluations per restart', '6');
     await setField('Restarts', '1');
   }, 120_000);
 
-  it('compares the optimized policy with the baseline on the same terrains', async () => {
-    await page.locator('#tab-compare').click();
+  it('compares the optimized policy with the baseline on the same terrains, both return maps in one plot', async () => {
+    await t.view('compare');
     await page.getByTestId('start-compare').click();
     await expect.poll(() => page.getByTestId('paired-difference').count(), { timeout: 60_000 }).toBe(1);
     expect(await page.getByTestId('paired-difference').textContent()).toMatch(/^-?\d+\.\d %$/);
+    const maps = await t.option('figure-compare-maps');
+    const ids = (maps.series as { id: string }[]).map((x) => x.id);
+    expect(ids).toEqual(expect.arrayContaining(['map-a', 'map-b', 'diagonal', 'fixed-a', 'fixed-b']));
+    expectLegendsWhole(maps);
+    expectLegendsWhole(await t.option('figure-compare'));
+    // a readable plot: the grid at least 300 px on each side
+    const grid = (maps.grid as { top: number }[])[0];
+    const box = (await page.getByTestId('figure-compare-maps').boundingBox())!;
+    expect(box.height - grid.top - 72).toBeGreaterThan(300);
+    expect(box.width).toBeGreaterThan(600);
     await shot('compare');
   }, 90_000);
 
@@ -191,16 +253,41 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     await expect.poll(() => dialog.isVisible()).toBe(false);
   });
 
-  it('runs the other views and saves their screenshots', async () => {
-    await page.locator('#tab-scan').click();
+  /** Clicks the cell of `series` whose data item is `item` ([x, y, value, index]) in a cell map. */
+  async function clickCell(testId: string, item: number[]) {
+    const at = await t.pixel(testId, [item[0], item[1]]);
+    await page.mouse.click(at.x, at.y);
+  }
+  const seriesData = (option: Record<string, unknown>, id: string) => ((option.series as { id: string; data: number[][] }[]).find((x) => x.id === id)?.data ?? []);
+
+  it('draws the stability regions on round-tick axes named by their labels, marks the scenario, and loads a clicked cell', async () => {
+    await t.view('scan');
     await page.locator('#set-scan-x-n').fill('11'); // the horizontal axis: 11 × 16 cells
     await page.locator('#set-scan-x-n').press('Tab');
     await page.getByTestId('start-scan').click();
-    await expect.poll(() => page.getByTestId('figure-scan').count(), { timeout: 60_000 }).toBe(1);
-    await expect.poll(() => revision('figure-scan')).toBeGreaterThan(0);
+    await expect.poll(() => revision('figure-scan'), { timeout: 60_000 }).toBeGreaterThan(0);
+    const option = await t.option('figure-scan');
+    expectLegendsWhole(option);
+    const [x] = option.xAxis as { name: string }[];
+    const [y] = option.yAxis as { name: string }[];
+    expect([x.name, y.name]).toEqual(['Attack angle at apex (°)', 'Retraction rate (°/s)']);
+    // the scenario in use (62° at apex, 40°/s) is marked
+    expect(seriesData(option, 'current')).toEqual([[62, 40]]);
     await shot('stability-regions');
+    // a click on a cell puts its two values into the scenario, and one undo takes them out again
+    const cell = seriesData(option, 'stable').find((c) => c[0] !== 62 && c[1] !== 40)!;
+    await clickCell('figure-scan', cell);
+    await expect.poll(() => field('Attack angle at apex').inputValue()).toBe(String(cell[0]));
+    expect(await field('Retraction rate').inputValue()).toBe(String(cell[1]));
+    expect(await t.notices()).toContain('Point loaded from the stability map');
+    await page.getByTestId('undo').click();
+    await expect.poll(() => field('Attack angle at apex').inputValue()).toBe('62');
+    expect(await field('Retraction rate').inputValue()).toBe('40');
+    await t.dismissNotices();
+  }, 120_000);
 
-    await page.locator('#tab-basin').click();
+  it('runs the basin (after a cancel), marks the start apex and loads a clicked cell\'s start apex', async () => {
+    await t.view('basin');
     // a cancel stops the workers mid-batch (they are replaced), and the next run is whole
     for (const id of ['#set-basin-heights-n', '#set-basin-speeds-n']) {
       await page.locator(id).fill('121');
@@ -216,16 +303,51 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     }
     await page.getByTestId('start-basin').click();
     await expect.poll(() => page.getByTestId('attracted').count(), { timeout: 60_000 }).toBe(1);
-    expect(await page.getByTestId('figure-basin').getAttribute('aria-label')).toContain('Basin of attraction');
+    await t.dismissNotices();
+    const option = await t.option('figure-basin');
+    expectLegendsWhole(option);
+    // the demo's start apex: 0.45 m at 3.35 m/s (scenarios/demo.json)
+    expect(seriesData(option, 'current')).toEqual([[3.35, 0.45]]);
+    // round ticks with the decimals their step needs (no grid value such as 0.49171 on an axis)
+    const ticks = ((option.yAxis as { axisLabel: { customValues: number[] } }[])[0].axisLabel.customValues);
+    for (const v of ticks) expect(Math.abs(v * 100 - Math.round(v * 100))).toBeLessThan(1e-9);
     await shot('basin');
+    const cell = seriesData(option, 'converged').find((c) => Math.abs(c[1] - 0.45) > 0.02)!;
+    await clickCell('figure-basin', cell);
+    await expect.poll(() => field('Start apex height').inputValue()).toBe(String(Number(cell[1].toPrecision(12))));
+    expect(await field('Start forward speed').inputValue()).toBe(String(Number(cell[0].toPrecision(12))));
+    expect(await t.notices()).toContain('Start apex loaded from the basin');
+    await page.keyboard.press('Control+z');
+    await expect.poll(() => field('Start apex height').inputValue()).toBe('0.45');
+    expect(await field('Start forward speed').inputValue()).toBe('3.35');
+    await t.dismissNotices();
+  }, 120_000);
 
-    await page.locator('#tab-montecarlo').click();
+  it('zooms the survival axis to the data, with the Wilson band in view', async () => {
+    await t.view('montecarlo');
     await page.getByTestId('start-montecarlo').click();
     await expect.poll(() => page.getByTestId('survival').count(), { timeout: 60_000 }).toBe(1);
     expect(await page.getByTestId('survival').textContent()).toMatch(/^\d+ \/ 1000 \(\d+\.\d %\)$/);
+    const option = await t.option('figure-survival');
+    expectLegendsWhole(option);
+    const axis = (option.yAxis as { min: number; max: number }[])[0];
+    const band = seriesData(option, 'survival-band');
+    const lowest = Math.min(...band.map((b) => b[1]));
+    // the demo survives more than 90 % of 1000 rollouts: an axis from 0 would flatten it
+    expect(lowest).toBeGreaterThan(0.9);
+    expect(axis.max).toBe(1);
+    expect(axis.min).toBeGreaterThan(0.8);
+    expect(axis.min).toBeLessThanOrEqual(lowest);
+    // the band at the last stride is tens of pixels high, not a hairline
+    const last = band[band.length - 1];
+    const lo = await t.pixel('figure-survival', [last[0], last[1]]);
+    const hi = await t.pixel('figure-survival', [last[0], last[2]]);
+    expect(lo.y - hi.y).toBeGreaterThan(20);
     await shot('monte-carlo');
+  }, 90_000);
 
-    await page.locator('#tab-stride').click();
+  it('animates the stride and draws the peak-force limit beside the friction limit', async () => {
+    await t.view('stride');
     await page.getByTestId('play').click();
     await page.waitForTimeout(1200);
     await page.getByTestId('pause').click();
@@ -237,7 +359,51 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     expect(Number(await scrub.inputValue())).toBe(at + 1);
     expect(await revision('figure-scene')).toBeGreaterThan(1);
     await shot('stride');
-  }, 120_000);
+    await expect.poll(() => revision('figure-forces')).toBeGreaterThan(0);
+    const option = await t.option('figure-forces');
+    expectLegendsWhole(option);
+    const line = (id: string) => (option.series as { id: string; data: number[][]; yAxisIndex: number }[]).find((x) => x.id === id);
+    // the demo study's limits (scenarios/demo-study.json): 900 N and μ 0.8
+    expect(line('force-limit')?.data.map((p) => p[1])).toEqual([900, 900]);
+    expect(line('force-limit')?.yAxisIndex).toBe(0);
+    expect(line('friction-limit')?.data.map((p) => p[1])).toEqual([0.8, 0.8]);
+    expect((option.yAxis as { max: number }[])[0].max).toBeGreaterThanOrEqual(900);
+    // two sub-plots, each a readable height, inside the figure
+    const box = (await page.getByTestId('figure-forces').boundingBox())!;
+    const [upper, lower] = option.grid as { top: number; height: number; bottom: number }[];
+    expect(upper.height).toBeGreaterThan(180);
+    expect(box.height - lower.bottom - lower.top).toBeGreaterThan(100);
+    await page.getByTestId('figure-forces').scrollIntoViewIfNeeded();
+    await shot('stride-forces');
+  });
+
+  it('saves a figure as SVG and PNG and a table as CSV, from the view', async () => {
+    await t.view('map');
+    await expect.poll(() => page.getByTestId('fixed-point').count(), { timeout: 20_000 }).toBeGreaterThan(0);
+    const svg = await t.download(() => page.getByTestId('figure-map-svg').click());
+    expect(svg.name).toBe('return-map.svg');
+    const text = svg.bytes.toString('utf8');
+    expect(text).toMatch(/^<svg[^>]+width="1280" height="800"/);
+    expect(text).toContain('Apex return map'); // the file keeps its title
+    expect(text).toContain('next apex height P(y) (m)');
+    const png = await t.download(() => page.getByTestId('figure-map-png').click());
+    expect(png.name).toBe('return-map.png');
+    // PNG signature and IHDR size (ISO/IEC 15948): 2560 × 1600, twice the file size
+    expect([...png.bytes.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect([png.bytes.readUInt32BE(16), png.bytes.readUInt32BE(20)]).toEqual([2560, 1600]);
+    const csv = await t.download(() => page.getByTestId('fixed-points-csv').click());
+    expect(csv.name).toBe('fixed-points.csv');
+    const lines = csv.bytes.toString('utf8').trim().split('\r\n');
+    expect(lines[0]).toBe('Apex (m),Speed (m/s),Slope,State');
+    // the exact numbers of the same analysis in Node
+    const node = await apexReturnMap(demoWithAttack(62));
+    expect(lines.length).toBe(1 + node.fixed_points.length);
+    const first = lines[1].split(',');
+    expect(Number(first[0])).toBeCloseTo(node.fixed_points[0].apex_height_m, 10);
+    expect(first[3]).toMatch(/stable|unstable/);
+    const strides = await t.view('stride').then(() => t.download(() => page.getByTestId('strides-csv').click()));
+    expect(strides.bytes.toString('utf8').split('\r\n')[0]).toBe('#,Attack (°),Contact (s),Peak F (N),|Fx/Fy|');
+  });
 
   it('replaces a worker that dies and keeps the work', async () => {
     await page.goto(`${preview.url}?diagnostics`);

@@ -129,6 +129,10 @@ export interface OptimizationLive {
 const SAVED_VERSION = 1;
 /** The live optimizer view is redrawn at most this often, ms. */
 const LIVE_REDRAW_MS = 250;
+/** A phase's label as a heading ("searching" → "Searching"). */
+export function phaseName(label: string): string {
+  return label ? label[0].toUpperCase() + label.slice(1) : label;
+}
 
 interface Saved {
   version: number;
@@ -655,11 +659,13 @@ export class Workbench {
     const id = ++jobId;
     const job: Job = { id, label, startedAt: Date.now(), done: null, total: null, detail: '', phase: '', cancelling: false, cancel: () => controller.abort() };
     this.jobs[name] = job;
+    // after a cancel, only a later phase (the held-out re-scoring of the best point so far) reports
+    let stoppedPhase: string | null = null;
+    controller.signal.addEventListener('abort', () => (stoppedPhase = this.jobs[name]?.id === id ? this.jobs[name].phase : ''));
     try {
       return await body(controller.signal, (done, total, detail, phase) => {
         const j = this.jobs[name];
-        // after a cancel, only a new phase (the held-out re-scoring of the best point so far) reports
-        if (!j || j.id !== id || (controller.signal.aborted && (phase === undefined || phase === j.phase))) return;
+        if (!j || j.id !== id || (controller.signal.aborted && (phase === undefined || phase === stoppedPhase))) return;
         j.done = done;
         j.total = total;
         if (detail !== undefined) j.detail = detail;
@@ -789,13 +795,15 @@ export class Workbench {
     const startedAt = Date.now();
     this.live = { startedAt, progress: null, history };
     // The page redraws the live figure at most every LIVE_REDRAW_MS: the main thread stays free.
+    // Each phase (screening the start points, the search, the held-out re-scoring) has its own
+    // progress, in its own unit, under its own name.
     let shown = 0;
     let latest: BrowserSearchProgress | null = null;
-    const show = (progress: (done: number, total: number, detail?: string) => void) => {
+    const show = (progress: (done: number, total: number, detail?: string, phase?: string) => void) => {
       if (!latest) return;
       shown = performance.now();
       this.live = { startedAt, progress: latest, history: history.map((h) => h.slice()) };
-      progress(latest.done, latest.total, latest.phase === 'search' ? `${latest.label}: ${latest.restartsDone} of ${latest.restarts} restarts done` : latest.label);
+      progress(latest.done, latest.total, latest.unit, phaseName(latest.label));
     };
     const result = await this.job('optimize', 'Optimization', async (signal, progress) => {
       const flush = setInterval(() => show(progress), LIVE_REDRAW_MS);
@@ -809,8 +817,9 @@ export class Workbench {
                 if (h.length < 5000) h.push({ evaluation: r.evaluations, bestScore: r.bestScore });
               }
             }
+            const phaseChanged = latest !== null && latest.phase !== p.phase;
             latest = p;
-            if (performance.now() - shown >= LIVE_REDRAW_MS) show(progress);
+            if (phaseChanged || performance.now() - shown >= LIVE_REDRAW_MS) show(progress);
           },
         });
       } finally {
