@@ -769,9 +769,9 @@ describe('pronk ... --plot FILE.svg', () => {
 
   it.each([
     ['map', ['--samples', '21', '--iterations', '5'], 'apex height y (m)'],
-    ['basin', ['--heights', '0.42:0.6:4', '--speeds', '2.5:4:4', '--strides', '5', '--workers', '1'], 'start forward speed (m/s)'],
-    ['robustness', ['--sigma', '0.01', '--rollouts', '20', '--strides', '5', '--workers', '1'], 'survival fraction (rollouts still running)'],
-    ['scan', ['--x', 'policy.angle.attack_at_apex_deg:62:68:3', '--y', 'policy.angle.rate_deg_per_s:0:60:2', '--samples', '21', '--workers', '1'], 'policy.angle.rate_deg_per_s'],
+    ['basin', ['--heights', '0.42:0.6:4', '--speeds', '2.5:4:4', '--strides', '5', '--workers', '1'], 'Start forward speed (m/s)'],
+    ['robustness', ['--sigma', '0.01', '--rollouts', '20', '--strides', '5', '--workers', '1'], 'survival (rollouts still running)'],
+    ['scan', ['--x', 'policy.angle.attack_at_apex_deg:62:68:3', '--y', 'policy.angle.rate_deg_per_s:0:60:2', '--samples', '21', '--workers', '1'], 'Retraction rate (°/s)'],
   ])('%s writes an SVG figure and says where', (command, args, axisName) => {
     const file = join(dir, `${command}.svg`);
     const r = pronk(command, ...args, '--json', '--plot', file);
@@ -789,7 +789,7 @@ describe('pronk ... --plot FILE.svg', () => {
     const file = join(dir, 'merged.svg');
     const r = pronk('merge', join(dir, 'part1.json'), join(dir, 'part2.json'), '--json', '--plot', file);
     expect(r.status, r.stderr).toBe(0);
-    expect(svgTexts(readFileSync(file, 'utf8'))).toContain('start apex height (m)');
+    expect(svgTexts(readFileSync(file, 'utf8'))).toContain('Start apex height (m)');
   });
 
   it.each([
