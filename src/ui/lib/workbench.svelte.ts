@@ -261,8 +261,14 @@ export class Workbench {
   readonly history: History;
   /** Bumped on every change of the history, for the buttons that read it. */
   historyRevision = $state(0);
-  undoLabel = $derived.by(() => (void this.historyRevision, this.history.past.at(-1)?.label ?? null));
-  redoLabel = $derived.by(() => (void this.historyRevision, this.history.future.at(-1)?.label ?? null));
+  undoLabel = $derived.by(() => {
+    void this.historyRevision;
+    return this.history.past.at(-1)?.label ?? null;
+  });
+  redoLabel = $derived.by(() => {
+    void this.historyRevision;
+    return this.history.future.at(-1)?.label ?? null;
+  });
   private grouped = false;
   private tickRecorded = false;
 
