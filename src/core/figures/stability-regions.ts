@@ -20,7 +20,8 @@ export interface StabilityRegionsFigureOptions {
 }
 
 function cellText(result: ScanResult, cell: ScanCell): string {
-  const where = `${parameterTitle(result.x.path)} = ${num(cell.x, 6)}<br/>${parameterTitle(result.y.path)} = ${num(cell.y, 6)}`;
+  const energy = Number.isFinite(cell.energy_J) ? `<br/>start energy ${num(cell.energy_J, 5)} J` : '';
+  const where = `${parameterTitle(result.x.path)} = ${num(cell.x, 6)}<br/>${parameterTitle(result.y.path)} = ${num(cell.y, 6)}${energy}`;
   if (cell.class === 'stable') {
     return `${where}<br/>stable fixed point at ${num(cell.stable_apex_height_m, 6)} m, slope ${num(cell.stable_slope, 4)}`;
   }
@@ -67,9 +68,12 @@ export function stabilityRegionsFigure(result: ScanResult, options: StabilityReg
     { type: 'piecewise', show: false, seriesIndex: 2, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [STABILITY_COLORS.none] } },
   ];
   const total = result.cells.length;
+  const range = result.cell_energy_range_J as [number, number] | undefined;
   const subtitle =
     `${result.counts.stable} stable, ${result.counts.unstable} unstable only, ${result.counts.none} without a fixed point, of ${total} cells; ` +
-    `return map at ${num(result.energy_J, 5)} J on flat ground\n` +
+    (range && range[0] !== range[1]
+      ? `each cell's return map at its own start energy, ${num(range[0], 5)} to ${num(range[1], 5)} J, on flat ground\n`
+      : `return map at ${num(result.energy_J, 5)} J on flat ground\n`) +
     `stable: the 1-D apex map has a fixed point with |P'(y*)| < 1 (shade: |slope| of the lowest stable one); x: ${result.x.path}, y: ${result.y.path}`;
   const names = series.map((s) => String(s.name));
   const head = header(frame, options.title ?? 'Stability regions', subtitle, names);
