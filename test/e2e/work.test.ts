@@ -48,7 +48,7 @@ describe.skipIf(!available)("the user's work in headless Chromium", () => {
     const text = await t.notices();
     expect(text).toContain('the editors are unchanged');
     // the scenario validator's reason (src/core/scenario.ts)
-    expect(text).toContain('body.mass_kg: expected a number > 0 (kg), found "heavy"');
+    expect(text).toContain('body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found "heavy"');
     expect(await page.getByTestId('ask').isVisible()).toBe(false);
     expect(await mass()).toBe('12');
     expect(await t.field('Attack angle at apex').inputValue()).toBe('64');

@@ -64,7 +64,7 @@ describe('scenario editor', () => {
     expect(summary).toMatch(/1 problem in the scenario/);
     expect(summary).toMatch(/Computations use the last valid scenario/);
     // the summary names the field by the label on screen, not by its path in the file
-    expect(summary).toContain('Mass: expected a number > 0 (kg), found -9');
+    expect(summary).toContain('Mass: expected a number from 1e-6 to 1e6 (kg), found -9');
     expect(summary).not.toContain('body.mass_kg');
   });
 
@@ -76,7 +76,7 @@ describe('scenario editor', () => {
     fireEvent.focus(mass);
     await Promise.resolve();
     expect(mass.getAttribute('aria-invalid')).toBe('true');
-    expect(describedBy(mass)).toBe('expected a number > 0 (kg), found -9');
+    expect(describedBy(mass)).toBe('expected a number from 1e-6 to 1e6 (kg), found -9');
   });
 
   it('marks both clamp fields when the lowest angle is above the steepest', async () => {

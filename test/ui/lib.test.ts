@@ -80,7 +80,7 @@ describe('opened files', () => {
     expect(heavy).toMatch(/^x\.json: not opened: it is not a scenario Pronk can run/);
     expect(heavy).toContain('the editors are unchanged');
     // the scenario validator's own words (src/core/scenario.ts)
-    expect(heavy).toContain('x.json: body.mass_kg: expected a number > 0 (kg), found "heavy"');
+    expect(heavy).toContain('x.json: body.mass_kg: expected a number from 1e-6 to 1e6 (kg), found "heavy"');
     expect(heavy).toMatch(/start: .*found missing/);
     expect(refuse('{"hello": 1}')).toMatch(/not a scenario/);
     expect(refuse('[1, 2]')).toMatch(/found \[1,2\]/);
