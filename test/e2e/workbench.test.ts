@@ -167,6 +167,9 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
       for (const { box } of boxes) expect(box.x + box.width).toBeLessThanOrEqual(panel.x + panel.width + 0.5);
     }
     await page.setViewportSize(SCREEN);
+    await page.getByTestId('optimizer-tables').scrollIntoViewIfNeeded();
+    await shot('optimizer-tables');
+    await page.locator('.panel').evaluate((el) => el.scrollTo(0, 0));
   });
 
   it('acknowledges a Cancel at once, re-scores the best point as its own phase, and counts the evaluations once', async () => {
@@ -195,8 +198,9 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     expect(await page.getByTestId('cancel-optimize').textContent()).toBe('Cancelling…');
     expect(await page.getByTestId('cancel-optimize').isDisabled()).toBe(true);
     // the held-out re-scoring of the best point so far: a phase of its own, with its own progress
-    await expect.poll(() => page.getByTestId('optimize-live').getAttribute('data-phase'), { timeout: 30_000 }).toBe('Re-scoring on the held-out seeds');
-    expect(await page.getByTestId('optimize-live').textContent()).toMatch(/Re-scoring on the held-out seeds: \d+ of \d+ steps/);
+    await expect.poll(() => page.getByTestId('optimize-live').getAttribute('data-phase'), { timeout: 30_000 }).toBe('holdout');
+    expect(await page.getByTestId('phase-optimize').textContent()).toBe('Re-scoring on held-out seeds');
+    expect((await page.getByTestId('optimize-live').textContent())?.replace(/\s+/g, ' ')).toMatch(/Re-scoring on held-out seeds: \d+ of \d+ rollouts/);
     await shot('optimizer-rescoring');
     const stoppedAt = Number(await page.getByTestId('optimize-evaluations').textContent());
     await expect.poll(() => page.getByTestId('optimize-outcome').textContent(), { timeout: 60_000 }).toMatch(/^\s*Cancelled/);

@@ -24,6 +24,7 @@ interface ConstraintLike {
   limit: number;
   margin: number | null;
   margin_percent?: number | null;
+  binding?: boolean;
 }
 
 export function limitLabel(name: string): { label: string; unit: string } {
@@ -37,8 +38,10 @@ export function marginRows(constraints: readonly ConstraintLike[]): MarginRow[] 
       typeof c.margin_percent === 'number' ? c.margin_percent : c.margin === null || c.limit === 0 ? null : (100 * c.margin) / Math.abs(c.limit);
     return { name: c.name, ...limitLabel(c.name), bound: c.bound, value: c.value, limit: c.limit, margin: c.margin, percent, binding: false };
   });
-  let binding: MarginRow | undefined;
-  for (const r of rows) if (r.percent !== null && (!binding || r.percent < (binding.percent as number))) binding = r;
+  // the result marks the binding limit itself; an older file's is found the same way: the smallest percentage
+  const marked = constraints.findIndex((c) => c.binding === true);
+  let binding: MarginRow | undefined = marked >= 0 ? rows[marked] : undefined;
+  if (!binding) for (const r of rows) if (r.percent !== null && (!binding || r.percent < (binding.percent as number))) binding = r;
   if (binding) binding.binding = true;
   return rows;
 }
