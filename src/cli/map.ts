@@ -8,7 +8,8 @@ import { InputError, describeFound } from '../core/errors.js';
 import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { describeAngle, describeStiffness } from './simulate.js';
@@ -51,6 +52,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
   const plot = await plotOption(values.plot);
   const file = positionals[0];
+  const [plotFile] = await checkOutputs([outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'map');
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { apexReturnMap } = await import('../core/analysis/return-map.js');
@@ -66,7 +68,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
     throw error;
   }
   io.stdout.write(json ? jsonText('map', result) : renderMap(scenario, result));
-  if (plot !== undefined) await writePlot(io.stderr, 'map', plot, result);
+  if (plotFile !== undefined) await writePlotFile(io, 'map', plotFile, result);
   return 0;
 }
 

@@ -17,7 +17,8 @@ import { type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -84,8 +85,9 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
   const spec = shardOption(values);
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
+  const plot = await plotOption(values.plot, { shard: spec !== undefined });
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'robustness');
   const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
@@ -111,15 +113,15 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
       total: canonical.rollouts,
       rows,
     });
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
 
   const rows = await robustnessRows(scenario, canonical, undefined, execution).finally(progress.done);
   const result = await finishRobustness(scenario, canonical, rows);
   const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
-  await writeText(io, out, text, 'robustness');
-  if (plot !== undefined) await writePlot(io.stderr, 'robustness', plot, result);
+  await writeText(io, outFile, text, 'robustness');
+  if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
   return 0;
 }
 
