@@ -14,7 +14,6 @@ import { MAX_POINTS, type GridRequest } from '../core/export/sample.js';
 import { fields, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
-import { writeText } from './shard-output.js';
 import { checkOutputs, writeOutputs } from './output-files.js';
 
 const SOURCE = 'pronk export';

@@ -1,7 +1,6 @@
 // `pronk optimize STUDY [--json] [--out RESULT] [--workers N]`: NLopt search over a study's free
 // parameters (multi-start over worker threads), held-out re-scoring, and the result file.
 
-import { writeFile } from 'node:fs/promises';
 import { InputError } from '../core/errors.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
