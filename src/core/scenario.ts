@@ -8,6 +8,8 @@ import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
 import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
+import { modelKindOf } from './models/kind.js';
+import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
@@ -60,14 +62,14 @@ function showNumber(x: number): string {
   return String(x);
 }
 
-const bounded = (bound: PhysicalBound, what?: string) => z.number({ error: boundText(bound, what) }).gte(bound.low).lte(bound.high);
+export const bounded = (bound: PhysicalBound, what?: string) => z.number({ error: boundText(bound, what) }).gte(bound.low).lte(bound.high);
 
 // ---------------------------------------------------------------------------------------------
 // Field schemas. Each carries its own "expected" text (with the unit), used for every way the
 // field can be wrong: missing, wrong type, non-finite (zod's number rejects NaN and ±Infinity) or
 // out of range.
 
-const integerIn = (low: number, high: number) =>
+export const integerIn = (low: number, high: number) =>
   z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
 const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
 
@@ -75,14 +77,14 @@ const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
 const ANGLE_EXPECTED = 'an angle in (0, 90] (deg from the horizontal)';
 const attackAngleDeg = z.number({ error: ANGLE_EXPECTED }).gt(0).lte(90);
 
-const text = (what: string) => z.string({ error: what });
+export const text = (what: string) => z.string({ error: what });
 
 // A strict object: an unknown key is an error (reported per key, with a "did you mean").
-function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
+export function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
   return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
 }
 
-function fieldList(shape: z.ZodRawShape): string {
+export function fieldList(shape: z.ZodRawShape): string {
   return Object.keys(shape).filter((name) => name !== '$schema').join(', ');
 }
 
@@ -277,7 +279,16 @@ export const scenarioSchema = strictObject(
   `a scenario object with ${fieldList(scenarioShape)}`,
 ).superRefine(checkStartAboveTouchdown, always);
 
-export type Scenario = Omit<z.output<typeof scenarioSchema>, '$schema'>;
+/**
+ * A validated scenario. The single-leg model's scenario has no "model" (or "slip"); other kinds
+ * (src/core/models/) add their fields here as optional ones, so every analysis keeps one type and
+ * narrows by `model` (src/core/models/kind.ts).
+ */
+export type Scenario = Omit<z.output<typeof scenarioSchema>, '$schema'> & {
+  model?: 'slip' | 'biped';
+  legs?: BipedLegs;
+  start: Partial<BipedStartExtras>;
+};
 export type Body = z.output<typeof bodySchema>;
 export type Start = z.output<typeof startSchema>;
 export type AnglePolicy = z.output<typeof anglePolicySchema>;
@@ -349,6 +360,12 @@ function showAbove(bound: number, found: number): string {
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
 export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
+  const kind = modelKindOf(value, options.source);
+  if (kind === 'biped') return parseBipedScenario(value, options);
+  if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
+    const { model: _slip, ...rest } = value as Record<string, unknown>;
+    value = rest; // "model": "slip" is the default, said out loud; the scenario is the same
+  }
   const result = validateWith(scenarioSchema, value);
   if (!result.success) throw new InputError(result.issues, options);
   const { $schema: _reference, ...scenario } = result.data;

@@ -232,7 +232,7 @@ export async function finishRobustness(
   checkRows(rows, o);
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
-  for (let code = 0; code < L.STATUS_COUNT; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  for (let code = 0; code < L.STATUS_COUNT_SLIP; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;
   let stridesTotal = 0;
