@@ -42,8 +42,8 @@ export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i
   return batch(models, inputs, rollouts, strides, records, summaries);
 }
 
-// Rollouts that runBatch steps together: 2 (the default: single-leg rollouts in pairs, one
-// f64x2 step for both) or 1 (one rollout after the other). The results are the same bytes.
+// Rollouts that runBatch steps together: 4 (the default: single-leg rollouts four at a time,
+// two f64x2 steps), 2 or 1 (one rollout after the other). The results are the same bytes.
 export function batchLanes(n: i32): void {
   setBatchLanes(n);
 }

@@ -3,11 +3,11 @@
 // one call. model: the read-only model block; everything mutable is in a
 // rollout's Roll block and its Stance block (stance.ts).
 //
-// A batch of single-leg rollouts runs two at a time: two lanes, each with its
-// own rollout, take their stance steps together (stepBoth: one f64x2 step for
-// both), and each does the rest (flight, events, records) with the code that a
-// lone rollout runs. A lane whose rollout ends takes the next one. Every
-// rollout's records and summary are the same bytes as when it runs alone.
+// A batch of single-leg rollouts runs four at a time: four lanes, each with its
+// own rollout, take their stance steps together (stepFour: two f64x2 chains),
+// and each does the rest (flight, events, records) with the code that a lone
+// rollout runs. A lane whose rollout ends takes the next one. Every rollout's
+// records and summary are the same bytes as when it runs alone.
 
 import {
   M_MASS, M_LEG_LENGTH, M_GRAVITY, M_DAMPING, M_RTOL, M_MODEL_KIND, MODEL_BIPED, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
@@ -33,11 +33,10 @@ import {
 } from "./flight";
 import { groundAt, getWalk, setWalk } from "./terrain";
 import {
-  Stance, STANCE0, STANCE1, useStance, releaseStance, stanceStart, stanceRun, stanceBeforeStep, stanceAfterStep,
-  stepBoth,
+  Stance, MAX_LANES, laneStance, useStance, releaseStance, stanceStart, stanceRun, stanceBeforeStep,
+  stanceAfterStep, stanceAfterLaneStep, stepTwo, stepFour,
 } from "./stance";
-import { step } from "./rk/dopri5";
-import { pairErrA, pairErrB } from "./rk/dopri5x2";
+import { laneErr0, laneErr1, laneErr2, laneErr3, unpackStages } from "./rk/dopri5x2";
 import {
   tracing, traceFlight, emit, traceStride, traceFootX, traceGround, traceTouchdownTime,
 } from "./trace";
@@ -111,22 +110,26 @@ export function initialStep(mass: f64, k: f64, speed: f64, leg: f64, rtol: f64):
 }
 
 const ROLL_BYTES: usize = 512; // >= offsetof<Roll>() (checked in initRolls)
-const ROLL_BLOCKS: usize = memory.data(512 * 2, 16);
+const ROLL_BLOCKS: usize = memory.data(512 * MAX_LANES, 16);
+
+// Roll block of lane i; its stance is lane i's Stance block.
+@inline function laneRoll(i: i32): Roll {
+  return changetype<Roll>(ROLL_BLOCKS + <usize>i * ROLL_BYTES);
+}
 const ROLL0: Roll = changetype<Roll>(ROLL_BLOCKS);
-const ROLL1: Roll = changetype<Roll>(ROLL_BLOCKS + ROLL_BYTES);
 
 function initRolls(): void {
   if (offsetof<Roll>() > ROLL_BYTES) unreachable();
-  ROLL0.stance = changetype<usize>(STANCE0);
-  ROLL1.stance = changetype<usize>(STANCE1);
+  for (let i = 0; i < MAX_LANES; i++) laneRoll(i).stance = changetype<usize>(laneStance(i));
 }
 initRolls();
 
-// Rollouts per batch step: 2 (two lanes stepped together) or 1 (one rollout after the other).
-let batchLanes: i32 = 2;
+// Rollouts stepped together in a batch: 4 (two f64x2 chains), 2 (one) or 1 (one rollout after
+// the other). The results are the same bytes.
+let batchLanes: i32 = 4;
 
 export function setBatchLanes(n: i32): void {
-  batchLanes = n == 1 ? 1 : 2;
+  batchLanes = n == 1 ? 1 : n == 2 ? 2 : 4;
 }
 
 function rolloutStart(R: Roll, model: usize, input: usize, strides: i32, rec0: usize, summary: usize): void {
@@ -426,7 +429,9 @@ function laneNext(R: Roll, status: i32): bool {
   return laneFill(R);
 }
 
-function runPairs(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
+// The batch on `lanes` (2 or 4) lanes: every live lane takes its step in one stepTwo or stepFour;
+// a lane with no rollout left computes a step on its stale state that nobody reads.
+function runLanes(lanes: i32, models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   pairModels = models;
   pairInputs = inputs;
   pairRollouts = rollouts;
@@ -435,32 +440,38 @@ function runPairs(models: usize, inputs: usize, rollouts: i32, strides: i32, rec
   pairSummaries = summaries;
   pairNext = 0;
   pairOk = 0;
-  const A = ROLL0;
-  const B = ROLL1;
-  const sa = changetype<Stance>(A.stance);
-  const sb = changetype<Stance>(B.stance);
-  let liveA = laneFill(A);
-  let liveB = laneFill(B);
-  while (liveA && liveB) {
-    let r = stanceBeforeStep(sa);
-    if (r >= 0) { liveA = laneNext(A, r); continue; }
-    r = stanceBeforeStep(sb);
-    if (r >= 0) { liveB = laneNext(B, r); continue; }
-    stepBoth(sa, sb);
+  let live = 0; // bit i: lane i has a stance in progress
+  for (let i = 0; i < lanes; i++) if (laneFill(laneRoll(i))) live |= 1 << i;
+  while (live != 0) {
+    // each live lane to a stance that takes a step, or out of work
+    for (let i = 0; i < lanes; i++) {
+      if ((live & (1 << i)) == 0) continue;
+      const R = laneRoll(i);
+      const st = changetype<Stance>(R.stance);
+      let r = stanceBeforeStep(st);
+      while (r >= 0) {
+        if (!laneNext(R, r)) { live &= ~(1 << i); break; }
+        r = stanceBeforeStep(st);
+      }
+    }
+    if (live == 0) break;
+    if (lanes == 4) stepFour(laneStance(0), laneStance(1), laneStance(2), laneStance(3));
+    else stepTwo(laneStance(0), laneStance(1));
     pairSteps++;
-    const errB = pairErrB;
-    useStance(sa);
-    r = stanceAfterStep(sa, pairErrA);
-    if (r >= 0) liveA = laneNext(A, r);
-    useStance(sb);
-    r = stanceAfterStep(sb, errB);
-    if (r >= 0) liveB = laneNext(B, r);
+    for (let i = 0; i < lanes; i++) {
+      if ((live & (1 << i)) == 0) continue;
+      const err = i == 0 ? laneErr0 : i == 1 ? laneErr1 : i == 2 ? laneErr2 : laneErr3;
+      const R = laneRoll(i);
+      const st = changetype<Stance>(R.stance);
+      let r = stanceAfterLaneStep(st, err);
+      if (r == -2) {
+        unpackStages(i, st.bufs);
+        useStance(st);
+        r = stanceAfterStep(st, err);
+      }
+      if (r >= 0 && !laneNext(R, r)) live &= ~(1 << i);
+    }
   }
-  // The last rollout alone.
-  const R = liveA ? A : B;
-  let live = liveA || liveB;
-  const st = changetype<Stance>(R.stance);
-  while (live) live = laneNext(R, stanceRun(st));
   releaseStance();
   return pairOk;
 }
@@ -471,13 +482,13 @@ function runPairs(models: usize, inputs: usize, rollouts: i32, strides: i32, rec
 // (rollouts x S_SIZE). Returns how many rollouts completed every stride.
 export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   pairSteps = 0;
-  let pairs = batchLanes == 2 && rollouts > 1;
+  let pairs = batchLanes > 1 && rollouts > 1;
   for (let r = 0; r < rollouts && pairs; r++) {
     const input = inputs + (<usize>r * I_SIZE << 3);
     const model = models + (<usize>get(input, I_MODEL) * M_SIZE << 3);
     if (<i32>mget(model, M_MODEL_KIND) == MODEL_BIPED) pairs = false;
   }
-  if (pairs) return runPairs(models, inputs, rollouts, strides, records, summaries);
+  if (pairs) return runLanes(rollouts >= 4 ? batchLanes : 2, models, inputs, rollouts, strides, records, summaries);
   let ok = 0;
   for (let r = 0; r < rollouts; r++) {
     const input = inputs + (<usize>r * I_SIZE << 3);

@@ -16,10 +16,10 @@ import {
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1, YN, YI,
   DEFAULT_BUFFERS, BUFFER_SET_BYTES, useBuffers, getLastH, setLastH, getErrOld, setErrOld,
-  getErrorDimension, setErrorDimensionValue,
+  getErrorDimension, setErrorDimensionValue, acceptFactorWith, controllerMemory, OFF_Y0, OFF_K1, OFF_K7, OFF_YN,
 } from "./rk/dopri5";
 import { rhs, setStance, setStiffness, setStanceParams } from "./rk/system";
-import { stepPair } from "./rk/dopri5x2";
+import { stepPair, stepQuad } from "./rk/dopri5x2";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
   eventValue, crosses, locate, refine, legForce,
@@ -81,13 +81,18 @@ const LOCATE_TOL: f64 = 1e-9;
   firstH: f64 = 0.0; // the first accepted step: a good start for the next stance
 }
 
+// Stances stepped together at most (rollout.ts).
+export const MAX_LANES = 4;
 const STANCE_BYTES: usize = 512; // >= offsetof<Stance>() (checked in initStances)
-const STANCE_BLOCKS: usize = memory.data(512 * 2, 16);
-const LANE_BUFFERS: usize = memory.data(<i32>BUFFER_SET_BYTES, 16);
+const STANCE_BLOCKS: usize = memory.data(512 * MAX_LANES, 16);
+const LANE_BUFFERS: usize = memory.data(<i32>BUFFER_SET_BYTES * (MAX_LANES - 1), 16);
 
-// Lane 0 runs on the default buffers (the one-rollout path and the biped share them), lane 1 on its own.
+// Stance block of lane i. Lane 0 runs on the default buffers (the one-rollout path and the
+// biped share them), the others each on their own.
+@inline export function laneStance(i: i32): Stance {
+  return changetype<Stance>(STANCE_BLOCKS + <usize>i * STANCE_BYTES);
+}
 export const STANCE0: Stance = changetype<Stance>(STANCE_BLOCKS);
-export const STANCE1: Stance = changetype<Stance>(STANCE_BLOCKS + STANCE_BYTES);
 
 // The stance whose buffers, controller memory and parameters the stepper holds now (0: none).
 let current: usize = 0;
@@ -95,7 +100,7 @@ let current: usize = 0;
 function initStances(): void {
   if (offsetof<Stance>() > STANCE_BYTES) unreachable();
   STANCE0.bufs = DEFAULT_BUFFERS;
-  STANCE1.bufs = LANE_BUFFERS;
+  for (let i = 1; i < MAX_LANES; i++) laneStance(i).bufs = LANE_BUFFERS + <usize>(i - 1) * BUFFER_SET_BYTES;
 }
 initStances();
 
@@ -347,6 +352,63 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
   return finish(s, STATUS_OK, tEvent);
 }
 
+// stanceAfterStep for a stance that does not hold the stepper, right after stepTwo/stepFour, in
+// the common cases: a rejected step, or an accepted one with no event in it, undamped and not
+// traced; the same state changes, made on the stance's own buffers and controller memory.
+// -2 (nothing changed) for the other cases: then useStance and stanceAfterStep.
+export function stanceAfterLaneStep(s: Stance, err: f64): i32 {
+  if (s.damped || tracing || current == changetype<usize>(s)) return -2;
+  const h = s.h;
+  if (isNaN(err)) {
+    s.rejected++;
+    if (++s.nonFinite > 40) return finish(s, STATUS_NON_FINITE, s.t);
+    s.h = h * 0.1;
+    s.afterReject = true;
+    return -1;
+  }
+  if (err > 1.0) {
+    s.rejected++;
+    s.h = h * rejectFactor(err);
+    s.afterReject = true;
+    return -1;
+  }
+  const b = s.bufs;
+  const leg = s.leg;
+  const npx = load<f64>(b + OFF_YN, 0);
+  const npy = load<f64>(b + OFF_YN, 8);
+  const nvx = load<f64>(b + OFF_YN, 16);
+  const nr = Math.sqrt(npx * npx + npy * npy);
+  const nrdot = (npx * nvx + npy * load<f64>(b + OFF_YN, 24)) / nr;
+  const nforce = s.k * (leg - nr) - s.c * nrdot;
+  const gl1 = nr - leg;
+  const gm1 = nrdot;
+  const gg1 = -npy;
+  const gb1 = -nvx;
+  if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) return -2;
+  if (crosses(EV_LIFTOFF, s.gl0, gl1) || crosses(EV_BODY_GROUND, s.gg0, gg1) || crosses(EV_BACKWARD, s.gb0, gb1)) return -2;
+  if (s.steps == 0) s.firstH = h;
+  s.steps++;
+  if (nforce > s.peakForce) s.peakForce = nforce;
+  const fr = Math.abs(npx / npy);
+  if (fr > s.peakFriction) s.peakFriction = fr;
+  s.t = s.t + h;
+  // advance(): Y0 <- YN, K1 <- K7
+  v128.store(b + OFF_Y0, v128.load(b + OFF_YN));
+  v128.store(b + OFF_Y0 + 16, v128.load(b + OFF_YN + 16));
+  store<f64>(b + OFF_Y0 + 32, load<f64>(b + OFF_YN + 32));
+  v128.store(b + OFF_K1, v128.load(b + OFF_K7));
+  v128.store(b + OFF_K1 + 16, v128.load(b + OFF_K7 + 16));
+  store<f64>(b + OFF_K1 + 32, load<f64>(b + OFF_K7 + 32));
+  s.gl0 = gl1;
+  s.gm0 = gm1;
+  s.gg0 = gg1;
+  s.gb0 = gb1;
+  s.h = h * acceptFactorWith(err, s.afterReject, s.errOld);
+  s.errOld = controllerMemory(err);
+  s.afterReject = false;
+  return -1;
+}
+
 function finish(s: Stance, status: i32, t: f64): i32 {
   s.contact = t;
   return status;
@@ -364,10 +426,10 @@ export function stanceRun(s: Stance): i32 {
 }
 
 // One step of each of two started stances at once (both must be before their step:
-// stanceBeforeStep gave -1): the same arithmetic as step() in each lane.
-// The error estimates are then pairErrA and pairErrB (rk/dopri5x2.ts).
-export function stepBoth(a: Stance, b: Stance): void {
-  // the stepper's state of the current stance into its block, the new step sizes into both
+// stanceBeforeStep gave -1): the same arithmetic as step() in each lane. The error estimates
+// are then laneErr0 and laneErr1 (rk/dopri5x2.ts).
+export function stepTwo(a: Stance, b: Stance): void {
+  // the stepper's state of the current stance into its block, the new step sizes into each
   releaseStance();
   stepPair(
     a.bufs, b.bufs, a.h, b.h, a.rtol, b.rtol, a.atol, b.atol, a.errDim, b.errDim,
@@ -375,6 +437,27 @@ export function stepBoth(a: Stance, b: Stance): void {
   );
   a.lastH = a.h;
   b.lastH = b.h;
+}
+
+// stepTwo for four stances; the error estimates are then laneErr0..laneErr3.
+export function stepFour(a: Stance, b: Stance, c: Stance, d: Stance): void {
+  releaseStance();
+  stepQuad(
+    a.bufs, b.bufs, c.bufs, d.bufs,
+    a.h, b.h, c.h, d.h,
+    a.rtol, b.rtol, c.rtol, d.rtol,
+    a.atol, b.atol, c.atol, d.atol,
+    a.errDim, b.errDim, c.errDim, d.errDim,
+    a.k, b.k, c.k, d.k,
+    a.leg, b.leg, c.leg, d.leg,
+    a.c, b.c, c.c, d.c,
+    a.invMass, b.invMass, c.invMass, d.invMass,
+    a.g, b.g, c.g, d.g,
+  );
+  a.lastH = a.h;
+  b.lastH = b.h;
+  c.lastH = c.h;
+  d.lastH = d.h;
 }
 
 // A whole stance on the default buffers (the one-rollout path): the results are in STANCE0.

@@ -1,5 +1,5 @@
-// runBatch steps single-leg rollouts two at a time (one f64x2 step for both lanes, the rest of
-// each rollout by the one-rollout code). The check value of every comparison here is the
+// runBatch steps single-leg rollouts four (or two) at a time (f64x2 steps, two lanes each, the
+// rest of each rollout by the one-rollout code). The check value of every comparison here is the
 // kernel's own one-lane path (batchLanes(1): one rollout after the other): WebAssembly has no
 // fused multiply-add, so the same IEEE operations in the same order round the same in an f64x2
 // lane as in scalar f64 (WebAssembly SIMD specification, f64x2 arithmetic is lane-wise IEEE 754),
@@ -97,7 +97,7 @@ function runWith(engine: Engine, n: number, req: BatchRequest): BatchResult {
   try {
     return engine.runBatch(req);
   } finally {
-    lanes(engine, 2);
+    lanes(engine, 4);
   }
 }
 
@@ -111,7 +111,7 @@ function expectSameBytes(got: BatchResult, want: BatchResult) {
 
 afterAll(() => closeWorkerPool());
 
-describe('runBatch in two lanes', () => {
+describe('runBatch in two and four lanes', () => {
   const models = allModels();
 
   it('every policy, stiffness and terrain kind, damped or not: the same bytes as one rollout after the other', async () => {
@@ -119,10 +119,12 @@ describe('runBatch in two lanes', () => {
     const req = { model: models, inputs: inputsFor(3 * models.length, models.length, 1), strides: 8, records: true };
     const one = runWith(engine, 1, req);
     expect(laneControl(engine).batchPairedSteps()).toBe(0);
-    const two = runWith(engine, 2, req);
-    // most steps were taken in pairs (about 20 per stride)
-    expect(laneControl(engine).batchPairedSteps()).toBeGreaterThan(10 * 3 * models.length);
-    expectSameBytes(two, one);
+    for (const n of [2, 4]) {
+      const many = runWith(engine, n, req);
+      // the steps were taken together (about 20 per stride; n lanes per step)
+      expect(laneControl(engine).batchPairedSteps()).toBeGreaterThan((10 * 3 * models.length) / n);
+      expectSameBytes(many, one);
+    }
     // The comparison means something: rollouts of every model ran, most of them every stride,
     // and some ended early (so a lane took over the next rollout mid-batch).
     const statuses = new Set<number>();
@@ -142,7 +144,9 @@ describe('runBatch in two lanes', () => {
     for (const rollouts of [1, 2, 3, 5, 16, 41]) {
       for (const records of [true, false]) {
         const req = { model: models, inputs: inputsFor(rollouts, models.length, 7 + rollouts), strides: 12, records };
-        expectSameBytes(runWith(engine, 2, req), runWith(engine, 1, req));
+        const one = runWith(engine, 1, req);
+        expectSameBytes(runWith(engine, 2, req), one);
+        expectSameBytes(runWith(engine, 4, req), one);
       }
     }
   });
@@ -150,7 +154,7 @@ describe('runBatch in two lanes', () => {
   it('a rollout paired with different partners gives the same bytes (its own result, alone or in any batch)', async () => {
     const engine = await loadEngine();
     const inputs = inputsFor(24, models.length, 99);
-    const all = runWith(engine, 2, { model: models, inputs, strides: 6, records: true });
+    const all = runWith(engine, 4, { model: models, inputs, strides: 6, records: true });
     for (const r of [0, 5, 11, 23]) {
       const alone = runWith(engine, 1, { model: models, inputs: inputs.slice(r * L.I_SIZE, (r + 1) * L.I_SIZE), strides: 6, records: true });
       expect(bytes(all.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!.equals(bytes(alone.summaries)!)).toBe(true);
@@ -166,6 +170,7 @@ describe('runBatch in two lanes', () => {
     const req = { model: [tight, soft, models[0]], inputs: inputsFor(30, 3, 5), strides: 5, records: true };
     const one = runWith(engine, 1, req);
     expectSameBytes(runWith(engine, 2, req), one);
+    expectSameBytes(runWith(engine, 4, req), one);
     const statuses = new Set(Array.from({ length: 30 }, (_, r) => one.summaries[r * L.S_SIZE + L.S_STATUS]));
     expect(statuses.has(L.STATUS_STEP_LIMIT)).toBe(true);
   });

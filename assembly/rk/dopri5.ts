@@ -321,15 +321,33 @@ export function setErrOld(e: f64): void {
   errOld = e;
 }
 
-// Factor for the next step after an accepted step with error err (<= 1).
-export function acceptFactor(err: f64, afterReject: bool): f64 {
+// Factor for the next step after an accepted step with error err (<= 1), the
+// controller's memory being `old`.
+@inline function acceptedFactor(err: f64, afterReject: bool, old: f64): f64 {
   const hi: f64 = afterReject ? 1.0 : 10.0;
   const e = err > 1e-12 ? err : 1e-12;
-  let f = 0.9 * roughPow(e, -EXPO) * roughPow(errOld, BETA);
-  errOld = err > 1e-4 ? err : 1e-4;
+  let f = 0.9 * roughPow(e, -EXPO) * roughPow(old, BETA);
   if (f < 0.2) f = 0.2;
   if (f > hi) f = hi;
   return f;
+}
+
+// The controller's memory after an accepted step with error err.
+@inline export function controllerMemory(err: f64): f64 {
+  return err > 1e-4 ? err : 1e-4;
+}
+
+// Factor for the next step after an accepted step with error err (<= 1).
+export function acceptFactor(err: f64, afterReject: bool): f64 {
+  const f = acceptedFactor(err, afterReject, errOld);
+  errOld = controllerMemory(err);
+  return f;
+}
+
+// acceptFactor for a controller whose memory the caller holds (old; the new one is
+// controllerMemory(err)): a stance stepped in a lane (stance.ts).
+export function acceptFactorWith(err: f64, afterReject: bool, old: f64): f64 {
+  return acceptedFactor(err, afterReject, old);
 }
 
 // Factor for the retry after a rejected step with error err (> 1).

@@ -1,22 +1,37 @@
-// Two Dormand–Prince 5(4) steps at once, one in each f64x2 lane: the stances of two
-// rollouts stepped together (stance.ts, rollout.ts). Each lane performs the same IEEE
-// operations in the same order as step() in dopri5.ts (WebAssembly has no fused
-// multiply-add, so f64x2 lanes round exactly as scalar f64), so a lane's result is the one
-// step() gives, bit for bit; only the work component's stage values, which no right-hand
-// side reads, are not formed. The two chains of square roots and divisions of a step are
-// latency-bound: two of them side by side take little longer than one.
+// Dormand–Prince 5(4) steps of several stances at once, one stance in each f64x2 lane:
+// the stances of rollouts stepped together (stance.ts, rollout.ts). Each lane performs the
+// same IEEE operations in the same order as step() in dopri5.ts (WebAssembly has no fused
+// multiply-add, and f64x2 arithmetic rounds each lane as scalar f64 does), so a lane's
+// result is the one step() gives, bit for bit; only the work component's stage values, which
+// no right-hand side reads, are not formed. A step is a latency-bound chain of square roots
+// and divisions: stepPair runs one f64x2 chain for two stances, stepQuad two independent
+// chains for four, and each costs little more than one scalar step.
 //
-// Generated from the tableau in dopri5.ts (the same constants, imported).
+// Generated from the tableau in dopri5.ts (the same constants, imported) and the stance
+// right-hand side in system.ts; change those and this together.
 
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
-  OFF_Y0, OFF_K1, OFF_K3, OFF_K4, OFF_K5, OFF_K6, OFF_K7, OFF_YN,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
 } from "./dopri5";
 
-// Error estimates of the last stepPair, as step() returns them (NaN: a stage was not finite).
-export let pairErrA: f64 = 0.0;
-export let pairErrB: f64 = 0.0;
+// K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
+// f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
+// (unpackStages), for the interpolant.
+const LANE_STAGES: usize = memory.data(2 * 4 * 5 * 16, 16);
+
+// The K3..K6 of lane number lane of the last stepPair or stepQuad into its buffers at p.
+export function unpackStages(lane: i32, p: usize): void {
+  const src = LANE_STAGES + <usize>(lane >> 1) * 320 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 20; j++) store<f64>(p + OFF_K3 + (j << 3), load<f64>(src + (j << 4)));
+}
+
+// Error estimates of the last stepPair (lanes 0, 1) or stepQuad (0..3), as step() returns them.
+export let laneErr0: f64 = 0.0;
+export let laneErr1: f64 = 0.0;
+export let laneErr2: f64 = 0.0;
+export let laneErr3: f64 = 0.0;
 
 @inline function gather(pa: usize, pb: usize, off: usize): v128 {
   return f64x2.replace_lane(f64x2.splat(load<f64>(pa + off)), 1, load<f64>(pb + off));
@@ -28,21 +43,26 @@ export let pairErrB: f64 = 0.0;
 @inline function pair(a: f64, b: f64): v128 {
   return f64x2.replace_lane(f64x2.splat(a), 1, b);
 }
+// step()'s result from a lane's error and its finiteness sum (0 only if every new component is finite).
+@inline function checked(err: f64, finite: f64): f64 {
+  return !isFinite(err) || finite != 0.0 ? NaN : err;
+}
 
-// One step of size ha (lane A: buffers at pa, stance parameters ...A) and hb (lane B) from
-// each lane's Y0 and K1; writes each lane's K3..K7 and YN (K7 = f(YN)) like step(), and the
-// error estimates into pairErrA, pairErrB. The stance right-hand side (system.ts) in each lane.
+// One step of size hA in lane A (stepper buffers at pA, stance parameters ...A) and hB in lane B,
+// from each lane's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
+// for unpackStages, and the error estimates into laneErr0, laneErr1.
 export function stepPair(
-  pa: usize, pb: usize, ha: f64, hb: f64, rtolA: f64, rtolB: f64, atolA: f64, atolB: f64,
-  dimA: f64, dimB: f64, kA: f64, kB: f64, legA: f64, legB: f64, cA: f64, cB: f64,
-  invMA: f64, invMB: f64, gA: f64, gB: f64,
+  pA: usize, pB: usize,
+  hA: f64, hB: f64,
+  rtolA: f64, rtolB: f64,
+  atolA: f64, atolB: f64,
+  dimA: f64, dimB: f64,
+  kA: f64, kB: f64,
+  legA: f64, legB: f64,
+  cA: f64, cB: f64,
+  invMA: f64, invMB: f64,
+  gA: f64, gB: f64,
 ): void {
-  const h = pair(ha, hb);
-  const K = pair(kA, kB);
-  const LEG = pair(legA, legB);
-  const C = pair(cA, cB);
-  const IM = pair(invMA, invMB);
-  const G = pair(gA, gB);
   const ONE = f64x2(1.0, 1.0);
   const vA21 = f64x2(A21, A21);
   const vA31 = f64x2(A31, A31);
@@ -70,202 +90,652 @@ export function stepPair(
   const vE5 = f64x2(E5, E5);
   const vE6 = f64x2(E6, E6);
   const vE7 = f64x2(E7, E7);
-  const y0 = gather(pa, pb, OFF_Y0 + 0);
-  const y1 = gather(pa, pb, OFF_Y0 + 8);
-  const y2 = gather(pa, pb, OFF_Y0 + 16);
-  const y3 = gather(pa, pb, OFF_Y0 + 24);
-  const y4 = gather(pa, pb, OFF_Y0 + 32);
-  const a0 = gather(pa, pb, OFF_K1 + 0);
-  const a1 = gather(pa, pb, OFF_K1 + 8);
-  const a2 = gather(pa, pb, OFF_K1 + 16);
-  const a3 = gather(pa, pb, OFF_K1 + 24);
-  const a4 = gather(pa, pb, OFF_K1 + 32);
-  let b0: v128, b1: v128, b2: v128, b3: v128, b4: v128;
+  const hX = pair(hA, hB);
+  const KX = pair(kA, kB);
+  const LEGX = pair(legA, legB);
+  const CX = pair(cA, cB);
+  const IMX = pair(invMA, invMB);
+  const GX = pair(gA, gB);
+  const y0X = gather(pA, pB, OFF_Y0 + 0);
+  const y1X = gather(pA, pB, OFF_Y0 + 8);
+  const y2X = gather(pA, pB, OFF_Y0 + 16);
+  const y3X = gather(pA, pB, OFF_Y0 + 24);
+  const y4X = gather(pA, pB, OFF_Y0 + 32);
+  const a0X = gather(pA, pB, OFF_K1 + 0);
+  const a1X = gather(pA, pB, OFF_K1 + 8);
+  const a2X = gather(pA, pB, OFF_K1 + 16);
+  const a3X = gather(pA, pB, OFF_K1 + 24);
+  const a4X = gather(pA, pB, OFF_K1 + 32);
+  let b0X: v128, b1X: v128, b2X: v128, b3X: v128, b4X: v128;
   {
-    const s0 = f64x2.add(y0, f64x2.mul(h, f64x2.mul(vA21, a0)));
-    const s1 = f64x2.add(y1, f64x2.mul(h, f64x2.mul(vA21, a1)));
-    const s2 = f64x2.add(y2, f64x2.mul(h, f64x2.mul(vA21, a2)));
-    const s3 = f64x2.add(y3, f64x2.mul(h, f64x2.mul(vA21, a3)));
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.mul(vA21, a0X)));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.mul(vA21, a1X)));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.mul(vA21, a2X)));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.mul(vA21, a3X)));
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
       const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
-      const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-      b0 = s2;
-      b1 = s3;
-      b2 = f64x2.mul(acc, s0);
-      b3 = f64x2.sub(f64x2.mul(acc, s1), G);
-      b4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      b0X = s2;
+      b1X = s3;
+      b2X = f64x2.mul(acc, s0);
+      b3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
     }
   }
-  let c0: v128, c1: v128, c2: v128, c3: v128, c4: v128;
+  let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
   {
-    const s0 = f64x2.add(y0, f64x2.mul(h, f64x2.add(f64x2.mul(vA31, a0), f64x2.mul(vA32, b0))));
-    const s1 = f64x2.add(y1, f64x2.mul(h, f64x2.add(f64x2.mul(vA31, a1), f64x2.mul(vA32, b1))));
-    const s2 = f64x2.add(y2, f64x2.mul(h, f64x2.add(f64x2.mul(vA31, a2), f64x2.mul(vA32, b2))));
-    const s3 = f64x2.add(y3, f64x2.mul(h, f64x2.add(f64x2.mul(vA31, a3), f64x2.mul(vA32, b3))));
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a0X), f64x2.mul(vA32, b0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a1X), f64x2.mul(vA32, b1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a2X), f64x2.mul(vA32, b2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a3X), f64x2.mul(vA32, b3X))));
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
       const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
-      const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-      c0 = s2;
-      c1 = s3;
-      c2 = f64x2.mul(acc, s0);
-      c3 = f64x2.sub(f64x2.mul(acc, s1), G);
-      c4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      c0X = s2;
+      c1X = s3;
+      c2X = f64x2.mul(acc, s0);
+      c3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
     }
   }
-  let d0: v128, d1: v128, d2: v128, d3: v128, d4: v128;
+  let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
   {
-    const s0 = f64x2.add(y0, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.mul(vA41, a0), f64x2.mul(vA42, b0)), f64x2.mul(vA43, c0))));
-    const s1 = f64x2.add(y1, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.mul(vA41, a1), f64x2.mul(vA42, b1)), f64x2.mul(vA43, c1))));
-    const s2 = f64x2.add(y2, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.mul(vA41, a2), f64x2.mul(vA42, b2)), f64x2.mul(vA43, c2))));
-    const s3 = f64x2.add(y3, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.mul(vA41, a3), f64x2.mul(vA42, b3)), f64x2.mul(vA43, c3))));
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a0X), f64x2.mul(vA42, b0X)), f64x2.mul(vA43, c0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a1X), f64x2.mul(vA42, b1X)), f64x2.mul(vA43, c1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a2X), f64x2.mul(vA42, b2X)), f64x2.mul(vA43, c2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a3X), f64x2.mul(vA42, b3X)), f64x2.mul(vA43, c3X))));
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
       const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
-      const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-      d0 = s2;
-      d1 = s3;
-      d2 = f64x2.mul(acc, s0);
-      d3 = f64x2.sub(f64x2.mul(acc, s1), G);
-      d4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      d0X = s2;
+      d1X = s3;
+      d2X = f64x2.mul(acc, s0);
+      d3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
     }
   }
-  let e0: v128, e1: v128, e2: v128, e3: v128, e4: v128;
+  let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
   {
-    const s0 = f64x2.add(y0, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a0), f64x2.mul(vA52, b0)), f64x2.mul(vA53, c0)), f64x2.mul(vA54, d0))));
-    const s1 = f64x2.add(y1, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a1), f64x2.mul(vA52, b1)), f64x2.mul(vA53, c1)), f64x2.mul(vA54, d1))));
-    const s2 = f64x2.add(y2, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a2), f64x2.mul(vA52, b2)), f64x2.mul(vA53, c2)), f64x2.mul(vA54, d2))));
-    const s3 = f64x2.add(y3, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a3), f64x2.mul(vA52, b3)), f64x2.mul(vA53, c3)), f64x2.mul(vA54, d3))));
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a0X), f64x2.mul(vA52, b0X)), f64x2.mul(vA53, c0X)), f64x2.mul(vA54, d0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a1X), f64x2.mul(vA52, b1X)), f64x2.mul(vA53, c1X)), f64x2.mul(vA54, d1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a2X), f64x2.mul(vA52, b2X)), f64x2.mul(vA53, c2X)), f64x2.mul(vA54, d2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a3X), f64x2.mul(vA52, b3X)), f64x2.mul(vA53, c3X)), f64x2.mul(vA54, d3X))));
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
       const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
-      const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-      e0 = s2;
-      e1 = s3;
-      e2 = f64x2.mul(acc, s0);
-      e3 = f64x2.sub(f64x2.mul(acc, s1), G);
-      e4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      e0X = s2;
+      e1X = s3;
+      e2X = f64x2.mul(acc, s0);
+      e3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
     }
   }
-  let f0: v128, f1: v128, f2: v128, f3: v128, f4: v128;
+  let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
   {
-    const s0 = f64x2.add(y0, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a0), f64x2.mul(vA62, b0)), f64x2.mul(vA63, c0)), f64x2.mul(vA64, d0)), f64x2.mul(vA65, e0))));
-    const s1 = f64x2.add(y1, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a1), f64x2.mul(vA62, b1)), f64x2.mul(vA63, c1)), f64x2.mul(vA64, d1)), f64x2.mul(vA65, e1))));
-    const s2 = f64x2.add(y2, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a2), f64x2.mul(vA62, b2)), f64x2.mul(vA63, c2)), f64x2.mul(vA64, d2)), f64x2.mul(vA65, e2))));
-    const s3 = f64x2.add(y3, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a3), f64x2.mul(vA62, b3)), f64x2.mul(vA63, c3)), f64x2.mul(vA64, d3)), f64x2.mul(vA65, e3))));
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a0X), f64x2.mul(vA62, b0X)), f64x2.mul(vA63, c0X)), f64x2.mul(vA64, d0X)), f64x2.mul(vA65, e0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a1X), f64x2.mul(vA62, b1X)), f64x2.mul(vA63, c1X)), f64x2.mul(vA64, d1X)), f64x2.mul(vA65, e1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a2X), f64x2.mul(vA62, b2X)), f64x2.mul(vA63, c2X)), f64x2.mul(vA64, d2X)), f64x2.mul(vA65, e2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a3X), f64x2.mul(vA62, b3X)), f64x2.mul(vA63, c3X)), f64x2.mul(vA64, d3X)), f64x2.mul(vA65, e3X))));
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
       const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
-      const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-      f0 = s2;
-      f1 = s3;
-      f2 = f64x2.mul(acc, s0);
-      f3 = f64x2.sub(f64x2.mul(acc, s1), G);
-      f4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      f0X = s2;
+      f1X = s3;
+      f2X = f64x2.mul(acc, s0);
+      f3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
     }
   }
-  const n0 = f64x2.add(y0, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0), f64x2.mul(vB3, c0)), f64x2.mul(vB4, d0)), f64x2.mul(vB5, e0)), f64x2.mul(vB6, f0))));
-  const n1 = f64x2.add(y1, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1), f64x2.mul(vB3, c1)), f64x2.mul(vB4, d1)), f64x2.mul(vB5, e1)), f64x2.mul(vB6, f1))));
-  const n2 = f64x2.add(y2, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2), f64x2.mul(vB3, c2)), f64x2.mul(vB4, d2)), f64x2.mul(vB5, e2)), f64x2.mul(vB6, f2))));
-  const n3 = f64x2.add(y3, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3), f64x2.mul(vB3, c3)), f64x2.mul(vB4, d3)), f64x2.mul(vB5, e3)), f64x2.mul(vB6, f3))));
-  const n4 = f64x2.add(y4, f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4), f64x2.mul(vB3, c4)), f64x2.mul(vB4, d4)), f64x2.mul(vB5, e4)), f64x2.mul(vB6, f4))));
-  let g0: v128, g1: v128, g2: v128, g3: v128, g4: v128;
+  const n0X = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0X), f64x2.mul(vB3, c0X)), f64x2.mul(vB4, d0X)), f64x2.mul(vB5, e0X)), f64x2.mul(vB6, f0X))));
+  const n1X = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1X), f64x2.mul(vB3, c1X)), f64x2.mul(vB4, d1X)), f64x2.mul(vB5, e1X)), f64x2.mul(vB6, f1X))));
+  const n2X = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2X), f64x2.mul(vB3, c2X)), f64x2.mul(vB4, d2X)), f64x2.mul(vB5, e2X)), f64x2.mul(vB6, f2X))));
+  const n3X = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3X), f64x2.mul(vB3, c3X)), f64x2.mul(vB4, d3X)), f64x2.mul(vB5, e3X)), f64x2.mul(vB6, f3X))));
+  const n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
+  let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0, n0), f64x2.mul(n1, n1)));
+    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
     const inv = f64x2.div(ONE, r);
-    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0, n2), f64x2.mul(n1, n3)), inv);
-    const force = f64x2.sub(f64x2.mul(K, f64x2.sub(LEG, r)), f64x2.mul(C, rdot));
-    const acc = f64x2.mul(f64x2.mul(force, inv), IM);
-    g0 = n2;
-    g1 = n3;
-    g2 = f64x2.mul(acc, n0);
-    g3 = f64x2.sub(f64x2.mul(acc, n1), G);
-    g4 = f64x2.mul(f64x2.mul(C, rdot), rdot);
+    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), inv);
+    const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+    const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+    g0X = n2X;
+    g1X = n3X;
+    g2X = f64x2.mul(acc, n0X);
+    g3X = f64x2.sub(f64x2.mul(acc, n1X), GX);
+    g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
   }
-  const RTOL = pair(rtolA, rtolB);
-  const ATOL = pair(atolA, atolB);
-  let sum = f64x2(0.0, 0.0);
-  let finite = f64x2(0.0, 0.0);
+  const RTOLX = pair(rtolA, rtolB);
+  const ATOLX = pair(atolA, atolB);
+  let sumX = f64x2(0.0, 0.0);
+  let finiteX = f64x2(0.0, 0.0);
   {
-    const e = f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a0), f64x2.mul(vE3, c0)), f64x2.mul(vE4, d0)), f64x2.mul(vE5, e0)), f64x2.mul(vE6, f0)), f64x2.mul(vE7, g0)));
-    const sc = f64x2.add(ATOL, f64x2.mul(RTOL, f64x2.max(f64x2.abs(y0), f64x2.abs(n0))));
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a0X), f64x2.mul(vE3, c0X)), f64x2.mul(vE4, d0X)), f64x2.mul(vE5, e0X)), f64x2.mul(vE6, f0X)), f64x2.mul(vE7, g0X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y0X), f64x2.abs(n0X))));
     const q = f64x2.div(e, sc);
-    sum = f64x2.add(sum, f64x2.mul(q, q));
-    finite = f64x2.add(finite, f64x2.sub(n0, n0));
-  }
-  {
-    const e = f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a1), f64x2.mul(vE3, c1)), f64x2.mul(vE4, d1)), f64x2.mul(vE5, e1)), f64x2.mul(vE6, f1)), f64x2.mul(vE7, g1)));
-    const sc = f64x2.add(ATOL, f64x2.mul(RTOL, f64x2.max(f64x2.abs(y1), f64x2.abs(n1))));
-    const q = f64x2.div(e, sc);
-    sum = f64x2.add(sum, f64x2.mul(q, q));
-    finite = f64x2.add(finite, f64x2.sub(n1, n1));
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n0X, n0X));
   }
   {
-    const e = f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a2), f64x2.mul(vE3, c2)), f64x2.mul(vE4, d2)), f64x2.mul(vE5, e2)), f64x2.mul(vE6, f2)), f64x2.mul(vE7, g2)));
-    const sc = f64x2.add(ATOL, f64x2.mul(RTOL, f64x2.max(f64x2.abs(y2), f64x2.abs(n2))));
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a1X), f64x2.mul(vE3, c1X)), f64x2.mul(vE4, d1X)), f64x2.mul(vE5, e1X)), f64x2.mul(vE6, f1X)), f64x2.mul(vE7, g1X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y1X), f64x2.abs(n1X))));
     const q = f64x2.div(e, sc);
-    sum = f64x2.add(sum, f64x2.mul(q, q));
-    finite = f64x2.add(finite, f64x2.sub(n2, n2));
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n1X, n1X));
   }
   {
-    const e = f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a3), f64x2.mul(vE3, c3)), f64x2.mul(vE4, d3)), f64x2.mul(vE5, e3)), f64x2.mul(vE6, f3)), f64x2.mul(vE7, g3)));
-    const sc = f64x2.add(ATOL, f64x2.mul(RTOL, f64x2.max(f64x2.abs(y3), f64x2.abs(n3))));
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a2X), f64x2.mul(vE3, c2X)), f64x2.mul(vE4, d2X)), f64x2.mul(vE5, e2X)), f64x2.mul(vE6, f2X)), f64x2.mul(vE7, g2X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y2X), f64x2.abs(n2X))));
     const q = f64x2.div(e, sc);
-    sum = f64x2.add(sum, f64x2.mul(q, q));
-    finite = f64x2.add(finite, f64x2.sub(n3, n3));
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n2X, n2X));
   }
   {
-    const e = f64x2.mul(h, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4), f64x2.mul(vE3, c4)), f64x2.mul(vE4, d4)), f64x2.mul(vE5, e4)), f64x2.mul(vE6, f4)), f64x2.mul(vE7, g4)));
-    const sc = f64x2.add(ATOL, f64x2.mul(RTOL, f64x2.max(f64x2.abs(y4), f64x2.abs(n4))));
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a3X), f64x2.mul(vE3, c3X)), f64x2.mul(vE4, d3X)), f64x2.mul(vE5, e3X)), f64x2.mul(vE6, f3X)), f64x2.mul(vE7, g3X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y3X), f64x2.abs(n3X))));
     const q = f64x2.div(e, sc);
-    sum = f64x2.add(sum, f64x2.mul(q, q));
-    finite = f64x2.add(finite, f64x2.sub(n4, n4));
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n3X, n3X));
   }
-  const err = f64x2.sqrt(f64x2.div(sum, pair(dimA, dimB)));
-  scatter(pa, pb, OFF_K3 + 0, c0);
-  scatter(pa, pb, OFF_K3 + 8, c1);
-  scatter(pa, pb, OFF_K3 + 16, c2);
-  scatter(pa, pb, OFF_K3 + 24, c3);
-  scatter(pa, pb, OFF_K3 + 32, c4);
-  scatter(pa, pb, OFF_K4 + 0, d0);
-  scatter(pa, pb, OFF_K4 + 8, d1);
-  scatter(pa, pb, OFF_K4 + 16, d2);
-  scatter(pa, pb, OFF_K4 + 24, d3);
-  scatter(pa, pb, OFF_K4 + 32, d4);
-  scatter(pa, pb, OFF_K5 + 0, e0);
-  scatter(pa, pb, OFF_K5 + 8, e1);
-  scatter(pa, pb, OFF_K5 + 16, e2);
-  scatter(pa, pb, OFF_K5 + 24, e3);
-  scatter(pa, pb, OFF_K5 + 32, e4);
-  scatter(pa, pb, OFF_K6 + 0, f0);
-  scatter(pa, pb, OFF_K6 + 8, f1);
-  scatter(pa, pb, OFF_K6 + 16, f2);
-  scatter(pa, pb, OFF_K6 + 24, f3);
-  scatter(pa, pb, OFF_K6 + 32, f4);
-  scatter(pa, pb, OFF_K7 + 0, g0);
-  scatter(pa, pb, OFF_K7 + 8, g1);
-  scatter(pa, pb, OFF_K7 + 16, g2);
-  scatter(pa, pb, OFF_K7 + 24, g3);
-  scatter(pa, pb, OFF_K7 + 32, g4);
-  scatter(pa, pb, OFF_YN + 0, n0);
-  scatter(pa, pb, OFF_YN + 8, n1);
-  scatter(pa, pb, OFF_YN + 16, n2);
-  scatter(pa, pb, OFF_YN + 24, n3);
-  scatter(pa, pb, OFF_YN + 32, n4);
-  const errA = f64x2.extract_lane(err, 0);
-  const errB = f64x2.extract_lane(err, 1);
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4X), f64x2.mul(vE3, c4X)), f64x2.mul(vE4, d4X)), f64x2.mul(vE5, e4X)), f64x2.mul(vE6, f4X)), f64x2.mul(vE7, g4X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y4X), f64x2.abs(n4X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n4X, n4X));
+  }
+  const errX = f64x2.sqrt(f64x2.div(sumX, pair(dimA, dimB)));
+  v128.store(LANE_STAGES + 0, c0X);
+  v128.store(LANE_STAGES + 16, c1X);
+  v128.store(LANE_STAGES + 32, c2X);
+  v128.store(LANE_STAGES + 48, c3X);
+  v128.store(LANE_STAGES + 64, c4X);
+  v128.store(LANE_STAGES + 80, d0X);
+  v128.store(LANE_STAGES + 96, d1X);
+  v128.store(LANE_STAGES + 112, d2X);
+  v128.store(LANE_STAGES + 128, d3X);
+  v128.store(LANE_STAGES + 144, d4X);
+  v128.store(LANE_STAGES + 160, e0X);
+  v128.store(LANE_STAGES + 176, e1X);
+  v128.store(LANE_STAGES + 192, e2X);
+  v128.store(LANE_STAGES + 208, e3X);
+  v128.store(LANE_STAGES + 224, e4X);
+  v128.store(LANE_STAGES + 240, f0X);
+  v128.store(LANE_STAGES + 256, f1X);
+  v128.store(LANE_STAGES + 272, f2X);
+  v128.store(LANE_STAGES + 288, f3X);
+  v128.store(LANE_STAGES + 304, f4X);
+  scatter(pA, pB, OFF_K7 + 0, g0X);
+  scatter(pA, pB, OFF_K7 + 8, g1X);
+  scatter(pA, pB, OFF_K7 + 16, g2X);
+  scatter(pA, pB, OFF_K7 + 24, g3X);
+  scatter(pA, pB, OFF_K7 + 32, g4X);
+  scatter(pA, pB, OFF_YN + 0, n0X);
+  scatter(pA, pB, OFF_YN + 8, n1X);
+  scatter(pA, pB, OFF_YN + 16, n2X);
+  scatter(pA, pB, OFF_YN + 24, n3X);
+  scatter(pA, pB, OFF_YN + 32, n4X);
   // A NaN or infinity anywhere in the stages shows up in err or in YN.
-  pairErrA = !isFinite(errA) || f64x2.extract_lane(finite, 0) != 0.0 ? NaN : errA;
-  pairErrB = !isFinite(errB) || f64x2.extract_lane(finite, 1) != 0.0 ? NaN : errB;
+  laneErr0 = checked(f64x2.extract_lane(errX, 0), f64x2.extract_lane(finiteX, 0));
+  laneErr1 = checked(f64x2.extract_lane(errX, 1), f64x2.extract_lane(finiteX, 1));
+}
+
+// stepPair for four stances, lanes A..D; errors into laneErr0..laneErr3.
+export function stepQuad(
+  pA: usize, pB: usize, pC: usize, pD: usize,
+  hA: f64, hB: f64, hC: f64, hD: f64,
+  rtolA: f64, rtolB: f64, rtolC: f64, rtolD: f64,
+  atolA: f64, atolB: f64, atolC: f64, atolD: f64,
+  dimA: f64, dimB: f64, dimC: f64, dimD: f64,
+  kA: f64, kB: f64, kC: f64, kD: f64,
+  legA: f64, legB: f64, legC: f64, legD: f64,
+  cA: f64, cB: f64, cC: f64, cD: f64,
+  invMA: f64, invMB: f64, invMC: f64, invMD: f64,
+  gA: f64, gB: f64, gC: f64, gD: f64,
+): void {
+  const ONE = f64x2(1.0, 1.0);
+  const vA21 = f64x2(A21, A21);
+  const vA31 = f64x2(A31, A31);
+  const vA32 = f64x2(A32, A32);
+  const vA41 = f64x2(A41, A41);
+  const vA42 = f64x2(A42, A42);
+  const vA43 = f64x2(A43, A43);
+  const vA51 = f64x2(A51, A51);
+  const vA52 = f64x2(A52, A52);
+  const vA53 = f64x2(A53, A53);
+  const vA54 = f64x2(A54, A54);
+  const vA61 = f64x2(A61, A61);
+  const vA62 = f64x2(A62, A62);
+  const vA63 = f64x2(A63, A63);
+  const vA64 = f64x2(A64, A64);
+  const vA65 = f64x2(A65, A65);
+  const vB1 = f64x2(B1, B1);
+  const vB3 = f64x2(B3, B3);
+  const vB4 = f64x2(B4, B4);
+  const vB5 = f64x2(B5, B5);
+  const vB6 = f64x2(B6, B6);
+  const vE1 = f64x2(E1, E1);
+  const vE3 = f64x2(E3, E3);
+  const vE4 = f64x2(E4, E4);
+  const vE5 = f64x2(E5, E5);
+  const vE6 = f64x2(E6, E6);
+  const vE7 = f64x2(E7, E7);
+  const hX = pair(hA, hB);
+  const KX = pair(kA, kB);
+  const LEGX = pair(legA, legB);
+  const CX = pair(cA, cB);
+  const IMX = pair(invMA, invMB);
+  const GX = pair(gA, gB);
+  const y0X = gather(pA, pB, OFF_Y0 + 0);
+  const y1X = gather(pA, pB, OFF_Y0 + 8);
+  const y2X = gather(pA, pB, OFF_Y0 + 16);
+  const y3X = gather(pA, pB, OFF_Y0 + 24);
+  const y4X = gather(pA, pB, OFF_Y0 + 32);
+  const a0X = gather(pA, pB, OFF_K1 + 0);
+  const a1X = gather(pA, pB, OFF_K1 + 8);
+  const a2X = gather(pA, pB, OFF_K1 + 16);
+  const a3X = gather(pA, pB, OFF_K1 + 24);
+  const a4X = gather(pA, pB, OFF_K1 + 32);
+  const hY = pair(hC, hD);
+  const KY = pair(kC, kD);
+  const LEGY = pair(legC, legD);
+  const CY = pair(cC, cD);
+  const IMY = pair(invMC, invMD);
+  const GY = pair(gC, gD);
+  const y0Y = gather(pC, pD, OFF_Y0 + 0);
+  const y1Y = gather(pC, pD, OFF_Y0 + 8);
+  const y2Y = gather(pC, pD, OFF_Y0 + 16);
+  const y3Y = gather(pC, pD, OFF_Y0 + 24);
+  const y4Y = gather(pC, pD, OFF_Y0 + 32);
+  const a0Y = gather(pC, pD, OFF_K1 + 0);
+  const a1Y = gather(pC, pD, OFF_K1 + 8);
+  const a2Y = gather(pC, pD, OFF_K1 + 16);
+  const a3Y = gather(pC, pD, OFF_K1 + 24);
+  const a4Y = gather(pC, pD, OFF_K1 + 32);
+  let b0X: v128, b1X: v128, b2X: v128, b3X: v128, b4X: v128;
+  {
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.mul(vA21, a0X)));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.mul(vA21, a1X)));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.mul(vA21, a2X)));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.mul(vA21, a3X)));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      b0X = s2;
+      b1X = s3;
+      b2X = f64x2.mul(acc, s0);
+      b3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    }
+  }
+  let b0Y: v128, b1Y: v128, b2Y: v128, b3Y: v128, b4Y: v128;
+  {
+    const s0 = f64x2.add(y0Y, f64x2.mul(hY, f64x2.mul(vA21, a0Y)));
+    const s1 = f64x2.add(y1Y, f64x2.mul(hY, f64x2.mul(vA21, a1Y)));
+    const s2 = f64x2.add(y2Y, f64x2.mul(hY, f64x2.mul(vA21, a2Y)));
+    const s3 = f64x2.add(y3Y, f64x2.mul(hY, f64x2.mul(vA21, a3Y)));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+      b0Y = s2;
+      b1Y = s3;
+      b2Y = f64x2.mul(acc, s0);
+      b3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
+      b4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    }
+  }
+  let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
+  {
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a0X), f64x2.mul(vA32, b0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a1X), f64x2.mul(vA32, b1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a2X), f64x2.mul(vA32, b2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.mul(vA31, a3X), f64x2.mul(vA32, b3X))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      c0X = s2;
+      c1X = s3;
+      c2X = f64x2.mul(acc, s0);
+      c3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    }
+  }
+  let c0Y: v128, c1Y: v128, c2Y: v128, c3Y: v128, c4Y: v128;
+  {
+    const s0 = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.mul(vA31, a0Y), f64x2.mul(vA32, b0Y))));
+    const s1 = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.mul(vA31, a1Y), f64x2.mul(vA32, b1Y))));
+    const s2 = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.mul(vA31, a2Y), f64x2.mul(vA32, b2Y))));
+    const s3 = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.mul(vA31, a3Y), f64x2.mul(vA32, b3Y))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+      c0Y = s2;
+      c1Y = s3;
+      c2Y = f64x2.mul(acc, s0);
+      c3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
+      c4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    }
+  }
+  let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
+  {
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a0X), f64x2.mul(vA42, b0X)), f64x2.mul(vA43, c0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a1X), f64x2.mul(vA42, b1X)), f64x2.mul(vA43, c1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a2X), f64x2.mul(vA42, b2X)), f64x2.mul(vA43, c2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.mul(vA41, a3X), f64x2.mul(vA42, b3X)), f64x2.mul(vA43, c3X))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      d0X = s2;
+      d1X = s3;
+      d2X = f64x2.mul(acc, s0);
+      d3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    }
+  }
+  let d0Y: v128, d1Y: v128, d2Y: v128, d3Y: v128, d4Y: v128;
+  {
+    const s0 = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.mul(vA41, a0Y), f64x2.mul(vA42, b0Y)), f64x2.mul(vA43, c0Y))));
+    const s1 = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.mul(vA41, a1Y), f64x2.mul(vA42, b1Y)), f64x2.mul(vA43, c1Y))));
+    const s2 = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.mul(vA41, a2Y), f64x2.mul(vA42, b2Y)), f64x2.mul(vA43, c2Y))));
+    const s3 = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.mul(vA41, a3Y), f64x2.mul(vA42, b3Y)), f64x2.mul(vA43, c3Y))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+      d0Y = s2;
+      d1Y = s3;
+      d2Y = f64x2.mul(acc, s0);
+      d3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
+      d4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    }
+  }
+  let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
+  {
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a0X), f64x2.mul(vA52, b0X)), f64x2.mul(vA53, c0X)), f64x2.mul(vA54, d0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a1X), f64x2.mul(vA52, b1X)), f64x2.mul(vA53, c1X)), f64x2.mul(vA54, d1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a2X), f64x2.mul(vA52, b2X)), f64x2.mul(vA53, c2X)), f64x2.mul(vA54, d2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a3X), f64x2.mul(vA52, b3X)), f64x2.mul(vA53, c3X)), f64x2.mul(vA54, d3X))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      e0X = s2;
+      e1X = s3;
+      e2X = f64x2.mul(acc, s0);
+      e3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    }
+  }
+  let e0Y: v128, e1Y: v128, e2Y: v128, e3Y: v128, e4Y: v128;
+  {
+    const s0 = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a0Y), f64x2.mul(vA52, b0Y)), f64x2.mul(vA53, c0Y)), f64x2.mul(vA54, d0Y))));
+    const s1 = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a1Y), f64x2.mul(vA52, b1Y)), f64x2.mul(vA53, c1Y)), f64x2.mul(vA54, d1Y))));
+    const s2 = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a2Y), f64x2.mul(vA52, b2Y)), f64x2.mul(vA53, c2Y)), f64x2.mul(vA54, d2Y))));
+    const s3 = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA51, a3Y), f64x2.mul(vA52, b3Y)), f64x2.mul(vA53, c3Y)), f64x2.mul(vA54, d3Y))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+      e0Y = s2;
+      e1Y = s3;
+      e2Y = f64x2.mul(acc, s0);
+      e3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
+      e4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    }
+  }
+  let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
+  {
+    const s0 = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a0X), f64x2.mul(vA62, b0X)), f64x2.mul(vA63, c0X)), f64x2.mul(vA64, d0X)), f64x2.mul(vA65, e0X))));
+    const s1 = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a1X), f64x2.mul(vA62, b1X)), f64x2.mul(vA63, c1X)), f64x2.mul(vA64, d1X)), f64x2.mul(vA65, e1X))));
+    const s2 = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a2X), f64x2.mul(vA62, b2X)), f64x2.mul(vA63, c2X)), f64x2.mul(vA64, d2X)), f64x2.mul(vA65, e2X))));
+    const s3 = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a3X), f64x2.mul(vA62, b3X)), f64x2.mul(vA63, c3X)), f64x2.mul(vA64, d3X)), f64x2.mul(vA65, e3X))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+      f0X = s2;
+      f1X = s3;
+      f2X = f64x2.mul(acc, s0);
+      f3X = f64x2.sub(f64x2.mul(acc, s1), GX);
+      f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    }
+  }
+  let f0Y: v128, f1Y: v128, f2Y: v128, f3Y: v128, f4Y: v128;
+  {
+    const s0 = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a0Y), f64x2.mul(vA62, b0Y)), f64x2.mul(vA63, c0Y)), f64x2.mul(vA64, d0Y)), f64x2.mul(vA65, e0Y))));
+    const s1 = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a1Y), f64x2.mul(vA62, b1Y)), f64x2.mul(vA63, c1Y)), f64x2.mul(vA64, d1Y)), f64x2.mul(vA65, e1Y))));
+    const s2 = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a2Y), f64x2.mul(vA62, b2Y)), f64x2.mul(vA63, c2Y)), f64x2.mul(vA64, d2Y)), f64x2.mul(vA65, e2Y))));
+    const s3 = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vA61, a3Y), f64x2.mul(vA62, b3Y)), f64x2.mul(vA63, c3Y)), f64x2.mul(vA64, d3Y)), f64x2.mul(vA65, e3Y))));
+    {
+      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
+      const inv = f64x2.div(ONE, r);
+      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+      const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+      f0Y = s2;
+      f1Y = s3;
+      f2Y = f64x2.mul(acc, s0);
+      f3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
+      f4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    }
+  }
+  const n0X = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0X), f64x2.mul(vB3, c0X)), f64x2.mul(vB4, d0X)), f64x2.mul(vB5, e0X)), f64x2.mul(vB6, f0X))));
+  const n1X = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1X), f64x2.mul(vB3, c1X)), f64x2.mul(vB4, d1X)), f64x2.mul(vB5, e1X)), f64x2.mul(vB6, f1X))));
+  const n2X = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2X), f64x2.mul(vB3, c2X)), f64x2.mul(vB4, d2X)), f64x2.mul(vB5, e2X)), f64x2.mul(vB6, f2X))));
+  const n3X = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3X), f64x2.mul(vB3, c3X)), f64x2.mul(vB4, d3X)), f64x2.mul(vB5, e3X)), f64x2.mul(vB6, f3X))));
+  const n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
+  const n0Y = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0Y), f64x2.mul(vB3, c0Y)), f64x2.mul(vB4, d0Y)), f64x2.mul(vB5, e0Y)), f64x2.mul(vB6, f0Y))));
+  const n1Y = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1Y), f64x2.mul(vB3, c1Y)), f64x2.mul(vB4, d1Y)), f64x2.mul(vB5, e1Y)), f64x2.mul(vB6, f1Y))));
+  const n2Y = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2Y), f64x2.mul(vB3, c2Y)), f64x2.mul(vB4, d2Y)), f64x2.mul(vB5, e2Y)), f64x2.mul(vB6, f2Y))));
+  const n3Y = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3Y), f64x2.mul(vB3, c3Y)), f64x2.mul(vB4, d3Y)), f64x2.mul(vB5, e3Y)), f64x2.mul(vB6, f3Y))));
+  const n4Y = f64x2.add(y4Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4Y), f64x2.mul(vB3, c4Y)), f64x2.mul(vB4, d4Y)), f64x2.mul(vB5, e4Y)), f64x2.mul(vB6, f4Y))));
+  let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
+  {
+    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
+    const inv = f64x2.div(ONE, r);
+    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), inv);
+    const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
+    const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
+    g0X = n2X;
+    g1X = n3X;
+    g2X = f64x2.mul(acc, n0X);
+    g3X = f64x2.sub(f64x2.mul(acc, n1X), GX);
+    g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+  }
+  let g0Y: v128, g1Y: v128, g2Y: v128, g3Y: v128, g4Y: v128;
+  {
+    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
+    const inv = f64x2.div(ONE, r);
+    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y)), inv);
+    const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
+    const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
+    g0Y = n2Y;
+    g1Y = n3Y;
+    g2Y = f64x2.mul(acc, n0Y);
+    g3Y = f64x2.sub(f64x2.mul(acc, n1Y), GY);
+    g4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+  }
+  const RTOLX = pair(rtolA, rtolB);
+  const ATOLX = pair(atolA, atolB);
+  let sumX = f64x2(0.0, 0.0);
+  let finiteX = f64x2(0.0, 0.0);
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a0X), f64x2.mul(vE3, c0X)), f64x2.mul(vE4, d0X)), f64x2.mul(vE5, e0X)), f64x2.mul(vE6, f0X)), f64x2.mul(vE7, g0X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y0X), f64x2.abs(n0X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n0X, n0X));
+  }
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a1X), f64x2.mul(vE3, c1X)), f64x2.mul(vE4, d1X)), f64x2.mul(vE5, e1X)), f64x2.mul(vE6, f1X)), f64x2.mul(vE7, g1X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y1X), f64x2.abs(n1X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n1X, n1X));
+  }
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a2X), f64x2.mul(vE3, c2X)), f64x2.mul(vE4, d2X)), f64x2.mul(vE5, e2X)), f64x2.mul(vE6, f2X)), f64x2.mul(vE7, g2X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y2X), f64x2.abs(n2X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n2X, n2X));
+  }
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a3X), f64x2.mul(vE3, c3X)), f64x2.mul(vE4, d3X)), f64x2.mul(vE5, e3X)), f64x2.mul(vE6, f3X)), f64x2.mul(vE7, g3X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y3X), f64x2.abs(n3X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n3X, n3X));
+  }
+  {
+    const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4X), f64x2.mul(vE3, c4X)), f64x2.mul(vE4, d4X)), f64x2.mul(vE5, e4X)), f64x2.mul(vE6, f4X)), f64x2.mul(vE7, g4X)));
+    const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y4X), f64x2.abs(n4X))));
+    const q = f64x2.div(e, sc);
+    sumX = f64x2.add(sumX, f64x2.mul(q, q));
+    finiteX = f64x2.add(finiteX, f64x2.sub(n4X, n4X));
+  }
+  const errX = f64x2.sqrt(f64x2.div(sumX, pair(dimA, dimB)));
+  const RTOLY = pair(rtolC, rtolD);
+  const ATOLY = pair(atolC, atolD);
+  let sumY = f64x2(0.0, 0.0);
+  let finiteY = f64x2(0.0, 0.0);
+  {
+    const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a0Y), f64x2.mul(vE3, c0Y)), f64x2.mul(vE4, d0Y)), f64x2.mul(vE5, e0Y)), f64x2.mul(vE6, f0Y)), f64x2.mul(vE7, g0Y)));
+    const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y0Y), f64x2.abs(n0Y))));
+    const q = f64x2.div(e, sc);
+    sumY = f64x2.add(sumY, f64x2.mul(q, q));
+    finiteY = f64x2.add(finiteY, f64x2.sub(n0Y, n0Y));
+  }
+  {
+    const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a1Y), f64x2.mul(vE3, c1Y)), f64x2.mul(vE4, d1Y)), f64x2.mul(vE5, e1Y)), f64x2.mul(vE6, f1Y)), f64x2.mul(vE7, g1Y)));
+    const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y1Y), f64x2.abs(n1Y))));
+    const q = f64x2.div(e, sc);
+    sumY = f64x2.add(sumY, f64x2.mul(q, q));
+    finiteY = f64x2.add(finiteY, f64x2.sub(n1Y, n1Y));
+  }
+  {
+    const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a2Y), f64x2.mul(vE3, c2Y)), f64x2.mul(vE4, d2Y)), f64x2.mul(vE5, e2Y)), f64x2.mul(vE6, f2Y)), f64x2.mul(vE7, g2Y)));
+    const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y2Y), f64x2.abs(n2Y))));
+    const q = f64x2.div(e, sc);
+    sumY = f64x2.add(sumY, f64x2.mul(q, q));
+    finiteY = f64x2.add(finiteY, f64x2.sub(n2Y, n2Y));
+  }
+  {
+    const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a3Y), f64x2.mul(vE3, c3Y)), f64x2.mul(vE4, d3Y)), f64x2.mul(vE5, e3Y)), f64x2.mul(vE6, f3Y)), f64x2.mul(vE7, g3Y)));
+    const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y3Y), f64x2.abs(n3Y))));
+    const q = f64x2.div(e, sc);
+    sumY = f64x2.add(sumY, f64x2.mul(q, q));
+    finiteY = f64x2.add(finiteY, f64x2.sub(n3Y, n3Y));
+  }
+  {
+    const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4Y), f64x2.mul(vE3, c4Y)), f64x2.mul(vE4, d4Y)), f64x2.mul(vE5, e4Y)), f64x2.mul(vE6, f4Y)), f64x2.mul(vE7, g4Y)));
+    const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y4Y), f64x2.abs(n4Y))));
+    const q = f64x2.div(e, sc);
+    sumY = f64x2.add(sumY, f64x2.mul(q, q));
+    finiteY = f64x2.add(finiteY, f64x2.sub(n4Y, n4Y));
+  }
+  const errY = f64x2.sqrt(f64x2.div(sumY, pair(dimC, dimD)));
+  v128.store(LANE_STAGES + 0, c0X);
+  v128.store(LANE_STAGES + 16, c1X);
+  v128.store(LANE_STAGES + 32, c2X);
+  v128.store(LANE_STAGES + 48, c3X);
+  v128.store(LANE_STAGES + 64, c4X);
+  v128.store(LANE_STAGES + 80, d0X);
+  v128.store(LANE_STAGES + 96, d1X);
+  v128.store(LANE_STAGES + 112, d2X);
+  v128.store(LANE_STAGES + 128, d3X);
+  v128.store(LANE_STAGES + 144, d4X);
+  v128.store(LANE_STAGES + 160, e0X);
+  v128.store(LANE_STAGES + 176, e1X);
+  v128.store(LANE_STAGES + 192, e2X);
+  v128.store(LANE_STAGES + 208, e3X);
+  v128.store(LANE_STAGES + 224, e4X);
+  v128.store(LANE_STAGES + 240, f0X);
+  v128.store(LANE_STAGES + 256, f1X);
+  v128.store(LANE_STAGES + 272, f2X);
+  v128.store(LANE_STAGES + 288, f3X);
+  v128.store(LANE_STAGES + 304, f4X);
+  scatter(pA, pB, OFF_K7 + 0, g0X);
+  scatter(pA, pB, OFF_K7 + 8, g1X);
+  scatter(pA, pB, OFF_K7 + 16, g2X);
+  scatter(pA, pB, OFF_K7 + 24, g3X);
+  scatter(pA, pB, OFF_K7 + 32, g4X);
+  scatter(pA, pB, OFF_YN + 0, n0X);
+  scatter(pA, pB, OFF_YN + 8, n1X);
+  scatter(pA, pB, OFF_YN + 16, n2X);
+  scatter(pA, pB, OFF_YN + 24, n3X);
+  scatter(pA, pB, OFF_YN + 32, n4X);
+  // A NaN or infinity anywhere in the stages shows up in err or in YN.
+  laneErr0 = checked(f64x2.extract_lane(errX, 0), f64x2.extract_lane(finiteX, 0));
+  laneErr1 = checked(f64x2.extract_lane(errX, 1), f64x2.extract_lane(finiteX, 1));
+  v128.store(LANE_STAGES + 320, c0Y);
+  v128.store(LANE_STAGES + 336, c1Y);
+  v128.store(LANE_STAGES + 352, c2Y);
+  v128.store(LANE_STAGES + 368, c3Y);
+  v128.store(LANE_STAGES + 384, c4Y);
+  v128.store(LANE_STAGES + 400, d0Y);
+  v128.store(LANE_STAGES + 416, d1Y);
+  v128.store(LANE_STAGES + 432, d2Y);
+  v128.store(LANE_STAGES + 448, d3Y);
+  v128.store(LANE_STAGES + 464, d4Y);
+  v128.store(LANE_STAGES + 480, e0Y);
+  v128.store(LANE_STAGES + 496, e1Y);
+  v128.store(LANE_STAGES + 512, e2Y);
+  v128.store(LANE_STAGES + 528, e3Y);
+  v128.store(LANE_STAGES + 544, e4Y);
+  v128.store(LANE_STAGES + 560, f0Y);
+  v128.store(LANE_STAGES + 576, f1Y);
+  v128.store(LANE_STAGES + 592, f2Y);
+  v128.store(LANE_STAGES + 608, f3Y);
+  v128.store(LANE_STAGES + 624, f4Y);
+  scatter(pC, pD, OFF_K7 + 0, g0Y);
+  scatter(pC, pD, OFF_K7 + 8, g1Y);
+  scatter(pC, pD, OFF_K7 + 16, g2Y);
+  scatter(pC, pD, OFF_K7 + 24, g3Y);
+  scatter(pC, pD, OFF_K7 + 32, g4Y);
+  scatter(pC, pD, OFF_YN + 0, n0Y);
+  scatter(pC, pD, OFF_YN + 8, n1Y);
+  scatter(pC, pD, OFF_YN + 16, n2Y);
+  scatter(pC, pD, OFF_YN + 24, n3Y);
+  scatter(pC, pD, OFF_YN + 32, n4Y);
+  // A NaN or infinity anywhere in the stages shows up in err or in YN.
+  laneErr2 = checked(f64x2.extract_lane(errY, 0), f64x2.extract_lane(finiteY, 0));
+  laneErr3 = checked(f64x2.extract_lane(errY, 1), f64x2.extract_lane(finiteY, 1));
 }

@@ -19,7 +19,7 @@ export interface KernelExports {
   ): number;
   terrainGaussian(seed: number, stream: number, index: number): number;
   integrateArenstorf(mu: number, x0: number, vy0: number, tEnd: number, rtol: number, atol: number, out: number): void;
-  /** Rollouts runBatch steps together: 2 (default) or 1; the results are the same bytes. */
+  /** Rollouts runBatch steps together: 4 (default), 2 or 1; the results are the same bytes. */
   batchLanes(n: number): void;
   /** Steps the last runBatch took in pairs. */
   batchPairedSteps(): number;
