@@ -16,13 +16,13 @@ import {
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1, YN, YI,
   DEFAULT_BUFFERS, BUFFER_SET_BYTES, useBuffers, getLastH, setLastH, getErrOld, setErrOld,
-  getErrorDimension, setErrorDimensionValue, acceptFactorWith, controllerMemory, OFF_Y0, OFF_K1, OFF_K7, OFF_YN,
+  getErrorDimension, setErrorDimensionValue, acceptFactorWith, dense2, di0, di1, controllerMemory, OFF_Y0, OFF_K1, OFF_K7, OFF_YN,
 } from "./rk/dopri5";
 import { rhs, setStance, setStiffness, setStanceParams } from "./rk/system";
 import { stepPair, stepQuad } from "./rk/dopri5x2";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
-  eventValue, crosses, locate, refine, legForce,
+  eventValue, crosses, locateStance, refine, legForce,
 } from "./rk/events";
 import { tracing, traceStance } from "./trace";
 
@@ -133,10 +133,8 @@ export function useStance(s: Stance): void {
   return Math.abs(load<f64>(p, 0) / py);
 }
 
-// Record what the located maximum compression tells us, from the state at p.
-function noteMaxCompression(s: Stance, p: usize, t: f64): void {
-  const px = load<f64>(p, 0);
-  const py = load<f64>(p, 8);
+// Record what the located maximum compression tells us, from the position (px, py) there.
+function noteMaxCompression(s: Stance, px: f64, py: f64, t: f64): void {
   const delta = s.leg - Math.sqrt(px * px + py * py);
   s.maxCompression = delta;
   s.maxCompressionTime = t;
@@ -254,34 +252,34 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
   let stopEvent = -1;
   let maxTheta: f64 = 2.0;
   if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) {
-    maxTheta = locate(EV_MAX_COMPRESSION, s.gm0, gm1, LOCATE_TOL);
+    maxTheta = locateStance(EV_MAX_COMPRESSION, s.gm0, gm1, LOCATE_TOL);
     if (split) {
       stopTheta = maxTheta;
       stopEvent = EV_MAX_COMPRESSION;
     }
   }
   if (crosses(EV_LIFTOFF, s.gl0, gl1)) {
-    const th = locate(EV_LIFTOFF, s.gl0, gl1, LOCATE_TOL);
+    const th = locateStance(EV_LIFTOFF, s.gl0, gl1, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_LIFTOFF; }
   }
   if (crosses(EV_BODY_GROUND, s.gg0, gg1)) {
-    const th = locate(EV_BODY_GROUND, s.gg0, gg1, LOCATE_TOL);
+    const th = locateStance(EV_BODY_GROUND, s.gg0, gg1, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_BODY_GROUND; }
   }
   if (crosses(EV_BACKWARD, s.gb0, gb1)) {
-    const th = locate(EV_BACKWARD, s.gb0, gb1, LOCATE_TOL);
+    const th = locateStance(EV_BACKWARD, s.gb0, gb1, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_BACKWARD; }
   }
   // Record-only events before the stop.
   if (!split && maxTheta <= stopTheta && maxTheta <= 1.0) {
-    dense(maxTheta);
-    noteMaxCompression(s, YI, t + maxTheta * h);
+    dense2(maxTheta); // dense(), the position only
+    noteMaxCompression(s, di0, di1, t + maxTheta * h);
     s.compressing = false;
   }
   if (damped) {
     const gf1 = eventValue(EV_FORCE_PEAK, YN);
     if (crosses(EV_FORCE_PEAK, s.gf0, gf1)) {
-      const th = locate(EV_FORCE_PEAK, s.gf0, gf1, LOCATE_TOL);
+      const th = locateStance(EV_FORCE_PEAK, s.gf0, gf1, LOCATE_TOL);
       if (th <= stopTheta) {
         dense(th);
         const f = legForce(YI);
@@ -321,7 +319,7 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
   tEvent += refine(stopEvent, s.timeScale);
 
   if (stopEvent == EV_MAX_COMPRESSION) {
-    noteMaxCompression(s, YN, tEvent);
+    noteMaxCompression(s, load<f64>(YN, 0), load<f64>(YN, 8), tEvent);
     s.compressing = false;
     setStiffness(s.ke);
     s.k = s.ke;

@@ -286,6 +286,45 @@ export function dense(theta: f64): void {
   }
 }
 
+// The first components of dense(theta), the same arithmetic, into di0..di3 instead of YI
+// (event location on the stance state, events.ts): dense2 the position, dense4 also the velocity.
+export let di0: f64 = 0.0;
+export let di1: f64 = 0.0;
+export let di2: f64 = 0.0;
+export let di3: f64 = 0.0;
+
+export function dense2(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = lastH;
+  di0 = ld(Y0, 0) + h * (q1 * ld(K1, 0) + q3 * ld(K3, 0) + q4 * ld(K4, 0) + q5 * ld(K5, 0) + q6 * ld(K6, 0) + q7 * ld(K7, 0));
+  di1 = ld(Y0, 1) + h * (q1 * ld(K1, 1) + q3 * ld(K3, 1) + q4 * ld(K4, 1) + q5 * ld(K5, 1) + q6 * ld(K6, 1) + q7 * ld(K7, 1));
+}
+
+export function dense4(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = lastH;
+  di0 = ld(Y0, 0) + h * (q1 * ld(K1, 0) + q3 * ld(K3, 0) + q4 * ld(K4, 0) + q5 * ld(K5, 0) + q6 * ld(K6, 0) + q7 * ld(K7, 0));
+  di1 = ld(Y0, 1) + h * (q1 * ld(K1, 1) + q3 * ld(K3, 1) + q4 * ld(K4, 1) + q5 * ld(K5, 1) + q6 * ld(K6, 1) + q7 * ld(K7, 1));
+  di2 = ld(Y0, 2) + h * (q1 * ld(K1, 2) + q3 * ld(K3, 2) + q4 * ld(K4, 2) + q5 * ld(K5, 2) + q6 * ld(K6, 2) + q7 * ld(K7, 2));
+  di3 = ld(Y0, 3) + h * (q1 * ld(K1, 3) + q3 * ld(K3, 3) + q4 * ld(K4, 3) + q5 * ld(K5, 3) + q6 * ld(K6, 3) + q7 * ld(K7, 3));
+}
+
 // Step-size control: the PI controller of Hairer, Nørsett, Wanner, Solving ODEs
 // I, 2nd ed., II.4 (eq. 4.13, after Gustafsson 1991), with the constants of their
 // DOPRI5 code: exponent 1/5 - 0.75 beta, beta = 0.04, safety 0.9, factors
