@@ -87,8 +87,10 @@ export const resultSchema = z.object(
     kind: z.enum(RESULT_KINDS, { error: `one of ${RESULT_KINDS.join(', ')}` }),
     // written since the result files said which model they describe; older files have none
     model: z.literal(MODEL_KIND, { error: `"${MODEL_KIND}" (the model of this Pronk version)` }).optional(),
-    scenario: z.unknown(),
-    policy: z.unknown(),
+    // validated below with the scenario's own messages; here only present (z.unknown() would say
+    // "Invalid input: expected nonoptional" for a missing one)
+    scenario: z.custom<unknown>((v) => v !== undefined, { error: 'the scenario the policy was made for (an object with body, start, policy, ...)' }),
+    policy: z.custom<unknown>((v) => v !== undefined, { error: 'the policy to export (an object with angle and stiffness)' }),
     constraints: z.array(constraintSchema, { error: 'an array of constraints { name, value, limit, margin }' }).optional(),
     provenance: provenanceSchema.optional(),
   },
