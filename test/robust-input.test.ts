@@ -1,9 +1,15 @@
 // Whatever the scenario, the validator either accepts it or throws an InputError naming a field,
 // and an accepted scenario always simulates to finite numbers (a fall is a status, never a NaN).
+import { spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../src/core/errors.js';
 import { demoScenario, parseScenario, type Scenario } from '../src/core/scenario.js';
 import { simulate } from '../src/core/simulate.js';
+
+const repoRoot = join(dirname(fileURLToPath(import.meta.url)), '..');
 
 // Small deterministic generator (mulberry32, common practice for test data).
 function rng(seed: number) {
@@ -233,4 +239,22 @@ describe('messages name the field, what was expected and what was found', () => 
     const accepted = await issuesOfAsync(() => stepTolerance(demo, { resolution_m: 4.5e-7, grid_m: 0.45, after: 1 }).then(() => undefined));
     expect(accepted).toEqual([]);
   }, 120_000);
+});
+
+describe.skipIf(!existsSync(join(repoRoot, 'dist', 'src', 'cli', 'main.js')))('command-line options outside the physical bounds name the option (built CLI)', () => {
+  const pronk = (...args: string[]) => spawnSync(process.execPath, [join(repoRoot, 'bin', 'pronk.js'), ...args], { encoding: 'utf8', env: { ...process.env, PRONK_DEBUG: '' } });
+
+  it.each([
+    // a rate range of +-1e308 deg/s once blamed --attack-range ("a range holding at least one valid policy, found none")
+    [
+      ['deadbeat', '--ground=-0.01:0.01', '--knots', '3', '--compare', '--rollouts', '4', '--rate-range=-1e308:1e308'],
+      'pronk deadbeat: --rate-range: expected two rates lo < hi, each a rate from -1e5 to 1e5 (deg/s), found [-1e+308,1e+308]',
+    ],
+    [['robustness', '--sigma', '0.01', '--target-height', '1e308'], 'pronk robustness: --target-height: expected an apex height from -1e4 to 1e4 (m), found "1e308"'],
+    [['basin', '--speeds', '0:1e308:2'], "pronk basin: --speeds: expected lo:hi:n with lo and hi each a forward speed from 0 to 1000 (m/s), as a scenario's start, found 0:1e+308:2"],
+  ])('%j', (args, message) => {
+    const r = pronk(...(args as string[]));
+    expect(r.status, r.stderr).toBe(2);
+    expect(r.stderr.split('\n').filter((line) => !line.includes('built-in demo'))).toEqual([message, '']);
+  });
 });
