@@ -14,8 +14,9 @@ import { startProgress, type Progress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption, parseNumberOption } from './robustness.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { checkOutputs, outputRequest, scenarioInput, type CheckedOutput } from './output-files.js';
 import { describeStiffness } from './simulate.js';
 
@@ -122,7 +123,7 @@ export const deadbeatCommand: Command = {
       valueName: 'LO:HI',
       description: 'with --compare: retraction rates searched, deg/s (default -1:3 x sqrt(g/L0) rad/s)',
     },
-    workers: { type: 'string', valueName: 'N', description: 'with --compare: worker threads (default: all cores); never changes the result' },
+    workers: { ...workersOption('the available cores'), description: `with --compare: ${workersOption('the available cores').description}` },
     out: { type: 'string', valueName: 'RESULT', description: 'also write a result file (JSON, format pronk-result) to RESULT' },
   },
   maxPositionals: 1,
@@ -182,7 +183,7 @@ export function parseDeadbeatFlags(values: ParsedCommandLine['values']): Flags {
   const seed = parseIntegerOption(values.seed, '--seed', 0, Number.MAX_SAFE_INTEGER, SOURCE);
   const after = parseIntegerOption(values.after, '--after', 1, MAX_STRIDES - 1, SOURCE);
   const rateRange = parseRangeOption(values['rate-range'], '--rate-range', 'two rates LO:HI in deg/s with LO < HI (e.g. --rate-range=-100:300)');
-  const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
+  const workers = parseWorkers(values, SOURCE);
   const out = values.out;
   if (out !== undefined && (typeof out !== 'string' || out.trim() === '')) {
     throw new InputError([{ path: '--out', expected: 'a file name', found: describeFound(out) }], { source: SOURCE });
@@ -279,8 +280,9 @@ async function deadbeatWithProgress(
     if (deadbeat.knots.length === 0) {
       comparisonSkipped = 'no knot was solved, so there is no table to compare';
     } else {
-      const { defaultWorkers, runBatchParallel } = await import('../worker/pool.js');
-      const workers = flags.workers ?? defaultWorkers();
+      const { runBatchParallel } = await import('../worker/pool.js');
+      // the screening runs every candidate policy of a grid at once: more items than any core count
+      const workers = workerThreads(io, 'deadbeat', flags.workers, { items: Number.POSITIVE_INFINITY, unit: 'rollouts' });
       progress.phase('comparing with the best fixed angle and retraction');
       const onProgress = (done: number, total: number) => progress.update(done, total);
       const runBatch = (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers, onProgress });

@@ -13,7 +13,7 @@ import { hex32 } from '../core/export/lookup.js';
 import { MAX_POINTS, type GridRequest } from '../core/export/sample.js';
 import { fields, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption, parseNumberOption } from './robustness.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
 import { checkOutputs, writeOutputs } from './output-files.js';
 
 const SOURCE = 'pronk export';

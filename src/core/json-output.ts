@@ -14,6 +14,8 @@
 //   section         the Poincaré section its strides run between and its states are taken on:
 //                   "flight_apex" for the single-leg runner (apex height and forward speed).
 
+import { jsonChunks } from './json-stream.js';
+
 export const JSON_FORMAT_VERSION = 1;
 export const MODEL_KIND = 'slip';
 export const SECTION = 'flight_apex';
@@ -37,4 +39,10 @@ export function described<T extends object>(command: JsonCommand, result: T): De
 /** The `--json` text: the described result, 2-space indented, with a final newline. */
 export function jsonText(command: JsonCommand, result: object): string {
   return `${JSON.stringify(described(command, result), null, 2)}\n`;
+}
+
+/** The `--json` text of jsonText in pieces (src/core/json-stream.ts), for outputs too large for one string. */
+export function* jsonTextChunks(command: JsonCommand, result: object): Generator<string> {
+  yield* jsonChunks(described(command, result));
+  yield '\n';
 }
