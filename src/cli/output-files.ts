@@ -192,6 +192,9 @@ async function checkOne(request: OutputRequest): Promise<{ output: CheckedOutput
   if (typeof path !== 'string' || path.trim() === '') {
     return { issue: { path: request.option, expected: 'a file name', found: describeFound(path) } };
   }
+  if (/[\\/]$/.test(path)) {
+    return { issue: refusal(request, 'a file name, not a directory', 'it ends in a path separator: a directory name') };
+  }
   const absolute = resolve(path);
   let entry: Awaited<ReturnType<typeof lstat>> | undefined;
   try {
