@@ -58,7 +58,7 @@ export function renderBipedSimulation(s: BipedScenario, result: BipedSimulationR
   const head = header(s, [
     [
       'start',
-      `${st.gait === 'walking' ? `single-support apex on the ${st.leg} leg, offset ${plain(st.offset_m)} m` : `flight apex, ${st.leg} leg lands first`}, ` +
+      `${st.gait === 'walking' ? `single-support apex on the ${st.leg} leg, offset ${plain(st.offset_m)} m` : st.leg === 'both' ? 'flight apex, both legs land together' : `flight apex, ${st.leg} leg lands first`}, ` +
         `height ${plain(st.apex_height_m)} m at ${plain(st.forward_speed_m_per_s)} m/s, energy ${fixed(result.energy_J, 2)} J; ${count(stridesRequested, 'stride')} requested`,
     ],
   ]);

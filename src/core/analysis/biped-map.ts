@@ -26,7 +26,7 @@ import { buildModel, STATUS_NAMES } from '../model.js';
 import {
   type BipedScenario,
   type Gait,
-  type LegName,
+  type StartLeg,
   type SectionState,
   legParameters,
   legsIdentical,
@@ -61,7 +61,7 @@ export interface BipedFixedPoint {
   height_m: number;
   speed_m_per_s: number;
   offset_m: number;
-  leg: LegName;
+  leg: StartLeg;
   /** Offset zero within the map's accuracy: the gait is time-reversal symmetric about the section. */
   symmetric: boolean;
   /** |F(z) - z| at the point, m. */
@@ -95,7 +95,7 @@ export interface BipedMapResult {
   domain: { height_low_m: number; height_high_m: number; offset_low_m: number; offset_high_m: number };
   scan: BipedScanSample[];
   fixed_points: BipedFixedPoint[];
-  staircase: { height_m: number; speed_m_per_s: number; offset_m: number; leg: LegName }[];
+  staircase: { height_m: number; speed_m_per_s: number; offset_m: number; leg: StartLeg }[];
   staircase_outcome: string;
   caution: string;
 }
@@ -338,7 +338,7 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
       height_m: r(L.R_NEXT_APEX_HEIGHT),
       speed_m_per_s: r(L.R_NEXT_APEX_SPEED),
       offset_m: walking ? r(L.R_NEXT_SECTION_OFFSET) : 0,
-      leg: r(L.R_NEXT_SECTION_LEG) === 1 ? 'right' : 'left',
+      leg: legOf(r(L.R_NEXT_SECTION_LEG)),
     });
   }
   const stairStatus = stair.summaries[L.S_STATUS];
@@ -355,6 +355,10 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
     staircase_outcome: iterations === 0 ? 'completed' : (STATUS_NAMES[stairStatus] ?? 'failed'),
     caution: SAFETY_CAUTION,
   };
+}
+
+function legOf(code: number): StartLeg {
+  return code === 1 ? 'right' : code === 2 ? 'both' : 'left';
 }
 
 // (A^T A + lambda diag(A^T A)) dz = -A^T G for 1 or 2 unknowns.

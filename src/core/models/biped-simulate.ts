@@ -8,7 +8,7 @@ import { loadEngine } from '../engine.js';
 import { buildModel, STATUS_NAMES, STATUS_TEXT } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import type { Outcome } from '../simulate.js';
-import { type BipedScenario, type Gait, type LegName, sectionEnergy, sectionInput, startState } from './biped.js';
+import { type BipedScenario, type Gait, type LegName, type StartLeg, sectionEnergy, sectionInput, startState } from './biped.js';
 
 export interface BipedSection {
   /** "single_support_apex" (walking) or "flight_apex" (running). */
@@ -17,8 +17,8 @@ export interface BipedSection {
   forward_speed_m_per_s: number;
   /** Body x minus stance foot x (single-support apex), null at a flight apex. */
   offset_m: number | null;
-  /** The stance leg (single-support apex) or the leg that lands next (flight apex). */
-  leg: LegName;
+  /** The stance leg (single-support apex) or the leg that lands next (flight apex; "both": together). */
+  leg: StartLeg;
   time_s: number;
   x_m: number;
 }
@@ -30,8 +30,11 @@ export interface PerLeg<T> {
 
 export interface BipedStride {
   index: number;
-  /** The gait the stride showed: walking (double support, no flight), running (flight, no double support). */
-  gait: Gait;
+  /**
+   * The gait the stride showed: walking (double support, no flight), running (flight, no double
+   * support), hopping (both legs land and leave together).
+   */
+  gait: Gait | 'hopping';
   touchdown_leg: LegName | null;
   section_to_touchdown_s: number | null;
   attack_deg: number | null;
@@ -128,7 +131,7 @@ export async function simulateBiped(
     const dsStart = r(L.R_DOUBLE_START);
     out.push({
       index: s,
-      gait: r(L.R_GAIT) === L.GAIT_RUNNING ? 'running' : 'walking',
+      gait: r(L.R_GAIT) === L.GAIT_RUNNING ? 'running' : r(L.R_GAIT) === L.GAIT_HOPPING ? 'hopping' : 'walking',
       touchdown_leg: landing < 0 ? null : legName(landing),
       section_to_touchdown_s: orNull(r(L.R_APEX_TO_TOUCHDOWN)),
       attack_deg: orNull(r(L.R_ATTACK) * RAD),
@@ -154,7 +157,7 @@ export async function simulateBiped(
       height_m: r(L.R_NEXT_APEX_HEIGHT),
       forward_speed_m_per_s: r(L.R_NEXT_APEX_SPEED),
       offset_m: kind === L.SECTION_SINGLE_SUPPORT_APEX ? r(L.R_NEXT_SECTION_OFFSET) : null,
-      leg: legName(r(L.R_NEXT_SECTION_LEG)),
+      leg: r(L.R_NEXT_SECTION_LEG) === 2 ? 'both' : legName(r(L.R_NEXT_SECTION_LEG)),
       time_s: r(L.R_NEXT_APEX_TIME),
       x_m: r(L.R_NEXT_APEX_X),
     });
