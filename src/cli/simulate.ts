@@ -11,8 +11,9 @@ import {
   type Terrain,
 } from '../core/scenario.js';
 import type { SimulationResult } from '../core/simulate.js';
-import { jsonText, modelHeader } from '../core/json-output.js';
+import { jsonTextChunks, modelHeader } from '../core/json-output.js';
 import type { BipedScenario } from '../core/models/biped.js';
+import { writeChunks } from './stream-output.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
@@ -50,7 +51,8 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
       ...(strides === undefined ? {} : { strides }),
       ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
     });
-    io.stdout.write(json ? jsonText('simulate', result, modelHeader(scenario)) : renderBipedSimulation(biped, result, strides ?? scenario.strides));
+    if (json) await writeChunks(io.stdout, jsonTextChunks('simulate', result, modelHeader(scenario)));
+    else io.stdout.write(renderBipedSimulation(biped, result, strides ?? scenario.strides));
     return 0;
   }
   // loaded on demand so that --help and input errors never wait for the WASM engine
@@ -60,7 +62,8 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
     ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
   });
   if (json) {
-    io.stdout.write(jsonText('simulate', result));
+    // in pieces: the documented 1 000 000 strides make about 1 GB of JSON, more than one string holds
+    await writeChunks(io.stdout, jsonTextChunks('simulate', result));
   } else {
     io.stdout.write(renderSimulation(scenario, result, { stridesRequested: strides ?? scenario.strides }));
   }

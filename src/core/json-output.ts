@@ -19,6 +19,8 @@
 
 import { kindOf, type ModelKind, type SectionName } from './models/kind.js';
 
+import { jsonChunks } from './json-stream.js';
+
 export const JSON_FORMAT_VERSION = 1;
 export const MODEL_KIND: ModelKind = 'slip';
 export const SECTION: SectionName = 'flight_apex';
@@ -62,4 +64,10 @@ export function described<T extends object>(command: JsonCommand, result: T, hea
 /** The `--json` text: the described result, 2-space indented, with a final newline. */
 export function jsonText(command: JsonCommand, result: object, header?: ModelHeader): string {
   return `${JSON.stringify(described(command, result, header), null, 2)}\n`;
+}
+
+/** The `--json` text of jsonText in pieces (src/core/json-stream.ts), for outputs too large for one string. */
+export function* jsonTextChunks(command: JsonCommand, result: object, header?: ModelHeader): Generator<string> {
+  yield* jsonChunks(described(command, result, header));
+  yield '\n';
 }

@@ -7,6 +7,7 @@ import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
+import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
 import { modelKindOf } from './models/kind.js';
 import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
@@ -45,6 +46,7 @@ export const BOUNDS = {
   rate_deg_per_s: { low: -1e5, high: 1e5, unit: 'deg/s' },
   time_since_apex_s: { low: 0, high: 1e6, unit: 's' },
   sigma_m: { low: 0, high: 1e3, unit: 'm' },
+  apex_accuracy_m: { low: 1e-15, high: 1e3, unit: 'm' },
 } as const satisfies Record<string, PhysicalBound>;
 
 /** Most knots in a time table, and most entries in a list of ground heights. */
@@ -250,6 +252,9 @@ const integratorShape = {
   relative_tolerance: tolerance.default(DEFAULT_RELATIVE_TOLERANCE),
   absolute_tolerance: tolerance.default(DEFAULT_ABSOLUTE_TOLERANCE),
   max_steps_per_stance: integerIn(10, 10_000_000).default(DEFAULT_MAX_STEPS_PER_STANCE),
+  // optional: the apex height accuracy of one stride, m; the two tolerances then follow from it
+  // and the gait (src/core/accuracy.ts) and the parsed scenario states them
+  apex_accuracy_m: bounded(BOUNDS.apex_accuracy_m).optional(),
 };
 export const integratorSchema = strictObject(integratorShape, `an object with ${fieldList(integratorShape)}`).prefault({});
 
@@ -364,7 +369,45 @@ export function parseScenario(value: unknown, options: { source?: string } = {})
   const result = validateWith(scenarioSchema, value);
   if (!result.success) throw new InputError(result.issues, options);
   const { $schema: _reference, ...scenario } = result.data;
+  if (scenario.integrator.apex_accuracy_m !== undefined) applyApexAccuracy(scenario, value, options);
   return scenario;
+}
+
+// integrator.apex_accuracy_m: the tolerances follow from it and the gait, written into the parsed
+// scenario so that everything reading or echoing it uses and states them. Tolerances given beside it
+// must be the ones it gives (a scenario echoed by a result file has them); others are refused.
+function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source?: string }): void {
+  const accuracy = scenario.integrator.apex_accuracy_m as number;
+  const { body, start } = scenario;
+  const gravity = body.gravity_m_per_s2 ?? STANDARD_GRAVITY_M_PER_S2;
+  const tolerances = tolerancesForApexAccuracy(accuracy, body.leg_length_m, start.forward_speed_m_per_s, gravity);
+  if (!tolerances) {
+    const finest = finestApexAccuracyM(gaitLengthScaleM(body.leg_length_m, start.forward_speed_m_per_s, gravity));
+    throw new InputError(
+      [
+        {
+          path: 'integrator.apex_accuracy_m',
+          expected: `at least ${showNumber(finest)} m for this leg length and start speed (the finest apex accuracy the integrator reaches)`,
+          found: describeFound(accuracy),
+        },
+      ],
+      options,
+    );
+  }
+  const issues: InputIssue[] = [];
+  for (const field of ['relative_tolerance', 'absolute_tolerance'] as const) {
+    const given = valueAt(value, ['integrator', field]);
+    if (given !== undefined && given !== tolerances[field]) {
+      issues.push({
+        path: `integrator.${field}`,
+        expected: `no value beside integrator.apex_accuracy_m (which gives ${tolerances[field]} here), or that value`,
+        found: describeFound(given),
+      });
+    }
+  }
+  if (issues.length) throw new InputError(issues, options);
+  scenario.integrator.relative_tolerance = tolerances.relative_tolerance;
+  scenario.integrator.absolute_tolerance = tolerances.absolute_tolerance;
 }
 
 // The built-in demo scenario (scenarios/demo.json), validated like any other.
