@@ -14,6 +14,7 @@
 import { z } from 'zod';
 import { InputError, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { parseScenario, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 import { contentHash } from '../version.js';
 import { MODEL_KIND } from '../json-output.js';
 import type { Policy } from './sample.js';
@@ -146,6 +147,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
   let scenario: Scenario | undefined;
   try {
     scenario = parseScenario(result.scenario);
+    requireKind(scenario, 'export', ['slip']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -192,6 +194,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
   const scenario = parseScenario(value, { source: file });
+  requireKind(scenario, 'export', ['slip'], file);
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',

@@ -72,6 +72,7 @@ import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
 import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -535,6 +536,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
   } else if (hasInline) {
     try {
       scenario = parseScenario(raw.scenario);
+      requireKind(scenario, 'optimize', ['slip']);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -849,6 +851,7 @@ export async function readStudyFile(path: string): Promise<Study> {
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
     scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
+    requireKind(scenarioFromFile, 'optimize', ['slip'], resolve(dirname(path), file));
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }
