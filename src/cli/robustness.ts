@@ -18,6 +18,7 @@ import { count, fields, fixed, plain, table, wrap, type Column } from './format.
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
@@ -102,6 +103,8 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   let range: { start: number; end: number } | undefined;
   try {
     range = spec === undefined ? undefined : shardRange(canonical.rollouts, spec);
+    // a row is an object of a status name and three numbers: under 256 bytes of JSON
+    if (spec !== undefined && range !== undefined) checkShardSize(canonical.rollouts, spec, range, 256, 'rollouts');
   } catch (error) {
     if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
     throw error;

@@ -13,7 +13,8 @@
 
 import { z } from 'zod';
 import { InputError, describeFound, formatPath, type InputIssue } from '../errors.js';
-import { parseJson, parseScenario, type Scenario } from '../scenario.js';
+import { parseScenario, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 import { contentHash } from '../version.js';
 import { MODEL_KIND } from '../json-output.js';
 import type { Policy } from './sample.js';
@@ -146,6 +147,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
   let scenario: Scenario | undefined;
   try {
     scenario = parseScenario(result.scenario);
+    requireKind(scenario, 'export', ['slip']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -192,6 +194,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
   const scenario = parseScenario(value, { source: file });
+  requireKind(scenario, 'export', ['slip'], file);
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',
@@ -211,17 +214,7 @@ export async function scenarioSource(value: unknown, file: string): Promise<Expo
 
 /** Reads RESULT or SCENARIO: a file with a `format` field is a result file, else a scenario. */
 export async function readExportSource(file: string): Promise<ExportSource> {
-  const { readFile } = await import('node:fs/promises');
-  let body: string;
-  try {
-    body = await readFile(file, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' ? 'permission denied' : String(error);
-    throw new InputError([{ path: '', expected: 'a readable result or scenario file', found: 'an unreadable file', message: `cannot read the file (${why})` }], {
-      source: file,
-    });
-  }
-  const value = parseJson(body, file);
+  const { readInputFile } = await import('../input-file.js');
+  const value = await readInputFile(file, 'result or scenario file');
   return looksLikeResult(value) ? parseResult(value, file) : scenarioSource(value, file);
 }
