@@ -120,11 +120,30 @@ function gaitScenario(random: Random): Record<string, Json> {
     terrain,
     strides: random.int(1, 12),
   };
+  // one field at an end of its accepted range (BOUNDS in src/core/scenario.ts): valid, but as far
+  // from a hopping robot as the validator lets it be
+  if (random.chance(0.15)) {
+    const [section, field, low, high] = random.pick(EDGE_FIELDS);
+    (scenario[section] as Record<string, Json>)[field] = random.chance(0.5) ? low : high;
+  }
+  // a start far above the leg (a long fall: the step-down search and the return map's range are bounded by the physics)
+  if (random.chance(0.04)) (scenario.start as Record<string, Json>).apex_height_m = random.pick([100, 1e4]) * base.leg * scale;
   if (random.chance(0.5)) scenario.integrator = { relative_tolerance: random.pick([1e-8, 1e-10, 1e-6]), absolute_tolerance: random.pick([1e-10, 1e-12]) * scale };
   if (random.chance(0.2)) scenario.name = random.pick(['Fennick-2 on the Orlov quarry ramp', 'ünïcode ☃ robot', '']);
   if (random.chance(0.05)) scenario.$schema = 'https://example.invalid/scenario.schema.json';
   return scenario;
 }
+
+// The scenario fields with a physical range, and its ends (BOUNDS in src/core/scenario.ts, README).
+const EDGE_FIELDS: [string, string, number, number][] = [
+  ['body', 'mass_kg', 1e-6, 1e6],
+  ['body', 'leg_length_m', 1e-4, 100],
+  ['body', 'leg_stiffness_N_per_m', 1e-3, 1e12],
+  ['body', 'gravity_m_per_s2', 1e-5, 1e3],
+  ['body', 'leg_damping_N_s_per_m', 0, 1e9],
+  ['start', 'apex_height_m', -1e4, 1e4],
+  ['start', 'forward_speed_m_per_s', 0, 1e3],
+];
 
 // Values past every kind of edge: the extremes of a double, zero and negative zero, tiny and huge,
 // off-by-one integers.
@@ -261,7 +280,7 @@ const POOLS: Record<string, OptionPool> = {
   terrain: { valid: ['random_walk', 'random_heights'], bad: ['flat', 'steps', '', 'RANDOM_WALK'] },
   'target-height': { valid: ['1', '0.45', '-3'], bad: NUMBER_BAD },
   'target-speed': { valid: ['5', '0'], bad: NUMBER_BAD },
-  ground: { valid: ['-0.02:0.01', '-0.05:0.02', '0:0.01'], bad: ['0.01:-0.02', 'x', '-1e308:1e308', '1:1', '-100:100', ':'] },
+  ground: { valid: ['-0.02:0.01', '-0.05:0.02', '0:0.01', '-1e4:1e4'], bad: ['0.01:-0.02', 'x', '-1e308:1e308', '1:1', '-100:100', ':'] },
   mode: { valid: ['angle', 'angle_and_stiffness'], bad: ['stiffness', '', 'ANGLE'] },
   target: { valid: ['absolute', 'above_ground_met'], bad: ['relative', ''] },
   knots: { valid: ['2', '3', '5'], bad: ['1', '0', 'x', '1e9', '100000000'] },
@@ -563,7 +582,7 @@ export function generateCase(seed: number, id: number): FuzzCase {
   if (command === 'map' && random.chance(0.2)) args.push('--approx');
   if (random.chance(0.6)) args.push('--json');
   if (breakOption) {
-    const choices = [...spec.required, ...spec.optional];
+    const choices = [...spec.required, ...spec.optional, ...(command === 'basin' || command === 'scan' || command === 'robustness' ? ['shard'] : [])];
     const name = random.chance(0.1) ? 'bogus' : random.pick(choices);
     if (name === 'bogus') {
       args.push(random.pick(['--bogus', '--strides', '-x', '--json=yes', '--shard=1/2', '--energy']));
@@ -573,7 +592,8 @@ export function generateCase(seed: number, id: number): FuzzCase {
       const at = args.findIndex((a) => a === `--${name}` || a.startsWith(`--${name}=`));
       const broken = option(random, name, true);
       if (at >= 0) args.splice(at, 1, ...broken);
-      else args.push(...broken);
+      else args.push(...broken, ...(name === 'shard' && !args.some((a) => a.startsWith('--out')) ? ['--out=@partial.json'] : []));
+      if (name === 'shard') outputs.push('partial.json');
       variants.push(`option: --${name}`);
     }
   }
