@@ -12,7 +12,8 @@ import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { parseIntegerOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -75,9 +76,10 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const workers = parseWorkers(values, SOURCE);
   const shard = shardOption(values);
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { shard: shard !== undefined, out });
-
+  const plot = await plotOption(values.plot, { shard: shard !== undefined });
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
+
   const scenario = await scenarioArgument(file, io, 'basin');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
@@ -103,12 +105,12 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   if (shard) {
     const options = run as unknown as Record<string, unknown>;
     const partial = await makePartial({ command: 'basin', scenario, options, spec: shard, range, total, rows });
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
   const result = await core.finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
-  await writeText(io, out, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
-  if (plot !== undefined) await writePlot(io.stderr, 'basin', plot, result);
+  await writeText(io, outFile, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
+  if (plotFile !== undefined) await writePlotFile(io, 'basin', plotFile, result);
   return 0;
 }
 

@@ -17,6 +17,7 @@ import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { checkOutputs, outputRequest, scenarioInput, type CheckedOutput } from './output-files.js';
 import { describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -236,10 +237,11 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
   const json = values.json === true;
   const flags = parseDeadbeatFlags(values);
   const file = positionals[0];
+  const [outFile] = await checkOutputs([outputRequest('--out', flags.out)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'deadbeat');
   const progress = startProgress(io, 'deadbeat', { unit: 'rollouts' });
   try {
-    return await deadbeatWithProgress(scenario, flags, json, io, progress);
+    return await deadbeatWithProgress(scenario, flags, outFile, json, io, progress);
   } finally {
     progress.done();
   }
@@ -248,6 +250,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
 async function deadbeatWithProgress(
   scenario: Scenario,
   flags: Flags,
+  outFile: CheckedOutput | undefined,
   json: boolean,
   io: CliIO,
   progress: Progress,
@@ -295,7 +298,7 @@ async function deadbeatWithProgress(
   const options = { synthesis: flags.synthesis, after: flags.after, comparison: flags.comparison };
   if (flags.out !== undefined) {
     const result = await deadbeatResult(scenario, deadbeat, { stepCheck, comparison }, options);
-    await writeText(io, flags.out, `${JSON.stringify(result, null, 2)}\n`, 'deadbeat');
+    await writeText(io, outFile, `${JSON.stringify(result, null, 2)}\n`, 'deadbeat');
   }
   if (json) {
     const output = {

@@ -1,11 +1,11 @@
 // `pronk optimize STUDY [--json] [--out RESULT] [--workers N]`: NLopt search over a study's free
 // parameters (multi-start over worker threads), held-out re-scoring, and the result file.
 
-import { writeFile } from 'node:fs/promises';
 import { InputError } from '../core/errors.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, writeOutput, writePlotFile } from './output-files.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
 import { startProgress, status } from './progress.js';
@@ -50,9 +50,19 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   if (out !== undefined && out.trim() === '') {
     throw new InputError([{ path: '--out', expected: 'a file path', found: '""' }], { source: SOURCE });
   }
-  const plot = await plotOption(values.plot, { out });
+  const plot = await plotOption(values.plot);
   const study = await readStudyFile(file);
-  const { optimizeStudy, usefulWorkers } = await import('../worker/node-optimize.js');
+  // the study and the scenario file it names are inputs: no output may replace them
+  const { dirname, resolve } = await import('node:path');
+  const [outFile, plotFile] = await checkOutputs(
+    [outputRequest('--out', out), outputRequest('--plot', plot)],
+    [
+      { path: file, what: 'the study file' },
+      study.scenario_source === 'inline' ? undefined : { path: resolve(dirname(file), study.scenario_source), what: "the study's scenario file" },
+    ],
+    { source: SOURCE },
+  );
+    const { optimizeStudy, usefulWorkers } = await import('../worker/node-optimize.js');
   // restarts differ in length, so up to two threads per core keep the cores busy to the end
   const threads = workerThreads(io, 'optimize', workers, { items: usefulWorkers(study), unit: 'restarts', perCore: 2 });
   // Ctrl-C once: stop the search and keep the best point; twice: skip the held-out re-scoring too;
@@ -97,19 +107,12 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
     progress.done();
   }
   const text = `${JSON.stringify(result, null, 2)}\n`;
-  if (out !== undefined) {
-    try {
-      await writeFile(out, text);
-    } catch (error) {
-      throw new InputError(
-        [{ path: '--out', expected: 'a writable file path', found: `${JSON.stringify(out)} (${(error as Error).message})` }],
-        { source: SOURCE },
-      );
-    }
-    status(io, 'optimize', `result written to ${out}${result.cancelled ? ' (marked cancelled)' : ''}`);
+  if (outFile !== undefined) {
+    await writeOutput(outFile, text, { source: SOURCE });
+    status(io, 'optimize', `result written to ${outFile.path}${result.cancelled ? ' (marked cancelled)' : ''}`);
   }
   io.stdout.write(json ? text : renderOptimization(study, result));
-  if (plot !== undefined) await writePlot(io.stderr, 'optimize', plot, result);
+  if (plotFile !== undefined) await writePlotFile(io, 'optimize', plotFile, result);
   return result.cancelled ? EXIT_CANCELLED : 0;
 }
 

@@ -13,14 +13,15 @@ import type {
   RobustnessResult,
 } from '../core/analysis/robustness.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { type Scenario } from '../core/scenario.js';
+import { BOUNDS, boundText, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -87,8 +88,9 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const workers = parseWorkers(values, SOURCE);
   const spec = shardOption(values);
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
+  const plot = await plotOption(values.plot, { shard: spec !== undefined });
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'robustness');
   const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
@@ -123,21 +125,22 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
       total: canonical.rollouts,
       rows,
     });
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
 
   const rows = await robustnessRows(scenario, canonical, undefined, execution).finally(progress.done);
   const result = await finishRobustness(scenario, canonical, rows);
   const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
-  await writeText(io, out, text, 'robustness');
-  if (plot !== undefined) await writePlot(io.stderr, 'robustness', plot, result);
+  await writeText(io, outFile, text, 'robustness');
+  if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
   return 0;
 }
 
 /** The analysis options from the command line (checked for syntax here, for range by the core). */
 export function parseRobustnessFlags(values: ParsedCommandLine['values']): RobustnessOptions {
-  const sigma = parseNumberOption(values.sigma, '--sigma', 'a finite number >= 0 (m)', SOURCE, (v) => v >= 0);
+  const within = (b: { low: number; high: number }) => (v: number) => v >= b.low && v <= b.high;
+  const sigma = parseNumberOption(values.sigma, '--sigma', boundText(BOUNDS.sigma_m, 'a standard deviation'), SOURCE, within(BOUNDS.sigma_m));
   if (sigma === undefined) {
     throw new InputError([{ path: '--sigma', expected: 'a terrain standard deviation in metres (required)', found: 'missing' }], { source: SOURCE });
   }
@@ -145,8 +148,14 @@ export function parseRobustnessFlags(values: ParsedCommandLine['values']): Robus
   if (terrain !== undefined && terrain !== 'random_walk' && terrain !== 'random_heights') {
     throw new InputError([{ path: '--terrain', expected: 'random_walk or random_heights', found: describeFound(terrain) }], { source: SOURCE });
   }
-  const targetHeight = parseNumberOption(values['target-height'], '--target-height', 'a finite number (m)', SOURCE);
-  const targetSpeed = parseNumberOption(values['target-speed'], '--target-speed', 'a finite number (m/s)', SOURCE);
+  const targetHeight = parseNumberOption(values['target-height'], '--target-height', boundText(BOUNDS.height_m, 'an apex height'), SOURCE, within(BOUNDS.height_m));
+  const targetSpeed = parseNumberOption(
+    values['target-speed'],
+    '--target-speed',
+    boundText(BOUNDS.forward_speed_m_per_s, 'a forward speed'),
+    SOURCE,
+    within(BOUNDS.forward_speed_m_per_s),
+  );
   const strides = parseIntegerOption(values.strides, '--strides', 1, undefined, SOURCE);
   return {
     rollouts: parseIntegerOption(values.rollouts, '--rollouts', 1, undefined, SOURCE) ?? DEFAULT_ROLLOUTS,

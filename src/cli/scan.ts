@@ -15,7 +15,8 @@ import { parseIntegerOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -60,13 +61,14 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   const workers = parseWorkers(values, SOURCE);
   const shard = withSource(() => shardOption(values));
   const out = withSource(() => outOption(values));
-  const plot = await withSourceAsync(() => plotOption(values.plot, { shard: shard !== undefined, out }));
+  const plot = await withSourceAsync(() => plotOption(values.plot, { shard: shard !== undefined }));
   const core = await import('../core/analysis/scan.js');
   const options: ScanOptions = withSource(() =>
     core.normalizeScanOptions({ x: values.x, y: values.y, ...(samples === undefined ? {} : { samples }) }),
   );
 
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'scan');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
@@ -84,12 +86,12 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: threads, onProgress }) };
   if (shard) {
     const partial = await withSourceAsync(() => core.scanShard(scenario, options, shard, run)).finally(progress.done);
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
   const result = await withSourceAsync(() => core.scan(scenario, options, run)).finally(progress.done);
-  await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result), 'scan');
-  if (plot !== undefined) await withSourceAsync(() => writePlot(io.stderr, 'scan', plot, result));
+  await writeText(io, outFile, json ? scanJson(result) : renderScan(scenario, result), 'scan');
+  if (plotFile !== undefined) await withSourceAsync(() => writePlotFile(io, 'scan', plotFile, result));
   return 0;
 }
 

@@ -5,6 +5,7 @@ import * as L from '../../assembly/layout.js';
 import type { ModelBlock } from './engine.js';
 import { rolloutInput } from './engine.js';
 import type { Scenario } from './scenario.js';
+import { completeBipedBlock, isBiped, sectionInput, startState } from './models/biped.js';
 import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
@@ -16,6 +17,12 @@ export const DEG = Math.PI / 180;
 const UNBOUNDED = 1e300;
 
 export function buildModel(s: Scenario): ModelBlock {
+  const block = buildSingleLegBlock(s);
+  return isBiped(s) ? completeBipedBlock(s, block) : block;
+}
+
+// The fields every kind shares (body, policy, terrain, integrator), as the single-leg model reads them.
+function buildSingleLegBlock(s: Scenario): ModelBlock {
   const f = new Float64Array(L.M_SIZE);
   const block: ModelBlock = { fields: f };
   f[L.M_MASS] = s.body.mass_kg;
@@ -98,6 +105,7 @@ export function buildModel(s: Scenario): ModelBlock {
 
 /** The scenario's own start as a rollout input row (terrain stream 0). */
 export function startInput(s: Scenario, stream = 0): Float64Array {
+  if (isBiped(s)) return sectionInput(startState(s), stream);
   return rolloutInput(s.start.apex_height_m, s.start.forward_speed_m_per_s, stream);
 }
 
@@ -113,6 +121,9 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_NON_FINITE]: 'non_finite_state',
   [L.STATUS_STEP_LIMIT]: 'step_limit',
   [L.STATUS_ATTACK_OUT_OF_RANGE]: 'attack_out_of_range',
+  [L.STATUS_GAIT_CHANGED]: 'gait_changed',
+  [L.STATUS_STALLED]: 'stalled',
+  [L.STATUS_NO_SECTION]: 'no_section',
 };
 
 /** What each failure means, in words for a report. */
@@ -128,4 +139,9 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_STEP_LIMIT]: 'numeric trouble: step limit reached (the integrator in one stance, or the touchdown search)',
   [L.STATUS_ATTACK_OUT_OF_RANGE]:
     'the commanded leg angle left (0, 90] deg before touchdown (a retraction without a clamp on that side: add max_deg or min_deg)',
+  [L.STATUS_GAIT_CHANGED]:
+    'the gait changed: a walking stride left the ground (flight), or a running stride landed its second leg (double support)',
+  [L.STATUS_STALLED]: 'stalled in double support (forward speed reached zero, or no leg lifted off)',
+  [L.STATUS_NO_SECTION]:
+    'no section: the swing leg touched down a second time before the body reached its single-support apex',
 };

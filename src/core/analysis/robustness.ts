@@ -10,9 +10,10 @@
 import * as L from '../../../assembly/layout.js';
 import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
+import { accuracyReport, type AccuracyReport } from '../accuracy.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
-import { MAX_STRIDES, type Scenario } from '../scenario.js';
+import { BOUNDS, MAX_STRIDES, boundText, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
 import { wilsonInterval } from '../stats.js';
 
@@ -91,6 +92,8 @@ export interface RobustnessResult {
   terrain: { kind: RandomTerrainKind; sigma_m: number; seed: number; streams: string };
   start: { apex_height_m: number; forward_speed_m_per_s: number };
   target: { apex_height_m: number; forward_speed_m_per_s: number };
+  /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
+  integrator?: AccuracyReport;
   /** Strides completed over all rollouts: the samples of the two RMS values. */
   strides_completed_total: number;
   /** sqrt(Σ (apex height − target)² / strides_completed_total) over all completed strides; null if none. */
@@ -146,12 +149,15 @@ export function canonicalRobustnessOptions(
   const targetHeight = options.target_height_m ?? scenario.start.apex_height_m;
   const targetSpeed = options.target_speed_m_per_s ?? scenario.start.forward_speed_m_per_s;
   check(Number.isInteger(rollouts) && rollouts >= 1 && rollouts <= MAX_ROLLOUTS, names.rollouts, `a positive integer no larger than ${MAX_ROLLOUTS}`, rollouts);
-  check(typeof sigma_m === 'number' && Number.isFinite(sigma_m) && sigma_m >= 0, names.sigma_m, 'a finite number >= 0 (m)', sigma_m);
+  // the scenario's own bounds: a target or a sigma outside them makes every error sum overflow, and
+  // the message would blame the sums instead of the option
+  const within = (x: unknown, b: { low: number; high: number }) => typeof x === 'number' && x >= b.low && x <= b.high;
+  check(within(sigma_m, BOUNDS.sigma_m), names.sigma_m, boundText(BOUNDS.sigma_m, 'a standard deviation'), sigma_m);
   check(Number.isSafeInteger(seed) && seed >= 0, names.seed, `an integer from 0 to ${Number.MAX_SAFE_INTEGER}`, seed);
   check(Number.isInteger(strides) && strides >= 1 && strides <= MAX_STRIDES, names.strides, `a positive integer no larger than ${MAX_STRIDES}`, strides);
   check(RANDOM_TERRAIN_KINDS.includes(terrain), names.terrain, `one of ${RANDOM_TERRAIN_KINDS.join(', ')}`, terrain);
-  check(typeof targetHeight === 'number' && Number.isFinite(targetHeight), names.target_height_m, 'a finite number (m)', targetHeight);
-  check(typeof targetSpeed === 'number' && Number.isFinite(targetSpeed), names.target_speed_m_per_s, 'a finite number (m/s)', targetSpeed);
+  check(within(targetHeight, BOUNDS.height_m), names.target_height_m, boundText(BOUNDS.height_m, 'an apex height'), targetHeight);
+  check(within(targetSpeed, BOUNDS.forward_speed_m_per_s), names.target_speed_m_per_s, boundText(BOUNDS.forward_speed_m_per_s, 'a forward speed'), targetSpeed);
   if (issues.length) throw new InputError(issues);
   return {
     rollouts,
@@ -229,7 +235,7 @@ export async function finishRobustness(
   checkRows(rows, o);
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
-  for (let code = 0; code < L.STATUS_COUNT; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  for (let code = 0; code < L.STATUS_COUNT_SLIP; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;
   let stridesTotal = 0;
@@ -261,6 +267,7 @@ export async function finishRobustness(
     },
     start: { apex_height_m: scenario.start.apex_height_m, forward_speed_m_per_s: scenario.start.forward_speed_m_per_s },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
+    ...accuracyReport(scenario.integrator),
     strides_completed_total: stridesTotal,
     apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
     forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,

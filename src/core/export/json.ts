@@ -3,10 +3,12 @@
 // as the C holds them, units, grid, interpolation error, body, provenance, constraints and the
 // caution. Numbers are JSON numbers; JavaScript writes the shortest text that reads back to the
 // same double, so every value round-trips (a float32 value is written as the double it equals).
-// Only a forced export can hold a non-finite table value; it is written as the string "NaN",
-// "Infinity" or "-Infinity" (JSON has no such numbers).
+// buildExport refuses every non-finite number, so none reaches this writer (one would be a bug);
+// the reader still takes the strings "NaN", "Infinity" and "-Infinity" that forced exports of
+// earlier versions wrote.
 
 import { InputError, describeFound } from '../errors.js';
+import { parseJson } from '../scenario.js';
 import { describeGrid, type PolicyExport } from './build.js';
 import { baseName } from './c99.js';
 import { hex32 } from './lookup.js';
@@ -14,12 +16,10 @@ import { hex32 } from './lookup.js';
 export const POLICY_FORMAT = 'pronk-policy';
 export const POLICY_FORMAT_VERSION = 1;
 
-type JsonNumber = number | 'NaN' | 'Infinity' | '-Infinity';
+type JsonNumber = number;
 
 function num(x: number): JsonNumber {
-  if (Number.isNaN(x)) return 'NaN';
-  if (x === Infinity) return 'Infinity';
-  if (x === -Infinity) return '-Infinity';
+  if (!Number.isFinite(x)) throw new Error(`policyDocument: a non-finite number (${x}) reached the JSON writer`);
   return x;
 }
 
@@ -109,7 +109,7 @@ export interface PolicyTables {
 
 /** Reads the tables back from a pronk-policy document's text. */
 export function readPolicyTables(text: string, source = 'pronk-policy'): PolicyTables {
-  const doc = JSON.parse(text) as Record<string, unknown>;
+  const doc = parseJson(text, source) as Record<string, unknown>;
   if (doc.format !== POLICY_FORMAT || doc.format_version !== POLICY_FORMAT_VERSION) {
     throw new InputError([{ path: 'format', expected: `${POLICY_FORMAT} version ${POLICY_FORMAT_VERSION}`, found: describeFound(doc.format) }], { source });
   }

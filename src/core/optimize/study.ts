@@ -72,6 +72,7 @@ import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
 import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -493,6 +494,12 @@ export function numberAtPath(root: unknown, segments: readonly PathSegment[]): {
 /** A deep copy of the scenario (a plain object) with the free parameters set to x. */
 export function scenarioValueAt(base: Scenario, parameters: readonly FreeParameter[], x: readonly number[]): Record<string, unknown> {
   const copy = structuredClone(base) as unknown as Record<string, unknown>;
+  // With an apex accuracy the tolerances follow from the body and start: re-derived when re-parsed.
+  const integrator = copy.integrator as Record<string, unknown> | undefined;
+  if (integrator?.apex_accuracy_m !== undefined) {
+    delete integrator.relative_tolerance;
+    delete integrator.absolute_tolerance;
+  }
   parameters.forEach((parameter, i) => {
     const segments = parseParameterPath(parameter.path)!;
     let parent: Record<PathSegment, unknown> = copy;
@@ -529,6 +536,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
   } else if (hasInline) {
     try {
       scenario = parseScenario(raw.scenario);
+      requireKind(scenario, 'optimize', ['slip']);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -843,6 +851,7 @@ export async function readStudyFile(path: string): Promise<Study> {
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
     scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
+    requireKind(scenarioFromFile, 'optimize', ['slip'], resolve(dirname(path), file));
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }
