@@ -324,8 +324,23 @@ describe('pronk with a two-leg scenario', () => {
     const table = await pronk(['map', 'scenarios/demo-biped.json']);
     expect(table.stdout).toContain('Fixed points (');
   });
+  it('robustness and stepdown run the demo walker against its section state (header single_support_apex)', async () => {
+    const mc = await pronk(['robustness', 'scenarios/demo-biped.json', '--sigma', '0.002', '--rollouts', '40', '--strides', '10', '--json']);
+    expect(mc.code, mc.stderr).toBe(0);
+    const r = JSON.parse(mc.stdout);
+    expect(r).toMatchObject({ format: 'pronk-robustness', model: 'biped', section: 'single_support_apex', rollouts: 40 });
+    expect(r.start).toMatchObject({ gait: 'walking', leg: 'left' });
+    expect(r.failures).toHaveProperty('gait_changed'); // the two-leg statuses are counted too
+    expect(r.survived + Object.values(r.failures as Record<string, number>).reduce((a, b) => a + b, 0)).toBe(40);
+    const step = await pronk(['stepdown', 'scenarios/demo-biped.json', '--json']);
+    expect(step.code, step.stderr).toBe(0);
+    const d = JSON.parse(step.stdout);
+    expect(d).toMatchObject({ format: 'pronk-stepdown', model: 'biped', section: 'single_support_apex' });
+    expect(d.max_step_down_m).toBeGreaterThanOrEqual(0.004); // found: 5 mm drop, 7 mm rise (1 mm resolution)
+    expect(d.survives_flat).toBe(true);
+  });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['scan', 'basin', 'stepdown', 'robustness', 'deadbeat']) {
+    for (const command of ['scan', 'basin', 'deadbeat']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']

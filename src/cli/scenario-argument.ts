@@ -12,6 +12,8 @@ export const DEMO_SOURCE = 'scenarios/demo.json';
 export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   simulate: ['slip', 'biped'],
   map: ['slip', 'biped'],
+  robustness: ['slip', 'biped'],
+  stepdown: ['slip', 'biped'],
 };
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
