@@ -1,5 +1,6 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
+import { readFileSync } from 'node:fs';
 import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
@@ -339,8 +340,28 @@ describe('pronk with a two-leg scenario', () => {
     expect(d.max_step_down_m).toBeGreaterThanOrEqual(0.004); // found: 5 mm drop, 7 mm rise (1 mm resolution)
     expect(d.survives_flat).toBe(true);
   });
+  it('scan classifies each cell by all eigenvalues of its section map; two shards merge to the one-machine result', async () => {
+    const run = await pronk([
+      'scan', 'scenarios/demo-biped.json', '--x', 'policy.angle.attack_deg:68:74:4', '--y', 'body.leg_stiffness_N_per_m:9000:14000:3', '--samples', '31', '--json',
+    ]);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-scan', model: 'biped', section: 'single_support_apex' });
+    expect(r.counts.stable).toBeGreaterThan(0); // found: 8 stable, 4 unstable of 12
+    for (const c of r.cells) {
+      if (c.class === 'stable') expect(c.stable_spectral_radius).toBeLessThan(1);
+      for (const f of c.fixed_points) expect(f.stable).toBe(f.spectral_radius < 1);
+    }
+    const { scan, scanShard, finishScan } = await import('../src/core/analysis/scan.js');
+    const base = parseScenario(JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8')));
+    const options = { x: { path: 'policy.angle.attack_deg', lo: 70, hi: 72, n: 2 }, y: { path: 'body.leg_stiffness_N_per_m', lo: 11000, hi: 12000, n: 2 }, samples: 21 };
+    const whole = await scan(base, options);
+    const a = await scanShard(base, options, { index: 1, count: 2 });
+    const b = await scanShard(base, options, { index: 2, count: 2 });
+    expect(JSON.stringify(await finishScan(a.scenario, a.options, [...a.rows, ...b.rows]))).toBe(JSON.stringify(whole));
+  });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['scan', 'basin', 'deadbeat']) {
+    for (const command of ['basin', 'deadbeat']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']

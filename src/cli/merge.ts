@@ -22,7 +22,7 @@ const VIEWS: Record<string, () => Promise<View>> = {
   },
   scan: async () => {
     const { scanJson, renderScan } = await import('./scan.js');
-    return { json: (_s, r) => scanJson(r as never), text: (s, r) => renderScan(s, r as never) };
+    return { json: (s, r) => scanJson(r as never, s), text: (s, r) => renderScan(s, r as never) };
   },
   robustness: async () => {
     const { robustnessJson, renderRobustness } = await import('./robustness.js');

@@ -14,6 +14,7 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   map: ['slip', 'biped'],
   robustness: ['slip', 'biped'],
   stepdown: ['slip', 'biped'],
+  scan: ['slip', 'biped'],
 };
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
