@@ -360,8 +360,33 @@ describe('pronk with a two-leg scenario', () => {
     const b = await scanShard(base, options, { index: 2, count: 2 });
     expect(JSON.stringify(await finishScan(a.scenario, a.options, [...a.rows, ...b.rows]))).toBe(JSON.stringify(whole));
   });
+  it('basin in energy mode: the converged cells settle on the fixed point the map finds', async () => {
+    const run = await pronk(['basin', 'scenarios/demo-biped.json', '--energy', '--workers', '1', '--json']);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-basin', model: 'biped', section: 'single_support_apex', mode: 'energy' });
+    expect(r.counts.converged).toBeGreaterThan(0);
+    const map = JSON.parse((await pronk(['map', 'scenarios/demo-biped.json', '--json'])).stdout);
+    const fp = map.fixed_points.find((f: { stable: boolean }) => f.stable);
+    // the basin's convergence tolerance is 1e-4 m between the last two sections
+    expect(Math.abs(r.fixed_points[0].apex_height_m - fp.height_m)).toBeLessThan(1e-3);
+    expect(Math.abs(r.fixed_points[0].forward_speed_m_per_s - fp.speed_m_per_s)).toBeLessThan(1e-2);
+  });
+  it('optimize refuses a two-leg scenario in its study by name', async () => {
+    const { parseStudy } = await import('../src/core/optimize/study.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    expect(() =>
+      parseStudy({
+        scenario,
+        free_parameters: [{ path: 'policy.angle.attack_deg', lower: 65, upper: 75 }],
+        objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.002, rollouts: 10 }] },
+        seed: 1,
+        holdout: { seed: 2, rollouts: 10 },
+      }),
+    ).toThrow(/optimize supports "slip", found "biped"/);
+  });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['basin', 'deadbeat']) {
+    for (const command of ['deadbeat']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']

@@ -18,7 +18,7 @@ interface View {
 const VIEWS: Record<string, () => Promise<View>> = {
   basin: async () => {
     const { basinJson, renderBasin } = await import('./basin.js');
-    return { json: (_s, r) => basinJson(r as never), text: (s, r) => renderBasin(s, r as never) };
+    return { json: (s, r) => basinJson(r as never, s), text: (s, r) => renderBasin(s, r as never) };
   },
   scan: async () => {
     const { scanJson, renderScan } = await import('./scan.js');

@@ -15,6 +15,7 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   robustness: ['slip', 'biped'],
   stepdown: ['slip', 'biped'],
   scan: ['slip', 'biped'],
+  basin: ['slip', 'biped'],
 };
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
