@@ -25,7 +25,7 @@
 import {
   M_MASS, M_GRAVITY, M_RTOL, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
   M_BIPED_LENGTH_0, M_BIPED_LENGTH_1, M_BIPED_STIFFNESS_SCALE_0, M_BIPED_STIFFNESS_SCALE_1,
-  M_BIPED_DAMPING_0, M_BIPED_DAMPING_1,
+  M_BIPED_DAMPING_0, M_BIPED_DAMPING_1, M_ANGLE_KIND, M_ATTACK, ANGLE_FIXED,
   I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE,
   I_SECTION_KIND, I_SECTION_OFFSET, I_SECTION_LEG,
   R_APEX_HEIGHT, R_APEX_SPEED, R_APEX_TIME, R_APEX_X, R_APEX_TO_TOUCHDOWN, R_CONTACT, R_STRIDE_TIME,
@@ -41,7 +41,7 @@ import {
   S_MAX_PEAK_FORCE, S_MAX_FRICTION, S_MAX_COMPRESSION, S_MIN_ATTACK, S_MAX_ATTACK,
   S_SUM_SQ_HEIGHT_ERROR, S_SUM_SQ_SPEED_ERROR, S_TIME, S_DISTANCE, S_STEPS, S_REJECTED,
   S_FINAL_OFFSET, S_PREVIOUS_OFFSET, S_FINAL_LEG, S_FINAL_SECTION_KIND, S_MAX_VERTICAL_FORCE,
-  SECTION_FLIGHT_APEX, SECTION_SINGLE_SUPPORT_APEX, GAIT_WALKING, GAIT_RUNNING,
+  SECTION_FLIGHT_APEX, SECTION_SINGLE_SUPPORT_APEX, GAIT_WALKING, GAIT_RUNNING, GAIT_HOPPING,
   STATUS_OK, STATUS_BODY_HIT_GROUND, STATUS_FELL_BACKWARD, STATUS_NO_LIFTOFF, STATUS_NO_APEX,
   STATUS_LEG_NOT_PLACEABLE, STATUS_STEP_UNDERFLOW, STATUS_NON_FINITE, STATUS_STEP_LIMIT,
   STATUS_ATTACK_OUT_OF_RANGE, STATUS_GAIT_CHANGED, STATUS_STALLED, STATUS_NO_SECTION,
@@ -80,6 +80,7 @@ const LF_PEAK = 11; // N, peak force in the stride
 const LF_MAXCOMP = 12; // m, largest compression in the stride
 const LF_TD = 13; // s since the section, touchdown in this stride (NaN: none)
 const LF_LO = 14; // s since the section, liftoff in this stride (NaN: none)
+const LF_TOUCH_HEIGHT = 15; // m, L0 sin(attack) when the attack angle is fixed
 const LF_N = 16;
 const LEGS: usize = memory.data(2 * LF_N * 8, 16);
 
@@ -103,6 +104,7 @@ let gravity: f64 = 9.80665;
 let rtol: f64 = 1e-10;
 let atol: f64 = 1e-12;
 let maxSteps: i32 = 100000;
+let fixedAngle: bool = false; // the attack angle is constant: the touchdown height is too
 
 // Integration frame: (px, py) = body - origin, the origin a foot in stance.
 let ox: f64 = 0.0;
@@ -110,10 +112,12 @@ let oy: f64 = 0.0;
 let single: bool = true; // one leg in stance (the origin's), else two
 let stanceLeg: i32 = 0; // in single support
 let timeScale: f64 = 1.0; // s, 1/omega of the softest leg in stance
+let groundRel: f64 = 0.0; // m, the lowest foot in stance relative to the origin
 
 // Stride state.
 let strideWalking: bool = true; // the stride started at a single-support apex
-let tS: f64 = 0.0; // s since the section, at Y0
+let tS: f64 = 0.0; // s since the contact began, at Y0 (the single-leg driver's clock)
+let tSec0: f64 = 0.0; // s from the section to the contact's start
 let h: f64 = 0.0;
 let firstH: f64 = 0.0; // the stride's first accepted step: a start for the next stride
 let firstStep: bool = true;
@@ -139,6 +143,7 @@ let endVy: f64 = 0.0;
 let endT: f64 = 0.0;
 let endW: f64 = 0.0;
 let endLeg: i32 = 0; // the leg that lifted off (flight) or is in stance (section)
+let endBoth: bool = false; // both legs left the ground together
 
 let relPx: f64 = 0.0; // state relative to the stance foot at the last single-support apex
 let relPy: f64 = 0.0;
@@ -191,23 +196,6 @@ function legRddot(i: i32, p: usize, d: usize): f64 {
   return (vx * vx + vy * vy + dx * load<f64>(d, 16) + dy * load<f64>(d, 24) - rdot * rdot) / r;
 }
 
-// Vertical and horizontal ground force, summed over the legs in stance.
-let forceX: f64 = 0.0;
-let forceY: f64 = 0.0;
-function groundForces(p: usize): void {
-  forceX = 0.0;
-  forceY = 0.0;
-  for (let i = 0; i < 2; i++) {
-    if (lg(i, LF_ON) == 0.0) continue;
-    const dx = load<f64>(p, 0) - footRx(i);
-    const dy = load<f64>(p, 8) - footRy(i);
-    const r = Math.sqrt(dx * dx + dy * dy);
-    const f = legForceAt(i, p);
-    forceX += (f * dx) / r;
-    forceY += (f * dy) / r;
-  }
-}
-
 function lowestFoot(): f64 {
   let low: f64 = Infinity;
   for (let i = 0; i < 2; i++) if (lg(i, LF_ON) != 0.0 && footRy(i) < low) low = footRy(i);
@@ -221,7 +209,8 @@ function evValue(ev: i32, leg: i32, p: usize, t: f64): f64 {
   }
   if (ev == EVB_MAX_COMPRESSION) return legRdot(leg, p);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legSin(attackAt(model, t)) - (load<f64>(p, 8) + oy - swingGround);
+    const height = fixedAngle ? lg(leg, LF_TOUCH_HEIGHT) : lg(leg, LF_L0) * legSin(attackAt(model, tSec0 + t));
+    return height - (load<f64>(p, 8) + oy - swingGround);
   }
   if (ev == EVB_SECTION) return -load<f64>(p, 24);
   if (ev == EVB_GROUND) return lowestFoot() - load<f64>(p, 8);
@@ -237,7 +226,7 @@ function evRate(ev: i32, leg: i32, p: usize, d: usize, t: f64): f64 {
   }
   if (ev == EVB_MAX_COMPRESSION) return legRddot(leg, p, d);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legCos(attackAt(model, t)) * angleRateAt(model, t) - load<f64>(p, 24);
+    return lg(leg, LF_L0) * legCos(attackAt(model, tSec0 + t)) * angleRateAt(model, tSec0 + t) - load<f64>(p, 24);
   }
   if (ev == EVB_SECTION) return -load<f64>(d, 24);
   if (ev == EVB_GROUND) return -load<f64>(p, 24);
@@ -281,8 +270,12 @@ function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f6
   return b;
 }
 
-// Newton polish of an event on the true solution: YN holds the step of size hEvent from Y0; each
-// correction re-takes the step to the corrected time. Returns the polished step size.
+// Newton polish of an event on the true solution: YN holds the step of size hEvent from Y0, at
+// the time the interpolant located, so the Newton shift dt is of the size of the interpolant's
+// error. A tiny shift moves the state along the flow by Taylor's formula (position to second
+// order, velocity to first: the neglected terms are O(dt^2) in the velocity, far below the
+// stepper's error for |dt| <= 1e-7 of the time scale); a larger one re-takes the step to the
+// corrected time. Returns the polished step size (YN, K7 the polished state and derivative).
 function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
   let he = hEvent;
   for (let it = 0; it < 3; it++) {
@@ -293,7 +286,21 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
     if (!(Math.abs(dt) > 1e-17 * timeScale)) break;
     if (Math.abs(dt) > 1e-4 * timeScale || !(he + dt > 0.0)) break;
     he += dt;
-    step(he, rtol, atol);
+    if (Math.abs(dt) > 1e-7 * timeScale) {
+      step(he, rtol, atol);
+      continue;
+    }
+    const vx = load<f64>(YN, 16);
+    const vy = load<f64>(YN, 24);
+    const ax = load<f64>(K7, 16);
+    const ay = load<f64>(K7, 24);
+    const half = 0.5 * dt * dt;
+    store<f64>(YN, load<f64>(YN, 0) + vx * dt + ax * half, 0);
+    store<f64>(YN, load<f64>(YN, 8) + vy * dt + ay * half, 8);
+    store<f64>(YN, vx + ax * dt, 16);
+    store<f64>(YN, vy + ay * dt, 24);
+    store<f64>(YN, load<f64>(YN, 32) + load<f64>(K7, 32) * dt, 32);
+    rhs(YN, K7);
   }
   return he;
 }
@@ -313,6 +320,7 @@ function configure(): void {
     if (lg(i, LF_C) > 0.0) damped = true;
   }
   timeScale = Math.sqrt(mass / kMin);
+  groundRel = lowestFoot();
   if (on0 && on1) {
     single = false;
     setBiped(
@@ -329,18 +337,51 @@ function configure(): void {
   setErrorDimension(damped ? 5 : 4);
 }
 
-function noteForces(p: usize, tAt: f64): void {
+// Step-end leg forces, compressions and summed ground force, computed with the event values.
+let stepForce0: f64 = 0.0;
+let stepForce1: f64 = 0.0;
+let stepComp0: f64 = 0.0;
+let stepComp1: f64 = 0.0;
+let stepFx: f64 = 0.0;
+let stepFy: f64 = 0.0;
+
+function notePeaks(): void {
+  if (stepForce0 > lg(0, LF_PEAK)) ls(0, LF_PEAK, stepForce0);
+  if (stepForce1 > lg(1, LF_PEAK)) ls(1, LF_PEAK, stepForce1);
+  if (stepComp0 > lg(0, LF_MAXCOMP)) ls(0, LF_MAXCOMP, stepComp0);
+  if (stepComp1 > lg(1, LF_MAXCOMP)) ls(1, LF_MAXCOMP, stepComp1);
+  if (stepFy > peakVertical) peakVertical = stepFy;
+  if (stepFy > 0.0) {
+    const fr = Math.abs(stepFx / stepFy);
+    if (fr > peakFriction) peakFriction = fr;
+  }
+}
+
+// Peak leg forces, compressions, summed vertical force and friction ratio at the state p: one
+// square root per leg in stance (this runs at every accepted step).
+function noteForces(p: usize): void {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  const vx = load<f64>(p, 16);
+  const vy = load<f64>(p, 24);
+  let fx: f64 = 0.0;
+  let fy: f64 = 0.0;
   for (let i = 0; i < 2; i++) {
     if (lg(i, LF_ON) == 0.0) continue;
-    const f = legForceAt(i, p);
+    const dx = px - footRx(i);
+    const dy = py - footRy(i);
+    const r = Math.sqrt(dx * dx + dy * dy);
+    const inv = 1.0 / r;
+    const c = lg(i, LF_L0) - r;
+    const f = lg(i, LF_K) * c - lg(i, LF_C) * (dx * vx + dy * vy) * inv;
     if (f > lg(i, LF_PEAK)) ls(i, LF_PEAK, f);
-    const c = lg(i, LF_L0) - legR(i, p);
     if (c > lg(i, LF_MAXCOMP)) ls(i, LF_MAXCOMP, c);
+    fx += f * dx * inv;
+    fy += f * dy * inv;
   }
-  groundForces(p);
-  if (forceY > peakVertical) peakVertical = forceY;
-  if (forceY > 0.0) {
-    const fr = Math.abs(forceX / forceY);
+  if (fy > peakVertical) peakVertical = fy;
+  if (fy > 0.0) {
+    const fr = Math.abs(fx / fy);
     if (fr > peakFriction) peakFriction = fr;
   }
 }
@@ -348,11 +389,11 @@ function noteForces(p: usize, tAt: f64): void {
 // Trace samples inside the last accepted step (from tS, size hh) up to the fraction thetaEnd.
 let traceT0: f64 = 0.0; // absolute time of the stride's section
 function traceContact(hh: f64, thetaEnd: f64): void {
-  const tEnd = traceT0 + tS + thetaEnd * hh;
+  const tEnd = traceT0 + tSec0 + tS + thetaEnd * hh;
   for (;;) {
     const ts = traceNext(tEnd);
     if (ts < 0.0) return;
-    const theta = (ts - traceT0 - tS) / hh;
+    const theta = (ts - traceT0 - tSec0 - tS) / hh;
     if (theta < 0.0) continue;
     dense(theta);
     emitAt(ts, YI, ts - traceT0);
@@ -427,7 +468,7 @@ function runContact(rec: usize): i32 {
   let nonFinite = 0;
   let stepsHere = 0;
   const hMin = 1e-13 * timeScale;
-  noteForces(Y0, tS);
+  noteForces(Y0);
   for (;;) {
     if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
     if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
@@ -472,29 +513,53 @@ function runContact(rec: usize): i32 {
       const nforce = lg(stanceLeg, LF_K) * (leg - nr) - c * nrdot;
       const gl = c > 0.0 ? -nforce : nr - leg;
       if (stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
+      stepForce0 = stanceLeg == 0 ? nforce : 0.0;
+      stepForce1 = stanceLeg == 1 ? nforce : 0.0;
+      stepComp0 = stanceLeg == 0 ? leg - nr : 0.0;
+      stepComp1 = stanceLeg == 1 ? leg - nr : 0.0;
+      stepFx = (nforce * npx) / nr;
+      stepFy = (nforce * npy) / nr;
     } else {
-      gl10 = evValue(EVB_LIFTOFF, 0, YN, tS + h);
-      gl11 = evValue(EVB_LIFTOFF, 1, YN, tS + h);
-      gm10 = legRdot(0, YN);
-      gm11 = legRdot(1, YN);
+      // one square root per leg (the same values as evValue and legRdot)
+      const npx = load<f64>(YN, 0);
+      const npy = load<f64>(YN, 8);
+      const nvx = load<f64>(YN, 16);
+      const nvy = load<f64>(YN, 24);
+      const dx0 = npx - footRx(0);
+      const dy0 = npy - footRy(0);
+      const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+      gm10 = (dx0 * nvx + dy0 * nvy) / r0;
+      gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
+      const dx1 = npx - footRx(1);
+      const dy1 = npy - footRy(1);
+      const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+      gm11 = (dx1 * nvx + dy1 * nvy) / r1;
+      gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
+      stepComp0 = lg(0, LF_L0) - r0;
+      stepComp1 = lg(1, LF_L0) - r1;
+      stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
+      stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
+      stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
+      stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
     }
-    const gs1 = evValue(EVB_SECTION, 0, YN, tS + h);
-    const gg1 = evValue(EVB_GROUND, 0, YN, tS + h);
-    const gb1 = evValue(EVB_BACKWARD, 0, YN, tS + h);
+    const gs1 = -load<f64>(YN, 24);
+    const gg1 = groundRel - load<f64>(YN, 8);
+    const gb1 = -load<f64>(YN, 16);
     let gt1: f64 = 0.0;
     let armsHere = false;
 
     let stopTheta: f64 = 2.0;
     let stopEvent = -1;
     let stopLeg = 0;
-    // maximum compression of each leg (splits the stance with a split schedule)
+    // maximum compression of each leg: the first splits the stance with a split schedule; a leg
+    // without one has every local maximum located (its force humps, e.g. a walking leg's two)
     let mTheta0: f64 = 2.0;
     let mTheta1: f64 = 2.0;
-    if (lg(0, LF_ON) != 0.0 && lg(0, LF_COMPRESSING) != 0.0 && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
+    if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
       mTheta0 = single ? locate(EV_MAX_COMPRESSION, gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, gm00, gm10, tS, h);
       if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
     }
-    if (lg(1, LF_ON) != 0.0 && lg(1, LF_COMPRESSING) != 0.0 && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
+    if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
       mTheta1 = single ? locate(EV_MAX_COMPRESSION, gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, gm01, gm11, tS, h);
       if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
     }
@@ -549,20 +614,18 @@ function runContact(rec: usize): i32 {
     // Record-only maximum compressions before the stop.
     if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
       dense(mTheta0);
-      noteForces(YI, tS + mTheta0 * h);
+      noteForces(YI);
       ls(0, LF_COMPRESSING, 0.0);
     }
     if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
       dense(mTheta1);
-      noteForces(YI, tS + mTheta1 * h);
+      noteForces(YI);
       ls(1, LF_COMPRESSING, 0.0);
     }
     if (tracing) traceContact(h, stopTheta < 1.0 ? stopTheta : 1.0);
 
     if (stopEvent < 0) {
-      dense(0.5);
-      noteForces(YI, tS + 0.5 * h);
-      noteForces(YN, tS + h);
+      notePeaks();
       tS += h;
       advance();
       gl00 = gl10;
@@ -602,7 +665,7 @@ function runContact(rec: usize): i32 {
     }
     if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
     if (stopEvent == EVB_BACKWARD) return single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
-    noteForces(YN, tEvent);
+    noteForces(YN);
 
     if (stopEvent == EVB_SECTION) {
       saveEnd(tEvent, stanceLeg);
@@ -623,15 +686,26 @@ function runContact(rec: usize): i32 {
     }
     if (stopEvent == EVB_LIFTOFF) {
       ls(stopLeg, LF_ON, 0.0);
-      ls(stopLeg, LF_LO, tEvent);
+      ls(stopLeg, LF_LO, tSec0 + tEvent);
       if (single) {
         saveEnd(tEvent, stopLeg);
         recordLiftoff(rec, stopLeg);
         return END_FLIGHT;
       }
-      // double -> single support on the other leg; the frame moves to its foot
       recordLiftoff(rec, stopLeg);
-      put(rec, R_DOUBLE_END, tEvent);
+      // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
+      // extending, within the event location's accuracy.
+      const o = 1 - stopLeg;
+      if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
+        ls(o, LF_ON, 0.0);
+        ls(o, LF_LO, tSec0 + tEvent);
+        put(rec, R_DOUBLE_END, tSec0 + tEvent);
+        saveEnd(tEvent, stopLeg);
+        endBoth = true;
+        return END_FLIGHT;
+      }
+      // double -> single support on the other leg; the frame moves to its foot
+      put(rec, R_DOUBLE_END, tSec0 + tEvent);
       const m = 1 - stopLeg;
       const sx = footRx(m);
       const sy = footRy(m);
@@ -646,7 +720,8 @@ function runContact(rec: usize): i32 {
       if (!strideWalking) return STATUS_GAIT_CHANGED;
       if (touchedDown) return STATUS_NO_SECTION;
       const j = stopLeg;
-      const a = attackAt(model, tEvent);
+      const tTd = tSec0 + tEvent;
+      const a = attackAt(model, tTd);
       if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
       if (a < minAttack) minAttack = a;
       if (a > maxAttack) maxAttack = a;
@@ -654,16 +729,16 @@ function runContact(rec: usize): i32 {
       ls(j, LF_ON, 1.0);
       ls(j, LF_FX, ox + px + lg(j, LF_L0) * legCos(a));
       ls(j, LF_FY, swingGround);
-      chooseStiffness(model, tEvent, lg(j, LF_KSCALE));
+      chooseStiffness(model, tTd, lg(j, LF_KSCALE));
       ls(j, LF_KC, stanceKc);
       ls(j, LF_KE, stanceKe);
       ls(j, LF_K, stanceKc);
       ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
       ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tEvent);
+      ls(j, LF_TD, tTd);
       touchedDown = true;
-      put(rec, R_DOUBLE_START, tEvent);
-      put(rec, R_APEX_TO_TOUCHDOWN, tEvent);
+      put(rec, R_DOUBLE_START, tTd);
+      put(rec, R_APEX_TO_TOUCHDOWN, tTd);
       put(rec, R_ATTACK, a);
       put(rec, R_FOOT_X, lg(j, LF_FX));
       put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
@@ -739,6 +814,12 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   ls(1, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_1) * kScale);
   ls(0, LF_C, mget(mdl, M_BIPED_DAMPING_0));
   ls(1, LF_C, mget(mdl, M_BIPED_DAMPING_1));
+  fixedAngle = <i32>mget(mdl, M_ANGLE_KIND) == ANGLE_FIXED;
+  if (fixedAngle) {
+    const sinA = legSin(mget(mdl, M_ATTACK));
+    ls(0, LF_TOUCH_HEIGHT, lg(0, LF_L0) * sinA);
+    ls(1, LF_TOUCH_HEIGHT, lg(1, LF_L0) * sinA);
+  }
   for (let i = 0; i < 2; i++) {
     ls(i, LF_ON, 0.0);
     ls(i, LF_FX, 0.0);
@@ -750,7 +831,8 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   let y = get(input, I_APEX_HEIGHT);
   let vx = get(input, I_FORWARD_SPEED);
   let offset = section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
-  let leg = <i32>get(input, I_SECTION_LEG) == 1 ? 1 : 0;
+  const legCode = <i32>get(input, I_SECTION_LEG);
+  let leg = legCode == 1 ? 1 : legCode == 2 && section == SECTION_FLIGHT_APEX ? 2 : 0;
   let x: f64 = 0.0;
   let t: f64 = 0.0;
   let prevHeight = y;
@@ -769,8 +851,9 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   let sumSqSpeed: f64 = 0.0;
   let allSteps = 0;
   let allRejected = 0;
-  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg, LF_KSCALE);
-  h = initialStep(mass, kFirst, vx, lg(leg, LF_L0), rtol);
+  const leg0 = leg == 2 ? 0 : leg;
+  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg0, LF_KSCALE);
+  h = initialStep(mass, kFirst, vx, lg(leg0, LF_L0), rtol);
 
   if (section == SECTION_SINGLE_SUPPORT_APEX) {
     // the stance leg at the start: pinned at -offset on ground 0, past its maximum compression
@@ -799,7 +882,8 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
     put(rec, R_ENERGY_BEFORE, energyBefore);
     if (!isFinite(y) || !isFinite(vx)) { status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>status); break; }
     strideWalking = section == SECTION_SINGLE_SUPPORT_APEX;
-    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : <f64>GAIT_RUNNING);
+    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
+    endBoth = false;
     traceStride = s;
     traceT0 = t;
     for (let i = 0; i < 2; i++) {
@@ -838,12 +922,21 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       store<f64>(Y0, vx, 16);
       store<f64>(Y0, 0.0, 24);
       store<f64>(Y0, 0.0, 32);
+      tSec0 = 0.0;
       tS = 0.0;
     } else {
-      // flight from the apex to the touchdown of `leg`, closed form (flight.ts)
-      const j = leg;
+      // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
+      // legs are ready and the one whose foot reaches the ground first lands (both at once when
+      // they reach it at the same time)
+      let j = leg == 2 ? 0 : leg;
+      let tTouch = touchdownTime(mdl, y, swingGround, lg(j, LF_L0), gravity);
+      let both = false;
+      if (leg == 2) {
+        const t1 = touchdownTime(mdl, y, swingGround, lg(1, LF_L0), gravity);
+        if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
+        else both = t1 == tTouch;
+      }
       const l0 = lg(j, LF_L0);
-      const tTouch = touchdownTime(mdl, y, swingGround, l0, gravity);
       if (tTouch < 0.0) {
         status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
           : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
@@ -874,6 +967,21 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
       ls(j, LF_COMPRESSING, 1.0);
       ls(j, LF_TD, tTouch);
+      if (both) {
+        const o = 1 - j;
+        ls(o, LF_ON, 1.0);
+        ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
+        ls(o, LF_FY, swingGround);
+        chooseStiffness(mdl, tTouch, lg(o, LF_KSCALE));
+        ls(o, LF_KC, stanceKc);
+        ls(o, LF_KE, stanceKe);
+        ls(o, LF_K, stanceKc);
+        ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+        ls(o, LF_COMPRESSING, 1.0);
+        ls(o, LF_TD, tTouch);
+        put(rec, R_DOUBLE_START, tTouch);
+        chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
+      }
       touchedDown = true;
       put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
       put(rec, R_ATTACK, attack);
@@ -889,10 +997,10 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       store<f64>(Y0, vx, 16);
       store<f64>(Y0, vyTouch, 24);
       store<f64>(Y0, 0.0, 32);
-      tS = tTouch;
+      tSec0 = tTouch;
+      tS = 0.0;
     }
-    tContactLimit = tS + 20.0 * Math.PI * Math.sqrt(mass / kMin);
-    const tContact0 = tS;
+    tContactLimit = 20.0 * Math.PI * Math.sqrt(mass / kMin);
 
     const end = runContact(rec);
     allSteps += steps;
@@ -926,14 +1034,14 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
     if (end == END_FLIGHT) {
       const xLift = ox + endPx;
       const yLift = oy + endPy;
-      const tLift = t + endT;
+      const tLift = t + tSec0 + endT;
       if (strideWalking) {
         status = STATUS_GAIT_CHANGED;
         put(rec, R_GAIT, <f64>GAIT_RUNNING);
         put(rec, R_STATUS, <f64>status);
         break;
       }
-      put(rec, R_CONTACT, endT - tContact0);
+      put(rec, R_CONTACT, endT);
       if (tracing) {
         emit2(tLift, xLift, yLift, endVx, endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
       }
@@ -948,12 +1056,12 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       eAfter = mass * gravity * yNext + 0.5 * mass * vxNext * vxNext;
       nextSection = SECTION_FLIGHT_APEX;
       nextOffset = NaN;
-      nextLeg = 1 - endLeg;
+      nextLeg = endBoth ? 2 : 1 - endLeg;
     } else {
       yNext = oy + endPy;
       xNext = ox + endPx;
       vxNext = endVx;
-      tNext = t + endT;
+      tNext = t + tSec0 + endT;
       eAfter = energyAt(xNext, yNext, vxNext, 0.0);
       nextSection = SECTION_SINGLE_SUPPORT_APEX;
       nextOffset = endPx - footRx(endLeg);

@@ -1,15 +1,32 @@
 // The FILE argument every scenario command takes: a scenario file, or without it the built-in
 // demo (said in a status line on stderr; stdout holds the result only).
+import type { ModelKind } from '../core/models/kind.js';
 import type { Scenario } from '../core/scenario.js';
 import type { CliIO } from './main.js';
 import { status } from './progress.js';
 
 export const DEMO_SOURCE = 'scenarios/demo.json';
 
+// The model kinds each command runs (src/core/models/kind.ts); every other kind is refused by name
+// (exit 2), never run as another kind.
+export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
+  simulate: ['slip', 'biped'],
+  map: ['slip', 'biped'],
+  robustness: ['slip', 'biped'],
+  stepdown: ['slip', 'biped'],
+  scan: ['slip', 'biped'],
+  basin: ['slip', 'biped'],
+};
+
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
   // loaded here, not with the command, so that `pronk COMMAND --help` never waits for the validators
   const { demoScenario, readScenarioFile } = await import('../core/scenario.js');
-  if (file !== undefined) return readScenarioFile(file);
+  const { requireKind } = await import('../core/models/kind.js');
+  if (file !== undefined) {
+    const scenario = await readScenarioFile(file);
+    requireKind(scenario, command, COMMAND_KINDS[command] ?? ['slip'], file);
+    return scenario;
+  }
   status(io, command, `no FILE given; running the built-in demo scenario (${DEMO_SOURCE})`);
   return demoScenario();
 }

@@ -10,39 +10,64 @@
 //   format_version  1; raised only when a field is renamed or changes meaning (adding fields
 //                   does not raise it).
 //   model           the scenario's model kind: "slip", the spring-loaded inverted pendulum (a point
-//                   mass on one massless spring leg; a scenario file without "model" is one).
+//                   mass on one massless spring leg; a scenario file without "model" is one), or
+//                   "biped", the two-leg spring-mass model (src/core/models/biped.ts).
 //   section         the Poincaré section its strides run between and its states are taken on:
-//                   "flight_apex" for the single-leg runner (apex height and forward speed).
+//                   "flight_apex" for the single-leg runner and two-leg running (apex height and
+//                   forward speed), "single_support_apex" for two-leg walking (height, forward
+//                   speed and the offset from the stance foot at the highest point in single support).
+
+import { kindOf, type ModelKind, type SectionName } from './models/kind.js';
 
 import { jsonChunks } from './json-stream.js';
 
 export const JSON_FORMAT_VERSION = 1;
-export const MODEL_KIND = 'slip';
-export const SECTION = 'flight_apex';
+export const MODEL_KIND: ModelKind = 'slip';
+export const SECTION: SectionName = 'flight_apex';
 
 export type JsonCommand = 'simulate' | 'map' | 'scan' | 'basin' | 'stepdown' | 'robustness' | 'deadbeat' | 'export';
 
 export interface JsonHeader {
   format: `pronk-${JsonCommand}`;
   format_version: typeof JSON_FORMAT_VERSION;
-  model: typeof MODEL_KIND;
-  section: typeof SECTION;
+  model: ModelKind;
+  section: SectionName;
+}
+
+/** Which model and section a result describes (default: the single-leg model's). */
+export interface ModelHeader {
+  model: ModelKind;
+  section: SectionName;
+}
+
+/** The header fields of a scenario's kind. */
+export function modelHeader(scenario: { model?: string; start?: { gait?: string } }): ModelHeader {
+  if (kindOf(scenario) === 'biped') {
+    return { model: 'biped', section: scenario.start?.gait === 'walking' ? 'single_support_apex' : 'flight_apex' };
+  }
+  return { model: MODEL_KIND, section: SECTION };
 }
 
 export type Described<T> = JsonHeader & T;
 
 /** The result with its header first. */
-export function described<T extends object>(command: JsonCommand, result: T): Described<T> {
-  return { format: `pronk-${command}`, format_version: JSON_FORMAT_VERSION, model: MODEL_KIND, section: SECTION, ...result };
+export function described<T extends object>(command: JsonCommand, result: T, header?: ModelHeader): Described<T> {
+  return {
+    format: `pronk-${command}`,
+    format_version: JSON_FORMAT_VERSION,
+    model: header?.model ?? MODEL_KIND,
+    section: header?.section ?? SECTION,
+    ...result,
+  };
 }
 
 /** The `--json` text: the described result, 2-space indented, with a final newline. */
-export function jsonText(command: JsonCommand, result: object): string {
-  return `${JSON.stringify(described(command, result), null, 2)}\n`;
+export function jsonText(command: JsonCommand, result: object, header?: ModelHeader): string {
+  return `${JSON.stringify(described(command, result, header), null, 2)}\n`;
 }
 
 /** The `--json` text of jsonText in pieces (src/core/json-stream.ts), for outputs too large for one string. */
-export function* jsonTextChunks(command: JsonCommand, result: object): Generator<string> {
-  yield* jsonChunks(described(command, result));
+export function* jsonTextChunks(command: JsonCommand, result: object, header?: ModelHeader): Generator<string> {
+  yield* jsonChunks(described(command, result, header));
   yield '\n';
 }

@@ -8,12 +8,13 @@
 // run joined from shards is bit-identical to it.
 
 import * as L from '../../../assembly/layout.js';
-import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
+import { type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
-import { buildModel, STATUS_NAMES } from '../model.js';
+import { buildModel, startInput, STATUS_NAMES } from '../model.js';
+import { kindOf } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
-import { MAX_STRIDES, type Scenario } from '../scenario.js';
+import { BOUNDS, MAX_STRIDES, boundText, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
 import { wilsonInterval } from '../stats.js';
 
@@ -90,7 +91,7 @@ export interface RobustnessResult {
   mean_strides_completed: number;
   strides: number;
   terrain: { kind: RandomTerrainKind; sigma_m: number; seed: number; streams: string };
-  start: { apex_height_m: number; forward_speed_m_per_s: number };
+  start: { apex_height_m: number; forward_speed_m_per_s: number; gait?: string; offset_m?: number; leg?: string };
   target: { apex_height_m: number; forward_speed_m_per_s: number };
   /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
   integrator?: AccuracyReport;
@@ -149,12 +150,15 @@ export function canonicalRobustnessOptions(
   const targetHeight = options.target_height_m ?? scenario.start.apex_height_m;
   const targetSpeed = options.target_speed_m_per_s ?? scenario.start.forward_speed_m_per_s;
   check(Number.isInteger(rollouts) && rollouts >= 1 && rollouts <= MAX_ROLLOUTS, names.rollouts, `a positive integer no larger than ${MAX_ROLLOUTS}`, rollouts);
-  check(typeof sigma_m === 'number' && Number.isFinite(sigma_m) && sigma_m >= 0, names.sigma_m, 'a finite number >= 0 (m)', sigma_m);
+  // the scenario's own bounds: a target or a sigma outside them makes every error sum overflow, and
+  // the message would blame the sums instead of the option
+  const within = (x: unknown, b: { low: number; high: number }) => typeof x === 'number' && x >= b.low && x <= b.high;
+  check(within(sigma_m, BOUNDS.sigma_m), names.sigma_m, boundText(BOUNDS.sigma_m, 'a standard deviation'), sigma_m);
   check(Number.isSafeInteger(seed) && seed >= 0, names.seed, `an integer from 0 to ${Number.MAX_SAFE_INTEGER}`, seed);
   check(Number.isInteger(strides) && strides >= 1 && strides <= MAX_STRIDES, names.strides, `a positive integer no larger than ${MAX_STRIDES}`, strides);
   check(RANDOM_TERRAIN_KINDS.includes(terrain), names.terrain, `one of ${RANDOM_TERRAIN_KINDS.join(', ')}`, terrain);
-  check(typeof targetHeight === 'number' && Number.isFinite(targetHeight), names.target_height_m, 'a finite number (m)', targetHeight);
-  check(typeof targetSpeed === 'number' && Number.isFinite(targetSpeed), names.target_speed_m_per_s, 'a finite number (m/s)', targetSpeed);
+  check(within(targetHeight, BOUNDS.height_m), names.target_height_m, boundText(BOUNDS.height_m, 'an apex height'), targetHeight);
+  check(within(targetSpeed, BOUNDS.forward_speed_m_per_s), names.target_speed_m_per_s, boundText(BOUNDS.forward_speed_m_per_s, 'a forward speed'), targetSpeed);
   if (issues.length) throw new InputError(issues);
   return {
     rollouts,
@@ -195,7 +199,7 @@ export async function robustnessRows(
   if (count <= 0) return [];
   const inputs = new Float64Array(count * L.I_SIZE); // (count x I_SIZE), stream = global rollout index
   for (let i = 0; i < count; i++) {
-    inputs.set(rolloutInput(scenario.start.apex_height_m, scenario.start.forward_speed_m_per_s, start + i), i * L.I_SIZE);
+    inputs.set(startInput(scenario, start + i), i * L.I_SIZE); // the kind's start section, stream r
   }
   const req: BatchRequest = { model: robustnessModel(scenario, canonical), inputs, strides: canonical.strides };
   let batch: BatchResult;
@@ -232,7 +236,9 @@ export async function finishRobustness(
   checkRows(rows, o);
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
-  for (let code = 0; code < L.STATUS_COUNT_SLIP; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  // the statuses the scenario's model kind can report
+  const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT : L.STATUS_COUNT_SLIP;
+  for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;
   let stridesTotal = 0;
@@ -262,7 +268,13 @@ export async function finishRobustness(
       seed: o.seed,
       streams: `rollout r runs on terrain stream r (0 to ${n - 1}) of this seed, replacing the scenario's terrain`,
     },
-    start: { apex_height_m: scenario.start.apex_height_m, forward_speed_m_per_s: scenario.start.forward_speed_m_per_s },
+    // the start section: a flight apex, or with the two-leg model walking a single-support apex
+    // (the `--json` header's section), with its offset and stance leg
+    start: {
+      apex_height_m: scenario.start.apex_height_m,
+      forward_speed_m_per_s: scenario.start.forward_speed_m_per_s,
+      ...(kindOf(scenario) === 'biped' ? { gait: scenario.start.gait, offset_m: scenario.start.offset_m, leg: scenario.start.leg } : {}),
+    },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
     ...accuracyReport(scenario.integrator),
     strides_completed_total: stridesTotal,
