@@ -8,7 +8,8 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { L, scenario } from './helpers.js';
 import { loadEngine, rolloutInput, type BatchRequest, type BatchResult, type Engine } from '../src/core/engine.js';
-import { buildModel } from '../src/core/model.js';
+import { buildModel, startInput } from '../src/core/model.js';
+import { parseScenario } from '../src/core/scenario.js';
 import { closeWorkerPool, runBatchParallel } from '../src/worker/pool.js';
 
 const ANGLES = [
@@ -173,6 +174,31 @@ describe('runBatch in two and four lanes', () => {
     expectSameBytes(runWith(engine, 4, req), one);
     const statuses = new Set(Array.from({ length: 30 }, (_, r) => one.summaries[r * L.S_SIZE + L.S_STATUS]));
     expect(statuses.has(L.STATUS_STEP_LIMIT)).toBe(true);
+  });
+
+  it('a batch with two-leg rollouts runs one rollout after the other: the same bytes, single-leg ones included', async () => {
+    const engine = await loadEngine();
+    const walker = parseScenario({
+      model: 'biped',
+      body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },
+      start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 1.2 },
+      policy: { angle: { kind: 'fixed', attack_deg: 70 } },
+      terrain: { kind: 'random_walk', sigma_m: 0.005, seed: 2 },
+      strides: 4,
+    });
+    const two = [buildModel(walker), models[0], models[9]];
+    const rows = [0, 1, 2, 0, 1, 2, 1, 0].map((m, r) => (m === 0 ? startInput(walker, r, 0) : rolloutInput(1, 5, r, m)));
+    const inputs = new Float64Array(rows.flatMap((row) => [...row]));
+    const req = { model: two, inputs, strides: 4, records: true };
+    const one = runWith(engine, 1, req);
+    const four = runWith(engine, 4, req);
+    expect(laneControl(engine).batchPairedSteps()).toBe(0);
+    expectSameBytes(four, one);
+    // and each single-leg rollout there is the one the lanes give in a single-leg batch
+    const slipOnly = runWith(engine, 4, { model: two, inputs: new Float64Array([...rows[1], ...rows[2], ...rows[4], ...rows[5]]), strides: 4 });
+    [1, 2, 4, 5].forEach((r, i) => {
+      expect(bytes(slipOnly.summaries.subarray(i * L.S_SIZE, (i + 1) * L.S_SIZE))!.equals(bytes(one.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!)).toBe(true);
+    });
   });
 
   it('on 1, 2 and 4 workers: the same bytes as one lane in this thread', async () => {
