@@ -463,7 +463,7 @@ function runLanes(lanes: i32, models: usize, inputs: usize, rollouts: i32, strid
       const err = i == 0 ? laneErr0 : i == 1 ? laneErr1 : i == 2 ? laneErr2 : laneErr3;
       const R = laneRoll(i);
       const st = changetype<Stance>(R.stance);
-      let r = stanceAfterLaneStep(st, err);
+      let r = stanceAfterLaneStep(st, err, i);
       if (r == -2) {
         unpackStages(i, st.bufs);
         useStance(st);

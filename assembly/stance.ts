@@ -16,10 +16,10 @@ import {
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1, YN, YI,
   DEFAULT_BUFFERS, BUFFER_SET_BYTES, useBuffers, getLastH, setLastH, getErrOld, setErrOld,
-  getErrorDimension, setErrorDimensionValue, acceptFactorWith, dense2, di0, di1, controllerMemory, OFF_Y0, OFF_K1, OFF_K7, OFF_YN,
+  getErrorDimension, setErrorDimensionValue, dense2, di0, di1, controllerMemory, OFF_Y0, OFF_K1, OFF_K7, OFF_YN,
 } from "./rk/dopri5";
 import { rhs, setStance, setStiffness, setStanceParams } from "./rk/system";
-import { stepPair, stepQuad } from "./rk/dopri5x2";
+import { stepPair, stepQuad, laneEnd, END_FORCE, END_RADIUS, END_RATE, END_FRICTION, END_FACTOR } from "./rk/dopri5x2";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
   eventValue, crosses, locateStance, refine, legForce,
@@ -350,11 +350,13 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
   return finish(s, STATUS_OK, tEvent);
 }
 
-// stanceAfterStep for a stance that does not hold the stepper, right after stepTwo/stepFour, in
-// the common cases: a rejected step, or an accepted one with no event in it, undamped and not
-// traced; the same state changes, made on the stance's own buffers and controller memory.
-// -2 (nothing changed) for the other cases: then useStance and stanceAfterStep.
-export function stanceAfterLaneStep(s: Stance, err: f64): i32 {
+// stanceAfterStep for the stance in lane `lane` of the last stepTwo/stepFour (it does not hold
+// the stepper), in the common cases: a rejected step, or an accepted one with no event in it,
+// undamped and not traced; the same state changes, made on the stance's own buffers and
+// controller memory, from the step-end quantities and step factor that the lane step formed
+// with this function's arithmetic (laneEnd). -2 (nothing changed) for the other cases: then
+// useStance and stanceAfterStep.
+export function stanceAfterLaneStep(s: Stance, err: f64, lane: i32): i32 {
   if (s.damped || tracing || current == changetype<usize>(s)) return -2;
   const h = s.h;
   if (isNaN(err)) {
@@ -371,23 +373,18 @@ export function stanceAfterLaneStep(s: Stance, err: f64): i32 {
     return -1;
   }
   const b = s.bufs;
-  const leg = s.leg;
-  const npx = load<f64>(b + OFF_YN, 0);
-  const npy = load<f64>(b + OFF_YN, 8);
-  const nvx = load<f64>(b + OFF_YN, 16);
-  const nr = Math.sqrt(npx * npx + npy * npy);
-  const nrdot = (npx * nvx + npy * load<f64>(b + OFF_YN, 24)) / nr;
-  const nforce = s.k * (leg - nr) - s.c * nrdot;
-  const gl1 = nr - leg;
-  const gm1 = nrdot;
-  const gg1 = -npy;
-  const gb1 = -nvx;
+  // As in stanceAfterStep: r = sqrt(px^2 + py^2), r' = (px vx + py vy) / r, force k (L0 - r) - c r'.
+  const gl1 = laneEnd(lane, END_RADIUS);
+  const gm1 = laneEnd(lane, END_RATE);
+  const gg1 = -load<f64>(b + OFF_YN, 8);
+  const gb1 = -load<f64>(b + OFF_YN, 16);
   if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) return -2;
   if (crosses(EV_LIFTOFF, s.gl0, gl1) || crosses(EV_BODY_GROUND, s.gg0, gg1) || crosses(EV_BACKWARD, s.gb0, gb1)) return -2;
   if (s.steps == 0) s.firstH = h;
   s.steps++;
+  const nforce = laneEnd(lane, END_FORCE);
   if (nforce > s.peakForce) s.peakForce = nforce;
-  const fr = Math.abs(npx / npy);
+  const fr = laneEnd(lane, END_FRICTION);
   if (fr > s.peakFriction) s.peakFriction = fr;
   s.t = s.t + h;
   // advance(): Y0 <- YN, K1 <- K7
@@ -401,7 +398,7 @@ export function stanceAfterLaneStep(s: Stance, err: f64): i32 {
   s.gm0 = gm1;
   s.gg0 = gg1;
   s.gb0 = gb1;
-  s.h = h * acceptFactorWith(err, s.afterReject, s.errOld);
+  s.h = h * laneEnd(lane, END_FACTOR); // acceptFactor(err, s.afterReject) with s.errOld
   s.errOld = controllerMemory(err);
   s.afterReject = false;
   return -1;
@@ -432,6 +429,7 @@ export function stepTwo(a: Stance, b: Stance): void {
   stepPair(
     a.bufs, b.bufs, a.h, b.h, a.rtol, b.rtol, a.atol, b.atol, a.errDim, b.errDim,
     a.k, b.k, a.leg, b.leg, a.c, b.c, a.invMass, b.invMass, a.g, b.g,
+    a.errOld, b.errOld, a.afterReject ? 1.0 : 10.0, b.afterReject ? 1.0 : 10.0,
   );
   a.lastH = a.h;
   b.lastH = b.h;
@@ -451,6 +449,8 @@ export function stepFour(a: Stance, b: Stance, c: Stance, d: Stance): void {
     a.c, b.c, c.c, d.c,
     a.invMass, b.invMass, c.invMass, d.invMass,
     a.g, b.g, c.g, d.g,
+    a.errOld, b.errOld, c.errOld, d.errOld,
+    a.afterReject ? 1.0 : 10.0, b.afterReject ? 1.0 : 10.0, c.afterReject ? 1.0 : 10.0, d.afterReject ? 1.0 : 10.0,
   );
   a.lastH = a.h;
   b.lastH = b.h;

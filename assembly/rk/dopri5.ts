@@ -331,8 +331,8 @@ export function dense4(theta: f64): void {
 // limited to [0.2, 10], no growth right after a rejection. Its memory of the
 // last accepted error damps the step-size oscillation that made about one step
 // in five a rejection with the plain controller.
-const BETA: f64 = 0.04;
-const EXPO: f64 = 0.2 - 0.75 * BETA;
+export const BETA: f64 = 0.04;
+export const EXPO: f64 = 0.2 - 0.75 * BETA;
 let errOld: f64 = 1e-4;
 
 // x^p for x > 0 to about 1 %, from the bit pattern (a controller heuristic needs
@@ -361,7 +361,7 @@ export function setErrOld(e: f64): void {
 }
 
 // Factor for the next step after an accepted step with error err (<= 1), the
-// controller's memory being `old`.
+// controller's memory being `old` (rk/dopri5x2.ts forms the same in f64x2 lanes).
 @inline function acceptedFactor(err: f64, afterReject: bool, old: f64): f64 {
   const hi: f64 = afterReject ? 1.0 : 10.0;
   const e = err > 1e-12 ? err : 1e-12;
@@ -381,12 +381,6 @@ export function acceptFactor(err: f64, afterReject: bool): f64 {
   const f = acceptedFactor(err, afterReject, errOld);
   errOld = controllerMemory(err);
   return f;
-}
-
-// acceptFactor for a controller whose memory the caller holds (old; the new one is
-// controllerMemory(err)): a stance stepped in a lane (stance.ts).
-export function acceptFactorWith(err: f64, afterReject: bool, old: f64): f64 {
-  return acceptedFactor(err, afterReject, old);
 }
 
 // Factor for the retry after a rejected step with error err (> 1).

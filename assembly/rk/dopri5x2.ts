@@ -13,7 +13,7 @@
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
-  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
@@ -25,6 +25,35 @@ const LANE_STAGES: usize = memory.data(2 * 4 * 5 * 16, 16);
 export function unpackStages(lane: i32, p: usize): void {
   const src = LANE_STAGES + <usize>(lane >> 1) * 320 + <usize>(lane & 1) * 8;
   for (let j: usize = 0; j < 20; j++) store<f64>(p + OFF_K3 + (j << 3), load<f64>(src + (j << 4)));
+}
+
+// For each lane of the last stepPair or stepQuad, as f64x2 pairs (lanes 0, 1, then 2, 3): the
+// leg force k (L0 - r) - c r', r - L0, r' and |px / py| at the step's end, and the factor
+// acceptFactor would give if the step is accepted (laneEnd).
+const LANE_END: usize = memory.data(2 * 5 * 16, 16);
+export const END_FORCE = 0;
+export const END_RADIUS = 1;
+export const END_RATE = 2;
+export const END_FRICTION = 3;
+export const END_FACTOR = 4;
+
+@inline export function laneEnd(lane: i32, q: i32): f64 {
+  return load<f64>(LANE_END + <usize>(lane >> 1) * 80 + (<usize>q << 4) + <usize>(lane & 1) * 8);
+}
+
+// roughPow (dopri5.ts) in each lane, the same operations.
+@inline function roughPow2(x: v128, p: f64): v128 {
+  const ex = i64x2.sub(i64x2.shr_u(x, 52), i64x2.splat(1023));
+  // the exponent (-1023..1024) from the low halves of the i64 lanes, exactly
+  const e = f64x2.convert_low_i32x4_s(i8x16.shuffle(ex, ex, 0, 1, 2, 3, 8, 9, 10, 11, 0, 1, 2, 3, 8, 9, 10, 11));
+  const m = f64x2.sub(v128.or(v128.and(x, i64x2.splat(0x000fffffffffffff)), i64x2.splat(0x3ff0000000000000)), f64x2(1.0, 1.0));
+  const log2x = f64x2.add(e, f64x2.mul(m, f64x2.sub(f64x2(1.4425, 1.4425), f64x2.mul(f64x2(0.4425, 0.4425), m))));
+  const y = f64x2.mul(f64x2.splat(p), log2x);
+  const n = f64x2.floor(y);
+  const f = f64x2.sub(y, n);
+  const twoF = f64x2.add(f64x2(1.0, 1.0), f64x2.mul(f, f64x2.add(f64x2(0.6565, 0.6565), f64x2.mul(f64x2(0.3435, 0.3435), f))));
+  const scale = i64x2.shl(i64x2.add(i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(n)), i64x2.splat(1023)), 52);
+  return f64x2.mul(twoF, scale);
 }
 
 // Error estimates of the last stepPair (lanes 0, 1) or stepQuad (0..3), as step() returns them.
@@ -62,6 +91,8 @@ export function stepPair(
   cA: f64, cB: f64,
   invMA: f64, invMB: f64,
   gA: f64, gB: f64,
+  oldA: f64, oldB: f64,
+  hiA: f64, hiB: f64,
 ): void {
   const ONE = f64x2(1.0, 1.0);
   const vA21 = f64x2(A21, A21);
@@ -289,6 +320,21 @@ export function stepPair(
   scatter(pA, pB, OFF_YN + 16, n2X);
   scatter(pA, pB, OFF_YN + 24, n3X);
   scatter(pA, pB, OFF_YN + 32, n4X);
+  {
+    // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
+    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
+    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), nr);
+    v128.store(LANE_END + 0, f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, nr)), f64x2.mul(CX, nrdot))); // leg force
+    v128.store(LANE_END + 16, f64x2.sub(nr, LEGX)); // r - L0
+    v128.store(LANE_END + 32, nrdot);
+    v128.store(LANE_END + 48, f64x2.abs(f64x2.div(n0X, n1X))); // friction ratio
+    // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)
+    const e = v128.bitselect(errX, f64x2(1e-12, 1e-12), f64x2.gt(errX, f64x2(1e-12, 1e-12)));
+    let f = f64x2.mul(f64x2.mul(f64x2(0.9, 0.9), roughPow2(e, -EXPO)), roughPow2(pair(oldA, oldB), BETA));
+    f = v128.bitselect(f64x2(0.2, 0.2), f, f64x2.lt(f, f64x2(0.2, 0.2)));
+    const hi = pair(hiA, hiB);
+    v128.store(LANE_END + 64, v128.bitselect(hi, f, f64x2.gt(f, hi)));
+  }
   // A NaN or infinity anywhere in the stages shows up in err or in YN.
   laneErr0 = checked(f64x2.extract_lane(errX, 0), f64x2.extract_lane(finiteX, 0));
   laneErr1 = checked(f64x2.extract_lane(errX, 1), f64x2.extract_lane(finiteX, 1));
@@ -306,6 +352,8 @@ export function stepQuad(
   cA: f64, cB: f64, cC: f64, cD: f64,
   invMA: f64, invMB: f64, invMC: f64, invMD: f64,
   gA: f64, gB: f64, gC: f64, gD: f64,
+  oldA: f64, oldB: f64, oldC: f64, oldD: f64,
+  hiA: f64, hiB: f64, hiC: f64, hiD: f64,
 ): void {
   const ONE = f64x2(1.0, 1.0);
   const vA21 = f64x2(A21, A21);
@@ -702,6 +750,21 @@ export function stepQuad(
   scatter(pA, pB, OFF_YN + 16, n2X);
   scatter(pA, pB, OFF_YN + 24, n3X);
   scatter(pA, pB, OFF_YN + 32, n4X);
+  {
+    // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
+    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
+    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), nr);
+    v128.store(LANE_END + 0, f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, nr)), f64x2.mul(CX, nrdot))); // leg force
+    v128.store(LANE_END + 16, f64x2.sub(nr, LEGX)); // r - L0
+    v128.store(LANE_END + 32, nrdot);
+    v128.store(LANE_END + 48, f64x2.abs(f64x2.div(n0X, n1X))); // friction ratio
+    // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)
+    const e = v128.bitselect(errX, f64x2(1e-12, 1e-12), f64x2.gt(errX, f64x2(1e-12, 1e-12)));
+    let f = f64x2.mul(f64x2.mul(f64x2(0.9, 0.9), roughPow2(e, -EXPO)), roughPow2(pair(oldA, oldB), BETA));
+    f = v128.bitselect(f64x2(0.2, 0.2), f, f64x2.lt(f, f64x2(0.2, 0.2)));
+    const hi = pair(hiA, hiB);
+    v128.store(LANE_END + 64, v128.bitselect(hi, f, f64x2.gt(f, hi)));
+  }
   // A NaN or infinity anywhere in the stages shows up in err or in YN.
   laneErr0 = checked(f64x2.extract_lane(errX, 0), f64x2.extract_lane(finiteX, 0));
   laneErr1 = checked(f64x2.extract_lane(errX, 1), f64x2.extract_lane(finiteX, 1));
@@ -735,6 +798,21 @@ export function stepQuad(
   scatter(pC, pD, OFF_YN + 16, n2Y);
   scatter(pC, pD, OFF_YN + 24, n3Y);
   scatter(pC, pD, OFF_YN + 32, n4Y);
+  {
+    // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
+    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
+    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y)), nr);
+    v128.store(LANE_END + 80, f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, nr)), f64x2.mul(CY, nrdot))); // leg force
+    v128.store(LANE_END + 96, f64x2.sub(nr, LEGY)); // r - L0
+    v128.store(LANE_END + 112, nrdot);
+    v128.store(LANE_END + 128, f64x2.abs(f64x2.div(n0Y, n1Y))); // friction ratio
+    // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)
+    const e = v128.bitselect(errY, f64x2(1e-12, 1e-12), f64x2.gt(errY, f64x2(1e-12, 1e-12)));
+    let f = f64x2.mul(f64x2.mul(f64x2(0.9, 0.9), roughPow2(e, -EXPO)), roughPow2(pair(oldC, oldD), BETA));
+    f = v128.bitselect(f64x2(0.2, 0.2), f, f64x2.lt(f, f64x2(0.2, 0.2)));
+    const hi = pair(hiC, hiD);
+    v128.store(LANE_END + 144, v128.bitselect(hi, f, f64x2.gt(f, hi)));
+  }
   // A NaN or infinity anywhere in the stages shows up in err or in YN.
   laneErr2 = checked(f64x2.extract_lane(errY, 0), f64x2.extract_lane(finiteY, 0));
   laneErr3 = checked(f64x2.extract_lane(errY, 1), f64x2.extract_lane(finiteY, 1));
