@@ -95,6 +95,7 @@ export function stepPair(
   hiA: f64, hiB: f64,
 ): void {
   const ONE = f64x2(1.0, 1.0);
+  const ZERO = f64x2(0.0, 0.0);
   const vA21 = f64x2(A21, A21);
   const vA31 = f64x2(A31, A31);
   const vA32 = f64x2(A32, A32);
@@ -127,6 +128,10 @@ export function stepPair(
   const CX = pair(cA, cB);
   const IMX = pair(invMA, invMB);
   const GX = pair(gA, gB);
+  // the work component only with damping in a lane: without, it and its stage values stay +0
+  // (c r'^2 = +0 for finite r'; a non-finite r' makes the leg force NaN, and the step NaN, anyway),
+  // and its error term is +0 / atol = +0 (atol > 0 and rtol finite: a validated scenario's)
+  const wX = !(cA == 0.0 && cB == 0.0 && atolA > 0.0 && atolB > 0.0 && Math.abs(rtolA) < Infinity && Math.abs(rtolB) < Infinity);
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -146,14 +151,16 @@ export function stepPair(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       b0X = s2;
       b1X = s3;
       b2X = f64x2.mul(acc, s0);
       b3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else b4X = ZERO;
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
@@ -165,14 +172,16 @@ export function stepPair(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       c0X = s2;
       c1X = s3;
       c2X = f64x2.mul(acc, s0);
       c3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else c4X = ZERO;
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
@@ -184,14 +193,16 @@ export function stepPair(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       d0X = s2;
       d1X = s3;
       d2X = f64x2.mul(acc, s0);
       d3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else d4X = ZERO;
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
@@ -203,14 +214,16 @@ export function stepPair(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       e0X = s2;
       e1X = s3;
       e2X = f64x2.mul(acc, s0);
       e3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else e4X = ZERO;
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
@@ -222,33 +235,41 @@ export function stepPair(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       f0X = s2;
       f1X = s3;
       f2X = f64x2.mul(acc, s0);
       f3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else f4X = ZERO;
     }
   }
   const n0X = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0X), f64x2.mul(vB3, c0X)), f64x2.mul(vB4, d0X)), f64x2.mul(vB5, e0X)), f64x2.mul(vB6, f0X))));
   const n1X = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1X), f64x2.mul(vB3, c1X)), f64x2.mul(vB4, d1X)), f64x2.mul(vB5, e1X)), f64x2.mul(vB6, f1X))));
   const n2X = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2X), f64x2.mul(vB3, c2X)), f64x2.mul(vB4, d2X)), f64x2.mul(vB5, e2X)), f64x2.mul(vB6, f2X))));
   const n3X = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3X), f64x2.mul(vB3, c3X)), f64x2.mul(vB4, d3X)), f64x2.mul(vB5, e3X)), f64x2.mul(vB6, f3X))));
-  const n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
+  let n4X = y4X; // +0 + h (+0 ...) = +0 without damping
+  if (wX) n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
+  let rgX: v128, dgX: v128;
   {
     const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
     const inv = f64x2.div(ONE, r);
-    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), inv);
+    const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
+    rgX = r;
+    dgX = dot;
+    const rdot = f64x2.mul(dot, inv);
     const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
     const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
     g0X = n2X;
     g1X = n3X;
     g2X = f64x2.mul(acc, n0X);
     g3X = f64x2.sub(f64x2.mul(acc, n1X), GX);
-    g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    if (wX) g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    else g4X = ZERO;
   }
   const RTOLX = pair(rtolA, rtolB);
   const ATOLX = pair(atolA, atolB);
@@ -282,7 +303,7 @@ export function stepPair(
     sumX = f64x2.add(sumX, f64x2.mul(q, q));
     finiteX = f64x2.add(finiteX, f64x2.sub(n3X, n3X));
   }
-  {
+  if (wX) { // without damping the term is 0 / sc = +0, and n4 - n4 = 0
     const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4X), f64x2.mul(vE3, c4X)), f64x2.mul(vE4, d4X)), f64x2.mul(vE5, e4X)), f64x2.mul(vE6, f4X)), f64x2.mul(vE7, g4X)));
     const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y4X), f64x2.abs(n4X))));
     const q = f64x2.div(e, sc);
@@ -322,8 +343,8 @@ export function stepPair(
   scatter(pA, pB, OFF_YN + 32, n4X);
   {
     // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
-    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), nr);
+    const nr = rgX; // sqrt(px^2 + py^2) at YN, from K7's right-hand side
+    const nrdot = f64x2.div(dgX, nr); // (px vx + py vy) / r
     v128.store(LANE_END + 0, f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, nr)), f64x2.mul(CX, nrdot))); // leg force
     v128.store(LANE_END + 16, f64x2.sub(nr, LEGX)); // r - L0
     v128.store(LANE_END + 32, nrdot);
@@ -356,6 +377,7 @@ export function stepQuad(
   hiA: f64, hiB: f64, hiC: f64, hiD: f64,
 ): void {
   const ONE = f64x2(1.0, 1.0);
+  const ZERO = f64x2(0.0, 0.0);
   const vA21 = f64x2(A21, A21);
   const vA31 = f64x2(A31, A31);
   const vA32 = f64x2(A32, A32);
@@ -388,6 +410,10 @@ export function stepQuad(
   const CX = pair(cA, cB);
   const IMX = pair(invMA, invMB);
   const GX = pair(gA, gB);
+  // the work component only with damping in a lane: without, it and its stage values stay +0
+  // (c r'^2 = +0 for finite r'; a non-finite r' makes the leg force NaN, and the step NaN, anyway),
+  // and its error term is +0 / atol = +0 (atol > 0 and rtol finite: a validated scenario's)
+  const wX = !(cA == 0.0 && cB == 0.0 && atolA > 0.0 && atolB > 0.0 && Math.abs(rtolA) < Infinity && Math.abs(rtolB) < Infinity);
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -404,6 +430,10 @@ export function stepQuad(
   const CY = pair(cC, cD);
   const IMY = pair(invMC, invMD);
   const GY = pair(gC, gD);
+  // the work component only with damping in a lane: without, it and its stage values stay +0
+  // (c r'^2 = +0 for finite r'; a non-finite r' makes the leg force NaN, and the step NaN, anyway),
+  // and its error term is +0 / atol = +0 (atol > 0 and rtol finite: a validated scenario's)
+  const wY = !(cC == 0.0 && cD == 0.0 && atolC > 0.0 && atolD > 0.0 && Math.abs(rtolC) < Infinity && Math.abs(rtolD) < Infinity);
   const y0Y = gather(pC, pD, OFF_Y0 + 0);
   const y1Y = gather(pC, pD, OFF_Y0 + 8);
   const y2Y = gather(pC, pD, OFF_Y0 + 16);
@@ -423,14 +453,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       b0X = s2;
       b1X = s3;
       b2X = f64x2.mul(acc, s0);
       b3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) b4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else b4X = ZERO;
     }
   }
   let b0Y: v128, b1Y: v128, b2Y: v128, b3Y: v128, b4Y: v128;
@@ -442,14 +474,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
       b0Y = s2;
       b1Y = s3;
       b2Y = f64x2.mul(acc, s0);
       b3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
-      b4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      if (wY) b4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      else b4Y = ZERO;
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
@@ -461,14 +495,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       c0X = s2;
       c1X = s3;
       c2X = f64x2.mul(acc, s0);
       c3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) c4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else c4X = ZERO;
     }
   }
   let c0Y: v128, c1Y: v128, c2Y: v128, c3Y: v128, c4Y: v128;
@@ -480,14 +516,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
       c0Y = s2;
       c1Y = s3;
       c2Y = f64x2.mul(acc, s0);
       c3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
-      c4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      if (wY) c4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      else c4Y = ZERO;
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
@@ -499,14 +537,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       d0X = s2;
       d1X = s3;
       d2X = f64x2.mul(acc, s0);
       d3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) d4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else d4X = ZERO;
     }
   }
   let d0Y: v128, d1Y: v128, d2Y: v128, d3Y: v128, d4Y: v128;
@@ -518,14 +558,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
       d0Y = s2;
       d1Y = s3;
       d2Y = f64x2.mul(acc, s0);
       d3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
-      d4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      if (wY) d4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      else d4Y = ZERO;
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
@@ -537,14 +579,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       e0X = s2;
       e1X = s3;
       e2X = f64x2.mul(acc, s0);
       e3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) e4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else e4X = ZERO;
     }
   }
   let e0Y: v128, e1Y: v128, e2Y: v128, e3Y: v128, e4Y: v128;
@@ -556,14 +600,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
       e0Y = s2;
       e1Y = s3;
       e2Y = f64x2.mul(acc, s0);
       e3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
-      e4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      if (wY) e4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      else e4Y = ZERO;
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
@@ -575,14 +621,16 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
       f0X = s2;
       f1X = s3;
       f2X = f64x2.mul(acc, s0);
       f3X = f64x2.sub(f64x2.mul(acc, s1), GX);
-      f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      if (wX) f4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+      else f4X = ZERO;
     }
   }
   let f0Y: v128, f1Y: v128, f2Y: v128, f3Y: v128, f4Y: v128;
@@ -594,51 +642,65 @@ export function stepQuad(
     {
       const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
       const inv = f64x2.div(ONE, r);
-      const rdot = f64x2.mul(f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3)), inv);
+      const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
+      const rdot = f64x2.mul(dot, inv);
       const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
       const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
       f0Y = s2;
       f1Y = s3;
       f2Y = f64x2.mul(acc, s0);
       f3Y = f64x2.sub(f64x2.mul(acc, s1), GY);
-      f4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      if (wY) f4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+      else f4Y = ZERO;
     }
   }
   const n0X = f64x2.add(y0X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0X), f64x2.mul(vB3, c0X)), f64x2.mul(vB4, d0X)), f64x2.mul(vB5, e0X)), f64x2.mul(vB6, f0X))));
   const n1X = f64x2.add(y1X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1X), f64x2.mul(vB3, c1X)), f64x2.mul(vB4, d1X)), f64x2.mul(vB5, e1X)), f64x2.mul(vB6, f1X))));
   const n2X = f64x2.add(y2X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2X), f64x2.mul(vB3, c2X)), f64x2.mul(vB4, d2X)), f64x2.mul(vB5, e2X)), f64x2.mul(vB6, f2X))));
   const n3X = f64x2.add(y3X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3X), f64x2.mul(vB3, c3X)), f64x2.mul(vB4, d3X)), f64x2.mul(vB5, e3X)), f64x2.mul(vB6, f3X))));
-  const n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
+  let n4X = y4X; // +0 + h (+0 ...) = +0 without damping
+  if (wX) n4X = f64x2.add(y4X, f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4X), f64x2.mul(vB3, c4X)), f64x2.mul(vB4, d4X)), f64x2.mul(vB5, e4X)), f64x2.mul(vB6, f4X))));
   const n0Y = f64x2.add(y0Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a0Y), f64x2.mul(vB3, c0Y)), f64x2.mul(vB4, d0Y)), f64x2.mul(vB5, e0Y)), f64x2.mul(vB6, f0Y))));
   const n1Y = f64x2.add(y1Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a1Y), f64x2.mul(vB3, c1Y)), f64x2.mul(vB4, d1Y)), f64x2.mul(vB5, e1Y)), f64x2.mul(vB6, f1Y))));
   const n2Y = f64x2.add(y2Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a2Y), f64x2.mul(vB3, c2Y)), f64x2.mul(vB4, d2Y)), f64x2.mul(vB5, e2Y)), f64x2.mul(vB6, f2Y))));
   const n3Y = f64x2.add(y3Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a3Y), f64x2.mul(vB3, c3Y)), f64x2.mul(vB4, d3Y)), f64x2.mul(vB5, e3Y)), f64x2.mul(vB6, f3Y))));
-  const n4Y = f64x2.add(y4Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4Y), f64x2.mul(vB3, c4Y)), f64x2.mul(vB4, d4Y)), f64x2.mul(vB5, e4Y)), f64x2.mul(vB6, f4Y))));
+  let n4Y = y4Y; // +0 + h (+0 ...) = +0 without damping
+  if (wY) n4Y = f64x2.add(y4Y, f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vB1, a4Y), f64x2.mul(vB3, c4Y)), f64x2.mul(vB4, d4Y)), f64x2.mul(vB5, e4Y)), f64x2.mul(vB6, f4Y))));
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
+  let rgX: v128, dgX: v128;
   {
     const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
     const inv = f64x2.div(ONE, r);
-    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), inv);
+    const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
+    rgX = r;
+    dgX = dot;
+    const rdot = f64x2.mul(dot, inv);
     const force = f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, r)), f64x2.mul(CX, rdot));
     const acc = f64x2.mul(f64x2.mul(force, inv), IMX);
     g0X = n2X;
     g1X = n3X;
     g2X = f64x2.mul(acc, n0X);
     g3X = f64x2.sub(f64x2.mul(acc, n1X), GX);
-    g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    if (wX) g4X = f64x2.mul(f64x2.mul(CX, rdot), rdot);
+    else g4X = ZERO;
   }
   let g0Y: v128, g1Y: v128, g2Y: v128, g3Y: v128, g4Y: v128;
+  let rgY: v128, dgY: v128;
   {
     const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
     const inv = f64x2.div(ONE, r);
-    const rdot = f64x2.mul(f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y)), inv);
+    const dot = f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y));
+    rgY = r;
+    dgY = dot;
+    const rdot = f64x2.mul(dot, inv);
     const force = f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, r)), f64x2.mul(CY, rdot));
     const acc = f64x2.mul(f64x2.mul(force, inv), IMY);
     g0Y = n2Y;
     g1Y = n3Y;
     g2Y = f64x2.mul(acc, n0Y);
     g3Y = f64x2.sub(f64x2.mul(acc, n1Y), GY);
-    g4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    if (wY) g4Y = f64x2.mul(f64x2.mul(CY, rdot), rdot);
+    else g4Y = ZERO;
   }
   const RTOLX = pair(rtolA, rtolB);
   const ATOLX = pair(atolA, atolB);
@@ -672,7 +734,7 @@ export function stepQuad(
     sumX = f64x2.add(sumX, f64x2.mul(q, q));
     finiteX = f64x2.add(finiteX, f64x2.sub(n3X, n3X));
   }
-  {
+  if (wX) { // without damping the term is 0 / sc = +0, and n4 - n4 = 0
     const e = f64x2.mul(hX, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4X), f64x2.mul(vE3, c4X)), f64x2.mul(vE4, d4X)), f64x2.mul(vE5, e4X)), f64x2.mul(vE6, f4X)), f64x2.mul(vE7, g4X)));
     const sc = f64x2.add(ATOLX, f64x2.mul(RTOLX, f64x2.max(f64x2.abs(y4X), f64x2.abs(n4X))));
     const q = f64x2.div(e, sc);
@@ -712,7 +774,7 @@ export function stepQuad(
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n3Y, n3Y));
   }
-  {
+  if (wY) { // without damping the term is 0 / sc = +0, and n4 - n4 = 0
     const e = f64x2.mul(hY, f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(vE1, a4Y), f64x2.mul(vE3, c4Y)), f64x2.mul(vE4, d4Y)), f64x2.mul(vE5, e4Y)), f64x2.mul(vE6, f4Y)), f64x2.mul(vE7, g4Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y4Y), f64x2.abs(n4Y))));
     const q = f64x2.div(e, sc);
@@ -752,8 +814,8 @@ export function stepQuad(
   scatter(pA, pB, OFF_YN + 32, n4X);
   {
     // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
-    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X)), nr);
+    const nr = rgX; // sqrt(px^2 + py^2) at YN, from K7's right-hand side
+    const nrdot = f64x2.div(dgX, nr); // (px vx + py vy) / r
     v128.store(LANE_END + 0, f64x2.sub(f64x2.mul(KX, f64x2.sub(LEGX, nr)), f64x2.mul(CX, nrdot))); // leg force
     v128.store(LANE_END + 16, f64x2.sub(nr, LEGX)); // r - L0
     v128.store(LANE_END + 32, nrdot);
@@ -800,8 +862,8 @@ export function stepQuad(
   scatter(pC, pD, OFF_YN + 32, n4Y);
   {
     // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
-    const nr = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
-    const nrdot = f64x2.div(f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y)), nr);
+    const nr = rgY; // sqrt(px^2 + py^2) at YN, from K7's right-hand side
+    const nrdot = f64x2.div(dgY, nr); // (px vx + py vy) / r
     v128.store(LANE_END + 80, f64x2.sub(f64x2.mul(KY, f64x2.sub(LEGY, nr)), f64x2.mul(CY, nrdot))); // leg force
     v128.store(LANE_END + 96, f64x2.sub(nr, LEGY)); // r - L0
     v128.store(LANE_END + 112, nrdot);
