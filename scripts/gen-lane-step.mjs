@@ -29,10 +29,15 @@ function fn(name, chains) {
   const L = [];
   const o = (s) => L.push(s);
   const lanes = chains.flatMap((c) => c.lanes);
-  const args = [];
-  args.push(lanes.map((l) => `p${l}: usize`).join(', '));
-  for (const p of ['h', 'rtol', 'atol', 'dim', 'k', 'leg', 'c', 'invM', 'g', 'old', 'hi']) args.push(lanes.map((l) => `${p}${l.toUpperCase()}: f64`).join(', '));
-  o(`export function ${name}(\n  ${args.join(',\n  ')},\n): void {`);
+  o(`export function ${name}(${lanes.map((l) => `s${l}: Stance`).join(', ')}): void {`);
+  for (const l of lanes) {
+    const U = l.toUpperCase();
+    o(`  const p${l} = s${l}.bufs;`);
+    for (const [v, f] of [['h', 'h'], ['rtol', 'rtol'], ['atol', 'atol'], ['dim', 'errDim'], ['k', 'k'], ['leg', 'leg'], ['c', 'c'], ['invM', 'invMass'], ['g', 'g'], ['old', 'errOld']]) {
+      o(`  const ${v}${U} = s${l}.${f};`);
+    }
+    o(`  const hi${U}: f64 = s${l}.afterReject ? 1.0 : 10.0;`);
+  }
   o(`  const ONE = f64x2(1.0, 1.0);`);
   o(`  const ZERO = f64x2(0.0, 0.0);`);
   for (const c of consts) o(`  const ${V(c)} = f64x2(${c}, ${c});`);
@@ -160,6 +165,7 @@ import {
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
   OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
+import { Stance } from "../stance";
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
 // f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
@@ -222,8 +228,8 @@ export let laneErr3: f64 = 0.0;
   return !isFinite(err) || finite != 0.0 ? NaN : err;
 }
 
-// One step of size hA in lane A (stepper buffers at pA, stance parameters ...A) and hB in lane B,
-// from each lane's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
+// One step of stance sA (its step size h, its buffers, parameters and controller memory) and of
+// sB, one in each lane, from each one's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
 // for unpackStages, and the error estimates into laneErr0, laneErr1.`);
 out.push(fn('stepPair', [{ id: 'X', lanes: ['A', 'B'], base: 0 }]));
 out.push(`
