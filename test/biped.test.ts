@@ -207,6 +207,25 @@ describe('walking: energy, symmetry and the published result', () => {
   });
 });
 
+describe('a walker that does not conserve energy', () => {
+  it('with leg damping the map is not reduced by energy: it searches the full map (height, speed, offset)', async () => {
+    // law: a damper only removes energy, so no periodic walking exists without an energy input
+    const s = biped({ body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81, leg_damping_N_s_per_m: 200 } });
+    const map = await bipedReturnMap(s, { iterations: 5 });
+    expect(map.energy_conserving).toBe(false);
+    expect(map.reduced_state).toEqual(['height_m', 'speed_m_per_s', 'offset_m']);
+    expect(map.fixed_points).toEqual([]);
+    const r = await records(biped({ ...s, strides: 3 } as unknown as Record<string, unknown>), 3);
+    expect(r.completed).toBeGreaterThanOrEqual(1);
+    for (let i = 0; i < r.completed; i++) {
+      // energy balance: what the section lost is what the dampers (and legs leaving loaded) took
+      const lost = r.rec(i, L.R_ENERGY_BEFORE) - r.rec(i, L.R_ENERGY_AFTER);
+      expect(lost).toBeGreaterThan(0);
+      expect(Math.abs(lost - r.rec(i, L.R_DISSIPATED)) / lost).toBeLessThan(1e-6);
+    }
+  });
+});
+
 describe('failures are named statuses', () => {
   it('a walking start too fast to stay on the ground ends in gait_changed, not a crash', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 3 }, strides: 10 });
