@@ -1,6 +1,8 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
@@ -405,7 +407,7 @@ describe('pronk with a two-leg scenario', () => {
     ).toThrow(/optimize supports "slip", found "biped"/);
   });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['deadbeat']) {
+    for (const command of ['deadbeat', 'export']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']
@@ -413,7 +415,9 @@ describe('pronk with a two-leg scenario', () => {
             ? ['--sigma', '0.01']
             : command === 'deadbeat'
               ? ['--ground=-0.05:0.05']
-              : [];
+              : command === 'export'
+                ? ['--format', 'json', '--out', join(mkdtempSync(join(tmpdir(), 'pronk-biped-')), 'policy.json')]
+                : [];
       const run = await pronk([command, 'scenarios/demo-biped.json', ...extra]);
       expect(run.code, `${command}: ${run.stderr}`).toBe(2);
       expect(run.stderr).toContain(`scenario model "biped": ${command} supports "slip", found "biped"`);
