@@ -423,6 +423,17 @@ describe('pronk with a two-leg scenario', () => {
       expect(run.stderr).toContain(`scenario model "biped": ${command} supports "slip", found "biped"`);
     }
   });
+  it('the library: simulateBiped and bipedReturnMap with the kind header; simulate and returnMap refuse a two-leg scenario by name', async () => {
+    const lib = await import('../src/index.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    const r = await lib.simulateBiped(scenario, { strides: 3 });
+    expect(r).toMatchObject({ format: 'pronk-simulate', model: 'biped', section: 'single_support_apex' });
+    expect(r.outcome.status).toBe('completed');
+    const m = await lib.bipedReturnMap(scenario, { iterations: 0 });
+    expect(m.fixed_points.some((f) => f.stable)).toBe(true);
+    await expect(lib.simulate(scenario)).rejects.toThrow(/scenario model "biped": simulate \(two-leg scenarios: simulateBiped\) supports "slip"/);
+    await expect(lib.returnMap(scenario)).rejects.toThrow(InputError);
+  });
   it('a model kind this build does not know is refused naming the field', () => {
     expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip" or "biped"/);
   });
