@@ -239,6 +239,18 @@ describe('failures are named statuses', () => {
     expect(STATUS_NAMES[L.STATUS_NO_SECTION]).toBe('no_section');
   });
 
+  it('stalled: too slow to carry the body over the new leg, forward speed reaches zero in double support', async () => {
+    // law: at 0.05 m/s the kinetic energy (0.1 J) cannot lift the body over the steep (75 deg) new leg
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 75 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('stalled');
+    expect(result.outcome.failed_stride).toBe(0);
+  });
+  it('no_section: the body never rises on its new leg, and the swing leg lands again before an apex', async () => {
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 70 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('no_section');
+  });
   it('a walker too slow to vault over its stance leg fails with a named status', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 0.05, offset_m: -0.1 }, strides: 10 });
     const result = await simulateBiped(s);
