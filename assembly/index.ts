@@ -8,6 +8,7 @@ import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDim
 import { rhs, setArenstorf } from "./rk/system";
 import { gaussian } from "./rng";
 import { LAYOUT_VERSION } from "./layout";
+export { runLateralBatch, traceLateralRollout } from "./lateral";
 
 let arenaTop: usize = 0;
 
