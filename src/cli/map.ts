@@ -2,7 +2,7 @@
 // scenario's energy, its fixed points with slope, eigenvalues and stance symmetry, and the staircase
 // from the start apex.
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { type Scenario } from '../core/scenario.js';
@@ -51,7 +51,18 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
   const plot = await plotOption(values.plot);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'map');
+  const any = await anyScenarioArgument(file, io, 'map', ['slip', 'lateral']);
+  if (any.kind === 'lateral') {
+    if (samples !== undefined || iterations !== undefined || values.approx === true || plot !== undefined) {
+      throw new InputError(
+        [{ path: '', expected: '', found: '', message: 'a "lateral" scenario takes no --samples, --iterations, --approx or --plot (they describe the single-leg apex map)' }],
+        { source: SOURCE },
+      );
+    }
+    const { runLateralMap } = await import('./lateral.js');
+    return runLateralMap(any.scenario, io, { json });
+  }
+  const scenario = any.scenario;
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { apexReturnMap } = await import('../core/analysis/return-map.js');
   let result: ReturnMapResult;

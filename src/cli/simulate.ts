@@ -1,6 +1,6 @@
 // `pronk simulate [FILE] [--json] [--strides N] [--trace-interval S]`: one rollout of a scenario, shown stride by stride.
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import {
@@ -40,7 +40,12 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'simulate');
+  const any = await anyScenarioArgument(file, io, 'simulate', ['slip', 'lateral']);
+  if (any.kind === 'lateral') {
+    const { runLateralSimulate } = await import('./lateral.js');
+    return runLateralSimulate(any.scenario, io, { json, strides, traceInterval });
+  }
+  const scenario = any.scenario;
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { simulate } = await import('../core/simulate.js');
   const result = await simulate(scenario, {

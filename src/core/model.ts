@@ -113,6 +113,9 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_NON_FINITE]: 'non_finite_state',
   [L.STATUS_STEP_LIMIT]: 'step_limit',
   [L.STATUS_ATTACK_OUT_OF_RANGE]: 'attack_out_of_range',
+  // lateral leg-spring model
+  [L.STATUS_STALLED_FORWARD]: 'stalled_forward',
+  [L.STATUS_LEG_UNLOADED]: 'leg_unloaded',
 };
 
 /** What each failure means, in words for a report. */
@@ -128,4 +131,6 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_STEP_LIMIT]: 'numeric trouble: step limit reached (the integrator in one stance, or the touchdown search)',
   [L.STATUS_ATTACK_OUT_OF_RANGE]:
     'the commanded leg angle left (0, 90] deg before touchdown (a retraction without a clamp on that side: add max_deg or min_deg)',
+  [L.STATUS_STALLED_FORWARD]: 'the velocity along the body axis fell to zero (the body stalled or turned sideways)',
+  [L.STATUS_LEG_UNLOADED]: 'at a touchdown the body was already moving away from the new foot (the leg cannot load)',
 };

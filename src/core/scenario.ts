@@ -6,6 +6,7 @@
 import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
+import { modelKindOf, refuseModelKind } from './models/kind.js';
 import { validateWith, valueAt } from './validation.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
@@ -257,6 +258,7 @@ export const schemaReference = text('a string (the JSON Schema this file follows
 
 const scenarioShape = {
   $schema: schemaReference,
+  model: z.literal('slip', { error: 'the string "slip" (or no model field)' }).optional(),
   name: text('a string').optional(),
   description: text('a string').optional(),
   body: bodySchema,
@@ -343,7 +345,10 @@ function showAbove(bound: number, found: number): string {
 // Validation entry points.
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
-export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
+export function parseScenario(value: unknown, options: { source?: string; command?: string } = {}): Scenario {
+  // another model kind: refused by name, never read as a single-leg scenario (models/kind.ts)
+  const kind = modelKindOf(value, options);
+  if (kind !== 'slip') refuseModelKind(options.command ?? 'this command', ['slip'], kind, options.source);
   const result = validateWith(scenarioSchema, value);
   if (!result.success) throw new InputError(result.issues, options);
   const { $schema: _reference, ...scenario } = result.data;
@@ -358,7 +363,12 @@ export function demoScenario(): Scenario {
 // ---------------------------------------------------------------------------------------------
 // Reading scenario files (Node only; fs is loaded on demand so the module also runs in a browser).
 
-export async function readScenarioFile(path: string): Promise<Scenario> {
+export async function readScenarioFile(path: string, options: { command?: string } = {}): Promise<Scenario> {
+  return parseScenario(await readScenarioValue(path), { source: path, command: options.command });
+}
+
+/** A scenario file's JSON value, unchecked (a file error or invalid JSON is an InputError). */
+export async function readScenarioValue(path: string): Promise<unknown> {
   const { readFile } = await import('node:fs/promises');
   let text: string;
   try {
@@ -369,7 +379,7 @@ export async function readScenarioFile(path: string): Promise<Scenario> {
       { source: path },
     );
   }
-  return parseScenario(parseJson(text, path), { source: path });
+  return parseJson(text, path);
 }
 
 function describeFileError(error: unknown): string {

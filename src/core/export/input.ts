@@ -143,7 +143,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario);
+    scenario = parseScenario(result.scenario, { command: 'export' });
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -189,7 +189,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file });
+  const scenario = parseScenario(value, { source: file, command: 'export' });
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',

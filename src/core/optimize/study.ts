@@ -528,7 +528,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
   } else if (hasInline) {
     try {
-      scenario = parseScenario(raw.scenario);
+      scenario = parseScenario(raw.scenario, { command: 'optimize' });
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -850,7 +850,7 @@ export async function readStudyFile(path: string): Promise<Study> {
   let scenarioFromFile: Scenario | undefined;
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
-    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
+    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize' });
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }

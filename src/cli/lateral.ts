@@ -1,0 +1,224 @@
+// The lateral leg-spring model in `pronk simulate` and `pronk map`: what they print for a
+// "model": "lateral" scenario (the single-leg views are in simulate.ts and map.ts).
+
+import { SAFETY_CAUTION } from '../core/safety.js';
+import { jsonText } from '../core/json-output.js';
+import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
+import * as L from '../../assembly/layout.js';
+import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
+import { type LateralScenario, sectionEnergy, lateralStart } from '../core/models/lateral.js';
+import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import type { CliIO } from './main.js';
+
+const TEXT_WIDTH = 96;
+
+export function describeLateralBody(s: LateralScenario): string {
+  const b = s.body;
+  return (
+    `${plain(b.mass_kg)} kg, I ${plain(b.moment_of_inertia_kg_m2)} kg m^2, leg ${plain(b.leg_length_m)} m at ` +
+    `${plain(b.leg_stiffness_N_per_m)} N/m, attachment ${b.attachment_offset_m === 0 ? 'at the centre of mass' : `${plain(Math.abs(b.attachment_offset_m))} m ${b.attachment_offset_m > 0 ? 'ahead of' : 'behind'} the centre of mass`}` +
+    (b.attachment_rate_m_per_s !== 0 ? ` moving ${plain(b.attachment_rate_m_per_s)} m/s in stance` : '')
+  );
+}
+
+function header(s: LateralScenario, extra: [string, string][] = []): string {
+  const start = lateralStart(s);
+  return [
+    s.name ?? 'Unnamed scenario',
+    fields([
+      ['model', 'lateral leg-spring (horizontal plane, left and right legs alternating, no flight)'],
+      ['body', describeLateralBody(s)],
+      ['policy', `touchdown at ${plain(s.policy.angle.angle_to_body_deg)} deg to the body axis; constant stiffness`],
+      [
+        'start',
+        `left touchdown at ${plain(s.start.speed_m_per_s)} m/s, heading ${plain(s.start.heading_to_body_deg)} deg to the body axis, ` +
+          `${plain(s.start.angular_velocity_deg_per_s)} deg/s; energy ${plain(sectionEnergy(s, start))} J`,
+      ],
+      ...extra,
+    ]),
+  ].join('\n');
+}
+
+const STRIDE_COLUMNS: Column[] = [
+  { title: 'stride', unit: '', align: 'left' },
+  { title: 'time', unit: 's' },
+  { title: 'speed', unit: 'm/s' },
+  { title: 'heading', unit: 'to body deg' },
+  { title: 'ang. vel.', unit: 'deg/s' },
+  { title: 'heading', unit: 'deg' },
+  { title: 'body', unit: 'deg' },
+  { title: 'stride', unit: 'ms' },
+  { title: 'peak force', unit: 'N' },
+  { title: 'compression', unit: '% leg' },
+];
+
+export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation): object {
+  return {
+    scenario: s,
+    status: STATUS_NAMES[r.status] ?? `status_${r.status}`,
+    reason: r.status === L.STATUS_OK ? null : (STATUS_TEXT[r.status] ?? null),
+    strides_completed: r.strides_completed,
+    strides: r.rows.map((row) => ({ ...row, status: STATUS_NAMES[row.status] ?? `status_${row.status}` })),
+    final: {
+      time_s: r.final.time_s,
+      x_m: r.final.x_m,
+      y_m: r.final.y_m,
+      body_angle_deg: (r.final.theta * 180) / Math.PI,
+      speed_m_per_s: r.final.speed,
+      heading_to_body_deg: (r.final.delta * 180) / Math.PI,
+      angular_velocity_deg_per_s: (r.final.omega * 180) / Math.PI,
+      heading_deg: (r.final.heading * 180) / Math.PI,
+    },
+    ...(r.samples
+      ? {
+          trajectory: r.samples.map((p) => ({
+            time_s: p.t,
+            x_m: p.x,
+            y_m: p.y,
+            body_angle_deg: (p.theta * 180) / Math.PI,
+            vx_m_per_s: p.vx,
+            vy_m_per_s: p.vy,
+            angular_velocity_deg_per_s: (p.omega * 180) / Math.PI,
+            foot_x_m: p.footX,
+            foot_y_m: p.footY,
+            leg_force_N: p.force,
+            leg: p.side > 0 ? 'left' : 'right',
+            stride: p.stride,
+          })),
+        }
+      : {}),
+    caution: SAFETY_CAUTION,
+  };
+}
+
+export function renderLateralSimulation(s: LateralScenario, r: LateralSimulation, requested: number): string {
+  const rows = r.rows.map((row) => [
+    String(row.stride),
+    fixed(row.time_s, 4),
+    fixed(row.speed_m_per_s, 4),
+    fixed(row.heading_to_body_deg, 3),
+    fixed(row.angular_velocity_deg_per_s, 2),
+    fixed(row.heading_deg, 3),
+    fixed(row.body_angle_deg, 3),
+    fixed(row.stride_time_s * 1000, 2),
+    fixed(row.peak_leg_force_N, 4),
+    fixed((100 * row.max_compression_m) / s.body.leg_length_m, 1),
+  ]);
+  const deg = 180 / Math.PI;
+  const outcome =
+    r.status === L.STATUS_OK
+      ? `Outcome: all ${count(requested, 'stride')} completed; at the last left touchdown ${fixed(r.final.speed, 4)} m/s, heading ${fixed(r.final.heading * deg, 3)} deg (${fixed(r.final.delta * deg, 3)} deg to the body axis), ${fixed(r.final.omega * deg, 2)} deg/s.`
+      : `Outcome: failed in stride ${r.strides_completed} after ${count(r.strides_completed, 'completed stride')}: ${STATUS_TEXT[r.status] ?? `status ${r.status}`}.`;
+  return [
+    header(s, [['strides', `${count(requested, 'stride')} requested (a stride: a left and a right stance)`]]),
+    '',
+    'Each row: the state at a left touchdown and the stride that follows it.',
+    table(STRIDE_COLUMNS, rows),
+    '',
+    wrap(outcome, TEXT_WIDTH),
+    '',
+    wrap(`Caution: ${SAFETY_CAUTION}`, TEXT_WIDTH),
+    '',
+  ].join('\n');
+}
+
+export async function runLateralSimulate(
+  s: LateralScenario,
+  io: CliIO,
+  options: { json: boolean; strides?: number; traceInterval?: number },
+): Promise<number> {
+  const { loadEngine } = await import('../core/engine.js');
+  const { simulateLateral } = await import('../core/analysis/lateral.js');
+  const engine = await loadEngine();
+  const n = options.strides ?? s.strides;
+  const r = simulateLateral(engine, s, { strides: n, ...(options.json && options.traceInterval ? { dt: options.traceInterval } : {}) });
+  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), 'lateral'));
+  else io.stdout.write(renderLateralSimulation(s, r, n));
+  return 0;
+}
+
+// ---------------------------------------------------------------------------------------------
+// map
+
+function showEigen(z: LateralEigen): string {
+  if (Math.abs(z.im) < 5e-7) return fixed(z.re, 6);
+  return `${fixed(z.re, 6)}${z.im < 0 ? '-' : '+'}${fixed(Math.abs(z.im), 6)}i`;
+}
+
+export interface LateralMapOutput extends LateralMapResult {
+  minimum_speed_m_per_s: number | null;
+  notes: string[];
+}
+
+export function lateralMapJson(s: LateralScenario, r: LateralMapOutput): object {
+  const fp = (f: LateralFixedPoint) => f;
+  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp) };
+}
+
+export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): string {
+  const columns: Column[] = [
+    { title: 'gait', unit: '', align: 'left' },
+    { title: 'speed', unit: 'm/s' },
+    { title: 'heading', unit: 'to body deg' },
+    { title: 'ang. vel.', unit: 'deg/s' },
+    { title: 'stride', unit: 'ms' },
+    { title: 'peak force', unit: 'N' },
+    { title: 'reduced eigenvalues', unit: '(heading to body, ang. vel.)', align: 'left' },
+    { title: 'stability', unit: '', align: 'left' },
+  ];
+  const rows = r.fixed_points.map((f, i) => [
+    String(i + 1),
+    fixed(f.speed_m_per_s, 4),
+    fixed(f.heading_to_body_deg, 4),
+    fixed(f.angular_velocity_deg_per_s, 3),
+    fixed(f.stride_time_s * 1000, 2),
+    fixed(f.peak_leg_force_N, 4),
+    f.reduced_eigenvalues.map(showEigen).join(', '),
+    f.stability,
+  ]);
+  const full = r.fixed_points.map(
+    (f, i) =>
+      `  gait ${i + 1}: full stride map ${f.eigenvalues.map(showEigen).join(', ')}; distance of the two nearest 1: ` +
+      `${f.unit_eigenvalue_errors.map((e) => e.toExponential(1)).join(', ')}; residual over a stride ${f.stride_residual.toExponential(1)}`,
+  );
+  const lines = [
+    header(s, [
+      ['energy', `${plain(r.energy_J)} J (speed ${plain(r.speed_m_per_s)} m/s without rotation)`],
+      [
+        'minimum',
+        r.minimum_speed_m_per_s === null
+          ? 'no periodic gait found at this speed, at ten times it, or below'
+          : `no periodic gait below ${plain(r.minimum_speed_m_per_s)} m/s (the lowest speed with one, by bisection to 1e-4)`,
+      ],
+    ]),
+    '',
+    r.fixed_points.length === 0
+      ? 'No periodic gait at this energy.'
+      : `Periodic gaits at this energy (left touchdown state; ${count(r.fixed_points.length, 'fixed point')}):`,
+    ...(r.fixed_points.length ? [table(columns, rows), '', 'Eigenvalues of the full stride map (speed, heading to body, angular velocity, heading):', ...full] : []),
+    '',
+    ...r.notes.map((n) => wrap(n, TEXT_WIDTH)),
+    '',
+    wrap(`Caution: ${SAFETY_CAUTION}`, TEXT_WIDTH),
+    '',
+  ];
+  return lines.join('\n');
+}
+
+export const LATERAL_MAP_NOTES = [
+  'The full stride map has the eigenvalue 1 twice by symmetry: energy is conserved (with a fixed attachment point) and the dynamics do not depend on the absolute heading. The reduced map acts on the heading to the body axis and the angular velocity at fixed energy; a gait is stable when both of its eigenvalues lie inside the unit circle, neutral when the largest is 1.',
+  'The search finds the symmetric gaits (the right stance mirrors the left) from a grid of starts by Newton\'s method on the half-stride map.',
+];
+
+export async function runLateralMap(s: LateralScenario, io: CliIO, options: { json: boolean }): Promise<number> {
+  const { loadEngine } = await import('../core/engine.js');
+  const { lateralFixedPoints, minimumGaitSpeed } = await import('../core/analysis/lateral.js');
+  const engine = await loadEngine();
+  const r = lateralFixedPoints(engine, s);
+  // below the scenario's speed when it has a gait, else from ten times it (at most 1000 m/s)
+  const minimum = minimumGaitSpeed(engine, s, r.fixed_points.length ? r.speed_m_per_s : Math.min(1e3, 10 * r.speed_m_per_s));
+  const out: LateralMapOutput = { ...r, minimum_speed_m_per_s: minimum ?? null, notes: LATERAL_MAP_NOTES };
+  if (options.json) io.stdout.write(jsonText('map', lateralMapJson(s, out), 'lateral'));
+  else io.stdout.write(renderLateralMap(s, out));
+  return 0;
+}
