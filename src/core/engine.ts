@@ -18,6 +18,7 @@ export interface KernelExports {
     samples: number, capacity: number, dt: number,
   ): number;
   terrainGaussian(seed: number, stream: number, index: number): number;
+  rngUniform(seed: number, stream: number, counter: number): number;
   integrateArenstorf(mu: number, x0: number, vy0: number, tEnd: number, rtol: number, atol: number, out: number): void;
   runLateralBatch(models: number, inputs: number, rollouts: number, strides: number, records: number, summaries: number): number;
   traceLateralRollout(
@@ -286,6 +287,11 @@ export class Engine {
       summary: this.view(summary, L.LS_SIZE).slice(),
       truncated: n >= capacity,
     };
+  }
+
+  /** Uniform draw in (0, 1), number `counter` of stream `stream` of `seed` (counter-based: rng.ts). */
+  uniform(seed: number, stream: number, counter: number): number {
+    return this.kernel.rngUniform(seed, stream, counter);
   }
 
   /** Standard-normal draw `index` of terrain stream `stream` (for checks). */

@@ -122,6 +122,8 @@ export interface LateralMapOptions {
   rateStarts?: number;
   /** Skip the eigenvalues (existence only, e.g. for the minimum-speed search). */
   existenceOnly?: boolean;
+  /** Newton starts (rad, rad/s) instead of the grid: continuation from a known gait. */
+  starts?: readonly { delta: number; omega: number }[];
 }
 
 export interface LateralMapResult {
@@ -163,8 +165,8 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
     const w = Math.min(0.08 * k * k * omegaScale, 0.9 * omegaLimit);
     rates.push(w, -w);
   }
-  const cands: Candidate[] = [];
-  for (let i = 0; i < nd; i++) {
+  const cands: Candidate[] = (options.starts ?? []).map((st) => ({ ...st, done: false, failed: false, residual: Infinity, iterations: 0 }));
+  for (let i = 0; i < (options.starts ? 0 : nd); i++) {
     const delta = -Math.PI / 2 + (Math.PI * (i + 0.5)) / nd;
     for (const omega of rates.slice(0, nw)) cands.push({ delta, omega, done: false, failed: false, residual: Infinity, iterations: 0 });
   }
@@ -512,4 +514,17 @@ export function simulateLateral(
     final: { ...fin, time_s: sum[L.LS_TIME], x_m: sum[L.LS_X], y_m: sum[L.LS_Y], theta: sum[L.LS_THETA] },
     samples,
   };
+}
+
+/** The gait at `energy` reached by Newton's method from a nearby one (continuation), if any. */
+export function gaitNear(
+  engine: Engine,
+  s: LateralScenario,
+  energy: number,
+  guess: { delta: number; omega: number },
+): SectionState | undefined {
+  const r = lateralFixedPoints(engine, s, { energy_J: energy, starts: [guess], existenceOnly: true });
+  const f = r.fixed_points[0];
+  if (!f) return undefined;
+  return { speed: f.speed_m_per_s, delta: f.heading_to_body_deg * DEG, omega: f.angular_velocity_deg_per_s * DEG, heading: 0 };
 }
