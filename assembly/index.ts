@@ -7,7 +7,9 @@ import { traceBegin, traceEnd } from "./trace";
 import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1 } from "./rk/dopri5";
 import { rhs, setArenstorf } from "./rk/system";
 import { gaussian, uniform } from "./rng";
-import { LAYOUT_VERSION } from "./layout";
+import { LAYOUT_VERSION, M_MODEL_KIND, MODEL_BIPED } from "./layout";
+import { runBipedRollout } from "./biped";
+import { mget } from "./policy";
 export { runLateralBatch, traceLateralRollout } from "./lateral";
 
 let arenaTop: usize = 0;
@@ -50,7 +52,8 @@ export function traceRollout(
   samples: usize, capacity: i32, dt: f64,
 ): i32 {
   traceBegin(samples, capacity, dt);
-  runRollout(model, input, strides, records, summary);
+  if (<i32>mget(model, M_MODEL_KIND) == MODEL_BIPED) runBipedRollout(model, input, strides, records, summary);
+  else runRollout(model, input, strides, records, summary);
   return traceEnd();
 }
 

@@ -9,7 +9,7 @@
 // at the boundary.
 
 // ---------------------------------------------------------------------------
-export const LAYOUT_VERSION = 4; // bump on any change below
+export const LAYOUT_VERSION = 5; // bump on any change below
 
 // Model block: (M_SIZE) f64, written by the TS core before a call, read-only
 // inside the kernel. A batch takes an array of them, (models x M_SIZE), and
@@ -45,7 +45,20 @@ export const M_ATOL = 26; // integrator absolute tolerance
 export const M_MAX_STEPS = 27; // integrator step limit per stance
 export const M_TARGET_HEIGHT = 28; // m, apex height the summary's RMS is taken about
 export const M_TARGET_SPEED = 29; // m/s, forward speed the summary's RMS is taken about
-export const M_SIZE = 32;
+export const M_MODEL_KIND = 30; // MODEL_* below (0 = the single-leg model)
+// Two-leg model (MODEL_BIPED): leg 0 is the left leg, leg 1 the right. Each leg's rest length,
+// stiffness factor (on every stiffness of the schedule) and damping; M_LEG_LENGTH, M_STIFFNESS
+// and M_DAMPING are not read by it.
+export const M_BIPED_LENGTH_0 = 32; // m
+export const M_BIPED_LENGTH_1 = 33; // m
+export const M_BIPED_STIFFNESS_SCALE_0 = 34; // factor on the stiffness schedule
+export const M_BIPED_STIFFNESS_SCALE_1 = 35;
+export const M_BIPED_DAMPING_0 = 36; // N·s/m
+export const M_BIPED_DAMPING_1 = 37;
+export const M_SIZE = 40;
+
+export const MODEL_SLIP = 0;
+export const MODEL_BIPED = 1;
 
 export const ANGLE_FIXED = 0;
 export const ANGLE_RETRACTION = 1;
@@ -69,7 +82,14 @@ export const I_MASS_SCALE = 3; // factor on M_MASS (model mismatch), 1 = nominal
 export const I_STIFFNESS_SCALE = 4; // factor on every stiffness, 1 = nominal
 export const I_LEG_SCALE = 5; // factor on M_LEG_LENGTH, 1 = nominal
 export const I_MODEL = 6; // index of this rollout's model block in the batch's (models x M_SIZE) array
-export const I_SIZE = 7;
+// Two-leg model only (the single-leg model ignores them):
+export const I_SECTION_KIND = 7; // SECTION_* below: where the rollout starts
+export const I_SECTION_OFFSET = 8; // m, single-support apex: body x minus the stance foot's x
+export const I_SECTION_LEG = 9; // single-support apex: the stance leg; flight apex: the leg that lands first
+export const I_SIZE = 10;
+
+export const SECTION_FLIGHT_APEX = 0; // vy = 0 in flight
+export const SECTION_SINGLE_SUPPORT_APEX = 1; // vy from + to - with one leg on the ground
 
 // ---------------------------------------------------------------------------
 // Stride records: (rollouts x strides x R_SIZE) f64, written by runBatch when a
@@ -110,7 +130,30 @@ export const R_K_EXTENSION = 30; // N/m used after maximum compression
 export const R_STATUS = 31; // STATUS_* of this stride
 export const R_MAX_COMPRESSION_TIME = 32; // s after touchdown
 export const R_LIFTOFF_LEG_FORCE = 33; // N, leg force when the foot left (0 unless damping)
-export const R_SIZE = 34;
+// Two-leg model (NaN for the single-leg model). Times are seconds since the stride's section.
+// The fields above keep their meaning: the apex is the stride's section state (height, speed),
+// touchdown fields describe the stride's one touchdown, peak force and compression the larger
+// of the two legs, energies include the springs' energy.
+export const R_GAIT = 34; // GAIT_* below
+export const R_SECTION_KIND = 35; // SECTION_* at the start of the stride
+export const R_SECTION_OFFSET = 36; // m, body x minus stance foot x (single-support apex)
+export const R_SECTION_LEG = 37; // stance leg (single-support apex) or leg that lands next (flight apex)
+export const R_NEXT_SECTION_KIND = 38;
+export const R_NEXT_SECTION_OFFSET = 39;
+export const R_NEXT_SECTION_LEG = 40;
+export const R_TOUCHDOWN_TIME_0 = 41; // s, touchdown of the left leg in this stride (NaN: none)
+export const R_TOUCHDOWN_TIME_1 = 42;
+export const R_LIFTOFF_TIME_0 = 43; // s, liftoff of the left leg in this stride (NaN: none)
+export const R_LIFTOFF_TIME_1 = 44;
+export const R_DOUBLE_START = 45; // s, start of double support (NaN: none)
+export const R_DOUBLE_END = 46; // s, its end
+export const R_PEAK_FORCE_0 = 47; // N, peak left leg force in the stride
+export const R_PEAK_FORCE_1 = 48;
+export const R_PEAK_VERTICAL_FORCE = 49; // N, peak of the summed vertical ground force
+export const R_SIZE = 50;
+
+export const GAIT_WALKING = 0; // single and double support, no flight
+export const GAIT_RUNNING = 1; // single support and flight, no double support
 
 // ---------------------------------------------------------------------------
 // Rollout summaries: (rollouts x S_SIZE) f64, always written by runBatch.
@@ -131,7 +174,13 @@ export const S_TIME = 13; // s, time of the last apex reached
 export const S_DISTANCE = 14; // m, x of the last apex reached
 export const S_STEPS = 15; // integrator steps, all strides
 export const S_REJECTED = 16; // rejected steps, all strides
-export const S_SIZE = 17;
+// Two-leg model: the section state besides height and speed.
+export const S_FINAL_OFFSET = 17; // m, offset at the last section reached (single-support apex)
+export const S_PREVIOUS_OFFSET = 18;
+export const S_FINAL_LEG = 19; // R_NEXT_SECTION_LEG of the last stride
+export const S_FINAL_SECTION_KIND = 20; // SECTION_* of the last section reached
+export const S_MAX_VERTICAL_FORCE = 21; // N, peak summed vertical ground force
+export const S_SIZE = 22;
 
 // ---------------------------------------------------------------------------
 // Rollout / stride status codes. Failure is data: nothing here aborts.
@@ -145,7 +194,15 @@ export const STATUS_STEP_UNDERFLOW = 6; // integrator step size underflow
 export const STATUS_NON_FINITE = 7; // a state became NaN or infinite
 export const STATUS_STEP_LIMIT = 8; // integrator step limit reached (or the touchdown search's)
 export const STATUS_ATTACK_OUT_OF_RANGE = 9; // the commanded angle left (0, 90 deg] before touchdown
-export const STATUS_COUNT = 10; // the single-leg statuses (0..9); later models append theirs below
+// Two-leg model (codes 10 to 12; others append after them, never renumbered):
+export const STATUS_GAIT_CHANGED = 10; // a walking stride had flight, or a running stride double support
+export const STATUS_STALLED = 11; // forward speed reached zero, or time ran out, in double support
+export const STATUS_NO_SECTION = 12; // a second touchdown before the stride's section was reached
+// Lateral leg-spring model: codes 13 and 14 (STATUS_STALLED_FORWARD, STATUS_LEG_UNLOADED, in its
+// section at the end of this file); 15 reserved for it.
+export const STATUS_COUNT = 15;
+// Statuses the single-leg model can report (0 .. STATUS_COUNT_SLIP - 1).
+export const STATUS_COUNT_SLIP = 10;
 
 // ---------------------------------------------------------------------------
 // Trajectory samples: (samples x T_SIZE) f64, written by traceRollout.
@@ -159,10 +216,16 @@ export const T_FOOT_Y = 6; // m
 export const T_LEG_FORCE = 7; // N, along the leg (0 in flight)
 export const T_PHASE = 8; // PHASE_* below
 export const T_STRIDE = 9; // stride index
-export const T_SIZE = 10;
+// Two-leg model: T_FOOT_X, T_FOOT_Y and T_LEG_FORCE are the left leg's, these the right's
+// (single-leg model: NaN, NaN, 0). A swing foot is drawn where its commanded leg points.
+export const T_FOOT2_X = 10; // m
+export const T_FOOT2_Y = 11; // m
+export const T_LEG_FORCE2 = 12; // N
+export const T_SIZE = 13;
 
 export const PHASE_FLIGHT = 0;
-export const PHASE_STANCE = 1;
+export const PHASE_STANCE = 1; // one leg on the ground
+export const PHASE_DOUBLE = 2; // two legs on the ground (two-leg model)
 
 // ===========================================================================
 // Lateral leg-spring model ("model": "lateral"): a rigid body in the horizontal

@@ -4,8 +4,7 @@
 // the stance driver's scratch.
 
 import {
-  M_MASS, M_LEG_LENGTH, M_GRAVITY, M_DAMPING, M_TERRAIN_KIND, M_TERRAIN_SIGMA, M_TERRAIN_SEED,
-  M_STEPS_N, M_STEPS_PTR, M_RTOL, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
+  M_MASS, M_LEG_LENGTH, M_GRAVITY, M_DAMPING, M_RTOL, M_MODEL_KIND, MODEL_BIPED, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
   I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE, I_MODEL, I_SIZE, M_SIZE,
   R_APEX_HEIGHT, R_APEX_SPEED, R_APEX_TIME, R_APEX_X, R_APEX_TO_TOUCHDOWN, R_CONTACT, R_STRIDE_TIME,
   R_ATTACK, R_GROUND, R_PEAK_FORCE, R_MAX_COMPRESSION, R_PEAK_FRICTION, R_ENERGY_BEFORE,
@@ -16,16 +15,17 @@ import {
   S_STATUS, S_STRIDES_COMPLETED, S_FINAL_HEIGHT, S_FINAL_SPEED, S_PREVIOUS_HEIGHT, S_PREVIOUS_SPEED,
   S_MAX_PEAK_FORCE, S_MAX_FRICTION, S_MAX_COMPRESSION, S_MIN_ATTACK, S_MAX_ATTACK,
   S_SUM_SQ_HEIGHT_ERROR, S_SUM_SQ_SPEED_ERROR, S_TIME, S_DISTANCE, S_STEPS, S_REJECTED, S_SIZE,
-  TERRAIN_FLAT, TERRAIN_STEPS, TERRAIN_RANDOM_WALK,
+  S_FINAL_OFFSET, S_PREVIOUS_OFFSET, S_FINAL_LEG, S_FINAL_SECTION_KIND, S_MAX_VERTICAL_FORCE, SECTION_FLIGHT_APEX,
   STATUS_OK, STATUS_BODY_HIT_GROUND, STATUS_NO_APEX, STATUS_LEG_NOT_PLACEABLE, STATUS_NON_FINITE,
   STATUS_ATTACK_OUT_OF_RANGE, STATUS_STEP_LIMIT,
   PHASE_STANCE, PHASE_FLIGHT,
 } from "./layout";
+import { runBipedRollout } from "./biped";
 import { mget, attackAt, chooseStiffness, stanceKc, stanceKe, stanceSplit } from "./policy";
 import {
   touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE, TOUCHDOWN_GROUND_FIRST, TOUCHDOWN_ANGLE_LEFT,
 } from "./flight";
-import { gaussian } from "./rng";
+import { groundAt, resetWalk } from "./terrain";
 import {
   runStance, outContact, outPx, outPy, outVx, outVy, outMaxCompression, outMaxCompressionTime,
   outPeakForce, outPeakFriction, outDissipated, outLiftoffForce, outSteps, outRejected, outFirstH,
@@ -44,29 +44,9 @@ const SCRATCH_RECORD: usize = memory.data(8 * R_SIZE, 16); // (R_SIZE) f64, when
   return load<f64>(p + (<usize>field << 3));
 }
 
-// Ground height met at touchdown `index` of a rollout; `walk` carries the
-// random walk's running sum between calls.
-let walk: f64 = 0.0;
-function groundAt(model: usize, index: i32, stream: u64): f64 {
-  const kind = <i32>mget(model, M_TERRAIN_KIND);
-  if (kind == TERRAIN_FLAT) return 0.0;
-  if (kind == TERRAIN_STEPS) {
-    const n = <i32>mget(model, M_STEPS_N);
-    const i = index < n ? index : n - 1;
-    return load<f64>(<usize>mget(model, M_STEPS_PTR) + (<usize>i << 3));
-  }
-  const seed = <u64>mget(model, M_TERRAIN_SEED);
-  const z = mget(model, M_TERRAIN_SIGMA) * gaussian(seed, stream, <u64>index);
-  if (kind == TERRAIN_RANDOM_WALK) {
-    walk += z;
-    return walk;
-  }
-  return z; // TERRAIN_INDEPENDENT
-}
-
 // First stance step: a fraction of the fastest time scale, shrunk with the
 // tolerance as h ~ rtol^(1/5) for a 5th-order method.
-function initialStep(mass: f64, k: f64, speed: f64, leg: f64, rtol: f64): f64 {
+export function initialStep(mass: f64, k: f64, speed: f64, leg: f64, rtol: f64): f64 {
   const omega = Math.sqrt(k / mass) + speed / leg;
   let f = 2.0 * Math.pow(rtol, 0.2);
   if (f > 0.5) f = 0.5;
@@ -92,7 +72,7 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
   let t: f64 = 0.0;
   let prevHeight = ya;
   let prevSpeed = vx;
-  walk = 0.0;
+  resetWalk();
 
   let status = STATUS_OK;
   let completed = 0;
@@ -256,6 +236,12 @@ export function runRollout(model: usize, input: usize, strides: i32, rec0: usize
   put(summary, S_DISTANCE, x);
   put(summary, S_STEPS, <f64>steps);
   put(summary, S_REJECTED, <f64>rejected);
+  // the two-leg model's section fields: not this model's
+  put(summary, S_FINAL_OFFSET, NaN);
+  put(summary, S_PREVIOUS_OFFSET, NaN);
+  put(summary, S_FINAL_LEG, NaN);
+  put(summary, S_FINAL_SECTION_KIND, <f64>SECTION_FLIGHT_APEX);
+  put(summary, S_MAX_VERTICAL_FORCE, NaN);
   return status;
 }
 
@@ -269,7 +255,10 @@ export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i
     const input = inputs + (<usize>r * I_SIZE << 3);
     const model = models + (<usize>get(input, I_MODEL) * M_SIZE << 3);
     const rec = records != 0 ? records + (<usize>r * strides * R_SIZE << 3) : 0;
-    const status = runRollout(model, input, strides, rec, summaries + (<usize>r * S_SIZE << 3));
+    const sum = summaries + (<usize>r * S_SIZE << 3);
+    const status = <i32>mget(model, M_MODEL_KIND) == MODEL_BIPED
+      ? runBipedRollout(model, input, strides, rec, sum)
+      : runRollout(model, input, strides, rec, sum);
     if (status == STATUS_OK) ok++;
   }
   return ok;

@@ -3,6 +3,7 @@
 
 import {
   T_TIME, T_X, T_Y, T_VX, T_VY, T_FOOT_X, T_FOOT_Y, T_LEG_FORCE, T_PHASE, T_STRIDE, T_SIZE,
+  T_FOOT2_X, T_FOOT2_Y, T_LEG_FORCE2,
   PHASE_FLIGHT, PHASE_STANCE,
 } from "./layout";
 import { dense, YI } from "./rk/dopri5";
@@ -50,7 +51,33 @@ export function emit(
   store<f64>(p + (T_LEG_FORCE << 3), force);
   store<f64>(p + (T_PHASE << 3), <f64>phase);
   store<f64>(p + (T_STRIDE << 3), <f64>traceStride);
+  store<f64>(p + (T_FOOT2_X << 3), NaN);
+  store<f64>(p + (T_FOOT2_Y << 3), NaN);
+  store<f64>(p + (T_LEG_FORCE2 << 3), 0.0);
   count++;
+}
+
+// A sample of the two-leg model: both feet and both leg forces.
+export function emit2(
+  t: f64, x: f64, y: f64, vx: f64, vy: f64,
+  f0x: f64, f0y: f64, force0: f64, f1x: f64, f1y: f64, force1: f64, phase: i32,
+): void {
+  if (count >= capacity) return;
+  emit(t, x, y, vx, vy, f0x, f0y, force0, phase, traceStride);
+  const p = buffer + (<usize>(count - 1) * T_SIZE << 3);
+  store<f64>(p + (T_FOOT2_X << 3), f1x);
+  store<f64>(p + (T_FOOT2_Y << 3), f1y);
+  store<f64>(p + (T_LEG_FORCE2 << 3), force1);
+}
+
+// The next regular sample time at or before tEnd (and moves past it), or -1 when none is due.
+export function traceNext(tEnd: f64): f64 {
+  if (nextTime <= tEnd && count < capacity) {
+    const t = nextTime;
+    nextTime += interval;
+    return t;
+  }
+  return -1.0;
 }
 
 // Regular samples of a ballistic flight from (x0, y0, vx, vy0) at absolute time

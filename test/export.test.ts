@@ -176,46 +176,122 @@ describe('JSON and CSV', () => {
 });
 
 describe('refusals and --force', () => {
-  it('refuses a NaN table point, naming it; --force writes it and says so in every file', async () => {
+  // Every exported number is checked once rounded to float32 (IEEE 754 binary32: largest finite
+  // about 3.4028235e38, smallest normal 2^-126 = 1.17549435e-38); a number firmware must not run is
+  // refused even with --force. The scenario validator's own bounds refuse most such numbers in a
+  // file, so several cases alter the policy after validation: the exporter's check is the last
+  // guard in front of firmware, whatever reaches it.
+  const FORCE_NEVER = 'nothing written: firmware must not run these numbers (--force does not write them)';
+
+  it('refuses a NaN table point, naming it, even with --force', async () => {
     const src = await source(scenarioWith(tables));
     const broken: ExportSource = JSON.parse(JSON.stringify(src));
     (broken.policy.angle as { attack_deg: number[] }).attack_deg[2] = NaN; // by hand: no file can hold NaN
     broken.scenario.policy = broken.policy;
-    const problems = messages(() => buildExport(broken, { grid: { by: 'points', points: 2 } }));
     // grid: 0, then the knots 0.05, 0.06, 0.1, 0.12, 0.15, 0.2 of both tables, then 0.3 (the end).
     // The NaN knot at 0.15 s is point 5; the cells that reach it hold NaN too (0 x NaN is NaN,
     // as in the kernel's interpolation)
-    expect(problems).toEqual([
-      'attack table point 3 (t = 0.1 s) is NaN',
-      'attack table point 4 (t = 0.12 s) is NaN',
-      'attack table point 5 (t = 0.15 s) is NaN',
-      'nothing written (--force writes anyway and marks every file as forced)',
-    ]);
-    const forced = buildExport(broken, { grid: { by: 'points', points: 2 }, force: true });
-    expect(forced.forced).toBe(true);
-    const doc = JSON.parse(writeJson(forced));
-    expect(doc.forced).toBe(true);
-    expect(doc.tables.float64.attack_deg[5]).toBe('NaN');
-    expect(doc.forced_over).toContain('attack table point 5 (t = 0.15 s) is NaN');
-    expect(writeCsv(forced)).toMatch(/^# FORCED EXPORT/m);
-    const c = writeC(forced, 'broken', 'broken.h');
-    expect(c.header).toContain('#define BROKEN_FORCED_EXPORT 1');
-    expect(c.header).toContain('FORCED EXPORT: written with --force although:');
-    expect(c.source).toContain('FORCED EXPORT');
+    const expected = [
+      'attack table point 3 (t = 0.1 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found NaN',
+      'attack table point 4 (t = 0.12 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found NaN',
+      'attack table point 5 (t = 0.15 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found NaN',
+      FORCE_NEVER,
+    ];
+    expect(messages(() => buildExport(broken, { grid: { by: 'points', points: 2 } }))).toEqual(expected);
+    expect(messages(() => buildExport(broken, { grid: { by: 'points', points: 2 }, force: true }))).toEqual(expected);
   });
 
-  it('refuses a stiffness beyond the float32 range (Infinity once rounded)', async () => {
-    // float32 tops out near 3.4e38 (IEEE 754). The scenario validator already refuses 1e39 N/m (its
-    // physical bound is 1e12), so the policy is altered after validation: the exporter's own check
-    // is the last guard in front of firmware.
+  it('refuses a stiffness beyond the float32 range (Infinity once rounded), in a table or as a macro', async () => {
     const huge = { ...tables, stiffness: { ...tables.stiffness, compression_N_per_m: [1e39, 21000, 22500] } };
     expect(messages(() => parseScenario(scenarioWith(huge)))).toEqual([
       'policy.stiffness.compression_N_per_m[0]: expected a stiffness from 1e-3 to 1e12 (N/m), found 1e+39',
     ]);
     const src = await source(scenarioWith(tables));
     (src.policy.stiffness as { compression_N_per_m: number[] }).compression_N_per_m = [1e39, 21000, 22500];
-    const problems = messages(() => buildExport(src));
-    expect(problems[0]).toBe('compression table point 0 (t = 0 s) is Infinity in float32 (1e+39 N/m is beyond the float32 range)');
+    const problems = messages(() => buildExport(src, { force: true }));
+    expect(problems[0]).toBe(
+      'compression table point 0 (t = 0 s): expected a number > 0 that float32 holds (finite; at least 1.17549e-38 in magnitude), ' +
+        'found 1e+39 N/m, which is Infinity in float32 (beyond the float32 range, about 3.4e38)',
+    );
+    expect(problems[problems.length - 1]).toBe(FORCE_NEVER);
+    // the body's stiffness of 1e39 N/m once exported as `#define ..._N_PER_M (1e30f * 1e30f)` (inf)
+    const macro = await source(scenarioWith(clampedRetraction));
+    macro.scenario.body.leg_stiffness_N_per_m = 1e39;
+    expect(messages(() => buildExport(macro, { force: true }))[0]).toBe(
+      'body.leg_stiffness_N_per_m (the C macro ..._BODY_LEG_STIFFNESS_N_PER_M): expected a number > 0 that float32 holds ' +
+        '(finite; at least 1.17549e-38 in magnitude), found 1e+39 N/m, which is Infinity in float32 (beyond the float32 range, about 3.4e38)',
+    );
+    // and no writer can be handed one: a non-finite number there is a bug, never a C expression
+    expect(() => cFloat(Infinity)).toThrow(/non-finite/);
+    expect(() => cFloat(NaN)).toThrow(/non-finite/);
+  });
+
+  it('refuses a table knot at 1e39 s (an infinite T_MAX_S, "Infinity" in the JSON), even with --force', async () => {
+    const far = { angle: { kind: 'time_table', time_since_apex_s: [0.1, 1e39], attack_deg: [70, 65] }, stiffness: { kind: 'constant' } };
+    expect(messages(() => parseScenario(scenarioWith(far)))).toEqual([
+      'policy.angle.time_since_apex_s[1]: expected a time from 0 to 1e6 (s), found 1e+39',
+    ]);
+    const src = await source(scenarioWith(tables));
+    src.policy = JSON.parse(JSON.stringify(far));
+    src.scenario.policy = src.policy;
+    const problems = messages(() => buildExport(src, { force: true }));
+    expect(problems).toContain(
+      'grid time point 2 (t_max, the C macro ..._T_MAX_S): expected a number > 0 that float32 holds (finite; at least 1.17549e-38 in magnitude), ' +
+        'found 1e+39 s, which is Infinity in float32 (beyond the float32 range, about 3.4e38)',
+    );
+    expect(problems[problems.length - 1]).toBe(FORCE_NEVER);
+  });
+
+  it('refuses a compression stiffness of 1e-46 N/m (once exported as 0) and a subnormal one', async () => {
+    for (const [value, found] of [
+      [1e-46, '1e-46 N/m, which float32 flushes to 0'],
+      [1e-40, '1e-40 N/m, a subnormal float32 (many FPUs flush it to 0)'],
+    ] as const) {
+      const src = await source(scenarioWith({ angle: { kind: 'fixed', attack_deg: 68 }, stiffness: { kind: 'split', compression_N_per_m: 20000, extension_N_per_m: 21000 } }));
+      (src.policy.stiffness as { compression_N_per_m: number }).compression_N_per_m = value;
+      expect(messages(() => buildExport(src, { force: true }))).toEqual([
+        `policy.stiffness.compression_N_per_m (the C macro ..._COMPRESSION_N_PER_M): expected a number > 0 that float32 holds (finite; at least 1.17549e-38 in magnitude), found ${found}`,
+        FORCE_NEVER,
+      ]);
+    }
+  });
+
+  it('refuses numbers a valid scenario file can hold that float32 flushes: an attack of 1e-300 deg, a knot at 1e-40 s, an apex at 1e-40 m', async () => {
+    // each passes the validator (angles > 0, times >= 0, heights from -1e4 to 1e4 m)
+    const angle = await source(scenarioWith({ angle: { kind: 'fixed', attack_deg: 1e-300 } }));
+    expect(messages(() => buildExport(angle))[0]).toBe(
+      'attack table point 0 (t = 0 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found 1e-300 deg, which float32 flushes to 0 rad',
+    );
+    const knot = await source(scenarioWith({ angle: { kind: 'time_table', time_since_apex_s: [1e-40, 0.2], attack_deg: [70, 65] } }));
+    expect(messages(() => buildExport(knot))[0]).toBe(
+      'grid time point 1: expected a number > 0 that float32 holds (finite; at least 1.17549e-38 in magnitude), found 1e-40 s, a subnormal float32 (many FPUs flush it to 0)',
+    );
+    const low = await source({ ...scenarioWith({ angle: { kind: 'fixed', attack_deg: 68 } }), start: { apex_height_m: 1e-40, forward_speed_m_per_s: 5 }, terrain: { kind: 'steps', ground_heights_m: [-1] } });
+    expect(messages(() => buildExport(low))[0]).toBe(
+      'start.apex_height_m (the C macro ..._START_APEX_HEIGHT_M): expected a number that float32 holds (finite; 0 or at least 1.17549e-38 in magnitude), found 1e-40 m, a subnormal float32 (many FPUs flush it to 0)',
+    );
+  });
+
+  it('refuses a retraction without a clamp tabulated past (0, 90] deg, and says how far it may go', async () => {
+    // --t-max 60 on 64 deg + 40 deg/s: 64 + 40 x 60 = 2464 deg; -40 deg/s: 64 - 2400 = -2336 deg (closed form)
+    for (const [rate, end, leaves] of [
+      [40, '2464 deg', '0.65'], // (90 - 64) / 40 s
+      [-40, '-2336 deg', '1.6'], // (0 - 64) / -40 s
+    ] as const) {
+      const src = await source(scenarioWith({ angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: rate }, stiffness: { kind: 'constant' } }));
+      const problems = messages(() => buildExport(src, { t_max_s: 60, force: true, names: { points: '--points', max_error: '--max-error', max_stiffness_error: '--max-stiffness-error', t_max: '--t-max' } }));
+      expect(problems[0]).toBe(`attack table point 1 (t = 60 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found ${end}`);
+      expect(problems).toContain(
+        `the retraction has no ${rate > 0 ? 'max_deg' : 'min_deg'} and reaches ${rate > 0 ? 90 : 0} deg at t = ${leaves} s, past which it leaves the attack range (0, 90] deg: set --t-max ${rate > 0 ? 'to at most that' : 'below that'}, or give the retraction a ${rate > 0 ? 'max_deg' : 'min_deg'}`,
+      );
+      expect(problems[problems.length - 1]).toBe(FORCE_NEVER);
+    }
+    // by default the table of a rising one ends where it reaches 90 deg, never above
+    const risingPolicy = { angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: 90 }, stiffness: { kind: 'constant' } };
+    const rising = buildExport(await source(scenarioWith(risingPolicy, { body: { ...body, leg_length_m: 0.5 } })));
+    expect(rising.grid.t_max_source).toBe('where the retraction leaves the attack range (0, 90] deg');
+    const attack = rising.grid.values[0];
+    expect(Math.max(...attack)).toBeLessThanOrEqual(90);
   });
 
   it('refuses a result whose constraint margin is negative unless --force; a result without constraints is fine', async () => {
@@ -345,7 +421,7 @@ describe.skipIf(!built)('pronk export (built CLI)', () => {
       [['--format', 'json', '--out', 'x.json', '--uniform'], /--uniform: expected to come with --points N or --max-error E/],
       [['--format', 'json', '--out', 'x.json', '--max-error=-1'], /--max-error: expected a bound > 0/],
       [['--format', 'json', '--out', 'x.json', '--t-max', '0'], /--t-max: expected a time from 0.0001 to 60 s, found "0"/],
-      [['--format', 'json', '--out', scenarioFile], /--out: expected a file other than the input/],
+      [['--format', 'json', '--out', scenarioFile], /--out: cannot write .* \(it is the input file .*, which this command reads\): writing there would replace an input; name another file/],
     ];
     for (const [args, pattern] of cases) {
       const r = pronk('export', scenarioFile, ...args);
@@ -374,6 +450,43 @@ describe.skipIf(!built)('pronk export (built CLI)', () => {
     expect(c.stdout).toContain('Caution:');
     expect(readFileSync(join(dir, 'clamped.c'), 'utf8')).toContain('#include "clamped.h"');
     expect(readFileSync(join(dir, 'clamped.h'), 'utf8')).toContain('bool clamped_retraction_attack_lookup(float t_since_apex_s, float *attack_rad_out);');
+  });
+
+  it('an unclamped retraction with --t-max 60 (angles 2464 and -2336 deg) exits 2 naming the table point, even with --force', () => {
+    for (const rate of [40, -40]) {
+      const name = `unclamped${rate}.json`;
+      writeFileSync(join(dir, name), JSON.stringify(scenarioWith({ angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: rate } })));
+      for (const format of ['c', 'json', 'csv']) {
+        const out = `unclamped.${format === 'c' ? 'h' : format}`;
+        const r = pronk('export', name, '--format', format, '--out', out, '--t-max', '60', '--force');
+        expect(r.code, r.stderr).toBe(2);
+        expect(r.stderr).toContain(`${name}: attack table point 1 (t = 60 s): expected an angle in (0, 90] deg that float32 holds as a normal number, found ${64 + rate * 60} deg`);
+        expect(r.stderr).toContain('--t-max: the retraction has no');
+        expect(r.stderr).not.toMatch(/\n\s+at /);
+        expect(r.stdout).toBe('');
+        expect(existsSync(join(dir, out))).toBe(false);
+        expect(existsSync(join(dir, 'unclamped.c'))).toBe(false);
+      }
+    }
+  });
+
+  it('a result file with a table knot at 1e39 s exits 2 naming the field (no T_MAX_S of inf, no "Infinity")', async () => {
+    const scenario = parseScenario(scenarioWith(clampedRetraction));
+    const result = {
+      format: 'pronk-result',
+      format_version: 1,
+      kind: 'deadbeat',
+      scenario,
+      policy: { angle: { kind: 'time_table', time_since_apex_s: [0.1, 1e39], attack_deg: [70, 65] }, stiffness: { kind: 'constant' } },
+      provenance: { pronk_version: '0.1.0', scenario_sha256: await contentHash(scenario), date: '2026-01-01T00:00:00Z' },
+    };
+    writeFileSync(join(dir, 'far-knot.json'), JSON.stringify(result));
+    for (const format of ['c', 'json']) {
+      const r = pronk('export', 'far-knot.json', '--format', format, '--out', `far.${format === 'c' ? 'h' : 'json'}`, '--force');
+      expect(r.code).toBe(2);
+      expect(r.stderr).toBe('far-knot.json: policy.angle.time_since_apex_s[1]: expected a time from 0 to 1e6 (s), found 1e+39\n');
+      expect(existsSync(join(dir, `far.${format === 'c' ? 'h' : 'json'}`))).toBe(false);
+    }
   });
 
   it('a negative constraint margin exits 2 naming the constraint; --force writes and marks the file', async () => {

@@ -386,9 +386,9 @@ describe('lateral scenario validation', () => {
   });
   it('a single-leg reader refuses a lateral scenario, naming the model and the commands that run it', () => {
     expect(() => parseScenario(good(), { command: 'stepdown' })).toThrow(
-      'scenario model "lateral": stepdown supports "slip", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)',
+      'scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)',
     );
-    expect(() => parseScenario({ ...good(), model: 'laterl' })).toThrow(/model: expected one of "slip", "lateral".*did you mean lateral\?/);
+    expect(() => parseScenario({ ...good(), model: 'laterl' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral".*did you mean lateral\?/);
   });
 });
 
@@ -435,7 +435,7 @@ describe('every command on the lateral demo', () => {
               : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)`);
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)`);
     });
   }
 });

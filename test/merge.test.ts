@@ -188,3 +188,52 @@ describe('pronk merge: bad sets of partial results are exit 2 naming the file', 
     expect(r.stderr).toMatch(/pronk merge: no FILES given/);
   });
 });
+
+// Issue: `basin … --shard 1/1000000000000` was accepted, and `merge` of that file (or of a shard
+// whose `shard.count` was edited to 1e15) ran a loop over every claimed shard: V8 died at 2.4 GB
+// (exit 133). Now more shards than items are refused when the shard runs, and what a partial file
+// claims is bounded by the run its own options describe, before anything is joined.
+describe('shard counts and claims are bounded (no runaway merge)', () => {
+  const partial = (file: string) => JSON.parse(readFileSync(at(file), 'utf8')) as PartialResult;
+  const write = (file: string, value: unknown) => writeFileSync(at(file), JSON.stringify(value));
+  const shardable: [string, string[], number][] = [
+    ['basin', ['--heights', '0.9:1.6:3', '--speeds', '4:5:2', '--strides', '5'], 6],
+    ['scan', ['--x', 'policy.angle.attack_at_apex_deg:60:64:3', '--y', 'policy.angle.rate_deg_per_s:25:50:2', '--samples', '4'], 6],
+    ['robustness', ['--sigma', '0.005', '--rollouts', '6', '--strides', '5'], 6],
+  ];
+  for (const [command, args, items] of shardable) {
+    it(`${command}: --shard with more shards than items names both numbers`, async () => {
+      for (const shard of ['1/1000000000000', `1/${items + 1}`]) {
+        const r = await pronk([command, at('robot.json'), ...args, '--workers', '1', '--shard', shard, '--out', at(`${command}_huge.json`)]);
+        expect(r.code).toBe(2);
+        const count = shard.split('/')[1];
+        expect(r.stderr).toMatch(new RegExp(`--shard: expected at most ${items} shards .*the run has ${items} items.*found ${count} shards`));
+        expect(r.stderr).not.toMatch(/\n\s+at /);
+      }
+      // exactly one shard per item is still a run
+      const r = await pronk([command, at('robot.json'), ...args, '--workers', '1', '--shard', `${items}/${items}`, '--out', at(`${command}_last.json`)]);
+      expect(r.code).toBe(0);
+    }, 30_000);
+
+    it(`${command}: a partial whose shard.count or shard.total was edited to 1e15 is exit 2, quickly`, async () => {
+      const file = `${command}_1of2.json`;
+      expect((await pronk([command, at('robot.json'), ...args, '--workers', '1', '--shard', '1/2', '--out', at(file)])).code).toBe(0);
+      const original = partial(file);
+      const started = Date.now();
+      write(`${command}_count.json`, { ...original, shard: { ...original.shard, count: 1e15 } });
+      let r = await pronk(['merge', at(`${command}_count.json`)]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(new RegExp(`${command}_count\\.json: shard\\.count: expected at most ${items} shards.*found 1000000000000000`));
+      write(`${command}_total.json`, { ...original, shard: { ...original.shard, count: 1e15, total: 1e15 } });
+      r = await pronk(['merge', at(`${command}_total.json`)]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(new RegExp(`${command}_total\\.json: shard\\.total: expected ${items} \\(the ${command} run its options describe has ${items} items\\), found 1000000000000000`));
+      // a count within the run but more than the files given lists a few missing shards, not all
+      write(`${command}_more.json`, { ...original, shard: { ...original.shard, count: items } });
+      r = await pronk(['merge', at(`${command}_more.json`)]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(/expected all \d+ shards, found shard 2, 3/);
+      expect(Date.now() - started).toBeLessThan(10_000); // before: minutes, then a V8 crash
+    }, 30_000);
+  }
+});

@@ -4,6 +4,7 @@
 
 export const SYSTEM_STANCE = 0;
 export const SYSTEM_ARENSTORF = 1;
+export const SYSTEM_BIPED = 2; // two legs on the ground (biped.ts)
 
 export let system: i32 = SYSTEM_STANCE;
 
@@ -26,6 +27,43 @@ export function setStance(m: f64, leg: f64, k: f64, c: f64, g: f64): void {
   stanceK = k;
   stanceC = c;
   stanceG = g;
+}
+
+// Two legs in stance (double support), feet at (bipedFx*, bipedFy*) relative to the origin of
+// (px, py); set by the two-leg driver (biped.ts). Gravity and mass as for the stance.
+export let bipedFx0: f64 = 0.0;
+export let bipedFy0: f64 = 0.0;
+export let bipedFx1: f64 = 0.0;
+export let bipedFy1: f64 = 0.0;
+export let bipedL0: f64 = 1.0; // m, rest lengths
+export let bipedL1: f64 = 1.0;
+export let bipedK0: f64 = 1.0; // N/m, current stiffnesses
+export let bipedK1: f64 = 1.0;
+export let bipedC0: f64 = 0.0; // N·s/m
+export let bipedC1: f64 = 0.0;
+
+export function setBiped(
+  m: f64, g: f64, fx0: f64, fy0: f64, l0: f64, k0: f64, c0: f64, fx1: f64, fy1: f64, l1: f64, k1: f64, c1: f64,
+): void {
+  system = SYSTEM_BIPED;
+  stanceMass = m;
+  stanceInvMass = 1.0 / m;
+  stanceG = g;
+  bipedFx0 = fx0;
+  bipedFy0 = fy0;
+  bipedL0 = l0;
+  bipedK0 = k0;
+  bipedC0 = c0;
+  bipedFx1 = fx1;
+  bipedFy1 = fy1;
+  bipedL1 = l1;
+  bipedK1 = k1;
+  bipedC1 = c1;
+}
+
+export function setBipedStiffness(leg: i32, k: f64): void {
+  if (leg == 0) bipedK0 = k;
+  else bipedK1 = k;
 }
 
 export function setStiffness(k: f64): void {
@@ -68,10 +106,32 @@ export function setArenstorf(mu: f64): void {
   store<f64>(dy, 0.0, 32);
 }
 
+// Double support: each leg pushes along itself from its foot, the forces add.
+@inline function bipedRhs(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
+  const dx0 = px - bipedFx0;
+  const dy0 = py - bipedFy0;
+  const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+  const inv0 = 1.0 / r0;
+  const rdot0 = (dx0 * vx + dy0 * vy) * inv0;
+  const a0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+  const dx1 = px - bipedFx1;
+  const dy1 = py - bipedFy1;
+  const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+  const inv1 = 1.0 / r1;
+  const rdot1 = (dx1 * vx + dy1 * vy) * inv1;
+  const a1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+  store<f64>(dy, vx, 0);
+  store<f64>(dy, vy, 8);
+  store<f64>(dy, a0 * dx0 + a1 * dx1, 16);
+  store<f64>(dy, a0 * dy0 + a1 * dy1 - stanceG, 24);
+  store<f64>(dy, bipedC0 * rdot0 * rdot0 + bipedC1 * rdot1 * rdot1, 32);
+}
+
 // f(y) into dy, the state given component by component (the stepper keeps it
 // in locals); the last component (dissipated work) enters no right-hand side.
 @inline export function rhs5(y0: f64, y1: f64, y2: f64, y3: f64, y4: f64, dy: usize): void {
   if (system == SYSTEM_STANCE) stanceRhs(y0, y1, y2, y3, dy);
+  else if (system == SYSTEM_BIPED) bipedRhs(y0, y1, y2, y3, dy);
   else arenstorfRhs(y0, y1, y2, y3, dy);
 }
 

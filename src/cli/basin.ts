@@ -9,13 +9,15 @@ import { startProgress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { SHARD_OPTIONS, makePartial, outOption, shardOption, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
+import { parseIntegerOption } from './options.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk basin';
-const MAX_WORKERS = 256;
 
 export const basinCommand: Command = {
   name: 'basin',
@@ -43,7 +45,7 @@ export const basinCommand: Command = {
       valueName: 'M',
       description: 'converged when the last two apexes differ by at most M m in height and M m/s in speed (default 1e-4)',
     },
-    workers: { type: 'string', valueName: 'N', description: 'worker threads (default: the available cores)' },
+    workers: workersOption(),
     ...SHARD_OPTIONS,
     plot: PLOT_OPTION,
   },
@@ -64,19 +66,20 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
       { source: SOURCE },
     );
   }
-  const strides = parsePositiveInteger(values.strides, '--strides', MAX_STRIDES);
+  const strides = parseIntegerOption(values.strides, '--strides', 1, MAX_STRIDES, SOURCE);
   if (strides !== undefined) options.strides = strides;
   const tolerance = parseToleranceOption(values.tolerance);
   if (tolerance !== undefined) {
     options.heightTolerance_m = tolerance;
     options.speedTolerance_m_per_s = tolerance;
   }
-  const workers = parsePositiveInteger(values.workers, '--workers', MAX_WORKERS);
+  const workers = parseWorkers(values, SOURCE);
   const shard = shardOption(values);
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { shard: shard !== undefined, out });
-
+  const plot = await plotOption(values.plot, { shard: shard !== undefined });
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
+
   const scenario = await scenarioArgument(file, io, 'basin');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
@@ -88,20 +91,26 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
     throw error instanceof InputError ? renameOptionIssues(error) : error;
   }
   const total = core.basinCellCount(run);
-  const range = shard ? (await import('../core/shard.js')).shardRange(total, shard) : { start: 0, end: total };
+  let range = { start: 0, end: total };
+  try {
+    if (shard) range = shardRange(total, shard);
+  } catch (error) {
+    throw error instanceof InputError ? new InputError(error.issues, { source: SOURCE }) : error;
+  }
+  const threads = workerThreads(io, 'basin', workers, { items: range.end - range.start, unit: 'cells' });
   const progress = startProgress(io, 'basin', { unit: 'rollouts' });
   const onProgress = (done: number, cells: number) => progress.update(done, cells);
-  const rows = await core.basinRows(scenario, run, range, { workers, onProgress }).finally(progress.done);
+  const rows = await core.basinRows(scenario, run, range, { workers: threads, onProgress }).finally(progress.done);
 
   if (shard) {
     const options = run as unknown as Record<string, unknown>;
     const partial = await makePartial({ command: 'basin', scenario, options, spec: shard, range, total, rows });
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
   const result = await core.finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
-  await writeText(io, out, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
-  if (plot !== undefined) await writePlot(io.stderr, 'basin', plot, result);
+  await writeText(io, outFile, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
+  if (plotFile !== undefined) await writePlotFile(io, 'basin', plotFile, result);
   return 0;
 }
 
@@ -145,14 +154,6 @@ export function parseAxisOption(value: string | boolean | undefined, option: str
   if (n === 1 && low !== high) throw bad(`lo:lo:1 for a single value, or n >= 2 for a range from lo to hi`);
   if (n > 1 && low === high) throw bad(`${shape}, with lo < hi for n >= 2 (or n = 1 for one value)`);
   return { low, high, count: n };
-}
-
-function parsePositiveInteger(value: string | boolean | undefined, option: string, max: number): number | undefined {
-  if (value === undefined || typeof value === 'boolean') return undefined;
-  if (!/^\s*\+?\d+\s*$/.test(value) || Number(value) < 1 || Number(value) > max) {
-    throw new InputError([{ path: option, expected: `an integer from 1 to ${max}`, found: describeFound(value) }], { source: SOURCE });
-  }
-  return Number(value);
 }
 
 function parseToleranceOption(value: string | boolean | undefined): number | undefined {

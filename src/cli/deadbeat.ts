@@ -14,8 +14,10 @@ import { startProgress, type Progress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption, parseNumberOption } from './robustness.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { checkOutputs, outputRequest, scenarioInput, type CheckedOutput } from './output-files.js';
 import { describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -121,7 +123,7 @@ export const deadbeatCommand: Command = {
       valueName: 'LO:HI',
       description: 'with --compare: retraction rates searched, deg/s (default -1:3 x sqrt(g/L0) rad/s)',
     },
-    workers: { type: 'string', valueName: 'N', description: 'with --compare: worker threads (default: all cores); never changes the result' },
+    workers: { ...workersOption('the available cores'), description: `with --compare: ${workersOption('the available cores').description}` },
     out: { type: 'string', valueName: 'RESULT', description: 'also write a result file (JSON, format pronk-result) to RESULT' },
   },
   maxPositionals: 1,
@@ -181,7 +183,7 @@ export function parseDeadbeatFlags(values: ParsedCommandLine['values']): Flags {
   const seed = parseIntegerOption(values.seed, '--seed', 0, Number.MAX_SAFE_INTEGER, SOURCE);
   const after = parseIntegerOption(values.after, '--after', 1, MAX_STRIDES - 1, SOURCE);
   const rateRange = parseRangeOption(values['rate-range'], '--rate-range', 'two rates LO:HI in deg/s with LO < HI (e.g. --rate-range=-100:300)');
-  const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
+  const workers = parseWorkers(values, SOURCE);
   const out = values.out;
   if (out !== undefined && (typeof out !== 'string' || out.trim() === '')) {
     throw new InputError([{ path: '--out', expected: 'a file name', found: describeFound(out) }], { source: SOURCE });
@@ -235,10 +237,11 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
   const json = values.json === true;
   const flags = parseDeadbeatFlags(values);
   const file = positionals[0];
+  const [outFile] = await checkOutputs([outputRequest('--out', flags.out)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'deadbeat');
   const progress = startProgress(io, 'deadbeat', { unit: 'rollouts' });
   try {
-    return await deadbeatWithProgress(scenario, flags, json, io, progress);
+    return await deadbeatWithProgress(scenario, flags, outFile, json, io, progress);
   } finally {
     progress.done();
   }
@@ -247,6 +250,7 @@ async function runDeadbeat({ values, positionals }: ParsedCommandLine, io: CliIO
 async function deadbeatWithProgress(
   scenario: Scenario,
   flags: Flags,
+  outFile: CheckedOutput | undefined,
   json: boolean,
   io: CliIO,
   progress: Progress,
@@ -276,8 +280,9 @@ async function deadbeatWithProgress(
     if (deadbeat.knots.length === 0) {
       comparisonSkipped = 'no knot was solved, so there is no table to compare';
     } else {
-      const { defaultWorkers, runBatchParallel } = await import('../worker/pool.js');
-      const workers = flags.workers ?? defaultWorkers();
+      const { runBatchParallel } = await import('../worker/pool.js');
+      // the screening runs every candidate policy of a grid at once: more items than any core count
+      const workers = workerThreads(io, 'deadbeat', flags.workers, { items: Number.POSITIVE_INFINITY, unit: 'rollouts' });
       progress.phase('comparing with the best fixed angle and retraction');
       const onProgress = (done: number, total: number) => progress.update(done, total);
       const runBatch = (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers, onProgress });
@@ -293,7 +298,7 @@ async function deadbeatWithProgress(
   const options = { synthesis: flags.synthesis, after: flags.after, comparison: flags.comparison };
   if (flags.out !== undefined) {
     const result = await deadbeatResult(scenario, deadbeat, { stepCheck, comparison }, options);
-    await writeText(io, flags.out, `${JSON.stringify(result, null, 2)}\n`, 'deadbeat');
+    await writeText(io, outFile, `${JSON.stringify(result, null, 2)}\n`, 'deadbeat');
   }
   if (json) {
     const output = {

@@ -5,7 +5,7 @@
 import { InputError, describeFound } from '../core/errors.js';
 import { jsonText } from '../core/json-output.js';
 import { buildExport, describeGrid, EXPORT_CAUTION, T_MAX_RANGE_S, type PolicyExport } from '../core/export/build.js';
-import { checkPrefix, defaultPrefix, writeC } from '../core/export/c99.js';
+import { checkPrefix, defaultPrefix, isCSourceOf, writeC } from '../core/export/c99.js';
 import { writeCsv } from '../core/export/csv.js';
 import { readExportSource } from '../core/export/input.js';
 import { writeJson } from '../core/export/json.js';
@@ -13,8 +13,8 @@ import { hex32 } from '../core/export/lookup.js';
 import { MAX_POINTS, type GridRequest } from '../core/export/sample.js';
 import { fields, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption, parseNumberOption } from './robustness.js';
-import { writeText } from './shard-output.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
+import { checkOutputs, writeOutputs } from './output-files.js';
 
 const SOURCE = 'pronk export';
 const FORMATS = ['c', 'json', 'csv'] as const;
@@ -43,8 +43,14 @@ export const exportCommand: Command = {
     '(the float32 tables and the lookups); identifiers start with --prefix (default from the scenario name). --format',
     'json writes the full-precision policy (format pronk-policy), --format csv one row per grid point.',
     '',
-    'A table holding NaN or Infinity (also once rounded to float32), or a result whose constraint margins are negative,',
-    'is refused (exit 2) unless --force, which writes anyway and marks every file as forced.',
+    'Every exported number (table entries, grid times, macros) is checked once rounded to float32: finite, within its',
+    'physical range (angles in (0, 90] deg, times, stiffnesses, mass, leg length and gravity > 0) and not flushed to zero',
+    'or below the float32 normal range; a number that fails is refused (exit 2) naming it, and --force never writes it.',
+    'A result whose constraint margins are negative is refused unless --force, which writes anyway and marks every file.',
+    '',
+    'Files are written through temporary files and renamed once all are complete: never half an export. PATH may not be',
+    'the input file (links resolved); with --format c an existing .c beside PATH is replaced only when it is an earlier',
+    'export of the same header, or with --force.',
   ].join('\n'),
   arguments: [{ name: 'RESULT|SCENARIO', description: 'a result file (format pronk-result: optimization or deadbeat) or a scenario file' }],
   options: {
@@ -56,7 +62,10 @@ export const exportCommand: Command = {
     uniform: { type: 'boolean', description: "evenly spaced points only (leave out the policy's breakpoints); needs --points or --max-error" },
     't-max': { type: 'string', valueName: 'S', description: `end of the time axis, s since apex (${T_MAX_RANGE_S[0]} to ${T_MAX_RANGE_S[1]})` },
     prefix: { type: 'string', valueName: 'NAME', description: 'with --format c: prefix of every C identifier, a lowercase C identifier' },
-    force: { type: 'boolean', description: 'write despite non-finite table values or negative constraint margins (the files say so)' },
+    force: {
+      type: 'boolean',
+      description: 'write despite negative constraint margins (the files say so); with --format c, also replace an existing .c that is not an earlier export',
+    },
     json: { type: 'boolean', description: 'print a report of what was written as JSON on stdout (and nothing else there)' },
   },
   maxPositionals: 1,
@@ -131,9 +140,18 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
   const flags = parseExportFlags(values);
   const file = positionals[0];
   if (file === undefined) throw issue('RESULT|SCENARIO', 'a result or scenario file to export', undefined);
-  const { resolve } = await import('node:path');
-  const targets = flags.format === 'c' ? [flags.out, flags.out.replace(/\.h$/, '.c')] : [flags.out];
-  if (targets.some((t) => resolve(t) === resolve(file))) throw issue('--out', 'a file other than the input', flags.out);
+  // Both files of a C export are checked before anything is read: the .c goes beside the named .h,
+  // and an existing .c is replaced only when it is an earlier export of that header, or with --force.
+  const headerName = flags.out.split(/[\\/]/).pop()!;
+  const sourcePath = flags.out.replace(/\.h$/, '.c');
+  const outputs = await checkOutputs(
+    [
+      { option: '--out', path: flags.out },
+      flags.format === 'c' ? { option: '--out', path: sourcePath, beside: flags.out, mayReplace: (text: string) => isCSourceOf(text, headerName) } : undefined,
+    ],
+    [{ path: file, what: 'the input file' }],
+    { force: flags.force, source: SOURCE },
+  );
   const source = await readExportSource(file);
   let exported: PolicyExport;
   try {
@@ -148,23 +166,20 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
     if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
     throw error;
   }
-  const written: Written[] = [];
-  const write = async (path: string, text: string, contents: string) => {
-    await writeText(io, path, text);
-    written.push({ path, bytes: Buffer.byteLength(text, 'utf8'), contents });
-  };
   const prefix = flags.format === 'c' ? (flags.prefix ?? defaultPrefix(source.scenario.name)) : undefined;
+  const files: { text: string; contents: string }[] = [];
   if (flags.format === 'c') {
-    const headerName = flags.out.split(/[\\/]/).pop()!;
     const c = writeC(exported, prefix!, headerName);
-    const sourcePath = flags.out.replace(/\.h$/, '.c');
-    await write(flags.out, c.header, 'C99 header: macros, declarations, caution, provenance, units');
-    await write(sourcePath, c.source, 'C99 source: float32 tables, lookups, checksum');
+    files.push({ text: c.header, contents: 'C99 header: macros, declarations, caution, provenance, units' });
+    files.push({ text: c.source, contents: 'C99 source: float32 tables, lookups, checksum' });
   } else if (flags.format === 'json') {
-    await write(flags.out, writeJson(exported), 'JSON (format pronk-policy): the policy at full precision, float32 tables, grid, provenance');
+    files.push({ text: writeJson(exported), contents: 'JSON (format pronk-policy): the policy at full precision, float32 tables, grid, provenance' });
   } else {
-    await write(flags.out, writeCsv(exported), 'CSV: one row per grid point, float64, # comment lines');
+    files.push({ text: writeCsv(exported), contents: 'CSV: one row per grid point, float64, # comment lines' });
   }
+  // all or nothing: never a header without its source
+  await writeOutputs(files.map((f, i) => ({ output: outputs[i]!, text: f.text })), { source: SOURCE });
+  const written: Written[] = files.map((f, i) => ({ path: outputs[i]!.path, bytes: Buffer.byteLength(f.text, 'utf8'), contents: f.contents }));
   const report = exportReport(exported, flags.format, written, prefix);
   io.stdout.write(json ? jsonText('export', report) : renderExport(exported, flags.format, written, prefix));
   return 0;

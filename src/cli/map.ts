@@ -4,13 +4,15 @@
 
 import { anyScenarioArgument } from './scenario-argument.js';
 import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map.js';
-import { InputError, describeFound } from '../core/errors.js';
+import { InputError } from '../core/errors.js';
 import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { parseIntegerOption } from './options.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -47,11 +49,12 @@ export const mapCommand: Command = {
 
 async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
   const json = values.json === true;
-  const samples = parseIntegerOption(values.samples, '--samples', 2, MAX_MAP_SAMPLES);
-  const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS);
+  const samples = parseIntegerOption(values.samples, '--samples', 2, MAX_MAP_SAMPLES, SOURCE);
+  const iterations = parseIntegerOption(values.iterations, '--iterations', 0, MAX_STAIRCASE_ITERATIONS, SOURCE);
   const plot = await plotOption(values.plot);
   const file = positionals[0];
-  const any = await anyScenarioArgument(file, io, 'map', ['slip', 'lateral']);
+  const [plotFile] = await checkOutputs([outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
+  const any = await anyScenarioArgument(file, io, 'map', ['slip', 'biped', 'lateral']);
   if (any.kind === 'lateral') {
     if (samples !== undefined || iterations !== undefined || values.approx === true || plot !== undefined) {
       throw new InputError(
@@ -77,16 +80,8 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
     throw error;
   }
   io.stdout.write(json ? jsonText('map', result) : renderMap(scenario, result));
-  if (plot !== undefined) await writePlot(io.stderr, 'map', plot, result);
+  if (plotFile !== undefined) await writePlotFile(io, 'map', plotFile, result);
   return 0;
-}
-
-export function parseIntegerOption(value: string | boolean | undefined, option: string, low: number, high: number, source = SOURCE): number | undefined {
-  if (value === undefined || typeof value === 'boolean') return undefined;
-  if (!/^\s*\+?\d+\s*$/.test(value) || Number(value) < low || Number(value) > high) {
-    throw new InputError([{ path: option, expected: `an integer from ${low} to ${high}`, found: describeFound(value) }], { source });
-  }
-  return Number(value);
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -6,7 +6,8 @@ import type { Scenario } from '../core/scenario.js';
 import type { PartialResult } from '../core/shard.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { outOption, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, writePlotFile } from './output-files.js';
 
 // Each mergeable command's two views, the same functions the command itself prints with; loaded
 // on demand so that merging one command's results never loads the others'.
@@ -53,7 +54,12 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
     throw new UsageError(`pronk merge: no FILES given (usage: pronk ${mergeCommand.usage})`);
   }
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { out });
+  const plot = await plotOption(values.plot);
+  const [outFile, plotFile] = await checkOutputs(
+    [outputRequest('--out', out), outputRequest('--plot', plot)],
+    positionals.map((path) => ({ path, what: 'the partial result' })),
+    { source: 'pronk merge' },
+  );
   const parts: { source: string; partial: PartialResult }[] = [];
   for (const file of positionals) parts.push({ source: file, partial: (await readPartialFile(file)) as PartialResult });
   const { mergePartials } = await import('../core/merge.js');
@@ -62,8 +68,8 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
   if (!load) throw new Error(`no view for the merged command ${merged.command}`);
   const view = await load();
   const text = values.json === true ? view.json(merged.result) : view.text(merged.scenario, merged.result);
-  await writeText(io, out, text, 'merge');
-  if (plot !== undefined) await writePlot(io.stderr, merged.command, plot, merged.result, `pronk merge (${merged.command})`);
+  await writeText(io, outFile, text, 'merge');
+  if (plotFile !== undefined) await writePlotFile(io, merged.command, plotFile, merged.result, `pronk merge (${merged.command})`);
   return 0;
 }
 

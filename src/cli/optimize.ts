@@ -1,14 +1,15 @@
 // `pronk optimize STUDY [--json] [--out RESULT] [--workers N]`: NLopt search over a study's free
 // parameters (multi-start over worker threads), held-out re-scoring, and the result file.
 
-import { writeFile } from 'node:fs/promises';
-import { InputError, describeFound } from '../core/errors.js';
+import { InputError } from '../core/errors.js';
 import type { OptimizationResult, SearchProgress } from '../core/optimize/search.js';
 import { readStudyFile, type Study } from '../core/optimize/study.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, writeOutput, writePlotFile } from './output-files.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
 import { startProgress, status } from './progress.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
 const SOURCE = 'pronk optimize';
@@ -28,11 +29,7 @@ export const optimizeCommand: Command = {
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
     out: { type: 'string', valueName: 'RESULT', description: 'also write the result file (JSON) to RESULT, for pronk export' },
-    workers: {
-      type: 'string',
-      valueName: 'N',
-      description: 'worker threads (default: one per restart, at least 2, at most twice the cores); never changes the result',
-    },
+    workers: workersOption('one per restart, at least 2, at most twice the cores'),
     plot: { ...PLOT_OPTION, description: "also draw the search's convergence (best score so far per restart, larger is better) as an SVG file of 1280 x 800 px" },
   },
   maxPositionals: 1,
@@ -48,14 +45,26 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   if (file === undefined) {
     throw new InputError([{ path: 'STUDY', expected: 'a study file (JSON)', found: 'missing' }], { source: SOURCE });
   }
-  const workers = parseWorkers(values.workers);
+  const workers = parseWorkers(values, SOURCE);
   const out = typeof values.out === 'string' ? values.out : undefined;
   if (out !== undefined && out.trim() === '') {
     throw new InputError([{ path: '--out', expected: 'a file path', found: '""' }], { source: SOURCE });
   }
-  const plot = await plotOption(values.plot, { out });
+  const plot = await plotOption(values.plot);
   const study = await readStudyFile(file);
-  const { optimizeStudy, usefulWorkers, defaultWorkers } = await import('../worker/node-optimize.js');
+  // the study and the scenario file it names are inputs: no output may replace them
+  const { dirname, resolve } = await import('node:path');
+  const [outFile, plotFile] = await checkOutputs(
+    [outputRequest('--out', out), outputRequest('--plot', plot)],
+    [
+      { path: file, what: 'the study file' },
+      study.scenario_source === 'inline' ? undefined : { path: resolve(dirname(file), study.scenario_source), what: "the study's scenario file" },
+    ],
+    { source: SOURCE },
+  );
+    const { optimizeStudy, usefulWorkers } = await import('../worker/node-optimize.js');
+  // restarts differ in length, so up to two threads per core keep the cores busy to the end
+  const threads = workerThreads(io, 'optimize', workers, { items: usefulWorkers(study), unit: 'restarts', perCore: 2 });
   // Ctrl-C once: stop the search and keep the best point; twice: skip the held-out re-scoring too;
   // three times: leave at once, without a result.
   const stopSearch = new AbortController();
@@ -75,7 +84,6 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
     }
   };
   process.on('SIGINT', onSigint);
-  const threads = Math.min(workers ?? defaultWorkers(study), usefulWorkers(study));
   status(
     io,
     'optimize',
@@ -93,35 +101,19 @@ async function runOptimize({ values, positionals }: ParsedCommandLine, io: CliIO
   };
   let result: OptimizationResult;
   try {
-    result = await optimizeStudy(study, { workers, signal: stopSearch.signal, holdoutSignal: skipHoldout.signal, onProgress });
+    result = await optimizeStudy(study, { workers: threads, signal: stopSearch.signal, holdoutSignal: skipHoldout.signal, onProgress });
   } finally {
     process.off('SIGINT', onSigint);
     progress.done();
   }
   const text = `${JSON.stringify(result, null, 2)}\n`;
-  if (out !== undefined) {
-    try {
-      await writeFile(out, text);
-    } catch (error) {
-      throw new InputError(
-        [{ path: '--out', expected: 'a writable file path', found: `${JSON.stringify(out)} (${(error as Error).message})` }],
-        { source: SOURCE },
-      );
-    }
-    status(io, 'optimize', `result written to ${out}${result.cancelled ? ' (marked cancelled)' : ''}`);
+  if (outFile !== undefined) {
+    await writeOutput(outFile, text, { source: SOURCE });
+    status(io, 'optimize', `result written to ${outFile.path}${result.cancelled ? ' (marked cancelled)' : ''}`);
   }
   io.stdout.write(json ? text : renderOptimization(study, result));
-  if (plot !== undefined) await writePlot(io.stderr, 'optimize', plot, result);
+  if (plotFile !== undefined) await writePlotFile(io, 'optimize', plotFile, result);
   return result.cancelled ? EXIT_CANCELLED : 0;
-}
-
-function parseWorkers(value: string | boolean | undefined): number | undefined {
-  if (value === undefined || typeof value === 'boolean') return undefined;
-  const n = Number(value);
-  if (!/^\s*\d+\s*$/.test(value) || n < 1 || n > 1024) {
-    throw new InputError([{ path: '--workers', expected: 'an integer from 1 to 1024', found: describeFound(value) }], { source: SOURCE });
-  }
-  return n;
 }
 
 // The progress line's detail in the search phase: restarts finished and the best score so far

@@ -16,8 +16,11 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
@@ -70,7 +73,7 @@ export const robustnessCommand: Command = {
       valueName: 'V',
       description: 'forward speed (m/s) the speed RMS is taken about (default the start speed)',
     },
-    workers: { type: 'string', valueName: 'N', description: 'worker threads (default: all cores); never changes the result' },
+    workers: workersOption(),
     ...SHARD_OPTIONS,
     plot: PLOT_OPTION,
   },
@@ -81,11 +84,12 @@ export const robustnessCommand: Command = {
 async function runRobustness({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
   const json = values.json === true;
   const options = parseRobustnessFlags(values);
-  const workers = parseIntegerOption(values.workers, '--workers', 1, 1024, SOURCE);
+  const workers = parseWorkers(values, SOURCE);
   const spec = shardOption(values);
   const out = outOption(values);
-  const plot = await plotOption(values.plot, { shard: spec !== undefined, out });
+  const plot = await plotOption(values.plot, { shard: spec !== undefined });
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'robustness');
   const { canonicalRobustnessOptions, finishRobustness, robustnessRows } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
@@ -95,12 +99,19 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
     if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
     throw error;
   }
-  const { defaultWorkers } = await import('../worker/pool.js');
+  let range: { start: number; end: number } | undefined;
+  try {
+    range = spec === undefined ? undefined : shardRange(canonical.rollouts, spec);
+  } catch (error) {
+    if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
+    throw error;
+  }
+  const items = range === undefined ? canonical.rollouts : range.end - range.start;
+  const threads = workerThreads(io, 'robustness', workers, { items, unit: 'rollouts' });
   const progress = startProgress(io, 'robustness', { unit: 'rollouts' });
-  const execution = { workers: workers ?? defaultWorkers(), onProgress: (done: number, total: number) => progress.update(done, total) };
+  const execution = { workers: threads, onProgress: (done: number, total: number) => progress.update(done, total) };
 
-  if (spec !== undefined) {
-    const range = shardRange(canonical.rollouts, spec);
+  if (spec !== undefined && range !== undefined) {
     const rows = await robustnessRows(scenario, canonical, range, execution).finally(progress.done);
     const partial = await makePartial({
       command: 'robustness',
@@ -111,15 +122,15 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
       total: canonical.rollouts,
       rows,
     });
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
 
   const rows = await robustnessRows(scenario, canonical, undefined, execution).finally(progress.done);
   const result = await finishRobustness(scenario, canonical, rows);
   const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
-  await writeText(io, out, text, 'robustness');
-  if (plot !== undefined) await writePlot(io.stderr, 'robustness', plot, result);
+  await writeText(io, outFile, text, 'robustness');
+  if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
   return 0;
 }
 
@@ -145,37 +156,6 @@ export function parseRobustnessFlags(values: ParsedCommandLine['values']): Robus
     ...(targetHeight === undefined ? {} : { target_height_m: targetHeight }),
     ...(targetSpeed === undefined ? {} : { target_speed_m_per_s: targetSpeed }),
   };
-}
-
-/** An integer option in [low, high] (high: no limit when undefined), or undefined when absent. */
-export function parseIntegerOption(
-  value: string | boolean | undefined,
-  flag: string,
-  low: number,
-  high: number | undefined,
-  source: string,
-): number | undefined {
-  if (value === undefined) return undefined;
-  const n = typeof value === 'string' && /^\s*\+?\d+\s*$/.test(value) ? Number(value) : NaN;
-  if (!(Number.isSafeInteger(n) && n >= low && (high === undefined || n <= high))) {
-    const range = high === undefined ? (low === 1 ? 'a positive integer' : `an integer >= ${low}`) : `an integer from ${low} to ${high}`;
-    throw new InputError([{ path: flag, expected: range, found: describeFound(value) }], { source });
-  }
-  return n;
-}
-
-/** A finite number option passing `ok`, or undefined when absent. */
-export function parseNumberOption(
-  value: string | boolean | undefined,
-  flag: string,
-  expected: string,
-  source: string,
-  ok: (v: number) => boolean = () => true,
-): number | undefined {
-  if (value === undefined) return undefined;
-  const n = typeof value === 'string' && value.trim() !== '' ? Number(value) : NaN;
-  if (!(Number.isFinite(n) && ok(n))) throw new InputError([{ path: flag, expected, found: describeFound(value) }], { source });
-  return n;
 }
 
 // ---------------------------------------------------------------------------------------------

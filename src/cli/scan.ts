@@ -11,14 +11,15 @@ import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { fields, fixed, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption } from './map.js';
-import { SHARD_OPTIONS, outOption, shardOption, writePartial, writeText } from './shard-output.js';
-import { PLOT_OPTION, plotOption, writePlot } from '../core/figures/plot-file.js';
+import { parseIntegerOption } from './options.js';
+import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { SHARD_OPTIONS, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
+import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
+import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk scan';
-const MAX_WORKERS = 256;
 const TEXT_WIDTH = 96;
 
 export const scanCommand: Command = {
@@ -40,7 +41,7 @@ export const scanCommand: Command = {
     x: { type: 'string', valueName: 'PATH:LO:HI:N', description: 'first parameter (columns): N values of the field PATH from LO to HI' },
     y: { type: 'string', valueName: 'PATH:LO:HI:N', description: 'second parameter (rows): N values of the field PATH from LO to HI' },
     samples: { type: 'string', valueName: 'N', description: "samples of each cell's map (default 201)" },
-    workers: { type: 'string', valueName: 'N', description: 'worker threads (default: the available cores)' },
+    workers: workersOption(),
     ...SHARD_OPTIONS,
     plot: PLOT_OPTION,
   },
@@ -56,33 +57,38 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
     }
   }
   const samples = parseIntegerOption(values.samples, '--samples', 2, 100_000, SOURCE);
-  const workers = parseIntegerOption(values.workers, '--workers', 1, MAX_WORKERS, SOURCE);
+  const workers = parseWorkers(values, SOURCE);
   const shard = withSource(() => shardOption(values));
   const out = withSource(() => outOption(values));
-  const plot = await withSourceAsync(() => plotOption(values.plot, { shard: shard !== undefined, out }));
+  const plot = await withSourceAsync(() => plotOption(values.plot, { shard: shard !== undefined }));
   const core = await import('../core/analysis/scan.js');
   const options: ScanOptions = withSource(() =>
     core.normalizeScanOptions({ x: values.x, y: values.y, ...(samples === undefined ? {} : { samples }) }),
   );
 
   const file = positionals[0];
+  const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'scan');
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
-  const { runBatchParallel, defaultWorkers } = await import('../worker/pool.js');
+  const { runBatchParallel } = await import('../worker/pool.js');
+  // the sampling batch, most of the work, runs every cell's samples at once
+  const cells = options.x.n * options.y.n;
+  const range = shard ? withSource(() => shardRange(cells, shard)) : { start: 0, end: cells };
+  const threads = workerThreads(io, 'scan', workers, { items: (range.end - range.start) * options.samples, unit: 'rollouts' });
   // A scan runs several batches (the sampled maps, then the fixed points' polish and slopes): the
   // progress shows the batch under way; the first, the sampling, is most of the work.
   const progress = startProgress(io, 'scan', { unit: 'rollouts' });
   const onProgress = (done: number, total: number) => progress.update(done, total);
-  const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: workers ?? defaultWorkers(), onProgress }) };
+  const run = { runBatch: (req: Parameters<typeof runBatchParallel>[0]) => runBatchParallel(req, { workers: threads, onProgress }) };
   if (shard) {
     const partial = await withSourceAsync(() => core.scanShard(scenario, options, shard, run)).finally(progress.done);
-    await writePartial(io, values, partial);
+    await writePartial(io, outFile, partial);
     return 0;
   }
   const result = await withSourceAsync(() => core.scan(scenario, options, run)).finally(progress.done);
-  await writeText(io, out, json ? scanJson(result) : renderScan(scenario, result), 'scan');
-  if (plot !== undefined) await withSourceAsync(() => writePlot(io.stderr, 'scan', plot, result));
+  await writeText(io, outFile, json ? scanJson(result) : renderScan(scenario, result), 'scan');
+  if (plotFile !== undefined) await withSourceAsync(() => writePlotFile(io, 'scan', plotFile, result));
   return 0;
 }
 

@@ -25,5 +25,5 @@ export async function anyScenarioArgument(
 ): Promise<AnyScenario> {
   const { readAnyScenarioFile } = await import('../core/models/any.js');
   if (file !== undefined) return readAnyScenarioFile(file, { command, supported });
-  return { kind: 'slip', scenario: await scenarioArgument(file, io, command) };
+  return { kind: 'slip', scenario: await scenarioArgument(file, io, command) }; // the demo is a single-leg scenario
 }

@@ -3,6 +3,7 @@
 // every command that can be sharded (basin, scan, robustness).
 
 import { InputError } from '../core/errors.js';
+import { checkOutputs, writeOutput, type CheckedOutput } from './output-files.js';
 import { status } from './progress.js';
 import {
   PARTIAL_FORMAT,
@@ -83,35 +84,30 @@ export async function makePartial<Row>(args: {
 export { shardRange };
 
 /**
- * Write a partial result as JSON to `--out FILE` (with a one-line note on stderr) or to stdout.
- * An unwritable file is an InputError naming --out.
+ * Write a partial result as JSON to the checked `--out` file (with a one-line note on stderr) or,
+ * without one, to stdout.
  */
-export async function writePartial(io: CliIO, values: ParsedCommandLine['values'], partial: PartialResult): Promise<void> {
+export async function writePartial(io: CliIO, out: CheckedOutput | undefined, partial: PartialResult): Promise<void> {
   const text = `${JSON.stringify(partial)}\n`;
-  const out = outOption(values);
   await writeText(io, out, text);
   if (out !== undefined) {
     const { index, count, start, end, total } = partial.shard;
-    status(io, partial.command, `shard ${index}/${count} (items ${start} to ${end - 1} of ${total}) written to ${out}`);
+    status(io, partial.command, `shard ${index}/${count} (items ${start} to ${end - 1} of ${total}) written to ${out.path}`);
   }
 }
 
 /**
- * Write `text` to the file `out`, or to stdout when `out` is undefined; with `command`, a file
- * written is said in a status line on stderr.
+ * Write `text` to the file `out` (through a temporary file and a rename: src/cli/output-files.ts),
+ * or to stdout when `out` is undefined; with `command`, a file written is said in a status line on
+ * stderr. `out` is an output checked before the work began; a plain path is checked now (as the
+ * --out of a command with no inputs).
  */
-export async function writeText(io: CliIO, out: string | undefined, text: string, command?: string): Promise<void> {
+export async function writeText(io: CliIO, out: CheckedOutput | string | undefined, text: string, command?: string): Promise<void> {
   if (out === undefined) {
     io.stdout.write(text);
     return;
   }
-  const { writeFile } = await import('node:fs/promises');
-  try {
-    await writeFile(out, text, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const why = code === 'ENOENT' ? 'no such directory' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : error instanceof Error ? error.message : String(error);
-    throw new InputError([{ path: '--out', expected: 'a writable file', found: JSON.stringify(out), message: `cannot write ${JSON.stringify(out)} (${why})` }]);
-  }
-  if (command !== undefined) status(io, command, `result written to ${out}`);
+  const [output] = typeof out === 'string' ? await checkOutputs([{ option: '--out', path: out }], []) : [out];
+  await writeOutput(output!, text);
+  if (command !== undefined) status(io, command, `result written to ${output!.path}`);
 }

@@ -11,7 +11,8 @@ import {
   type Terrain,
 } from '../core/scenario.js';
 import type { SimulationResult } from '../core/simulate.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonTextChunks } from '../core/json-output.js';
+import { writeChunks } from './stream-output.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 
@@ -40,7 +41,7 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  const any = await anyScenarioArgument(file, io, 'simulate', ['slip', 'lateral']);
+  const any = await anyScenarioArgument(file, io, 'simulate', ['slip', 'biped', 'lateral']);
   if (any.kind === 'lateral') {
     const { runLateralSimulate } = await import('./lateral.js');
     return runLateralSimulate(any.scenario, io, { json, strides, traceInterval });
@@ -53,7 +54,8 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
     ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
   });
   if (json) {
-    io.stdout.write(jsonText('simulate', result));
+    // in pieces: the documented 1 000 000 strides make about 1 GB of JSON, more than one string holds
+    await writeChunks(io.stdout, jsonTextChunks('simulate', result));
   } else {
     io.stdout.write(renderSimulation(scenario, result, { stridesRequested: strides ?? scenario.strides }));
   }

@@ -10,7 +10,7 @@ import { jsonText } from '../core/json-output.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
-import { parseIntegerOption, parseNumberOption } from './robustness.js';
+import { parseIntegerOption, parseNumberOption } from './options.js';
 import { describeAngle, describeStiffness } from './simulate.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';

@@ -17,6 +17,8 @@
 //                   "left_touchdown" for the lateral leg-spring model (speed, heading to the body
 //                   axis, angular velocity at the left leg's touchdown).
 
+import { jsonChunks } from './json-stream.js';
+
 export const JSON_FORMAT_VERSION = 1;
 export const MODEL_KIND = 'slip';
 export const SECTION = 'flight_apex';
@@ -44,4 +46,10 @@ export function described<T extends object>(command: JsonCommand, result: T, mod
 /** The `--json` text: the described result, 2-space indented, with a final newline. */
 export function jsonText(command: JsonCommand, result: object, model: OutputModelKind = MODEL_KIND): string {
   return `${JSON.stringify(described(command, result, model), null, 2)}\n`;
+}
+
+/** The `--json` text of jsonText in pieces (src/core/json-stream.ts), for outputs too large for one string. */
+export function* jsonTextChunks(command: JsonCommand, result: object): Generator<string> {
+  yield* jsonChunks(described(command, result));
+  yield '\n';
 }

@@ -6,6 +6,7 @@ import { InputError, describeFound, type InputIssue } from './errors.js';
 import { parseScenario, type Scenario } from './scenario.js';
 import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, joinShards, type PartialResult } from './shard.js';
 import { contentHash } from './version.js';
+import type { RobustnessOptions } from './analysis/robustness.js';
 
 export type Finisher = (scenario: Scenario, options: Record<string, unknown>, rows: unknown[]) => Promise<unknown>;
 
@@ -16,6 +17,25 @@ const FINISHERS: Record<string, () => Promise<Finisher>> = {
   basin: async () => (await import('./analysis/basin.js')).finishBasin as Finisher,
   scan: async () => (await import('./analysis/scan.js')).finishScan as unknown as Finisher,
   robustness: async () => (await import('./analysis/robustness.js')).finishRobustness as unknown as Finisher,
+};
+
+// The number of items (cells, rollouts) the run's options describe, each options check the
+// command's own: a partial result's `shard.total` must equal it, so what a file claims is bounded
+// by what the command itself accepts (MAX_BASIN_CELLS, MAX_SCAN_CELLS, MAX_ROLLOUTS).
+const ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<string, unknown>) => Promise<number>> = {
+  basin: async (_scenario, options) => {
+    const { basinCellCount, checkBasinRunOptions } = await import('./analysis/basin.js');
+    return basinCellCount(checkBasinRunOptions(options));
+  },
+  scan: async (_scenario, options) => {
+    const { normalizeScanOptions } = await import('./analysis/scan.js');
+    const { x, y } = normalizeScanOptions(options);
+    return x.n * y.n;
+  },
+  robustness: async (scenario, options) => {
+    const { canonicalRobustnessOptions } = await import('./analysis/robustness.js');
+    return canonicalRobustnessOptions(scenario, options as unknown as RobustnessOptions).rollouts;
+  },
 };
 
 export const MERGEABLE_COMMANDS: readonly string[] = Object.keys(FINISHERS);
@@ -37,6 +57,35 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
   for (const { source, partial } of parts) issues.push(...partialShapeIssues(source, partial));
   if (issues.length) throw new InputError(issues);
 
+  // The run the first file describes, checked before anything is joined: its command, its
+  // scenario and the number of items its options give, which every claim of the files must match.
+  const first = parts[0];
+  const command = first.partial.command;
+  const load = Object.hasOwn(FINISHERS, command) ? FINISHERS[command] : undefined;
+  if (!load) {
+    throw new InputError([
+      { path: `${first.source}: command`, expected: `a command that can be merged (${MERGEABLE_COMMANDS.join(', ')})`, found: describeFound(command) },
+    ]);
+  }
+  if ((await contentHash(first.partial.scenario)) !== first.partial.scenario_sha256) {
+    throw new InputError([
+      { path: `${first.source}: scenario`, expected: `the scenario whose hash is scenario_sha256`, found: 'a scenario with another hash (the file was edited)' },
+    ]);
+  }
+  const scenario = parseScenario(first.partial.scenario, { source: `${first.source}: scenario` });
+  let items: number;
+  try {
+    items = await ITEM_COUNTS[command](scenario, first.partial.options);
+  } catch (error) {
+    if (error instanceof InputError) throw new InputError(error.issues, { source: `${first.source}: options` });
+    throw error;
+  }
+  if (first.partial.shard.total !== items) {
+    throw new InputError([
+      { path: `${first.source}: shard.total`, expected: `${items} (the ${command} run its options describe has ${items} items)`, found: describeFound(first.partial.shard.total) },
+    ]);
+  }
+
   let joined: ReturnType<typeof joinShards>;
   try {
     joined = joinShards(parts);
@@ -46,7 +95,6 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
     const given = parts.map(({ source, partial }) => `${source} is ${partial.shard.index}/${partial.shard.count}`).join(', ');
     throw new InputError(error.issues.map((issue) => (issue.path === 'FILES' ? { ...issue, found: `${issue.found} (given: ${given})` } : issue)));
   }
-  const first = parts[0];
   for (const { source, partial } of parts.slice(1)) {
     if (partial.pronk_version !== first.partial.pronk_version) {
       issues.push({
@@ -57,18 +105,6 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
     }
   }
   if (issues.length) throw new InputError(issues);
-  if ((await contentHash(joined.scenario)) !== first.partial.scenario_sha256) {
-    throw new InputError([
-      { path: `${first.source}: scenario`, expected: `the scenario whose hash is scenario_sha256`, found: 'a scenario with another hash (the file was edited)' },
-    ]);
-  }
-  const scenario = parseScenario(joined.scenario, { source: `${first.source}: scenario` });
-  const load = Object.hasOwn(FINISHERS, joined.command) ? FINISHERS[joined.command] : undefined;
-  if (!load) {
-    throw new InputError([
-      { path: `${first.source}: command`, expected: `a command that can be merged (${MERGEABLE_COMMANDS.join(', ')})`, found: describeFound(joined.command) },
-    ]);
-  }
   const finish = await load();
   let result: unknown;
   try {
@@ -116,5 +152,8 @@ function partialShapeIssues(source: string, partial: unknown): InputIssue[] {
     isInteger(shard.total) && shard.total >= 0 &&
     isInteger(shard.start) && isInteger(shard.end) && shard.start >= 0 && shard.start <= shard.end && shard.end <= shard.total;
   need(shardOk, 'shard', '{index, count, start, end, total} with 1 <= index <= count and 0 <= start <= end <= total', shard);
+  if (shardOk && shard.count! > Math.max(1, shard.total!)) {
+    issues.push({ path: `${source}: shard.count`, expected: `at most ${shard.total} shards (one item each at most: the run has ${shard.total} items)`, found: String(shard.count) });
+  }
   return issues;
 }

@@ -5,6 +5,7 @@ import * as L from '../../assembly/layout.js';
 import type { ModelBlock } from './engine.js';
 import { rolloutInput } from './engine.js';
 import type { Scenario } from './scenario.js';
+import { completeBipedBlock, isBiped, sectionInput, startState } from './models/biped.js';
 import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
@@ -16,6 +17,12 @@ export const DEG = Math.PI / 180;
 const UNBOUNDED = 1e300;
 
 export function buildModel(s: Scenario): ModelBlock {
+  const block = buildSingleLegBlock(s);
+  return isBiped(s) ? completeBipedBlock(s, block) : block;
+}
+
+// The fields every kind shares (body, policy, terrain, integrator), as the single-leg model reads them.
+function buildSingleLegBlock(s: Scenario): ModelBlock {
   const f = new Float64Array(L.M_SIZE);
   const block: ModelBlock = { fields: f };
   f[L.M_MASS] = s.body.mass_kg;
@@ -98,6 +105,7 @@ export function buildModel(s: Scenario): ModelBlock {
 
 /** The scenario's own start as a rollout input row (terrain stream 0). */
 export function startInput(s: Scenario, stream = 0): Float64Array {
+  if (isBiped(s)) return sectionInput(startState(s), stream);
   return rolloutInput(s.start.apex_height_m, s.start.forward_speed_m_per_s, stream);
 }
 
@@ -113,6 +121,9 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_NON_FINITE]: 'non_finite_state',
   [L.STATUS_STEP_LIMIT]: 'step_limit',
   [L.STATUS_ATTACK_OUT_OF_RANGE]: 'attack_out_of_range',
+  [L.STATUS_GAIT_CHANGED]: 'gait_changed',
+  [L.STATUS_STALLED]: 'stalled',
+  [L.STATUS_NO_SECTION]: 'no_section',
   // lateral leg-spring model
   [L.STATUS_STALLED_FORWARD]: 'stalled_forward',
   [L.STATUS_LEG_UNLOADED]: 'leg_unloaded',
@@ -131,6 +142,11 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_STEP_LIMIT]: 'numeric trouble: step limit reached (the integrator in one stance, or the touchdown search)',
   [L.STATUS_ATTACK_OUT_OF_RANGE]:
     'the commanded leg angle left (0, 90] deg before touchdown (a retraction without a clamp on that side: add max_deg or min_deg)',
+  [L.STATUS_GAIT_CHANGED]:
+    'the gait changed: a walking stride left the ground (flight), or a running stride landed its second leg (double support)',
+  [L.STATUS_STALLED]: 'stalled in double support (forward speed reached zero, or no leg lifted off)',
+  [L.STATUS_NO_SECTION]:
+    'no section: the swing leg touched down a second time before the body reached its single-support apex',
   [L.STATUS_STALLED_FORWARD]: 'the velocity along the body axis fell to zero (the body stalled or turned sideways)',
   [L.STATUS_LEG_UNLOADED]: 'at a touchdown the body was already moving away from the new foot (the leg cannot load)',
 };

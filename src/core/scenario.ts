@@ -6,8 +6,10 @@
 import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
-import { modelKindOf, refuseModelKind } from './models/kind.js';
 import { validateWith, valueAt } from './validation.js';
+import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
+import { modelKindOf, refuseModelKind } from './models/kind.js';
+import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
@@ -44,6 +46,7 @@ export const BOUNDS = {
   rate_deg_per_s: { low: -1e5, high: 1e5, unit: 'deg/s' },
   time_since_apex_s: { low: 0, high: 1e6, unit: 's' },
   sigma_m: { low: 0, high: 1e3, unit: 'm' },
+  apex_accuracy_m: { low: 1e-15, high: 1e3, unit: 'm' },
 } as const satisfies Record<string, PhysicalBound>;
 
 /** Most knots in a time table, and most entries in a list of ground heights. */
@@ -59,14 +62,14 @@ function showNumber(x: number): string {
   return String(x);
 }
 
-const bounded = (bound: PhysicalBound, what?: string) => z.number({ error: boundText(bound, what) }).gte(bound.low).lte(bound.high);
+export const bounded = (bound: PhysicalBound, what?: string) => z.number({ error: boundText(bound, what) }).gte(bound.low).lte(bound.high);
 
 // ---------------------------------------------------------------------------------------------
 // Field schemas. Each carries its own "expected" text (with the unit), used for every way the
 // field can be wrong: missing, wrong type, non-finite (zod's number rejects NaN and ±Infinity) or
 // out of range.
 
-const integerIn = (low: number, high: number) =>
+export const integerIn = (low: number, high: number) =>
   z.number({ error: `an integer from ${low} to ${high}` }).int().gte(low).lte(high);
 const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
 
@@ -74,14 +77,14 @@ const tolerance = z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1);
 const ANGLE_EXPECTED = 'an angle in (0, 90] (deg from the horizontal)';
 const attackAngleDeg = z.number({ error: ANGLE_EXPECTED }).gt(0).lte(90);
 
-const text = (what: string) => z.string({ error: what });
+export const text = (what: string) => z.string({ error: what });
 
 // A strict object: an unknown key is an error (reported per key, with a "did you mean").
-function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
+export function strictObject<Shape extends z.ZodRawShape>(shape: Shape, expected: string) {
   return z.strictObject(shape, { error: (issue) => (issue.code === 'invalid_type' ? expected : undefined) });
 }
 
-function fieldList(shape: z.ZodRawShape): string {
+export function fieldList(shape: z.ZodRawShape): string {
   return Object.keys(shape).filter((name) => name !== '$schema').join(', ');
 }
 
@@ -249,6 +252,9 @@ const integratorShape = {
   relative_tolerance: tolerance.default(DEFAULT_RELATIVE_TOLERANCE),
   absolute_tolerance: tolerance.default(DEFAULT_ABSOLUTE_TOLERANCE),
   max_steps_per_stance: integerIn(10, 10_000_000).default(DEFAULT_MAX_STEPS_PER_STANCE),
+  // optional: the apex height accuracy of one stride, m; the two tolerances then follow from it
+  // and the gait (src/core/accuracy.ts) and the parsed scenario states them
+  apex_accuracy_m: bounded(BOUNDS.apex_accuracy_m).optional(),
 };
 export const integratorSchema = strictObject(integratorShape, `an object with ${fieldList(integratorShape)}`).prefault({});
 
@@ -258,7 +264,6 @@ export const schemaReference = text('a string (the JSON Schema this file follows
 
 const scenarioShape = {
   $schema: schemaReference,
-  model: z.literal('slip', { error: 'the string "slip" (or no model field)' }).optional(),
   name: text('a string').optional(),
   description: text('a string').optional(),
   body: bodySchema,
@@ -274,7 +279,16 @@ export const scenarioSchema = strictObject(
   `a scenario object with ${fieldList(scenarioShape)}`,
 ).superRefine(checkStartAboveTouchdown, always);
 
-export type Scenario = Omit<z.output<typeof scenarioSchema>, '$schema'>;
+/**
+ * A validated scenario. The single-leg model's scenario has no "model" (or "slip"); other kinds
+ * (src/core/models/) add their fields here as optional ones, so every analysis keeps one type and
+ * narrows by `model` (src/core/models/kind.ts).
+ */
+export type Scenario = Omit<z.output<typeof scenarioSchema>, '$schema'> & {
+  model?: 'slip' | 'biped';
+  legs?: BipedLegs;
+  start: Partial<BipedStartExtras>;
+};
 export type Body = z.output<typeof bodySchema>;
 export type Start = z.output<typeof startSchema>;
 export type AnglePolicy = z.output<typeof anglePolicySchema>;
@@ -346,13 +360,56 @@ function showAbove(bound: number, found: number): string {
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
 export function parseScenario(value: unknown, options: { source?: string; command?: string } = {}): Scenario {
-  // another model kind: refused by name, never read as a single-leg scenario (models/kind.ts)
-  const kind = modelKindOf(value, options);
-  if (kind !== 'slip') refuseModelKind(options.command ?? 'this command', ['slip'], kind, options.source);
+  const kind = modelKindOf(value, options.source);
+  // the lateral model has its own scenario type (models/lateral.ts): refused here by name
+  if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', ['slip', 'biped'], kind, options.source);
+  if (kind === 'biped') return parseBipedScenario(value, options);
+  if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
+    const { model: _slip, ...rest } = value as Record<string, unknown>;
+    value = rest; // "model": "slip" is the default, said out loud; the scenario is the same
+  }
   const result = validateWith(scenarioSchema, value);
   if (!result.success) throw new InputError(result.issues, options);
   const { $schema: _reference, ...scenario } = result.data;
+  if (scenario.integrator.apex_accuracy_m !== undefined) applyApexAccuracy(scenario, value, options);
   return scenario;
+}
+
+// integrator.apex_accuracy_m: the tolerances follow from it and the gait, written into the parsed
+// scenario so that everything reading or echoing it uses and states them. Tolerances given beside it
+// must be the ones it gives (a scenario echoed by a result file has them); others are refused.
+function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source?: string }): void {
+  const accuracy = scenario.integrator.apex_accuracy_m as number;
+  const { body, start } = scenario;
+  const gravity = body.gravity_m_per_s2 ?? STANDARD_GRAVITY_M_PER_S2;
+  const tolerances = tolerancesForApexAccuracy(accuracy, body.leg_length_m, start.forward_speed_m_per_s, gravity);
+  if (!tolerances) {
+    const finest = finestApexAccuracyM(gaitLengthScaleM(body.leg_length_m, start.forward_speed_m_per_s, gravity));
+    throw new InputError(
+      [
+        {
+          path: 'integrator.apex_accuracy_m',
+          expected: `at least ${showNumber(finest)} m for this leg length and start speed (the finest apex accuracy the integrator reaches)`,
+          found: describeFound(accuracy),
+        },
+      ],
+      options,
+    );
+  }
+  const issues: InputIssue[] = [];
+  for (const field of ['relative_tolerance', 'absolute_tolerance'] as const) {
+    const given = valueAt(value, ['integrator', field]);
+    if (given !== undefined && given !== tolerances[field]) {
+      issues.push({
+        path: `integrator.${field}`,
+        expected: `no value beside integrator.apex_accuracy_m (which gives ${tolerances[field]} here), or that value`,
+        found: describeFound(given),
+      });
+    }
+  }
+  if (issues.length) throw new InputError(issues, options);
+  scenario.integrator.relative_tolerance = tolerances.relative_tolerance;
+  scenario.integrator.absolute_tolerance = tolerances.absolute_tolerance;
 }
 
 // The built-in demo scenario (scenarios/demo.json), validated like any other.

@@ -27,8 +27,21 @@ export function parseShard(text: string, option = '--shard'): ShardSpec {
   return { index, count };
 }
 
-/** The rollouts of shard `spec` among `total`: contiguous, sizes differing by at most one. */
-export function shardRange(total: number, spec: ShardSpec): ShardRange {
+/**
+ * The rollouts of shard `spec` among `total`: contiguous, sizes differing by at most one. More
+ * shards than items would leave empty shards (and a merge that has to account for each of them),
+ * so it is refused, naming both numbers.
+ */
+export function shardRange(total: number, spec: ShardSpec, option = '--shard'): ShardRange {
+  if (spec.count > Math.max(1, total)) {
+    throw new InputError([
+      {
+        path: option,
+        expected: `at most ${total} shards (one item each at most: the run has ${total} ${total === 1 ? 'item' : 'items'})`,
+        found: `${spec.count} shards (${spec.index}/${spec.count})`,
+      },
+    ]);
+  }
   const i = spec.index - 1;
   const base = Math.floor(total / spec.count);
   const extra = total % spec.count;
@@ -58,6 +71,8 @@ export interface PartialResult<Row = unknown> {
   /** One entry per item of the shard's range, in order; numbers survive JSON exactly. */
   rows: Row[];
 }
+
+const MISSING_SHARDS_LISTED = 20;
 
 /**
  * Put shards back together: checks that they come from one run (command, scenario, options,
@@ -91,6 +106,15 @@ export function joinShards<Row>(parts: { source: string; partial: PartialResult<
       });
     }
   }
+  const { count, total } = first.shard;
+  if (!(Number.isSafeInteger(count) && count >= 1 && count <= Math.max(1, total))) {
+    issues.push({ path: parts[0].source, expected: `at most ${total} shards (one item each at most)`, found: `${count} shards` });
+  }
+  for (const { source, partial } of parts) {
+    if (!(Number.isSafeInteger(partial.shard.index) && partial.shard.index >= 1 && partial.shard.index <= count)) {
+      issues.push({ path: source, expected: `a shard number from 1 to ${count}`, found: String(partial.shard.index) });
+    }
+  }
   if (issues.length) throw new InputError(issues);
   const byIndex = new Map<number, { source: string; partial: PartialResult<Row> }>();
   for (const part of parts) {
@@ -98,10 +122,14 @@ export function joinShards<Row>(parts: { source: string; partial: PartialResult<
     if (seen) issues.push({ path: part.source, expected: `shard ${part.partial.shard.index} once`, found: `also in ${seen.source}` });
     byIndex.set(part.partial.shard.index, part);
   }
-  const missing = [];
-  for (let i = 1; i <= first.shard.count; i++) if (!byIndex.has(i)) missing.push(i);
-  if (missing.length) {
-    issues.push({ path: 'FILES', expected: `all ${first.shard.count} shards`, found: `shard ${missing.join(', ')} missing` });
+  // O(files given), whatever count a file claims: the first missing shards are found within
+  // (files + listed) steps, and the number missing is the count less the distinct shards given
+  const missing: number[] = [];
+  for (let i = 1; i <= first.shard.count && missing.length < MISSING_SHARDS_LISTED; i++) if (!byIndex.has(i)) missing.push(i);
+  const missingCount = first.shard.count - byIndex.size;
+  if (missingCount) {
+    const listed = missingCount > missing.length ? `${missing.join(', ')}, … (${missingCount} in all)` : missing.join(', ');
+    issues.push({ path: 'FILES', expected: `all ${first.shard.count} shards`, found: `shard ${listed} missing` });
   }
   if (issues.length) throw new InputError(issues);
   const rows: Row[] = [];
@@ -111,7 +139,7 @@ export function joinShards<Row>(parts: { source: string; partial: PartialResult<
     if (partial.shard.start !== at || partial.rows.length !== partial.shard.end - partial.shard.start) {
       throw new InputError([{ path: source, expected: `rows ${at} onward`, found: `rows ${partial.shard.start} to ${partial.shard.end} holding ${partial.rows.length}` }]);
     }
-    rows.push(...partial.rows);
+    for (const row of partial.rows) rows.push(row); // not push(...rows): a spread of 10⁵ rows overflows the stack
     at = partial.shard.end;
   }
   if (at !== first.shard.total) {

@@ -5,6 +5,7 @@ import * as L from '../../assembly/layout.js';
 import { loadEngine } from './engine.js';
 import { buildModel, startInput, STATUS_NAMES, STATUS_TEXT } from './model.js';
 import type { Scenario } from './scenario.js';
+import { accuracyReport, type AccuracyReport } from './accuracy.js';
 import { SAFETY_CAUTION } from './safety.js';
 
 export interface Apex {
@@ -71,6 +72,8 @@ export interface SimulationResult {
   energy_J: number;
   /** Present when SimulateOptions.traceInterval_s was given. */
   trajectory?: Trajectory;
+  /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
+  integrator?: AccuracyReport;
   caution: string;
 }
 
@@ -157,6 +160,7 @@ export async function simulate(scenario: Scenario, options: SimulateOptions = {}
     },
     energy_J: m * g * scenario.start.apex_height_m + 0.5 * m * scenario.start.forward_speed_m_per_s ** 2,
     ...(trajectory ? { trajectory } : {}),
+    ...accuracyReport(scenario.integrator),
     caution: SAFETY_CAUTION,
   };
 }

@@ -9,6 +9,7 @@ import * as L from '../../dist/assembly/layout.js';
 import { buildModel } from '../../dist/src/core/model.js';
 import { parseScenario } from '../../dist/src/core/scenario.js';
 import { closeWorkerPool } from '../../dist/src/worker/pool.js';
+import { goal } from './goals.mjs';
 
 // Human-like body of Seyfarth, Geyer, Herr 2003 (J. Exp. Biol. 206(15):2547–2555) with swing-leg
 // retraction at 50 deg/s from 62 deg at apex: a policy with a sizable basin at 5 m/s.
@@ -106,6 +107,12 @@ export async function benchBasin(log = console.log) {
   log(`  machine: ${os.availableParallelism()} cores available, load average ${load.toFixed(2)} after the runs (other processes compete if it is well above 2)`);
   const speedup = t1 / t2;
   log(`  speed-up 2 workers / 1: ${speedup.toFixed(2)}x (target >= ${TARGET_SPEEDUP}x on 2 cores: ${speedup >= TARGET_SPEEDUP ? 'met' : 'NOT met'})`);
+  goal(
+    '(e) basin 100x100x30, 2 workers vs 1',
+    `>= ${TARGET_SPEEDUP}x`,
+    `${speedup.toFixed(2)}x (wall ${t1.toFixed(2)} s vs ${t2.toFixed(2)} s, load average ${load.toFixed(1)})`,
+    speedup >= TARGET_SPEEDUP,
+  );
   log(`  basin bench time ${(now() - tStart).toFixed(1)} s`);
   return { seconds1: t1, seconds2: t2, speedup, cells: counts.cells, strides };
 }

@@ -16,6 +16,11 @@ import { benchBasin } from './basin.mjs';
 import { benchMonteCarlo } from './montecarlo.mjs';
 import { benchOptimize } from './optimize.mjs';
 import { benchLongTasks } from './ui-longtask.mjs';
+import { goal, printGoals } from './goals.mjs';
+import { buildNative, nativeRun, nativeStrides, processCpu, ROOT } from './native.mjs';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir, loadavg } from 'node:os';
+import { join } from 'node:path';
 
 const DEG = Math.PI / 180;
 // Human-like body of Seyfarth, Geyer, Günther, Blickhan 2002, J. Biomech. 35(5):649–655.
@@ -104,6 +109,185 @@ function timed(fn) {
   const t0 = now();
   const n = fn();
   return { seconds: now() - t0, strides: n };
+}
+
+/** CPU seconds (user + system, every thread of this process) spent in fn. */
+function cpuTimed(fn) {
+  const c0 = process.cpuUsage();
+  const n = fn();
+  const c = process.cpuUsage(c0);
+  return { seconds: (c.user + c.system) / 1e6, strides: n };
+}
+
+const ROBUSTNESS = { rollouts: 20_000, strides: 20, sigma: 0.002, seed: 1, runs: 3 };
+const NATIVE_TARGET = 1.5; // kernel / C strides per CPU-second (issue 14)
+const ROBUSTNESS_TARGET = 1.2; // C CPU / whole-process pronk CPU (issue 14)
+
+/**
+ * (a) The kernel in-process against the scalar native-C DP5(4) of the same model, each at the
+ * loosest tolerance that gives the target apex accuracy, in strides per CPU-second; (b) the whole
+ * `pronk robustness` process against the C program doing the same rollouts, in CPU seconds.
+ */
+async function benchNativeBaseline({ engine, out, start, refApex, refNext, kCal }) {
+  out('native C baseline: test/bench/c/slip_dp5.c, the same model with a plain adaptive DP5(4) (standard controller, libm pow)');
+  const built = buildNative();
+  if (built.skipped) {
+    out(`  skipped: ${built.skipped}`);
+    goal('(a) kernel vs native C, strides/CPU-s', `>= ${NATIVE_TARGET}x`, `skipped (${built.skipped})`, null);
+    goal('(b) pronk robustness process vs C, CPU', `>= ${ROBUSTNESS_TARGET}x`, `skipped (${built.skipped})`, null);
+    out();
+    return;
+  }
+  out(`  built with ${built.cc} -O3 (${built.version})`);
+  const attack = ATTACK_DEG * DEG;
+  const rows = (tol) => refApex.map(([height, speed]) => ({ rtol: tol, atol: tol, height, speed }));
+  const tight = nativeStrides(built.exe, BODY, attack, rows(REFERENCE_TOL.rtol).map((r) => ({ ...r, atol: REFERENCE_TOL.atol })));
+  const agreement = Math.max(...tight.map((r, s) => Math.abs(r.next - refNext[s])));
+  out(`  at the reference tolerance the C code agrees with the kernel's reference to ${exp(agreement, 1)} m in apex height`);
+  // Calibration as for the kernel: one process, every tolerance of the grid on the STRIDES strides.
+  const all = nativeStrides(built.exe, BODY, attack, TOL_GRID.flatMap(rows));
+  const cErrors = TOL_GRID.map((_, i) =>
+    Math.max(...refNext.map((next, s) => {
+      const got = all[i * STRIDES + s].next;
+      return Number.isFinite(got) ? Math.abs(got - next) : Infinity;
+    })),
+  );
+  let ci = TOL_GRID.length - 1;
+  for (let i = TOL_GRID.length - 1; i >= 0 && cErrors[i] <= TARGET_ERROR; i--) ci = i;
+  const cTol = TOL_GRID[ci];
+  const cSteps = all.slice(ci * STRIDES, (ci + 1) * STRIDES);
+  const perStride = (xs, f) => xs.reduce((a, r) => a + r[f], 0) / xs.length;
+  out(
+    `  apex accuracy: C rtol = atol = ${exp(cTol)} gives ${exp(cErrors[ci])} m; kernel rtol = atol = ${exp(kCal.tol)} gives ${exp(kCal.error)} m ` +
+      `(target ${exp(TARGET_ERROR, 0)} m, one stride, max over ${STRIDES} strides, vs the kernel at rtol ${exp(REFERENCE_TOL.rtol, 0)})`,
+  );
+
+  // Side by side: kernel blocks in this process (process.cpuUsage) and C passes (the C program's own
+  // CLOCK_PROCESS_CPUTIME_ID), alternating, medians. Both from the gait on flat ground.
+  const kModel = modelBlock({ rtol: kCal.tol, atol: kCal.tol });
+  for (let i = 0; i < 5; i++) kernelBlock(engine, kModel, start, 200);
+  const kProbe = cpuTimed(() => kernelBlock(engine, kModel, start, 500));
+  const kRollouts = Math.max(1, Math.round((BLOCK_SECONDS * kProbe.strides) / kProbe.seconds / STRIDES));
+  const cRunAt = (rollouts, reps) =>
+    nativeRun(built.exe, BODY, attack, { rtol: cTol, atol: cTol, height: start.apexHeight, speed: start.speed, rollouts, strides: STRIDES, reps });
+  const cProbe = cRunAt(2000, 1);
+  const cRollouts = Math.max(1, Math.round((BLOCK_SECONDS * 2000) / cProbe.cpu));
+  const kRates = [];
+  const cRates = [];
+  let cLast = cProbe;
+  for (let rep = 0; rep < REPS; rep++) {
+    const runK = () => {
+      const t = cpuTimed(() => kernelBlock(engine, kModel, start, kRollouts));
+      kRates.push(t.strides / t.seconds);
+    };
+    const runC = () => {
+      cLast = cRunAt(cRollouts, 1);
+      cRates.push(cLast.strides / cLast.cpu);
+    };
+    if (rep % 2 === 0) {
+      runK();
+      runC();
+    } else {
+      runC();
+      runK();
+    }
+  }
+  const kSteps = engine.runBatch({ model: kModel, inputs: inputs(1, start.apexHeight, start.speed), strides: STRIDES, records: true });
+  let kStepCount = 0;
+  let kRejected = 0;
+  for (let s = 0; s < STRIDES; s++) {
+    kStepCount += field(kSteps.records, s, L.R_STEPS);
+    kRejected += field(kSteps.records, s, L.R_REJECTED);
+  }
+  const kRate = median(kRates);
+  const cRate = median(cRates);
+  const ratio = kRate / cRate;
+  out(`  side by side, CPU time, median of ${REPS} alternating repetitions, ${STRIDES}-stride rollouts from the gait, flat ground:`);
+  out(`  ${padEnd('path', 20)}  ${pad('rtol=atol', 9)}  ${pad('apex err (m)', 12)}  ${pad('steps/stride', 12)}  ${pad('rej/stride', 10)}  ${pad('strides/CPU-s', 13)}  ${pad('min', 9)}  ${pad('max', 9)}`);
+  const line = (name, tol, err, steps, rej, rates) =>
+    out(
+      `  ${padEnd(name, 20)}  ${pad(exp(tol, 1), 9)}  ${pad(exp(err), 12)}  ${pad(steps.toFixed(1), 12)}  ${pad(rej.toFixed(2), 10)}  ` +
+        `${pad(median(rates).toFixed(0), 13)}  ${pad(Math.min(...rates).toFixed(0), 9)}  ${pad(Math.max(...rates).toFixed(0), 9)}`,
+    );
+  line('WASM kernel (in-proc)', kCal.tol, kCal.error, kStepCount / STRIDES, kRejected / STRIDES, kRates);
+  line(`C ${built.cc} -O3`, cTol, cErrors[ci], perStride(cSteps, 'steps'), cLast.rejected / Math.max(1, cLast.strides), cRates);
+  out(`  (C steps/stride: one stride from each reference apex; rej/stride over the last timed pass)`);
+  out(`  ratio kernel / C: ${ratio.toFixed(2)}x (target >= ${NATIVE_TARGET}x)`);
+  goal(
+    '(a) kernel vs native C, strides/CPU-s',
+    `>= ${NATIVE_TARGET}x`,
+    `${ratio.toFixed(2)}x (${kRate.toFixed(0)} vs ${cRate.toFixed(0)} strides/CPU-s; apex err ${exp(kCal.error, 1)} / ${exp(cErrors[ci], 1)} m at tol ${exp(kCal.tol, 1)} / ${exp(cTol, 1)})`,
+    ratio >= NATIVE_TARGET,
+  );
+
+  // (b) The whole `pronk robustness` process, one worker, against the C program on the same
+  // rollouts (random walk of the same seed and streams), both timed as whole processes.
+  const dir = mkdtempSync(join(tmpdir(), 'pronk-bench-'));
+  try {
+    const scenarioFile = join(dir, 'gait.json');
+    writeFileSync(
+      scenarioFile,
+      JSON.stringify({
+        name: 'bench: Seyfarth 2002 body at its fixed-angle gait',
+        body: { mass_kg: BODY.mass, leg_length_m: BODY.leg, leg_stiffness_N_per_m: BODY.k, gravity_m_per_s2: BODY.g },
+        start: { apex_height_m: start.apexHeight, forward_speed_m_per_s: start.speed },
+        policy: { angle: { kind: 'fixed', attack_deg: ATTACK_DEG } },
+        terrain: { kind: 'flat' },
+        strides: ROBUSTNESS.strides,
+        integrator: { relative_tolerance: kCal.tol, absolute_tolerance: kCal.tol },
+      }),
+    );
+    const pronkArgs = [join(ROOT, 'bin', 'pronk.js'), 'robustness', scenarioFile, '--sigma', String(ROBUSTNESS.sigma), '--rollouts', String(ROBUSTNESS.rollouts), '--seed', String(ROBUSTNESS.seed), '--workers', '1', '--json'];
+    const cArgs = ['run', BODY.mass, BODY.leg, BODY.k, BODY.g, attack, cTol, cTol, start.apexHeight, start.speed, ROBUSTNESS.rollouts, ROBUSTNESS.strides, ROBUSTNESS.sigma, ROBUSTNESS.seed, 1].map(String);
+    const pRuns = [];
+    const cRuns = [];
+    let pOut;
+    let cOut;
+    for (let rep = 0; rep < ROBUSTNESS.runs; rep++) {
+      const runP = () => {
+        const r = processCpu(process.execPath, pronkArgs);
+        pOut = JSON.parse(r.stdout);
+        pRuns.push(r);
+      };
+      const runC = () => {
+        const r = processCpu(built.exe, cArgs);
+        cOut = r.stdout.trim().split(' ').map(Number);
+        cRuns.push(r);
+      };
+      if (rep % 2 === 0) {
+        runP();
+        runC();
+      } else {
+        runC();
+        runP();
+      }
+    }
+    const pCpu = median(pRuns.map((r) => r.cpu));
+    const cCpu = median(cRuns.map((r) => r.cpu));
+    const bRatio = cCpu / pCpu;
+    out(
+      `  whole processes: ${ROBUSTNESS.rollouts} rollouts x ${ROBUSTNESS.strides} strides from the gait, random walk sigma ${ROBUSTNESS.sigma} m, ` +
+        `seed ${ROBUSTNESS.seed} (stream = rollout), each at its tolerance above; CPU of the whole process (bash times), median of ${ROBUSTNESS.runs}`,
+    );
+    out(
+      `    pronk robustness --workers 1: ${pCpu.toFixed(2)} s CPU (runs ${pRuns.map((r) => r.cpu.toFixed(2)).join(', ')}; wall ${median(pRuns.map((r) => r.wall)).toFixed(2)} s); ` +
+        `${pOut.survived} of ${pOut.rollouts} survived, ${pOut.strides_completed_total} strides`,
+    );
+    out(
+      `    C baseline:                 ${cCpu.toFixed(2)} s CPU (runs ${cRuns.map((r) => r.cpu.toFixed(2)).join(', ')}); ${cOut[2]} of ${ROBUSTNESS.rollouts} survived, ${cOut[1]} strides`,
+    );
+    out(`    ratio C CPU / pronk CPU: ${bRatio.toFixed(2)}x (target >= ${ROBUSTNESS_TARGET}x)`);
+    goal(
+      '(b) pronk robustness process vs C, CPU',
+      `>= ${ROBUSTNESS_TARGET}x`,
+      `${bRatio.toFixed(2)}x (whole process ${pCpu.toFixed(2)} s vs C ${cCpu.toFixed(2)} s CPU, ${ROBUSTNESS.rollouts}x${ROBUSTNESS.strides})`,
+      bRatio >= ROBUSTNESS_TARGET,
+    );
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+  out(`  (1-minute load average ${loadavg()[0].toFixed(2)} on a shared machine: compare the ratios, not the absolute rates)`);
+  out();
 }
 
 async function main() {
@@ -249,6 +433,9 @@ async function main() {
   out(`  ratio WASM / odex: ${ratio.toFixed(1)}x (target >= 20x)`);
   out();
 
+  // --- The native-C baseline: calibrated the same way, timed in CPU seconds. -----
+  await benchNativeBaseline({ engine, out, start, refApex, refNext, kCal });
+
   // --- Monte Carlo batch on random-walk terrain (kernel only). ---------------
   const tModel = modelBlock({ rtol: kCal.tol, atol: kCal.tol, terrain: TERRAIN });
   const tInputs = inputs(TERRAIN.rollouts, start.apexHeight, start.speed); // I_STREAM = rollout index
@@ -287,20 +474,40 @@ async function main() {
   );
 }
 
+// `node test/bench/run.mjs [kernel] [montecarlo] [optimize] [basin] [ui]` runs only the named
+// sections (all of them without arguments); the goals table covers what ran.
+const SECTIONS = ['kernel', 'montecarlo', 'optimize', 'basin', 'ui'];
+
 async function all() {
-  await main();
-  console.log();
-  console.log('== Monte Carlo evaluation (one core)');
-  await benchMonteCarlo(console.log);
-  console.log();
-  console.log('== basin of attraction on the worker pool');
-  await benchBasin(console.log);
-  console.log();
-  console.log('== policy search');
-  await benchOptimize(console.log);
-  console.log();
-  console.log('== workbench: longest main-thread task while an optimization runs (headless Chromium)');
-  await benchLongTasks(console.log);
+  const asked = process.argv.slice(2);
+  const unknown = asked.filter((a) => !SECTIONS.includes(a));
+  if (unknown.length) throw new Error(`unknown section ${unknown.join(', ')}: expected any of ${SECTIONS.join(', ')}`);
+  const run = (name) => asked.length === 0 || asked.includes(name);
+  const log = console.log;
+  if (run('kernel')) await main();
+  if (run('montecarlo')) {
+    log();
+    log('== Monte Carlo evaluation (one core)');
+    await benchMonteCarlo(log);
+  }
+  if (run('optimize')) {
+    log();
+    log('== policy search');
+    await benchOptimize(log);
+  }
+  if (run('basin')) {
+    log();
+    log('== basin of attraction on the worker pool');
+    await benchBasin(log);
+  }
+  if (run('ui')) {
+    log();
+    log('== workbench: main-thread long tasks (headless Chromium)');
+    await benchLongTasks(log);
+  }
+  log();
+  log(`== goals (issue 14), measured in this run (1-minute load average ${loadavg()[0].toFixed(2)}; the machine may be shared)`);
+  printGoals(log);
 }
 
 all().catch((err) => {

@@ -10,6 +10,7 @@
 import * as L from '../../../assembly/layout.js';
 import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
+import { accuracyReport, type AccuracyReport } from '../accuracy.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { MAX_STRIDES, type Scenario } from '../scenario.js';
@@ -91,6 +92,8 @@ export interface RobustnessResult {
   terrain: { kind: RandomTerrainKind; sigma_m: number; seed: number; streams: string };
   start: { apex_height_m: number; forward_speed_m_per_s: number };
   target: { apex_height_m: number; forward_speed_m_per_s: number };
+  /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
+  integrator?: AccuracyReport;
   /** Strides completed over all rollouts: the samples of the two RMS values. */
   strides_completed_total: number;
   /** sqrt(Σ (apex height − target)² / strides_completed_total) over all completed strides; null if none. */
@@ -229,7 +232,7 @@ export async function finishRobustness(
   checkRows(rows, o);
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
-  for (let code = 0; code < L.STATUS_COUNT; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  for (let code = 0; code < L.STATUS_COUNT_SLIP; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;
   let stridesTotal = 0;
@@ -261,6 +264,7 @@ export async function finishRobustness(
     },
     start: { apex_height_m: scenario.start.apex_height_m, forward_speed_m_per_s: scenario.start.forward_speed_m_per_s },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
+    ...accuracyReport(scenario.integrator),
     strides_completed_total: stridesTotal,
     apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
     forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,

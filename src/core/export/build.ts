@@ -2,9 +2,17 @@
 // the C runs, checked, measured and checksummed. The three writers (c99.ts, json.ts, csv.ts)
 // only format a PolicyExport.
 //
-// Refusals: a table point that is NaN or infinite (in float64, or once rounded to float32), or a
-// constraint of the result file with a negative margin. Without `force` these throw an
-// InputError naming each; with it the export goes ahead and every written file says so.
+// Refusals, of two kinds:
+// - a number firmware must not run, never written, not even with `force`: every exported number
+//   (each table entry, each grid time, t_max, each macro of the body, the start and an unscheduled
+//   stiffness) is checked once rounded to float32, as the C holds it: finite, within its physical
+//   range (angles in (0, 90] deg; times, stiffnesses, mass, leg length and gravity > 0; damping and
+//   speed >= 0) and, unless exactly 0 where 0 is allowed, at least the smallest normal float32
+//   (a subnormal is flushed to zero by many microcontrollers' FPUs, and a smaller value rounds to 0);
+// - a constraint of the result file with a negative margin: written with `force`, and every
+//   written file says so.
+// Each refusal is an InputError naming the number (table and index, or field and C macro), what was
+// expected and what was found.
 
 import { InputError, type InputIssue } from '../errors.js';
 import { SAFETY_CAUTION } from '../safety.js';
@@ -15,6 +23,7 @@ import {
   checkTimes,
   chooseGrid,
   defaultTimeRange,
+  leavesAttackRangeS,
   float32Error,
   float64Error,
   tableSpecs,
@@ -72,7 +81,7 @@ export interface PolicyExport {
   crc32: number;
   crc32_covers: string;
   tables: TableReport[];
-  /** Why the export would be refused (empty when it is clean). */
+  /** The negative constraint margins it was forced past (empty when it is clean). */
   problems: string[];
   forced: boolean;
   exported: { pronk_version: string; date: string };
@@ -87,19 +96,95 @@ function constraintProblems(source: ExportSource): string[] {
     .map((c) => `constraint ${JSON.stringify(c.name)} is violated: value ${show(c.value)}, limit ${show(c.limit)}, margin ${show(c.margin)} (a negative margin)`);
 }
 
-function tableProblems(specs: readonly TableSpec[], grid: ChosenGrid, float32: PolicyExport['float32']): string[] {
-  const problems: string[] = [];
+/** The smallest normal float32, 2^-126 (IEEE 754 binary32). */
+export const FLOAT32_MIN_NORMAL = 2 ** -126;
+/** 90 deg in radians, as float32 (it rounds up: 1.57079637 > pi/2). */
+const RIGHT_ANGLE_RAD_F32 = Math.fround(Math.PI / 2);
+
+type Sign = 'positive' | 'non-negative' | 'any';
+
+/**
+ * What is wrong with one exported number, or null: `value` is the float64 value (in `unit`),
+ * `f32` the float32 the C holds (for the attack angle: in radians).
+ */
+function numberProblem(value: number, f32: number, sign: Sign, unit: string): { expected: string; found: string } | null {
+  const u = unit === '' ? '' : ` ${unit}`;
+  const range = sign === 'positive' ? 'a number > 0' : sign === 'non-negative' ? 'a number >= 0' : 'a number';
+  const expected = `${range} that float32 holds (finite; ${sign === 'positive' ? '' : '0 or '}at least ${show(FLOAT32_MIN_NORMAL)} in magnitude)`;
+  if (!Number.isFinite(value)) return { expected, found: `${value}` };
+  if (sign === 'positive' && !(value > 0)) return { expected, found: `${show(value)}${u}` };
+  if (sign === 'non-negative' && value < 0) return { expected, found: `${show(value)}${u}` };
+  if (!Number.isFinite(f32)) return { expected, found: `${show(value)}${u}, which is ${f32} in float32 (beyond the float32 range, about 3.4e38)` };
+  if (value !== 0 && f32 === 0) return { expected, found: `${show(value)}${u}, which float32 flushes to 0` };
+  if (f32 !== 0 && Math.abs(f32) < FLOAT32_MIN_NORMAL) return { expected, found: `${show(value)}${u}, a subnormal float32 (many FPUs flush it to 0)` };
+  return null;
+}
+
+function attackProblem(deg: number, rad32: number): { expected: string; found: string } | null {
+  const expected = 'an angle in (0, 90] deg that float32 holds as a normal number';
+  if (!Number.isFinite(deg) || !(deg > 0 && deg <= 90)) return { expected, found: Number.isFinite(deg) ? `${show(deg)} deg` : `${deg}` };
+  if (rad32 === 0) return { expected, found: `${show(deg)} deg, which float32 flushes to 0 rad` };
+  if (rad32 < FLOAT32_MIN_NORMAL) return { expected, found: `${show(deg)} deg, a subnormal float32 in rad (many FPUs flush it to 0)` };
+  if (rad32 > RIGHT_ANGLE_RAD_F32) return { expected, found: `${show(deg)} deg (${rad32} rad in float32)` };
+  return null;
+}
+
+/** Every exported number that firmware must not run (see the file comment), as InputIssues. */
+export function unsafeNumbers(source: ExportSource, specs: readonly TableSpec[], grid: ChosenGrid, float32: PolicyExport['float32']): InputIssue[] {
+  const issues: InputIssue[] = [];
   const times = grid.axes[0].points;
+  const n = times.length;
+  times.forEach((t, j) => {
+    const where = j === n - 1 ? `grid time point ${j} (t_max, the C macro ..._T_MAX_S)` : `grid time point ${j}`;
+    const problem = j === 0 ? (t === 0 && float32.axis[0] === 0 ? null : { expected: '0 s (the apex)', found: `${show(t)} s` }) : numberProblem(t, float32.axis[j], 'positive', 's');
+    if (problem) issues.push({ path: where, ...problem });
+  });
   specs.forEach((spec, i) => {
     grid.values[i].forEach((v, j) => {
       const where = `${spec.name} table point ${j} (t = ${show(times[j])} s)`;
-      if (!Number.isFinite(v)) problems.push(`${where} is ${v}`);
-      else if (!Number.isFinite(float32.tables[i][j])) {
-        problems.push(`${where} is ${float32.tables[i][j]} in float32 (${show(v)} ${spec.unit} is beyond the float32 range)`);
-      }
+      const f32 = float32.tables[i][j];
+      const problem = spec.name === 'attack' ? attackProblem(v, f32) : numberProblem(v, f32, 'positive', spec.unit);
+      if (problem) issues.push({ path: where, ...problem });
     });
   });
-  return problems;
+  const { body, start } = source.scenario;
+  const macros: [string, string, number, Sign, string][] = [
+    ['body.mass_kg', 'BODY_MASS_KG', body.mass_kg, 'positive', 'kg'],
+    ['body.leg_length_m', 'BODY_LEG_LENGTH_M', body.leg_length_m, 'positive', 'm'],
+    ['body.leg_stiffness_N_per_m', 'BODY_LEG_STIFFNESS_N_PER_M', body.leg_stiffness_N_per_m, 'positive', 'N/m'],
+    ['body.gravity_m_per_s2', 'BODY_GRAVITY_M_PER_S2', body.gravity_m_per_s2, 'positive', 'm/s^2'],
+    ['body.leg_damping_N_s_per_m', 'BODY_LEG_DAMPING_N_S_PER_M', body.leg_damping_N_s_per_m, 'non-negative', 'N s/m'],
+    ['start.apex_height_m', 'START_APEX_HEIGHT_M', start.apex_height_m, 'any', 'm'],
+    ['start.forward_speed_m_per_s', 'START_FORWARD_SPEED_M_PER_S', start.forward_speed_m_per_s, 'non-negative', 'm/s'],
+  ];
+  const stiffness = source.policy.stiffness;
+  if (stiffness.kind === 'split') {
+    macros.push(['policy.stiffness.compression_N_per_m', 'COMPRESSION_N_PER_M', stiffness.compression_N_per_m, 'positive', 'N/m']);
+    macros.push(['policy.stiffness.extension_N_per_m', 'EXTENSION_N_PER_M', stiffness.extension_N_per_m, 'positive', 'N/m']);
+  }
+  for (const [field, macro, value, sign, unit] of macros) {
+    const problem = numberProblem(value, Math.fround(value), sign, unit);
+    if (problem) issues.push({ path: `${field} (the C macro ..._${macro})`, ...problem });
+  }
+  return issues;
+}
+
+// Why a retraction's table leaves (0, 90] deg, and what to do, when that is the cause.
+function retractionHint(source: ExportSource, range: TimeRange, names: { t_max: string }): InputIssue[] {
+  const angle = source.policy.angle;
+  const leaves = leavesAttackRangeS(angle);
+  if (angle.kind !== 'retraction' || !(leaves <= range.t_max_s)) return [];
+  const up = angle.rate_deg_per_s > 0;
+  return [
+    {
+      path: names.t_max,
+      expected: `${up ? 'at most' : 'below'} ${show(leaves)} s`,
+      found: `${show(range.t_max_s)} s`,
+      message:
+        `the retraction has no ${up ? 'max_deg' : 'min_deg'} and reaches ${up ? 90 : 0} deg at t = ${show(leaves)} s, past which it leaves ` +
+        `the attack range (0, 90] deg: set ${names.t_max} ${up ? 'to at most' : 'below'} that, or give the retraction a ${up ? 'max_deg' : 'min_deg'}`,
+    },
+  ];
 }
 
 const MAX_PROBLEMS_SHOWN = 20;
@@ -125,12 +210,18 @@ export function buildExport(source: ExportSource, options: ExportOptions = {}): 
     axis: Float32Array.from(axis.points),
     tables: specs.map((spec, i) => Float32Array.from(grid.values[i], (v) => spec.toFloat32(v))),
   };
-  const problems = [...constraintProblems(source), ...tableProblems(specs, grid, float32)];
+  const unsafe = unsafeNumbers(source, specs, grid, float32);
+  if (unsafe.length) {
+    const shown = unsafe.slice(0, MAX_PROBLEMS_SHOWN);
+    if (unsafe.length > shown.length) shown.push({ path: '', expected: '', found: '', message: `... and ${unsafe.length - shown.length} more numbers like these` });
+    if (unsafe.some((issue) => issue.path.startsWith('attack table'))) shown.push(...retractionHint(source, range, names));
+    shown.push({ path: '', expected: '', found: '', message: 'nothing written: firmware must not run these numbers (--force does not write them)' });
+    throw new InputError(shown, { source: source.file });
+  }
+  const problems = constraintProblems(source);
   const forced = problems.length > 0;
   if (forced && !options.force) {
-    const shown = problems.slice(0, MAX_PROBLEMS_SHOWN);
-    if (problems.length > shown.length) shown.push(`... and ${problems.length - shown.length} more`);
-    const issues: InputIssue[] = shown.map((message) => ({ path: '', expected: '', found: '', message }));
+    const issues: InputIssue[] = problems.map((message) => ({ path: '', expected: '', found: '', message }));
     issues.push({ path: '', expected: '', found: '', message: 'nothing written (--force writes anyway and marks every file as forced)' });
     throw new InputError(issues, { source: source.file });
   }

@@ -55,11 +55,12 @@ export function defaultPrefix(name: string | undefined): string {
   return C_KEYWORDS.has(p) ? `${p}_policy` : p;
 }
 
-/** A float32 value as a C float constant that reads back to the same bits (9 significant digits). */
+/**
+ * A float32 value as a C float constant that reads back to the same bits (9 significant digits).
+ * buildExport refuses every non-finite number before a writer runs, so one here is a bug.
+ */
 export function cFloat(value: number): string {
-  if (Number.isNaN(value)) return '(1e30f * 1e30f * 0.0f)'; // a quiet NaN (forced exports only)
-  if (value === Infinity) return '(1e30f * 1e30f)';
-  if (value === -Infinity) return '(-(1e30f * 1e30f))';
+  if (!Number.isFinite(value)) throw new Error(`cFloat: a non-finite number (${value}) reached the C writer`);
   if (Object.is(value, -0)) return '-0.0f';
   return `${Math.fround(value).toPrecision(9)}f`;
 }
@@ -82,6 +83,14 @@ export function baseName(path: string): string {
 
 function fmt(x: number): string {
   return Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x);
+}
+
+// The first lines of the source file writeC makes for header `headerName`.
+const sourceOpening = (headerName: string) => `/*\n * ${commentSafe(`${headerName.replace(/\.h$/, '.c')}: tables and lookups declared in ${headerName} `)}`;
+
+/** True when `text` is a C source file that writeC made for the header `headerName` (an earlier export of it). */
+export function isCSourceOf(text: string, headerName: string): boolean {
+  return text.startsWith(sourceOpening(headerName));
 }
 
 export interface CFiles {

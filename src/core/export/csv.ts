@@ -3,16 +3,17 @@
 // row naming each column with its unit. Lines starting with `#` before the header are comments:
 // what the file is, the caution, provenance, the body, the continuous policy, the grid and its
 // interpolation error (most CSV readers skip them with a comment option, e.g. pandas
-// `comment="#"`). Only a forced export can hold NaN or Infinity, written as those words.
+// `comment="#"`). buildExport refuses every non-finite number before this writer runs.
 
 import { InputError } from '../errors.js';
 import { describeGrid, describePolicy, wrapLines, type PolicyExport } from './build.js';
 import { baseName } from './c99.js';
 import { hex32 } from './lookup.js';
 
-/** 17 significant digits, or NaN / Infinity / -Infinity. */
+/** 17 significant digits (a non-finite number here is a bug: buildExport refuses them). */
 export function csvNumber(x: number): string {
-  return Number.isFinite(x) ? x.toPrecision(17) : String(x);
+  if (!Number.isFinite(x)) throw new Error(`csvNumber: a non-finite number (${x}) reached the CSV writer`);
+  return x.toPrecision(17);
 }
 
 const fmt = (x: number) => (Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x));

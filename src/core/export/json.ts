@@ -3,8 +3,9 @@
 // as the C holds them, units, grid, interpolation error, body, provenance, constraints and the
 // caution. Numbers are JSON numbers; JavaScript writes the shortest text that reads back to the
 // same double, so every value round-trips (a float32 value is written as the double it equals).
-// Only a forced export can hold a non-finite table value; it is written as the string "NaN",
-// "Infinity" or "-Infinity" (JSON has no such numbers).
+// buildExport refuses every non-finite number, so none reaches this writer (one would be a bug);
+// the reader still takes the strings "NaN", "Infinity" and "-Infinity" that forced exports of
+// earlier versions wrote.
 
 import { InputError, describeFound } from '../errors.js';
 import { describeGrid, type PolicyExport } from './build.js';
@@ -14,12 +15,10 @@ import { hex32 } from './lookup.js';
 export const POLICY_FORMAT = 'pronk-policy';
 export const POLICY_FORMAT_VERSION = 1;
 
-type JsonNumber = number | 'NaN' | 'Infinity' | '-Infinity';
+type JsonNumber = number;
 
 function num(x: number): JsonNumber {
-  if (Number.isNaN(x)) return 'NaN';
-  if (x === Infinity) return 'Infinity';
-  if (x === -Infinity) return '-Infinity';
+  if (!Number.isFinite(x)) throw new Error(`policyDocument: a non-finite number (${x}) reached the JSON writer`);
   return x;
 }
 

@@ -202,6 +202,14 @@ export function leavesAttackRangeS(angle: AnglePolicy): number {
   return Number.isFinite(t) && t > 0 ? t : Infinity;
 }
 
+/** The largest double below x > 0. */
+function previousDouble(x: number): number {
+  const view = new DataView(new ArrayBuffer(8));
+  view.setFloat64(0, x);
+  view.setBigUint64(0, view.getBigUint64(0) - 1n);
+  return view.getFloat64(0);
+}
+
 /**
  * t_max: for an angle time table, its last knot (past it the policy holds flat, as the lookup
  * clamps); for a fixed or retraction angle, the latest touchdown from the start apex onto ground
@@ -217,9 +225,12 @@ export function defaultTimeRange(scenario: Scenario, policy: Policy): TimeRange 
   } else {
     const touchdown = latestTouchdownS(scenario, angle);
     const leaves = leavesAttackRangeS(angle);
+    // at the cut a rising retraction is at 90 deg: step back past any rounding that puts it above
+    let cut = leaves;
+    while (cut > 0 && attackDegAt(angle, cut) > 90) cut = previousDouble(cut);
     parts.push(
       leaves < touchdown
-        ? { t_max_s: leaves, source: 'where the retraction leaves the attack range (0, 90] deg' }
+        ? { t_max_s: cut, source: 'where the retraction leaves the attack range (0, 90] deg' }
         : {
             t_max_s: touchdown,
             source: 'the latest touchdown from the start apex onto ground one leg length below the first ground height',

@@ -1,6 +1,6 @@
-// The CLI's `--plot FILE.svg`: checked before any work is done, written once the result exists.
-// Node only (file system); Node modules are loaded on call, so importing this file anywhere is
-// harmless.
+// The CLI's `--plot FILE.svg`: the option, its name checked before any work is done, and the
+// figure's SVG text once the result exists. The file itself is checked and written by the CLI
+// (src/cli/output-files.ts), with every other output of the command.
 
 import { InputError, describeFound } from '../errors.js';
 
@@ -11,18 +11,13 @@ export const PLOT_OPTION = {
   description: 'also draw the result as a figure: an SVG file of 1280 x 800 px',
 };
 
-const issue = (expected: string, found: string, message?: string) =>
-  new InputError([{ path: '--plot', expected, found, ...(message ? { message } : {}) }]);
+const issue = (expected: string, found: string) => new InputError([{ path: '--plot', expected, found }]);
 
 /**
- * The `--plot` value checked: a file name ending in .svg whose directory exists, not a directory
- * itself, not the --out file, and no --shard (a shard holds part of a result; plot the merge).
- * Undefined when the option is absent.
+ * The `--plot` value checked: a file name ending in .svg, and no --shard (a shard holds part of a
+ * result; plot the merge). Undefined when the option is absent.
  */
-export async function plotOption(
-  value: string | boolean | undefined,
-  context: { shard?: boolean; out?: string } = {},
-): Promise<string | undefined> {
+export async function plotOption(value: string | boolean | undefined, context: { shard?: boolean } = {}): Promise<string | undefined> {
   if (value === undefined) return undefined;
   if (typeof value !== 'string' || value.trim() === '') throw issue('a file name ending in .svg', describeFound(value));
   if (context.shard) {
@@ -32,51 +27,12 @@ export async function plotOption(
     );
   }
   if (!/\.svg$/i.test(value)) throw issue('a file name ending in .svg', describeFound(value));
-  const { resolve, dirname } = await import('node:path');
-  if (context.out !== undefined && resolve(context.out) === resolve(value)) {
-    throw issue('a file other than the --out file', describeFound(value));
-  }
-  const { stat } = await import('node:fs/promises');
-  const kind = async (path: string) => {
-    try {
-      return (await stat(path)).isDirectory() ? 'directory' : 'file';
-    } catch {
-      return 'missing';
-    }
-  };
-  if ((await kind(resolve(value))) === 'directory') {
-    throw issue('a file name ending in .svg', describeFound(value), `cannot write ${JSON.stringify(value)} (it is a directory)`);
-  }
-  const directory = dirname(resolve(value));
-  if ((await kind(directory)) !== 'directory') {
-    throw issue('a file in an existing directory', describeFound(value), `cannot write ${JSON.stringify(value)} (no such directory: ${directory})`);
-  }
   return value;
 }
 
-/**
- * Draws the figure of `command`'s result into `file` (SVG, 1280 × 800) and says where on stderr
- * (as `source`, default `pronk COMMAND`).
- * An unwritable file is an InputError naming --plot.
- */
-export async function writePlot(
-  stderr: { write(chunk: string): unknown },
-  command: string,
-  file: string,
-  result: unknown,
-  source = `pronk ${command}`,
-): Promise<void> {
+/** The figure of `command`'s result as SVG text (1280 x 800). */
+export async function renderPlot(command: string, result: unknown): Promise<string> {
   const { figureForCommand } = await import('./index.js');
   const { renderSvg } = await import('./svg.js');
-  const svg = renderSvg(figureForCommand(command, result));
-  const { writeFile } = await import('node:fs/promises');
-  try {
-    await writeFile(file, svg, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const why =
-      code === 'ENOENT' ? 'no such directory' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : error instanceof Error ? error.message : String(error);
-    throw issue('a writable file', describeFound(file), `cannot write ${JSON.stringify(file)} (${why})`);
-  }
-  stderr.write(`${source}: figure written to ${file}\n`);
+  return renderSvg(figureForCommand(command, result));
 }

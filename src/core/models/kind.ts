@@ -1,26 +1,34 @@
-// The scenario's model kind: the top-level "model" field. Absent or "slip" is the single-leg
-// spring-loaded inverted pendulum (every earlier file, read and run exactly as before); each other
-// kind has its own module beside this one with its schema, defaults and model block.
+// Model kinds: which equations, events and section a scenario runs on. A scenario file's optional
+// top-level "model" selects one: absent or "slip" is the single-leg model (the file and every
+// output exactly as before "model" existed), "biped" the two-leg model (models/biped.ts), "lateral"
+// the lateral leg-spring model (models/lateral.ts, its own scenario type and kernel). Each kind
+// keeps its schema, defaults, messages and model-block builder in its own module; this file only
+// dispatches. A command that does not (yet) run a kind refuses it here, by name.
 
 import { InputError, closestName, describeFound } from '../errors.js';
 
-export const MODEL_KINDS = [
-  'slip',
-  'lateral', // the lateral leg-spring model (models/lateral.ts)
-] as const;
+export type ModelKind = 'slip' | 'biped' | 'lateral';
+/** Every kind this build accepts, in the order messages list them. */
+export const MODEL_KINDS: readonly ModelKind[] = ['slip', 'biped', 'lateral'];
 
-export type ModelKind = (typeof MODEL_KINDS)[number];
-
-/** The commands that run each kind other than "slip" (which runs in all), for refusals. */
+/** The commands that run a kind, where that is not every command (for refusals). */
 export const KIND_COMMANDS: Partial<Record<ModelKind, readonly string[]>> = {
   lateral: ['simulate', 'map', 'recover'],
 };
 
-/** The kind a raw scenario value names; an InputError on "model" for anything else. */
-export function modelKindOf(raw: unknown, options: { source?: string } = {}): ModelKind {
+/** The Poincaré section a kind's strides run between (the `--json` header's "section"). */
+export type SectionName = 'flight_apex' | 'single_support_apex' | 'left_touchdown';
+
+function listKinds(kinds: readonly string[]): string {
+  const quoted = kinds.map((k) => `"${k}"`);
+  return quoted.length <= 1 ? quoted.join('') : `${quoted.slice(0, -1).join(', ')} or ${quoted[quoted.length - 1]}`;
+}
+
+/** The kind a raw (not yet validated) scenario value asks for; a bad "model" is an InputError. */
+export function modelKindOf(raw: unknown, source?: string): ModelKind {
   if (typeof raw !== 'object' || raw === null || Array.isArray(raw)) return 'slip';
-  if (!Object.prototype.hasOwnProperty.call(raw, 'model')) return 'slip';
   const model = (raw as Record<string, unknown>).model;
+  if (model === undefined) return 'slip';
   if (typeof model === 'string' && (MODEL_KINDS as readonly string[]).includes(model)) return model as ModelKind;
   const suggestion = typeof model === 'string' ? closestName(model, MODEL_KINDS) : undefined;
   const found = describeFound(model);
@@ -28,29 +36,57 @@ export function modelKindOf(raw: unknown, options: { source?: string } = {}): Mo
     [
       {
         path: 'model',
-        expected: `one of ${MODEL_KINDS.map((k) => JSON.stringify(k)).join(', ')} (absent means "slip")`,
+        expected: `one of the model kinds ${listKinds(MODEL_KINDS)} (absent: "slip")`,
         found: suggestion ? `${found} (did you mean ${suggestion}?)` : found,
       },
     ],
-    options,
+    { source },
+  );
+}
+
+/** The kind of a validated scenario. */
+export function kindOf(scenario: { model?: string }): ModelKind {
+  return scenario.model === 'biped' ? 'biped' : 'slip';
+}
+
+/**
+ * Refuse a scenario whose kind `command` does not run: exit 2 with e.g.
+ * `scenario model "biped": stepdown supports "slip", found "biped"`.
+ */
+export function requireKind(scenario: { model?: string }, command: string, supported: readonly ModelKind[], source?: string): void {
+  const kind = kindOf(scenario);
+  if (supported.includes(kind)) return;
+  const list = supported.map((k) => `"${k}"`).join(' and ');
+  throw new InputError(
+    [
+      {
+        path: 'model',
+        expected: `a model kind ${command} supports (${list})`,
+        found: `"${kind}"`,
+        message: `scenario model "${kind}": ${command} supports ${list}, found "${kind}"`,
+      },
+    ],
+    { source },
   );
 }
 
 /**
- * The refusal of a command that does not run a kind: exit 2 with
- * `scenario model "lateral": stepdown supports "slip", found "lateral"`.
+ * Refuse a raw scenario of a kind `command` does not run, before validating it: exit 2 with e.g.
+ * `scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral"
+ * scenario runs in pronk simulate, map, recover)`.
  */
 export function refuseModelKind(command: string, supported: readonly ModelKind[], found: ModelKind, source?: string): never {
-  const list = supported.map((k) => JSON.stringify(k)).join(' and ');
+  const list = supported.map((k) => `"${k}"`).join(' and ');
+  const runs = KIND_COMMANDS[found];
   throw new InputError(
     [
       {
-        path: '',
-        expected: `a scenario of model ${list}`,
-        found: JSON.stringify(found),
+        path: 'model',
+        expected: `a model kind ${command} supports (${list})`,
+        found: `"${found}"`,
         message:
-          `scenario model ${JSON.stringify(found)}: ${command} supports ${list}, found ${JSON.stringify(found)}` +
-          (KIND_COMMANDS[found] ? ` (a ${JSON.stringify(found)} scenario runs in pronk ${KIND_COMMANDS[found]?.join(', ')})` : ''),
+          `scenario model "${found}": ${command} supports ${list}, found "${found}"` +
+          (runs ? ` (a "${found}" scenario runs in pronk ${runs.join(', ')})` : ''),
       },
     ],
     { source },

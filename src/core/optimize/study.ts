@@ -493,6 +493,12 @@ export function numberAtPath(root: unknown, segments: readonly PathSegment[]): {
 /** A deep copy of the scenario (a plain object) with the free parameters set to x. */
 export function scenarioValueAt(base: Scenario, parameters: readonly FreeParameter[], x: readonly number[]): Record<string, unknown> {
   const copy = structuredClone(base) as unknown as Record<string, unknown>;
+  // With an apex accuracy the tolerances follow from the body and start: re-derived when re-parsed.
+  const integrator = copy.integrator as Record<string, unknown> | undefined;
+  if (integrator?.apex_accuracy_m !== undefined) {
+    delete integrator.relative_tolerance;
+    delete integrator.absolute_tolerance;
+  }
   parameters.forEach((parameter, i) => {
     const segments = parseParameterPath(parameter.path)!;
     let parent: Record<PathSegment, unknown> = copy;
