@@ -282,6 +282,14 @@ describe('periodic gaits and their stability', () => {
     }
   });
 
+  it('map and recover refuse a moving attachment point by name (its energy is not conserved)', () => {
+    const s = insect({ d: -0.002, d1: 0.01 });
+    expect(() => lateralFixedPoints(engine, s)).toThrow(/body.attachment_rate_m_per_s: expected 0 for map/);
+    expect(() =>
+      recoverOnce(engine, s, { stride: 1, fraction: 0.2, forward_m_per_s: 0, left_m_per_s: 0.01, angle_deg: 0, rate_deg_per_s: 0 }),
+    ).toThrow(/body.attachment_rate_m_per_s: expected 0 for recover/);
+  });
+
   it('no periodic gait below the minimum speed, two just above it (law: a saddle-node pair is born there)', () => {
     const s = insect({ d: -0.002 });
     const vmin = minimumGaitSpeed(engine, s, 0.3, 1e-3) as number;

@@ -15,6 +15,7 @@
 import * as L from '../../../assembly/layout.js';
 import { type Complex, eigenvalues, modulus } from '../eigen.js';
 import type { Engine } from '../engine.js';
+import { InputError } from '../errors.js';
 import {
   buildLateralModel,
   type Kick,
@@ -150,8 +151,25 @@ function mirrorResidual(s: LateralScenario, energy: number, mid: SectionState | 
   return [wrapAngle(mid.delta + st.delta), (mid.omega + st.omega) / omegaScale];
 }
 
+/**
+ * The map's analyses assume a conserved energy (the gaits form one family per energy); a moving
+ * attachment point does work on the body and breaks that, so they refuse it by name.
+ */
+export function requireFixedAttachment(s: LateralScenario, command: string): void {
+  if (s.body.attachment_rate_m_per_s === 0) return;
+  throw new InputError([
+    {
+      path: 'body.attachment_rate_m_per_s',
+      expected: '0',
+      found: String(s.body.attachment_rate_m_per_s),
+      message: `expected 0 for ${command} (its gait search holds the energy fixed, and a moving attachment point changes the energy every stride; simulate runs it), found ${s.body.attachment_rate_m_per_s}`,
+    },
+  ]);
+}
+
 /** Every symmetric periodic gait at the energy, with eigenvalues. */
 export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: LateralMapOptions = {}): LateralMapResult {
+  requireFixedAttachment(s, 'map');
   const start = lateralStart(s);
   const energy = options.energy_J ?? sectionEnergy(s, start);
   const v0 = speedAtEnergy(s, energy, 0);

@@ -20,7 +20,7 @@ import { InputError } from '../errors.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../model.js';
 import { buildLateralModel, type Kick, type LateralScenario, lateralInput, type SectionState, sectionOf, wrapAngle } from '../models/lateral.js';
 import { wilsonInterval } from '../stats.js';
-import { gaitNear, type LateralFixedPoint, lateralFixedPoints, strides as runStrides } from './lateral.js';
+import { gaitNear, type LateralFixedPoint, lateralFixedPoints, requireFixedAttachment, strides as runStrides } from './lateral.js';
 
 const DEG = Math.PI / 180;
 
@@ -105,16 +105,7 @@ export function defaultTolerances(gait: GaitSummary): RecoverTolerances {
 
 /** The scenario's gait: the periodic gait at its energy nearest its start, stable ones first. */
 export function scenarioGait(engine: Engine, s: LateralScenario): { gait: LateralFixedPoint; all: LateralFixedPoint[] } {
-  if (s.body.attachment_rate_m_per_s !== 0) {
-    throw new InputError([
-      {
-        path: 'body.attachment_rate_m_per_s',
-        expected: '0 (a fixed attachment point)',
-        found: String(s.body.attachment_rate_m_per_s),
-        message: `expected 0 for recover (the gait search assumes the energy is conserved, which a moving attachment point breaks), found ${s.body.attachment_rate_m_per_s}`,
-      },
-    ]);
-  }
+  requireFixedAttachment(s, 'recover');
   const map = lateralFixedPoints(engine, s);
   if (map.fixed_points.length === 0) {
     throw new InputError([
