@@ -8,6 +8,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import * as L from '../assembly/layout.js';
 import { lateralFixedPoints, minimumGaitSpeed, simulateLateral, strides } from '../src/core/analysis/lateral.js';
+import { lateralBasin } from '../src/core/analysis/lateral-basin.js';
 import { recoverOnce, recoverRows, finishRecover } from '../src/core/analysis/recover.js';
 import { characteristicPolynomial, eigenvalues, polynomialRoots } from '../src/core/eigen.js';
 import { type Engine, loadEngine } from '../src/core/engine.js';
@@ -345,6 +346,23 @@ describe('impulse recovery', () => {
 });
 
 // ---------------------------------------------------------------------------------------------
+describe('basin over heading and angular-velocity errors', () => {
+  it('behind the centre of mass every small error returns to the gait; ahead of it only the gait itself stays (the linearization: eigenvalue moduli below and above 1)', () => {
+    const grid = { headings: { low: -2, high: 2, count: 5 }, rates: { low: -20, high: 20, count: 5 }, strides: 40 };
+    const behind = lateralBasin(engine, insect({ d: -0.002 }), grid);
+    expect(behind.gait.stability).toBe('stable');
+    expect(behind.counts.converged).toBe(25);
+    const ahead = lateralBasin(engine, insect({ d: 0.002 }), grid);
+    expect(ahead.gait.stability).toBe('unstable');
+    // the centre cell starts on the gait (law: a fixed point maps to itself); no other cell returns
+    const centre = ahead.cells[12];
+    expect([centre.heading_error_deg, centre.rate_error_deg_per_s]).toEqual([0, 0]);
+    expect(centre.outcome).toBe('converged');
+    expect(ahead.counts.converged).toBe(1);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
 describe('lateral scenario validation', () => {
   const good = () => ({
     model: 'lateral',
@@ -394,7 +412,7 @@ describe('lateral scenario validation', () => {
   });
   it('a single-leg reader refuses a lateral scenario, naming the model and the commands that run it', () => {
     expect(() => parseScenario(good(), { command: 'stepdown' })).toThrow(
-      'scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)',
+      'scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, basin, recover)',
     );
     expect(() => parseScenario({ ...good(), model: 'laterl' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral".*did you mean lateral\?/);
   });
@@ -426,12 +444,22 @@ describe('every command on the lateral demo', () => {
     expect(mc.code).toBe(0);
     expect(mc.out).toMatch(/survived +8 of 8/);
   });
+  it('basin: over heading and angular-velocity errors at the gait\'s energy', async () => {
+    const r = await run(['basin', demo, '--headings=-10:10:5', '--rates=-100:100:5', '--json']);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect([j.format, j.model, j.section]).toEqual(['pronk-basin', 'lateral', 'left_touchdown']);
+    expect(j.cells).toHaveLength(25);
+    const bad = await run(['basin', demo, '--heights', '0.9:1.1:3']);
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--heights: expected none with a "lateral" scenario/);
+  });
   it('recover refuses a single-leg scenario', async () => {
     const r = await run(['recover', 'scenarios/demo.json', '--kick-left', '0.1']);
     expect(r.code).toBe(2);
     expect(r.err).toMatch(/scenario model "slip": recover supports "lateral", found "slip"/);
   });
-  for (const cmd of ['scan', 'basin', 'stepdown', 'robustness', 'deadbeat']) {
+  for (const cmd of ['scan', 'stepdown', 'robustness', 'deadbeat']) {
     it(`${cmd} refuses it (exit 2, the model and the commands that run it)`, async () => {
       const extra =
         cmd === 'robustness'
@@ -443,7 +471,7 @@ describe('every command on the lateral demo', () => {
               : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, recover)`);
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, basin, recover)`);
     });
   }
 });

@@ -5,6 +5,8 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
+import type { LateralBasinOptions, LateralBasinResult } from '../core/analysis/lateral-basin.js';
+import { InputError } from '../core/errors.js';
 import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
 import { type LateralScenario, sectionEnergy, lateralStart } from '../core/models/lateral.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
@@ -220,5 +222,65 @@ export async function runLateralMap(s: LateralScenario, io: CliIO, options: { js
   const out: LateralMapOutput = { ...r, minimum_speed_m_per_s: minimum ?? null, notes: LATERAL_MAP_NOTES };
   if (options.json) io.stdout.write(jsonText('map', lateralMapJson(s, out), 'lateral'));
   else io.stdout.write(renderLateralMap(s, out));
+  return 0;
+}
+
+// ---------------------------------------------------------------------------------------------
+// basin
+
+const BASIN_SYMBOL: Record<string, string> = { converged: '#', wandering: '~', fell: '.', no_speed: ' ' };
+
+export function renderLateralBasin(s: LateralScenario, r: LateralBasinResult): string {
+  const h = r.headings_deg;
+  const w = r.rates_deg_per_s;
+  const rows: string[] = [];
+  if (w.length <= 120 && h.length <= 200) {
+    rows.push(`  heading to body error (deg) down, angular velocity error ${plain(w[0])} to ${plain(w[w.length - 1])} deg/s across`);
+    for (let i = h.length - 1; i >= 0; i--) {
+      const line = r.cells.slice(i * w.length, (i + 1) * w.length).map((c) => BASIN_SYMBOL[c.outcome]).join('');
+      rows.push(`  ${fixed(h[i], 2).padStart(8)}  ${line}`);
+    }
+    rows.push("  # converged (back on the gait)  ~ wandering  . fell  (blank: the rotation alone exceeds the gait's energy)");
+  } else rows.push('  (the grid is too large to draw; --json lists every cell)');
+  const turns = r.cells.filter((c) => c.outcome === 'converged' && c.turn_deg !== null).map((c) => Math.abs(c.turn_deg as number));
+  return [
+    header(s, [
+      [
+        'gait',
+        `${plain(r.gait.speed_m_per_s)} m/s, ${plain(r.gait.heading_to_body_deg)} deg to the body axis, ${plain(r.gait.angular_velocity_deg_per_s)} deg/s (${r.gait.stability}); energy ${plain(r.gait.energy_J)} J`,
+      ],
+      [
+        'grid',
+        `heading errors ${plain(h[0])} to ${plain(h[h.length - 1])} deg (${h.length}) x angular velocity errors ${plain(w[0])} to ${plain(w[w.length - 1])} deg/s (${w.length}), at the gait's energy`,
+      ],
+      ['criterion', `${count(r.strides, 'stride')} per cell; converged within ${plain(r.tolerance)} deg and deg/s of the gait`],
+    ]),
+    '',
+    ...rows,
+    '',
+    wrap(
+      `Attracted: ${r.counts.converged} of ${r.cells.length} cells (${fixed(100 * r.attracted_fraction, 1)} %); wandering ${r.counts.wandering}, fell ${r.counts.fell}` +
+        (r.counts.no_speed ? `, no speed at this energy ${r.counts.no_speed}` : '') +
+        '.' +
+        (turns.length ? ` The converged cells keep a permanent turn (the heading is neutral): up to ${fixed(Math.max(...turns), 2)} deg.` : ''),
+      TEXT_WIDTH,
+    ),
+    '',
+  ].join('\n');
+}
+
+export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { json: boolean } & LateralBasinOptions): Promise<number> {
+  const { loadEngine } = await import('../core/engine.js');
+  const { lateralBasin } = await import('../core/analysis/lateral-basin.js');
+  const engine = await loadEngine();
+  const { json, ...rest } = options;
+  let r: LateralBasinResult;
+  try {
+    r = lateralBasin(engine, s, rest);
+  } catch (error) {
+    throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
+  }
+  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, 'lateral'));
+  else io.stdout.write(renderLateralBasin(s, r));
   return 0;
 }
