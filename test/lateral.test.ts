@@ -412,7 +412,7 @@ describe('lateral scenario validation', () => {
   });
   it('a single-leg reader refuses a lateral scenario, naming the model and the commands that run it', () => {
     expect(() => parseScenario(good(), { command: 'stepdown' })).toThrow(
-      'scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, basin, recover)',
+      'scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)',
     );
     expect(() => parseScenario({ ...good(), model: 'laterl' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral".*did you mean lateral\?/);
   });
@@ -454,24 +454,25 @@ describe('every command on the lateral demo', () => {
     expect(bad.code).toBe(2);
     expect(bad.err).toMatch(/--heights: expected none with a "lateral" scenario/);
   });
+  it('scan: the sign of the attachment offset decides stability (Schmitt & Holmes 2000, as verified above)', async () => {
+    const r = await run(['scan', demo, '--x', 'body.attachment_offset_m:-0.01:0.01:3', '--y', 'policy.angle.angle_to_body_deg:57:57:1', '--json']);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect([j.format, j.model, j.section]).toEqual(['pronk-scan', 'lateral', 'left_touchdown']);
+    expect(j.cells.map((c: { class: string }) => c.class)).toEqual(['stable', 'neutral', 'unstable']);
+  });
   it('recover refuses a single-leg scenario', async () => {
     const r = await run(['recover', 'scenarios/demo.json', '--kick-left', '0.1']);
     expect(r.code).toBe(2);
     expect(r.err).toMatch(/scenario model "slip": recover supports "lateral", found "slip"/);
   });
-  for (const cmd of ['scan', 'stepdown', 'robustness', 'deadbeat']) {
+  for (const cmd of ['stepdown', 'robustness', 'deadbeat']) {
     it(`${cmd} refuses it (exit 2, the model and the commands that run it)`, async () => {
       const extra =
-        cmd === 'robustness'
-          ? ['--sigma', '0.01']
-          : cmd === 'scan'
-            ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'start.forward_speed_m_per_s:3:5:3']
-            : cmd === 'deadbeat'
-              ? ['--ground=-0.03:0.01']
-              : [];
+        cmd === 'robustness' ? ['--sigma', '0.01'] : cmd === 'deadbeat' ? ['--ground=-0.03:0.01'] : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, basin, recover)`);
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip" and "biped", found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)`);
     });
   }
 });

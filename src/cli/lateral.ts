@@ -5,6 +5,8 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
+import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
+import type { ScanAxis } from '../core/analysis/scan.js';
 import type { LateralBasinOptions, LateralBasinResult } from '../core/analysis/lateral-basin.js';
 import { InputError } from '../core/errors.js';
 import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
@@ -282,5 +284,50 @@ export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { 
   }
   if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, 'lateral'));
   else io.stdout.write(renderLateralBasin(s, r));
+  return 0;
+}
+
+// ---------------------------------------------------------------------------------------------
+// scan
+
+const SCAN_SYMBOL: Record<string, string> = { stable: '#', neutral: '=', unstable: 'o', none: '.' };
+
+export function renderLateralScan(s: LateralScenario, r: LateralScanResult): string {
+  const nx = r.x.values.length;
+  const ny = r.y.values.length;
+  const rows: string[] = [];
+  if (nx <= 120 && ny <= 200) {
+    rows.push(`  ${r.y.path} down, ${r.x.path} across (${plain(r.x.values[0])} to ${plain(r.x.values[nx - 1])})`);
+    for (let iy = ny - 1; iy >= 0; iy--) {
+      rows.push(`  ${plain(r.y.values[iy]).padStart(10)}  ${r.cells.slice(iy * nx, (iy + 1) * nx).map((c) => SCAN_SYMBOL[c.class]).join('')}`);
+    }
+    rows.push('  # a stable gait  = neutral  o only unstable gaits  . no periodic gait');
+  } else rows.push('  (the grid is too large to draw; --json lists every cell)');
+  return [
+    header(s, [
+      ['x', `${r.x.path}: ${nx} values from ${plain(r.x.values[0])} to ${plain(r.x.values[nx - 1])}`],
+      ['y', `${r.y.path}: ${ny} values from ${plain(r.y.values[0])} to ${plain(r.y.values[ny - 1])}`],
+      ['cells', `each at its own start energy: stable ${r.counts.stable}, neutral ${r.counts.neutral}, unstable ${r.counts.unstable}, none ${r.counts.none}`],
+    ]),
+    '',
+    ...rows,
+    '',
+  ].join('\n');
+}
+
+export async function runLateralScan(s: LateralScenario, io: CliIO, options: { json: boolean; x: ScanAxis; y: ScanAxis }): Promise<number> {
+  const { loadEngine } = await import('../core/engine.js');
+  const { lateralScan } = await import('../core/analysis/lateral-scan.js');
+  const { startProgress } = await import('./progress.js');
+  const engine = await loadEngine();
+  const progress = startProgress(io, 'scan', { unit: 'cells' });
+  let r: LateralScanResult;
+  try {
+    r = lateralScan(engine, s, options.x, options.y, (d, t) => progress.update(d, t));
+  } finally {
+    progress.done();
+  }
+  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, 'lateral'));
+  else io.stdout.write(renderLateralScan(s, r));
   return 0;
 }

@@ -33,6 +33,9 @@ const DEG = Math.PI / 180;
 /** Tolerances for the map's integrations: the Jacobians come from differences of runs. */
 const MAP_RTOL = 1e-13;
 const MAP_ATOL = 1e-16;
+/** Tolerances of the gait search before the polish. */
+const SEARCH_RTOL = 1e-9;
+const SEARCH_ATOL = 1e-13;
 
 export function mapModel(s: LateralScenario): Float64Array {
   const m = buildLateralModel(s);
@@ -189,56 +192,77 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
     for (const omega of rates.slice(0, nw)) cands.push({ delta, omega, done: false, failed: false, residual: Infinity, iterations: 0 });
   }
   const state = (delta: number, omega: number): SectionState => ({ speed: speedAtEnergy(s, energy, omega), delta, omega, heading: 0 });
-  const hd = 1e-7;
-  const hw = 1e-7 * omegaScale;
-  for (let iteration = 0; iteration < 40; iteration++) {
-    const active = cands.filter((c) => !c.done && !c.failed);
-    if (active.length === 0) break;
-    const states: SectionState[] = [];
-    for (const c of active) {
-      states.push(state(c.delta, c.omega), state(c.delta + hd, c.omega), state(c.delta - hd, c.omega));
-      states.push(state(c.delta, c.omega + hw), state(c.delta, c.omega - hw));
+  // Newton on the mirror condition, for every candidate at once (one kernel call per iteration):
+  // first on runs at a search tolerance (about four times fewer steps), abandoning candidates that
+  // do not approach a root, then polished on runs at the map's tolerance.
+  const newton = (list: Candidate[], m: Float64Array, h: number, done: number, iterations: number, giveUp: boolean) => {
+    const hd = h;
+    const hw = h * omegaScale;
+    for (let iteration = 0; iteration < iterations; iteration++) {
+      const active = list.filter((c) => !c.done && !c.failed);
+      if (active.length === 0) break;
+      const states: SectionState[] = [];
+      for (const c of active) {
+        states.push(state(c.delta, c.omega), state(c.delta + hd, c.omega), state(c.delta - hd, c.omega));
+        states.push(state(c.delta, c.omega + hw), state(c.delta, c.omega - hw));
+      }
+      if (states.some((st) => !Number.isFinite(st.speed))) {
+        for (const c of active) if (!Number.isFinite(state(c.delta, c.omega + hw).speed) || !Number.isFinite(state(c.delta, c.omega - hw).speed)) c.failed = true;
+        continue;
+      }
+      const out = strides(engine, m, states);
+      active.forEach((c, j) => {
+        const o = out.slice(5 * j, 5 * j + 5);
+        const r = o.map((x, k) => mirrorResidual(s, energy, x.mid, states[5 * j + k], omegaScale));
+        if (r.some((x) => x === undefined)) {
+          c.failed = true;
+          return;
+        }
+        const [r0, rdp, rdm, rwp, rwm] = r as number[][];
+        c.residual = Math.max(Math.abs(r0[0]), Math.abs(r0[1]));
+        c.iterations++;
+        if (c.residual < done) {
+          c.done = true;
+          return;
+        }
+        // far from any root after a dozen steps: not converging (a start outside every basin)
+        if (giveUp && c.iterations >= 12 && c.residual > 1e-3) {
+          c.failed = true;
+          return;
+        }
+        const a = (rdp[0] - rdm[0]) / (2 * hd);
+        const b = (rwp[0] - rwm[0]) / (2 * hw);
+        const cc = (rdp[1] - rdm[1]) / (2 * hd);
+        const d = (rwp[1] - rwm[1]) / (2 * hw);
+        const det = a * d - b * cc;
+        if (!(Math.abs(det) > 1e-300)) {
+          c.failed = true;
+          return;
+        }
+        let dd = -(d * r0[0] - b * r0[1]) / det;
+        let dw = -(-cc * r0[0] + a * r0[1]) / det;
+        const scale = Math.max(Math.abs(dd) / 0.2, Math.abs(dw) / (0.2 * omegaScale), 1);
+        dd /= scale;
+        dw /= scale;
+        c.delta += dd;
+        c.omega += dw;
+        if (Math.abs(c.delta) >= Math.PI / 2 || Math.abs(c.omega) >= omegaLimit) c.failed = true;
+        else if (Math.abs(dd) < 1e-15 && Math.abs(dw) < 1e-15 * omegaScale && c.residual < 1e-9) c.done = true;
+      });
     }
-    if (states.some((st) => !Number.isFinite(st.speed))) {
-      for (const c of active) if (!Number.isFinite(state(c.delta, c.omega + hw).speed) || !Number.isFinite(state(c.delta, c.omega - hw).speed)) c.failed = true;
-      continue;
-    }
-    const out = strides(engine, model, states);
-    active.forEach((c, j) => {
-      const o = out.slice(5 * j, 5 * j + 5);
-      const r = o.map((x, k) => mirrorResidual(s, energy, x.mid, states[5 * j + k], omegaScale));
-      if (r.some((x) => x === undefined)) {
-        c.failed = true;
-        return;
-      }
-      const [r0, rdp, rdm, rwp, rwm] = r as number[][];
-      c.residual = Math.max(Math.abs(r0[0]), Math.abs(r0[1]));
-      c.iterations++;
-      if (c.residual < 1e-12) {
-        c.done = true;
-        return;
-      }
-      const a = (rdp[0] - rdm[0]) / (2 * hd);
-      const b = (rwp[0] - rwm[0]) / (2 * hw);
-      const cc = (rdp[1] - rdm[1]) / (2 * hd);
-      const d = (rwp[1] - rwm[1]) / (2 * hw);
-      const det = a * d - b * cc;
-      if (!(Math.abs(det) > 1e-300)) {
-        c.failed = true;
-        return;
-      }
-      let dd = -(d * r0[0] - b * r0[1]) / det;
-      let dw = -(-cc * r0[0] + a * r0[1]) / det;
-      const scale = Math.max(Math.abs(dd) / 0.2, Math.abs(dw) / (0.2 * omegaScale), 1);
-      dd /= scale;
-      dw /= scale;
-      c.delta += dd;
-      c.omega += dw;
-      if (Math.abs(c.delta) >= Math.PI / 2 || Math.abs(c.omega) >= omegaLimit) c.failed = true;
-      else if (Math.abs(dd) < 1e-15 && Math.abs(dw) < 1e-15 * omegaScale && c.residual < 1e-9) c.done = true;
-    });
+  };
+  const searchModel = buildLateralModel(s);
+  searchModel[L.LM_RTOL] = SEARCH_RTOL;
+  searchModel[L.LM_ATOL] = SEARCH_ATOL;
+  newton(cands, searchModel, 1e-6, 1e-8, 40, true);
+  const found = cands.filter((c) => c.done || (!c.failed && c.residual < 1e-6));
+  const distinct: Candidate[] = [];
+  for (const c of found.sort((p, q) => p.delta - q.delta)) {
+    if (!distinct.some((u) => Math.abs(u.delta - c.delta) < 1e-5 && Math.abs(u.omega - c.omega) < 1e-5 * omegaScale)) distinct.push(c);
   }
-  const converged = cands.filter((c) => c.done || (!c.failed && c.residual < 1e-9));
+  const polished = distinct.map((c) => ({ ...c, done: false, failed: false, iterations: 0 }));
+  newton(polished, model, 1e-7, 1e-12, 12, false);
+  const converged = polished.filter((c) => c.done || (!c.failed && c.residual < 1e-9));
   const unique: Candidate[] = [];
   for (const c of converged.sort((p, q) => p.delta - q.delta)) {
     if (!unique.some((u) => Math.abs(u.delta - c.delta) < 1e-6 && Math.abs(u.omega - c.omega) < 1e-6 * omegaScale)) unique.push(c);
@@ -246,7 +270,7 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
   const fixed = options.existenceOnly
     ? unique.map((c) => bare(s, energy, c))
     : unique.map((c) => describeFixedPoint(engine, s, model, energy, state(c.delta, c.omega), c.residual, omegaScale));
-  return { energy_J: energy, speed_m_per_s: v0, fixed_points: fixed, starts: cands.length, newton_converged: converged.length };
+  return { energy_J: energy, speed_m_per_s: v0, fixed_points: fixed, starts: cands.length, newton_converged: found.length };
 }
 
 function bare(s: LateralScenario, energy: number, c: Candidate): LateralFixedPoint {

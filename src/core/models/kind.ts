@@ -13,7 +13,7 @@ export const MODEL_KINDS: readonly ModelKind[] = ['slip', 'biped', 'lateral'];
 
 /** The commands that run a kind, where that is not every command (for refusals). */
 export const KIND_COMMANDS: Partial<Record<ModelKind, readonly string[]>> = {
-  lateral: ['simulate', 'map', 'basin', 'recover'],
+  lateral: ['simulate', 'map', 'scan', 'basin', 'recover'],
 };
 
 /** The Poincaré section a kind's strides run between (the `--json` header's "section"). */
