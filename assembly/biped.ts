@@ -41,7 +41,7 @@ import {
   S_MAX_PEAK_FORCE, S_MAX_FRICTION, S_MAX_COMPRESSION, S_MIN_ATTACK, S_MAX_ATTACK,
   S_SUM_SQ_HEIGHT_ERROR, S_SUM_SQ_SPEED_ERROR, S_TIME, S_DISTANCE, S_STEPS, S_REJECTED,
   S_FINAL_OFFSET, S_PREVIOUS_OFFSET, S_FINAL_LEG, S_FINAL_SECTION_KIND, S_MAX_VERTICAL_FORCE,
-  SECTION_FLIGHT_APEX, SECTION_SINGLE_SUPPORT_APEX, GAIT_WALKING, GAIT_RUNNING,
+  SECTION_FLIGHT_APEX, SECTION_SINGLE_SUPPORT_APEX, GAIT_WALKING, GAIT_RUNNING, GAIT_HOPPING,
   STATUS_OK, STATUS_BODY_HIT_GROUND, STATUS_FELL_BACKWARD, STATUS_NO_LIFTOFF, STATUS_NO_APEX,
   STATUS_LEG_NOT_PLACEABLE, STATUS_STEP_UNDERFLOW, STATUS_NON_FINITE, STATUS_STEP_LIMIT,
   STATUS_ATTACK_OUT_OF_RANGE, STATUS_GAIT_CHANGED, STATUS_STALLED, STATUS_NO_SECTION,
@@ -113,7 +113,8 @@ let timeScale: f64 = 1.0; // s, 1/omega of the softest leg in stance
 
 // Stride state.
 let strideWalking: bool = true; // the stride started at a single-support apex
-let tS: f64 = 0.0; // s since the section, at Y0
+let tS: f64 = 0.0; // s since the contact began, at Y0 (the single-leg driver's clock)
+let tSec0: f64 = 0.0; // s from the section to the contact's start
 let h: f64 = 0.0;
 let firstH: f64 = 0.0; // the stride's first accepted step: a start for the next stride
 let firstStep: bool = true;
@@ -139,6 +140,7 @@ let endVy: f64 = 0.0;
 let endT: f64 = 0.0;
 let endW: f64 = 0.0;
 let endLeg: i32 = 0; // the leg that lifted off (flight) or is in stance (section)
+let endBoth: bool = false; // both legs left the ground together
 
 let relPx: f64 = 0.0; // state relative to the stance foot at the last single-support apex
 let relPy: f64 = 0.0;
@@ -221,7 +223,7 @@ function evValue(ev: i32, leg: i32, p: usize, t: f64): f64 {
   }
   if (ev == EVB_MAX_COMPRESSION) return legRdot(leg, p);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legSin(attackAt(model, t)) - (load<f64>(p, 8) + oy - swingGround);
+    return lg(leg, LF_L0) * legSin(attackAt(model, tSec0 + t)) - (load<f64>(p, 8) + oy - swingGround);
   }
   if (ev == EVB_SECTION) return -load<f64>(p, 24);
   if (ev == EVB_GROUND) return lowestFoot() - load<f64>(p, 8);
@@ -237,7 +239,7 @@ function evRate(ev: i32, leg: i32, p: usize, d: usize, t: f64): f64 {
   }
   if (ev == EVB_MAX_COMPRESSION) return legRddot(leg, p, d);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legCos(attackAt(model, t)) * angleRateAt(model, t) - load<f64>(p, 24);
+    return lg(leg, LF_L0) * legCos(attackAt(model, tSec0 + t)) * angleRateAt(model, tSec0 + t) - load<f64>(p, 24);
   }
   if (ev == EVB_SECTION) return -load<f64>(d, 24);
   if (ev == EVB_GROUND) return -load<f64>(p, 24);
@@ -348,11 +350,11 @@ function noteForces(p: usize, tAt: f64): void {
 // Trace samples inside the last accepted step (from tS, size hh) up to the fraction thetaEnd.
 let traceT0: f64 = 0.0; // absolute time of the stride's section
 function traceContact(hh: f64, thetaEnd: f64): void {
-  const tEnd = traceT0 + tS + thetaEnd * hh;
+  const tEnd = traceT0 + tSec0 + tS + thetaEnd * hh;
   for (;;) {
     const ts = traceNext(tEnd);
     if (ts < 0.0) return;
-    const theta = (ts - traceT0 - tS) / hh;
+    const theta = (ts - traceT0 - tSec0 - tS) / hh;
     if (theta < 0.0) continue;
     dense(theta);
     emitAt(ts, YI, ts - traceT0);
@@ -487,14 +489,15 @@ function runContact(rec: usize): i32 {
     let stopTheta: f64 = 2.0;
     let stopEvent = -1;
     let stopLeg = 0;
-    // maximum compression of each leg (splits the stance with a split schedule)
+    // maximum compression of each leg: the first splits the stance with a split schedule; a leg
+    // without one has every local maximum located (its force humps, e.g. a walking leg's two)
     let mTheta0: f64 = 2.0;
     let mTheta1: f64 = 2.0;
-    if (lg(0, LF_ON) != 0.0 && lg(0, LF_COMPRESSING) != 0.0 && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
+    if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
       mTheta0 = single ? locate(EV_MAX_COMPRESSION, gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, gm00, gm10, tS, h);
       if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
     }
-    if (lg(1, LF_ON) != 0.0 && lg(1, LF_COMPRESSING) != 0.0 && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
+    if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
       mTheta1 = single ? locate(EV_MAX_COMPRESSION, gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, gm01, gm11, tS, h);
       if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
     }
@@ -623,15 +626,26 @@ function runContact(rec: usize): i32 {
     }
     if (stopEvent == EVB_LIFTOFF) {
       ls(stopLeg, LF_ON, 0.0);
-      ls(stopLeg, LF_LO, tEvent);
+      ls(stopLeg, LF_LO, tSec0 + tEvent);
       if (single) {
         saveEnd(tEvent, stopLeg);
         recordLiftoff(rec, stopLeg);
         return END_FLIGHT;
       }
-      // double -> single support on the other leg; the frame moves to its foot
       recordLiftoff(rec, stopLeg);
-      put(rec, R_DOUBLE_END, tEvent);
+      // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
+      // extending, within the event location's accuracy.
+      const o = 1 - stopLeg;
+      if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
+        ls(o, LF_ON, 0.0);
+        ls(o, LF_LO, tSec0 + tEvent);
+        put(rec, R_DOUBLE_END, tSec0 + tEvent);
+        saveEnd(tEvent, stopLeg);
+        endBoth = true;
+        return END_FLIGHT;
+      }
+      // double -> single support on the other leg; the frame moves to its foot
+      put(rec, R_DOUBLE_END, tSec0 + tEvent);
       const m = 1 - stopLeg;
       const sx = footRx(m);
       const sy = footRy(m);
@@ -646,7 +660,8 @@ function runContact(rec: usize): i32 {
       if (!strideWalking) return STATUS_GAIT_CHANGED;
       if (touchedDown) return STATUS_NO_SECTION;
       const j = stopLeg;
-      const a = attackAt(model, tEvent);
+      const tTd = tSec0 + tEvent;
+      const a = attackAt(model, tTd);
       if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
       if (a < minAttack) minAttack = a;
       if (a > maxAttack) maxAttack = a;
@@ -654,16 +669,16 @@ function runContact(rec: usize): i32 {
       ls(j, LF_ON, 1.0);
       ls(j, LF_FX, ox + px + lg(j, LF_L0) * legCos(a));
       ls(j, LF_FY, swingGround);
-      chooseStiffness(model, tEvent, lg(j, LF_KSCALE));
+      chooseStiffness(model, tTd, lg(j, LF_KSCALE));
       ls(j, LF_KC, stanceKc);
       ls(j, LF_KE, stanceKe);
       ls(j, LF_K, stanceKc);
       ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
       ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tEvent);
+      ls(j, LF_TD, tTd);
       touchedDown = true;
-      put(rec, R_DOUBLE_START, tEvent);
-      put(rec, R_APEX_TO_TOUCHDOWN, tEvent);
+      put(rec, R_DOUBLE_START, tTd);
+      put(rec, R_APEX_TO_TOUCHDOWN, tTd);
       put(rec, R_ATTACK, a);
       put(rec, R_FOOT_X, lg(j, LF_FX));
       put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
@@ -750,7 +765,8 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   let y = get(input, I_APEX_HEIGHT);
   let vx = get(input, I_FORWARD_SPEED);
   let offset = section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
-  let leg = <i32>get(input, I_SECTION_LEG) == 1 ? 1 : 0;
+  const legCode = <i32>get(input, I_SECTION_LEG);
+  let leg = legCode == 1 ? 1 : legCode == 2 && section == SECTION_FLIGHT_APEX ? 2 : 0;
   let x: f64 = 0.0;
   let t: f64 = 0.0;
   let prevHeight = y;
@@ -769,8 +785,9 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   let sumSqSpeed: f64 = 0.0;
   let allSteps = 0;
   let allRejected = 0;
-  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg, LF_KSCALE);
-  h = initialStep(mass, kFirst, vx, lg(leg, LF_L0), rtol);
+  const leg0 = leg == 2 ? 0 : leg;
+  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg0, LF_KSCALE);
+  h = initialStep(mass, kFirst, vx, lg(leg0, LF_L0), rtol);
 
   if (section == SECTION_SINGLE_SUPPORT_APEX) {
     // the stance leg at the start: pinned at -offset on ground 0, past its maximum compression
@@ -799,7 +816,8 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
     put(rec, R_ENERGY_BEFORE, energyBefore);
     if (!isFinite(y) || !isFinite(vx)) { status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>status); break; }
     strideWalking = section == SECTION_SINGLE_SUPPORT_APEX;
-    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : <f64>GAIT_RUNNING);
+    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
+    endBoth = false;
     traceStride = s;
     traceT0 = t;
     for (let i = 0; i < 2; i++) {
@@ -838,12 +856,21 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       store<f64>(Y0, vx, 16);
       store<f64>(Y0, 0.0, 24);
       store<f64>(Y0, 0.0, 32);
+      tSec0 = 0.0;
       tS = 0.0;
     } else {
-      // flight from the apex to the touchdown of `leg`, closed form (flight.ts)
-      const j = leg;
+      // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
+      // legs are ready and the one whose foot reaches the ground first lands (both at once when
+      // they reach it at the same time)
+      let j = leg == 2 ? 0 : leg;
+      let tTouch = touchdownTime(mdl, y, swingGround, lg(j, LF_L0), gravity);
+      let both = false;
+      if (leg == 2) {
+        const t1 = touchdownTime(mdl, y, swingGround, lg(1, LF_L0), gravity);
+        if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
+        else both = t1 == tTouch;
+      }
       const l0 = lg(j, LF_L0);
-      const tTouch = touchdownTime(mdl, y, swingGround, l0, gravity);
       if (tTouch < 0.0) {
         status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
           : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
@@ -874,6 +901,21 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
       ls(j, LF_COMPRESSING, 1.0);
       ls(j, LF_TD, tTouch);
+      if (both) {
+        const o = 1 - j;
+        ls(o, LF_ON, 1.0);
+        ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
+        ls(o, LF_FY, swingGround);
+        chooseStiffness(mdl, tTouch, lg(o, LF_KSCALE));
+        ls(o, LF_KC, stanceKc);
+        ls(o, LF_KE, stanceKe);
+        ls(o, LF_K, stanceKc);
+        ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+        ls(o, LF_COMPRESSING, 1.0);
+        ls(o, LF_TD, tTouch);
+        put(rec, R_DOUBLE_START, tTouch);
+        chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
+      }
       touchedDown = true;
       put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
       put(rec, R_ATTACK, attack);
@@ -889,10 +931,10 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       store<f64>(Y0, vx, 16);
       store<f64>(Y0, vyTouch, 24);
       store<f64>(Y0, 0.0, 32);
-      tS = tTouch;
+      tSec0 = tTouch;
+      tS = 0.0;
     }
-    tContactLimit = tS + 20.0 * Math.PI * Math.sqrt(mass / kMin);
-    const tContact0 = tS;
+    tContactLimit = 20.0 * Math.PI * Math.sqrt(mass / kMin);
 
     const end = runContact(rec);
     allSteps += steps;
@@ -926,14 +968,14 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
     if (end == END_FLIGHT) {
       const xLift = ox + endPx;
       const yLift = oy + endPy;
-      const tLift = t + endT;
+      const tLift = t + tSec0 + endT;
       if (strideWalking) {
         status = STATUS_GAIT_CHANGED;
         put(rec, R_GAIT, <f64>GAIT_RUNNING);
         put(rec, R_STATUS, <f64>status);
         break;
       }
-      put(rec, R_CONTACT, endT - tContact0);
+      put(rec, R_CONTACT, endT);
       if (tracing) {
         emit2(tLift, xLift, yLift, endVx, endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
       }
@@ -948,12 +990,12 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
       eAfter = mass * gravity * yNext + 0.5 * mass * vxNext * vxNext;
       nextSection = SECTION_FLIGHT_APEX;
       nextOffset = NaN;
-      nextLeg = 1 - endLeg;
+      nextLeg = endBoth ? 2 : 1 - endLeg;
     } else {
       yNext = oy + endPy;
       xNext = ox + endPx;
       vxNext = endVx;
-      tNext = t + endT;
+      tNext = t + tSec0 + endT;
       eAfter = energyAt(xNext, yNext, vxNext, 0.0);
       nextSection = SECTION_SINGLE_SUPPORT_APEX;
       nextOffset = endPx - footRx(endLeg);

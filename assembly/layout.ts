@@ -85,7 +85,7 @@ export const I_MODEL = 6; // index of this rollout's model block in the batch's 
 // Two-leg model only (the single-leg model ignores them):
 export const I_SECTION_KIND = 7; // SECTION_* below: where the rollout starts
 export const I_SECTION_OFFSET = 8; // m, single-support apex: body x minus the stance foot's x
-export const I_SECTION_LEG = 9; // single-support apex: the stance leg; flight apex: the leg that lands first
+export const I_SECTION_LEG = 9; // single-support apex: the stance leg; flight apex: the leg that lands first (2: both)
 export const I_SIZE = 10;
 
 export const SECTION_FLIGHT_APEX = 0; // vy = 0 in flight
@@ -154,6 +154,7 @@ export const R_SIZE = 50;
 
 export const GAIT_WALKING = 0; // single and double support, no flight
 export const GAIT_RUNNING = 1; // single support and flight, no double support
+export const GAIT_HOPPING = 2; // both legs land and leave together (flight apex start with I_SECTION_LEG = 2)
 
 // ---------------------------------------------------------------------------
 // Rollout summaries: (rollouts x S_SIZE) f64, always written by runBatch.

@@ -1,9 +1,15 @@
 // Whatever the scenario, the validator either accepts it or throws an InputError naming a field,
 // and an accepted scenario always simulates to finite numbers (a fall is a status, never a NaN).
+import { spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../src/core/errors.js';
 import { demoScenario, parseScenario, type Scenario } from '../src/core/scenario.js';
 import { simulate } from '../src/core/simulate.js';
+
+const repoRoot = join(dirname(fileURLToPath(import.meta.url)), '..');
 
 // Small deterministic generator (mulberry32, common practice for test data).
 function rng(seed: number) {
@@ -114,5 +120,141 @@ describe('scenarios at the corners of the physical bounds (DEVELOPERS.md, scenar
       expect(Number.isFinite(sample.forward_speed_m_per_s)).toBe(true);
     }
     expect(allFinite(map.fixed_points)).toBe(true);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+// Messages: every refusal names the field or option, what was expected and what was found; never
+// the validator library's own text, never a message blaming an internal quantity.
+
+describe('messages name the field, what was expected and what was found', () => {
+  // zod's own phrases (its default messages), which say nothing a user can act on
+  const RAW = /Invalid input|nonoptional|received undefined|Invalid option|Too (big|small)|expected (string|number|object|array), received/;
+
+  function issuesOf(f: () => unknown): InputError['issues'] {
+    try {
+      f();
+    } catch (error) {
+      expect(error).toBeInstanceOf(InputError);
+      return (error as InputError).issues;
+    }
+    return [];
+  }
+  async function issuesOfAsync(f: () => Promise<unknown>): Promise<InputError['issues']> {
+    try {
+      await f();
+    } catch (error) {
+      expect(error).toBeInstanceOf(InputError);
+      return (error as InputError).issues;
+    }
+    return [];
+  }
+  function expectClear(issues: InputError['issues'], label: string) {
+    for (const issue of issues) {
+      const text = new InputError([issue]).format();
+      expect(text, label).not.toMatch(RAW);
+      if (issue.message === undefined) {
+        expect(issue.expected.trim().length, `${label}: ${text}`).toBeGreaterThan(0);
+        expect(issue.found.trim().length, `${label}: ${text}`).toBeGreaterThan(0);
+        expect(issue.expected.trim(), `${label}: ${text}`).not.toBe(issue.found.trim()); // never "expected 10, found 10"
+      }
+    }
+  }
+
+  it('300 mutated result files and 300 mutated studies: each problem in words of its own', async () => {
+    const { parseResult } = await import('../src/core/export/input.js');
+    const { parseStudy } = await import('../src/core/optimize/study.js');
+    const { contentHash } = await import('../src/core/version.js');
+    const scenario = JSON.parse(JSON.stringify(demoScenario()));
+    const result = {
+      format: 'pronk-result',
+      format_version: 1,
+      kind: 'deadbeat',
+      scenario,
+      policy: scenario.policy,
+      constraints: [{ name: 'peak_leg_force_N', value: 100, limit: 200, margin: 100 }],
+      provenance: { pronk_version: '0.1.0', scenario_sha256: await contentHash(scenario), date: '2026-01-01T00:00:00Z' },
+    };
+    const study = {
+      scenario,
+      free_parameters: [{ path: 'policy.angle.rate_deg_per_s', lower: 0, upper: 80 }],
+      objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.005, rollouts: 10, strides: 5 }] },
+      constraints: { max_leg_force_N: 2000, leg_angle_range_deg: { min_deg: 40, max_deg: 85 } },
+      search: { method: 'COBYLA', max_evaluations: 6, restarts: 1 },
+      seed: 1,
+      holdout: { seed: 2, rollouts: 20 },
+    };
+    const r = rng(20261202);
+    let refused = 0;
+    for (let i = 0; i < 300; i++) {
+      const bad = mutate(result, r);
+      const issues = await issuesOfAsync(() => parseResult(bad, 'r.json'));
+      refused += issues.length > 0 ? 1 : 0;
+      expectClear(issues, `result ${i}`);
+      const badStudy = mutate(study, r);
+      const studyIssues = issuesOf(() => parseStudy(badStudy));
+      refused += studyIssues.length > 0 ? 1 : 0;
+      expectClear(studyIssues, `study ${i}`);
+    }
+    expect(refused).toBeGreaterThan(300); // the mutations do reach the validators
+  });
+
+  it('a result file without its scenario or policy says which and what it should hold', async () => {
+    const { parseResult } = await import('../src/core/export/input.js');
+    const issues = await issuesOfAsync(() => parseResult({ format: 'pronk-result', format_version: 1, kind: 'deadbeat' }, 'r.json'));
+    expect(issues.map((i) => new InputError([i]).format())).toEqual([
+      'scenario: expected the scenario the policy was made for (an object with body, start, policy, ...), found missing',
+      'policy: expected the policy to export (an object with angle and stiffness), found missing',
+    ]);
+  });
+
+  it('options outside the physical bounds blame the option, not a quantity computed from it', async () => {
+    const { canonicalRobustnessOptions } = await import('../src/core/analysis/robustness.js');
+    const { basinRunOptions } = await import('../src/core/analysis/basin.js');
+    const { synthesizeDeadbeat } = await import('../src/core/synthesis/deadbeat.js');
+    const demo = demoScenario();
+    const robustness = (over: object) =>
+      issuesOf(() => canonicalRobustnessOptions(demo, { rollouts: 2, sigma_m: 0.01, seed: 1, ...over })).map((i) => new InputError([i]).format());
+    // a target of 1e308 m once failed as "rows[0].sum_sq_height_error_m2: expected a finite number >= 0, found Infinity"
+    expect(robustness({ target_height_m: 1e308 })).toEqual(['target_height_m: expected an apex height from -1e4 to 1e4 (m), found 1e+308']);
+    expect(robustness({ target_speed_m_per_s: 1e308 })).toEqual(['target_speed_m_per_s: expected a forward speed from 0 to 1000 (m/s), found 1e+308']);
+    expect(robustness({ sigma_m: 1e308 })).toEqual(['sigma_m: expected a standard deviation from 0 to 1000 (m), found 1e+308']);
+    // a basin at 1e308 m/s once ran, every such cell "fell" with step_size_underflow
+    expect(issuesOf(() => basinRunOptions(demo, { speeds: { low: 0, high: 1e308, count: 2 } })).map((i) => new InputError([i]).format())).toEqual([
+      "speeds: expected lo:hi:n with lo and hi each a forward speed from 0 to 1000 (m/s), as a scenario's start, found 0:1e+308:2",
+    ]);
+    // a deadbeat ground range of +-1e308 m once reported "NaN to 1e+308 m" as unsolved
+    const ground = await issuesOfAsync(() => synthesizeDeadbeat(demo, { groundRange_m: [-1e308, 1e308] }));
+    expect(ground.map((i) => new InputError([i]).format())).toEqual([
+      'ground_range_m: expected two heights [lo, hi] with lo < hi, each a height from -1e4 to 1e4 (m), found [-1e+308,1e+308]',
+    ]);
+  });
+
+  it('a bound shown in a message is accepted when typed as shown', async () => {
+    const { stepTolerance } = await import('../src/core/analysis/stepdown.js');
+    const demo = demoScenario(); // leg 0.45 m: the finest resolution 0.45 / 1e6 = 4.5000000000000003e-7 m in float64
+    const issues = await issuesOfAsync(() => stepTolerance(demo, { resolution_m: 1e-300 }));
+    expect(new InputError(issues).format()).toBe('resolution_m: expected a step size from 4.5e-7 to 0.045 m (leg length / 1000000 to leg length / 10), found 1e-300');
+    // 4.5e-7 as typed is accepted (it once was refused: below 4.5000000000000003e-7)
+    const accepted = await issuesOfAsync(() => stepTolerance(demo, { resolution_m: 4.5e-7, grid_m: 0.45, after: 1 }).then(() => undefined));
+    expect(accepted).toEqual([]);
+  }, 120_000);
+});
+
+describe.skipIf(!existsSync(join(repoRoot, 'dist', 'src', 'cli', 'main.js')))('command-line options outside the physical bounds name the option (built CLI)', () => {
+  const pronk = (...args: string[]) => spawnSync(process.execPath, [join(repoRoot, 'bin', 'pronk.js'), ...args], { encoding: 'utf8', env: { ...process.env, PRONK_DEBUG: '' } });
+
+  it.each([
+    // a rate range of +-1e308 deg/s once blamed --attack-range ("a range holding at least one valid policy, found none")
+    [
+      ['deadbeat', '--ground=-0.01:0.01', '--knots', '3', '--compare', '--rollouts', '4', '--rate-range=-1e308:1e308'],
+      'pronk deadbeat: --rate-range: expected two rates lo < hi, each a rate from -1e5 to 1e5 (deg/s), found [-1e+308,1e+308]',
+    ],
+    [['robustness', '--sigma', '0.01', '--target-height', '1e308'], 'pronk robustness: --target-height: expected an apex height from -1e4 to 1e4 (m), found "1e308"'],
+    [['basin', '--speeds', '0:1e308:2'], "pronk basin: --speeds: expected lo:hi:n with lo and hi each a forward speed from 0 to 1000 (m/s), as a scenario's start, found 0:1e+308:2"],
+  ])('%j', (args, message) => {
+    const r = pronk(...(args as string[]));
+    expect(r.status, r.stderr).toBe(2);
+    expect(r.stderr.split('\n').filter((line) => !line.includes('built-in demo'))).toEqual([message, '']);
   });
 });

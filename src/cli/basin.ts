@@ -86,7 +86,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
 
-  const any = await anyScenarioArgument(file, io, 'basin', ['slip', 'biped', 'lateral']);
+  const any = await anyScenarioArgument(file, io, 'basin');
   if (any.kind === 'lateral') {
     const refused = ['heights', 'speeds', 'energy', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
     if (refused.length) {

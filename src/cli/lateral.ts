@@ -2,7 +2,7 @@
 // "model": "lateral" scenario (the single-leg views are in simulate.ts and map.ts).
 
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { jsonText } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
 import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
@@ -136,7 +136,7 @@ export async function runLateralSimulate(
   const engine = await loadEngine();
   const n = options.strides ?? s.strides;
   const r = simulateLateral(engine, s, { strides: n, ...(options.json && options.traceInterval ? { dt: options.traceInterval } : {}) });
-  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), 'lateral'));
+  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
   else io.stdout.write(renderLateralSimulation(s, r, n));
   return 0;
 }
@@ -222,7 +222,7 @@ export async function runLateralMap(s: LateralScenario, io: CliIO, options: { js
   // below the scenario's speed when it has a gait, else from ten times it (at most 1000 m/s)
   const minimum = minimumGaitSpeed(engine, s, r.fixed_points.length ? r.speed_m_per_s : Math.min(1e3, 10 * r.speed_m_per_s));
   const out: LateralMapOutput = { ...r, minimum_speed_m_per_s: minimum ?? null, notes: LATERAL_MAP_NOTES };
-  if (options.json) io.stdout.write(jsonText('map', lateralMapJson(s, out), 'lateral'));
+  if (options.json) io.stdout.write(jsonText('map', lateralMapJson(s, out), LATERAL_HEADER));
   else io.stdout.write(renderLateralMap(s, out));
   return 0;
 }
@@ -282,7 +282,7 @@ export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { 
   } catch (error) {
     throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
   }
-  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, 'lateral'));
+  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, LATERAL_HEADER));
   else io.stdout.write(renderLateralBasin(s, r));
   return 0;
 }
@@ -327,7 +327,7 @@ export async function runLateralScan(s: LateralScenario, io: CliIO, options: { j
   } finally {
     progress.done();
   }
-  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, 'lateral'));
+  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, LATERAL_HEADER));
   else io.stdout.write(renderLateralScan(s, r));
   return 0;
 }

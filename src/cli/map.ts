@@ -7,7 +7,8 @@ import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map
 import { InputError } from '../core/errors.js';
 import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
+import type { BipedScenario } from '../core/models/biped.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
@@ -54,7 +55,7 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const plot = await plotOption(values.plot);
   const file = positionals[0];
   const [plotFile] = await checkOutputs([outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
-  const any = await anyScenarioArgument(file, io, 'map', ['slip', 'biped', 'lateral']);
+  const any = await anyScenarioArgument(file, io, 'map');
   if (any.kind === 'lateral') {
     if (samples !== undefined || iterations !== undefined || values.approx === true || plot !== undefined) {
       throw new InputError(
@@ -66,6 +67,23 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
     return runLateralMap(any.scenario, io, { json });
   }
   const scenario = any.scenario;
+  if (scenario.model === 'biped') {
+    const biped = scenario as BipedScenario;
+    if (values.approx === true || plot !== undefined) {
+      throw new InputError(
+        [{ path: values.approx === true ? '--approx' : '--plot', expected: 'no such option for a two-leg scenario (model "biped")', found: 'the option' }],
+        { source: SOURCE },
+      );
+    }
+    const { bipedReturnMap } = await import('../core/analysis/biped-map.js');
+    const { renderBipedMap } = await import('./biped.js');
+    const result = await bipedReturnMap(biped, {
+      ...(samples === undefined ? {} : { samples }),
+      ...(iterations === undefined ? {} : { iterations }),
+    });
+    io.stdout.write(json ? jsonText('map', result, modelHeader(scenario)) : renderBipedMap(biped, result));
+    return 0;
+  }
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { apexReturnMap } = await import('../core/analysis/return-map.js');
   let result: ReturnMapResult;

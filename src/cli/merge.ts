@@ -1,7 +1,7 @@
 // `pronk merge FILES... [--json] [--out FILE]`: put the partial results of a sharded run back
 // together and print the result exactly as the original command prints it on one machine.
 
-import { InputError, UsageError } from '../core/errors.js';
+import { UsageError } from '../core/errors.js';
 import type { Scenario } from '../core/scenario.js';
 import type { PartialResult } from '../core/shard.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -74,15 +74,6 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
 }
 
 async function readPartialFile(file: string): Promise<unknown> {
-  const { readFile } = await import('node:fs/promises');
-  const { parseJson } = await import('../core/scenario.js');
-  let text: string;
-  try {
-    text = await readFile(file, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' || code === 'EPERM' ? 'permission denied' : error instanceof Error ? error.message : String(error);
-    throw new InputError([{ path: '', expected: 'a readable partial result', found: 'an unreadable file', message: `cannot read the file (${why})` }], { source: file });
-  }
-  return parseJson(text, file);
+  const { readInputFile } = await import('../core/input-file.js');
+  return readInputFile(file, 'partial result');
 }

@@ -3,7 +3,7 @@
 
 import { anyScenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult, RecoverTolerances, RecoveryResult } from '../core/analysis/recover.js';
 import type { LateralScenario } from '../core/models/lateral.js';
@@ -109,7 +109,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
   if (positionals[0] === undefined) {
     throw new InputError([{ path: 'FILE', expected: 'a scenario file with "model": "lateral"', found: 'missing' }], { source: SOURCE });
   }
-  const any = await anyScenarioArgument(positionals[0], io, 'recover', ['lateral']);
+  const any = await anyScenarioArgument(positionals[0], io, 'recover');
   const s = any.scenario as LateralScenario;
   const tolerances: Partial<RecoverTolerances> = {
     ...(speedTol === undefined ? {} : { speed_m_per_s: speedTol }),
@@ -129,7 +129,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
       rate_deg_per_s: rate ?? 0,
     };
     const r = recover.recoverOnce(engine, s, spec, { stridesAfter, tolerances });
-    if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, 'lateral'));
+    if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
     else io.stdout.write(renderRecovery(s, r));
     return 0;
   }
@@ -151,7 +151,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
   } finally {
     progress.done();
   }
-  if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, 'lateral'));
+  if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
   else io.stdout.write(renderMonteCarlo(s, r));
   return 0;
 }

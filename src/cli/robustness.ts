@@ -13,11 +13,12 @@ import type {
   RobustnessResult,
 } from '../core/analysis/robustness.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { type Scenario } from '../core/scenario.js';
+import { BOUNDS, boundText, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
@@ -102,6 +103,8 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   let range: { start: number; end: number } | undefined;
   try {
     range = spec === undefined ? undefined : shardRange(canonical.rollouts, spec);
+    // a row is an object of a status name and three numbers: under 256 bytes of JSON
+    if (spec !== undefined && range !== undefined) checkShardSize(canonical.rollouts, spec, range, 256, 'rollouts');
   } catch (error) {
     if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
     throw error;
@@ -136,7 +139,8 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
 
 /** The analysis options from the command line (checked for syntax here, for range by the core). */
 export function parseRobustnessFlags(values: ParsedCommandLine['values']): RobustnessOptions {
-  const sigma = parseNumberOption(values.sigma, '--sigma', 'a finite number >= 0 (m)', SOURCE, (v) => v >= 0);
+  const within = (b: { low: number; high: number }) => (v: number) => v >= b.low && v <= b.high;
+  const sigma = parseNumberOption(values.sigma, '--sigma', boundText(BOUNDS.sigma_m, 'a standard deviation'), SOURCE, within(BOUNDS.sigma_m));
   if (sigma === undefined) {
     throw new InputError([{ path: '--sigma', expected: 'a terrain standard deviation in metres (required)', found: 'missing' }], { source: SOURCE });
   }
@@ -144,8 +148,14 @@ export function parseRobustnessFlags(values: ParsedCommandLine['values']): Robus
   if (terrain !== undefined && terrain !== 'random_walk' && terrain !== 'random_heights') {
     throw new InputError([{ path: '--terrain', expected: 'random_walk or random_heights', found: describeFound(terrain) }], { source: SOURCE });
   }
-  const targetHeight = parseNumberOption(values['target-height'], '--target-height', 'a finite number (m)', SOURCE);
-  const targetSpeed = parseNumberOption(values['target-speed'], '--target-speed', 'a finite number (m/s)', SOURCE);
+  const targetHeight = parseNumberOption(values['target-height'], '--target-height', boundText(BOUNDS.height_m, 'an apex height'), SOURCE, within(BOUNDS.height_m));
+  const targetSpeed = parseNumberOption(
+    values['target-speed'],
+    '--target-speed',
+    boundText(BOUNDS.forward_speed_m_per_s, 'a forward speed'),
+    SOURCE,
+    within(BOUNDS.forward_speed_m_per_s),
+  );
   const strides = parseIntegerOption(values.strides, '--strides', 1, undefined, SOURCE);
   return {
     rollouts: parseIntegerOption(values.rollouts, '--rollouts', 1, undefined, SOURCE) ?? DEFAULT_ROLLOUTS,

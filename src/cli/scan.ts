@@ -13,6 +13,7 @@ import { fields, fixed, plain, wrap } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
+import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
@@ -69,7 +70,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
 
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
-  const any = await anyScenarioArgument(file, io, 'scan', ['slip', 'biped', 'lateral']);
+  const any = await anyScenarioArgument(file, io, 'scan');
   if (any.kind === 'lateral') {
     const refused = ['samples', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
     if (refused.length) {
@@ -88,6 +89,8 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   // the sampling batch, most of the work, runs every cell's samples at once
   const cells = options.x.n * options.y.n;
   const range = shard ? withSource(() => shardRange(cells, shard)) : { start: 0, end: cells };
+  // a cell's row is about 400 to 600 bytes of JSON, more with several fixed points
+  if (shard) withSource(() => checkShardSize(cells, shard, range, 1024, 'cells'));
   const threads = workerThreads(io, 'scan', workers, { items: (range.end - range.start) * options.samples, unit: 'rollouts' });
   // A scan runs several batches (the sampled maps, then the fixed points' polish and slopes): the
   // progress shows the batch under way; the first, the sampling, is most of the work.

@@ -8,22 +8,52 @@ import { status } from './progress.js';
 
 export const DEMO_SOURCE = 'scenarios/demo.json';
 
+// The model kinds each command runs (src/core/models/kind.ts); every other kind is refused by name
+// (exit 2), never run as another kind. A "lateral" scenario has its own type: the commands that run
+// it read FILE with anyScenarioArgument.
+export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
+  simulate: ['slip', 'biped', 'lateral'],
+  map: ['slip', 'biped', 'lateral'],
+  scan: ['slip', 'lateral'],
+  basin: ['slip', 'lateral'],
+  recover: ['lateral'],
+};
+
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
   // loaded here, not with the command, so that `pronk COMMAND --help` never waits for the validators
-  const { demoScenario, readScenarioFile } = await import('../core/scenario.js');
-  if (file !== undefined) return readScenarioFile(file, { command });
+  const { demoScenario, parseScenario, readScenarioValue } = await import('../core/scenario.js');
+  const { modelKindOf, refuseModelKind, requireKind } = await import('../core/models/kind.js');
+  if (file !== undefined) {
+    const value = await readScenarioValue(file);
+    const all = COMMAND_KINDS[command] ?? ['slip'];
+    // the kinds of the single-leg Scenario type; a lateral scenario is read by anyScenarioArgument
+    const supported: readonly ModelKind[] = all.filter((k) => k !== 'lateral');
+    const kind = modelKindOf(value, file);
+    if (!supported.includes(kind)) refuseModelKind(command, all, kind, file);
+    const scenario = parseScenario(value, { source: file, command });
+    requireKind(scenario, command, supported, file);
+    return scenario;
+  }
   status(io, command, `no FILE given; running the built-in demo scenario (${DEMO_SOURCE})`);
   return demoScenario();
 }
 
-/** The FILE argument of a command that runs several model kinds (the demo is the single-leg one). */
-export async function anyScenarioArgument(
-  file: string | undefined,
-  io: CliIO,
-  command: string,
-  supported: readonly ModelKind[],
-): Promise<AnyScenario> {
-  const { readAnyScenarioFile } = await import('../core/models/any.js');
-  if (file !== undefined) return readAnyScenarioFile(file, { command, supported });
-  return { kind: 'slip', scenario: await scenarioArgument(file, io, command) }; // the demo is a single-leg scenario
+/** The FILE argument of a command that runs the lateral model too (the demo is the single-leg one). */
+export async function anyScenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<AnyScenario> {
+  const supported = COMMAND_KINDS[command] ?? ['slip'];
+  if (file !== undefined && supported.includes('lateral')) {
+    const { readScenarioValue } = await import('../core/scenario.js');
+    const { modelKindOf } = await import('../core/models/kind.js');
+    const value = await readScenarioValue(file);
+    if (modelKindOf(value, file) === 'lateral') {
+      const { parseLateralScenario } = await import('../core/models/lateral.js');
+      return { kind: 'lateral', scenario: parseLateralScenario(value, { source: file }) };
+    }
+    if (!supported.includes('slip') && !supported.includes('biped')) {
+      const { refuseModelKind } = await import('../core/models/kind.js');
+      refuseModelKind(command, supported, modelKindOf(value, file), file);
+    }
+  }
+  const scenario = await scenarioArgument(file, io, command);
+  return { kind: scenario.model === 'biped' ? 'biped' : 'slip', scenario };
 }

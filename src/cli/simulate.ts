@@ -11,7 +11,8 @@ import {
   type Terrain,
 } from '../core/scenario.js';
 import type { SimulationResult } from '../core/simulate.js';
-import { jsonTextChunks } from '../core/json-output.js';
+import { jsonTextChunks, modelHeader } from '../core/json-output.js';
+import type { BipedScenario } from '../core/models/biped.js';
 import { writeChunks } from './stream-output.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -41,12 +42,24 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  const any = await anyScenarioArgument(file, io, 'simulate', ['slip', 'biped', 'lateral']);
+  const any = await anyScenarioArgument(file, io, 'simulate');
   if (any.kind === 'lateral') {
     const { runLateralSimulate } = await import('./lateral.js');
     return runLateralSimulate(any.scenario, io, { json, strides, traceInterval });
   }
   const scenario = any.scenario;
+  if (scenario.model === 'biped') {
+    const biped = scenario as BipedScenario;
+    const { simulateBiped } = await import('../core/models/biped-simulate.js');
+    const { renderBipedSimulation } = await import('./biped.js');
+    const result = await simulateBiped(biped, {
+      ...(strides === undefined ? {} : { strides }),
+      ...(traceInterval === undefined || !json ? {} : { traceInterval_s: traceInterval }),
+    });
+    if (json) await writeChunks(io.stdout, jsonTextChunks('simulate', result, modelHeader(scenario)));
+    else io.stdout.write(renderBipedSimulation(biped, result, strides ?? scenario.strides));
+    return 0;
+  }
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { simulate } = await import('../core/simulate.js');
   const result = await simulate(scenario, {

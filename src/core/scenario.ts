@@ -8,7 +8,7 @@ import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
 import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
-import { modelKindOf, refuseModelKind } from './models/kind.js';
+import { type ModelKind, modelKindOf, refuseModelKind } from './models/kind.js';
 import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
@@ -359,10 +359,13 @@ function showAbove(bound: number, found: number): string {
 // Validation entry points.
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
-export function parseScenario(value: unknown, options: { source?: string; command?: string } = {}): Scenario {
+export function parseScenario(
+  value: unknown,
+  options: { source?: string; command?: string; supported?: readonly ModelKind[] } = {},
+): Scenario {
   const kind = modelKindOf(value, options.source);
   // the lateral model has its own scenario type (models/lateral.ts): refused here by name
-  if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', ['slip', 'biped'], kind, options.source);
+  if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', options.supported ?? ['slip', 'biped'], kind, options.source);
   if (kind === 'biped') return parseBipedScenario(value, options);
   if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
     const { model: _slip, ...rest } = value as Record<string, unknown>;
@@ -420,43 +423,33 @@ export function demoScenario(): Scenario {
 // ---------------------------------------------------------------------------------------------
 // Reading scenario files (Node only; fs is loaded on demand so the module also runs in a browser).
 
-export async function readScenarioFile(path: string, options: { command?: string } = {}): Promise<Scenario> {
-  return parseScenario(await readScenarioValue(path), { source: path, command: options.command });
+export async function readScenarioFile(path: string, options: { command?: string; supported?: readonly ModelKind[] } = {}): Promise<Scenario> {
+  return parseScenario(await readScenarioValue(path), { source: path, ...options });
 }
 
 /** A scenario file's JSON value, unchecked (a file error or invalid JSON is an InputError). */
 export async function readScenarioValue(path: string): Promise<unknown> {
-  const { readFile } = await import('node:fs/promises');
-  let text: string;
-  try {
-    text = await readFile(path, 'utf8');
-  } catch (error) {
-    throw new InputError(
-      [{ path: '', expected: 'a readable scenario file', found: 'an unreadable file', message: `cannot read the file (${describeFileError(error)})` }],
-      { source: path },
-    );
-  }
-  return parseJson(text, path);
-}
-
-function describeFileError(error: unknown): string {
-  const code = (error as { code?: string }).code;
-  switch (code) {
-    case 'ENOENT':
-      return 'no such file';
-    case 'EISDIR':
-      return 'it is a directory';
-    case 'EACCES':
-    case 'EPERM':
-      return 'permission denied';
-    default:
-      return error instanceof Error ? error.message : String(error);
-  }
+  const { readInputFile } = await import('./input-file.js');
+  return readInputFile(path, 'scenario file');
 }
 
 // JSON.parse, with a syntax error reported as an InputError at its line and column.
 export function parseJson(text: string, source?: string): unknown {
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text; // a UTF-8 byte order mark
+  const deep = tooDeep(body);
+  if (deep !== null) {
+    throw new InputError(
+      [
+        {
+          path: '',
+          expected: `JSON nested at most ${MAX_JSON_DEPTH} levels deep`,
+          found: 'deeper nesting',
+          message: `invalid input at line ${lineColumn(body, deep)}: more than ${MAX_JSON_DEPTH} levels of nested [ and { (Pronk's files nest fewer than 10)`,
+        },
+      ],
+      { source },
+    );
+  }
   try {
     return JSON.parse(body);
   } catch (error) {
@@ -468,6 +461,31 @@ export function parseJson(text: string, source?: string): unknown {
       { source },
     );
   }
+}
+
+/**
+ * The deepest nesting of arrays and objects a JSON input may have. Pronk's own files nest fewer
+ * than 10 levels; V8 spends about 55 bytes on each open bracket it parses (50 MB of "[" took
+ * 2.8 GB), so deeper input is refused by a linear scan before JSON.parse sees it.
+ */
+export const MAX_JSON_DEPTH = 64;
+
+// The offset of the bracket that opens level MAX_JSON_DEPTH + 1 (brackets inside strings do not
+// count), or null when the text nests no deeper than that.
+function tooDeep(text: string): number | null {
+  let depth = 0;
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const code = text.charCodeAt(i);
+    if (inString) {
+      if (code === 0x5c) i++; // the escaped character
+      else if (code === 0x22) inString = false;
+    } else if (code === 0x22) inString = true;
+    else if (code === 0x5b || code === 0x7b) {
+      if (++depth > MAX_JSON_DEPTH) return i;
+    } else if (code === 0x5d || code === 0x7d) depth--;
+  }
+  return null;
 }
 
 function lineColumn(text: string, offset: number): string {

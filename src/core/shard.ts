@@ -49,6 +49,31 @@ export function shardRange(total: number, spec: ShardSpec, option = '--shard'): 
   return { start, end: start + base + (i < extra ? 1 : 0) };
 }
 
+/**
+ * The most bytes a partial result may hold (src/core/input-file.ts reads them back up to this;
+ * kept here so that this module needs no other). A shard whose rows could outgrow it is refused
+ * before it runs, with the number of shards that would fit.
+ */
+export const PARTIAL_BYTES_LIMIT = 500 * 1024 * 1024;
+
+/**
+ * Refuses shard `spec` of `range` when `bytesPerItem` (an upper bound of one row's JSON) times its
+ * items could pass PARTIAL_BYTES_LIMIT, naming the shards that would fit.
+ */
+export function checkShardSize(total: number, spec: ShardSpec, range: ShardRange, bytesPerItem: number, unit: string, option = '--shard'): void {
+  const perShard = Math.floor(PARTIAL_BYTES_LIMIT / bytesPerItem);
+  const items = range.end - range.start;
+  if (items <= perShard) return;
+  const needed = Math.ceil(total / perShard);
+  throw new InputError([
+    {
+      path: option,
+      expected: `shards of at most ${perShard} ${unit} (a partial result is read back up to 500 MiB, at most ${bytesPerItem} bytes per item): at least ${needed} shards of this run`,
+      found: `${items} ${unit} in shard ${spec.index}/${spec.count}`,
+    },
+  ]);
+}
+
 // ---------------------------------------------------------------------------------------------
 // Partial results: what `--shard i/n` writes and `pronk merge` reads.
 

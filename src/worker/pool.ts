@@ -14,7 +14,7 @@ import { compiledWorkerUrl } from './paths.js';
 export interface ParallelOptions {
   /** Worker threads; 1 runs in this thread. Default: the machine's available parallelism. */
   workers?: number;
-  /** Rollouts per chunk; default: about 8 chunks per worker, at least 1. */
+  /** Rollouts per chunk; default: shrinking chunks (see chunkPlan), at least 1. */
   chunkRollouts?: number;
   /** Called after each chunk with rollouts done and total. */
   onProgress?: (done: number, total: number) => void;
@@ -34,7 +34,7 @@ export function defaultWorkers(): number {
   return Math.max(1, availableParallelism());
 }
 
-interface Chunk {
+export interface Chunk {
   start: number;
   end: number;
 }
@@ -47,13 +47,38 @@ interface ChunkReply {
   error?: string;
 }
 
+/**
+ * The chunks of a batch, in order. Given a size, equal chunks of it. By default guided
+ * self-scheduling (Polychronopoulos and Kuck 1987, with a divisor of 4 per worker): each chunk
+ * is the rest over 4 × workers, never below the rest of the batch over 64 × workers, so the
+ * first chunks are big (few messages) and the last are small: rollouts differ in cost (a fall
+ * ends early), and equal chunks of 1/8 per worker left one worker idle for up to a chunk's time
+ * at the end. The first chunk is at most 1/8 of the batch on 2 workers, so a cancel still
+ * lands within about that. Chunking never changes a result: rollouts are independent.
+ */
+export function chunkPlan(rollouts: number, workers: number, size?: number): Chunk[] {
+  const chunks: Chunk[] = [];
+  if (size !== undefined) {
+    const per = Math.max(1, Math.floor(size));
+    for (let start = 0; start < rollouts; start += per) chunks.push({ start, end: Math.min(rollouts, start + per) });
+    return chunks;
+  }
+  const w = Math.max(1, workers);
+  const smallest = Math.max(1, Math.ceil(rollouts / (64 * w)));
+  for (let start = 0; start < rollouts; ) {
+    const per = Math.max(smallest, Math.ceil((rollouts - start) / (4 * w)));
+    const end = Math.min(rollouts, start + per);
+    chunks.push({ start, end });
+    start = end;
+  }
+  return chunks;
+}
+
 /** runBatch over a pool of workers (or in this thread when workers <= 1). */
 export async function runBatchParallel(req: BatchRequest, options: ParallelOptions = {}): Promise<BatchResult> {
   const rollouts = req.inputs.length / L.I_SIZE;
   const workers = Math.max(1, Math.floor(options.workers ?? defaultWorkers()));
-  const per = options.chunkRollouts ?? Math.max(1, Math.ceil(rollouts / (workers * 8)));
-  const chunks: Chunk[] = [];
-  for (let start = 0; start < rollouts; start += per) chunks.push({ start, end: Math.min(rollouts, start + per) });
+  const chunks = chunkPlan(rollouts, workers, options.chunkRollouts);
 
   const summaries = new Float64Array(rollouts * L.S_SIZE);
   const records = req.records ? new Float64Array(rollouts * req.strides * L.R_SIZE) : undefined;

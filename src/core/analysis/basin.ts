@@ -14,7 +14,7 @@ import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { rolloutInput, type BatchRequest, type BatchResult } from '../engine.js';
 import { buildModel, STATUS_NAMES, STATUS_TEXT } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
-import { MAX_STRIDES, firstTouchdownHeightM, type Scenario } from '../scenario.js';
+import { BOUNDS, MAX_STRIDES, boundText, firstTouchdownHeightM, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
 
 export const DEFAULT_BASIN_STRIDES = 30;
@@ -209,6 +209,10 @@ export function axisIssues(path: string, low: unknown, high: unknown, count: unk
     return issue(`lo:hi:n with finite lo and hi (${unit})`);
   }
   if (atLeast !== undefined && low < atLeast) return issue(`lo:hi:n with lo >= ${atLeast} ${unit}`);
+  // the scenario's bounds on a start apex (DEVELOPERS.md, scenario files): beyond them the energy
+  // and the stance's time scales leave what the integrator resolves
+  const bound = unit === 'm' ? BOUNDS.height_m : BOUNDS.forward_speed_m_per_s;
+  if (low < bound.low || high > bound.high) return issue(`lo:hi:n with lo and hi each ${boundText(bound, unit === 'm' ? 'an apex height' : 'a forward speed')}, as a scenario's start`);
   if (low > high) return issue(`lo:hi:n with lo <= hi (${unit}); the range is inverted`);
   if (count === 1 && low !== high) return issue(`lo:hi:1 with lo = hi (one value), or n >= 2 for a range`);
   if (count > 1 && low === high) return issue(`lo:hi:n with lo < hi for n >= 2 values (or n = 1 for one value)`);

@@ -13,7 +13,7 @@ import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
-import { MAX_STRIDES, type Scenario } from '../scenario.js';
+import { BOUNDS, MAX_STRIDES, boundText, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
 import { wilsonInterval } from '../stats.js';
 
@@ -149,12 +149,15 @@ export function canonicalRobustnessOptions(
   const targetHeight = options.target_height_m ?? scenario.start.apex_height_m;
   const targetSpeed = options.target_speed_m_per_s ?? scenario.start.forward_speed_m_per_s;
   check(Number.isInteger(rollouts) && rollouts >= 1 && rollouts <= MAX_ROLLOUTS, names.rollouts, `a positive integer no larger than ${MAX_ROLLOUTS}`, rollouts);
-  check(typeof sigma_m === 'number' && Number.isFinite(sigma_m) && sigma_m >= 0, names.sigma_m, 'a finite number >= 0 (m)', sigma_m);
+  // the scenario's own bounds: a target or a sigma outside them makes every error sum overflow, and
+  // the message would blame the sums instead of the option
+  const within = (x: unknown, b: { low: number; high: number }) => typeof x === 'number' && x >= b.low && x <= b.high;
+  check(within(sigma_m, BOUNDS.sigma_m), names.sigma_m, boundText(BOUNDS.sigma_m, 'a standard deviation'), sigma_m);
   check(Number.isSafeInteger(seed) && seed >= 0, names.seed, `an integer from 0 to ${Number.MAX_SAFE_INTEGER}`, seed);
   check(Number.isInteger(strides) && strides >= 1 && strides <= MAX_STRIDES, names.strides, `a positive integer no larger than ${MAX_STRIDES}`, strides);
   check(RANDOM_TERRAIN_KINDS.includes(terrain), names.terrain, `one of ${RANDOM_TERRAIN_KINDS.join(', ')}`, terrain);
-  check(typeof targetHeight === 'number' && Number.isFinite(targetHeight), names.target_height_m, 'a finite number (m)', targetHeight);
-  check(typeof targetSpeed === 'number' && Number.isFinite(targetSpeed), names.target_speed_m_per_s, 'a finite number (m/s)', targetSpeed);
+  check(within(targetHeight, BOUNDS.height_m), names.target_height_m, boundText(BOUNDS.height_m, 'an apex height'), targetHeight);
+  check(within(targetSpeed, BOUNDS.forward_speed_m_per_s), names.target_speed_m_per_s, boundText(BOUNDS.forward_speed_m_per_s, 'a forward speed'), targetSpeed);
   if (issues.length) throw new InputError(issues);
   return {
     rollouts,

@@ -144,10 +144,13 @@ function canonicalOptions(scenario: Scenario, options: StepToleranceOptions, nam
   const settleStrides = options.settle_strides ?? DEFAULT_SETTLE_STRIDES;
   const settleBand = options.settle_band_m ?? DEFAULT_SETTLE_BAND_M;
   const legLength = scenario.body.leg_length_m;
-  const finest = legLength / MAX_LATTICE;
+  // the bounds as the message shows them (6 significant digits), so that a value typed as shown is
+  // accepted: never "expected from 4.5e-7 ..., found 4.5e-7" (0.45 / 1e6 is 4.5000000000000003e-7)
+  const finest = Number((legLength / MAX_LATTICE).toPrecision(6));
+  const coarsest = Number((legLength / 10).toPrecision(6));
   check(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES, names.after, `a positive integer below ${MAX_STRIDES}`, after);
-  const resolutionOk = typeof resolution === 'number' && Number.isFinite(resolution) && resolution >= finest && resolution <= legLength / 10;
-  check(resolutionOk, names.resolution_m, `a step size from ${finest} to ${legLength / 10} m (leg length / ${MAX_LATTICE} to leg length / 10)`, resolution);
+  const resolutionOk = typeof resolution === 'number' && Number.isFinite(resolution) && resolution >= finest && resolution <= coarsest;
+  check(resolutionOk, names.resolution_m, `a step size from ${finest} to ${coarsest} m (leg length / ${MAX_LATTICE} to leg length / 10)`, resolution);
   check(typeof grid === 'number' && Number.isFinite(grid) && (!resolutionOk || grid >= resolution) && grid <= legLength, names.grid_m, `a spacing from the resolution to the leg length (m)`, grid);
   check(Number.isInteger(settleStrides) && settleStrides >= 2 && settleStrides <= MAX_STRIDES, names.settle_strides, `an integer from 2 to ${MAX_STRIDES}`, settleStrides);
   check(typeof settleBand === 'number' && Number.isFinite(settleBand) && settleBand > 0, names.settle_band_m, 'a finite number > 0 (m)', settleBand);

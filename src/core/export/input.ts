@@ -13,7 +13,8 @@
 
 import { z } from 'zod';
 import { InputError, describeFound, formatPath, type InputIssue } from '../errors.js';
-import { parseJson, parseScenario, type Scenario } from '../scenario.js';
+import { parseScenario, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 import { contentHash } from '../version.js';
 import { MODEL_KIND } from '../json-output.js';
 import type { Policy } from './sample.js';
@@ -87,8 +88,10 @@ export const resultSchema = z.object(
     kind: z.enum(RESULT_KINDS, { error: `one of ${RESULT_KINDS.join(', ')}` }),
     // written since the result files said which model they describe; older files have none
     model: z.literal(MODEL_KIND, { error: `"${MODEL_KIND}" (the model of this Pronk version)` }).optional(),
-    scenario: z.unknown(),
-    policy: z.unknown(),
+    // validated below with the scenario's own messages; here only present (z.unknown() would say
+    // "Invalid input: expected nonoptional" for a missing one)
+    scenario: z.custom<unknown>((v) => v !== undefined, { error: 'the scenario the policy was made for (an object with body, start, policy, ...)' }),
+    policy: z.custom<unknown>((v) => v !== undefined, { error: 'the policy to export (an object with angle and stiffness)' }),
     constraints: z.array(constraintSchema, { error: 'an array of constraints { name, value, limit, margin }' }).optional(),
     provenance: provenanceSchema.optional(),
   },
@@ -143,7 +146,8 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario, { command: 'export' });
+    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip'] });
+    requireKind(scenario, 'export', ['slip']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -189,7 +193,8 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file, command: 'export' });
+  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip'] });
+  requireKind(scenario, 'export', ['slip'], file);
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',
@@ -209,17 +214,7 @@ export async function scenarioSource(value: unknown, file: string): Promise<Expo
 
 /** Reads RESULT or SCENARIO: a file with a `format` field is a result file, else a scenario. */
 export async function readExportSource(file: string): Promise<ExportSource> {
-  const { readFile } = await import('node:fs/promises');
-  let body: string;
-  try {
-    body = await readFile(file, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' ? 'permission denied' : String(error);
-    throw new InputError([{ path: '', expected: 'a readable result or scenario file', found: 'an unreadable file', message: `cannot read the file (${why})` }], {
-      source: file,
-    });
-  }
-  const value = parseJson(body, file);
+  const { readInputFile } = await import('../input-file.js');
+  const value = await readInputFile(file, 'result or scenario file');
   return looksLikeResult(value) ? parseResult(value, file) : scenarioSource(value, file);
 }

@@ -8,6 +8,7 @@
 // earlier versions wrote.
 
 import { InputError, describeFound } from '../errors.js';
+import { parseJson } from '../scenario.js';
 import { describeGrid, type PolicyExport } from './build.js';
 import { baseName } from './c99.js';
 import { hex32 } from './lookup.js';
@@ -108,7 +109,7 @@ export interface PolicyTables {
 
 /** Reads the tables back from a pronk-policy document's text. */
 export function readPolicyTables(text: string, source = 'pronk-policy'): PolicyTables {
-  const doc = JSON.parse(text) as Record<string, unknown>;
+  const doc = parseJson(text, source) as Record<string, unknown>;
   if (doc.format !== POLICY_FORMAT || doc.format_version !== POLICY_FORMAT_VERSION) {
     throw new InputError([{ path: 'format', expected: `${POLICY_FORMAT} version ${POLICY_FORMAT_VERSION}`, found: describeFound(doc.format) }], { source });
   }

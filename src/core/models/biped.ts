@@ -56,10 +56,13 @@ export interface BipedLegs {
   left?: BipedLeg;
   right?: BipedLeg;
 }
+/** The stance leg at a single-support apex; at a flight apex the leg that lands next, or both (a hop on both legs). */
+export type StartLeg = LegName | 'both';
+
 export interface BipedStartExtras {
   gait: Gait;
   offset_m: number;
-  leg: LegName;
+  leg: StartLeg;
 }
 
 /** A validated two-leg scenario. */
@@ -88,7 +91,7 @@ function bipedSchema(): z.ZodType {
     apex_height_m: bounded(BOUNDS.height_m),
     forward_speed_m_per_s: bounded(BOUNDS.forward_speed_m_per_s),
     offset_m: bounded(BOUNDS.height_m, 'a horizontal offset').default(0),
-    leg: z.enum(['left', 'right'], { error: 'the leg "left" or "right"' }).default('left'),
+    leg: z.enum(['left', 'right', 'both'], { error: 'the leg "left" or "right" ("both" for a running start: the legs land together)' }).default('left'),
   };
   const shape = {
     $schema: schemaReference,
@@ -118,6 +121,15 @@ function checkStart(value: unknown, ctx: z.RefinementCtx): void {
   const gait = valueAt(value, ['start', 'gait']);
   const height = numberAt(value, ['start', 'apex_height_m']);
   const legName = valueAt(value, ['start', 'leg']) === 'right' ? 'right' : 'left';
+  if (gait === 'walking' && valueAt(value, ['start', 'leg']) === 'both') {
+    ctx.addIssue({
+      code: 'custom',
+      path: ['start', 'leg'],
+      message: 'the stance leg "left" or "right" for a walking start (one leg on the ground at the single-support apex)',
+      input: 'both',
+    });
+    return;
+  }
   const bodyLength = numberAt(value, ['body', 'leg_length_m']);
   const length = numberAt(value, ['legs', legName, 'leg_length_m']) ?? bodyLength;
   if (height === undefined || length === undefined) return;
@@ -196,8 +208,8 @@ export interface SectionState {
   speed_m_per_s: number;
   /** Walking: body x minus stance foot x; running: 0. */
   offset_m: number;
-  /** Walking: the stance leg; running: the leg that lands next. */
-  leg: LegName;
+  /** Walking: the stance leg; running: the leg that lands next (or both). */
+  leg: StartLeg;
 }
 
 /** A rollout input row starting at a section state. */
@@ -205,7 +217,7 @@ export function sectionInput(state: SectionState, stream = 0, model = 0): Float6
   const v = rolloutInput(state.height_m, state.speed_m_per_s, stream, model);
   v[L.I_SECTION_KIND] = state.gait === 'walking' ? L.SECTION_SINGLE_SUPPORT_APEX : L.SECTION_FLIGHT_APEX;
   v[L.I_SECTION_OFFSET] = state.gait === 'walking' ? state.offset_m : 0;
-  v[L.I_SECTION_LEG] = state.leg === 'right' ? 1 : 0;
+  v[L.I_SECTION_LEG] = state.leg === 'right' ? 1 : state.leg === 'both' ? 2 : 0;
   return v;
 }
 
@@ -253,4 +265,4 @@ export function speedAtEnergy(s: BipedScenario, energy: number, state: Omit<Sect
   return kinetic >= 0 ? Math.sqrt((2 * kinetic) / s.body.mass_kg) : Number.NaN;
 }
 
-export const GAIT_NAMES: Record<number, string> = { [L.GAIT_WALKING]: 'walking', [L.GAIT_RUNNING]: 'running' };
+export const GAIT_NAMES: Record<number, string> = { [L.GAIT_WALKING]: 'walking', [L.GAIT_RUNNING]: 'running', [L.GAIT_HOPPING]: 'hopping' };

@@ -71,7 +71,8 @@ import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
-import { parseJson, parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { requireKind } from '../models/kind.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -534,7 +535,8 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
   } else if (hasInline) {
     try {
-      scenario = parseScenario(raw.scenario, { command: 'optimize' });
+      scenario = parseScenario(raw.scenario, { command: 'optimize', supported: ['slip'] });
+      requireKind(scenario, 'optimize', ['slip']);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -841,22 +843,15 @@ function startScenarioIssue(study: Study): InputIssue | null {
 
 /** Reads and validates a study file; a scenario_file is read relative to the study file's folder. */
 export async function readStudyFile(path: string): Promise<Study> {
-  const { readFile } = await import('node:fs/promises');
   const { dirname, resolve } = await import('node:path');
-  let text: string;
-  try {
-    text = await readFile(path, 'utf8');
-  } catch (error) {
-    const code = (error as { code?: string }).code;
-    const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : error instanceof Error ? error.message : String(error);
-    throw new InputError([{ path: '', expected: 'a readable study file', found: 'an unreadable file', message: `cannot read the file (${reason})` }], { source: path });
-  }
-  const value = parseJson(text, path);
+  const { readInputFile } = await import('../input-file.js');
+  const value = await readInputFile(path, 'study file');
   const file = typeof value === 'object' && value !== null ? (value as Record<string, unknown>).scenario_file : undefined;
   let scenarioFromFile: Scenario | undefined;
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
-    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize' });
+    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize', supported: ['slip'] });
+    requireKind(scenarioFromFile, 'optimize', ['slip'], resolve(dirname(path), file));
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }

@@ -34,7 +34,7 @@ import { DEFAULT_AFTER, stepTolerance, type StepToleranceOptionNames } from '../
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { MODEL_KIND } from '../json-output.js';
-import { MAX_STRIDES, parseScenario, type Scenario } from '../scenario.js';
+import { BOUNDS, MAX_STRIDES, boundText, parseScenario, type Scenario } from '../scenario.js';
 import { newcombeDifferenceInterval } from '../stats.js';
 import { PRONK_VERSION, contentHash } from '../version.js';
 import type { DeadbeatOptions, DeadbeatTable } from './deadbeat.js';
@@ -204,7 +204,9 @@ function canonicalOptions(scenario: Scenario, options: ComparisonOptions, names:
   const pair = (v: unknown): v is [number, number] =>
     Array.isArray(v) && v.length === 2 && v.every((x) => typeof x === 'number' && Number.isFinite(x)) && v[0] < v[1];
   check(pair(attackRange) && attackRange[0] > 0 && attackRange[1] <= 90, names.attack_range_deg, 'angles 0 < lo < hi <= 90 (deg)', attackRange);
-  check(pair(rateRange), names.rate_range_deg_per_s, 'two finite rates lo < hi (deg/s)', rateRange);
+  // the scenario's bound on a retraction rate: a rate beyond it makes no valid policy to compare
+  const rate = BOUNDS.rate_deg_per_s;
+  check(pair(rateRange) && rateRange[0] >= rate.low && rateRange[1] <= rate.high, names.rate_range_deg_per_s, `two rates lo < hi, each ${boundText(rate, 'a rate')}`, rateRange);
   check(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES, names.after, `a positive integer below ${MAX_STRIDES}`, after);
   const rolloutsOk = Number.isInteger(rollouts) && rollouts >= 1;
   if (rolloutsOk) {
@@ -446,7 +448,7 @@ export async function compareDeadbeat(
 
   const mc = new MonteCarlo(o.mc, options);
   const fixed = await gridSearch(fixedFamily, mc, o.screenRollouts, o.mc.rollouts, names.attack_range_deg);
-  const retraction = await gridSearch(retractionFamily, mc, o.screenRollouts, o.mc.rollouts, names.attack_range_deg);
+  const retraction = await gridSearch(retractionFamily, mc, o.screenRollouts, o.mc.rollouts, `${names.attack_range_deg} and ${names.rate_range_deg_per_s}`);
 
   const deadbeatScenario = withPolicy(table.policy);
   if (!deadbeatScenario) {

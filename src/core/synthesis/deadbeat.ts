@@ -171,8 +171,8 @@ export async function synthesizeDeadbeat(scenario: Scenario, options: DeadbeatOp
     );
   }
   const [hLo, hHi] = options.groundRange_m;
-  if (!(Number.isFinite(hLo) && Number.isFinite(hHi) && hLo < hHi)) {
-    throw optionIssue('ground_range_m', 'two finite heights [lo, hi] with lo < hi (m)', options.groundRange_m);
+  if (!(hLo >= BOUNDS.height_m.low && hHi <= BOUNDS.height_m.high && hLo < hHi)) {
+    throw optionIssue('ground_range_m', `two heights [lo, hi] with lo < hi, each ${boundText(BOUNDS.height_m, 'a height')}`, options.groundRange_m);
   }
   const knots = options.knots ?? 41;
   if (!Number.isInteger(knots) || knots < 2 || knots > 2000) throw optionIssue('knots', 'an integer from 2 to 2000', knots);

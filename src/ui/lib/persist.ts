@@ -76,14 +76,99 @@ function db(): Promise<IDBDatabase | null> {
   return dbPromise;
 }
 
+// A big result (a 121 x 121 basin's cells, 50,000 Monte Carlo rows) took IndexedDB's structured
+// serialization 0.2-0.3 s in one main-thread task. Its long arrays are stored instead as JSON text
+// in slices, each written in its own task with a yield between (a string costs IndexedDB nothing
+// to store), and read back the same way. Non-finite numbers survive as {"$pronkNumber": "NaN"}; an
+// array that holds anything JSON cannot carry (a typed array, a function) is stored as it is.
+
+/** Arrays at least this long are stored as JSON slices. */
+export const SLICE_AT = 2000;
+/** Elements per slice: a few milliseconds of JSON each. */
+const SLICE = 1000;
+/** How deep into a result the long arrays are looked for (stamp → value → cells / rows). */
+const DEPTH = 4;
+const SLICES = '$pronkSlices';
+const NUMBER = '$pronkNumber';
+
+const pause = () => new Promise<void>((resolve) => setTimeout(resolve, 0));
+
+class NotJson extends Error {}
+
+function replacer(_key: string, value: unknown): unknown {
+  if (typeof value === 'number' && !Number.isFinite(value)) return { [NUMBER]: String(value) };
+  if (typeof value === 'function' || typeof value === 'bigint' || ArrayBuffer.isView(value) || value instanceof ArrayBuffer) throw new NotJson();
+  return value;
+}
+
+function reviver(_key: string, value: unknown): unknown {
+  if (value !== null && typeof value === 'object' && !Array.isArray(value)) {
+    const n = (value as Record<string, unknown>)[NUMBER];
+    if (typeof n === 'string' && Object.keys(value).length === 1) return Number(n);
+  }
+  return value;
+}
+
+const isPlainObject = (v: unknown): v is Record<string, unknown> =>
+  v !== null && typeof v === 'object' && (Object.getPrototypeOf(v) === Object.prototype || Object.getPrototypeOf(v) === null);
+
+/** The value with its long arrays as JSON slices (a copy: the value itself is not changed). */
+export async function packForStorage(value: unknown, depth = DEPTH): Promise<unknown> {
+  if (Array.isArray(value) && value.length >= SLICE_AT) {
+    const slices: string[] = [];
+    try {
+      for (let at = 0; at < value.length; at += SLICE) {
+        slices.push(JSON.stringify(value.slice(at, at + SLICE), replacer));
+        await pause();
+      }
+      return { [SLICES]: slices, length: value.length };
+    } catch (error) {
+      if (!(error instanceof NotJson)) throw error;
+      return value;
+    }
+  }
+  if (depth <= 0 || !isPlainObject(value)) return value;
+  const out: Record<string, unknown> = {};
+  for (const [key, v] of Object.entries(value)) out[key] = await packForStorage(v, depth - 1);
+  return out;
+}
+
+/** The inverse of packForStorage, a slice per task. */
+export async function unpackFromStorage(value: unknown, depth = DEPTH): Promise<unknown> {
+  if (!isPlainObject(value)) return value;
+  const slices = value[SLICES];
+  if (Array.isArray(slices) && typeof value.length === 'number') {
+    const out: unknown[] = [];
+    for (const slice of slices as string[]) {
+      for (const item of JSON.parse(slice, reviver) as unknown[]) out.push(item);
+      await pause();
+    }
+    return out;
+  }
+  if (depth <= 0) return value;
+  const out: Record<string, unknown> = {};
+  for (const [key, v] of Object.entries(value)) out[key] = await unpackFromStorage(v, depth - 1);
+  return out;
+}
+
+// The latest save of each name wins, even when an earlier one is still slicing.
+const saving = new Map<string, number>();
+let saves = 0;
+
+/** Stores a result under `name` (undefined deletes it); resolves false when the browser refused or a later save replaced it. */
 export async function saveResult(name: string, value: unknown): Promise<boolean> {
+  const ticket = ++saves;
+  saving.set(name, ticket);
+  const stored = value === undefined ? undefined : await packForStorage(value);
+  if (saving.get(name) !== ticket) return false;
   const database = await db();
   if (!database) return false;
+  if (saving.get(name) !== ticket) return false;
   return new Promise((resolve) => {
     try {
       const tx = database.transaction(STORE, 'readwrite');
-      if (value === undefined) tx.objectStore(STORE).delete(name);
-      else tx.objectStore(STORE).put(value, name);
+      if (stored === undefined) tx.objectStore(STORE).delete(name);
+      else tx.objectStore(STORE).put(stored, name);
       tx.oncomplete = () => resolve(true);
       tx.onerror = () => resolve(false);
       tx.onabort = () => resolve(false);
@@ -94,8 +179,17 @@ export async function saveResult(name: string, value: unknown): Promise<boolean>
 }
 
 export async function loadResults(): Promise<Record<string, unknown>> {
-  const database = await db();
-  if (!database) return {};
+  const stored = await loadStored();
+  const out: Record<string, unknown> = {};
+  for (const [name, value] of Object.entries(stored)) out[name] = await unpackFromStorage(value);
+  return out;
+}
+
+function loadStored(): Promise<Record<string, unknown>> {
+  return db().then((database) => (database ? readAll(database) : {}));
+}
+
+function readAll(database: IDBDatabase): Promise<Record<string, unknown>> {
   return new Promise((resolve) => {
     try {
       const out: Record<string, unknown> = {};

@@ -702,7 +702,10 @@ export class Workbench {
 
   private keep<K extends keyof Results>(name: K, value: Results[K]): void {
     this.results = { ...this.results, [name]: value };
-    void saveResult(name, $state.snapshot(value));
+    // The result is plain data (from the workers and the finishers): a snapshot of all of it was
+    // a deep copy costing 0.2 s for a big basin. Only the options may hold state proxies.
+    const stamp = value as Stamped<unknown> | undefined;
+    void saveResult(name, stamp && { ...stamp, options: $state.snapshot(stamp.options) });
   }
 
   // -------------------------------------------------------------------------------------------
