@@ -167,7 +167,7 @@ export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): strin
     { title: 'ang. vel.', unit: 'deg/s' },
     { title: 'stride', unit: 'ms' },
     { title: 'peak force', unit: 'N' },
-    { title: 'reduced eigenvalues', unit: '(heading to body, ang. vel.)', align: 'left' },
+    { title: 'reduced eigenvalues', unit: r.energy_conserved ? '(heading to body, ang. vel.)' : '(speed, heading to body, ang. vel.)', align: 'left' },
     { title: 'stability', unit: '', align: 'left' },
   ];
   const rows = r.fixed_points.map((f, i) => [
@@ -187,18 +187,22 @@ export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): strin
   );
   const lines = [
     header(s, [
-      ['energy', `${plain(r.energy_J)} J (speed ${plain(r.speed_m_per_s)} m/s without rotation)`],
-      [
-        'minimum',
-        r.minimum_speed_m_per_s === null
-          ? 'no periodic gait found at this speed, at ten times it, or below'
-          : `no periodic gait below ${plain(r.minimum_speed_m_per_s)} m/s (the lowest speed with one, by bisection to 1e-4)`,
-      ],
+      ...((r.energy_conserved
+        ? [
+            ['energy', `${plain(r.energy_J)} J (speed ${plain(r.speed_m_per_s)} m/s without rotation)`],
+            [
+              'minimum',
+              r.minimum_speed_m_per_s === null
+                ? 'no periodic gait found at this speed, at ten times it, or below'
+                : `no periodic gait below ${plain(r.minimum_speed_m_per_s)} m/s (the lowest speed with one, by bisection to 1e-4)`,
+            ],
+          ]
+        : [['energy', 'not conserved (a moving attachment point): every gait at any speed, searched from the start speed']]) as [string, string][]),
     ]),
     '',
     r.fixed_points.length === 0
-      ? 'No periodic gait at this energy.'
-      : `Periodic gaits at this energy (left touchdown state; ${count(r.fixed_points.length, 'fixed point')}):`,
+      ? `No periodic gait${r.energy_conserved ? ' at this energy' : ''}.`
+      : `Periodic gaits${r.energy_conserved ? ' at this energy' : ''} (left touchdown state; ${count(r.fixed_points.length, 'fixed point')}):`,
     ...(r.fixed_points.length ? [table(columns, rows), '', 'Eigenvalues of the full stride map (speed, heading to body, angular velocity, heading):', ...full] : []),
     '',
     ...r.notes.map((n) => wrap(n, TEXT_WIDTH)),
@@ -214,14 +218,21 @@ export const LATERAL_MAP_NOTES = [
   'The search finds the symmetric gaits (the right stance mirrors the left) from a grid of starts by Newton\'s method on the half-stride map.',
 ];
 
+const MOVING_NOTE =
+  'The attachment point moves in stance (body.attachment_rate_m_per_s), doing work on the body: the energy is not conserved, so the periodic gaits are isolated (each with its own speed, found with it) and the full stride map has the eigenvalue 1 once, for the heading. The reduced map acts on the speed, the heading to the body axis and the angular velocity.';
+
 export async function runLateralMap(s: LateralScenario, io: CliIO, options: { json: boolean }): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
   const { lateralFixedPoints, minimumGaitSpeed } = await import('../core/analysis/lateral.js');
   const engine = await loadEngine();
   const r = lateralFixedPoints(engine, s);
-  // below the scenario's speed when it has a gait, else from ten times it (at most 1000 m/s)
-  const minimum = minimumGaitSpeed(engine, s, r.fixed_points.length ? r.speed_m_per_s : Math.min(1e3, 10 * r.speed_m_per_s));
-  const out: LateralMapOutput = { ...r, minimum_speed_m_per_s: minimum ?? null, notes: LATERAL_MAP_NOTES };
+  // below the scenario's speed when it has a gait, else from ten times it (at most 1000 m/s); with a
+  // moving attachment point the gaits are isolated (no family over speed)
+  const minimum = r.energy_conserved
+    ? minimumGaitSpeed(engine, s, r.fixed_points.length ? r.speed_m_per_s : Math.min(1e3, 10 * r.speed_m_per_s))
+    : undefined;
+  const notes = r.energy_conserved ? LATERAL_MAP_NOTES : [MOVING_NOTE, LATERAL_MAP_NOTES[1]];
+  const out: LateralMapOutput = { ...r, minimum_speed_m_per_s: minimum ?? null, notes };
   if (options.json) io.stdout.write(jsonText('map', lateralMapJson(s, out), LATERAL_HEADER));
   else io.stdout.write(renderLateralMap(s, out));
   return 0;

@@ -60,7 +60,7 @@ function axisValues(a: LateralAxis): number[] {
 }
 
 export function lateralBasin(engine: Engine, s: LateralScenario, options: LateralBasinOptions = {}): LateralBasinResult {
-  const { gait } = scenarioGait(engine, s);
+  const { gait } = scenarioGait(engine, s, 'basin');
   const d0 = gait.heading_to_body_deg;
   const w0 = gait.angular_velocity_deg_per_s;
   const energy = 0.5 * s.body.mass_kg * gait.speed_m_per_s ** 2 + 0.5 * s.body.moment_of_inertia_kg_m2 * (w0 * DEG) ** 2;

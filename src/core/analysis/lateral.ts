@@ -105,9 +105,9 @@ export interface LateralFixedPoint {
   stride_residual: number;
   /** The full stride map on (v, delta, omega, heading), largest modulus first. */
   eigenvalues: LateralEigen[];
-  /** The reduced map on (delta, omega) at fixed energy, heading removed. */
+  /** The reduced map on (delta, omega) at fixed energy, heading removed (moving attachment point: on (speed, delta, omega)). */
   reduced_eigenvalues: LateralEigen[];
-  /** The full map's two eigenvalues closest to 1 (energy and rotation), their distance from 1. */
+  /** The full map's two eigenvalues closest to 1 (energy and rotation; with a moving attachment point only the rotation's is 1), their distance from 1. */
   unit_eigenvalue_errors: [number, number];
   /** Reduced eigenvalues all inside the unit circle (by more than 1e-6). */
   stable: boolean;
@@ -131,6 +131,8 @@ export interface LateralMapOptions {
 }
 
 export interface LateralMapResult {
+  /** False with a moving attachment point: the gaits are then isolated, each with its own energy. */
+  energy_conserved: boolean;
   energy_J: number;
   /** Speed at the section with no rotation, at this energy. */
   speed_m_per_s: number;
@@ -142,21 +144,18 @@ export interface LateralMapResult {
 interface Candidate {
   delta: number;
   omega: number;
+  /** Only searched with a moving attachment point (else it follows from the energy). */
+  speed: number;
   done: boolean;
   failed: boolean;
   residual: number;
   iterations: number;
 }
 
-/** Mirror residual of the half stride from (delta, omega) at energy E, scaled: [rad, rad/s / omegaScale]. */
-function mirrorResidual(s: LateralScenario, energy: number, mid: SectionState | undefined, st: SectionState, omegaScale: number) {
-  if (!mid) return undefined;
-  return [wrapAngle(mid.delta + st.delta), (mid.omega + st.omega) / omegaScale];
-}
-
 /**
- * The map's analyses assume a conserved energy (the gaits form one family per energy); a moving
- * attachment point does work on the body and breaks that, so they refuse it by name.
+ * The map's analyses of energy families (the minimum speed, recovery to the gait of an energy)
+ * assume a conserved energy; a moving attachment point does work on the body and breaks that, so
+ * they refuse it by name.
  */
 export function requireFixedAttachment(s: LateralScenario, command: string): void {
   if (s.body.attachment_rate_m_per_s === 0) return;
@@ -165,20 +164,47 @@ export function requireFixedAttachment(s: LateralScenario, command: string): voi
       path: 'body.attachment_rate_m_per_s',
       expected: '0',
       found: String(s.body.attachment_rate_m_per_s),
-      message: `expected 0 for ${command} (its gait search holds the energy fixed, and a moving attachment point changes the energy every stride; simulate runs it), found ${s.body.attachment_rate_m_per_s}`,
+      message: `expected 0 for ${command} (it follows the gaits of each energy, and a moving attachment point changes the energy every stride; simulate and map run it), found ${s.body.attachment_rate_m_per_s}`,
     },
   ]);
 }
 
-/** Every symmetric periodic gait at the energy, with eigenvalues. */
+/** Solve the small linear system a x = b (Gaussian elimination with partial pivoting); undefined if singular. */
+function solveSmall(a: number[][], b: number[]): number[] | undefined {
+  const n = b.length;
+  const m = a.map((row, i) => [...row, b[i]]);
+  for (let k = 0; k < n; k++) {
+    let p = k;
+    for (let i = k + 1; i < n; i++) if (Math.abs(m[i][k]) > Math.abs(m[p][k])) p = i;
+    if (!(Math.abs(m[p][k]) > 1e-300)) return undefined;
+    [m[k], m[p]] = [m[p], m[k]];
+    for (let i = k + 1; i < n; i++) {
+      const f = m[i][k] / m[k][k];
+      for (let j = k; j <= n; j++) m[i][j] -= f * m[k][j];
+    }
+  }
+  const x = new Array(n).fill(0);
+  for (let i = n - 1; i >= 0; i--) {
+    let t = m[i][n];
+    for (let j = i + 1; j < n; j++) t -= m[i][j] * x[j];
+    x[i] = t / m[i][i];
+  }
+  return x;
+}
+
+/**
+ * Every symmetric periodic gait at the energy, with eigenvalues. With a moving attachment point
+ * (d1 != 0) the energy is not conserved: the gaits are isolated, and the search also solves for
+ * the speed (three equations: speed, heading to the body axis and angular velocity mirrored).
+ */
 export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: LateralMapOptions = {}): LateralMapResult {
-  requireFixedAttachment(s, 'map');
+  const moving = s.body.attachment_rate_m_per_s !== 0;
   const start = lateralStart(s);
   const energy = options.energy_J ?? sectionEnergy(s, start);
   const v0 = speedAtEnergy(s, energy, 0);
   const model = mapModel(s);
   const omegaScale = v0 / s.body.leg_length_m;
-  const omegaLimit = Math.sqrt((2 * energy) / s.body.moment_of_inertia_kg_m2);
+  const omegaLimit = moving ? Infinity : Math.sqrt((2 * energy) / s.body.moment_of_inertia_kg_m2);
   const nd = options.headingStarts ?? 36;
   const nw = options.rateStarts ?? 7;
   const rates = [0];
@@ -186,40 +212,58 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
     const w = Math.min(0.08 * k * k * omegaScale, 0.9 * omegaLimit);
     rates.push(w, -w);
   }
-  const cands: Candidate[] = (options.starts ?? []).map((st) => ({ ...st, done: false, failed: false, residual: Infinity, iterations: 0 }));
+  const speeds = moving ? [0.6 * v0, v0, 1.6 * v0] : [v0];
+  const fresh = { done: false, failed: false, residual: Infinity, iterations: 0 };
+  const cands: Candidate[] = (options.starts ?? []).map((st) => ({ speed: v0, ...st, ...fresh }));
   for (let i = 0; i < (options.starts ? 0 : nd); i++) {
     const delta = -Math.PI / 2 + (Math.PI * (i + 0.5)) / nd;
-    for (const omega of rates.slice(0, nw)) cands.push({ delta, omega, done: false, failed: false, residual: Infinity, iterations: 0 });
+    for (const omega of rates.slice(0, nw)) for (const speed of speeds) cands.push({ delta, omega, speed, ...fresh });
   }
-  const state = (delta: number, omega: number): SectionState => ({ speed: speedAtEnergy(s, energy, omega), delta, omega, heading: 0 });
+  const state = (c: { delta: number; omega: number; speed: number }): SectionState => ({
+    speed: moving ? c.speed : speedAtEnergy(s, energy, c.omega),
+    delta: c.delta,
+    omega: c.omega,
+    heading: 0,
+  });
+  // unknowns: (delta, omega), and the speed with a moving attachment point
+  const dims = moving ? 3 : 2;
+  const keys = ['delta', 'omega', 'speed'] as const;
+  const scales = [1, omegaScale, v0];
+  const residualOf = (mid: SectionState, st: SectionState) => {
+    const r = [wrapAngle(mid.delta + st.delta), (mid.omega + st.omega) / omegaScale];
+    if (moving) r.push((mid.speed - st.speed) / v0);
+    return r;
+  };
   // Newton on the mirror condition, for every candidate at once (one kernel call per iteration):
   // first on runs at a search tolerance (about four times fewer steps), abandoning candidates that
   // do not approach a root, then polished on runs at the map's tolerance.
   const newton = (list: Candidate[], m: Float64Array, h: number, done: number, iterations: number, giveUp: boolean) => {
-    const hd = h;
-    const hw = h * omegaScale;
+    const per = 1 + 2 * dims;
     for (let iteration = 0; iteration < iterations; iteration++) {
       const active = list.filter((c) => !c.done && !c.failed);
       if (active.length === 0) break;
       const states: SectionState[] = [];
       for (const c of active) {
-        states.push(state(c.delta, c.omega), state(c.delta + hd, c.omega), state(c.delta - hd, c.omega));
-        states.push(state(c.delta, c.omega + hw), state(c.delta, c.omega - hw));
+        states.push(state(c));
+        for (let k = 0; k < dims; k++) {
+          for (const sign of [1, -1]) states.push(state({ ...c, [keys[k]]: c[keys[k]] + sign * h * scales[k] }));
+        }
       }
-      if (states.some((st) => !Number.isFinite(st.speed))) {
-        for (const c of active) if (!Number.isFinite(state(c.delta, c.omega + hw).speed) || !Number.isFinite(state(c.delta, c.omega - hw).speed)) c.failed = true;
+      const bad = active.filter((_, j) => states.slice(per * j, per * (j + 1)).some((st) => !(st.speed > 0)));
+      if (bad.length) {
+        for (const c of bad) c.failed = true;
         continue;
       }
       const out = strides(engine, m, states);
       active.forEach((c, j) => {
-        const o = out.slice(5 * j, 5 * j + 5);
-        const r = o.map((x, k) => mirrorResidual(s, energy, x.mid, states[5 * j + k], omegaScale));
-        if (r.some((x) => x === undefined)) {
+        const o = out.slice(per * j, per * (j + 1));
+        if (o.some((x) => !x.mid)) {
           c.failed = true;
           return;
         }
-        const [r0, rdp, rdm, rwp, rwm] = r as number[][];
-        c.residual = Math.max(Math.abs(r0[0]), Math.abs(r0[1]));
+        const r = o.map((x, k) => residualOf(x.mid as SectionState, states[per * j + k]));
+        const r0 = r[0];
+        c.residual = Math.max(...r0.map(Math.abs));
         c.iterations++;
         if (c.residual < done) {
           c.done = true;
@@ -230,24 +274,17 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
           c.failed = true;
           return;
         }
-        const a = (rdp[0] - rdm[0]) / (2 * hd);
-        const b = (rwp[0] - rwm[0]) / (2 * hw);
-        const cc = (rdp[1] - rdm[1]) / (2 * hd);
-        const d = (rwp[1] - rwm[1]) / (2 * hw);
-        const det = a * d - b * cc;
-        if (!(Math.abs(det) > 1e-300)) {
+        // Jacobian in scaled unknowns: column k from the runs at +-h along unknown k
+        const jac = r0.map((_, i) => Array.from({ length: dims }, (_, k) => (r[1 + 2 * k][i] - r[2 + 2 * k][i]) / (2 * h)));
+        const step = solveSmall(jac, r0.map((x) => -x));
+        if (!step) {
           c.failed = true;
           return;
         }
-        let dd = -(d * r0[0] - b * r0[1]) / det;
-        let dw = -(-cc * r0[0] + a * r0[1]) / det;
-        const scale = Math.max(Math.abs(dd) / 0.2, Math.abs(dw) / (0.2 * omegaScale), 1);
-        dd /= scale;
-        dw /= scale;
-        c.delta += dd;
-        c.omega += dw;
-        if (Math.abs(c.delta) >= Math.PI / 2 || Math.abs(c.omega) >= omegaLimit) c.failed = true;
-        else if (Math.abs(dd) < 1e-15 && Math.abs(dw) < 1e-15 * omegaScale && c.residual < 1e-9) c.done = true;
+        const scale = Math.max(...step.map((x) => Math.abs(x) / 0.2), 1);
+        for (let k = 0; k < dims; k++) c[keys[k]] += (step[k] / scale) * scales[k];
+        if (Math.abs(c.delta) >= Math.PI / 2 || Math.abs(c.omega) >= omegaLimit || !(c.speed > 0)) c.failed = true;
+        else if (Math.max(...step.map(Math.abs)) < 1e-15 && c.residual < 1e-9) c.done = true;
       });
     }
   };
@@ -258,31 +295,35 @@ export function lateralFixedPoints(engine: Engine, s: LateralScenario, options: 
   const found = cands.filter((c) => c.done || (!c.failed && c.residual < 1e-6));
   const distinct: Candidate[] = [];
   for (const c of found.sort((p, q) => p.delta - q.delta)) {
-    if (!distinct.some((u) => Math.abs(u.delta - c.delta) < 1e-5 && Math.abs(u.omega - c.omega) < 1e-5 * omegaScale)) distinct.push(c);
+    const same = (u: Candidate) =>
+      Math.abs(u.delta - c.delta) < 1e-5 && Math.abs(u.omega - c.omega) < 1e-5 * omegaScale && Math.abs(u.speed - c.speed) < 1e-5 * v0;
+    if (!distinct.some(same)) distinct.push(c);
   }
-  const polished = distinct.map((c) => ({ ...c, done: false, failed: false, iterations: 0 }));
+  const polished = distinct.map((c) => ({ ...c, ...fresh }));
   newton(polished, model, 1e-7, 1e-12, 12, false);
   const converged = polished.filter((c) => c.done || (!c.failed && c.residual < 1e-9));
   const unique: Candidate[] = [];
   for (const c of converged.sort((p, q) => p.delta - q.delta)) {
-    if (!unique.some((u) => Math.abs(u.delta - c.delta) < 1e-6 && Math.abs(u.omega - c.omega) < 1e-6 * omegaScale)) unique.push(c);
+    const same = (u: Candidate) =>
+      Math.abs(u.delta - c.delta) < 1e-6 && Math.abs(u.omega - c.omega) < 1e-6 * omegaScale && Math.abs(u.speed - c.speed) < 1e-6 * v0;
+    if (!unique.some(same)) unique.push(c);
   }
   const fixed = options.existenceOnly
-    ? unique.map((c) => bare(s, energy, c))
-    : unique.map((c) => describeFixedPoint(engine, s, model, energy, state(c.delta, c.omega), c.residual, omegaScale));
-  return { energy_J: energy, speed_m_per_s: v0, fixed_points: fixed, starts: cands.length, newton_converged: found.length };
+    ? unique.map((c) => bare(state(c), c.residual))
+    : unique.map((c) => describeFixedPoint(engine, s, model, moving ? null : energy, state(c), c.residual, omegaScale));
+  return { energy_conserved: !moving, energy_J: energy, speed_m_per_s: v0, fixed_points: fixed, starts: cands.length, newton_converged: found.length };
 }
 
-function bare(s: LateralScenario, energy: number, c: Candidate): LateralFixedPoint {
+function bare(st: SectionState, residual: number): LateralFixedPoint {
   return {
-    speed_m_per_s: speedAtEnergy(s, energy, c.omega),
-    heading_to_body_deg: c.delta / DEG,
-    angular_velocity_deg_per_s: c.omega / DEG,
+    speed_m_per_s: st.speed,
+    heading_to_body_deg: st.delta / DEG,
+    angular_velocity_deg_per_s: st.omega / DEG,
     stride_time_s: Number.NaN,
     stride_length_m: Number.NaN,
     peak_leg_force_N: Number.NaN,
     max_compression_m: Number.NaN,
-    mirror_residual: c.residual,
+    mirror_residual: residual,
     stride_residual: Number.NaN,
     eigenvalues: [],
     reduced_eigenvalues: [],
@@ -347,7 +388,7 @@ function describeFixedPoint(
   engine: Engine,
   s: LateralScenario,
   model: Float64Array,
-  energy: number,
+  energy: number | null,
   fp: SectionState,
   mirror: number,
   omegaScale: number,
@@ -375,17 +416,31 @@ function describeFixedPoint(
     [stepV, stepA, stepW, stepA],
     vec,
   );
-  // reduced: (delta, omega) at fixed energy, the speed following the energy
-  angleComponents = new Set([0]);
-  const atEnergy = (st: SectionState): SectionState => ({ ...st, speed: speedAtEnergy(s, energy, st.omega) });
-  const reduced = jacobianColumns(
-    engine,
-    model,
-    fp,
-    [(st, h) => atEnergy({ ...st, delta: st.delta + h }), (st, h) => atEnergy({ ...st, omega: st.omega + h })],
-    [stepA, stepW],
-    (st) => [st.delta, st.omega],
-  );
+  // reduced: (delta, omega) at fixed energy, the speed following the energy; with a moving
+  // attachment point (no energy) the map on (speed, delta, omega), heading removed
+  let reduced: number[][] | undefined;
+  if (energy !== null) {
+    angleComponents = new Set([0]);
+    const atEnergy = (st: SectionState): SectionState => ({ ...st, speed: speedAtEnergy(s, energy, st.omega) });
+    reduced = jacobianColumns(
+      engine,
+      model,
+      fp,
+      [(st, h) => atEnergy({ ...st, delta: st.delta + h }), (st, h) => atEnergy({ ...st, omega: st.omega + h })],
+      [stepA, stepW],
+      (st) => [st.delta, st.omega],
+    );
+  } else {
+    angleComponents = new Set([1]);
+    reduced = jacobianColumns(
+      engine,
+      model,
+      fp,
+      [(st, h) => ({ ...st, speed: st.speed + h }), (st, h) => ({ ...st, delta: st.delta + h }), (st, h) => ({ ...st, omega: st.omega + h })],
+      [stepV, stepA, stepW],
+      (st) => [st.speed, st.delta, st.omega],
+    );
+  }
   angleComponents = new Set([1, 3]);
   const jacobian = full ? transpose(full) : [];
   const reducedJacobian = reduced ? transpose(reduced) : [];

@@ -104,8 +104,8 @@ export function defaultTolerances(gait: GaitSummary): RecoverTolerances {
 }
 
 /** The scenario's gait: the periodic gait at its energy nearest its start, stable ones first. */
-export function scenarioGait(engine: Engine, s: LateralScenario): { gait: LateralFixedPoint; all: LateralFixedPoint[] } {
-  requireFixedAttachment(s, 'recover');
+export function scenarioGait(engine: Engine, s: LateralScenario, command = 'recover'): { gait: LateralFixedPoint; all: LateralFixedPoint[] } {
+  requireFixedAttachment(s, command);
   const map = lateralFixedPoints(engine, s);
   if (map.fixed_points.length === 0) {
     throw new InputError([
