@@ -10,6 +10,7 @@ import * as L from '../assembly/layout.js';
 import { lateralFixedPoints, minimumGaitSpeed, simulateLateral, strides } from '../src/core/analysis/lateral.js';
 import { lateralBasin } from '../src/core/analysis/lateral-basin.js';
 import { recoverOnce, recoverRows, finishRecover } from '../src/core/analysis/recover.js';
+import { recoverSlipOnce } from '../src/core/analysis/recover-slip.js';
 import { characteristicPolynomial, eigenvalues, polynomialRoots } from '../src/core/eigen.js';
 import { type Engine, loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
@@ -369,6 +370,51 @@ describe('impulse recovery', () => {
 });
 
 // ---------------------------------------------------------------------------------------------
+describe('impulse recovery of the single-leg model (a kick in flight)', () => {
+  // Seyfarth, Geyer, Günther, Blickhan 2002 (published): 80 kg, leg 1 m, 20 kN/m, attack 68 deg, the
+  // energy of a 1 m apex at 5 m/s has a stable fixed point.
+  const seyfarth = (over: Record<string, unknown> = {}) =>
+    parseScenario({
+      body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },
+      start: { apex_height_m: 1, forward_speed_m_per_s: 5 },
+      policy: { angle: { kind: 'fixed', attack_deg: 68 } },
+      strides: 10,
+      ...over,
+    });
+  it('a forward and upward kick: the energy changes by the kinetic energy of the velocity change (law), and the apexes settle on the gait of the new energy', async () => {
+    const r = await recoverSlipOnce(engine, seyfarth(), { stride: 2, fraction: 0.5, forward_m_per_s: 0.2, up_m_per_s: 0.1 });
+    const g = r.gait;
+    const tau = r.kick.time_s;
+    const vy = -9.81 * tau; // law: ballistic flight from the apex
+    // the apex the kick follows (the gait's, to the integrator's accuracy)
+    const a = r.per_apex[2];
+    expect(Math.abs(a.apex_height_m - g.apex_height_m)).toBeLessThan(1e-8);
+    const before = 80 * 9.81 * a.apex_height_m + 0.5 * 80 * a.forward_speed_m_per_s ** 2;
+    const expected = before + 0.5 * 80 * ((a.forward_speed_m_per_s + 0.2) ** 2 - a.forward_speed_m_per_s ** 2) + 0.5 * 80 * ((vy + 0.1) ** 2 - vy ** 2);
+    expect(Math.abs(r.outcome.energy_after_J - expected) / expected).toBeLessThan(1e-12);
+    expect(r.outcome.original_gait_reachable).toBe(false);
+    expect(r.outcome.survived).toBe(true);
+    expect(r.outcome.recovered).toBe(true);
+    const t = r.outcome.target_gait as NonNullable<typeof r.outcome.target_gait>;
+    const last = r.per_apex[r.per_apex.length - 1];
+    expect(Math.abs(last.apex_height_m - t.apex_height_m)).toBeLessThan(1e-6);
+    expect(Math.abs(last.forward_speed_m_per_s - t.forward_speed_m_per_s)).toBeLessThan(1e-6);
+    // the new gait keeps the new energy (law: a conservative leg)
+    const e = 80 * 9.81 * t.apex_height_m + 0.5 * 80 * t.forward_speed_m_per_s ** 2;
+    expect(Math.abs(e - expected) / expected).toBeLessThan(1e-9);
+  });
+  it('refuses a retraction schedule and a damped leg by name, and a kick moment in stance', async () => {
+    await expect(
+      recoverSlipOnce(engine, seyfarth({ policy: { angle: { kind: 'retraction', attack_at_apex_deg: 64, rate_deg_per_s: 40 } } }), { stride: 1, fraction: 0.2, forward_m_per_s: 0.1, up_m_per_s: 0 }),
+    ).rejects.toThrow(/policy.angle.kind: expected fixed for recover/);
+    await expect(
+      recoverSlipOnce(engine, seyfarth({ body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81, leg_damping_N_s_per_m: 50 } }), { stride: 1, fraction: 0.2, forward_m_per_s: 0.1, up_m_per_s: 0 }),
+    ).rejects.toThrow(/body.leg_damping_N_s_per_m: expected a conservative leg for recover/);
+    await expect(recoverSlipOnce(engine, seyfarth(), { stride: 1, seconds: 0.2, forward_m_per_s: 0.1, up_m_per_s: 0 })).rejects.toThrow(/a moment in flight/);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
 describe('basin over heading and angular-velocity errors', () => {
   it('behind the centre of mass every small error returns to the gait; ahead of it only the gait itself stays (the linearization: eigenvalue moduli below and above 1)', () => {
     const grid = { headings: { low: -2, high: 2, count: 5 }, rates: { low: -20, high: 20, count: 5 }, strides: 40 };
@@ -484,10 +530,13 @@ describe('every command on the lateral demo', () => {
     expect([j.format, j.model, j.section]).toEqual(['pronk-scan', 'lateral', 'left_touchdown']);
     expect(j.cells.map((c: { class: string }) => c.class)).toEqual(['stable', 'neutral', 'unstable']);
   });
-  it('recover refuses a single-leg scenario', async () => {
+  it('recover on a single-leg scenario takes only the sagittal kicks, and a two-leg scenario is refused', async () => {
     const r = await run(['recover', 'scenarios/demo.json', '--kick-left', '0.1']);
     expect(r.code).toBe(2);
-    expect(r.err).toMatch(/scenario model "slip": recover supports "lateral", found "slip"/);
+    expect(r.err).toMatch(/--kick-left: expected no such option for a single-leg scenario/);
+    const b = await run(['recover', 'scenarios/demo-biped.json', '--kick-up', '0.1']);
+    expect(b.code).toBe(2);
+    expect(b.err).toMatch(/scenario model "biped": recover supports "slip" and "lateral", found "biped"/);
   });
   for (const cmd of ['stepdown', 'robustness', 'deadbeat']) {
     it(`${cmd} refuses it (exit 2, the model and the commands that run it)`, async () => {

@@ -92,7 +92,7 @@ export const COMMANDS: readonly CommandEntry[] = [
   },
   {
     name: 'recover',
-    summary: 'impulse recovery of a lateral gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
+    summary: 'impulse recovery of a gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
     load: async () => (await import('./recover.js')).recoverCommand,
   },
   {

@@ -7,6 +7,8 @@ import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult, RecoverTolerances, RecoveryResult } from '../core/analysis/recover.js';
 import type { LateralScenario } from '../core/models/lateral.js';
+import type { SlipRecoveryResult } from '../core/analysis/recover-slip.js';
+import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { startProgress } from './progress.js';
@@ -20,10 +22,10 @@ const MAX_ROLLOUTS = 1_000_000;
 
 export const recoverCommand: Command = {
   name: 'recover',
-  summary: 'impulse recovery of a lateral gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
+  summary: 'impulse recovery of a gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
   usage:
-    'recover FILE [--kick-left V] [--kick-forward V] [--kick-angle DEG] [--kick-rate DEG/S] [--kick-stride N] [--kick-at F | --kick-after S] ' +
-    '[--strides-after N] [--speed-tol V] [--heading-rate-tol DEG/S] [--body-angle-tol DEG] [--rollouts R] [--seed N] [--json]',
+    'recover FILE [--kick-left V] [--kick-forward V] [--kick-up V] [--kick-angle DEG] [--kick-rate DEG/S] [--kick-stride N] [--kick-at F | --kick-after S] ' +
+    '[--strides-after N] [--speed-tol V] [--height-tol M] [--heading-rate-tol DEG/S] [--body-angle-tol DEG] [--rollouts R] [--seed N] [--json]',
   details: [
     'Runs the periodic gait of a "lateral" scenario (the one at its start energy nearest its start, stable ones first),',
     'kicks it in stride N (a velocity change in the body frame, forward and to the left, a body-angle or an',
@@ -34,12 +36,16 @@ export const recoverCommand: Command = {
     'permanent (the heading lost). With --rollouts, each kick size is drawn uniformly in [-V, V] and its moment',
     'uniformly over the stride, rollout i from stream i of --seed (common random numbers); survival and recovery come',
     'with Wilson 95 % intervals.',
+    'A single-leg scenario (fixed attack angle, conservative leg): the kick lands in flight after apex N',
+    '(--kick-forward, --kick-up; --kick-at a fraction of the time from the apex to touchdown, --kick-after',
+    'seconds after the apex), on flat ground, and recovery is judged on the apex height (--height-tol) and speed.',
   ].join('\n'),
-  arguments: [{ name: 'FILE', description: 'a scenario file with "model": "lateral"' }],
+  arguments: [{ name: 'FILE', description: 'a scenario file: "model": "lateral", or a single-leg scenario' }],
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
     'kick-left': { type: 'string', valueName: 'V', description: 'velocity change across the body axis, to the left, m/s (default 0)' },
-    'kick-forward': { type: 'string', valueName: 'V', description: 'velocity change along the body axis, m/s (default 0)' },
+    'kick-forward': { type: 'string', valueName: 'V', description: 'velocity change along the body axis (single leg: forward), m/s (default 0)' },
+    'kick-up': { type: 'string', valueName: 'V', description: 'single leg: vertical velocity change in flight, m/s (default 0)' },
     'kick-angle': { type: 'string', valueName: 'DEG', description: 'body angle change, deg (default 0)' },
     'kick-rate': { type: 'string', valueName: 'DEG/S', description: 'angular velocity change, deg/s (default 0)' },
     'kick-stride': { type: 'string', valueName: 'N', description: `stride of the kick, from 0 (default ${DEFAULT_KICK_STRIDE})` },
@@ -47,6 +53,7 @@ export const recoverCommand: Command = {
     'kick-after': { type: 'string', valueName: 'S', description: 'moment of the kick in seconds after the left touchdown (instead of --kick-at)' },
     'strides-after': { type: 'string', valueName: 'N', description: 'strides run after the kick (default 30)' },
     'speed-tol': { type: 'string', valueName: 'V', description: "speed tolerance, m/s (default 1 % of the gait's speed)" },
+    'height-tol': { type: 'string', valueName: 'M', description: 'single leg: apex height tolerance, m (default 0.1 % of the leg length)' },
     'heading-rate-tol': { type: 'string', valueName: 'DEG/S', description: 'heading rate tolerance, deg/s (default 1)' },
     'body-angle-tol': { type: 'string', valueName: 'DEG', description: 'tolerance on the body angle to the velocity, deg (default 0.5)' },
     rollouts: { type: 'string', valueName: 'R', description: 'Monte Carlo: R random kicks, the kick values their largest sizes' },
@@ -77,6 +84,8 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
   const json = values.json === true;
   const left = numberOption(values['kick-left'], '--kick-left', -1e3, 1e3, 'm/s');
   const forward = numberOption(values['kick-forward'], '--kick-forward', -1e3, 1e3, 'm/s');
+  const up = numberOption(values['kick-up'], '--kick-up', -1e3, 1e3, 'm/s');
+  const heightTol = numberOption(values['height-tol'], '--height-tol', 0, 1e4, 'm');
   const angle = numberOption(values['kick-angle'], '--kick-angle', -180, 180, 'deg');
   const rate = numberOption(values['kick-rate'], '--kick-rate', -1e5, 1e5, 'deg/s');
   const stride = integerOption(values['kick-stride'], '--kick-stride', 0, 1_000_000) ?? DEFAULT_KICK_STRIDE;
@@ -100,17 +109,50 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
       { source: SOURCE },
     );
   }
-  if (!left && !forward && !angle && !rate) {
+  if (!left && !forward && !angle && !rate && !up) {
     throw new InputError(
-      [{ path: '--kick-left', expected: 'a kick: at least one of --kick-left, --kick-forward, --kick-angle, --kick-rate not 0', found: 'none' }],
+      [{ path: '--kick-left', expected: 'a kick: at least one of --kick-left, --kick-forward, --kick-up, --kick-angle, --kick-rate not 0', found: 'none' }],
       { source: SOURCE },
     );
   }
   if (positionals[0] === undefined) {
-    throw new InputError([{ path: 'FILE', expected: 'a scenario file with "model": "lateral"', found: 'missing' }], { source: SOURCE });
+    throw new InputError([{ path: 'FILE', expected: 'a scenario file ("model": "lateral", or a single-leg scenario)', found: 'missing' }], { source: SOURCE });
   }
   const any = await anyScenarioArgument(positionals[0], io, 'recover');
-  const s = any.scenario as LateralScenario;
+  const refuse = (names: string[], kind: string, takes: string) => {
+    const given = names.filter((n) => values[n] !== undefined);
+    if (given.length) {
+      throw new InputError(
+        [{ path: `--${given[0]}`, expected: `no such option for a ${kind} scenario (it takes ${takes})`, found: describeFound(values[given[0]]) }],
+        { source: SOURCE },
+      );
+    }
+  };
+  if (any.kind !== 'lateral') {
+    refuse(['kick-left', 'kick-angle', 'kick-rate', 'heading-rate-tol', 'body-angle-tol', 'rollouts', 'seed'], 'single-leg', '--kick-forward, --kick-up, --kick-stride, --kick-at or --kick-after, --strides-after, --speed-tol, --height-tol');
+    const { loadEngine } = await import('../core/engine.js');
+    const { recoverSlipOnce } = await import('../core/analysis/recover-slip.js');
+    const engine = await loadEngine();
+    let r: SlipRecoveryResult;
+    try {
+      r = await recoverSlipOnce(
+        engine,
+        any.scenario,
+        { stride, ...(after === undefined ? { fraction: at ?? DEFAULT_KICK_AT } : { seconds: after }), forward_m_per_s: forward ?? 0, up_m_per_s: up ?? 0 },
+        {
+          stridesAfter,
+          tolerances: { ...(heightTol === undefined ? {} : { height_m: heightTol }), ...(speedTol === undefined ? {} : { speed_m_per_s: speedTol }) },
+        },
+      );
+    } catch (error) {
+      throw error instanceof InputError && error.source === undefined ? new InputError(error.issues, { source: positionals[0] }) : error;
+    }
+    if (json) io.stdout.write(jsonText('recover', { scenario: any.scenario, ...r, caution: SAFETY_CAUTION }));
+    else io.stdout.write(renderSlipRecovery(any.scenario, r));
+    return 0;
+  }
+  refuse(['kick-up', 'height-tol'], 'lateral', 'the lateral kicks and tolerances');
+  const s = any.scenario;
   const tolerances: Partial<RecoverTolerances> = {
     ...(speedTol === undefined ? {} : { speed_m_per_s: speedTol }),
     ...(rateTol === undefined ? {} : { heading_rate_deg_per_s: rateTol }),
@@ -254,6 +296,56 @@ export function renderMonteCarlo(s: LateralScenario, r: RecoverMonteCarloResult)
       ['failures', failures.length ? failures.map(([k, v]) => `${k} ${v}`).join(', ') : 'none'],
     ]),
     '',
+    ...r.notes.map((n) => wrap(n, TEXT_WIDTH)),
+    '',
+    wrap(`Caution: ${SAFETY_CAUTION}`, TEXT_WIDTH),
+    '',
+  ].join('\n');
+}
+
+export function renderSlipRecovery(s: Scenario, r: SlipRecoveryResult): string {
+  const o = r.outcome;
+  const columns: Column[] = [
+    { title: 'apex', unit: '', align: 'left' },
+    { title: 'from kick', unit: 's' },
+    { title: 'height', unit: 'm' },
+    { title: 'speed', unit: 'm/s' },
+    { title: 'within', unit: 'tolerance', align: 'left' },
+  ];
+  const rows = r.per_apex.map((p) => [
+    String(p.apex) + (p.apex === r.kick.stride ? ' kick' : ''),
+    fixed(p.time_from_kick_s, 4),
+    fixed(p.apex_height_m, 5),
+    fixed(p.forward_speed_m_per_s, 5),
+    p.within_tolerance === null ? '' : p.within_tolerance ? 'yes' : 'no',
+  ]);
+  const verdict = !o.survived
+    ? `Did not survive: ${o.reason ?? o.status}.`
+    : o.recovered
+      ? `Recovered in ${count(o.strides_to_recover ?? 0, 'stride')} (${fixed(o.time_to_recover_s, 4)} s after the kick) to the gait of the ${o.original_gait_reachable ? 'original' : 'new'} energy.`
+      : 'Survived, but the apexes did not settle within the tolerances in the strides run.';
+  const kick: string[] = [];
+  if (r.kick.forward_m_per_s) kick.push(`${plain(r.kick.forward_m_per_s)} m/s forward`);
+  if (r.kick.up_m_per_s) kick.push(`${plain(r.kick.up_m_per_s)} m/s up`);
+  return [
+    s.name ?? 'Unnamed scenario',
+    fields([
+      [
+        'gait',
+        `apex ${plain(r.gait.apex_height_m)} m at ${plain(r.gait.forward_speed_m_per_s)} m/s (slope ${fixed(r.gait.slope, 4)}), stride ${fixed(r.gait.stride_time_s * 1000, 2)} ms, flat ground`,
+      ],
+      ['kick', `${kick.join(', ')} in flight ${fixed(r.kick.time_s * 1000, 2)} ms after apex ${r.kick.stride}`],
+      ['tolerances', `apex height ${plain(r.tolerances.height_m)} m, speed ${plain(r.tolerances.speed_m_per_s)} m/s`],
+      [
+        'energy',
+        `${plain(o.energy_before_J)} J before, ${plain(o.energy_after_J)} J after` +
+          (o.target_gait ? `; the gait at that energy: apex ${plain(o.target_gait.apex_height_m)} m at ${plain(o.target_gait.forward_speed_m_per_s)} m/s` : ''),
+      ],
+    ]),
+    '',
+    table(columns, rows),
+    '',
+    wrap(verdict, TEXT_WIDTH),
     ...r.notes.map((n) => wrap(n, TEXT_WIDTH)),
     '',
     wrap(`Caution: ${SAFETY_CAUTION}`, TEXT_WIDTH),

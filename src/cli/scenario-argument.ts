@@ -16,7 +16,7 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   map: ['slip', 'biped', 'lateral'],
   scan: ['slip', 'lateral'],
   basin: ['slip', 'lateral'],
-  recover: ['lateral'],
+  recover: ['slip', 'lateral'],
 };
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
