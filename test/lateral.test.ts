@@ -5,6 +5,9 @@
 // 2.5 g, moment of inertia 2.04e-7 kg m^2, leg about 1.27 cm, stiffness about 3.5 N/m, touchdown
 // angle about 1 rad, speed about 0.2–0.3 m/s; from memory). These numbers are inputs only, never
 // check values: every check below is a law, a closed form, or a sign the paper reports.
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import * as L from '../assembly/layout.js';
 import { lateralFixedPoints, minimumGaitSpeed, simulateLateral, strides } from '../src/core/analysis/lateral.js';
@@ -529,6 +532,22 @@ describe('every command on the lateral demo', () => {
     const j = JSON.parse(r.out);
     expect([j.format, j.model, j.section]).toEqual(['pronk-scan', 'lateral', 'left_touchdown']);
     expect(j.cells.map((c: { class: string }) => c.class)).toEqual(['stable', 'neutral', 'unstable']);
+  });
+  it('recover --rollouts sharded in 2 and merged equals the one-machine run byte for byte (the shard/merge contract)', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'pronk-recover-'));
+    try {
+      const args = ['recover', demo, '--kick-left', '0.2', '--rollouts', '9', '--seed', '4', '--strides-after', '12', '--json'];
+      const one = await run(args);
+      expect(one.code).toBe(0);
+      for (const i of [1, 2]) expect((await run([...args, '--shard', `${i}/2`, '--out', join(dir, `part-${i}.json`)])).code).toBe(0);
+      const merged = await run(['merge', join(dir, 'part-2.json'), join(dir, 'part-1.json'), '--json']);
+      expect(merged.code, merged.err).toBe(0);
+      expect(merged.out).toBe(one.out);
+      const text = await run(['merge', join(dir, 'part-1.json'), join(dir, 'part-2.json')]);
+      expect(text.out).toMatch(/survived +9 of 9/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
   it('recover on a single-leg scenario takes only the sagittal kicks, and a two-leg scenario is refused', async () => {
     const r = await run(['recover', 'scenarios/demo.json', '--kick-left', '0.1']);

@@ -12,6 +12,8 @@ import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { startProgress } from './progress.js';
+import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
+import { checkOutputs, outputRequest } from './output-files.js';
 
 const SOURCE = 'pronk recover';
 const TEXT_WIDTH = 96;
@@ -25,7 +27,7 @@ export const recoverCommand: Command = {
   summary: 'impulse recovery of a gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
   usage:
     'recover FILE [--kick-left V] [--kick-forward V] [--kick-up V] [--kick-angle DEG] [--kick-rate DEG/S] [--kick-stride N] [--kick-at F | --kick-after S] ' +
-    '[--strides-after N] [--speed-tol V] [--height-tol M] [--heading-rate-tol DEG/S] [--body-angle-tol DEG] [--rollouts R] [--seed N] [--json]',
+    '[--strides-after N] [--speed-tol V] [--height-tol M] [--heading-rate-tol DEG/S] [--body-angle-tol DEG] [--rollouts R] [--seed N] [--shard I/N] [--out FILE] [--json]',
   details: [
     'Runs the periodic gait of a "lateral" scenario (the one at its start energy nearest its start, stable ones first),',
     'kicks it in stride N (a velocity change in the body frame, forward and to the left, a body-angle or an',
@@ -58,6 +60,7 @@ export const recoverCommand: Command = {
     'body-angle-tol': { type: 'string', valueName: 'DEG', description: 'tolerance on the body angle to the velocity, deg (default 0.5)' },
     rollouts: { type: 'string', valueName: 'R', description: 'Monte Carlo: R random kicks, the kick values their largest sizes' },
     seed: { type: 'string', valueName: 'N', description: `Monte Carlo seed, an integer >= 0 (default ${DEFAULT_SEED})` },
+    ...SHARD_OPTIONS,
   },
   maxPositionals: 1,
   run: runRecover,
@@ -118,6 +121,12 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
   if (positionals[0] === undefined) {
     throw new InputError([{ path: 'FILE', expected: 'a scenario file ("model": "lateral", or a single-leg scenario)', found: 'missing' }], { source: SOURCE });
   }
+  const shard = withSource(() => shardOption(values));
+  const out = withSource(() => outOption(values));
+  if (shard && rollouts === undefined) {
+    throw new InputError([{ path: '--shard', expected: 'a shard of a Monte Carlo run (with --rollouts)', found: describeFound(values.shard) }], { source: SOURCE });
+  }
+  const [outFile] = await checkOutputs([outputRequest('--out', out)], [{ path: positionals[0], what: 'the scenario' }], { source: SOURCE });
   const any = await anyScenarioArgument(positionals[0], io, 'recover');
   const refuse = (names: string[], kind: string, takes: string) => {
     const given = names.filter((n) => values[n] !== undefined);
@@ -129,7 +138,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
     }
   };
   if (any.kind !== 'lateral') {
-    refuse(['kick-left', 'kick-angle', 'kick-rate', 'heading-rate-tol', 'body-angle-tol', 'rollouts', 'seed'], 'single-leg', '--kick-forward, --kick-up, --kick-stride, --kick-at or --kick-after, --strides-after, --speed-tol, --height-tol');
+    refuse(['kick-left', 'kick-angle', 'kick-rate', 'heading-rate-tol', 'body-angle-tol', 'rollouts', 'seed', 'shard'], 'single-leg', '--kick-forward, --kick-up, --kick-stride, --kick-at or --kick-after, --strides-after, --speed-tol, --height-tol');
     const { loadEngine } = await import('../core/engine.js');
     const { recoverSlipOnce } = await import('../core/analysis/recover-slip.js');
     const engine = await loadEngine();
@@ -147,8 +156,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
     } catch (error) {
       throw error instanceof InputError && error.source === undefined ? new InputError(error.issues, { source: positionals[0] }) : error;
     }
-    if (json) io.stdout.write(jsonText('recover', { scenario: any.scenario, ...r, caution: SAFETY_CAUTION }));
-    else io.stdout.write(renderSlipRecovery(any.scenario, r));
+    await writeText(io, outFile, json ? jsonText('recover', { scenario: any.scenario, ...r, caution: SAFETY_CAUTION }) : renderSlipRecovery(any.scenario, r), 'recover');
     return 0;
   }
   refuse(['kick-up', 'height-tol'], 'lateral', 'the lateral kicks and tolerances');
@@ -171,8 +179,7 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
       rate_deg_per_s: rate ?? 0,
     };
     const r = recover.recoverOnce(engine, s, spec, { stridesAfter, tolerances });
-    if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
-    else io.stdout.write(renderRecovery(s, r));
+    await writeText(io, outFile, json ? jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER) : renderRecovery(s, r), 'recover');
     return 0;
   }
   const spec: RandomKickSpec = {
@@ -184,18 +191,38 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
     seed: seed ?? DEFAULT_SEED,
     rollouts,
   };
+  const run = { kicks: spec, strides_after: stridesAfter ?? recover.DEFAULT_STRIDES_AFTER, tolerances };
+  const range = shard ? withSource(() => shardRange(rollouts, shard)) : { start: 0, end: rollouts };
   const progress = startProgress(io, 'recover', { unit: 'rollouts' });
-  let r: RecoverMonteCarloResult;
+  let rows: ReturnType<typeof recover.recoverRows>;
   try {
-    progress.phase('kicks', rollouts);
-    const rows = recover.recoverRows(engine, s, spec, { start: 0, end: rollouts }, { stridesAfter, tolerances }, (d) => progress.update(d, rollouts));
-    r = recover.finishRecover(engine, s, spec, rows, { stridesAfter, tolerances });
+    progress.phase('kicks', range.end - range.start);
+    rows = recover.recoverRows(engine, s, spec, range, { stridesAfter: run.strides_after, tolerances }, (d) => progress.update(d, range.end - range.start));
   } finally {
     progress.done();
   }
-  if (json) io.stdout.write(jsonText('recover', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
-  else io.stdout.write(renderMonteCarlo(s, r));
+  if (shard) {
+    const partial = await makePartial({ command: 'recover', scenario: s, options: run as unknown as Record<string, unknown>, spec: shard, range, total: rollouts, rows });
+    await writePartial(io, outFile, partial);
+    return 0;
+  }
+  const r = await recover.finishRecoverRun(s, run, rows);
+  await writeText(io, outFile, json ? recoverMonteCarloJson(r) : renderMonteCarlo(s, r), 'recover');
   return 0;
+}
+
+/** The --json text of a Monte Carlo recovery (also what `pronk merge --json` prints). */
+export function recoverMonteCarloJson(r: RecoverMonteCarloResult): string {
+  return jsonText('recover', { ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
+}
+
+function withSource<T>(f: () => T): T {
+  try {
+    return f();
+  } catch (error) {
+    if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
+    throw error;
+  }
 }
 
 function describeKick(k: { forward_m_per_s: number; left_m_per_s: number; angle_deg: number; rate_deg_per_s: number }): string {

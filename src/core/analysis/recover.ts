@@ -359,6 +359,7 @@ export function randomKick(engine: Engine, spec: RandomKickSpec, i: number): Kic
 export type RecoveryRow = [survived: 0 | 1, recovered: 0 | 1, strides: number | null, time: number | null, headingLost: number | null, status: number];
 
 export interface RecoverMonteCarloResult {
+  scenario: LateralScenario;
   gait: RecoveryResult['gait'];
   kicks: RandomKickSpec;
   tolerances: RecoverTolerances;
@@ -460,6 +461,7 @@ export function finishRecover(
   for (const r of rows) if (r[0] === 0) failures[STATUS_NAMES[r[5]] ?? `status_${r[5]}`] = (failures[STATUS_NAMES[r[5]] ?? `status_${r[5]}`] ?? 0) + 1;
   const stridesRun = spec.stride + 1 + (options.stridesAfter ?? DEFAULT_STRIDES_AFTER);
   return {
+    scenario: s,
     gait: { ...g, stability: fp.stability, reduced_eigenvalue_moduli: fp.reduced_eigenvalues.map((z) => z.modulus) },
     kicks: spec,
     tolerances: tol,
@@ -481,4 +483,54 @@ export function finishRecover(
       `Kick i draws its timing and sizes from stream i of seed ${spec.seed} (common random numbers: another policy run with the same seed sees the same kicks).`,
     ],
   };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Sharding: the options that define a Monte Carlo run (every shard of one run must agree on
+// them), checked when a partial result is merged, and the finisher `pronk merge` calls.
+
+export interface RecoverRunOptions {
+  kicks: RandomKickSpec;
+  strides_after: number;
+  tolerances: Partial<RecoverTolerances>;
+}
+
+export const MAX_RECOVER_ROLLOUTS = 1_000_000;
+
+/** A run's options as stored in a partial result, checked (an InputError naming the field). */
+export function checkRecoverRunOptions(options: unknown): RecoverRunOptions {
+  const o = (options ?? {}) as Record<string, unknown>;
+  const k = (o.kicks ?? {}) as Record<string, unknown>;
+  const issues: { path: string; expected: string; found: string }[] = [];
+  const num = (v: unknown, path: string, low: number, high: number, integer = false) => {
+    if (typeof v !== 'number' || !Number.isFinite(v) || v < low || v > high || (integer && !Number.isInteger(v))) {
+      issues.push({ path, expected: `${integer ? 'an integer' : 'a number'} from ${low} to ${high}`, found: JSON.stringify(v) ?? 'missing' });
+    }
+    return v as number;
+  };
+  const kicks: RandomKickSpec = {
+    stride: num(k.stride, 'kicks.stride', 0, 1_000_000, true),
+    max_forward_m_per_s: num(k.max_forward_m_per_s, 'kicks.max_forward_m_per_s', 0, 1e3),
+    max_left_m_per_s: num(k.max_left_m_per_s, 'kicks.max_left_m_per_s', 0, 1e3),
+    max_angle_deg: num(k.max_angle_deg, 'kicks.max_angle_deg', 0, 180),
+    max_rate_deg_per_s: num(k.max_rate_deg_per_s, 'kicks.max_rate_deg_per_s', 0, 1e5),
+    seed: num(k.seed, 'kicks.seed', 0, Number.MAX_SAFE_INTEGER, true),
+    rollouts: num(k.rollouts, 'kicks.rollouts', 1, MAX_RECOVER_ROLLOUTS, true),
+  };
+  const stridesAfter = num(o.strides_after, 'strides_after', 3, 1_000_000, true);
+  const t = (o.tolerances ?? {}) as Record<string, unknown>;
+  const tolerances: Partial<RecoverTolerances> = {};
+  if (t.speed_m_per_s !== undefined) tolerances.speed_m_per_s = num(t.speed_m_per_s, 'tolerances.speed_m_per_s', 0, 1e3);
+  if (t.heading_rate_deg_per_s !== undefined) tolerances.heading_rate_deg_per_s = num(t.heading_rate_deg_per_s, 'tolerances.heading_rate_deg_per_s', 0, 1e5);
+  if (t.body_angle_deg !== undefined) tolerances.body_angle_deg = num(t.body_angle_deg, 'tolerances.body_angle_deg', 0, 180);
+  if (issues.length) throw new InputError(issues);
+  return { kicks, strides_after: stridesAfter, tolerances };
+}
+
+/** The finisher of a merged run: the same numbers a one-machine run gives. */
+export async function finishRecoverRun(scenario: LateralScenario, options: unknown, rows: readonly RecoveryRow[]): Promise<RecoverMonteCarloResult> {
+  const run = checkRecoverRunOptions(options);
+  const { loadEngine } = await import('../engine.js');
+  const engine = await loadEngine();
+  return finishRecover(engine, scenario, run.kicks, rows, { stridesAfter: run.strides_after, tolerances: run.tolerances });
 }
