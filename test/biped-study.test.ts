@@ -5,6 +5,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import * as L from '../assembly/layout.js';
+import { basinOfAttraction } from '../src/core/analysis/basin.js';
+import { stepTolerance } from '../src/core/analysis/stepdown.js';
 import { loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
 import { buildModel, startInput } from '../src/core/model.js';
@@ -58,13 +60,13 @@ describe('two-leg studies: validation', () => {
     ]);
   });
 
-  it('refuses the basin and step_down terms and the friction limit by name, with what the kind supports', () => {
+  it('refuses the friction limit by name with the limits the kind supports, and walking basin heights above the stance leg', () => {
     const issues = issuesOf(
       study({
         objective: {
           terms: [
             { kind: 'survival', terrain: 'random_heights', sigma_m: 0.004, rollouts: 40 },
-            { kind: 'basin', mode: 'energy', heights: { low_m: 0.58, high_m: 0.6, count: 3 } },
+            { kind: 'basin', mode: 'energy', heights: { low_m: 0.58, high_m: 0.61, count: 3 } },
             { kind: 'step_down' },
           ],
         },
@@ -72,10 +74,11 @@ describe('two-leg studies: validation', () => {
       }),
     );
     const byPath = Object.fromEntries(issues.map((i) => [i.path, i.message ?? i.expected]));
-    expect(byPath['objective.terms[1].kind']).toMatch(/scenario model "biped": the basin term .*supports survival, tracking/);
-    expect(byPath['objective.terms[2].kind']).toMatch(/the step_down term/);
-    expect(byPath['constraints.friction_coefficient']).toMatch(/scenario model "biped": the limit friction_coefficient .*double support/);
-    expect(issues).toHaveLength(3);
+    expect(byPath['constraints.friction_coefficient']).toMatch(
+      /scenario model "biped": the limit friction_coefficient .*double support.*; it supports max_leg_force_N, .*max_vertical_force_N/,
+    );
+    expect(byPath['objective.terms[1].heights.high_m']).toMatch(/at most the left stance leg's rest length \(0.6 m\)/);
+    expect(issues).toHaveLength(2);
   });
 
   it('refuses max_vertical_force_N and leg paths on a single-leg scenario', () => {
@@ -123,6 +126,52 @@ describe('two-leg studies: model mismatch per leg', () => {
     // and the change matters (a different walk from the nominal robot's)
     expect(run(buildModel(base))[L.R_NEXT_APEX_HEIGHT + L.R_SIZE]).not.toBe(byRobot[L.R_NEXT_APEX_HEIGHT + L.R_SIZE]);
   });
+});
+
+describe('two-leg studies: basin and step_down terms', () => {
+  const inProcess = async (req: Parameters<Awaited<ReturnType<typeof loadEngine>>['runBatch']>[0]) => (await loadEngine()).runBatch(req);
+
+  it('basin equals `pronk basin` on the two-leg walker (grid and energy modes)', async () => {
+    const engine = await loadEngine();
+    const grid = { heights: { low_m: 0.585, high_m: 0.598, count: 5 }, speeds: { low_m_per_s: 0.8, high_m_per_s: 1.05, count: 4 }, strides: 60 };
+    const energy = { heights: { low_m: 0.57, high_m: 0.6, count: 12 }, strides: 60, height_tolerance_m: 1e-3, speed_tolerance_m_per_s: 1e-3 };
+    const s = parseStudy(study({ objective: { terms: [{ kind: 'basin', mode: 'grid', ...grid }, { kind: 'basin', mode: 'energy', weight: 2, ...energy }] } }));
+    const evaluator = new StudyEvaluator(s, engine);
+    const e = evaluator.evaluate([71]);
+    const scenario = evaluator.scenarioAt([71]);
+    const control = { runBatch: inProcess };
+    const axis = (a: { low_m?: number; high_m?: number; low_m_per_s?: number; high_m_per_s?: number; count: number }) => ({
+      low: (a.low_m ?? a.low_m_per_s)!,
+      high: (a.high_m ?? a.high_m_per_s)!,
+      count: a.count,
+    });
+    const g = await basinOfAttraction(scenario, { heights: axis(grid.heights), speeds: axis(grid.speeds), strides: 60 }, control);
+    const en = await basinOfAttraction(
+      scenario,
+      { heights: axis(energy.heights), energy: true, strides: 60, heightTolerance_m: 1e-3, speedTolerance_m_per_s: 1e-3 },
+      control,
+    );
+    expect(e.terms[0].score).toBe(g.attracted_fraction);
+    expect(e.terms[1].score).toBe(en.attracted_fraction);
+    // the demo walker's fixed point is stable (|lambda| 0.90, scenarios/demo-biped.json): some cells settle
+    expect(en.attracted_fraction).toBeGreaterThan(0);
+    expect(g.attracted_fraction).toBeGreaterThan(0);
+    expect(e.objective).toBeCloseTo(g.attracted_fraction + 2 * en.attracted_fraction, 12);
+  }, 60_000);
+
+  it('step_down equals `pronk stepdown` on the two-leg walker, over the landing leg\'s length', async () => {
+    const engine = await loadEngine();
+    const s = parseStudy(study({ objective: { terms: [{ kind: 'step_down', strides_after: 10 }] } }));
+    const evaluator = new StudyEvaluator(s, engine);
+    for (const x of [[71], [73]]) {
+      const e = evaluator.evaluate(x);
+      const reference = await stepTolerance(evaluator.scenarioAt(x), { after: 10 });
+      expect(e.terms[0].details).toMatchObject({ max_step_down_m: reference.max_step_down_m, survives_flat: reference.survives_flat });
+      expect(e.terms[0].score).toBe(reference.max_step_down_m / 0.6);
+      // the walker survives some drop at its own angle, so the comparison means something
+      if (x[0] === 71) expect(reference.max_step_down_m).toBeGreaterThan(0);
+    }
+  }, 60_000);
 });
 
 describe('two-leg studies: evaluation', () => {

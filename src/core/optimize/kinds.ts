@@ -5,8 +5,11 @@
 // Two-leg model ("model": "biped"), its section the single-support apex (walking) or the flight
 // apex (running):
 //  - terms: survival and tracking (the section state's height and forward speed against the
-//    target, taken at every section the rollouts reach). basin and step_down probe flight-apex
-//    states of the single-leg model and are refused by name.
+//    target, taken at every section the rollouts reach); basin (as pronk basin on two legs: cells
+//    are section states with the start's offset and stance leg, in energy mode at the start
+//    section's energy with the stance spring's energy; walking heights at most the stance leg's
+//    rest length); step_down (as pronk stepdown: from the start section, the drop met by the leg
+//    that lands first, over that leg's rest length).
 //  - limits: max_leg_force_N bounds each leg's peak force (the kernel's maximum over both legs);
 //    max_compression_fraction each leg's largest compression over its rest length (measured as the
 //    larger compression of the two over the shorter rest length of that robot: exact for equal
@@ -39,7 +42,7 @@ export function parameterRoots(scenario: Scenario): readonly string[] {
 
 /** Term kinds a model kind's search supports. */
 export function supportedTerms(kind: ModelKind): readonly string[] {
-  return kind === 'biped' ? ['survival', 'tracking'] : ['survival', 'tracking', 'basin', 'step_down'];
+  return kind === 'slip' || kind === 'biped' ? ['survival', 'tracking', 'basin', 'step_down'] : [];
 }
 
 const KIND_NAMES: Record<ModelKind, string> = { slip: 'the single-leg model', biped: 'the two-leg model' };
@@ -60,7 +63,11 @@ const LIMIT_REASONS: Record<string, string> = {
  * Issues for objective terms and limits that do not apply to the scenario's kind, each naming the
  * field, the kind and what the kind supports.
  */
-export function kindIssues(scenario: Scenario, terms: readonly { kind: string }[], constraints: Record<string, unknown>): InputIssue[] {
+export function kindIssues(
+  scenario: Scenario,
+  terms: readonly { kind: string; heights?: { high_m: number } }[],
+  constraints: Record<string, unknown>,
+): InputIssue[] {
   const kind = kindOf(scenario);
   const issues: InputIssue[] = [];
   const terms_ = supportedTerms(kind);
@@ -73,6 +80,18 @@ export function kindIssues(scenario: Scenario, terms: readonly { kind: string }[
       message: `scenario model "${kind}": the ${term.kind} term is not available for ${KIND_NAMES[kind]} (it supports ${terms_.join(', ')}), found "${term.kind}"`,
     });
   });
+  if (isBiped(scenario) && scenario.start.gait === 'walking') {
+    // a single-support apex lies at most the stance leg's rest length high (the scenario's own start rule)
+    const stance = legParameters(scenario)[scenario.start.leg === 'right' ? 1 : 0].length_m;
+    terms.forEach((term, i) => {
+      if (term.kind !== 'basin' || !term.heights || term.heights.high_m <= stance) return;
+      issues.push({
+        path: `objective.terms[${i}].heights.high_m`,
+        expected: `a single-support apex height at most the ${scenario.start.leg} stance leg's rest length (${stance} m) for a walking start`,
+        found: String(term.heights.high_m),
+      });
+    });
+  }
   const limits = supportedLimits(kind);
   for (const name of Object.keys(constraints)) {
     if (constraints[name] === undefined || limits.includes(name)) continue;

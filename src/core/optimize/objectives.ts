@@ -27,8 +27,8 @@ import { rolloutInput, type Engine, type ModelBlock } from '../engine.js';
 /** What an evaluator needs of an engine: its batches (a host may split them over threads). */
 export type BatchEngine = Pick<Engine, 'runBatch'>;
 import { InputError, describeFound } from '../errors.js';
-import { buildModel, DEG, STATUS_NAMES, startInput } from '../model.js';
-import { isBiped } from '../models/biped.js';
+import { buildModel, DEG, landingLegLength, STATUS_NAMES, startInput } from '../model.js';
+import { isBiped, sectionEnergy, sectionInput, speedAtEnergy, startState } from '../models/biped.js';
 import { bipedRobotBlock, factorsPerRobot, shorterLegM, stiffnessScales } from './kinds.js';
 import { parseScenario, type Scenario } from '../scenario.js';
 import { Z_95, newcombeDifferenceInterval, wilsonInterval } from '../stats.js';
@@ -671,6 +671,16 @@ export class StudyEvaluator {
       const speeds = axisValues(term.speeds!.low_m_per_s, term.speeds!.high_m_per_s, term.speeds!.count);
       for (const height of heights) for (const speed of speeds) starts.push({ height, speed });
       cells = starts.length;
+    } else if (isBiped(scenario)) {
+      // two legs: the speed the section state (height, the start's offset and leg) has at the
+      // start section's energy, springs included (as pronk basin)
+      const st = startState(scenario);
+      const energy = sectionEnergy(scenario, st);
+      cells = heights.length;
+      for (const height of heights) {
+        const speed = speedAtEnergy(scenario, energy, { gait: st.gait, height_m: height, offset_m: st.offset_m, leg: st.leg });
+        if (Number.isFinite(speed)) starts.push({ height, speed }); // a cell without speed is not attracted
+      }
     } else {
       // at the start's energy: v = sqrt(2(E − m g y)/m) = sqrt(v0² + 2 g (y0 − y))
       const g = scenario.body.gravity_m_per_s2;
@@ -684,7 +694,15 @@ export class StudyEvaluator {
     let converged = 0;
     if (starts.length > 0) {
       const inputs = new Float64Array(starts.length * L.I_SIZE);
-      starts.forEach((cell, i) => inputs.set(rolloutInput(cell.height, cell.speed), i * L.I_SIZE));
+      const st = isBiped(scenario) ? startState(scenario) : null;
+      starts.forEach((cell, i) =>
+        inputs.set(
+          st // two legs: the cell's section state with the start's offset and leg (as pronk basin)
+            ? sectionInput({ ...st, height_m: cell.height, speed_m_per_s: cell.speed })
+            : rolloutInput(cell.height, cell.speed),
+          i * L.I_SIZE,
+        ),
+      );
       const s = this.engine.runBatch({ model: flatModel(scenario), inputs, strides: term.strides }).summaries;
       for (let i = 0; i < starts.length; i++) {
         const at = i * L.S_SIZE;
@@ -705,7 +723,7 @@ export class StudyEvaluator {
   // (the definition of `pronk stepdown`): a coarse scan in one call, then bisection.
   private stepDown(scenario: Scenario, term: StepDownTerm): TermResult {
     const base = buildModel(scenario);
-    const leg = scenario.body.leg_length_m;
+    const leg = landingLegLength(scenario);
     const resolution = term.resolution_m;
     const gridSteps = Math.max(1, Math.round(term.grid_m / resolution));
     const limit = Math.round(leg / resolution);
@@ -717,7 +735,7 @@ export class StudyEvaluator {
       const todo = [...new Set(ks)].filter((k) => !cache.has(k));
       if (todo.length === 0) return;
       const inputs = new Float64Array(todo.length * L.I_SIZE);
-      todo.forEach((_, i) => inputs.set(rolloutInput(y0, v0, 0, i), i * L.I_SIZE));
+      todo.forEach((_, i) => inputs.set(startInput(scenario, 0, i), i * L.I_SIZE)); // the kind's start section
       const s = this.engine.runBatch({ model: todo.map((k) => stepModel(base, -size(k))), inputs, strides }).summaries;
       todo.forEach((k, i) => cache.set(k, s[i * L.S_SIZE + L.S_STATUS] === L.STATUS_OK));
     };

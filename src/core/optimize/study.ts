@@ -74,6 +74,7 @@ import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
 import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { landingLegLength } from '../model.js';
 import { requireKind } from '../models/kind.js';
 import { OPTIMIZE_KINDS, kindIssues, parameterRoots } from './kinds.js';
 
@@ -701,7 +702,7 @@ function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: I
       return { ...term, speeds: term.mode === 'grid' ? (speeds ?? null) : null };
     }
     case 'step_down': {
-      const leg = scenario.body.leg_length_m;
+      const leg = landingLegLength(scenario);
       const finest = leg / 1e6;
       if (!(term.resolution_m >= finest && term.resolution_m <= leg / 10)) {
         issues.push({ path: at('resolution_m'), expected: `a step size from ${finest} to ${leg / 10} m (leg length / 1e6 to leg length / 10)`, found: describeFound(term.resolution_m) });
