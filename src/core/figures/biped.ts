@@ -380,8 +380,10 @@ export interface BipedMapFigureOptions {
 export function bipedMapFigure(result: BipedMapResult, options: BipedMapFigureOptions = {}): FigureOption {
   const frame = frameOf(options.frame);
   const pts = result.scan.filter((p) => p.next_height_m !== null).map((p) => [p.height_m, p.next_height_m as number]);
-  const lo = result.domain.height_low_m;
-  const hi = result.domain.height_high_m;
+  // the height axis on round numbers around the map's domain
+  const hStep = niceStep(result.domain.height_high_m - result.domain.height_low_m || 1);
+  const lo = Math.floor(result.domain.height_low_m / hStep) * hStep;
+  const hi = Math.ceil(result.domain.height_high_m / hStep) * hStep;
   const stair: number[][] = [];
   for (let k = 0; k + 1 < result.staircase.length; k++) {
     const a = result.staircase[k].height_m;
@@ -397,7 +399,7 @@ export function bipedMapFigure(result: BipedMapResult, options: BipedMapFigureOp
   });
   let reach = 1.1;
   for (const f of result.fixed_points) for (const e of f.eigenvalues) reach = Math.max(reach, Math.abs(e.re) * 1.1, Math.abs(e.im) * 1.1);
-  reach = Math.ceil(reach * 10) / 10;
+  reach = Math.ceil(reach * 2) / 2; // on a 0.5 grid, the unit circle inside
   const circle = Array.from({ length: 121 }, (_, i) => [Math.cos((2 * Math.PI * i) / 120), Math.sin((2 * Math.PI * i) / 120)]);
   const marker = (id: string, name: string, data: number[][], symbol: string, filled: boolean, color: string, grid: number): ScatterSeriesOption => ({
     id,
@@ -415,12 +417,12 @@ export function bipedMapFigure(result: BipedMapResult, options: BipedMapFigureOp
     { id: 'diagonal', name: 'diagonal', type: 'line', xAxisIndex: 0, yAxisIndex: 0, data: [[lo, lo], [hi, hi]], symbol: 'none', silent: true, lineStyle: { width: 1.5, type: 'dotted', color: PALETTE.muted }, itemStyle: { color: PALETTE.muted } },
     { id: 'map', name: 'map along offset 0', type: 'line', xAxisIndex: 0, yAxisIndex: 0, data: pts, symbol: 'circle', symbolSize: 4, lineStyle: { width: 2.5, color: PALETTE.deepBlue }, itemStyle: { color: PALETTE.deepBlue } },
     { id: 'staircase', name: 'staircase from the start', type: 'line', xAxisIndex: 0, yAxisIndex: 0, data: stair, symbol: 'none', lineStyle: { width: 1.5, color: PALETTE.amber }, itemStyle: { color: PALETTE.amber } },
-    marker('fixed-stable', '● stable fixed point', stable.map((f) => [f.height_m, f.height_m]), 'circle', true, PALETTE.deepBlue, 0),
-    marker('fixed-unstable', '○ unstable fixed point', unstable.map((f) => [f.height_m, f.height_m]), 'circle', false, PALETTE.brick, 0),
+    marker('fixed-stable', 'stable fixed point (filled)', stable.map((f) => [f.height_m, f.height_m]), 'circle', true, PALETTE.deepBlue, 0),
+    marker('fixed-unstable', 'unstable fixed point (hollow)', unstable.map((f) => [f.height_m, f.height_m]), 'circle', false, PALETTE.brick, 0),
     { id: 'unit-circle', name: 'unit circle |λ| = 1', type: 'line', xAxisIndex: 1, yAxisIndex: 1, data: circle, symbol: 'none', silent: true, lineStyle: { width: 1.5, color: PALETTE.ink }, itemStyle: { color: PALETTE.ink } },
-    marker('eig-stable', '● eigenvalue of a stable point', eig(stable), 'circle', true, PALETTE.deepBlue, 1),
-    marker('eig-unstable', '○ eigenvalue of an unstable point', eig(unstable), 'circle', false, PALETTE.brick, 1),
-    { ...marker('eig-energy', '✕ energy eigenvalue (full map)', energy, 'path://M0,0L10,10M10,0L0,10', false, PALETTE.ink, 1), itemStyle: { color: PALETTE.ink, borderColor: PALETTE.ink, borderWidth: 2.5 } },
+    marker('eig-stable', 'eigenvalue, stable point (filled)', eig(stable), 'circle', true, PALETTE.deepBlue, 1),
+    marker('eig-unstable', 'eigenvalue, unstable point (hollow)', eig(unstable), 'circle', false, PALETTE.brick, 1),
+    { ...marker('eig-energy', 'energy eigenvalue of the full map (cross)', energy, 'path://M0,0L10,10M10,0L0,10', false, PALETTE.ink, 1), itemStyle: { color: PALETTE.ink, borderColor: PALETTE.ink, borderWidth: 2.5 } },
   ];
   const n = result.fixed_points.length;
   const subtitle =
