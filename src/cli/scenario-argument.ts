@@ -12,6 +12,10 @@ export const DEMO_SOURCE = 'scenarios/demo.json';
 export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   simulate: ['slip', 'biped'],
   map: ['slip', 'biped'],
+  robustness: ['slip', 'biped'],
+  stepdown: ['slip', 'biped'],
+  scan: ['slip', 'biped'],
+  basin: ['slip', 'biped'],
 };
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
