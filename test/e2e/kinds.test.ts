@@ -69,10 +69,10 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
   });
 
   it('disables the views a two-leg scenario does not run, with the reason', async () => {
-    expect(await page.locator('#tab-basin').getAttribute('aria-disabled')).toBe('true');
-    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not defined for the two-leg model/);
-    await page.locator('#tab-basin').click({ force: true }); // a mouse click on the disabled tab shows its reason
-    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The basin: not defined for the two-leg model yet/);
+    expect(await page.locator('#tab-optimize').getAttribute('aria-disabled')).toBe('true');
+    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not defined for the two-leg model/);
+    await page.locator('#tab-optimize').click({ force: true }); // a mouse click on the disabled tab shows its reason
+    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not defined for the two-leg model yet/);
     expect(await page.locator('#tab-map').getAttribute('aria-disabled')).toBeNull();
   });
 
@@ -110,6 +110,29 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await page.waitForTimeout(300);
     await t.shot('biped-stride');
   });
+
+  it('runs Monte Carlo and the basin on the walker (the core analyses of the two-leg model)', async () => {
+    await t.view('montecarlo');
+    const inPanel = async (label: string, value: string) => {
+      const f = page.locator('[role=tabpanel]').getByLabel(label, { exact: true });
+      await f.fill(value);
+      await f.press('Tab');
+    };
+    await inPanel('Rollouts', '40');
+    await inPanel('σ', '0.002');
+    await page.getByTestId('start-montecarlo').click();
+    await expect.poll(() => page.getByTestId('survival').textContent(), { timeout: 60_000 }).toMatch(/^\d+ \/ 40 /);
+    await t.shot('biped-montecarlo');
+    await t.view('basin');
+    // the walker's own axes (core/analysis/basin.ts defaultBasinAxes): heights up to the stance leg's length
+    expect(Number(await page.locator('[role=tabpanel]').getByLabel('Heights to', { exact: true }).inputValue())).toBeLessThanOrEqual(0.6);
+    await inPanel('Height points', '21');
+    await inPanel('Speed points', '21');
+    await page.getByTestId('start-basin').click();
+    await expect.poll(async () => (await t.option('figure-basin').catch(() => null)) !== null, { timeout: 120_000 }).toBe(true);
+    await expect.poll(current, { timeout: 120_000 }).toBe('true');
+    await t.shot('biped-basin');
+  }, 240_000);
 
   it('switches the model kind after asking, and back with undo', async () => {
     await page.getByLabel('Model', { exact: true }).selectOption('lateral');

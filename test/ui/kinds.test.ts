@@ -121,7 +121,8 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('slip', 'scan')).toBeNull();
     expect(viewUnsupported('biped', 'map')).toBeNull();
     expect(viewUnsupported('biped', 'stride')).toBeNull();
-    expect(viewUnsupported('biped', 'basin')).toMatch(/^the basin: not defined for the two-leg model yet/);
+    expect(viewUnsupported('biped', 'basin')).toBeNull();
+    expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not defined for the two-leg model yet/);
     expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not defined for the lateral model/);
     expect(viewUnsupported('slip', 'recover')).toMatch(/lateral model only/);
   });
@@ -131,9 +132,9 @@ describe('what each kind runs', () => {
     wb.loadScenarioDraft(structuredClone(demoBiped));
     const s = parseScenario(demoBiped);
     wb.lastValid = { scenario: s, key: 'biped', at: 0 };
-    await wb.runBasin();
-    expect(wb.results.basin).toBeUndefined();
-    expect(wb.notices.at(-1)?.text).toMatch(/^The basin: not defined for the two-leg model/);
+    await wb.runOptimization();
+    expect(wb.results.optimization).toBeUndefined();
+    expect(wb.notices.at(-1)?.text).toMatch(/^The optimizer: not defined for the two-leg model/);
   });
 
   it('carries shared numbers over a switch and lists what a switch loses', () => {

@@ -24,7 +24,7 @@ export function draftKind(draft: unknown): DraftKind {
 /** The views each kind runs; the others are disabled with the reason below. */
 const SUPPORTED: Record<DraftKind, readonly ViewName[]> = {
   slip: ['map', 'stride', 'scan', 'basin', 'montecarlo', 'optimize', 'compare'],
-  biped: ['map', 'stride'],
+  biped: ['map', 'stride', 'scan', 'basin', 'montecarlo'],
   lateral: ['map', 'stride', 'recover'],
 };
 
@@ -44,11 +44,6 @@ export function viewUnsupported(kind: DraftKind, view: ViewName): string | null 
   if (SUPPORTED[kind].includes(view)) return null;
   if (view === 'recover') return `${VIEW_WORDS[view]}: defined for the lateral model only (load the six-legged runner)`;
   return `${VIEW_WORDS[view]}: not defined for the ${KIND_NAMES[kind]} model yet (it runs ${SUPPORTED[kind].map((v) => VIEW_WORDS[v]).join(', ')})`;
-}
-
-/** The step tolerance (part of the automatic analyses) runs for the single-leg model only. */
-export function stepdownSupported(kind: DraftKind): boolean {
-  return kind === 'slip';
 }
 
 type Json = Record<string, unknown>;

@@ -176,8 +176,7 @@ export function demoScenarioDraft(): Json {
 }
 
 export function defaultSettings(scenario: Scenario): Settings {
-  // the basin's axes are the single-leg apex's; another kind keeps the single-leg demo's settings
-  if (scenario.model !== undefined && scenario.model !== 'slip') return defaultSettings(parseScenario(demoScenarioJson));
+  // (the two-leg model's basin axes are its section's: core/analysis/basin.ts)
   const axes = defaultBasinAxes(scenario, false);
   const round = (x: number) => Number(x.toPrecision(4));
   const angle = scenario.policy.angle;
@@ -512,7 +511,8 @@ export class Workbench {
       this.scenarioDraft = clone(demo.scenario) as Json;
       if (name === 'slip') this.studyDraft = demoStudyDraft();
     });
-    if (name === 'slip') this.settings = defaultSettings(parseScenario(demoScenarioJson));
+    // the views' settings (basin and scan axes, Monte Carlo strides) follow the demo's robot
+    this.settings = defaultSettings(parseScenario(demo.scenario));
     if (this.view !== 'map' && this.view !== 'stride') this.view = 'stride';
     this.markSaved();
   }
@@ -681,6 +681,8 @@ export class Workbench {
       this.scenarioDraft = next;
       if (orphaned.length) this.studyDraft.free_parameters = clone(free.filter((_, i) => !dropped.has(i)));
     });
+    const valid = checkScenario(next).value;
+    if (valid) this.settings = defaultSettings(valid);
     return true;
   }
 
@@ -823,13 +825,15 @@ export class Workbench {
       progress(0, 2, 'section map');
       const mapOk = Number.isInteger(o.samples) && o.samples >= 2 && o.samples <= 5000 && Number.isInteger(o.iterations) && o.iterations >= 0 && o.iterations <= 1000;
       const mapOptions = { samples: Math.min(o.samples, BIPED_MAP_SAMPLES), iterations: o.iterations };
-      const [map, trace] = await Promise.all([
+      const [map, trace, stepdown] = await Promise.all([
         mapOk ? runBipedMap(this.pool, scenario, mapOptions, { signal }) : Promise.resolve(undefined),
         o.interval > 0 && o.interval <= 0.1 ? runBipedTrace(this.pool, scenario, { strides: scenario.strides, interval_s: o.interval }, { signal }) : Promise.resolve(undefined),
+        runStepdown(this.pool, scenario, { signal }),
       ]);
       progress(2, 2);
       if (map) this.keep('bipedMap', this.stamp(map, o.started, mapOptions, key));
       if (trace) this.keep('bipedTrace', this.stamp(trace, o.started, { interval_s: o.interval }, key));
+      this.keep('stepdown', this.stamp(stepdown, o.started, undefined, key));
     });
   }
 
