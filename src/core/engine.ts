@@ -101,11 +101,16 @@ async function instantiate(): Promise<KernelExports> {
 }
 
 const BYTES = 8;
+/** Largest allocation the 32-bit address space holds, bytes. */
+const MAX_ALLOC_BYTES = 2 ** 32 - 2 ** 16;
 
 export class Engine {
   constructor(readonly kernel: KernelExports) {}
 
   private alloc(count: number): number {
+    // the kernel takes a 32-bit byte count: a larger one would wrap to a small allocation that the
+    // kernel then writes past
+    if (!(count * BYTES <= MAX_ALLOC_BYTES)) throw new EngineError(`out of WASM memory allocating ${count} values (more than 4 GiB)`);
     const p = this.kernel.arenaAlloc(count * BYTES) >>> 0;
     if (p === 0) throw new EngineError(`out of WASM memory allocating ${count} values`);
     return p;

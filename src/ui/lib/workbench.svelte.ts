@@ -19,6 +19,7 @@ import type { OptimizationResult } from '../../core/optimize/search.js';
 import { parseStudy, type Study } from '../../core/optimize/study.js';
 import { canonicalJson } from '../../core/version.js';
 import { parseScenario, type Scenario } from '../../core/scenario.js';
+import { requireKind } from '../../core/models/kind.js';
 import type { SimulationResult } from '../../core/simulate.js';
 import { EnginePool, JobCancelled, WorkerLost, type PoolEvent } from '../../worker/browser-pool.js';
 import type { BrowserSearchProgress } from '../../worker/browser-optimize.js';
@@ -204,7 +205,10 @@ export function defaultSettings(scenario: Scenario): Settings {
 
 export function checkScenario(draft: unknown): Check<Scenario> {
   try {
-    return { value: parseScenario(draft), issues: [] };
+    const value = parseScenario(draft);
+    // the workbench's views are the single-leg model's: another kind is refused by name
+    requireKind(value, 'the workbench', ['slip']);
+    return { value, issues: [] };
   } catch (error) {
     if (error instanceof InputError) return { value: null, issues: error.issues };
     return { value: null, issues: [{ path: '', expected: 'a scenario', found: String(error) }] };
