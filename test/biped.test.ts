@@ -1,5 +1,6 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
+import { readFileSync } from 'node:fs';
 import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
@@ -324,8 +325,68 @@ describe('pronk with a two-leg scenario', () => {
     const table = await pronk(['map', 'scenarios/demo-biped.json']);
     expect(table.stdout).toContain('Fixed points (');
   });
+  it('robustness and stepdown run the demo walker against its section state (header single_support_apex)', async () => {
+    const mc = await pronk(['robustness', 'scenarios/demo-biped.json', '--sigma', '0.002', '--rollouts', '40', '--strides', '10', '--json']);
+    expect(mc.code, mc.stderr).toBe(0);
+    const r = JSON.parse(mc.stdout);
+    expect(r).toMatchObject({ format: 'pronk-robustness', model: 'biped', section: 'single_support_apex', rollouts: 40 });
+    expect(r.start).toMatchObject({ gait: 'walking', leg: 'left' });
+    expect(r.failures).toHaveProperty('gait_changed'); // the two-leg statuses are counted too
+    expect(r.survived + Object.values(r.failures as Record<string, number>).reduce((a, b) => a + b, 0)).toBe(40);
+    const step = await pronk(['stepdown', 'scenarios/demo-biped.json', '--json']);
+    expect(step.code, step.stderr).toBe(0);
+    const d = JSON.parse(step.stdout);
+    expect(d).toMatchObject({ format: 'pronk-stepdown', model: 'biped', section: 'single_support_apex' });
+    expect(d.max_step_down_m).toBeGreaterThanOrEqual(0.004); // found: 5 mm drop, 7 mm rise (1 mm resolution)
+    expect(d.survives_flat).toBe(true);
+  });
+  it('scan classifies each cell by all eigenvalues of its section map; two shards merge to the one-machine result', async () => {
+    const run = await pronk([
+      'scan', 'scenarios/demo-biped.json', '--x', 'policy.angle.attack_deg:68:74:4', '--y', 'body.leg_stiffness_N_per_m:9000:14000:3', '--samples', '31', '--json',
+    ]);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-scan', model: 'biped', section: 'single_support_apex' });
+    expect(r.counts.stable).toBeGreaterThan(0); // found: 8 stable, 4 unstable of 12
+    for (const c of r.cells) {
+      if (c.class === 'stable') expect(c.stable_spectral_radius).toBeLessThan(1);
+      for (const f of c.fixed_points) expect(f.stable).toBe(f.spectral_radius < 1);
+    }
+    const { scan, scanShard, finishScan } = await import('../src/core/analysis/scan.js');
+    const base = parseScenario(JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8')));
+    const options = { x: { path: 'policy.angle.attack_deg', lo: 70, hi: 72, n: 2 }, y: { path: 'body.leg_stiffness_N_per_m', lo: 11000, hi: 12000, n: 2 }, samples: 21 };
+    const whole = await scan(base, options);
+    const a = await scanShard(base, options, { index: 1, count: 2 });
+    const b = await scanShard(base, options, { index: 2, count: 2 });
+    expect(JSON.stringify(await finishScan(a.scenario, a.options, [...a.rows, ...b.rows]))).toBe(JSON.stringify(whole));
+  });
+  it('basin in energy mode: the converged cells settle on the fixed point the map finds', async () => {
+    const run = await pronk(['basin', 'scenarios/demo-biped.json', '--energy', '--workers', '1', '--json']);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-basin', model: 'biped', section: 'single_support_apex', mode: 'energy' });
+    expect(r.counts.converged).toBeGreaterThan(0);
+    const map = JSON.parse((await pronk(['map', 'scenarios/demo-biped.json', '--json'])).stdout);
+    const fp = map.fixed_points.find((f: { stable: boolean }) => f.stable);
+    // the basin's convergence tolerance is 1e-4 m between the last two sections
+    expect(Math.abs(r.fixed_points[0].apex_height_m - fp.height_m)).toBeLessThan(1e-3);
+    expect(Math.abs(r.fixed_points[0].forward_speed_m_per_s - fp.speed_m_per_s)).toBeLessThan(1e-2);
+  });
+  it('optimize refuses a two-leg scenario in its study by name', async () => {
+    const { parseStudy } = await import('../src/core/optimize/study.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    expect(() =>
+      parseStudy({
+        scenario,
+        free_parameters: [{ path: 'policy.angle.attack_deg', lower: 65, upper: 75 }],
+        objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.002, rollouts: 10 }] },
+        seed: 1,
+        holdout: { seed: 2, rollouts: 10 },
+      }),
+    ).toThrow(/optimize supports "slip", found "biped"/);
+  });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['scan', 'basin', 'stepdown', 'robustness', 'deadbeat']) {
+    for (const command of ['deadbeat']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']

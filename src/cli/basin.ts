@@ -4,7 +4,7 @@
 import { anyScenarioArgument } from './scenario-argument.js';
 import type { BasinOptions, BasinResult, BasinRunOptions, GridAxis } from '../core/analysis/basin.js';
 import { InputError, describeFound } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
@@ -139,14 +139,14 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
     return 0;
   }
   const result = await core.finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
-  await writeText(io, outFile, json ? basinJson(result) : renderBasin(scenario, result), 'basin');
+  await writeText(io, outFile, json ? basinJson(result, scenario) : renderBasin(scenario, result), 'basin');
   if (plotFile !== undefined) await writePlotFile(io, 'basin', plotFile, result);
   return 0;
 }
 
 /** The --json text of a basin result (also what `pronk merge --json` prints). */
-export function basinJson(result: BasinResult): string {
-  return jsonText('basin', result);
+export function basinJson(result: BasinResult, scenario: Scenario): string {
+  return jsonText('basin', result, modelHeader(scenario));
 }
 
 // The core names its options by their API names; on the command line they are the flags.

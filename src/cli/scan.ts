@@ -5,7 +5,7 @@
 import { anyScenarioArgument } from './scenario-argument.js';
 import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
 import { InputError, UsageError } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
 import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
@@ -103,7 +103,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
     return 0;
   }
   const result = await withSourceAsync(() => core.scan(scenario, options, run)).finally(progress.done);
-  await writeText(io, outFile, json ? scanJson(result) : renderScan(scenario, result), 'scan');
+  await writeText(io, outFile, json ? scanJson(result, scenario) : renderScan(scenario, result), 'scan');
   if (plotFile !== undefined) await withSourceAsync(() => writePlotFile(io, 'scan', plotFile, result));
   return 0;
 }
@@ -127,8 +127,8 @@ async function withSourceAsync<T>(f: () => Promise<T>): Promise<T> {
 }
 
 /** The --json text of a scan result (also what `pronk merge --json` prints). */
-export function scanJson(result: ScanResult): string {
-  return jsonText('scan', result);
+export function scanJson(result: ScanResult, scenario: Scenario): string {
+  return jsonText('scan', result, modelHeader(scenario));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -176,7 +176,11 @@ export function renderScan(scenario: Scenario, result: ScanResult): string {
   if (stable.length) {
     lines.push('', 'Stable cells (x, y: fixed point height, slope):');
     for (const c of stable.slice(0, MAX_LISTED)) {
-      lines.push(`  ${plain(c.x)}, ${plain(c.y)}: ${fixed(c.stable_apex_height_m, 6)} m, slope ${fixed(c.stable_slope, 4)}`);
+      const measure =
+        c.stable_slope === null && c.stable_spectral_radius != null
+          ? `largest |eigenvalue| ${fixed(c.stable_spectral_radius, 4)}`
+          : `slope ${fixed(c.stable_slope, 4)}`;
+      lines.push(`  ${plain(c.x)}, ${plain(c.y)}: ${fixed(c.stable_apex_height_m, 6)} m, ${measure}`);
     }
     if (stable.length > MAX_LISTED) lines.push(`  ... ${stable.length - MAX_LISTED} more (--json lists every cell)`);
   }

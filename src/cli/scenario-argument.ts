@@ -14,8 +14,10 @@ export const DEMO_SOURCE = 'scenarios/demo.json';
 export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   simulate: ['slip', 'biped', 'lateral'],
   map: ['slip', 'biped', 'lateral'],
-  scan: ['slip', 'lateral'],
-  basin: ['slip', 'lateral'],
+  robustness: ['slip', 'biped'],
+  stepdown: ['slip', 'biped'],
+  scan: ['slip', 'biped', 'lateral'],
+  basin: ['slip', 'biped', 'lateral'],
   recover: ['slip', 'lateral'],
 };
 

@@ -89,7 +89,18 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
   try {
     items = await ITEM_COUNTS[command](scenario, first.partial.options);
   } catch (error) {
-    if (error instanceof InputError) throw new InputError(error.issues, { source: `${first.source}: options` });
+    if (error instanceof InputError) {
+      // each field under options, named once (basin's checks already say options.heights, scan's
+      // name its flags: --x is the file's options.x)
+      const under = (path: string) => {
+        const field = path.replace(/^--/, '');
+        return field === '' ? 'options' : field.startsWith('options.') ? field : `options.${field}`;
+      };
+      throw new InputError(
+        error.issues.map((issue) => ({ ...issue, path: under(issue.path) })),
+        { source: first.source },
+      );
+    }
     throw error;
   }
   if (first.partial.shard.total !== items) {
