@@ -117,8 +117,9 @@ export interface ExportedFiles {
 /**
  * A policy as firmware tables (`pronk export`), from a scenario or a result file's content
  * (`pronk optimize --out`, `pronk deadbeat --out`). Returns the files' text; writing them is the
- * caller's. Refusals (non-finite points, negative constraint margins) throw an InputError unless
- * `force` is set.
+ * caller's. A number firmware must not run (non-finite, outside its physical range, flushed to
+ * zero or subnormal once rounded to float32) throws an InputError naming it, `force` or not; a
+ * negative constraint margin throws unless `force` is set.
  */
 export async function exportPolicy(source: unknown, options: ExportPolicyOptions): Promise<ExportedFiles> {
   const input = await import('./core/export/input.js');

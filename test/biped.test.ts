@@ -432,7 +432,9 @@ describe('pronk with a two-leg scenario', () => {
                 : [];
       const run = await pronk([command, 'scenarios/demo-biped.json', ...extra]);
       expect(run.code, `${command}: ${run.stderr}`).toBe(2);
-      expect(run.stderr).toContain(`scenario model "biped": ${command} supports "slip", found "biped"`);
+      // scan and basin also run the lateral model (its own scenario type)
+      const kinds = command === 'scan' || command === 'basin' ? '"slip" and "lateral"' : '"slip"';
+      expect(run.stderr).toContain(`scenario model "biped": ${command} supports ${kinds}, found "biped"`);
     }
   });
   it('the library: simulateBiped and bipedReturnMap with the kind header; simulate and returnMap refuse a two-leg scenario by name', async () => {
@@ -447,7 +449,7 @@ describe('pronk with a two-leg scenario', () => {
     await expect(lib.returnMap(scenario)).rejects.toThrow(InputError);
   });
   it('a model kind this build does not know is refused naming the field', () => {
-    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip" or "biped"/);
+    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral"/);
   });
   it('"model": "slip" is the single-leg scenario unchanged', () => {
     const plain = slipScenario();

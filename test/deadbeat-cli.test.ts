@@ -145,6 +145,10 @@ describe('pronk deadbeat', () => {
     [['--ground=0.1:-0.1'], /--ground: expected two heights LO:HI in metres with LO < HI.*found "0\.1:-0\.1"/],
     [['--ground', 'low:high'], /--ground: expected two heights/],
     [['--ground=-0.1'], /--ground: expected two heights/],
+    // found by the fuzz suite: ±1e308 was accepted and the unsolved range came out as "NaN to 1e+308 m"
+    // (hi − lo overflows); ground heights are bounded as in a scenario (BOUNDS.height_m, ±1e4 m)
+    [['--ground=-1e308:1e308'], /--ground: expected two heights \[lo, hi\] with lo < hi, each a height from -1e4 to 1e4 \(m\), found \[-1e\+308,1e\+308\]/],
+    [['--ground=-0.1:10001'], /--ground: expected two heights \[lo, hi\] with lo < hi, each a height from -1e4 to 1e4 \(m\)/],
     [['--ground=-0.1:0.1', '--knots', '1'], /--knots: expected an integer from 2 to 2000, found "1"/],
     [['--ground=-0.1:0.1', '--knots', '2.5'], /--knots: expected an integer/],
     [['--ground=-0.1:0.1', '--tolerance', '0'], /--tolerance: expected a length > 0 \(m\), found "0"/],

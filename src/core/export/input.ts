@@ -146,7 +146,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario);
+    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip'] });
     requireKind(scenario, 'export', ['slip']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
@@ -193,7 +193,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file });
+  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip'] });
   requireKind(scenario, 'export', ['slip'], file);
   const scenarioHash = await contentHash(scenario);
   return {

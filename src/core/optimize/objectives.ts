@@ -23,6 +23,9 @@ import { robustnessModel } from '../analysis/robustness.js';
 import { stepModel } from '../analysis/stepdown.js';
 import { axisValues } from '../analysis/basin.js';
 import { rolloutInput, type Engine, type ModelBlock } from '../engine.js';
+
+/** What an evaluator needs of an engine: its batches (a host may split them over threads). */
+export type BatchEngine = Pick<Engine, 'runBatch'>;
 import { InputError, describeFound } from '../errors.js';
 import { buildModel, DEG, STATUS_NAMES } from '../model.js';
 import { parseScenario, type Scenario } from '../scenario.js';
@@ -339,7 +342,7 @@ export class StudyEvaluator {
 
   constructor(
     readonly study: Study,
-    private readonly engine: Engine,
+    private readonly engine: BatchEngine,
     set: EvaluationSet = 'training',
   ) {
     const free = study.free_parameters;
