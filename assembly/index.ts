@@ -6,10 +6,11 @@ import { runBatch as batch, runRollout, setBatchLanes, pairedSteps } from "./rol
 import { traceBegin, traceEnd } from "./trace";
 import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1 } from "./rk/dopri5";
 import { rhs, setArenstorf } from "./rk/system";
-import { gaussian } from "./rng";
+import { gaussian, uniform } from "./rng";
 import { LAYOUT_VERSION, M_MODEL_KIND, MODEL_BIPED } from "./layout";
 import { runBipedRollout } from "./biped";
 import { mget } from "./policy";
+export { runLateralBatch, traceLateralRollout } from "./lateral";
 
 let arenaTop: usize = 0;
 
@@ -112,4 +113,9 @@ export function integrateArenstorf(mu: f64, x0: f64, vy0: f64, tEnd: f64, rtol: 
   store<f64>(out, load<f64>(Y0, 24), 24);
   store<f64>(out, <f64>steps, 32);
   store<f64>(out, <f64>rejected, 40);
+}
+
+// Uniform draw in (0, 1) number `counter` of stream `stream` (the random kicks of impulse recovery).
+export function rngUniform(seed: f64, stream: f64, counter: f64): f64 {
+  return uniform(<u64>seed, <u64>stream, <u64>counter);
 }
