@@ -34,7 +34,7 @@ import {
 import { groundAt, getWalk, setWalk } from "./terrain";
 import {
   Stance, MAX_LANES, laneStance, useStance, releaseStance, stanceStart, stanceRun, stanceBeforeStep,
-  stanceAfterStep, stanceAfterLaneStep, stepTwo, stepFour,
+  stanceAfterStep, stanceAfterLaneStep, stanceAfterEventStep, stepTwo, stepFour,
 } from "./stance";
 import { laneErr0, laneErr1, laneErr2, laneErr3, unpackStages } from "./rk/dopri5x2";
 import {
@@ -467,7 +467,7 @@ function runLanes(lanes: i32, models: usize, inputs: usize, rollouts: i32, strid
       if (r == -2) {
         unpackStages(i, st.bufs);
         useStance(st);
-        r = stanceAfterStep(st, err);
+        r = st.pending >= 0 ? stanceAfterEventStep(st) : stanceAfterStep(st, err, true);
       }
       if (r >= 0 && !laneNext(R, r)) live &= ~(1 << i);
     }
