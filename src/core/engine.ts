@@ -25,6 +25,10 @@ export interface KernelExports {
     model: number, input: number, strides: number, records: number, summary: number,
     samples: number, capacity: number, dt: number,
   ): number;
+  /** Rollouts runBatch steps together: 4 (default), 2 or 1; the results are the same bytes. */
+  batchLanes(n: number): void;
+  /** Steps the last runBatch took in pairs. */
+  batchPairedSteps(): number;
 }
 
 /** A batch of lateral leg-spring rollouts (layouts LM_ / LI_ / LR_ / LS_ in assembly/layout.ts). */
@@ -126,11 +130,16 @@ async function instantiate(): Promise<KernelExports> {
 }
 
 const BYTES = 8;
+/** Largest allocation the 32-bit address space holds, bytes. */
+const MAX_ALLOC_BYTES = 2 ** 32 - 2 ** 16;
 
 export class Engine {
   constructor(readonly kernel: KernelExports) {}
 
   private alloc(count: number): number {
+    // the kernel takes a 32-bit byte count: a larger one would wrap to a small allocation that the
+    // kernel then writes past
+    if (!(count * BYTES <= MAX_ALLOC_BYTES)) throw new EngineError(`out of WASM memory allocating ${count} values (more than 4 GiB)`);
     const p = this.kernel.arenaAlloc(count * BYTES) >>> 0;
     if (p === 0) throw new EngineError(`out of WASM memory allocating ${count} values`);
     return p;

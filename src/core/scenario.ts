@@ -366,7 +366,24 @@ export function parseScenario(
   const kind = modelKindOf(value, options.source);
   // the lateral model has its own scenario type (models/lateral.ts): refused here by name
   if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', options.supported ?? ['slip', 'biped'], kind, options.source);
-  if (kind === 'biped') return parseBipedScenario(value, options);
+  if (kind === 'biped') {
+    const biped = parseBipedScenario(value, options);
+    // the accuracy-to-tolerance mapping (accuracy.ts) is calibrated on the single-leg runner only
+    const accuracy = (biped as { integrator?: { apex_accuracy_m?: number } }).integrator?.apex_accuracy_m;
+    if (accuracy !== undefined) {
+      throw new InputError(
+        [
+          {
+            path: 'integrator.apex_accuracy_m',
+            expected: 'no value for a "model": "biped" scenario (calibrated for the single-leg runner only; set relative_tolerance and absolute_tolerance)',
+            found: describeFound(accuracy),
+          },
+        ],
+        options,
+      );
+    }
+    return biped;
+  }
   if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
     const { model: _slip, ...rest } = value as Record<string, unknown>;
     value = rest; // "model": "slip" is the default, said out loud; the scenario is the same
