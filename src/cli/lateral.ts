@@ -161,7 +161,7 @@ export interface LateralMapOutput extends LateralMapResult {
 
 export function lateralMapJson(s: LateralScenario, r: LateralMapOutput): object {
   const fp = (f: LateralFixedPoint) => f;
-  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp) };
+  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp), caution: SAFETY_CAUTION };
 }
 
 export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): string {
@@ -298,7 +298,7 @@ export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { 
   } catch (error) {
     throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
   }
-  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, LATERAL_HEADER));
+  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
   else io.stdout.write(renderLateralBasin(s, r));
   return 0;
 }
@@ -343,7 +343,7 @@ export async function runLateralScan(s: LateralScenario, io: CliIO, options: { j
   } finally {
     progress.done();
   }
-  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, LATERAL_HEADER));
+  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
   else io.stdout.write(renderLateralScan(s, r));
   return 0;
 }
