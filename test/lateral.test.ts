@@ -563,9 +563,8 @@ describe('every command on the lateral demo', () => {
         cmd === 'robustness' ? ['--sigma', '0.01'] : cmd === 'deadbeat' ? ['--ground=-0.03:0.01'] : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
-      // stepdown and robustness run the two-leg model too
-      const runs = cmd === 'deadbeat' ? '"slip"' : '"slip" and "biped"';
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${runs}, found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)`);
+      const kinds = cmd === 'deadbeat' ? '"slip"' : '"slip" and "biped"';
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${kinds}, found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)`);
     });
   }
 });

@@ -163,6 +163,11 @@ function checkStart(value: unknown, ctx: z.RefinementCtx): void {
   }
 }
 
+/** The two-leg scenario's zod schema (for the JSON Schemas of files that hold a scenario). */
+export function bipedScenarioSchema(): z.ZodType {
+  return bipedSchema();
+}
+
 export function parseBipedScenario(value: unknown, options: { source?: string } = {}): BipedScenario {
   const result = validateWith(bipedSchema(), value);
   if (!result.success) throw new InputError(result.issues, options);
