@@ -146,7 +146,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
   let scenario: Scenario | undefined;
   try {
     scenario = parseScenario(result.scenario);
-    requireKind(scenario, 'export', ['slip']);
+    requireKind(scenario, 'export', ['slip', 'biped']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -196,7 +196,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
   const scenario = parseScenario(value, { source: file });
-  requireKind(scenario, 'export', ['slip'], file);
+  requireKind(scenario, 'export', ['slip', 'biped'], file);
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',
