@@ -124,7 +124,7 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('biped', 'basin')).toBeNull();
     expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not defined for the two-leg model yet/);
     expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not defined for the lateral model/);
-    expect(viewUnsupported('slip', 'recover')).toMatch(/lateral model only/);
+    expect(viewUnsupported('slip', 'recover')).toMatch(/for the lateral model only/);
   });
 
   it('refuses to run a view the kind does not run, with a notice', async () => {
