@@ -2,7 +2,7 @@
 // numbers only; buffer layouts are in layout.ts. Memory for buffers comes from
 // a bump arena that the TypeScript engine resets before each call.
 
-import { runBatch as batch, runRollout } from "./rollout";
+import { runBatch as batch, runRollout, setBatchLanes, pairedSteps } from "./rollout";
 import { traceBegin, traceEnd } from "./trace";
 import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1 } from "./rk/dopri5";
 import { rhs, setArenstorf } from "./rk/system";
@@ -41,6 +41,17 @@ export function arenaAlloc(bytes: usize): usize {
 
 export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   return batch(models, inputs, rollouts, strides, records, summaries);
+}
+
+// Rollouts that runBatch steps together: 4 (the default: single-leg rollouts four at a time,
+// two f64x2 steps), 2 or 1 (one rollout after the other). The results are the same bytes.
+export function batchLanes(n: i32): void {
+  setBatchLanes(n);
+}
+
+// Steps that the last runBatch took in pairs (for checks).
+export function batchPairedSteps(): f64 {
+  return pairedSteps();
 }
 
 // One rollout with dense trajectory samples every `dt` seconds (plus exact

@@ -405,18 +405,17 @@ describe('pronk with a two-leg scenario', () => {
     expect(Math.abs(r.fixed_points[0].apex_height_m - fp.height_m)).toBeLessThan(1e-3);
     expect(Math.abs(r.fixed_points[0].forward_speed_m_per_s - fp.speed_m_per_s)).toBeLessThan(1e-2);
   });
-  it('optimize refuses a two-leg scenario in its study by name', async () => {
+  it('optimize takes a two-leg scenario in its study (test/biped-study.test.ts has the search)', async () => {
     const { parseStudy } = await import('../src/core/optimize/study.js');
     const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
-    expect(() =>
-      parseStudy({
-        scenario,
-        free_parameters: [{ path: 'policy.angle.attack_deg', lower: 65, upper: 75 }],
-        objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.002, rollouts: 10 }] },
-        seed: 1,
-        holdout: { seed: 2, rollouts: 10 },
-      }),
-    ).toThrow(/optimize supports "slip", found "biped"/);
+    const study = parseStudy({
+      scenario,
+      free_parameters: [{ path: 'policy.angle.attack_deg', lower: 65, upper: 75 }],
+      objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.002, rollouts: 10 }] },
+      seed: 1,
+      holdout: { seed: 2, rollouts: 10 },
+    });
+    expect(study.scenario.model).toBe('biped');
   });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
     for (const command of ['deadbeat', 'export']) {

@@ -563,7 +563,8 @@ describe('every command on the lateral demo', () => {
         cmd === 'robustness' ? ['--sigma', '0.01'] : cmd === 'deadbeat' ? ['--ground=-0.03:0.01'] : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports "slip", found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)`);
+      const kinds = cmd === 'deadbeat' ? '"slip"' : '"slip" and "biped"';
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${kinds}, found "lateral" (a "lateral" scenario runs in pronk simulate, map, scan, basin, recover)`);
     });
   }
 });

@@ -30,7 +30,7 @@ const VIEWS: Record<string, () => Promise<View>> = {
   },
   recover: async () => {
     const { recoverMonteCarloJson, renderMonteCarlo } = await import('./recover.js');
-    return { json: (r) => recoverMonteCarloJson(r as never), text: (s, r) => renderMonteCarlo(s as never, r as never) };
+    return { json: (_s, r) => recoverMonteCarloJson(r as never), text: (s, r) => renderMonteCarlo(s as never, r as never) };
   },
 };
 

@@ -1,6 +1,7 @@
 // The FILE argument every scenario command takes: a scenario file, or without it the built-in
 // demo (said in a status line on stderr; stdout holds the result only).
 import type { AnyScenario } from '../core/models/any.js';
+import type { InputIssue } from '../core/errors.js';
 import type { ModelKind } from '../core/models/kind.js';
 import type { Scenario } from '../core/scenario.js';
 import type { CliIO } from './main.js';
@@ -19,7 +20,30 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   scan: ['slip', 'biped', 'lateral'],
   basin: ['slip', 'biped', 'lateral'],
   recover: ['slip', 'lateral'],
+  // commands that take a study or result file rather than a scenario: listed for the hint below
+  deadbeat: ['slip'],
+  optimize: ['slip', 'biped'],
+  export: ['slip'],
 };
+
+/** The commands that run a scenario of this kind, for a refusal's message. */
+export function commandsRunning(kind: string): string[] {
+  return Object.entries(COMMAND_KINDS)
+    .filter(([, kinds]) => (kinds as readonly string[]).includes(kind))
+    .map(([command]) => command);
+}
+
+/**
+ * A model-kind refusal (`scenario model "K": CMD supports ...`, from requireKind, at `model` or
+ * `scenario.model`) with the commands that do run kind K appended; every other issue unchanged.
+ */
+export function withKindHint(issue: InputIssue): InputIssue {
+  const match = /^scenario model "(\w+)": /.exec(issue.message ?? '');
+  if (!match || !(issue.path === 'model' || issue.path.endsWith('.model'))) return issue;
+  const commands = commandsRunning(match[1]);
+  const runs = commands.length ? `pronk ${commands.join(', ')} run a "${match[1]}" scenario` : `no pronk command runs a "${match[1]}" scenario yet`;
+  return { ...issue, message: `${issue.message}; ${runs}` };
+}
 
 export async function scenarioArgument(file: string | undefined, io: CliIO, command: string): Promise<Scenario> {
   // loaded here, not with the command, so that `pronk COMMAND --help` never waits for the validators

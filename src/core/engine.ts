@@ -25,6 +25,10 @@ export interface KernelExports {
     model: number, input: number, strides: number, records: number, summary: number,
     samples: number, capacity: number, dt: number,
   ): number;
+  /** Rollouts runBatch steps together: 4 (default), 2 or 1; the results are the same bytes. */
+  batchLanes(n: number): void;
+  /** Steps the last runBatch took in pairs. */
+  batchPairedSteps(): number;
 }
 
 /** A batch of lateral leg-spring rollouts (layouts LM_ / LI_ / LR_ / LS_ in assembly/layout.ts). */
