@@ -419,7 +419,7 @@ describe('pronk with a two-leg scenario', () => {
     expect(study.scenario.model).toBe('biped');
   });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['deadbeat', 'export']) {
+    for (const command of ['deadbeat']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']
