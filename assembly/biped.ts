@@ -25,7 +25,7 @@
 import {
   M_MASS, M_GRAVITY, M_RTOL, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
   M_BIPED_LENGTH_0, M_BIPED_LENGTH_1, M_BIPED_STIFFNESS_SCALE_0, M_BIPED_STIFFNESS_SCALE_1,
-  M_BIPED_DAMPING_0, M_BIPED_DAMPING_1,
+  M_BIPED_DAMPING_0, M_BIPED_DAMPING_1, M_ANGLE_KIND, M_ATTACK, ANGLE_FIXED,
   I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE,
   I_SECTION_KIND, I_SECTION_OFFSET, I_SECTION_LEG,
   R_APEX_HEIGHT, R_APEX_SPEED, R_APEX_TIME, R_APEX_X, R_APEX_TO_TOUCHDOWN, R_CONTACT, R_STRIDE_TIME,
@@ -80,6 +80,7 @@ const LF_PEAK = 11; // N, peak force in the stride
 const LF_MAXCOMP = 12; // m, largest compression in the stride
 const LF_TD = 13; // s since the section, touchdown in this stride (NaN: none)
 const LF_LO = 14; // s since the section, liftoff in this stride (NaN: none)
+const LF_TOUCH_HEIGHT = 15; // m, L0 sin(attack) when the attack angle is fixed
 const LF_N = 16;
 const LEGS: usize = memory.data(2 * LF_N * 8, 16);
 
@@ -103,6 +104,7 @@ let gravity: f64 = 9.80665;
 let rtol: f64 = 1e-10;
 let atol: f64 = 1e-12;
 let maxSteps: i32 = 100000;
+let fixedAngle: bool = false; // the attack angle is constant: the touchdown height is too
 
 // Integration frame: (px, py) = body - origin, the origin a foot in stance.
 let ox: f64 = 0.0;
@@ -110,6 +112,7 @@ let oy: f64 = 0.0;
 let single: bool = true; // one leg in stance (the origin's), else two
 let stanceLeg: i32 = 0; // in single support
 let timeScale: f64 = 1.0; // s, 1/omega of the softest leg in stance
+let groundRel: f64 = 0.0; // m, the lowest foot in stance relative to the origin
 
 // Stride state.
 let strideWalking: bool = true; // the stride started at a single-support apex
@@ -193,23 +196,6 @@ function legRddot(i: i32, p: usize, d: usize): f64 {
   return (vx * vx + vy * vy + dx * load<f64>(d, 16) + dy * load<f64>(d, 24) - rdot * rdot) / r;
 }
 
-// Vertical and horizontal ground force, summed over the legs in stance.
-let forceX: f64 = 0.0;
-let forceY: f64 = 0.0;
-function groundForces(p: usize): void {
-  forceX = 0.0;
-  forceY = 0.0;
-  for (let i = 0; i < 2; i++) {
-    if (lg(i, LF_ON) == 0.0) continue;
-    const dx = load<f64>(p, 0) - footRx(i);
-    const dy = load<f64>(p, 8) - footRy(i);
-    const r = Math.sqrt(dx * dx + dy * dy);
-    const f = legForceAt(i, p);
-    forceX += (f * dx) / r;
-    forceY += (f * dy) / r;
-  }
-}
-
 function lowestFoot(): f64 {
   let low: f64 = Infinity;
   for (let i = 0; i < 2; i++) if (lg(i, LF_ON) != 0.0 && footRy(i) < low) low = footRy(i);
@@ -223,7 +209,8 @@ function evValue(ev: i32, leg: i32, p: usize, t: f64): f64 {
   }
   if (ev == EVB_MAX_COMPRESSION) return legRdot(leg, p);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legSin(attackAt(model, tSec0 + t)) - (load<f64>(p, 8) + oy - swingGround);
+    const height = fixedAngle ? lg(leg, LF_TOUCH_HEIGHT) : lg(leg, LF_L0) * legSin(attackAt(model, tSec0 + t));
+    return height - (load<f64>(p, 8) + oy - swingGround);
   }
   if (ev == EVB_SECTION) return -load<f64>(p, 24);
   if (ev == EVB_GROUND) return lowestFoot() - load<f64>(p, 8);
@@ -283,8 +270,12 @@ function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f6
   return b;
 }
 
-// Newton polish of an event on the true solution: YN holds the step of size hEvent from Y0; each
-// correction re-takes the step to the corrected time. Returns the polished step size.
+// Newton polish of an event on the true solution: YN holds the step of size hEvent from Y0, at
+// the time the interpolant located, so the Newton shift dt is of the size of the interpolant's
+// error. A tiny shift moves the state along the flow by Taylor's formula (position to second
+// order, velocity to first: the neglected terms are O(dt^2) in the velocity, far below the
+// stepper's error for |dt| <= 1e-7 of the time scale); a larger one re-takes the step to the
+// corrected time. Returns the polished step size (YN, K7 the polished state and derivative).
 function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
   let he = hEvent;
   for (let it = 0; it < 3; it++) {
@@ -295,7 +286,21 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
     if (!(Math.abs(dt) > 1e-17 * timeScale)) break;
     if (Math.abs(dt) > 1e-4 * timeScale || !(he + dt > 0.0)) break;
     he += dt;
-    step(he, rtol, atol);
+    if (Math.abs(dt) > 1e-7 * timeScale) {
+      step(he, rtol, atol);
+      continue;
+    }
+    const vx = load<f64>(YN, 16);
+    const vy = load<f64>(YN, 24);
+    const ax = load<f64>(K7, 16);
+    const ay = load<f64>(K7, 24);
+    const half = 0.5 * dt * dt;
+    store<f64>(YN, load<f64>(YN, 0) + vx * dt + ax * half, 0);
+    store<f64>(YN, load<f64>(YN, 8) + vy * dt + ay * half, 8);
+    store<f64>(YN, vx + ax * dt, 16);
+    store<f64>(YN, vy + ay * dt, 24);
+    store<f64>(YN, load<f64>(YN, 32) + load<f64>(K7, 32) * dt, 32);
+    rhs(YN, K7);
   }
   return he;
 }
@@ -315,6 +320,7 @@ function configure(): void {
     if (lg(i, LF_C) > 0.0) damped = true;
   }
   timeScale = Math.sqrt(mass / kMin);
+  groundRel = lowestFoot();
   if (on0 && on1) {
     single = false;
     setBiped(
@@ -331,18 +337,51 @@ function configure(): void {
   setErrorDimension(damped ? 5 : 4);
 }
 
-function noteForces(p: usize, tAt: f64): void {
+// Step-end leg forces, compressions and summed ground force, computed with the event values.
+let stepForce0: f64 = 0.0;
+let stepForce1: f64 = 0.0;
+let stepComp0: f64 = 0.0;
+let stepComp1: f64 = 0.0;
+let stepFx: f64 = 0.0;
+let stepFy: f64 = 0.0;
+
+function notePeaks(): void {
+  if (stepForce0 > lg(0, LF_PEAK)) ls(0, LF_PEAK, stepForce0);
+  if (stepForce1 > lg(1, LF_PEAK)) ls(1, LF_PEAK, stepForce1);
+  if (stepComp0 > lg(0, LF_MAXCOMP)) ls(0, LF_MAXCOMP, stepComp0);
+  if (stepComp1 > lg(1, LF_MAXCOMP)) ls(1, LF_MAXCOMP, stepComp1);
+  if (stepFy > peakVertical) peakVertical = stepFy;
+  if (stepFy > 0.0) {
+    const fr = Math.abs(stepFx / stepFy);
+    if (fr > peakFriction) peakFriction = fr;
+  }
+}
+
+// Peak leg forces, compressions, summed vertical force and friction ratio at the state p: one
+// square root per leg in stance (this runs at every accepted step).
+function noteForces(p: usize): void {
+  const px = load<f64>(p, 0);
+  const py = load<f64>(p, 8);
+  const vx = load<f64>(p, 16);
+  const vy = load<f64>(p, 24);
+  let fx: f64 = 0.0;
+  let fy: f64 = 0.0;
   for (let i = 0; i < 2; i++) {
     if (lg(i, LF_ON) == 0.0) continue;
-    const f = legForceAt(i, p);
+    const dx = px - footRx(i);
+    const dy = py - footRy(i);
+    const r = Math.sqrt(dx * dx + dy * dy);
+    const inv = 1.0 / r;
+    const c = lg(i, LF_L0) - r;
+    const f = lg(i, LF_K) * c - lg(i, LF_C) * (dx * vx + dy * vy) * inv;
     if (f > lg(i, LF_PEAK)) ls(i, LF_PEAK, f);
-    const c = lg(i, LF_L0) - legR(i, p);
     if (c > lg(i, LF_MAXCOMP)) ls(i, LF_MAXCOMP, c);
+    fx += f * dx * inv;
+    fy += f * dy * inv;
   }
-  groundForces(p);
-  if (forceY > peakVertical) peakVertical = forceY;
-  if (forceY > 0.0) {
-    const fr = Math.abs(forceX / forceY);
+  if (fy > peakVertical) peakVertical = fy;
+  if (fy > 0.0) {
+    const fr = Math.abs(fx / fy);
     if (fr > peakFriction) peakFriction = fr;
   }
 }
@@ -429,7 +468,7 @@ function runContact(rec: usize): i32 {
   let nonFinite = 0;
   let stepsHere = 0;
   const hMin = 1e-13 * timeScale;
-  noteForces(Y0, tS);
+  noteForces(Y0);
   for (;;) {
     if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
     if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
@@ -474,15 +513,38 @@ function runContact(rec: usize): i32 {
       const nforce = lg(stanceLeg, LF_K) * (leg - nr) - c * nrdot;
       const gl = c > 0.0 ? -nforce : nr - leg;
       if (stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
+      stepForce0 = stanceLeg == 0 ? nforce : 0.0;
+      stepForce1 = stanceLeg == 1 ? nforce : 0.0;
+      stepComp0 = stanceLeg == 0 ? leg - nr : 0.0;
+      stepComp1 = stanceLeg == 1 ? leg - nr : 0.0;
+      stepFx = (nforce * npx) / nr;
+      stepFy = (nforce * npy) / nr;
     } else {
-      gl10 = evValue(EVB_LIFTOFF, 0, YN, tS + h);
-      gl11 = evValue(EVB_LIFTOFF, 1, YN, tS + h);
-      gm10 = legRdot(0, YN);
-      gm11 = legRdot(1, YN);
+      // one square root per leg (the same values as evValue and legRdot)
+      const npx = load<f64>(YN, 0);
+      const npy = load<f64>(YN, 8);
+      const nvx = load<f64>(YN, 16);
+      const nvy = load<f64>(YN, 24);
+      const dx0 = npx - footRx(0);
+      const dy0 = npy - footRy(0);
+      const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+      gm10 = (dx0 * nvx + dy0 * nvy) / r0;
+      gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
+      const dx1 = npx - footRx(1);
+      const dy1 = npy - footRy(1);
+      const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+      gm11 = (dx1 * nvx + dy1 * nvy) / r1;
+      gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
+      stepComp0 = lg(0, LF_L0) - r0;
+      stepComp1 = lg(1, LF_L0) - r1;
+      stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
+      stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
+      stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
+      stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
     }
-    const gs1 = evValue(EVB_SECTION, 0, YN, tS + h);
-    const gg1 = evValue(EVB_GROUND, 0, YN, tS + h);
-    const gb1 = evValue(EVB_BACKWARD, 0, YN, tS + h);
+    const gs1 = -load<f64>(YN, 24);
+    const gg1 = groundRel - load<f64>(YN, 8);
+    const gb1 = -load<f64>(YN, 16);
     let gt1: f64 = 0.0;
     let armsHere = false;
 
@@ -552,20 +614,18 @@ function runContact(rec: usize): i32 {
     // Record-only maximum compressions before the stop.
     if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
       dense(mTheta0);
-      noteForces(YI, tS + mTheta0 * h);
+      noteForces(YI);
       ls(0, LF_COMPRESSING, 0.0);
     }
     if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
       dense(mTheta1);
-      noteForces(YI, tS + mTheta1 * h);
+      noteForces(YI);
       ls(1, LF_COMPRESSING, 0.0);
     }
     if (tracing) traceContact(h, stopTheta < 1.0 ? stopTheta : 1.0);
 
     if (stopEvent < 0) {
-      dense(0.5);
-      noteForces(YI, tS + 0.5 * h);
-      noteForces(YN, tS + h);
+      notePeaks();
       tS += h;
       advance();
       gl00 = gl10;
@@ -605,7 +665,7 @@ function runContact(rec: usize): i32 {
     }
     if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
     if (stopEvent == EVB_BACKWARD) return single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
-    noteForces(YN, tEvent);
+    noteForces(YN);
 
     if (stopEvent == EVB_SECTION) {
       saveEnd(tEvent, stanceLeg);
@@ -754,6 +814,12 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   ls(1, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_1) * kScale);
   ls(0, LF_C, mget(mdl, M_BIPED_DAMPING_0));
   ls(1, LF_C, mget(mdl, M_BIPED_DAMPING_1));
+  fixedAngle = <i32>mget(mdl, M_ANGLE_KIND) == ANGLE_FIXED;
+  if (fixedAngle) {
+    const sinA = legSin(mget(mdl, M_ATTACK));
+    ls(0, LF_TOUCH_HEIGHT, lg(0, LF_L0) * sinA);
+    ls(1, LF_TOUCH_HEIGHT, lg(1, LF_L0) * sinA);
+  }
   for (let i = 0; i < 2; i++) {
     ls(i, LF_ON, 0.0);
     ls(i, LF_FX, 0.0);

@@ -1,5 +1,8 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
@@ -206,6 +209,25 @@ describe('walking: energy, symmetry and the published result', () => {
   });
 });
 
+describe('a walker that does not conserve energy', () => {
+  it('with leg damping the map is not reduced by energy: it searches the full map (height, speed, offset)', async () => {
+    // law: a damper only removes energy, so no periodic walking exists without an energy input
+    const s = biped({ body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81, leg_damping_N_s_per_m: 200 } });
+    const map = await bipedReturnMap(s, { iterations: 5 });
+    expect(map.energy_conserving).toBe(false);
+    expect(map.reduced_state).toEqual(['height_m', 'speed_m_per_s', 'offset_m']);
+    expect(map.fixed_points).toEqual([]);
+    const r = await records(biped({ ...s, strides: 3 } as unknown as Record<string, unknown>), 3);
+    expect(r.completed).toBeGreaterThanOrEqual(1);
+    for (let i = 0; i < r.completed; i++) {
+      // energy balance: what the section lost is what the dampers (and legs leaving loaded) took
+      const lost = r.rec(i, L.R_ENERGY_BEFORE) - r.rec(i, L.R_ENERGY_AFTER);
+      expect(lost).toBeGreaterThan(0);
+      expect(Math.abs(lost - r.rec(i, L.R_DISSIPATED)) / lost).toBeLessThan(1e-6);
+    }
+  });
+});
+
 describe('failures are named statuses', () => {
   it('a walking start too fast to stay on the ground ends in gait_changed, not a crash', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 3 }, strides: 10 });
@@ -217,6 +239,18 @@ describe('failures are named statuses', () => {
     expect(STATUS_NAMES[L.STATUS_NO_SECTION]).toBe('no_section');
   });
 
+  it('stalled: too slow to carry the body over the new leg, forward speed reaches zero in double support', async () => {
+    // law: at 0.05 m/s the kinetic energy (0.1 J) cannot lift the body over the steep (75 deg) new leg
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 75 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('stalled');
+    expect(result.outcome.failed_stride).toBe(0);
+  });
+  it('no_section: the body never rises on its new leg, and the swing leg lands again before an apex', async () => {
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 70 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('no_section');
+  });
   it('a walker too slow to vault over its stance leg fails with a named status', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 0.05, offset_m: -0.1 }, strides: 10 });
     const result = await simulateBiped(s);
@@ -324,8 +358,67 @@ describe('pronk with a two-leg scenario', () => {
     const table = await pronk(['map', 'scenarios/demo-biped.json']);
     expect(table.stdout).toContain('Fixed points (');
   });
+  it('robustness and stepdown run the demo walker against its section state (header single_support_apex)', async () => {
+    const mc = await pronk(['robustness', 'scenarios/demo-biped.json', '--sigma', '0.002', '--rollouts', '40', '--strides', '10', '--json']);
+    expect(mc.code, mc.stderr).toBe(0);
+    const r = JSON.parse(mc.stdout);
+    expect(r).toMatchObject({ format: 'pronk-robustness', model: 'biped', section: 'single_support_apex', rollouts: 40 });
+    expect(r.start).toMatchObject({ gait: 'walking', leg: 'left' });
+    expect(r.failures).toHaveProperty('gait_changed'); // the two-leg statuses are counted too
+    expect(r.survived + Object.values(r.failures as Record<string, number>).reduce((a, b) => a + b, 0)).toBe(40);
+    const step = await pronk(['stepdown', 'scenarios/demo-biped.json', '--json']);
+    expect(step.code, step.stderr).toBe(0);
+    const d = JSON.parse(step.stdout);
+    expect(d).toMatchObject({ format: 'pronk-stepdown', model: 'biped', section: 'single_support_apex' });
+    expect(d.max_step_down_m).toBeGreaterThanOrEqual(0.004); // found: 5 mm drop, 7 mm rise (1 mm resolution)
+    expect(d.survives_flat).toBe(true);
+  });
+  it('scan classifies each cell by all eigenvalues of its section map; two shards merge to the one-machine result', async () => {
+    const run = await pronk([
+      'scan', 'scenarios/demo-biped.json', '--x', 'policy.angle.attack_deg:68:74:4', '--y', 'body.leg_stiffness_N_per_m:9000:14000:3', '--samples', '31', '--json',
+    ]);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-scan', model: 'biped', section: 'single_support_apex' });
+    expect(r.counts.stable).toBeGreaterThan(0); // found: 8 stable, 4 unstable of 12
+    for (const c of r.cells) {
+      if (c.class === 'stable') expect(c.stable_spectral_radius).toBeLessThan(1);
+      for (const f of c.fixed_points) expect(f.stable).toBe(f.spectral_radius < 1);
+    }
+    const { scan, scanShard, finishScan } = await import('../src/core/analysis/scan.js');
+    const base = parseScenario(JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8')));
+    const options = { x: { path: 'policy.angle.attack_deg', lo: 70, hi: 72, n: 2 }, y: { path: 'body.leg_stiffness_N_per_m', lo: 11000, hi: 12000, n: 2 }, samples: 21 };
+    const whole = await scan(base, options);
+    const a = await scanShard(base, options, { index: 1, count: 2 });
+    const b = await scanShard(base, options, { index: 2, count: 2 });
+    expect(JSON.stringify(await finishScan(a.scenario, a.options, [...a.rows, ...b.rows]))).toBe(JSON.stringify(whole));
+  });
+  it('basin in energy mode: the converged cells settle on the fixed point the map finds', async () => {
+    const run = await pronk(['basin', 'scenarios/demo-biped.json', '--energy', '--workers', '1', '--json']);
+    expect(run.code, run.stderr).toBe(0);
+    const r = JSON.parse(run.stdout);
+    expect(r).toMatchObject({ format: 'pronk-basin', model: 'biped', section: 'single_support_apex', mode: 'energy' });
+    expect(r.counts.converged).toBeGreaterThan(0);
+    const map = JSON.parse((await pronk(['map', 'scenarios/demo-biped.json', '--json'])).stdout);
+    const fp = map.fixed_points.find((f: { stable: boolean }) => f.stable);
+    // the basin's convergence tolerance is 1e-4 m between the last two sections
+    expect(Math.abs(r.fixed_points[0].apex_height_m - fp.height_m)).toBeLessThan(1e-3);
+    expect(Math.abs(r.fixed_points[0].forward_speed_m_per_s - fp.speed_m_per_s)).toBeLessThan(1e-2);
+  });
+  it('optimize takes a two-leg scenario in its study (test/biped-study.test.ts has the search)', async () => {
+    const { parseStudy } = await import('../src/core/optimize/study.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    const study = parseStudy({
+      scenario,
+      free_parameters: [{ path: 'policy.angle.attack_deg', lower: 65, upper: 75 }],
+      objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.002, rollouts: 10 }] },
+      seed: 1,
+      holdout: { seed: 2, rollouts: 10 },
+    });
+    expect(study.scenario.model).toBe('biped');
+  });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['scan', 'basin', 'stepdown', 'robustness', 'deadbeat']) {
+    for (const command of ['deadbeat', 'export']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']
@@ -333,14 +426,29 @@ describe('pronk with a two-leg scenario', () => {
             ? ['--sigma', '0.01']
             : command === 'deadbeat'
               ? ['--ground=-0.05:0.05']
-              : [];
+              : command === 'export'
+                ? ['--format', 'json', '--out', join(mkdtempSync(join(tmpdir(), 'pronk-biped-')), 'policy.json')]
+                : [];
       const run = await pronk([command, 'scenarios/demo-biped.json', ...extra]);
       expect(run.code, `${command}: ${run.stderr}`).toBe(2);
-      expect(run.stderr).toContain(`scenario model "biped": ${command} supports "slip", found "biped"`);
+      // scan and basin also run the lateral model (its own scenario type)
+      const kinds = command === 'scan' || command === 'basin' ? '"slip" and "lateral"' : '"slip"';
+      expect(run.stderr).toContain(`scenario model "biped": ${command} supports ${kinds}, found "biped"`);
     }
   });
+  it('the library: simulateBiped and bipedReturnMap with the kind header; simulate and returnMap refuse a two-leg scenario by name', async () => {
+    const lib = await import('../src/index.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    const r = await lib.simulateBiped(scenario, { strides: 3 });
+    expect(r).toMatchObject({ format: 'pronk-simulate', model: 'biped', section: 'single_support_apex' });
+    expect(r.outcome.status).toBe('completed');
+    const m = await lib.bipedReturnMap(scenario, { iterations: 0 });
+    expect(m.fixed_points.some((f) => f.stable)).toBe(true);
+    await expect(lib.simulate(scenario)).rejects.toThrow(/scenario model "biped": simulate \(two-leg scenarios: simulateBiped\) supports "slip"/);
+    await expect(lib.returnMap(scenario)).rejects.toThrow(InputError);
+  });
   it('a model kind this build does not know is refused naming the field', () => {
-    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip" or "biped"/);
+    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral"/);
   });
   it('"model": "slip" is the single-leg scenario unchanged', () => {
     const plain = slipScenario();

@@ -77,6 +77,7 @@ describe('checkOutputs', () => {
           { option: '--plot', path: join(f, 'sub') },
           { option: '--out', path: join(f, 'dangling.json') },
           { option: '--out', path: join(f, 'mine.c'), beside: join(f, 'mine.h') },
+          { option: '--out', path: join(f, 'new-folder') + '/' },
         ],
         [],
         { source: 'pronk test' },
@@ -88,6 +89,7 @@ describe('checkOutputs', () => {
       `pronk test: --out: cannot write "${join(f, 'dangling.json')}" (it is a symbolic link to a file that does not exist): remove the link or name its target`,
       `pronk test: --out: cannot write "${join(f, 'mine.c')}" (it is written beside "${join(f, 'mine.h')}", and a file by that name already exists ` +
         'that you did not name and that is not an earlier export of the same file): move it away, choose another --out name, or add --force to replace it',
+      `pronk test: --out: cannot write "${join(f, 'new-folder')}/" (it ends in a path separator: a directory name)`,
     ]);
     // --force, or a file recognized as an earlier output of the same kind, may be replaced
     expect(await checkOutputs([{ option: '--out', path: join(f, 'mine.c'), beside: 'mine.h' }], [], { force: true })).toHaveLength(1);
@@ -269,7 +271,7 @@ describe.skipIf(!built)('pronk export keeps what it was not asked to replace', (
     expectRefused(
       f,
       ['export', 'robot.json', '--format', 'c', '--out', 'controller.h'],
-      /--out: cannot write "controller\.c" \(it is written beside "controller\.h", and a file by that name already exists that you did not name and that is not an earlier export of the same file\): move it away, choose another --out name, or add --force to replace it/,
+      /--out: cannot write "controller\.c" \(it is written beside "controller\.h", and a file by that name already exists that you did not name and that is not an earlier export of the same file\): move it away, choose another --out name, or add --force to replace it \(--force also writes a policy whose constraint margins are negative, marked as forced\)/,
     );
     expect(readFileSync(join(f, 'controller.c'), 'utf8')).toBe(mine);
     const forced = pronk(f, 'export', 'robot.json', '--format', 'c', '--out', 'controller.h', '--force');

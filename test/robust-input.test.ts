@@ -1,7 +1,8 @@
 // Whatever the scenario, the validator either accepts it or throws an InputError naming a field,
 // and an accepted scenario always simulates to finite numbers (a fall is a status, never a NaN).
 import { spawnSync } from 'node:child_process';
-import { existsSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
@@ -256,5 +257,43 @@ describe.skipIf(!existsSync(join(repoRoot, 'dist', 'src', 'cli', 'main.js')))('c
     const r = pronk(...(args as string[]));
     expect(r.status, r.stderr).toBe(2);
     expect(r.stderr.split('\n').filter((line) => !line.includes('built-in demo'))).toEqual([message, '']);
+  });
+
+  it('an edited option in a partial result is named as the file holds it: options.FIELD, once', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'pronk-partial-options-'));
+    try {
+      const runs: [string, string[], (options: Record<string, any>) => void, string][] = [
+        ['basin', ['--heights', '0.45:0.5:2', '--speeds', '1.8:2:2', '--strides', '3'], (o) => (o.heights.low_m = 1e300), 'options.heights: expected lo:hi:n with lo <= hi (m)'],
+        ['robustness', ['--sigma', '0.01', '--rollouts', '4', '--strides', '3'], (o) => (o.rollouts = 2.5), 'options.rollouts: expected a positive integer'],
+        ['scan', ['--x', 'policy.angle.attack_at_apex_deg:62:64:2', '--y', 'policy.angle.rate_deg_per_s:30:40:2', '--samples', '21'], (o) => (o.x = 'bogus'), 'options.x: expected PATH:lo:hi:n'],
+      ];
+      for (const [command, args, edit, message] of runs) {
+        const part = join(dir, `${command}.json`);
+        expect(pronk(command, ...args, '--workers', '1', '--shard', '1/2', '--out', part).status).toBe(0);
+        const partial = JSON.parse(readFileSync(part, 'utf8'));
+        edit(partial.options);
+        writeFileSync(part, JSON.stringify(partial));
+        const r = pronk('merge', part);
+        expect(r.status).toBe(2);
+        expect(r.stderr).toContain(`${part}: ${message}`);
+      }
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  }, 60_000);
+});
+
+describe('the engine never hands the kernel an allocation past 32 bits', () => {
+  it('a batch whose stride records exceed 4 GiB is an EngineError before any work, and the engine still runs after it', async () => {
+    const { EngineError, loadEngine, rolloutInput } = await import('../src/core/engine.js');
+    const { buildModel } = await import('../src/core/model.js');
+    const engine = await loadEngine();
+    const model = buildModel(demoScenario());
+    // 11 rollouts x 1e6 strides x 50 values x 8 bytes = 4.4e9 bytes > 2^32: once wrapped to 0.1 GB,
+    // which the kernel then wrote past (memory access out of bounds)
+    const inputs = new Float64Array(Array.from({ length: 11 }, (_, r) => [...rolloutInput(0.45, 3.35, r)]).flat());
+    expect(() => engine.runBatch({ model, inputs, strides: 1_000_000, records: true })).toThrow(EngineError);
+    const after = engine.runBatch({ model, inputs: rolloutInput(0.45, 3.35, 0), strides: 2, records: true });
+    expect(after.completed).toBe(1);
   });
 });

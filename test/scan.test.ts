@@ -140,7 +140,7 @@ describe("every cell is the map of the scenario with that cell's values, at that
       expect(cell.fixed_points.map((f) => f.apex_height_m)).toEqual(map.fixed_points.map((f) => f.apex_height_m));
       cell.fixed_points.forEach((f, i) => {
         const m = map.fixed_points[i];
-        expect(Math.abs(f.slope - m.slope)).toBeLessThanOrEqual(2 * (f.slope_error + m.slope_error) + 1e-9);
+        expect(Math.abs(f.slope! - m.slope)).toBeLessThanOrEqual(2 * (f.slope_error! + m.slope_error) + 1e-9);
         expect(f.stable).toBe(m.stable);
       });
       const stable = map.fixed_points.find((f) => f.stable);

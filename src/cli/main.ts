@@ -7,7 +7,7 @@
 // `pronk --help` and `pronk --version` load no command.
 
 import { parseArgs } from 'node:util';
-import { InputError, UsageError, closestName } from '../core/errors.js';
+import { InputError, UsageError, closestName, formatIssues } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { PRONK_VERSION } from '../core/version.js';
 import { wrap } from './format.js';
@@ -91,6 +91,11 @@ export const COMMANDS: readonly CommandEntry[] = [
     load: async () => (await import('./robustness.js')).robustnessCommand,
   },
   {
+    name: 'recover',
+    summary: 'impulse recovery of a gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
+    load: async () => (await import('./recover.js')).recoverCommand,
+  },
+  {
     name: 'optimize',
     summary: "NLopt search over a study's free policy parameters, re-scored on held-out seeds; writes a result file",
     load: async () => (await import('./optimize.js')).optimizeCommand,
@@ -127,7 +132,9 @@ export async function main(argv: string[], io: CliIO = defaultIO()): Promise<num
     return await dispatch(argv, io);
   } catch (error) {
     if (error instanceof InputError) {
-      io.stderr.write(`${error.format()}\n`);
+      // a refused model kind also names the commands that run it (loaded here: --help loads no command)
+      const { withKindHint } = await import('./scenario-argument.js');
+      io.stderr.write(`${formatIssues(error.issues.map(withKindHint), error.source)}\n`);
       return 2;
     }
     if (error instanceof UsageError) {

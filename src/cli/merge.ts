@@ -12,21 +12,25 @@ import { checkOutputs, outputRequest, writePlotFile } from './output-files.js';
 // Each mergeable command's two views, the same functions the command itself prints with; loaded
 // on demand so that merging one command's results never loads the others'.
 interface View {
-  json: (result: unknown) => string;
+  json: (scenario: Scenario, result: unknown) => string;
   text: (scenario: Scenario, result: unknown) => string;
 }
 const VIEWS: Record<string, () => Promise<View>> = {
   basin: async () => {
     const { basinJson, renderBasin } = await import('./basin.js');
-    return { json: (r) => basinJson(r as never), text: (s, r) => renderBasin(s, r as never) };
+    return { json: (s, r) => basinJson(r as never, s), text: (s, r) => renderBasin(s, r as never) };
   },
   scan: async () => {
     const { scanJson, renderScan } = await import('./scan.js');
-    return { json: (r) => scanJson(r as never), text: (s, r) => renderScan(s, r as never) };
+    return { json: (s, r) => scanJson(r as never, s), text: (s, r) => renderScan(s, r as never) };
   },
   robustness: async () => {
     const { robustnessJson, renderRobustness } = await import('./robustness.js');
-    return { json: (r) => robustnessJson(r as never), text: (s, r) => renderRobustness(s, r as never) };
+    return { json: (s, r) => robustnessJson(r as never, s), text: (s, r) => renderRobustness(s, r as never) };
+  },
+  recover: async () => {
+    const { recoverMonteCarloJson, renderMonteCarlo } = await import('./recover.js');
+    return { json: (_s, r) => recoverMonteCarloJson(r as never), text: (s, r) => renderMonteCarlo(s as never, r as never) };
   },
 };
 
@@ -67,7 +71,7 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const load = Object.hasOwn(VIEWS, merged.command) ? VIEWS[merged.command] : undefined;
   if (!load) throw new Error(`no view for the merged command ${merged.command}`);
   const view = await load();
-  const text = values.json === true ? view.json(merged.result) : view.text(merged.scenario, merged.result);
+  const text = values.json === true ? view.json(merged.scenario, merged.result) : view.text(merged.scenario, merged.result);
   await writeText(io, outFile, text, 'merge');
   if (plotFile !== undefined) await writePlotFile(io, merged.command, plotFile, merged.result, `pronk merge (${merged.command})`);
   return 0;

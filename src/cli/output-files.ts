@@ -20,7 +20,7 @@
 // Node only (file system).
 
 import { constants } from 'node:fs';
-import { access, chmod, link, lstat, open, readFile, realpath, rename, stat, unlink, writeFile } from 'node:fs/promises';
+import { access, chmod, link, lstat, open, realpath, rename, stat, unlink, writeFile } from 'node:fs/promises';
 import { randomBytes } from 'node:crypto';
 import { basename, dirname, join, resolve } from 'node:path';
 import { unlinkSync } from 'node:fs';
@@ -35,10 +35,12 @@ export interface OutputRequest {
   /**
    * Set for a file the user did not name, written beside the named file `beside` (the C export's
    * .c beside its .h): an existing file there is replaced only with `--force`, or when
-   * `mayReplace` recognizes its text as an earlier output of the same kind.
+   * `mayReplace` recognizes its opening text (the first 4 KiB) as an earlier output of the same kind.
    */
   beside?: string;
   mayReplace?: (existing: string) => boolean;
+  /** What else `--force` does in this command, said where a refusal suggests it. */
+  forceAlso?: string;
 }
 
 /** One file a command reads: an output may not be it. `what` names it in messages, e.g. `the scenario file`. */
@@ -163,7 +165,7 @@ export async function checkOutputs(
       let recognized = false;
       if (request.mayReplace) {
         try {
-          recognized = request.mayReplace(await readFile(output.target, 'utf8'));
+          recognized = request.mayReplace(await readStart(output.target));
         } catch {
           recognized = false;
         }
@@ -175,7 +177,7 @@ export async function checkOutputs(
             'a file name whose companion files do not exist yet',
             `it is written beside ${JSON.stringify(request.beside)}, and a file by that name already exists${where} that you did not name ` +
               'and that is not an earlier export of the same file',
-            `move it away, choose another ${request.option} name, or add --force to replace it`,
+            `move it away, choose another ${request.option} name, or add --force to replace it${request.forceAlso ? ` (--force also ${request.forceAlso})` : ''}`,
           ),
         );
         continue;
@@ -191,6 +193,9 @@ async function checkOne(request: OutputRequest): Promise<{ output: CheckedOutput
   const { path } = request;
   if (typeof path !== 'string' || path.trim() === '') {
     return { issue: { path: request.option, expected: 'a file name', found: describeFound(path) } };
+  }
+  if (/[\\/]$/.test(path)) {
+    return { issue: refusal(request, 'a file name, not a directory', 'it ends in a path separator: a directory name') };
   }
   const absolute = resolve(path);
   let entry: Awaited<ReturnType<typeof lstat>> | undefined;
@@ -245,6 +250,19 @@ async function checkOne(request: OutputRequest): Promise<{ output: CheckedOutput
     };
   }
   return { output: { option: request.option, path, target, replacesMode: s.mode & 0o7777, special: false }, id };
+}
+
+// The first 4 KiB of a file, as text: enough to recognize an earlier output by its opening lines
+// without reading a large file whole.
+async function readStart(path: string): Promise<string> {
+  const handle = await open(path, 'r');
+  try {
+    const buffer = Buffer.alloc(4096);
+    const { bytesRead } = await handle.read(buffer, 0, buffer.length, 0);
+    return buffer.subarray(0, bytesRead).toString('utf8');
+  } finally {
+    await handle.close();
+  }
 }
 
 async function writable(path: string): Promise<boolean> {

@@ -3,7 +3,7 @@
 
 import { scenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
 import type {
   CanonicalRobustnessOptions,
@@ -131,7 +131,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
 
   const rows = await robustnessRows(scenario, canonical, undefined, execution).finally(progress.done);
   const result = await finishRobustness(scenario, canonical, rows);
-  const text = json ? robustnessJson(result) : renderRobustness(scenario, result);
+  const text = json ? robustnessJson(result, scenario) : renderRobustness(scenario, result);
   await writeText(io, outFile, text, 'robustness');
   if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
   return 0;
@@ -172,8 +172,8 @@ export function parseRobustnessFlags(values: ParsedCommandLine['values']): Robus
 // The two views (also used by `pronk merge`).
 
 /** The --json text. */
-export function robustnessJson(result: RobustnessResult): string {
-  return jsonText('robustness', result);
+export function robustnessJson(result: RobustnessResult, scenario: Scenario): string {
+  return jsonText('robustness', result, modelHeader(scenario));
 }
 
 const TEXT_WIDTH = 96;

@@ -2,10 +2,10 @@
 // [--shard I/N --out FILE] [--json]`: where in a plane of two parameters the return map has a
 // stable fixed point (a stability-region map).
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
 import { InputError, UsageError } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
 import { type Scenario } from '../core/scenario.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
@@ -34,7 +34,8 @@ export const scanCommand: Command = {
     "scenario with that cell's two values) at that cell's own start energy, on flat ground, and is none (no",
     'fixed point), unstable (fixed points, none with |slope| < 1) or stable (with the stable fixed point\'s',
     'height and slope). Cells are listed row-major, y outer: cells[iy * nx + ix]. Results do not depend on',
-    '--workers; shards merge with pronk merge.',
+    '--workers; shards merge with pronk merge. A "lateral" scenario: each cell\'s periodic gaits at its own',
+    "start energy (as 'pronk map' finds them), none, unstable, neutral or stable by the most stable gait.",
   ].join('\n'),
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
@@ -69,7 +70,19 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
 
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
-  const scenario = await scenarioArgument(file, io, 'scan');
+  const any = await anyScenarioArgument(file, io, 'scan');
+  if (any.kind === 'lateral') {
+    const refused = ['samples', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
+    if (refused.length) {
+      throw new InputError(
+        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its scan takes --x, --y, --json)', found: String(values[refused[0]]) }],
+        { source: SOURCE },
+      );
+    }
+    const { runLateralScan } = await import('./lateral.js');
+    return withSourceAsync(() => runLateralScan(any.scenario, io, { json, x: options.x, y: options.y }));
+  }
+  const scenario = any.scenario;
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { runBatchParallel } = await import('../worker/pool.js');
@@ -90,7 +103,7 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
     return 0;
   }
   const result = await withSourceAsync(() => core.scan(scenario, options, run)).finally(progress.done);
-  await writeText(io, outFile, json ? scanJson(result) : renderScan(scenario, result), 'scan');
+  await writeText(io, outFile, json ? scanJson(result, scenario) : renderScan(scenario, result), 'scan');
   if (plotFile !== undefined) await withSourceAsync(() => writePlotFile(io, 'scan', plotFile, result));
   return 0;
 }
@@ -114,8 +127,8 @@ async function withSourceAsync<T>(f: () => Promise<T>): Promise<T> {
 }
 
 /** The --json text of a scan result (also what `pronk merge --json` prints). */
-export function scanJson(result: ScanResult): string {
-  return jsonText('scan', result);
+export function scanJson(result: ScanResult, scenario: Scenario): string {
+  return jsonText('scan', result, modelHeader(scenario));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -163,7 +176,11 @@ export function renderScan(scenario: Scenario, result: ScanResult): string {
   if (stable.length) {
     lines.push('', 'Stable cells (x, y: fixed point height, slope):');
     for (const c of stable.slice(0, MAX_LISTED)) {
-      lines.push(`  ${plain(c.x)}, ${plain(c.y)}: ${fixed(c.stable_apex_height_m, 6)} m, slope ${fixed(c.stable_slope, 4)}`);
+      const measure =
+        c.stable_slope === null && c.stable_spectral_radius != null
+          ? `largest |eigenvalue| ${fixed(c.stable_spectral_radius, 4)}`
+          : `slope ${fixed(c.stable_slope, 4)}`;
+      lines.push(`  ${plain(c.x)}, ${plain(c.y)}: ${fixed(c.stable_apex_height_m, 6)} m, ${measure}`);
     }
     if (stable.length > MAX_LISTED) lines.push(`  ... ${stable.length - MAX_LISTED} more (--json lists every cell)`);
   }

@@ -6,7 +6,7 @@ import { InputError } from '../core/errors.js';
 import type { StepDirectionResult, StepToleranceOptionNames, StepToleranceResult } from '../core/analysis/stepdown.js';
 import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES, MAX_GRID_POINTS } from '../core/analysis/stepdown.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
@@ -78,7 +78,7 @@ async function runStepdown({ values, positionals }: ParsedCommandLine, io: CliIO
     if (error instanceof InputError) throw new InputError(error.issues, { source: SOURCE });
     throw error;
   }
-  io.stdout.write(json ? jsonText('stepdown', result) : renderStepTolerance(scenario, result));
+  io.stdout.write(json ? jsonText('stepdown', result, modelHeader(scenario)) : renderStepTolerance(scenario, result));
   return 0;
 }
 

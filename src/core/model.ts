@@ -5,7 +5,7 @@ import * as L from '../../assembly/layout.js';
 import type { ModelBlock } from './engine.js';
 import { rolloutInput } from './engine.js';
 import type { Scenario } from './scenario.js';
-import { completeBipedBlock, isBiped, sectionInput, startState } from './models/biped.js';
+import { completeBipedBlock, isBiped, legParameters, sectionInput, startState } from './models/biped.js';
 import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
@@ -103,10 +103,10 @@ function buildSingleLegBlock(s: Scenario): ModelBlock {
   return block;
 }
 
-/** The scenario's own start as a rollout input row (terrain stream 0). */
-export function startInput(s: Scenario, stream = 0): Float64Array {
-  if (isBiped(s)) return sectionInput(startState(s), stream);
-  return rolloutInput(s.start.apex_height_m, s.start.forward_speed_m_per_s, stream);
+/** The scenario's own start as a rollout input row (terrain stream 0, model block 0 by default). */
+export function startInput(s: Scenario, stream = 0, model = 0): Float64Array {
+  if (isBiped(s)) return sectionInput(startState(s), stream, model);
+  return rolloutInput(s.start.apex_height_m, s.start.forward_speed_m_per_s, stream, model);
 }
 
 /** Stable machine-readable names of the kernel's status codes. */
@@ -124,6 +124,9 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_GAIT_CHANGED]: 'gait_changed',
   [L.STATUS_STALLED]: 'stalled',
   [L.STATUS_NO_SECTION]: 'no_section',
+  // lateral leg-spring model
+  [L.STATUS_STALLED_FORWARD]: 'stalled_forward',
+  [L.STATUS_LEG_UNLOADED]: 'leg_unloaded',
 };
 
 /** What each failure means, in words for a report. */
@@ -144,4 +147,18 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_STALLED]: 'stalled in double support (forward speed reached zero, or no leg lifted off)',
   [L.STATUS_NO_SECTION]:
     'no section: the swing leg touched down a second time before the body reached its single-support apex',
+  [L.STATUS_STALLED_FORWARD]: 'the velocity along the body axis fell to zero (the body stalled or turned sideways)',
+  [L.STATUS_LEG_UNLOADED]: 'at a touchdown the body was already moving away from the new foot (the leg cannot load)',
 };
+
+/**
+ * Rest length of the leg that lands first from the scenario's start: the single leg; with two legs
+ * the swing leg of a walking start, or the leg (the first, for "both") that lands from a flight apex.
+ */
+export function landingLegLength(s: Scenario): number {
+  if (!isBiped(s)) return s.body.leg_length_m;
+  const legs = legParameters(s);
+  const start = s.start.leg;
+  if (s.start.gait === 'walking') return legs[start === 'right' ? 0 : 1].length_m;
+  return legs[start === 'right' ? 1 : 0].length_m;
+}

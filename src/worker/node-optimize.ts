@@ -15,6 +15,7 @@ import type { ScoreResult, ScoreTask } from '../core/optimize/score.js';
 import { searchStudy, SearchError, type OptimizationResult, type RunnerControl, type SearchOptions, type SearchRunner } from '../core/optimize/search.js';
 import type { Study } from '../core/optimize/study.js';
 import type { OptimizeWorkerApi } from './optimize-worker.js';
+import { activityBuffer } from './batch-helper.js';
 import { compiledWorkerUrl } from './paths.js';
 
 export { SearchError, type OptimizationResult, type SearchProgress, type SearchOptions } from '../core/optimize/search.js';
@@ -22,6 +23,11 @@ export { SearchError, type OptimizationResult, type SearchProgress, type SearchO
 export interface NodeSearchOptions extends SearchOptions {
   /** Worker threads (default: defaultWorkers; never more than the useful number). */
   workers?: number;
+  /**
+   * Let a thread split its batches with a helper thread while fewer jobs run than there are
+   * threads (default true with 2 or more threads; see batch-helper.ts). Never changes the result.
+   */
+  splitBatches?: boolean;
 }
 
 /** Restarts a thread runs before it is replaced (nlopt-js leaks a little per run). */
@@ -44,7 +50,8 @@ export function defaultWorkers(study: Study, cores: number = availableParallelis
 /** Runs a study's search on worker threads and returns the result file. */
 export async function optimizeStudy(study: Study, options: NodeSearchOptions = {}): Promise<OptimizationResult> {
   const workers = Math.max(1, Math.min(options.workers ?? defaultWorkers(study), usefulWorkers(study)));
-  const runner = new NodeSearchRunner(workers, drawsRandomNumbers(study.search.method, study.search.local_method));
+  const split = (options.splitBatches ?? true) && workers >= 2;
+  const runner = new NodeSearchRunner(workers, drawsRandomNumbers(study.search.method, study.search.local_method), split);
   runner.warm();
   try {
     return await searchStudy(study, runner, options);
@@ -61,8 +68,8 @@ class Thread {
   nloptRuns = 0;
   closed = false;
 
-  constructor(url: URL) {
-    this.worker = new Worker(url);
+  constructor(url: URL, activity: SharedArrayBuffer | undefined) {
+    this.worker = new Worker(url, { workerData: { activity } });
     this.api = Comlink.wrap<OptimizeWorkerApi>(nodeEndpoint(this.worker as unknown as Parameters<typeof nodeEndpoint>[0]));
     this.died = new Promise<never>((_, reject) => {
       this.worker.once('error', (e) => reject(new SearchError(`a search worker failed: ${e.message}`)));
@@ -85,12 +92,17 @@ export class NodeSearchRunner implements SearchRunner {
   private readonly all = new Set<Thread>();
   private running = 0;
   private readonly waiting: (() => void)[] = [];
+  /** [jobs running, threads], shared with the threads when they may split batches. */
+  private readonly activity: SharedArrayBuffer | undefined;
 
   constructor(
     readonly concurrency: number,
     /** The study's method draws random numbers: each restart needs a thread that has run no NLopt. */
     private readonly needsFreshModule: boolean,
-  ) {}
+    splitBatches = false,
+  ) {
+    this.activity = splitBatches ? activityBuffer(concurrency) : undefined;
+  }
 
   restart(task: RestartTask, control: RunnerControl<RestartProgress>): Promise<RestartResult> {
     return this.job(this.needsFreshModule, control.signal, (thread, cancel) => {
@@ -109,7 +121,7 @@ export class NodeSearchRunner implements SearchRunner {
    */
   warm(): void {
     while (this.all.size < this.concurrency) {
-      const thread = new Thread(this.url);
+      const thread = new Thread(this.url, this.activity);
       this.all.add(thread);
       this.idle.push(thread);
       // loading NLopt does not run it: the thread stays pristine for a stochastic restart
@@ -143,6 +155,7 @@ export class NodeSearchRunner implements SearchRunner {
       signal.removeEventListener('abort', onAbort);
       this.give(thread, healthy);
       this.running--;
+      this.publish();
       this.waiting.shift()?.();
     }
   }
@@ -150,12 +163,17 @@ export class NodeSearchRunner implements SearchRunner {
   private async slot(): Promise<void> {
     while (this.running >= this.concurrency) await new Promise<void>((resolve) => this.waiting.push(resolve));
     this.running++;
+    this.publish();
+  }
+
+  private publish(): void {
+    if (this.activity) Atomics.store(new Int32Array(this.activity), 0, this.running);
   }
 
   private take(pristine: boolean): Thread {
     const at = this.idle.findIndex((t) => !pristine || t.nloptRuns === 0);
     if (at >= 0) return this.idle.splice(at, 1)[0];
-    const thread = new Thread(this.url);
+    const thread = new Thread(this.url, this.activity);
     this.all.add(thread);
     return thread;
   }

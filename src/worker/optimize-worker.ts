@@ -6,14 +6,25 @@
 
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
-import { parentPort } from 'node:worker_threads';
+import { parentPort, workerData } from 'node:worker_threads';
 import { loadEngine } from '../core/engine.js';
 import { loadNlopt } from '../core/optimize/nlopt.js';
 import { runRestart, type RestartProgress, type RestartResult, type RestartTask } from '../core/optimize/restart.js';
 import { runScoreTask, type ScoreResult, type ScoreTask } from '../core/optimize/score.js';
+import { SplitEngine } from './batch-helper.js';
 
 const port = parentPort;
 if (!port) throw new Error('optimize-worker.js runs only as a worker thread');
+
+// With the runner's shared job count, big batches are split with a helper thread while a core
+// would otherwise idle (batch-helper.ts); the numbers are the same.
+const activity = (workerData as { activity?: SharedArrayBuffer } | undefined)?.activity;
+let split: SplitEngine | undefined;
+async function engine(): Promise<SplitEngine | undefined> {
+  if (!activity) return undefined;
+  split ??= new SplitEngine(await loadEngine(), activity);
+  return split;
+}
 
 type Callback<P> = ((p: P) => void) & { [Comlink.releaseProxy]?: () => void };
 
@@ -32,15 +43,17 @@ const api = {
     await Promise.all([loadEngine(), loadNlopt()]);
   },
 
-  restart(task: RestartTask, cancel: SharedArrayBuffer, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
+  async restart(task: RestartTask, cancel: SharedArrayBuffer, onProgress?: Callback<RestartProgress>): Promise<RestartResult> {
     const flag = new Int32Array(cancel);
-    return withCallback(onProgress, (report) => runRestart(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report }));
+    const batches = await engine();
+    return withCallback(onProgress, (report) => runRestart(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report, engine: batches }));
   },
 
-  score(task: ScoreTask, cancel: SharedArrayBuffer, onProgress?: Callback<{ done: number; total: number }>): Promise<ScoreResult> {
+  async score(task: ScoreTask, cancel: SharedArrayBuffer, onProgress?: Callback<{ done: number; total: number }>): Promise<ScoreResult> {
     const flag = new Int32Array(cancel);
+    const batches = await engine();
     return withCallback(onProgress, (report) =>
-      runScoreTask(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report && ((done, total) => report({ done, total })) }),
+      runScoreTask(task, { shouldStop: () => Atomics.load(flag, 0) !== 0, onProgress: report && ((done, total) => report({ done, total })), engine: batches }),
     );
   },
 };

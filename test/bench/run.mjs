@@ -13,6 +13,7 @@ import * as L from '../../dist/assembly/layout.js';
 import { odexStride } from '../reference/odex-stride.mjs';
 import { fixedAngleModel } from '../reference/models.mjs';
 import { benchBasin } from './basin.mjs';
+import { benchBiped } from './biped.mjs';
 import { benchMonteCarlo } from './montecarlo.mjs';
 import { benchOptimize } from './optimize.mjs';
 import { benchLongTasks } from './ui-longtask.mjs';
@@ -476,7 +477,7 @@ async function main() {
 
 // `node test/bench/run.mjs [kernel] [montecarlo] [optimize] [basin] [ui]` runs only the named
 // sections (all of them without arguments); the goals table covers what ran.
-const SECTIONS = ['kernel', 'montecarlo', 'optimize', 'basin', 'ui'];
+const SECTIONS = ['kernel', 'montecarlo', 'optimize', 'basin', 'ui', 'biped'];
 
 async function all() {
   const asked = process.argv.slice(2);
@@ -499,6 +500,11 @@ async function all() {
     log();
     log('== basin of attraction on the worker pool');
     await benchBasin(log);
+  }
+  if (run('biped')) {
+    log();
+    log('== two-leg walking stride vs single-leg running stride (one core)');
+    await benchBiped(log);
   }
   if (run('ui')) {
     log();

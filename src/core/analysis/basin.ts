@@ -12,7 +12,8 @@
 import * as L from '../../../assembly/layout.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { rolloutInput, type BatchRequest, type BatchResult } from '../engine.js';
-import { buildModel, STATUS_NAMES, STATUS_TEXT } from '../model.js';
+import { buildModel, landingLegLength, STATUS_NAMES, STATUS_TEXT } from '../model.js';
+import { isBiped, legParameters, sectionEnergy, sectionInput, speedAtEnergy, startState } from '../models/biped.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { BOUNDS, MAX_STRIDES, boundText, firstTouchdownHeightM, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
@@ -143,10 +144,12 @@ export interface BasinRunControl {
 
 /** The attack angle's touchdown height on flat ground: the lowest apex from which a stride can start. */
 export function flatTouchdownHeightM(scenario: Scenario): number {
-  return firstTouchdownHeightM(scenario.body.leg_length_m, scenario.policy.angle, { kind: 'flat' });
+  return firstTouchdownHeightM(landingLegLength(scenario), scenario.policy.angle, { kind: 'flat' });
 }
 
+/** The start section's energy (two-leg walking: the stance leg's spring included). */
 export function startEnergyJ(scenario: Scenario): number {
+  if (isBiped(scenario)) return sectionEnergy(scenario, startState(scenario));
   const { mass_kg: m, gravity_m_per_s2: g } = scenario.body;
   const { apex_height_m: y, forward_speed_m_per_s: v } = scenario.start;
   return m * g * y + 0.5 * m * v * v;
@@ -160,13 +163,15 @@ export function startEnergyJ(scenario: Scenario): number {
 export function defaultBasinAxes(scenario: Scenario, energy: boolean): { heights: GridAxis; speeds?: GridAxis } {
   const touchdown = flatTouchdownHeightM(scenario);
   const y0 = scenario.start.apex_height_m;
+  // two-leg walking: a single-support apex lies at most a stance leg's length high
+  const top = isBiped(scenario) && scenario.start.gait === 'walking' ? startLegLength(scenario) : Infinity;
   if (energy) {
     const { mass_kg: m, gravity_m_per_s2: g } = scenario.body;
-    return { heights: { low: touchdown, high: startEnergyJ(scenario) / (m * g), count: 101 } };
+    return { heights: { low: touchdown, high: Math.min(startEnergyJ(scenario) / (m * g), top), count: 101 } };
   }
   const v0 = scenario.start.forward_speed_m_per_s;
   return {
-    heights: { low: touchdown, high: 2 * y0 - touchdown, count: 41 },
+    heights: { low: touchdown, high: Math.min(2 * y0 - touchdown, top), count: 41 },
     speeds: v0 > 0 ? { low: 0.5 * v0, high: 1.5 * v0, count: 41 } : { low: 0, high: 1, count: 41 },
   };
 }
@@ -287,6 +292,14 @@ function cellStarts(scenario: Scenario, run: BasinRunOptions): { height: number;
   }
   const { mass_kg: m, gravity_m_per_s2: g } = scenario.body;
   const energy = run.energy_J!;
+  if (isBiped(scenario)) {
+    // the speed the section state (height, the start's offset and leg) has at this energy
+    const st = startState(scenario);
+    return heights.map((height) => {
+      const speed = speedAtEnergy(scenario, energy, { gait: st.gait, height_m: height, offset_m: st.offset_m, leg: st.leg });
+      return { height, speed: Number.isFinite(speed) ? speed : null };
+    });
+  }
   // v = sqrt(2(E − m g y)/m): kinetic energy is what the potential leaves of E
   return heights.map((height) => {
     const kinetic = energy - m * g * height;
@@ -324,7 +337,15 @@ export async function basinRows(
   });
   if (runnable.length > 0) {
     const inputs = new Float64Array(runnable.length * L.I_SIZE); // (runnable × I_SIZE)
-    runnable.forEach((i, r) => inputs.set(rolloutInput(cells[i].height, cells[i].speed!), r * L.I_SIZE));
+    const st = isBiped(scenario) ? startState(scenario) : null;
+    runnable.forEach((i, r) =>
+      inputs.set(
+        st // two-leg model: the cell's section state with the start's offset and leg
+          ? sectionInput({ ...st, height_m: cells[i].height, speed_m_per_s: cells[i].speed! })
+          : rolloutInput(cells[i].height, cells[i].speed!),
+        r * L.I_SIZE,
+      ),
+    );
     const runBatch = control.runBatch ?? (await import('../../worker/pool.js')).runBatchParallel;
     const batch = await runBatch(
       { model: flatModel(scenario), inputs, strides: run.strides },
@@ -510,4 +531,10 @@ export async function basinOfAttraction(
 export function reasonText(code: string): string {
   const status = Object.entries(STATUS_NAMES).find(([, name]) => name === code)?.[0];
   return status === undefined ? code : STATUS_TEXT[Number(status)];
+}
+
+// The stance leg's rest length at a two-leg walking start.
+function startLegLength(scenario: Scenario): number {
+  if (!isBiped(scenario)) return scenario.body.leg_length_m;
+  return legParameters(scenario)[scenario.start.leg === 'right' ? 1 : 0].length_m;
 }

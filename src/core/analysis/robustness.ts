@@ -8,10 +8,11 @@
 // run joined from shards is bit-identical to it.
 
 import * as L from '../../../assembly/layout.js';
-import { rolloutInput, type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
+import { type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
-import { buildModel, STATUS_NAMES } from '../model.js';
+import { buildModel, startInput, STATUS_NAMES } from '../model.js';
+import { kindOf } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { BOUNDS, MAX_STRIDES, boundText, type Scenario } from '../scenario.js';
 import type { ShardRange } from '../shard.js';
@@ -90,7 +91,7 @@ export interface RobustnessResult {
   mean_strides_completed: number;
   strides: number;
   terrain: { kind: RandomTerrainKind; sigma_m: number; seed: number; streams: string };
-  start: { apex_height_m: number; forward_speed_m_per_s: number };
+  start: { apex_height_m: number; forward_speed_m_per_s: number; gait?: string; offset_m?: number; leg?: string };
   target: { apex_height_m: number; forward_speed_m_per_s: number };
   /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
   integrator?: AccuracyReport;
@@ -198,7 +199,7 @@ export async function robustnessRows(
   if (count <= 0) return [];
   const inputs = new Float64Array(count * L.I_SIZE); // (count x I_SIZE), stream = global rollout index
   for (let i = 0; i < count; i++) {
-    inputs.set(rolloutInput(scenario.start.apex_height_m, scenario.start.forward_speed_m_per_s, start + i), i * L.I_SIZE);
+    inputs.set(startInput(scenario, start + i), i * L.I_SIZE); // the kind's start section, stream r
   }
   const req: BatchRequest = { model: robustnessModel(scenario, canonical), inputs, strides: canonical.strides };
   let batch: BatchResult;
@@ -235,7 +236,9 @@ export async function finishRobustness(
   checkRows(rows, o);
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
-  for (let code = 0; code < L.STATUS_COUNT_SLIP; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
+  // the statuses the scenario's model kind can report
+  const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT : L.STATUS_COUNT_SLIP;
+  for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;
   let stridesTotal = 0;
@@ -265,7 +268,13 @@ export async function finishRobustness(
       seed: o.seed,
       streams: `rollout r runs on terrain stream r (0 to ${n - 1}) of this seed, replacing the scenario's terrain`,
     },
-    start: { apex_height_m: scenario.start.apex_height_m, forward_speed_m_per_s: scenario.start.forward_speed_m_per_s },
+    // the start section: a flight apex, or with the two-leg model walking a single-support apex
+    // (the `--json` header's section), with its offset and stance leg
+    start: {
+      apex_height_m: scenario.start.apex_height_m,
+      forward_speed_m_per_s: scenario.start.forward_speed_m_per_s,
+      ...(kindOf(scenario) === 'biped' ? { gait: scenario.start.gait, offset_m: scenario.start.offset_m, leg: scenario.start.leg } : {}),
+    },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
     ...accuracyReport(scenario.integrator),
     strides_completed_total: stridesTotal,

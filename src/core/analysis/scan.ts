@@ -16,6 +16,8 @@ import { InputError, closestName, describeFound } from '../errors.js';
 import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, shardRange, type PartialResult, type ShardSpec } from '../shard.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { parseScenario, type Scenario } from '../scenario.js';
+import { type BipedScenario, isBiped, sectionEnergy, startState } from '../models/biped.js';
+import { bipedReturnMap } from './biped-map.js';
 import { PRONK_VERSION, contentHash } from '../version.js';
 import {
   DEFAULT_MAP_SAMPLES,
@@ -56,9 +58,14 @@ export type ScanClass = 'none' | 'unstable' | 'stable';
 export interface ScanFixedPoint {
   apex_height_m: number;
   forward_speed_m_per_s: number;
-  slope: number;
-  slope_error: number;
+  /** The 1-D map's slope (single-leg model); null for the two-leg model, classified by its eigenvalues. */
+  slope: number | null;
+  slope_error: number | null;
   stable: boolean;
+  /** Two-leg model: the largest |eigenvalue| of the reduced section map (stable when < 1). */
+  spectral_radius?: number;
+  /** Two-leg model walking: body x minus stance foot x at the fixed point, m. */
+  offset_m?: number;
 }
 
 /** One cell of the grid: cells[iy * nx + ix] (row-major, y outer). */
@@ -74,6 +81,8 @@ export interface ScanCell {
   /** The lowest stable fixed point's height and slope, or null. */
   stable_apex_height_m: number | null;
   stable_slope: number | null;
+  /** Two-leg model: the stable fixed point's largest |eigenvalue| (null when none). */
+  stable_spectral_radius?: number | null;
   fixed_points: ScanFixedPoint[];
   energy_conserving: boolean;
   /** No sampled stride survived at this energy. */
@@ -289,6 +298,7 @@ function buildGrid(scenario: Scenario, options: ScanOptions): ScanGrid {
 async function scanRows(grid: ScanGrid, start: number, end: number, runBatch: BatchRunner): Promise<ScanCell[]> {
   const chosen = grid.scenarios.slice(start, end);
   if (chosen.length === 0) return [];
+  if (chosen.some(isBiped)) return bipedScanRows(grid, start, chosen as BipedScenario[], runBatch);
   // each cell at its own start energy, as `map` takes the cell's scenario
   const cells = chosen.map((s) => mapCell(s, startEnergy(s)));
   const evaluate = kernelEvaluator(chosen.map(mapModel), runBatch);
@@ -334,6 +344,47 @@ async function scanRows(grid: ScanGrid, start: number, end: number, runBatch: Ba
       identity_map: roots[i].identity,
     };
   });
+}
+
+// The two-leg model: each cell's section map (`map`'s analysis: every fixed point, classified by
+// all eigenvalues of the reduced map) at the cell's own start energy, one cell after another.
+async function bipedScanRows(grid: ScanGrid, start: number, chosen: BipedScenario[], runBatch: BatchRunner): Promise<ScanCell[]> {
+  const nx = grid.xValues.length;
+  const rows: ScanCell[] = [];
+  for (let i = 0; i < chosen.length; i++) {
+    const scenario = chosen[i];
+    const map = await bipedReturnMap(scenario, { samples: grid.options.samples, iterations: 0, runBatch });
+    const fixedPoints: ScanFixedPoint[] = map.fixed_points.map((f) => ({
+      apex_height_m: f.height_m,
+      forward_speed_m_per_s: f.speed_m_per_s,
+      slope: null,
+      slope_error: null,
+      stable: f.stable,
+      spectral_radius: f.eigenvalues.length ? f.eigenvalues[0].modulus : Number.NaN,
+      offset_m: f.offset_m,
+    }));
+    const stable = fixedPoints.find((f) => f.stable);
+    const index = start + i;
+    const ix = index % nx;
+    const iy = Math.floor(index / nx);
+    rows.push({
+      index,
+      ix,
+      iy,
+      x: grid.xValues[ix],
+      y: grid.yValues[iy],
+      energy_J: map.energy_J,
+      class: stable ? 'stable' : fixedPoints.length ? 'unstable' : 'none',
+      stable_apex_height_m: stable ? stable.apex_height_m : null,
+      stable_slope: null,
+      stable_spectral_radius: stable ? (stable.spectral_radius ?? null) : null,
+      fixed_points: fixedPoints,
+      energy_conserving: conservesEnergy(scenario),
+      domain_empty: !map.scan.some((x) => x.next_height_m !== null),
+      identity_map: false,
+    });
+  }
+  return rows;
 }
 
 export interface ScanRunOptions {
@@ -435,7 +486,7 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
     highest = Math.max(highest, row.energy_J);
   }
   return {
-    energy_J: startEnergy(validated),
+    energy_J: isBiped(validated) ? sectionEnergy(validated, startState(validated)) : startEnergy(validated),
     cell_energy_range_J: [lowest, highest],
     ground_height_m: 0,
     scenario_sha256: await contentHash(validated),
@@ -445,8 +496,11 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
     samples: normalized.samples,
     cells: rows.map((row) => ({ ...row })),
     counts,
-    stability_note:
-      "each cell's 1-D apex map at that cell's own start energy on flat ground at 0" +
+    stability_note: isBiped(validated)
+      ? "each cell's section map reduced by energy (the two-leg model: walking (height, offset), running (height)) at that cell's own start energy on flat ground at 0" +
+        (lowest === highest ? ' (the same in every cell)' : ` (from ${lowest} to ${highest} J over the cells)`) +
+        '; stable means every eigenvalue of the reduced map inside the unit circle (spectral_radius < 1)'
+      : "each cell's 1-D apex map at that cell's own start energy on flat ground at 0" +
       (lowest === highest ? ' (the same in every cell)' : ` (from ${lowest} to ${highest} J over the cells)`) +
       "; stable means |P'(y*)| < 1" +
       (conservative ? '' : "; some cells change energy in stance, where this is the 1-D map's stability, not a periodic orbit's"),

@@ -18,9 +18,9 @@
 // so), and the bisection then takes log2(spacing / resolution) batched calls.
 
 import * as L from '../../../assembly/layout.js';
-import { loadEngine, rolloutInput, type Engine, type ModelBlock } from '../engine.js';
+import { loadEngine, type Engine, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
-import { buildModel, STATUS_NAMES, STATUS_TEXT } from '../model.js';
+import { buildModel, landingLegLength, startInput, STATUS_NAMES, STATUS_TEXT } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { MAX_STRIDES, firstTouchdownHeightM, type Scenario } from '../scenario.js';
 
@@ -143,7 +143,7 @@ function canonicalOptions(scenario: Scenario, options: StepToleranceOptions, nam
   const grid = options.grid_m ?? Math.max(DEFAULT_GRID_M, resolution);
   const settleStrides = options.settle_strides ?? DEFAULT_SETTLE_STRIDES;
   const settleBand = options.settle_band_m ?? DEFAULT_SETTLE_BAND_M;
-  const legLength = scenario.body.leg_length_m;
+  const legLength = landingLegLength(scenario);
   // the bounds as the message shows them (6 significant digits), so that a value typed as shown is
   // accepted: never "expected from 4.5e-7 ..., found 4.5e-7" (0.45 / 1e6 is 4.5000000000000003e-7)
   const finest = Number((legLength / MAX_LATTICE).toPrecision(6));
@@ -183,7 +183,7 @@ export async function stepTolerance(
   const base = buildModel(scenario);
   const strides = 1 + o.after;
   const start = scenario.start;
-  const input = (model: number) => rolloutInput(start.apex_height_m, start.forward_speed_m_per_s, 0, model);
+  const input = (model: number) => startInput(scenario, 0, model); // the kind's start section
 
   // Evaluate signed lattice sizes (k > 0 drop, k < 0 rise, in resolutions) in one kernel call.
   const cache = new Map<number, Evaluation>();
@@ -200,7 +200,7 @@ export async function stepTolerance(
   };
   const groundAt = (k: number) => -sizeOf(k, o); // a drop lowers the ground
 
-  const legLength = scenario.body.leg_length_m;
+  const legLength = landingLegLength(scenario);
   const clearance = start.apex_height_m - firstTouchdownHeightM(legLength, scenario.policy.angle, { kind: 'flat' });
   if (!(clearance > 0)) {
     throw new InputError([

@@ -51,7 +51,7 @@ export interface ExportOptions {
   mode?: GridMode;
   /** Overrides the end of the time axis, s. */
   t_max_s?: number;
-  /** Write despite refusals, and say so in the files. */
+  /** Write despite negative constraint margins, and say so in the files (never past an unsafe number). */
   force?: boolean;
   /** When the export is made (default now). */
   date?: Date;

@@ -14,9 +14,8 @@
 import { z } from 'zod';
 import { InputError, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { parseScenario, type Scenario } from '../scenario.js';
-import { requireKind } from '../models/kind.js';
+import { MODEL_KINDS, kindOf, requireKind } from '../models/kind.js';
 import { contentHash } from '../version.js';
-import { MODEL_KIND } from '../json-output.js';
 import type { Policy } from './sample.js';
 
 export const RESULT_FORMAT = 'pronk-result';
@@ -87,7 +86,7 @@ export const resultSchema = z.object(
     format_version: z.literal(RESULT_FORMAT_VERSION, { error: String(RESULT_FORMAT_VERSION) }),
     kind: z.enum(RESULT_KINDS, { error: `one of ${RESULT_KINDS.join(', ')}` }),
     // written since the result files said which model they describe; older files have none
-    model: z.literal(MODEL_KIND, { error: `"${MODEL_KIND}" (the model of this Pronk version)` }).optional(),
+    model: z.enum(MODEL_KINDS, { error: `one of the model kinds ${MODEL_KINDS.map((k) => `"${k}"`).join(', ')} (the scenario's kind)` }).optional(),
     // validated below with the scenario's own messages; here only present (z.unknown() would say
     // "Invalid input: expected nonoptional" for a missing one)
     scenario: z.custom<unknown>((v) => v !== undefined, { error: 'the scenario the policy was made for (an object with body, start, policy, ...)' }),
@@ -146,10 +145,13 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario);
+    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip'] });
     requireKind(scenario, 'export', ['slip']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
+  }
+  if (scenario && result.model !== undefined && result.model !== kindOf(scenario)) {
+    issues.push({ path: 'model', expected: `the kind of the result's scenario ("${kindOf(scenario)}")`, found: `"${result.model}"` });
   }
   let exported: Scenario | undefined;
   if (scenario) {
@@ -193,7 +195,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file });
+  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip'] });
   requireKind(scenario, 'export', ['slip'], file);
   const scenarioHash = await contentHash(scenario);
   return {

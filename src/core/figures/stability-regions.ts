@@ -39,7 +39,7 @@ export function stabilityRegionsFigure(result: ScanResult, options: StabilityReg
   const ys = result.y.values;
   const tip = (index: number) => cellText(result, result.cells[index]);
   const series: SeriesOption[] = [
-    cellSeries({ id: 'stable', name: 'stable (|slope| < 1)', data: of('stable', (c) => Math.abs(c.stable_slope as number)), xs, ys, color: STATE_COLORS.stable, tooltip: tip }),
+    cellSeries({ id: 'stable', name: 'stable (|slope| < 1)', data: of('stable', (c) => Math.abs((c.stable_slope ?? c.stable_spectral_radius) as number)), xs, ys, color: STATE_COLORS.stable, tooltip: tip }),
     cellSeries({ id: 'unstable', name: 'unstable fixed points only (slashed)', data: of('unstable', (c) => c.fixed_points.length), xs, ys, color: STATE_COLORS.unstable, glyph: 'slash', glyphColor: PALETTE.ink, tooltip: tip }),
     cellSeries({ id: 'none', name: 'no fixed point', data: of('none', () => 0), xs, ys, color: STATE_COLORS.none, outline: '#cfcac0', tooltip: tip }),
   ];

@@ -23,8 +23,13 @@ import { robustnessModel } from '../analysis/robustness.js';
 import { stepModel } from '../analysis/stepdown.js';
 import { axisValues } from '../analysis/basin.js';
 import { rolloutInput, type Engine, type ModelBlock } from '../engine.js';
+
+/** What an evaluator needs of an engine: its batches (a host may split them over threads). */
+export type BatchEngine = Pick<Engine, 'runBatch'>;
 import { InputError, describeFound } from '../errors.js';
-import { buildModel, DEG, STATUS_NAMES } from '../model.js';
+import { buildModel, DEG, landingLegLength, STATUS_NAMES, startInput } from '../model.js';
+import { isBiped, sectionEnergy, sectionInput, speedAtEnergy, startState } from '../models/biped.js';
+import { bipedRobotBlock, factorsPerRobot, shorterLegM, stiffnessScales } from './kinds.js';
 import { parseScenario, type Scenario } from '../scenario.js';
 import { Z_95, newcombeDifferenceInterval, wilsonInterval } from '../stats.js';
 import {
@@ -215,7 +220,21 @@ function seededUniform(seed: number): () => number {
  * standard normal (Box–Muller) truncated at |z| <= 3 by redrawing. No mismatch: all 1.
  */
 export function mismatchFactors(mismatch: ModelMismatch | null, seed: number, count: number): Float64Array {
-  const factors = new Float64Array(count * 3).fill(1);
+  return drawFactors(mismatch, seed, count, false);
+}
+
+/**
+ * Body factors for `count` two-leg robots, (count × 5): mass, left leg stiffness, left leg length,
+ * right leg stiffness, right leg length, drawn in that order per robot as mismatchFactors draws
+ * (each leg's stiffness and length drawn separately, with the study's fractions).
+ */
+export function mismatchFactorsPerLeg(mismatch: ModelMismatch | null, seed: number, count: number): Float64Array {
+  return drawFactors(mismatch, seed, count, true);
+}
+
+function drawFactors(mismatch: ModelMismatch | null, seed: number, count: number, perLeg: boolean): Float64Array {
+  const width = perLeg ? 5 : 3;
+  const factors = new Float64Array(count * width).fill(1);
   if (!mismatch) return factors;
   const uniform = seededUniform(seed);
   let spare: number | null = null;
@@ -237,11 +256,12 @@ export function mismatchFactors(mismatch: ModelMismatch | null, seed: number, co
       if (Math.abs(z) <= 3) return z;
     }
   };
-  const fractions = [mismatch.mass_fraction, mismatch.leg_stiffness_fraction, mismatch.leg_length_fraction];
+  const leg = [mismatch.leg_stiffness_fraction, mismatch.leg_length_fraction];
+  const fractions = perLeg ? [mismatch.mass_fraction, ...leg, ...leg] : [mismatch.mass_fraction, ...leg];
   for (let i = 0; i < count; i++) {
-    for (let k = 0; k < 3; k++) {
+    for (let k = 0; k < width; k++) {
       const draw = mismatch.distribution === 'uniform' ? 2 * uniform() - 1 : truncated();
-      factors[i * 3 + k] = 1 + fractions[k] * draw;
+      factors[i * width + k] = 1 + fractions[k] * draw;
     }
   }
   return factors;
@@ -302,6 +322,9 @@ interface BatchGroup {
   members: { plan: MonteCarloPlan | null; first: number; count: number }[]; // plan null: the nominal gait
   inputs: Float64Array; // (rollouts × I_SIZE), built once
   legFactors: Float64Array; // (rollouts), the leg-length factor of each rollout
+  // two-leg model: each rollout's robot factors (rollouts × 5: mass, k and L of the left leg, of
+  // the right) and its own model block (I_MODEL = the rollout's index in the group); null otherwise
+  robots: Float64Array | null;
 }
 
 interface Memo {
@@ -339,7 +362,7 @@ export class StudyEvaluator {
 
   constructor(
     readonly study: Study,
-    private readonly engine: Engine,
+    private readonly engine: BatchEngine,
     set: EvaluationSet = 'training',
   ) {
     const free = study.free_parameters;
@@ -366,7 +389,9 @@ export class StudyEvaluator {
       streams += span;
       return rollouts;
     });
-    const robots = mismatchFactors(study.model_mismatch, this.seed, streams);
+    const biped = isBiped(study.scenario);
+    const width = factorsPerRobot(study.scenario);
+    const robots = biped ? mismatchFactorsPerLeg(study.model_mismatch, this.seed, streams) : mismatchFactors(study.model_mismatch, this.seed, streams);
     const byStrides = new Map<number, { plan: MonteCarloPlan | null }[]>();
     const join = (strides: number, plan: MonteCarloPlan | null) => {
       const list = byStrides.get(strides) ?? [];
@@ -380,11 +405,25 @@ export class StudyEvaluator {
       const total = list.reduce((sum, m) => sum + (m.plan ? m.plan.rollouts : 1), 0);
       const inputs = new Float64Array(total * L.I_SIZE);
       const legFactors = new Float64Array(total).fill(1);
+      const groupRobots = biped ? new Float64Array(total * width).fill(1) : null;
       let at = 0;
       const members = list.map(({ plan }, model) => {
         const count = plan ? plan.rollouts : 1;
         for (let r = 0; r < count; r++) {
-          const row = rolloutInput(y0, v0, plan ? plan.streamStart + r : 0, model);
+          const stream = plan ? plan.streamStart + r : 0;
+          if (groupRobots) {
+            // two legs: the robot's leg factors go into its own model block (bipedRobotBlock)
+            const row = startInput(study.scenario, stream);
+            row[L.I_MODEL] = at + r;
+            if (plan) {
+              const robot = robots.subarray(stream * width, (stream + 1) * width);
+              groupRobots.set(robot, (at + r) * width);
+              row[L.I_MASS_SCALE] = robot[0];
+            }
+            inputs.set(row, (at + r) * L.I_SIZE);
+            continue;
+          }
+          const row = rolloutInput(y0, v0, stream, model);
           if (plan) {
             const robot = (plan.streamStart + r) * 3;
             row[L.I_MASS_SCALE] = robots[robot];
@@ -398,7 +437,7 @@ export class StudyEvaluator {
         at += count;
         return member;
       });
-      return { strides, members, inputs, legFactors };
+      return { strides, members, inputs, legFactors, robots: groupRobots };
     });
 
     // scores are >= 0 except tracking's, >= −2·fall_penalty
@@ -574,7 +613,16 @@ export class StudyEvaluator {
     const total = this.rolloutCount;
     let done = 0;
     for (const group of this.groups) {
-      const models = group.members.map(({ plan }) => (plan ? monteCarloModel(scenario, terms[plan.term] as MonteCarloTerm, this.seed) : flatModel(scenario)));
+      let models = group.members.map(({ plan }) => (plan ? monteCarloModel(scenario, terms[plan.term] as MonteCarloTerm, this.seed) : flatModel(scenario)));
+      const robots = group.robots;
+      if (robots) {
+        // two legs: one block per rollout, its member's block with that robot's legs
+        const perRollout: ModelBlock[] = [];
+        for (const [m, member] of group.members.entries()) {
+          for (let r = member.first; r < member.first + member.count; r++) perRollout.push(bipedRobotBlock(models[m], robots.subarray(r * 5, r * 5 + 5)));
+        }
+        models = perRollout;
+      }
       const rollouts = group.inputs.length / L.I_SIZE;
       let s: Float64Array; // (rollouts × S_SIZE)
       if (!onRollouts) {
@@ -591,7 +639,8 @@ export class StudyEvaluator {
       }
       for (const member of group.members) {
         for (let r = member.first; r < member.first + member.count; r++) {
-          extremes.add(s, r, scenario.body.leg_length_m * group.legFactors[r]);
+          const legLength = robots ? shorterLegM(scenario, robots.subarray(r * 5, r * 5 + 5)) : scenario.body.leg_length_m * group.legFactors[r];
+          extremes.add(s, r, legLength);
         }
         if (!member.plan) {
           const at = member.first * L.S_SIZE;
@@ -622,6 +671,16 @@ export class StudyEvaluator {
       const speeds = axisValues(term.speeds!.low_m_per_s, term.speeds!.high_m_per_s, term.speeds!.count);
       for (const height of heights) for (const speed of speeds) starts.push({ height, speed });
       cells = starts.length;
+    } else if (isBiped(scenario)) {
+      // two legs: the speed the section state (height, the start's offset and leg) has at the
+      // start section's energy, springs included (as pronk basin)
+      const st = startState(scenario);
+      const energy = sectionEnergy(scenario, st);
+      cells = heights.length;
+      for (const height of heights) {
+        const speed = speedAtEnergy(scenario, energy, { gait: st.gait, height_m: height, offset_m: st.offset_m, leg: st.leg });
+        if (Number.isFinite(speed)) starts.push({ height, speed }); // a cell without speed is not attracted
+      }
     } else {
       // at the start's energy: v = sqrt(2(E − m g y)/m) = sqrt(v0² + 2 g (y0 − y))
       const g = scenario.body.gravity_m_per_s2;
@@ -635,7 +694,15 @@ export class StudyEvaluator {
     let converged = 0;
     if (starts.length > 0) {
       const inputs = new Float64Array(starts.length * L.I_SIZE);
-      starts.forEach((cell, i) => inputs.set(rolloutInput(cell.height, cell.speed), i * L.I_SIZE));
+      const st = isBiped(scenario) ? startState(scenario) : null;
+      starts.forEach((cell, i) =>
+        inputs.set(
+          st // two legs: the cell's section state with the start's offset and leg (as pronk basin)
+            ? sectionInput({ ...st, height_m: cell.height, speed_m_per_s: cell.speed })
+            : rolloutInput(cell.height, cell.speed),
+          i * L.I_SIZE,
+        ),
+      );
       const s = this.engine.runBatch({ model: flatModel(scenario), inputs, strides: term.strides }).summaries;
       for (let i = 0; i < starts.length; i++) {
         const at = i * L.S_SIZE;
@@ -656,7 +723,7 @@ export class StudyEvaluator {
   // (the definition of `pronk stepdown`): a coarse scan in one call, then bisection.
   private stepDown(scenario: Scenario, term: StepDownTerm): TermResult {
     const base = buildModel(scenario);
-    const leg = scenario.body.leg_length_m;
+    const leg = landingLegLength(scenario);
     const resolution = term.resolution_m;
     const gridSteps = Math.max(1, Math.round(term.grid_m / resolution));
     const limit = Math.round(leg / resolution);
@@ -668,7 +735,7 @@ export class StudyEvaluator {
       const todo = [...new Set(ks)].filter((k) => !cache.has(k));
       if (todo.length === 0) return;
       const inputs = new Float64Array(todo.length * L.I_SIZE);
-      todo.forEach((_, i) => inputs.set(rolloutInput(y0, v0, 0, i), i * L.I_SIZE));
+      todo.forEach((_, i) => inputs.set(startInput(scenario, 0, i), i * L.I_SIZE)); // the kind's start section
       const s = this.engine.runBatch({ model: todo.map((k) => stepModel(base, -size(k))), inputs, strides }).summaries;
       todo.forEach((k, i) => cache.set(k, s[i * L.S_SIZE + L.S_STATUS] === L.STATUS_OK));
     };
@@ -779,6 +846,7 @@ class Extremes {
   compressionFraction = -Infinity;
   minAttack = Infinity;
   maxAttack = -Infinity;
+  verticalForce = -Infinity;
   completed = 0;
 
   add(s: Float64Array, r: number, legLength: number): void {
@@ -789,6 +857,8 @@ class Extremes {
       this.peakForce = Math.max(this.peakForce, s[at + L.S_MAX_PEAK_FORCE]);
       this.friction = Math.max(this.friction, s[at + L.S_MAX_FRICTION]);
       this.compressionFraction = Math.max(this.compressionFraction, s[at + L.S_MAX_COMPRESSION] / legLength);
+      // the peak summed vertical ground force: two-leg model only (NaN for one leg, never read there)
+      this.verticalForce = Math.max(this.verticalForce, s[at + L.S_MAX_VERTICAL_FORCE]);
     }
     // infinite when no touchdown was reached
     if (Number.isFinite(s[at + L.S_MIN_ATTACK])) this.minAttack = Math.min(this.minAttack, s[at + L.S_MIN_ATTACK]);
@@ -800,6 +870,7 @@ function constraintNames(study: Study): string[] {
   const c = study.constraints;
   const names: string[] = [];
   if (c.max_leg_force_N !== undefined) names.push('max_leg_force_N');
+  if (c.max_vertical_force_N !== undefined) names.push('max_vertical_force_N');
   if (c.friction_coefficient !== undefined) names.push('friction_coefficient');
   if (c.max_compression_fraction !== undefined) names.push('max_compression_fraction');
   if (c.leg_angle_range_deg !== undefined) names.push('leg_angle_range_deg.min_deg', 'leg_angle_range_deg.max_deg');
@@ -830,6 +901,9 @@ function measureConstraints(study: Study, scenario: Scenario, e: Extremes): Cons
   const stridesDone = e.completed > 0;
   const touched = Number.isFinite(e.minAttack);
   if (c.max_leg_force_N !== undefined) add('max_leg_force_N', 'upper', 'rollouts', stridesDone ? e.peakForce : null, c.max_leg_force_N);
+  if (c.max_vertical_force_N !== undefined) {
+    add('max_vertical_force_N', 'upper', 'rollouts', stridesDone ? e.verticalForce : null, c.max_vertical_force_N);
+  }
   if (c.friction_coefficient !== undefined) add('friction_coefficient', 'upper', 'rollouts', stridesDone ? e.friction : null, c.friction_coefficient);
   if (c.max_compression_fraction !== undefined) {
     add('max_compression_fraction', 'upper', 'rollouts', stridesDone ? e.compressionFraction : null, c.max_compression_fraction);
@@ -877,8 +951,14 @@ export function hipRateDegPerS(scenario: Scenario): number {
   }
 }
 
-/** Every leg stiffness the policy commands, N/m (nominal robot). */
+/** Every leg stiffness the policy commands, N/m (nominal robot; two legs: each leg's, its stiffness scale applied). */
 export function stiffnessValues(scenario: Scenario): number[] {
+  const scales = stiffnessScales(scenario);
+  const policy = policyStiffnessValues(scenario);
+  return scales.length === 1 && scales[0] === 1 ? policy : scales.flatMap((scale) => policy.map((k) => k * scale));
+}
+
+function policyStiffnessValues(scenario: Scenario): number[] {
   const stiffness = scenario.policy.stiffness;
   switch (stiffness.kind) {
     case 'constant':

@@ -5,7 +5,7 @@
 
 import { loadEngine } from '../engine.js';
 import { minimize, seedToClock, type Outcome } from './nlopt.js';
-import { StudyEvaluator, type Evaluation } from './objectives.js';
+import { StudyEvaluator, type BatchEngine, type Evaluation } from './objectives.js';
 import { parseStudy, usesNativeConstraints } from './study.js';
 
 export interface RestartTask {
@@ -36,6 +36,8 @@ export interface RestartResult {
 
 export interface RestartControl {
   shouldStop?: () => boolean;
+  /** Runs the evaluations' batches (default: the kernel in this thread); the same numbers either way. */
+  engine?: BatchEngine;
   onProgress?: (p: RestartProgress) => void;
 }
 
@@ -47,7 +49,7 @@ export function restartSeed(searchSeed: number, restart: number): number {
 export async function runRestart(task: RestartTask, control: RestartControl = {}): Promise<RestartResult> {
   const started = performance.now();
   const study = parseStudy(task.study);
-  const engine = await loadEngine();
+  const engine = control.engine ?? (await loadEngine());
   const evaluator = new StudyEvaluator(study, engine, 'training');
   const native = usesNativeConstraints(study);
   // the start point first: its scores go in the result, and NLopt's first evaluation (at x0) reuses them

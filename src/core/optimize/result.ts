@@ -5,7 +5,8 @@
 // Sign convention: a SCORE is larger-is-better everywhere it is shown or stored (objective −
 // penalty). NLopt minimizes value = −score; `value` fields are kept for readers of older files.
 
-import { MODEL_KIND } from '../json-output.js';
+import { modelHeader } from '../json-output.js';
+import type { ModelKind } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { parseScenario } from '../scenario.js';
 import { contentHash, PRONK_VERSION } from '../version.js';
@@ -94,7 +95,7 @@ export interface OptimizationResult {
   format_version: 1;
   kind: 'optimization';
   /** The model the policy was made for (see json-output.ts). */
-  model: typeof MODEL_KIND;
+  model: ModelKind;
   /** The base scenario with the best parameters set (runs in `pronk simulate`). */
   scenario: unknown;
   policy: unknown;
@@ -310,7 +311,7 @@ export async function assembleResult(study: Study, record: SearchRecord): Promis
     format: 'pronk-result',
     format_version: 1,
     kind: 'optimization',
-    model: MODEL_KIND,
+    model: modelHeader(study.scenario).model,
     scenario,
     policy: scenario.policy,
     parameters: free.map((p, i) => ({ path: p.path, value: best.outcome.x[i], start: p.start, lower: p.lower, upper: p.upper })),

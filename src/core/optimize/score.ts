@@ -4,7 +4,7 @@
 // (Node or browser) calls runScoreTask; the caller owns parallelism, cancellation and progress.
 
 import { loadEngine } from '../engine.js';
-import { StudyEvaluator, type Evaluation, type RolloutOutcomes, type Screening } from './objectives.js';
+import { StudyEvaluator, type BatchEngine, type Evaluation, type RolloutOutcomes, type Screening } from './objectives.js';
 import { parseStudy } from './study.js';
 
 export type ScoreTask =
@@ -22,6 +22,8 @@ export interface ScoreControl {
   shouldStop?: () => boolean;
   /** Work done of the job's total: candidates (screen) or rollouts (evaluate). */
   onProgress?: (done: number, total: number) => void;
+  /** Runs the batches (default: the kernel in this thread); the same numbers either way. */
+  engine?: BatchEngine;
 }
 
 export class ScoreCancelled extends Error {
@@ -43,7 +45,7 @@ export function scoreTaskSize(task: ScoreTask, study: { objective: { terms: read
 
 export async function runScoreTask(task: ScoreTask, control: ScoreControl = {}): Promise<ScoreResult> {
   const study = parseStudy(task.study);
-  const engine = await loadEngine();
+  const engine = control.engine ?? (await loadEngine());
   const stop = () => {
     if (control.shouldStop?.()) throw new ScoreCancelled();
   };

@@ -47,6 +47,8 @@
 //                              max_hip_rate_deg_per_s (|retraction rate|, or the steepest slope of
 //                              an angle table), stiffness_range_N_per_m {min_N_per_m, max_N_per_m}
 //                              (every stiffness the policy commands)
+//                              two-leg scenarios only: max_vertical_force_N (the peak summed vertical
+//                              ground force); which terms and limits each model kind takes: kinds.ts
 //  model_mismatch              {distribution: uniform (factor in [1 − f, 1 + f]) | normal (sd f,
 //                              truncated at 3 sd), mass_fraction, leg_stiffness_fraction,
 //                              leg_length_fraction [0]}: each Monte Carlo rollout's body factors,
@@ -72,7 +74,9 @@ import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
 import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { landingLegLength } from '../model.js';
 import { requireKind } from '../models/kind.js';
+import { OPTIMIZE_KINDS, kindIssues, parameterRoots } from './kinds.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -255,6 +259,8 @@ const constraintsShape = {
   leg_angle_range_deg: strictObject(angleRangeShape, `an object with ${fields(angleRangeShape)}`),
   max_hip_rate_deg_per_s: between(R.max_hip_rate_deg_per_s[0], R.max_hip_rate_deg_per_s[1], 'deg/s'),
   stiffness_range_N_per_m: strictObject(stiffnessRangeShape, `an object with ${fields(stiffnessRangeShape)}`),
+  // two-leg model only: the peak of the summed vertical ground force of both legs
+  max_vertical_force_N: between(R.max_leg_force_N[0], R.max_leg_force_N[1], 'N'),
 };
 const constraintsSchema = strictObject(
   Object.fromEntries(Object.entries(constraintsShape).map(([k, v]) => [k, v.optional()])) as {
@@ -378,6 +384,8 @@ export type MonteCarloTerm = SurvivalTerm | TrackingTerm;
 
 export interface StudyConstraints {
   max_leg_force_N?: number;
+  /** Two-leg model: the peak summed vertical ground force of both legs, N. */
+  max_vertical_force_N?: number;
   friction_coefficient?: number;
   max_compression_fraction?: number;
   leg_angle_range_deg?: { min_deg: number; max_deg: number };
@@ -535,8 +543,8 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
   } else if (hasInline) {
     try {
-      scenario = parseScenario(raw.scenario);
-      requireKind(scenario, 'optimize', ['slip']);
+      scenario = parseScenario(raw.scenario, { command: 'optimize', supported: OPTIMIZE_KINDS });
+      requireKind(scenario, 'optimize', OPTIMIZE_KINDS);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -558,6 +566,8 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
   const terms = data.objective.terms.map((term, i) => completeTerm(term, i, scenario, issues));
   const constraints = (data.constraints ?? {}) as StudyConstraints;
   checkConstraints(constraints, issues);
+  // terms and limits the scenario's model kind does not have, by name (kinds.ts)
+  issues.push(...kindIssues(scenario, data.objective.terms, constraints as Record<string, unknown>));
   const mismatch = data.model_mismatch ? checkMismatch(data.model_mismatch as ModelMismatch, issues) : null;
   const search = completeSearch(data.search, constraints, data.seed, issues);
   const holdout = data.holdout;
@@ -603,11 +613,12 @@ function checkFreeParameters(list: ParsedFree[], scenario: Scenario, issues: Inp
       issues.push({ path: at('path'), expected: `${expectedPath} (names joined by dots, table entries as [i])`, found: describeFound(entry.path) });
       return null;
     }
-    if (segments[0] !== 'policy' && segments[0] !== 'body') {
+    const roots = parameterRoots(scenario);
+    if (!roots.includes(segments[0] as string)) {
       issues.push({
         path: at('path'),
-        expected: expectedPath,
-        found: `${describeFound(entry.path)} (a path into ${segments[0]}; only policy and body numbers can be searched)`,
+        expected: roots.length > 2 ? `${expectedPath}, or of a leg (e.g. legs.right.stiffness_scale)` : expectedPath,
+        found: `${describeFound(entry.path)} (a path into ${segments[0]}; only ${roots.join(', ').replace(/, ([^,]*)$/, ' and $1')} numbers can be searched)`,
       });
       return null;
     }
@@ -691,7 +702,7 @@ function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: I
       return { ...term, speeds: term.mode === 'grid' ? (speeds ?? null) : null };
     }
     case 'step_down': {
-      const leg = scenario.body.leg_length_m;
+      const leg = landingLegLength(scenario);
       const finest = leg / 1e6;
       if (!(term.resolution_m >= finest && term.resolution_m <= leg / 10)) {
         issues.push({ path: at('resolution_m'), expected: `a step size from ${finest} to ${leg / 10} m (leg length / 1e6 to leg length / 10)`, found: describeFound(term.resolution_m) });
@@ -850,8 +861,8 @@ export async function readStudyFile(path: string): Promise<Study> {
   let scenarioFromFile: Scenario | undefined;
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
-    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
-    requireKind(scenarioFromFile, 'optimize', ['slip'], resolve(dirname(path), file));
+    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize', supported: OPTIMIZE_KINDS });
+    requireKind(scenarioFromFile, 'optimize', OPTIMIZE_KINDS, resolve(dirname(path), file));
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }
