@@ -66,7 +66,7 @@ export interface FuzzCase {
   tamper?: { file: string; seed: number };
 }
 
-export const COMMANDS = ['simulate', 'map', 'scan', 'basin', 'stepdown', 'robustness', 'optimize', 'deadbeat', 'export', 'merge'] as const;
+export const COMMANDS = ['simulate', 'map', 'scan', 'basin', 'stepdown', 'robustness', 'recover', 'optimize', 'deadbeat', 'export', 'merge'] as const;
 
 // ---------------------------------------------------------------------------------------------
 // Scenarios.
@@ -305,6 +305,13 @@ const POOLS: Record<string, OptionPool> = {
   knots: { valid: ['2', '3', '5'], bad: ['1', '0', 'x', '1e9', '100000000'] },
   'attack-range': { valid: ['40:85', '50:80'], bad: ['0:90', '80:40', '10:91', 'x:y', '-5:5'] },
   'rate-range': { valid: ['0:100', '-50:50'], bad: ['100:0', 'x', '1e400:1e401'] },
+  'strides-after': { valid: ['3', '4', '6'], bad: [...INTEGER_BAD, '1000001'] },
+  'kick-forward': { valid: ['0.1', '-0.2', '0.05'], bad: [...NUMBER_BAD, '1e308'] },
+  'kick-up': { valid: ['0', '0.05', '-0.05'], bad: [...NUMBER_BAD, '-1e308'] },
+  'kick-stride': { valid: ['0', '1', '2'], bad: ['-1', 'x', '1.5', '1000001'] },
+  'kick-at': { valid: ['0.2', '0.5', '0.9'], bad: ['-0.1', '1.5', 'x', 'NaN'] },
+  'speed-tol': { valid: ['0.01', '0.1'], bad: ['0', '-1', 'x', '1e308'] },
+  'height-tol': { valid: ['0.001', '0.01'], bad: ['0', '-1', 'x', 'Infinity'] },
   format: { valid: ['c', 'json', 'csv'], bad: ['C', 'yaml', ''] },
   points: { valid: ['2', '17', '33'], bad: ['1', '0', 'x', '100000000000'] },
   'max-error': { valid: ['0.01', '0.5'], bad: ['0', '-1', 'x', '1e-300'] },
@@ -360,6 +367,7 @@ const WEIGHTS: Record<(typeof COMMANDS)[number], number> = {
   basin: 10,
   stepdown: 7,
   robustness: 10,
+  recover: 7,
   optimize: 5,
   deadbeat: 7,
   export: 10,
@@ -384,6 +392,7 @@ const COMMAND_OPTIONS: Record<string, { required: string[]; optional: string[] }
   basin: { required: ['heights', 'speeds', 'strides'], optional: ['tolerance', 'workers'] },
   stepdown: { required: ['grid', 'resolution', 'after'], optional: ['settle-strides', 'settle-band'] },
   robustness: { required: ['sigma', 'rollouts', 'strides'], optional: ['seed', 'terrain', 'target-height', 'target-speed', 'workers'] },
+  recover: { required: ['strides-after', 'kick-forward'], optional: ['kick-up', 'kick-stride', 'kick-at', 'speed-tol', 'height-tol'] },
   deadbeat: { required: ['ground', 'knots'], optional: ['mode', 'target', 'tolerance', 'attack-range', 'after'] },
   export: { required: ['format'], optional: ['points', 'max-error', 'max-stiffness-error', 't-max', 'prefix'] },
 };
@@ -441,6 +450,14 @@ export function generateCase(seed: number, id: number): FuzzCase {
   const outputs: string[] = [];
   const variants: string[] = [];
   const scenario = gaitScenario(random, command);
+  if (command === 'recover' && scenario.model === undefined && random.chance(0.8)) {
+    // a single leg recovers on a conservative leg at a fixed attack angle: mostly those
+    const policy = scenario.policy as Record<string, Json>;
+    const angle = policy.angle as Record<string, Json>;
+    policy.angle = { kind: 'fixed', attack_deg: angle.kind === 'fixed' ? angle.attack_deg : 68 };
+    policy.stiffness = { kind: 'constant' };
+    delete (scenario.body as Record<string, Json>).leg_damping_N_s_per_m;
+  }
   // half the cases break one thing, so both outcomes are reached
   const breakInput = random.chance(0.22);
   const breakOption = !breakInput && random.chance(0.25);
@@ -583,7 +600,7 @@ export function generateCase(seed: number, id: number): FuzzCase {
   }
   for (const name of spec.optional) if (random.chance(0.3)) args.push(...option(random, name, false));
   if (command === 'deadbeat' && random.chance(0.2)) args.push('--compare', '--rollouts=4', '--sigma=0.005', '--rate-range=0:100', '--workers=1');
-  if ((command === 'basin' || command === 'scan' || command === 'robustness') && random.chance(0.2)) {
+  if ((command === 'basin' || command === 'scan' || command === 'robustness' || (command === 'recover' && args.some((a) => a.startsWith('--rollouts')))) && random.chance(0.2)) {
     args.push(`--shard=${random.pick(POOLS.shard.valid)}`, '--out=@partial.json');
     outputs.push('partial.json');
   } else if ((command === 'basin' || command === 'scan' || command === 'robustness') && random.chance(0.15)) {
@@ -601,7 +618,7 @@ export function generateCase(seed: number, id: number): FuzzCase {
   if (command === 'map' && random.chance(0.2)) args.push('--approx');
   if (random.chance(0.6)) args.push('--json');
   if (breakOption) {
-    const choices = [...spec.required, ...spec.optional, ...(command === 'basin' || command === 'scan' || command === 'robustness' ? ['shard'] : [])];
+    const choices = [...spec.required, ...spec.optional, ...(command === 'basin' || command === 'scan' || command === 'robustness' || command === 'recover' ? ['shard'] : [])];
     const name = random.chance(0.1) ? 'bogus' : random.pick(choices);
     if (name === 'bogus') {
       args.push(random.pick(['--bogus', '--strides', '-x', '--json=yes', '--shard=1/2', '--energy']));

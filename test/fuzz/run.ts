@@ -169,7 +169,8 @@ function listing(dir: string): Map<string, string> {
   return out;
 }
 
-const MESSAGE_NAMES_SOMETHING = /expected|\bfound\b|: unknown field|unknown (option|command)|--[a-z][a-z-]*|cannot read|invalid JSON|invalid input|no FILES given|is required|takes no value|needs a value|refus|over the .* limit/i;
+// a field path after the file (robot.json: start: ..., study.json: constraints.friction_coefficient: ...) names the field too
+const MESSAGE_NAMES_SOMETHING = /: [a-z_][\w.[\]]*: |expected|\bfound\b|: unknown field|unknown (option|command)|--[a-z][a-z-]*|cannot read|invalid JSON|invalid input|no FILES given|is required|takes no value|needs a value|refus|over the .* limit/i;
 
 interface RunResult {
   code: number | 'exception';
