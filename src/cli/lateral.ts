@@ -2,11 +2,15 @@
 // "model": "lateral" scenario (the single-leg views are in simulate.ts and map.ts).
 
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText, jsonTextChunks } from '../core/json-output.js';
+import { writeChunks } from './stream-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
-import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
-import type { ScanAxis } from '../core/analysis/scan.js';
+import type { LateralScanCell, LateralScanResult } from '../core/analysis/lateral-scan.js';
+import type { ScanOptions } from '../core/analysis/scan.js';
+import type { ShardSpec } from '../core/shard.js';
+import type { CheckedOutput } from './output-files.js';
+import { makePartial, shardRange, writePartial, writeText } from './shard-output.js';
 import type { LateralBasinOptions, LateralBasinResult } from '../core/analysis/lateral-basin.js';
 import { InputError } from '../core/errors.js';
 import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
@@ -75,6 +79,7 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
     },
     ...(r.samples
       ? {
+          trajectory_truncated: r.truncated === true,
           trajectory: r.samples.map((p) => ({
             time_s: p.t,
             x_m: p.x,
@@ -96,7 +101,9 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
 }
 
 export function renderLateralSimulation(s: LateralScenario, r: LateralSimulation, requested: number): string {
-  const rows = r.rows.map((row) => [
+  // past 60 strides, the first 40 and the last 10 (--json lists every stride)
+  const shown = r.rows.length > 60 ? [...r.rows.slice(0, 40), null, ...r.rows.slice(-10)] : r.rows;
+  const rows = shown.map((row) => row === null ? `... ${r.rows.length - 50} strides left out (--json lists every one) ...` : [
     String(row.stride),
     fixed(row.time_s, 4),
     fixed(row.speed_m_per_s, 4),
@@ -136,7 +143,8 @@ export async function runLateralSimulate(
   const engine = await loadEngine();
   const n = options.strides ?? s.strides;
   const r = simulateLateral(engine, s, { strides: n, ...(options.json && options.traceInterval ? { dt: options.traceInterval } : {}) });
-  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
+  // in pieces: the documented 1 000 000 strides make more JSON than one string holds
+  if (options.json) await writeChunks(io.stdout, jsonTextChunks('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
   else io.stdout.write(renderLateralSimulation(s, r, n));
   return 0;
 }
@@ -156,7 +164,7 @@ export interface LateralMapOutput extends LateralMapResult {
 
 export function lateralMapJson(s: LateralScenario, r: LateralMapOutput): object {
   const fp = (f: LateralFixedPoint) => f;
-  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp) };
+  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp), caution: SAFETY_CAUTION };
 }
 
 export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): string {
@@ -282,20 +290,42 @@ export function renderLateralBasin(s: LateralScenario, r: LateralBasinResult): s
   ].join('\n');
 }
 
-export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { json: boolean } & LateralBasinOptions): Promise<number> {
+export async function runLateralBasin(
+  s: LateralScenario,
+  io: CliIO,
+  options: { json: boolean; shard?: ShardSpec; outFile?: CheckedOutput } & LateralBasinOptions,
+): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
-  const { lateralBasin } = await import('../core/analysis/lateral-basin.js');
+  const core = await import('../core/analysis/lateral-basin.js');
   const engine = await loadEngine();
-  const { json, ...rest } = options;
-  let r: LateralBasinResult;
+  const { json, shard, outFile, ...rest } = options;
+  const source = (error: unknown) => (error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error);
   try {
-    r = lateralBasin(engine, s, rest);
+    const run = core.lateralBasinRun(engine, s, rest);
+    const total = core.lateralBasinCellCount(run);
+    const range = shard ? shardRange(total, shard) : { start: 0, end: total };
+    const rows = core.lateralBasinRows(engine, s, run, range);
+    if (shard) {
+      const partial = await makePartial({ command: 'basin', scenario: s, options: run as unknown as Record<string, unknown>, spec: shard, range, total, rows });
+      await writePartial(io, outFile, partial);
+      return 0;
+    }
+    const r = core.finishLateralBasin(engine, s, run, rows);
+    await writeText(io, outFile, json ? lateralBasinJson(s, r) : renderLateralBasin(s, r), 'basin');
+    return 0;
   } catch (error) {
-    throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
+    throw source(error);
   }
-  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, LATERAL_HEADER));
-  else io.stdout.write(renderLateralBasin(s, r));
-  return 0;
+}
+
+/** The --json text of a lateral basin (also what `pronk merge --json` prints). */
+export function lateralBasinJson(s: LateralScenario, r: LateralBasinResult): string {
+  return jsonText('basin', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
+}
+
+/** The --json text of a lateral scan (also what `pronk merge --json` prints). */
+export function lateralScanJson(s: LateralScenario, r: LateralScanResult): string {
+  return jsonText('scan', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -326,19 +356,39 @@ export function renderLateralScan(s: LateralScenario, r: LateralScanResult): str
   ].join('\n');
 }
 
-export async function runLateralScan(s: LateralScenario, io: CliIO, options: { json: boolean; x: ScanAxis; y: ScanAxis }): Promise<number> {
+export async function runLateralScan(
+  s: LateralScenario,
+  io: CliIO,
+  options: { json: boolean; options: ScanOptions; shard?: ShardSpec; outFile?: CheckedOutput },
+): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
-  const { lateralScan } = await import('../core/analysis/lateral-scan.js');
+  const core = await import('../core/analysis/lateral-scan.js');
   const { startProgress } = await import('./progress.js');
   const engine = await loadEngine();
+  const { x, y } = options.options;
+  const total = x.n * y.n;
+  const range = options.shard ? shardRange(total, options.shard) : { start: 0, end: total };
   const progress = startProgress(io, 'scan', { unit: 'cells' });
-  let r: LateralScanResult;
+  let rows: LateralScanCell[];
   try {
-    r = lateralScan(engine, s, options.x, options.y, (d, t) => progress.update(d, t));
+    rows = core.lateralScanRows(engine, s, x, y, range, (d, t) => progress.update(d, t));
   } finally {
     progress.done();
   }
-  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, LATERAL_HEADER));
-  else io.stdout.write(renderLateralScan(s, r));
+  if (options.shard) {
+    const partial = await makePartial({
+      command: 'scan',
+      scenario: s,
+      options: options.options as unknown as Record<string, unknown>,
+      spec: options.shard,
+      range,
+      total,
+      rows,
+    });
+    await writePartial(io, options.outFile, partial);
+    return 0;
+  }
+  const r = core.finishLateralScan(x, y, rows);
+  await writeText(io, options.outFile, options.json ? lateralScanJson(s, r) : renderLateralScan(s, r), 'scan');
   return 0;
 }
