@@ -435,8 +435,15 @@ function isScanCell(value: unknown, index: number, xValues: readonly number[], y
     row.fixed_points.every((point: unknown) => {
       if (typeof point !== 'object' || point === null) return false;
       const p = point as Record<string, unknown>;
-      return finite(p.apex_height_m) && finite(p.forward_speed_m_per_s) && finite(p.slope) && finite(p.slope_error) && isBoolean(p.stable);
+      // a two-leg cell's fixed point has a spectral radius and an offset instead of a slope
+      const spectral = p.spectral_radius !== undefined;
+      const measure = spectral
+        ? p.slope === null && p.slope_error === null && finite(p.spectral_radius) && finite(p.offset_m)
+        : finite(p.slope) && finite(p.slope_error);
+      return finite(p.apex_height_m) && finite(p.forward_speed_m_per_s) && measure && isBoolean(p.stable);
     });
+  const spectralOk = row.stable_spectral_radius === undefined || finiteOrNull(row.stable_spectral_radius);
+  const stableMeasure = row.stable_spectral_radius === undefined ? row.stable_slope : row.stable_spectral_radius;
   return (
     row.index === index &&
     row.ix === index % nx &&
@@ -447,7 +454,8 @@ function isScanCell(value: unknown, index: number, xValues: readonly number[], y
     SCAN_CLASSES.has(row.class) &&
     finiteOrNull(row.stable_apex_height_m) &&
     finiteOrNull(row.stable_slope) &&
-    (row.stable_apex_height_m === null) === (row.stable_slope === null) &&
+    spectralOk &&
+    (row.stable_apex_height_m === null) === (stableMeasure === null) &&
     fixedPointsOk &&
     isBoolean(row.energy_conserving) &&
     isBoolean(row.domain_empty) &&
