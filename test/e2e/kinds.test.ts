@@ -70,9 +70,9 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
 
   it('disables the views a two-leg scenario does not run, with the reason', async () => {
     expect(await page.locator('#tab-optimize').getAttribute('aria-disabled')).toBe('true');
-    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not defined for the two-leg model/);
+    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not in the workbench for the two-leg model/);
     await page.locator('#tab-optimize').click({ force: true }); // a mouse click on the disabled tab shows its reason
-    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not defined for the two-leg model yet/);
+    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not in the workbench for the two-leg model yet/);
     expect(await page.locator('#tab-map').getAttribute('aria-disabled')).toBeNull();
   });
 
@@ -179,7 +179,7 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await t.shot('lateral-map');
 
     // views the lateral model does not run say why
-    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not defined for the lateral model/);
+    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not in the workbench for the lateral model/);
     await t.view('recover');
     await page.getByTestId('start-recover').click();
     await expect.poll(() => page.getByTestId('recover-outcome').isVisible(), { timeout: 60_000 }).toBe(true);
