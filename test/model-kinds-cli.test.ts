@@ -6,7 +6,7 @@
 // Adding a model kind without fixtures here fails the first test, by name.
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Ajv2020 } from 'ajv/dist/2020.js';
@@ -64,6 +64,8 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       stepdown: ['--after', '5'],
       robustness: ['--sigma', '0.002', '--rollouts', '12', '--strides', '5'],
       deadbeat: ['--ground=-0.01:0.01'],
+      // a walking start: no fall time bounds the touchdown, so the table's end is given
+      export: ['--t-max', '0.6', '--legs', 'per-leg'],
     },
     study: {
       free_parameters: [{ path: 'policy.angle.attack_deg', lower: 68, upper: 74 }],
@@ -78,7 +80,7 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       simulate: ['--strides', '3'],
       map: [],
       scan: ['--x', 'body.attachment_offset_m:-0.014:-0.01:3', '--y', 'start.speed_m_per_s:1.2:1.4:2'],
-      basin: ['--headings', '-10:10:3', '--rates', '-50:50:2', '--strides', '10'],
+      basin: ['--headings=-10:10:3', '--rates=-50:50:2', '--strides', '10'],
       stepdown: ['--after', '5'],
       robustness: ['--sigma', '0.002', '--rollouts', '12', '--strides', '5'],
       deadbeat: ['--ground=-0.01:0.01'],
@@ -92,6 +94,9 @@ const FIXTURES: Record<ModelKind, Fixture> = {
 
 const SCENARIO_COMMANDS = ['simulate', 'map', 'scan', 'basin', 'stepdown', 'robustness', 'deadbeat'];
 const SHARDABLE = ['scan', 'basin', 'robustness'];
+// The kinds whose runs of a shardable command split into shards (the lateral scan and basin run
+// whole: their --shard is refused by name, which the loop below checks).
+const SHARD_KINDS: Record<string, readonly ModelKind[]> = { scan: ['slip', 'biped'], basin: ['slip', 'biped'], robustness: ['slip', 'biped'] };
 
 // Every number in a parsed JSON value is finite (JSON holds no NaN or Infinity: a parse proves the
 // text has none as values; the walk checks what the parse gave).
@@ -152,7 +157,7 @@ describe('every analysis command over every model kind', () => {
 
     it(`export of a "${kind}" scenario: policy files or a refusal by name`, () => {
       const out = join(dir, `policy-${kind}.json`);
-      const r = pronk(['export', f.scenario, '--format', 'json', '--out', out, '--json']);
+      const r = pronk(['export', f.scenario, ...(f.options.export ?? []), '--format', 'json', '--out', out, '--json']);
       if (!COMMAND_KINDS.export.includes(kind)) return expectRefusal(r, kind, 'export');
       expect(r.code, r.stderr).toBe(0);
       expect(expectFinite(r.stdout)).toMatchObject({ format: 'pronk-export', model: kind });
@@ -166,6 +171,16 @@ describe('shards and merge over every model kind', () => {
     const f = FIXTURES[kind];
     for (const command of SHARDABLE) {
       if (!COMMAND_KINDS[command].includes(kind)) continue;
+      if (!SHARD_KINDS[command].includes(kind)) {
+        it(`${command} on a "${kind}" scenario: --shard refused by name (exit 2), nothing written`, () => {
+          const part = join(dir, `${kind}-${command}-refused.json`);
+          const r = pronk([command, f.scenario, ...f.options[command], '--workers', '1', '--shard', '1/2', '--out', part]);
+          expect(r.code, r.stderr).toBe(2);
+          expect(r.stderr).toMatch(new RegExp(`--shard: expected none with a "${kind}" scenario`));
+          expect(existsSync(part)).toBe(false);
+        });
+        continue;
+      }
       it(`${command} on a "${kind}" scenario: two shards merged = the one-machine run, byte for byte`, () => {
         const args = [command, f.scenario, ...f.options[command], '--workers', '1'];
         const one = pronk([...args, '--json']);

@@ -3,7 +3,7 @@
 // a policy written as tables firmware can run (src/core/export/).
 
 import { InputError, describeFound } from '../core/errors.js';
-import { jsonText } from '../core/json-output.js';
+import { jsonText, modelHeader } from '../core/json-output.js';
 import { buildExport, describeGrid, EXPORT_CAUTION, T_MAX_RANGE_S, type PolicyExport } from '../core/export/build.js';
 import { checkPrefix, defaultPrefix, isCSourceOf, writeC } from '../core/export/c99.js';
 import { writeCsv } from '../core/export/csv.js';
@@ -26,7 +26,7 @@ export const exportCommand: Command = {
   summary: 'write a policy as tables firmware runs: C99 header and source, JSON or CSV',
   usage:
     'export RESULT|SCENARIO --format c|json|csv --out PATH [--points N | --max-error E] [--max-stiffness-error K] ' +
-    '[--uniform] [--t-max S] [--prefix NAME] [--force] [--json]',
+    '[--uniform] [--t-max S] [--legs shared|per-leg] [--prefix NAME] [--force] [--json]',
   details: [
     'Tabulates the policy on the time since the flight apex: the attack angle as time passes and, when the policy',
     'schedules the stiffness, the compression and extension stiffness by touchdown time. The grid runs from 0 to t_max:',
@@ -61,6 +61,7 @@ export const exportCommand: Command = {
     'max-stiffness-error': { type: 'string', valueName: 'K', description: 'with --max-error: the bound for the stiffness tables instead, N/m' },
     uniform: { type: 'boolean', description: "evenly spaced points only (leave out the policy's breakpoints); needs --points or --max-error" },
     't-max': { type: 'string', valueName: 'S', description: `end of the time axis, s since apex (${T_MAX_RANGE_S[0]} to ${T_MAX_RANGE_S[1]})` },
+    legs: { type: 'string', valueName: 'shared|per-leg', description: 'two-leg scenarios: one table set for both legs (shared, the default) or one per leg (per-leg)' },
     prefix: { type: 'string', valueName: 'NAME', description: 'with --format c: prefix of every C identifier, a lowercase C identifier' },
     force: {
       type: 'boolean',
@@ -80,6 +81,8 @@ interface ExportFlags {
   tMax: number | undefined;
   prefix: string | undefined;
   force: boolean;
+  /** Two-leg scenarios: --legs shared|per-leg. */
+  legs: 'shared' | 'per_leg' | undefined;
 }
 
 function issue(path: string, expected: string, found: unknown): InputError {
@@ -126,7 +129,18 @@ export function parseExportFlags(values: ParsedCommandLine['values']): ExportFla
       : maxError !== undefined
         ? { by: 'max_error', max_error_deg: maxError, max_error_N_per_m: maxStiffness ?? maxError }
         : undefined;
-  return { format: format as Format, out, grid, uniform, tMax, prefix: prefix as string | undefined, force: values.force === true };
+  const legs = values.legs;
+  if (legs !== undefined && legs !== 'shared' && legs !== 'per-leg') throw issue('--legs', 'shared or per-leg', legs);
+  return {
+    format: format as Format,
+    out,
+    grid,
+    uniform,
+    tMax,
+    prefix: prefix as string | undefined,
+    force: values.force === true,
+    legs: legs === undefined ? undefined : legs === 'per-leg' ? ('per_leg' as const) : ('shared' as const),
+  };
 }
 
 interface Written {
@@ -168,7 +182,8 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
       mode: flags.uniform ? 'uniform' : 'breakpoints',
       ...(flags.tMax === undefined ? {} : { t_max_s: flags.tMax }),
       force: flags.force,
-      names: { points: '--points', max_error: '--max-error', max_stiffness_error: '--max-stiffness-error', t_max: '--t-max' },
+      ...(flags.legs === undefined ? {} : { legs: flags.legs }),
+      names: { points: '--points', max_error: '--max-error', max_stiffness_error: '--max-stiffness-error', t_max: '--t-max', legs: '--legs' },
     });
   } catch (error) {
     if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
@@ -189,7 +204,7 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
   await writeOutputs(files.map((f, i) => ({ output: outputs[i]!, text: f.text })), { source: SOURCE });
   const written: Written[] = files.map((f, i) => ({ path: outputs[i]!.path, bytes: Buffer.byteLength(f.text, 'utf8'), contents: f.contents }));
   const report = exportReport(exported, flags.format, written, prefix);
-  io.stdout.write(json ? jsonText('export', report) : renderExport(exported, flags.format, written, prefix));
+  io.stdout.write(json ? jsonText('export', report, modelHeader(source.scenario)) : renderExport(exported, flags.format, written, prefix));
   return 0;
 }
 
@@ -199,6 +214,7 @@ export function exportReport(e: PolicyExport, format: Format, written: Written[]
     file_format: format, // `format` is the report's own (pronk-export)
     written,
     ...(prefix === undefined ? {} : { prefix }),
+    ...(e.legs === null ? {} : { legs: e.legs }), // two-leg exports: shared or per_leg tables
     source: {
       file: e.source.file,
       kind: e.source.kind,

@@ -2,7 +2,8 @@
 // "model": "lateral" scenario (the single-leg views are in simulate.ts and map.ts).
 
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText, jsonTextChunks } from '../core/json-output.js';
+import { writeChunks } from './stream-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
 import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
@@ -75,6 +76,7 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
     },
     ...(r.samples
       ? {
+          trajectory_truncated: r.truncated === true,
           trajectory: r.samples.map((p) => ({
             time_s: p.t,
             x_m: p.x,
@@ -96,7 +98,9 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
 }
 
 export function renderLateralSimulation(s: LateralScenario, r: LateralSimulation, requested: number): string {
-  const rows = r.rows.map((row) => [
+  // past 60 strides, the first 40 and the last 10 (--json lists every stride)
+  const shown = r.rows.length > 60 ? [...r.rows.slice(0, 40), null, ...r.rows.slice(-10)] : r.rows;
+  const rows = shown.map((row) => row === null ? `... ${r.rows.length - 50} strides left out (--json lists every one) ...` : [
     String(row.stride),
     fixed(row.time_s, 4),
     fixed(row.speed_m_per_s, 4),
@@ -136,7 +140,8 @@ export async function runLateralSimulate(
   const engine = await loadEngine();
   const n = options.strides ?? s.strides;
   const r = simulateLateral(engine, s, { strides: n, ...(options.json && options.traceInterval ? { dt: options.traceInterval } : {}) });
-  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
+  // in pieces: the documented 1 000 000 strides make more JSON than one string holds
+  if (options.json) await writeChunks(io.stdout, jsonTextChunks('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
   else io.stdout.write(renderLateralSimulation(s, r, n));
   return 0;
 }
@@ -156,7 +161,7 @@ export interface LateralMapOutput extends LateralMapResult {
 
 export function lateralMapJson(s: LateralScenario, r: LateralMapOutput): object {
   const fp = (f: LateralFixedPoint) => f;
-  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp) };
+  return { scenario: s, ...r, fixed_points: r.fixed_points.map(fp), caution: SAFETY_CAUTION };
 }
 
 export function renderLateralMap(s: LateralScenario, r: LateralMapOutput): string {
@@ -293,7 +298,7 @@ export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { 
   } catch (error) {
     throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
   }
-  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r }, LATERAL_HEADER));
+  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
   else io.stdout.write(renderLateralBasin(s, r));
   return 0;
 }
@@ -338,7 +343,7 @@ export async function runLateralScan(s: LateralScenario, io: CliIO, options: { j
   } finally {
     progress.done();
   }
-  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r }, LATERAL_HEADER));
+  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
   else io.stdout.write(renderLateralScan(s, r));
   return 0;
 }

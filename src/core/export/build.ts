@@ -17,6 +17,7 @@
 import { InputError, type InputIssue } from '../errors.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { PRONK_VERSION } from '../version.js';
+import { isBiped, LEG_NAMES, legParameters } from '../models/biped.js';
 import type { ExportSource } from './input.js';
 import { crc32Float32, type Float32Table } from './lookup.js';
 import {
@@ -26,8 +27,10 @@ import {
   leavesAttackRangeS,
   float32Error,
   float64Error,
+  float32Column,
   tableSpecs,
   type ChosenGrid,
+  type LegTables,
   type GridMode,
   type GridOptionNames,
   type GridRequest,
@@ -56,7 +59,9 @@ export interface ExportOptions {
   /** When the export is made (default now). */
   date?: Date;
   /** Option names for messages (the CLI passes its flags). */
-  names?: GridOptionNames & { t_max: string };
+  names?: GridOptionNames & { t_max: string; legs?: string };
+  /** Two-leg scenarios: one table set for both legs ('shared', the default) or one per leg ('per_leg'). */
+  legs?: LegTables;
 }
 
 export interface TableReport {
@@ -73,6 +78,8 @@ export interface PolicyExport {
   source: ExportSource;
   /** The scenario's name, or a stand-in. */
   name: string;
+  /** Two-leg exports: 'shared' (one table set, each leg's stiffness its scale times the table) or 'per_leg'; null for one leg. */
+  legs: LegTables | null;
   specs: TableSpec[];
   grid: ChosenGrid;
   /** (points) float32 time axis and one float32 table per spec, in C units (rad, N/m). */
@@ -141,7 +148,7 @@ export function unsafeNumbers(source: ExportSource, specs: readonly TableSpec[],
   });
   specs.forEach((spec, i) => {
     grid.values[i].forEach((v, j) => {
-      const where = `${spec.name} table point ${j} (t = ${show(times[j])} s)`;
+      const where = `${spec.leg ? `${spec.leg} ` : ''}${spec.name} table point ${j} (t = ${show(times[j])} s)`;
       const f32 = float32.tables[i][j];
       const problem = spec.name === 'attack' ? attackProblem(v, f32) : numberProblem(v, f32, 'positive', spec.unit);
       if (problem) issues.push({ path: where, ...problem });
@@ -161,6 +168,17 @@ export function unsafeNumbers(source: ExportSource, specs: readonly TableSpec[],
   if (stiffness.kind === 'split') {
     macros.push(['policy.stiffness.compression_N_per_m', 'COMPRESSION_N_PER_M', stiffness.compression_N_per_m, 'positive', 'N/m']);
     macros.push(['policy.stiffness.extension_N_per_m', 'EXTENSION_N_PER_M', stiffness.extension_N_per_m, 'positive', 'N/m']);
+  }
+  if (isBiped(source.scenario)) {
+    // each leg's rest length, stiffness scale and damping (the C macros ..._LEFT_LEG_LENGTH_M, ...)
+    legParameters(source.scenario).forEach((leg, i) => {
+      const name = LEG_NAMES[i];
+      const up = name.toUpperCase();
+      macros.push([`legs.${name}.leg_length_m`, `${up}_LEG_LENGTH_M`, leg.length_m, 'positive', 'm']);
+      macros.push([`legs.${name}.stiffness_scale`, `${up}_STIFFNESS_SCALE`, leg.stiffness_scale, 'positive', '']);
+      macros.push([`legs.${name}.leg_damping_N_s_per_m`, `${up}_LEG_DAMPING_N_S_PER_M`, leg.damping_N_s_per_m, 'non-negative', 'N s/m']);
+    });
+    if (source.scenario.start.gait === 'walking') macros.push(['start.offset_m', 'START_OFFSET_M', source.scenario.start.offset_m, 'any', 'm']);
   }
   for (const [field, macro, value, sign, unit] of macros) {
     const problem = numberProblem(value, Math.fround(value), sign, unit);
@@ -201,9 +219,28 @@ export function buildExport(source: ExportSource, options: ExportOptions = {}): 
     }
     range = { t_max_s: t, source: 'set by the user' };
   } else {
+    if (isBiped(scenario) && scenario.start.gait === 'walking' && policy.angle.kind !== 'time_table') {
+      // in single support the stance leg holds the body up: no fall time bounds the swing leg's touchdown
+      throw new InputError([
+        {
+          path: names.t_max,
+          expected: `the end of the time axis (s since the single-support apex, ${T_MAX_RANGE_S[0]} to ${T_MAX_RANGE_S[1]})`,
+          found: 'missing',
+          message:
+            `a two-leg walking scenario with a ${policy.angle.kind} attack angle needs ${names.t_max} (the latest touchdown ` +
+            'after the single-support apex the table must cover, e.g. from pronk simulate): the stance leg holds the body up, so no fall ' +
+            'time bounds it',
+        },
+      ]);
+    }
     range = defaultTimeRange(scenario, policy);
   }
-  const specs = tableSpecs(scenario, policy);
+  const biped = isBiped(scenario);
+  if (!biped && options.legs === 'per_leg') {
+    throw new InputError([{ path: names.legs ?? 'legs', expected: 'shared for a single-leg scenario (per_leg needs a two-leg scenario)', found: 'per_leg' }]);
+  }
+  const legs = biped ? (options.legs ?? 'shared') : null;
+  const specs = tableSpecs(scenario, policy, legs ?? 'shared');
   const grid = chooseGrid(specs, policy, range, options.mode ?? 'breakpoints', options.grid ?? { by: 'points', points: 2 }, names);
   const axis = grid.axes[0];
   const float32 = {
@@ -236,10 +273,11 @@ export function buildExport(source: ExportSource, options: ExportOptions = {}): 
       float32_error: float32Error(spec, table, times),
     };
   });
-  const covers = ['time_since_apex_s', ...specs.map((s) => (s.name === 'attack' ? 'attack_rad' : s.column))];
+  const covers = ['time_since_apex_s', ...specs.map(float32Column)];
   return {
     source,
     name: scenario.name ?? 'Unnamed scenario',
+    legs,
     specs,
     grid,
     float32,

@@ -12,6 +12,8 @@ import { InputError } from '../errors.js';
 import type { PolicyExport } from './build.js';
 import { describeGrid, describePolicy, wrapLines } from './build.js';
 import { hex32 } from './lookup.js';
+import { float32Column } from './sample.js';
+import { isBiped, LEG_NAMES, legParameters } from '../models/biped.js';
 
 const C_KEYWORDS = new Set(
   (
@@ -108,7 +110,11 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
   const p = prefix;
   const sourceName = headerName.replace(/\.h$/, '.c');
   const n = e.float32.axis.length;
-  const hasStiffness = e.specs.length > 1;
+  const hasStiffness = e.specs.some((spec) => spec.name === 'compression');
+  // two legs, one table set per leg: a lookup per leg (p_left_attack_lookup, ...)
+  const perLeg = e.legs === 'per_leg';
+  const bipedScenario = isBiped(e.source.scenario) ? e.source.scenario : null;
+  const walking = bipedScenario?.start.gait === 'walking';
   const body = e.source.scenario.body;
   const start = e.source.scenario.start;
   const prov = e.source.provenance;
@@ -150,7 +156,18 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
   });
   const units = [
     'Units and ranges',
-    `  time since apex   s, the clock started at the flight apex; grid 0 to ${P}_T_MAX_S, ${P}_N_POINTS points`,
+    walking
+      ? `  time since apex   s, the clock started at the single-support apex (the highest point with one leg on the ground); grid 0 to ${P}_T_MAX_S, ${P}_N_POINTS points`
+      : `  time since apex   s, the clock started at the flight apex; grid 0 to ${P}_T_MAX_S, ${P}_N_POINTS points`,
+    ...(bipedScenario
+      ? wrapLines(
+          perLeg
+            ? "Two legs, one table set per leg (the left leg's lookups, then the right's): the swing leg follows its own attack table, each stiffness table includes that leg's stiffness scale."
+            : "Two legs, one table set for both: the swing leg follows the attack table; a leg's stiffness is the table (or the constant) times its _STIFFNESS_SCALE.",
+          WIDTH - 3,
+          '  ',
+        )
+      : []),
     '  attack angle      rad from the horizontal (pi/2 is a vertical leg); at touchdown the foot is ahead of',
     '                    the hip: foot_x = x + L0 cos(attack), touchdown when y = ground + L0 sin(attack)',
     ...(hasStiffness ? ['  leg stiffness     N/m, chosen at touchdown from the touchdown time since apex; compression until', '                    maximum compression, extension after'] : []),
@@ -210,6 +227,18 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
     `#define ${P}_START_APEX_HEIGHT_M ${cFloat(start.apex_height_m)}`,
     `#define ${P}_START_FORWARD_SPEED_M_PER_S ${cFloat(start.forward_speed_m_per_s)}`,
   ];
+  if (bipedScenario) {
+    h.push('', `/* Two legs (the two-leg model): each leg's rest length, stiffness scale and damping (SI). */`, `#define ${P}_TWO_LEGS 1`);
+    if (walking) h.push(`#define ${P}_START_OFFSET_M ${cFloat(bipedScenario.start.offset_m)} /* body x minus stance foot x at the start */`);
+    legParameters(bipedScenario).forEach((leg, i) => {
+      const L = LEG_NAMES[i].toUpperCase();
+      h.push(
+        `#define ${P}_${L}_LEG_LENGTH_M ${cFloat(leg.length_m)}`,
+        `#define ${P}_${L}_STIFFNESS_SCALE ${cFloat(leg.stiffness_scale)}`,
+        `#define ${P}_${L}_LEG_DAMPING_N_S_PER_M ${cFloat(leg.damping_N_s_per_m)}`,
+      );
+    });
+  }
   if (!hasStiffness) {
     const kc = stiffness.kind === 'split' ? stiffness.compression_N_per_m : body.leg_stiffness_N_per_m;
     const ke = stiffness.kind === 'split' ? stiffness.extension_N_per_m : body.leg_stiffness_N_per_m;
@@ -219,24 +248,45 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
       `#define ${P}_COMPRESSION_N_PER_M ${cFloat(Math.fround(kc))}`,
       `#define ${P}_EXTENSION_N_PER_M ${cFloat(Math.fround(ke))}`,
     );
+    if (bipedScenario && perLeg) {
+      // each leg's own (the scale within [1e-3, 1e3] and the stiffness within [1e-3, 1e12] N/m keep the product a normal float32)
+      legParameters(bipedScenario).forEach((leg, i) => {
+        const L = LEG_NAMES[i].toUpperCase();
+        h.push(
+          `#define ${P}_${L}_COMPRESSION_N_PER_M ${cFloat(Math.fround(kc * leg.stiffness_scale))}`,
+          `#define ${P}_${L}_EXTENSION_N_PER_M ${cFloat(Math.fround(ke * leg.stiffness_scale))}`,
+        );
+      });
+    }
   }
-  h.push(
-    '',
-    block([
-      'Attack angle to command at t_since_apex_s seconds after the flight apex, rad from the horizontal.',
-      `Returns false when t is outside [0, ${P}_T_MAX_S] (the end value is written) or NaN (the apex value).`,
-    ]),
-    `bool ${p}_attack_lookup(float t_since_apex_s, float *attack_rad_out);`,
-  );
-  if (hasStiffness) {
+  // the lookups: one set, or one per leg (its tables' indices in e.specs)
+  const lookupSets = (perLeg ? LEG_NAMES : [undefined]).map((leg) => ({
+    name: leg ? `${p}_${leg}` : p,
+    leg,
+    attack: e.specs.findIndex((spec) => spec.name === 'attack' && spec.leg === leg),
+    compression: e.specs.findIndex((spec) => spec.name === 'compression' && spec.leg === leg),
+    extension: e.specs.findIndex((spec) => spec.name === 'extension' && spec.leg === leg),
+  }));
+  for (const set of lookupSets) {
+    const whose = set.leg ? `The ${set.leg} leg's attack` : 'Attack';
     h.push(
       '',
       block([
-        'Leg stiffness for the stance that begins with a touchdown t_touchdown_since_apex_s after the apex, N/m:',
-        'compression until maximum compression, extension after. Returns false as the attack lookup does.',
+        `${whose} angle to command at t_since_apex_s seconds after the ${walking ? 'single-support' : 'flight'} apex, rad from the horizontal.`,
+        `Returns false when t is outside [0, ${P}_T_MAX_S] (the end value is written) or NaN (the apex value).`,
       ]),
-      `bool ${p}_stiffness_lookup(float t_touchdown_since_apex_s, float *compression_N_per_m_out, float *extension_N_per_m_out);`,
+      `bool ${set.name}_attack_lookup(float t_since_apex_s, float *attack_rad_out);`,
     );
+    if (hasStiffness) {
+      h.push(
+        '',
+        block([
+          `${set.leg ? `The ${set.leg} leg's stiffness` : 'Leg stiffness'} for the stance that begins with a touchdown t_touchdown_since_apex_s after the apex, N/m:`,
+          'compression until maximum compression, extension after. Returns false as the attack lookup does.',
+        ]),
+        `bool ${set.name}_stiffness_lookup(float t_touchdown_since_apex_s, float *compression_N_per_m_out, float *extension_N_per_m_out);`,
+      );
+    }
   }
   h.push(
     '',
@@ -260,7 +310,7 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
     lines.push('};');
     return lines.join('\n');
   };
-  const tableNames = e.specs.map((s) => (s.name === 'attack' ? `${p}_attack_rad` : `${p}_${s.column}`));
+  const tableNames = e.specs.map((s) => `${p}_${float32Column(s)}`);
   const c: string[] = [
     block([
       `${sourceName}: tables and lookups declared in ${headerName} (see there for provenance, units and the grid).`,
@@ -279,7 +329,9 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
     ...e.specs.flatMap((s, i) => [
       array(
         tableNames[i],
-        s.name === 'attack' ? 'Attack angle, rad from the horizontal, at each grid time.' : `${s.name[0].toUpperCase()}${s.name.slice(1)} stiffness, N/m, at each touchdown time.`,
+        `${s.leg ? `The ${s.leg} leg: ` : ''}${
+          s.name === 'attack' ? 'Attack angle, rad from the horizontal, at each grid time.' : `${s.name[0].toUpperCase()}${s.name.slice(1)} stiffness, N/m, at each touchdown time.`
+        }`,
         e.float32.tables[i],
       ),
       '',
@@ -317,22 +369,26 @@ export function writeC(e: PolicyExport, prefix: string, headerName: string): CFi
     '    return true;',
     '}',
     '',
-    `bool ${p}_attack_lookup(float t_since_apex_s, float *attack_rad_out)`,
-    '{',
-    `    return ${p}_interpolate(${tableNames[0]}, t_since_apex_s, attack_rad_out);`,
-    '}',
-    '',
   ];
-  if (hasStiffness) {
+  for (const set of lookupSets) {
     c.push(
-      `bool ${p}_stiffness_lookup(float t_touchdown_since_apex_s, float *compression_N_per_m_out, float *extension_N_per_m_out)`,
+      `bool ${set.name}_attack_lookup(float t_since_apex_s, float *attack_rad_out)`,
       '{',
-      `    const bool in_range = ${p}_interpolate(${tableNames[1]}, t_touchdown_since_apex_s, compression_N_per_m_out);`,
-      `    (void)${p}_interpolate(${tableNames[2]}, t_touchdown_since_apex_s, extension_N_per_m_out);`,
-      '    return in_range;',
+      `    return ${p}_interpolate(${tableNames[set.attack]}, t_since_apex_s, attack_rad_out);`,
       '}',
       '',
     );
+    if (hasStiffness) {
+      c.push(
+        `bool ${set.name}_stiffness_lookup(float t_touchdown_since_apex_s, float *compression_N_per_m_out, float *extension_N_per_m_out)`,
+        '{',
+        `    const bool in_range = ${p}_interpolate(${tableNames[set.compression]}, t_touchdown_since_apex_s, compression_N_per_m_out);`,
+        `    (void)${p}_interpolate(${tableNames[set.extension]}, t_touchdown_since_apex_s, extension_N_per_m_out);`,
+        '    return in_range;',
+        '}',
+        '',
+      );
+    }
   }
   c.push(
     '/* CRC-32/ISO-HDLC (the zlib CRC) register after the little-endian bytes of `count` floats. */',

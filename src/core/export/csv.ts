@@ -9,6 +9,7 @@ import { InputError } from '../errors.js';
 import { describeGrid, describePolicy, wrapLines, type PolicyExport } from './build.js';
 import { baseName } from './c99.js';
 import { hex32 } from './lookup.js';
+import { isBiped, LEG_NAMES, legParameters } from '../models/biped.js';
 
 /** 17 significant digits (a non-finite number here is a bug: buildExport refuses them). */
 export function csvNumber(x: number): string {
@@ -40,6 +41,15 @@ export function writeCsv(e: PolicyExport): string {
         `gravity_m_per_s2 ${fmt(body.gravity_m_per_s2)}, leg_damping_N_s_per_m ${fmt(body.leg_damping_N_s_per_m)}; ` +
         `start: apex_height_m ${fmt(start.apex_height_m)}, forward_speed_m_per_s ${fmt(start.forward_speed_m_per_s)}`,
     ),
+    ...(e.legs !== null && isBiped(e.source.scenario)
+      ? comment(
+          `two legs (${e.legs === 'per_leg' ? 'one column set per leg' : 'one column set for both legs; a leg\'s stiffness is the table or constant times its stiffness_scale'}): ` +
+            legParameters(e.source.scenario)
+              .map((leg, i) => `${LEG_NAMES[i]} leg_length_m ${fmt(leg.length_m)}, stiffness_scale ${fmt(leg.stiffness_scale)}, leg_damping_N_s_per_m ${fmt(leg.damping_N_s_per_m)}`)
+              .join('; ') +
+            `; time_since_apex_s is s since the ${e.source.scenario.start.gait === 'walking' ? 'single-support' : 'flight'} apex`,
+        )
+      : []),
     ...comment(`policy (continuous, as simulated): ${describePolicy(e.source.policy)}`),
     ...comment(
       e.source.constraints === null

@@ -145,8 +145,8 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip'] });
-    requireKind(scenario, 'export', ['slip']);
+    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip', 'biped'] });
+    requireKind(scenario, 'export', ['slip', 'biped']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
   }
@@ -195,8 +195,8 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip'] });
-  requireKind(scenario, 'export', ['slip'], file);
+  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip', 'biped'] });
+  requireKind(scenario, 'export', ['slip', 'biped'], file);
   const scenarioHash = await contentHash(scenario);
   return {
     kind: 'scenario',

@@ -12,6 +12,8 @@ import { parseJson } from '../scenario.js';
 import { describeGrid, type PolicyExport } from './build.js';
 import { baseName } from './c99.js';
 import { hex32 } from './lookup.js';
+import { float32Column } from './sample.js';
+import { isBiped, legParameters } from '../models/biped.js';
 
 export const POLICY_FORMAT = 'pronk-policy';
 export const POLICY_FORMAT_VERSION = 1;
@@ -33,7 +35,7 @@ export function policyDocument(e: PolicyExport): Record<string, unknown> {
   const float32: Record<string, JsonNumber[]> = { time_since_apex_s: nums(e.float32.axis) };
   e.specs.forEach((spec, i) => {
     float64[spec.column] = nums(e.grid.values[i]);
-    float32[spec.name === 'attack' ? 'attack_rad' : spec.column] = nums(e.float32.tables[i]);
+    float32[float32Column(spec)] = nums(e.float32.tables[i]);
   });
   return {
     format: POLICY_FORMAT,
@@ -55,6 +57,7 @@ export function policyDocument(e: PolicyExport): Record<string, unknown> {
       date: e.exported.date,
     },
     body: e.source.scenario.body,
+    ...bipedFields(e),
     start: e.source.scenario.start,
     policy: e.source.policy,
     constraints: e.source.constraints ?? [],
@@ -94,6 +97,30 @@ export function policyDocument(e: PolicyExport): Record<string, unknown> {
         },
       ]),
     ),
+  };
+}
+
+// Two-leg exports only (a single-leg document is unchanged): the model, the section the clock
+// starts at, each leg's parameters and how the tables map to the legs.
+function bipedFields(e: PolicyExport): Record<string, unknown> {
+  const scenario = e.source.scenario;
+  if (e.legs === null || !isBiped(scenario)) return {};
+  const params = legParameters(scenario);
+  return {
+    model: 'biped',
+    clock:
+      scenario.start.gait === 'walking'
+        ? 's since the single-support apex (the highest point with one leg on the ground); for the stiffness: the touchdown time since it'
+        : 's since the flight apex; for the stiffness: the touchdown time since it',
+    legs: {
+      tables: e.legs,
+      tables_note:
+        e.legs === 'per_leg'
+          ? 'one table set per leg (columns left_..., right_...): each leg commands its own; stiffness tables include the leg\'s stiffness_scale'
+          : 'one table set for both legs: the swing leg follows the attack table; a leg\'s stiffness is the table (or the policy\'s constant) times its stiffness_scale',
+      left: { leg_length_m: num(params[0].length_m), stiffness_scale: num(params[0].stiffness_scale), leg_damping_N_s_per_m: num(params[0].damping_N_s_per_m) },
+      right: { leg_length_m: num(params[1].length_m), stiffness_scale: num(params[1].stiffness_scale), leg_damping_N_s_per_m: num(params[1].damping_N_s_per_m) },
+    },
   };
 }
 

@@ -18,6 +18,7 @@
 import { InputError } from '../errors.js';
 import type { AnglePolicy, Scenario, StiffnessPolicy } from '../scenario.js';
 import { attackAtApexDeg, firstGroundHeightM } from '../scenario.js';
+import { isBiped, LEG_NAMES, legParameters, type LegName } from '../models/biped.js';
 import { lookupFloat32, type Float32Table } from './lookup.js';
 
 export const DEG = Math.PI / 180;
@@ -30,11 +31,19 @@ export type Policy = Scenario['policy'];
 
 export type TableName = 'attack' | 'compression' | 'extension';
 
+/** Two-leg exports: one table set shared by both legs, or one per leg. */
+export type LegTables = 'shared' | 'per_leg';
+
 /** One tabulated function of the grid's axes. */
 export interface TableSpec {
   name: TableName;
-  /** Column name in the JSON and CSV files (float64, file units). */
-  column: 'attack_deg' | 'compression_N_per_m' | 'extension_N_per_m';
+  /** Per-leg tables of a two-leg export: the leg this table drives (absent: every leg). */
+  leg?: LegName;
+  /**
+   * Column name in the JSON and CSV files (float64, file units): attack_deg, compression_N_per_m,
+   * extension_N_per_m; per leg with the leg in front (left_attack_deg, right_extension_N_per_m, ...).
+   */
+  column: string;
   /** Unit of `column` and of the interpolation error. */
   unit: 'deg' | 'N/m';
   /** The continuous policy at a point of the grid's axes, in `unit`. */
@@ -125,8 +134,27 @@ export function policyBreakpoints(policy: Policy): number[] {
   return [...new Set([...angleBreakpoints(policy.angle), ...stiffnessBreakpoints(policy.stiffness)])].sort((a, b) => a - b);
 }
 
-/** The tables a policy exports: the attack angle always, the two stiffnesses when scheduled. */
-export function tableSpecs(scenario: Scenario, policy: Policy): TableSpec[] {
+/** A table's name in the float32 (C) tables: the attack angle in radians (attack_rad, left_attack_rad), else its column. */
+export function float32Column(spec: TableSpec): string {
+  return spec.name === 'attack' ? `${spec.leg ? `${spec.leg}_` : ''}attack_rad` : spec.column;
+}
+
+/**
+ * The tables a policy exports: the attack angle always, the two stiffnesses when scheduled. A
+ * two-leg scenario with `legs` 'per_leg': that set for each leg in turn (left, then right), each
+ * leg's stiffness the policy's times its stiffness_scale; 'shared' (or one leg): one set.
+ */
+export function tableSpecs(scenario: Scenario, policy: Policy, legs: LegTables = 'shared'): TableSpec[] {
+  if (legs === 'per_leg' && isBiped(scenario)) {
+    const params = legParameters(scenario);
+    return LEG_NAMES.flatMap((leg, i) =>
+      sharedTableSpecs(scenario, policy, params[i].stiffness_scale).map((spec) => ({ ...spec, leg, column: `${leg}_${spec.column}` })),
+    );
+  }
+  return sharedTableSpecs(scenario, policy, 1);
+}
+
+function sharedTableSpecs(scenario: Scenario, policy: Policy, stiffnessScale: number): TableSpec[] {
   const specs: TableSpec[] = [
     {
       name: 'attack',
@@ -141,8 +169,20 @@ export function tableSpecs(scenario: Scenario, policy: Policy): TableSpec[] {
     const k = scenario.body.leg_stiffness_N_per_m;
     const same = { toFloat32: (v: number) => Math.fround(v), fromFloat32: (v: number) => v };
     specs.push(
-      { name: 'compression', column: 'compression_N_per_m', unit: 'N/m', evaluate: ([t]) => stiffnessAt(policy.stiffness, k, t).compression, ...same },
-      { name: 'extension', column: 'extension_N_per_m', unit: 'N/m', evaluate: ([t]) => stiffnessAt(policy.stiffness, k, t).extension, ...same },
+      {
+        name: 'compression',
+        column: 'compression_N_per_m',
+        unit: 'N/m',
+        evaluate: ([t]) => stiffnessAt(policy.stiffness, k, t).compression * stiffnessScale,
+        ...same,
+      },
+      {
+        name: 'extension',
+        column: 'extension_N_per_m',
+        unit: 'N/m',
+        evaluate: ([t]) => stiffnessAt(policy.stiffness, k, t).extension * stiffnessScale,
+        ...same,
+      },
     );
   }
   return specs;
@@ -223,7 +263,11 @@ export function defaultTimeRange(scenario: Scenario, policy: Policy): TimeRange 
   if (angle.kind === 'time_table' && lastKnot(angle.time_since_apex_s) > 0) {
     parts.push({ t_max_s: lastKnot(angle.time_since_apex_s), source: "the angle table's last knot" });
   } else {
-    const touchdown = latestTouchdownS(scenario, angle);
+    // two legs running: the flight from the flight apex, with the longer leg (the later touchdown)
+    const fall = isBiped(scenario)
+      ? { ...scenario, body: { ...scenario.body, leg_length_m: Math.max(...legParameters(scenario).map((leg) => leg.length_m)) } }
+      : scenario;
+    const touchdown = latestTouchdownS(fall, angle);
     const leaves = leavesAttackRangeS(angle);
     // at the cut a rising retraction is at 90 deg: step back past any rounding that puts it above
     let cut = leaves;
