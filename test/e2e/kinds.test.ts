@@ -106,9 +106,13 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     // a study limit on the leg force draws its line
     await t.setField('Peak leg force', '300');
     await expect.poll(async () => ((await t.option('figure-biped-forces')).series as { id: string }[]).some((s) => s.id === 'force-limit')).toBe(true);
+    await t.setField('Peak vertical force, both legs', '650');
+    await expect.poll(async () => ((await t.option('figure-biped-forces')).series as { id: string }[]).some((s) => s.id === 'vertical-limit')).toBe(true);
     await page.locator('#stride-scrub').fill('60');
     await page.waitForTimeout(300);
     await t.shot('biped-stride');
+    await page.getByTestId('figure-biped-forces').scrollIntoViewIfNeeded();
+    await t.shot('biped-forces');
   });
 
   it('runs Monte Carlo and the basin on the walker (the core analyses of the two-leg model)', async () => {
@@ -147,6 +151,8 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await expect.poll(() => t.field('Gait').inputValue()).toBe('running');
     await expect.poll(() => page.getByTestId('gait').first().textContent(), { timeout: 30_000 }).toMatch(/⌒\s?running/);
     await t.shot('biped-run-stride');
+    await page.getByTestId('figure-biped-forces').scrollIntoViewIfNeeded();
+    await t.shot('biped-run-forces');
     expect(pageErrors.join('\n')).toBe('');
   });
 
