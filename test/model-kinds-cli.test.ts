@@ -94,9 +94,13 @@ const FIXTURES: Record<ModelKind, Fixture> = {
 
 const SCENARIO_COMMANDS = ['simulate', 'map', 'scan', 'basin', 'stepdown', 'robustness', 'deadbeat'];
 const SHARDABLE = ['scan', 'basin', 'robustness'];
-// The kinds whose runs of a shardable command split into shards (the lateral scan and basin run
-// whole: their --shard is refused by name, which the loop below checks).
-const SHARD_KINDS: Record<string, readonly ModelKind[]> = { scan: ['slip', 'biped'], basin: ['slip', 'biped'], robustness: ['slip', 'biped'] };
+// The kinds whose runs of a shardable command split into shards (a kind left out must refuse
+// --shard by name, which the loop below checks).
+const SHARD_KINDS: Record<string, readonly ModelKind[]> = {
+  scan: ['slip', 'biped', 'lateral'],
+  basin: ['slip', 'biped', 'lateral'],
+  robustness: ['slip', 'biped'],
+};
 
 // Every number in a parsed JSON value is finite (JSON holds no NaN or Infinity: a parse proves the
 // text has none as values; the walk checks what the parse gave).
