@@ -149,6 +149,7 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     const ask = page.getByTestId('ask');
     if (await ask.isVisible()) await page.getByTestId('ask-replace').click();
     await expect.poll(() => t.field('Gait').inputValue()).toBe('running');
+    await t.view('stride');
     await expect.poll(() => page.getByTestId('gait').first().textContent(), { timeout: 30_000 }).toMatch(/⌒\s?running/);
     await t.shot('biped-run-stride');
     await page.getByTestId('figure-biped-forces').scrollIntoViewIfNeeded();
