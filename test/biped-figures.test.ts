@@ -47,9 +47,9 @@ describe('two-leg figures', () => {
     const ds = sim.strides[2].double_support!;
     expect(w.double_support[0][1] - w.double_support[0][0]).toBeCloseTo(ds.end_s - ds.start_s, 3);
     // the figure shades it, and draws the study's limit when one is set
-    const fig = bipedForceFigure(t, s.body, { stride: 2, strides: 1, forceLimit: 400 }) as { series: { id: string; markArea?: { data: unknown[] } }[] };
+    const fig = bipedForceFigure(t, s.body, { stride: 2, strides: 1, forceLimit: 400, verticalLimit: 700 }) as { series: { id: string; markArea?: { data: unknown[] } }[] };
     expect(fig.series.find((x) => x.id === 'double-support-0')?.markArea?.data).toHaveLength(1);
-    expect(fig.series.map((x) => x.id)).toEqual(expect.arrayContaining(['vertical-left', 'vertical-right', 'vertical-total', 'force-limit']));
+    expect(fig.series.map((x) => x.id)).toEqual(expect.arrayContaining(['vertical-left', 'vertical-right', 'vertical-total', 'force-limit', 'vertical-limit']));
   });
 
   it('puts every eigenvalue of every fixed point in the complex plane, with the energy eigenvalue 1', async () => {

@@ -70,9 +70,9 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
 
   it('disables the views a two-leg scenario does not run, with the reason', async () => {
     expect(await page.locator('#tab-optimize').getAttribute('aria-disabled')).toBe('true');
-    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not defined for the two-leg model/);
+    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not in the workbench for the two-leg model/);
     await page.locator('#tab-optimize').click({ force: true }); // a mouse click on the disabled tab shows its reason
-    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not defined for the two-leg model yet/);
+    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not in the workbench for the two-leg model yet/);
     expect(await page.locator('#tab-map').getAttribute('aria-disabled')).toBeNull();
   });
 
@@ -106,9 +106,13 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     // a study limit on the leg force draws its line
     await t.setField('Peak leg force', '300');
     await expect.poll(async () => ((await t.option('figure-biped-forces')).series as { id: string }[]).some((s) => s.id === 'force-limit')).toBe(true);
+    await t.setField('Peak vertical force, both legs', '650');
+    await expect.poll(async () => ((await t.option('figure-biped-forces')).series as { id: string }[]).some((s) => s.id === 'vertical-limit')).toBe(true);
     await page.locator('#stride-scrub').fill('60');
     await page.waitForTimeout(300);
     await t.shot('biped-stride');
+    await page.getByTestId('figure-biped-forces').scrollIntoViewIfNeeded();
+    await t.shot('biped-forces');
   });
 
   it('runs Monte Carlo and the basin on the walker (the core analyses of the two-leg model)', async () => {
@@ -145,8 +149,11 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     const ask = page.getByTestId('ask');
     if (await ask.isVisible()) await page.getByTestId('ask-replace').click();
     await expect.poll(() => t.field('Gait').inputValue()).toBe('running');
+    await t.view('stride');
     await expect.poll(() => page.getByTestId('gait').first().textContent(), { timeout: 30_000 }).toMatch(/⌒\s?running/);
     await t.shot('biped-run-stride');
+    await page.getByTestId('figure-biped-forces').scrollIntoViewIfNeeded();
+    await t.shot('biped-run-forces');
     expect(pageErrors.join('\n')).toBe('');
   });
 
@@ -179,7 +186,7 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await t.shot('lateral-map');
 
     // views the lateral model does not run say why
-    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not defined for the lateral model/);
+    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not in the workbench for the lateral model/);
     await t.view('recover');
     await page.getByTestId('start-recover').click();
     await expect.poll(() => page.getByTestId('recover-outcome').isVisible(), { timeout: 60_000 }).toBe(true);

@@ -124,8 +124,8 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('biped', 'map')).toBeNull();
     expect(viewUnsupported('biped', 'stride')).toBeNull();
     expect(viewUnsupported('biped', 'basin')).toBeNull();
-    expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not defined for the two-leg model yet/);
-    expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not defined for the lateral model/);
+    expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not in the workbench for the two-leg model yet/);
+    expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not in the workbench for the lateral model/);
     expect(viewUnsupported('slip', 'recover')).toMatch(/for the lateral model only/);
   });
 
@@ -136,7 +136,7 @@ describe('what each kind runs', () => {
     wb.lastValid = { scenario: s, key: 'biped', at: 0 };
     await wb.runOptimization();
     expect(wb.results.optimization).toBeUndefined();
-    expect(wb.notices.at(-1)?.text).toMatch(/^The optimizer: not defined for the two-leg model/);
+    expect(wb.notices.at(-1)?.text).toMatch(/^The optimizer: not in the workbench for the two-leg model/);
   });
 
   it('carries shared numbers over a switch and lists what a switch loses', () => {

@@ -185,6 +185,8 @@ export interface BipedForceOptions {
   strides?: number;
   /** A peak leg force, N (the study's max_leg_force_N): a limit line on each leg's force. */
   forceLimit?: number;
+  /** A peak summed vertical force, N (the study's max_vertical_force_N): a limit line on the sum. */
+  verticalLimit?: number;
   frame?: Frame;
   title?: string;
 }
@@ -247,6 +249,10 @@ export function bipedForceFigure(t: BipedTrajectory, body: { mass_kg: number; gr
   if (fmax !== undefined && !(Number.isFinite(fmax) && fmax > 0)) {
     throw new InputError([{ path: 'forceLimit', expected: 'a peak leg force > 0 (N)', found: describeFound(fmax) }]);
   }
+  const vmax = options.verticalLimit;
+  if (vmax !== undefined && !(Number.isFinite(vmax) && vmax > 0)) {
+    throw new InputError([{ path: 'verticalLimit', expected: 'a peak summed vertical force > 0 (N)', found: describeFound(vmax) }]);
+  }
   const first = options.stride ?? 0;
   const count = options.strides ?? 3;
   const s = bipedForceSamples(t, first, count);
@@ -255,14 +261,16 @@ export function bipedForceFigure(t: BipedTrajectory, body: { mass_kg: number; gr
   const rel = (k: number) => s.time_s[k] - t0;
   const peakTotal = Math.max(0, ...s.total_N);
   const peakAlong = Math.max(0, ...s.along_N.left, ...s.along_N.right);
-  const topV = Math.max(peakTotal, weight);
+  const topV = Math.max(peakTotal, weight, vmax ?? 0);
   const stepV = niceStep(topV || 1);
   const maxV = Math.ceil((topV * 1.06) / stepV) * stepV;
   const topA = Math.max(peakAlong, fmax ?? 0);
   const stepA = niceStep(topA || 1);
   const maxA = Math.max(stepA, Math.ceil((topA * 1.06) / stepA) * stepA);
 
-  const line = (id: string, name: string, data: number[], color: string, grid: number, dash: 'solid' | 'dashed' | 'dotted', width = 2.5): LineSeriesOption => ({
+  // left solid, right long dashes, the sum short dots on top (when one leg stands alone the sum
+  // lies on its line and both stay visible); colour is never the only cue
+  const line = (id: string, name: string, data: number[], color: string, grid: number, dash: 'solid' | number[], width = 2.5, z = 3): LineSeriesOption => ({
     id,
     name,
     type: 'line',
@@ -272,6 +280,7 @@ export function bipedForceFigure(t: BipedTrajectory, body: { mass_kg: number; gr
     symbol: 'none',
     lineStyle: { width, color, type: dash },
     itemStyle: { color },
+    z,
     tooltip: { valueFormatter: (v) => `${num(v as number, 5)} N = ${num((v as number) / weight, 3)} body weights` },
   });
   const bands = s.double_support.map(([a, b]) => [{ xAxis: a - t0 }, { xAxis: b - t0 }]) as [{ xAxis: number }, { xAxis: number }][];
@@ -292,7 +301,7 @@ export function bipedForceFigure(t: BipedTrajectory, body: { mass_kg: number; gr
       data: bands,
     },
   });
-  const flat = (id: string, name: string, value: number, grid: number, dash: 'dashed' | 'dotted'): LineSeriesOption => ({
+  const flat = (id: string, name: string, value: number, grid: number, dash: 'dashed' | number[], color: string = PALETTE.ink): LineSeriesOption => ({
     id,
     name,
     type: 'line',
@@ -304,19 +313,20 @@ export function bipedForceFigure(t: BipedTrajectory, body: { mass_kg: number; gr
     ],
     symbol: 'none',
     silent: true,
-    lineStyle: { width: 1.5, type: dash, color: PALETTE.ink },
-    itemStyle: { color: PALETTE.ink },
+    lineStyle: { width: 1.5, type: dash, color },
+    itemStyle: { color },
     z: 5,
   });
   const series: LineSeriesOption[] = [
     shade(0),
-    line('vertical-left', 'left leg, vertical', s.vertical_N.left, LEG_STYLE.left.color, 0, 'solid'),
-    line('vertical-right', 'right leg, vertical', s.vertical_N.right, LEG_STYLE.right.color, 0, 'dashed'),
-    line('vertical-total', 'sum of both legs', s.total_N, PALETTE.ink, 0, 'solid', 3),
-    flat('body-weight', `body weight ${num(weight, 4)} N`, weight, 0, 'dotted'),
+    line('vertical-left', 'left leg, vertical', s.vertical_N.left, LEG_STYLE.left.color, 0, 'solid', 3),
+    line('vertical-right', 'right leg, vertical', s.vertical_N.right, LEG_STYLE.right.color, 0, [10, 5], 3),
+    line('vertical-total', 'sum of both legs', s.total_N, PALETTE.ink, 0, [2, 4], 2.5, 4),
+    flat('body-weight', `body weight ${num(weight, 4)} N`, weight, 0, [12, 4, 2, 4], PALETTE.muted),
+    ...(vmax !== undefined ? [flat('vertical-limit', `vertical-force limit ${num(vmax, 5)} N`, vmax, 0, 'dashed')] : []),
     shade(1),
-    line('along-left', 'left leg, along the leg', s.along_N.left, LEG_STYLE.left.color, 1, 'solid'),
-    line('along-right', 'right leg, along the leg', s.along_N.right, LEG_STYLE.right.color, 1, 'dashed'),
+    line('along-left', 'left leg, along the leg', s.along_N.left, LEG_STYLE.left.color, 1, 'solid', 3),
+    line('along-right', 'right leg, along the leg', s.along_N.right, LEG_STYLE.right.color, 1, [10, 5], 3),
     ...(fmax !== undefined ? [flat('force-limit', `peak-force limit ${num(fmax, 5)} N`, fmax, 1, 'dashed')] : []),
   ];
   const names = [...new Set(series.map((x) => String(x.name)))];

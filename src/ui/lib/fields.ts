@@ -236,6 +236,7 @@ export function terrainOfKind(kind: string, current: unknown): Record<string, un
 
 export const LIMIT_FIELDS: FieldDef[] = [
   { path: 'constraints.max_leg_force_N', label: 'Peak leg force', unit: 'N', optional: true, hint: 'empty: no limit' },
+  { path: 'constraints.max_vertical_force_N', label: 'Peak vertical force, both legs', unit: 'N', optional: true, hint: 'two-leg scenarios only; empty: no limit' },
   { path: 'constraints.friction_coefficient', label: 'Friction coefficient μ', unit: '|Fx/Fy|', optional: true, hint: 'empty: no limit' },
   { path: 'constraints.max_compression_fraction', label: 'Leg compression', unit: '× L₀', optional: true, hint: 'fraction of the rest length' },
   { path: 'constraints.leg_angle_range_deg.min_deg', label: 'Touchdown angle, lowest', unit: '°', optional: true },

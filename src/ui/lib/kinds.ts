@@ -43,7 +43,7 @@ const VIEW_WORDS: Record<ViewName, string> = {
 export function viewUnsupported(kind: DraftKind, view: ViewName): string | null {
   if (SUPPORTED[kind].includes(view)) return null;
   if (view === 'recover') return `${VIEW_WORDS[view]}: in the workbench for the lateral model only (pronk recover also kicks a single-leg runner)`;
-  return `${VIEW_WORDS[view]}: not defined for the ${KIND_NAMES[kind]} model yet (it runs ${SUPPORTED[kind].map((v) => VIEW_WORDS[v]).join(', ')})`;
+  return `${VIEW_WORDS[view]}: not in the workbench for the ${KIND_NAMES[kind]} model yet (it runs ${SUPPORTED[kind].map((v) => VIEW_WORDS[v]).join(', ')} for it)`;
 }
 
 type Json = Record<string, unknown>;

@@ -549,7 +549,8 @@ export class Workbench {
     // the views' settings (basin and scan axes, Monte Carlo strides) follow the demo's robot
     const parsed = checkScenario(demo.scenario).value;
     if (parsed) this.settings = defaultSettings(parsed);
-    if (this.view !== 'map' && this.view !== 'stride') this.view = 'stride';
+    // a view the demo's kind does not run gives way to its stride view
+    if (viewUnsupported(draftKind(demo.scenario), this.view)) this.view = 'stride';
     this.markSaved();
   }
 
