@@ -2,14 +2,15 @@
 // numbers only; buffer layouts are in layout.ts. Memory for buffers comes from
 // a bump arena that the TypeScript engine resets before each call.
 
-import { runBatch as batch, runRollout } from "./rollout";
+import { runBatch as batch, runRollout, setBatchLanes, pairedSteps } from "./rollout";
 import { traceBegin, traceEnd } from "./trace";
 import { step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1 } from "./rk/dopri5";
 import { rhs, setArenstorf } from "./rk/system";
-import { gaussian } from "./rng";
+import { gaussian, uniform } from "./rng";
 import { LAYOUT_VERSION, M_MODEL_KIND, MODEL_BIPED } from "./layout";
 import { runBipedRollout } from "./biped";
 import { mget } from "./policy";
+export { runLateralBatch, traceLateralRollout } from "./lateral";
 
 let arenaTop: usize = 0;
 
@@ -40,6 +41,17 @@ export function arenaAlloc(bytes: usize): usize {
 
 export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   return batch(models, inputs, rollouts, strides, records, summaries);
+}
+
+// Rollouts that runBatch steps together: 4 (the default: single-leg rollouts four at a time,
+// two f64x2 steps), 2 or 1 (one rollout after the other). The results are the same bytes.
+export function batchLanes(n: i32): void {
+  setBatchLanes(n);
+}
+
+// Steps that the last runBatch took in pairs (for checks).
+export function batchPairedSteps(): f64 {
+  return pairedSteps();
 }
 
 // One rollout with dense trajectory samples every `dt` seconds (plus exact
@@ -101,4 +113,9 @@ export function integrateArenstorf(mu: f64, x0: f64, vy0: f64, tEnd: f64, rtol: 
   store<f64>(out, load<f64>(Y0, 24), 24);
   store<f64>(out, <f64>steps, 32);
   store<f64>(out, <f64>rejected, 40);
+}
+
+// Uniform draw in (0, 1) number `counter` of stream `stream` (the random kicks of impulse recovery).
+export function rngUniform(seed: f64, stream: f64, counter: f64): f64 {
+  return uniform(<u64>seed, <u64>stream, <u64>counter);
 }

@@ -9,7 +9,7 @@
 // at the boundary.
 
 // ---------------------------------------------------------------------------
-export const LAYOUT_VERSION = 4; // bump on any change below
+export const LAYOUT_VERSION = 5; // bump on any change below
 
 // Model block: (M_SIZE) f64, written by the TS core before a call, read-only
 // inside the kernel. A batch takes an array of them, (models x M_SIZE), and
@@ -199,7 +199,9 @@ export const STATUS_ATTACK_OUT_OF_RANGE = 9; // the commanded angle left (0, 90 
 export const STATUS_GAIT_CHANGED = 10; // a walking stride had flight, or a running stride double support
 export const STATUS_STALLED = 11; // forward speed reached zero, or time ran out, in double support
 export const STATUS_NO_SECTION = 12; // a second touchdown before the stride's section was reached
-export const STATUS_COUNT = 13;
+// Lateral leg-spring model: codes 13 and 14 (STATUS_STALLED_FORWARD, STATUS_LEG_UNLOADED, in its
+// section at the end of this file); 15 reserved for it.
+export const STATUS_COUNT = 15;
 // Statuses the single-leg model can report (0 .. STATUS_COUNT_SLIP - 1).
 export const STATUS_COUNT_SLIP = 10;
 
@@ -225,3 +227,110 @@ export const T_SIZE = 13;
 export const PHASE_FLIGHT = 0;
 export const PHASE_STANCE = 1; // one leg on the ground
 export const PHASE_DOUBLE = 2; // two legs on the ground (two-leg model)
+
+// ===========================================================================
+// Lateral leg-spring model ("model": "lateral"): a rigid body in the horizontal
+// plane on one spring leg at a time, left and right alternating, no aerial
+// phase. Its own buffers, prefixed LM_ / LI_ / LR_ / LS_ / LT_.
+
+// Statuses of the lateral model (appended; 10..12 belong to the two-leg model).
+export const STATUS_STALLED_FORWARD = 13; // the velocity along the body axis fell to zero in stance
+export const STATUS_LEG_UNLOADED = 14; // at touchdown the body already moved away from the new foot
+// 15: reserved for the lateral model.
+
+// Model block: (LM_SIZE) f64, SI and radians.
+export const LM_MASS = 0; // kg
+export const LM_INERTIA = 1; // kg m^2, about the centre of mass (vertical axis)
+export const LM_LEG_LENGTH = 2; // m, rest length L0
+export const LM_STIFFNESS = 3; // N/m
+export const LM_OFFSET = 4; // m, d0: leg attachment on the body axis ahead (+) of the centre of mass at touchdown
+export const LM_OFFSET_RATE = 5; // m/s, d1: d(t) = d0 + d1 t, t since touchdown
+export const LM_ANGLE = 6; // rad, leg angle to the body axis at touchdown (foot ahead and to the side)
+export const LM_RTOL = 7;
+export const LM_ATOL = 8;
+export const LM_MAX_STEPS = 9; // integrator steps per stance
+export const LM_SIZE = 12;
+
+// Rollout inputs: (rollouts x LI_SIZE) f64. The rollout starts at a left touchdown.
+export const LI_X = 0; // m, centre of mass
+export const LI_Y = 1; // m
+export const LI_THETA = 2; // rad, body axis from the x axis
+export const LI_VX = 3; // m/s
+export const LI_VY = 4; // m/s
+export const LI_OMEGA = 5; // rad/s, body angular velocity
+export const LI_KICK_STRIDE = 6; // stride index of the kick (-1: none)
+export const LI_KICK_TIME = 7; // s after that stride's left touchdown
+export const LI_KICK_FORWARD = 8; // m/s, velocity change along the body axis
+export const LI_KICK_LEFT = 9; // m/s, velocity change across the body axis (to the left)
+export const LI_KICK_ANGLE = 10; // rad, body angle change
+export const LI_KICK_RATE = 11; // rad/s, angular velocity change
+export const LI_MODEL = 12; // index of the model block in the batch
+export const LI_SIZE = 13;
+
+// Stride records: (rollouts x strides x LR_SIZE) f64; record s runs from left
+// touchdown s to left touchdown s+1 (NaN where not reached).
+export const LR_TIME = 0; // s, left touchdown
+export const LR_X = 1;
+export const LR_Y = 2;
+export const LR_THETA = 3;
+export const LR_VX = 4;
+export const LR_VY = 5;
+export const LR_OMEGA = 6;
+export const LR_MID_TIME = 7; // s, right touchdown (= left liftoff)
+export const LR_MID_X = 8;
+export const LR_MID_Y = 9;
+export const LR_MID_THETA = 10;
+export const LR_MID_VX = 11;
+export const LR_MID_VY = 12;
+export const LR_MID_OMEGA = 13;
+export const LR_END_TIME = 14; // s, next left touchdown (= right liftoff)
+export const LR_END_X = 15;
+export const LR_END_Y = 16;
+export const LR_END_THETA = 17;
+export const LR_END_VX = 18;
+export const LR_END_VY = 19;
+export const LR_END_OMEGA = 20;
+export const LR_PEAK_FORCE = 21; // N, over both stances
+export const LR_MAX_COMPRESSION = 22; // m, L0 - min r over both stances
+export const LR_ENERGY_BEFORE = 23; // J, kinetic (the leg is at rest length at touchdown)
+export const LR_ENERGY_AFTER = 24; // J
+export const LR_STEPS = 25;
+export const LR_REJECTED = 26;
+export const LR_STATUS = 27;
+export const LR_KICKED = 28; // 1 if the kick was applied in this stride
+export const LR_LEFT_FOOT_X = 29; // m
+export const LR_LEFT_FOOT_Y = 30;
+export const LR_RIGHT_FOOT_X = 31;
+export const LR_RIGHT_FOOT_Y = 32;
+export const LR_SIZE = 33;
+
+// Rollout summaries: (rollouts x LS_SIZE) f64.
+export const LS_STATUS = 0;
+export const LS_STRIDES_COMPLETED = 1;
+export const LS_TIME = 2; // s, last left touchdown reached
+export const LS_X = 3; // state at the last left touchdown reached
+export const LS_Y = 4;
+export const LS_THETA = 5;
+export const LS_VX = 6;
+export const LS_VY = 7;
+export const LS_OMEGA = 8;
+export const LS_STEPS = 9;
+export const LS_REJECTED = 10;
+export const LS_KICKED = 11; // 1 if the kick was applied
+export const LS_MAX_PEAK_FORCE = 12; // N, over completed strides
+export const LS_SIZE = 13;
+
+// Trajectory samples: (samples x LT_SIZE) f64.
+export const LT_TIME = 0;
+export const LT_X = 1;
+export const LT_Y = 2;
+export const LT_THETA = 3;
+export const LT_VX = 4;
+export const LT_VY = 5;
+export const LT_OMEGA = 6;
+export const LT_FOOT_X = 7;
+export const LT_FOOT_Y = 8;
+export const LT_LEG_FORCE = 9; // N along the leg
+export const LT_SIDE = 10; // +1 left stance, -1 right stance
+export const LT_STRIDE = 11;
+export const LT_SIZE = 12;

@@ -15,6 +15,14 @@ export function resetWalk(): void {
   walk = 0.0;
 }
 
+// The running sum of the rollout that draws next (rollouts that take turns keep their own).
+export function getWalk(): f64 {
+  return walk;
+}
+export function setWalk(w: f64): void {
+  walk = w;
+}
+
 // Ground height met at touchdown `index` of a rollout (indices in order from 0).
 export function groundAt(model: usize, index: i32, stream: u64): f64 {
   const kind = <i32>mget(model, M_TERRAIN_KIND);

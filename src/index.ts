@@ -1,5 +1,5 @@
 // Pronk as a library: `import { simulate, returnMap, basin, robustness, optimize, exportPolicy }
-// from 'pronk'`. The same analyses as the `pronk` command, on the same validators: every function
+// from 'pronk'` (two-leg scenarios: simulateBiped, bipedReturnMap; basin and robustness take both). The same analyses as the `pronk` command, on the same validators: every function
 // takes a scenario or study as plain JSON (an object read from a file, or built in code), checks
 // it, and returns the plain data that `pronk <command> --json` prints (format, format_version,
 // model and section first; src/core/json-output.ts). Bad input throws an
@@ -8,7 +8,11 @@
 // Node only for basin, robustness and optimize (worker threads); simulate, returnMap and
 // exportPolicy run wherever the WASM kernel loads.
 
-import { described, type Described } from './core/json-output.js';
+import { described, modelHeader, type Described } from './core/json-output.js';
+import { requireKind } from './core/models/kind.js';
+import type { BipedScenario } from './core/models/biped.js';
+import type { BipedSimulationResult } from './core/models/biped-simulate.js';
+import type { BipedMapOptions, BipedMapResult } from './core/analysis/biped-map.js';
 import { parseScenario } from './core/scenario.js';
 import type { SimulateOptions, SimulationResult } from './core/simulate.js';
 import type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-map.js';
@@ -27,6 +31,8 @@ export { parseStudy, readStudyFile, type Study } from './core/optimize/study.js'
 export { jsonSchema, JSON_SCHEMA_NAMES, type JsonSchemaName } from './core/json-schemas.js';
 export type { Described, JsonHeader } from './core/json-output.js';
 export type { SimulateOptions, SimulationResult } from './core/simulate.js';
+export type { BipedSimulationResult } from './core/models/biped-simulate.js';
+export type { BipedMapOptions, BipedMapResult } from './core/analysis/biped-map.js';
 export type { ReturnMapOptions, ReturnMapResult } from './core/analysis/return-map.js';
 export type { BasinOptions, BasinResult, BasinRunControl } from './core/analysis/basin.js';
 export type { RobustnessExecution, RobustnessOptions, RobustnessResult } from './core/analysis/robustness.js';
@@ -34,18 +40,36 @@ export type { OptimizationResult, SearchOptions, SearchProgress, SearchPhase } f
 export type { NodeSearchOptions } from './worker/node-optimize.js';
 export type { ExportOptions, PolicyExport } from './core/export/build.js';
 
-/** One rollout of a scenario, stride by stride (`pronk simulate --json`). */
+/** One rollout of a single-leg scenario, stride by stride (`pronk simulate --json`); two legs: simulateBiped. */
 export async function simulate(scenario: unknown, options: SimulateOptions = {}): Promise<Described<SimulationResult>> {
   const checked = parseScenario(scenario);
+  requireKind(checked, 'simulate (two-leg scenarios: simulateBiped)', ['slip']);
   const { simulate: run } = await import('./core/simulate.js');
   return described('simulate', await run(checked, options));
 }
 
-/** The apex return map at the scenario's energy: fixed points, slopes, eigenvalues (`pronk map --json`). */
+/** One rollout of a two-leg scenario ("model": "biped"), stride by stride (`pronk simulate --json`). */
+export async function simulateBiped(scenario: unknown, options: SimulateOptions = {}): Promise<Described<BipedSimulationResult>> {
+  const checked = parseScenario(scenario);
+  requireKind(checked, 'simulateBiped', ['biped']);
+  const { simulateBiped: run } = await import('./core/models/biped-simulate.js');
+  return described('simulate', await run(checked as BipedScenario, options), modelHeader(checked));
+}
+
+/** The apex return map at the scenario's energy: fixed points, slopes, eigenvalues (`pronk map --json`); two legs: bipedReturnMap. */
 export async function returnMap(scenario: unknown, options: ReturnMapOptions = {}): Promise<Described<ReturnMapResult>> {
   const checked = parseScenario(scenario);
+  requireKind(checked, 'returnMap (two-leg scenarios: bipedReturnMap)', ['slip']);
   const { apexReturnMap } = await import('./core/analysis/return-map.js');
   return described('map', await apexReturnMap(checked, options));
+}
+
+/** A two-leg scenario's section map: every fixed point with all eigenvalues (`pronk map --json`). */
+export async function bipedReturnMap(scenario: unknown, options: BipedMapOptions = {}): Promise<Described<BipedMapResult>> {
+  const checked = parseScenario(scenario);
+  requireKind(checked, 'bipedReturnMap', ['biped']);
+  const { bipedReturnMap: run } = await import('./core/analysis/biped-map.js');
+  return described('map', await run(checked as BipedScenario, options), modelHeader(checked));
 }
 
 /** The basin of attraction on flat ground (`pronk basin --json`); `workers` threads, all cores by default. */
@@ -53,7 +77,7 @@ export async function basin(scenario: unknown, options: BasinOptions & BasinRunC
   const checked = parseScenario(scenario);
   const { workers, onProgress, signal, runBatch, ...grid } = options;
   const { basinOfAttraction } = await import('./core/analysis/basin.js');
-  return described('basin', await basinOfAttraction(checked, grid, { workers, onProgress, signal, runBatch }));
+  return described('basin', await basinOfAttraction(checked, grid, { workers, onProgress, signal, runBatch }), modelHeader(checked));
 }
 
 /** Monte Carlo survival on random terrain with Wilson intervals (`pronk robustness --json`). */
@@ -61,7 +85,7 @@ export async function robustness(scenario: unknown, options: RobustnessOptions &
   const checked = parseScenario(scenario);
   const { workers, onProgress, signal, runBatch, ...terms } = options;
   const { terrainRobustness } = await import('./core/analysis/robustness.js');
-  return described('robustness', await terrainRobustness(checked, terms, { workers, onProgress, signal, runBatch }));
+  return described('robustness', await terrainRobustness(checked, terms, { workers, onProgress, signal, runBatch }), modelHeader(checked));
 }
 
 /**

@@ -1,6 +1,8 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
@@ -207,6 +209,25 @@ describe('walking: energy, symmetry and the published result', () => {
   });
 });
 
+describe('a walker that does not conserve energy', () => {
+  it('with leg damping the map is not reduced by energy: it searches the full map (height, speed, offset)', async () => {
+    // law: a damper only removes energy, so no periodic walking exists without an energy input
+    const s = biped({ body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81, leg_damping_N_s_per_m: 200 } });
+    const map = await bipedReturnMap(s, { iterations: 5 });
+    expect(map.energy_conserving).toBe(false);
+    expect(map.reduced_state).toEqual(['height_m', 'speed_m_per_s', 'offset_m']);
+    expect(map.fixed_points).toEqual([]);
+    const r = await records(biped({ ...s, strides: 3 } as unknown as Record<string, unknown>), 3);
+    expect(r.completed).toBeGreaterThanOrEqual(1);
+    for (let i = 0; i < r.completed; i++) {
+      // energy balance: what the section lost is what the dampers (and legs leaving loaded) took
+      const lost = r.rec(i, L.R_ENERGY_BEFORE) - r.rec(i, L.R_ENERGY_AFTER);
+      expect(lost).toBeGreaterThan(0);
+      expect(Math.abs(lost - r.rec(i, L.R_DISSIPATED)) / lost).toBeLessThan(1e-6);
+    }
+  });
+});
+
 describe('failures are named statuses', () => {
   it('a walking start too fast to stay on the ground ends in gait_changed, not a crash', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 3 }, strides: 10 });
@@ -218,6 +239,18 @@ describe('failures are named statuses', () => {
     expect(STATUS_NAMES[L.STATUS_NO_SECTION]).toBe('no_section');
   });
 
+  it('stalled: too slow to carry the body over the new leg, forward speed reaches zero in double support', async () => {
+    // law: at 0.05 m/s the kinetic energy (0.1 J) cannot lift the body over the steep (75 deg) new leg
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 75 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('stalled');
+    expect(result.outcome.failed_stride).toBe(0);
+  });
+  it('no_section: the body never rises on its new leg, and the swing leg lands again before an apex', async () => {
+    const s = biped({ start: { gait: 'walking', apex_height_m: 0.99, forward_speed_m_per_s: 0.05 }, policy: { angle: { kind: 'fixed', attack_deg: 70 } }, strides: 5 });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('no_section');
+  });
   it('a walker too slow to vault over its stance leg fails with a named status', async () => {
     const s = biped({ start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 0.05, offset_m: -0.1 }, strides: 10 });
     const result = await simulateBiped(s);
@@ -385,7 +418,7 @@ describe('pronk with a two-leg scenario', () => {
     expect(study.scenario.model).toBe('biped');
   });
   it('commands that do not run it yet refuse it by name (exit 2)', async () => {
-    for (const command of ['deadbeat']) {
+    for (const command of ['deadbeat', 'export']) {
       const extra =
         command === 'scan'
           ? ['--x', 'policy.angle.attack_deg:60:70:3', '--y', 'body.leg_stiffness_N_per_m:10000:12000:3']
@@ -393,14 +426,29 @@ describe('pronk with a two-leg scenario', () => {
             ? ['--sigma', '0.01']
             : command === 'deadbeat'
               ? ['--ground=-0.05:0.05']
-              : [];
+              : command === 'export'
+                ? ['--format', 'json', '--out', join(mkdtempSync(join(tmpdir(), 'pronk-biped-')), 'policy.json')]
+                : [];
       const run = await pronk([command, 'scenarios/demo-biped.json', ...extra]);
       expect(run.code, `${command}: ${run.stderr}`).toBe(2);
-      expect(run.stderr).toContain(`scenario model "biped": ${command} supports "slip", found "biped"`);
+      // scan and basin also run the lateral model (its own scenario type)
+      const kinds = command === 'scan' || command === 'basin' ? '"slip" and "lateral"' : '"slip"';
+      expect(run.stderr).toContain(`scenario model "biped": ${command} supports ${kinds}, found "biped"`);
     }
   });
+  it('the library: simulateBiped and bipedReturnMap with the kind header; simulate and returnMap refuse a two-leg scenario by name', async () => {
+    const lib = await import('../src/index.js');
+    const scenario = JSON.parse(readFileSync('scenarios/demo-biped.json', 'utf8'));
+    const r = await lib.simulateBiped(scenario, { strides: 3 });
+    expect(r).toMatchObject({ format: 'pronk-simulate', model: 'biped', section: 'single_support_apex' });
+    expect(r.outcome.status).toBe('completed');
+    const m = await lib.bipedReturnMap(scenario, { iterations: 0 });
+    expect(m.fixed_points.some((f) => f.stable)).toBe(true);
+    await expect(lib.simulate(scenario)).rejects.toThrow(/scenario model "biped": simulate \(two-leg scenarios: simulateBiped\) supports "slip"/);
+    await expect(lib.returnMap(scenario)).rejects.toThrow(InputError);
+  });
   it('a model kind this build does not know is refused naming the field', () => {
-    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip" or "biped"/);
+    expect(() => parseScenario({ model: 'hexapod' })).toThrow(/model: expected one of the model kinds "slip", "biped" or "lateral"/);
   });
   it('"model": "slip" is the single-leg scenario unchanged', () => {
     const plain = slipScenario();

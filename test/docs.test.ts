@@ -144,7 +144,7 @@ describe.skipIf(!built)('README: every pronk command line runs, in order, with t
     symlinkSync(root, join(folder, 'node_modules', 'pronk'), 'dir');
     // the README links the demo files in scenarios/ (relative to the checkout)
     mkdirSync(join(folder, 'scenarios'));
-    for (const name of ['demo.json', 'demo-study.json']) writeFileSync(join(folder, 'scenarios', name), readFileSync(join(root, 'scenarios', name)));
+    for (const name of ['demo.json', 'demo-study.json', 'demo-hexapod.json']) writeFileSync(join(folder, 'scenarios', name), readFileSync(join(root, 'scenarios', name)));
     env = { ...process.env, PATH: `${join(folder, '.bin')}:${process.env.PATH}` };
     for (const key of Object.keys(env)) if (key.startsWith('VITEST')) delete env[key];
   });

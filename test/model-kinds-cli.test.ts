@@ -32,6 +32,8 @@ interface Fixture {
   options: Record<string, string[]>;
   /** A small study of this kind (free parameters, one Monte Carlo term). */
   study: Record<string, unknown>;
+  /** Shardable commands that run this kind in one process only (no --workers, no --shard). */
+  unsharded?: string[];
 }
 
 const tiny = { method: 'COBYLA', max_evaluations: 4, restarts: 1 };
@@ -73,6 +75,25 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       constraints: { max_vertical_force_N: 2000 },
     },
   },
+  lateral: {
+    scenario: join(scenarios, 'demo-hexapod.json'),
+    section: 'left_touchdown',
+    options: {
+      simulate: ['--strides', '3'],
+      map: [],
+      scan: ['--x', 'body.attachment_offset_m:-0.014:-0.01:3', '--y', 'start.speed_m_per_s:1.2:1.4:2'],
+      basin: ['--headings=-10:10:3', '--rates=-50:50:2', '--strides', '10'],
+      stepdown: ['--after', '5'],
+      robustness: ['--sigma', '0.002', '--rollouts', '12', '--strides', '5'],
+      deadbeat: ['--ground=-0.01:0.01'],
+    },
+    // the lateral scan and basin run in one process: no --workers, no --shard
+    unsharded: ['scan', 'basin'],
+    study: {
+      free_parameters: [{ path: 'policy.angle.angle_to_body_deg', lower: 50, upper: 65 }],
+      objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.005, rollouts: 10, strides: 5 }] },
+    },
+  },
 };
 
 const SCENARIO_COMMANDS = ['simulate', 'map', 'scan', 'basin', 'stepdown', 'robustness', 'deadbeat'];
@@ -110,7 +131,7 @@ describe('every analysis command over every model kind', () => {
     const f = FIXTURES[kind];
     for (const command of SCENARIO_COMMANDS) {
       it(`${command} on a "${kind}" scenario: a result or a refusal by name`, () => {
-        const extra = SHARDABLE.includes(command) ? ['--workers', '1'] : [];
+        const extra = SHARDABLE.includes(command) && !f.unsharded?.includes(command) ? ['--workers', '1'] : [];
         const r = pronk([command, f.scenario, ...f.options[command], ...extra, '--json']);
         if (!COMMAND_KINDS[command].includes(kind)) return expectRefusal(r, kind, command);
         expect(r.code, r.stderr).toBe(0);
@@ -150,7 +171,7 @@ describe('shards and merge over every model kind', () => {
   for (const kind of MODEL_KINDS) {
     const f = FIXTURES[kind];
     for (const command of SHARDABLE) {
-      if (!COMMAND_KINDS[command].includes(kind)) continue;
+      if (!COMMAND_KINDS[command].includes(kind) || f.unsharded?.includes(command)) continue;
       it(`${command} on a "${kind}" scenario: two shards merged = the one-machine run, byte for byte`, () => {
         const args = [command, f.scenario, ...f.options[command], '--workers', '1'];
         const one = pronk([...args, '--json']);

@@ -271,7 +271,7 @@ describe.skipIf(!built)('pronk export keeps what it was not asked to replace', (
     expectRefused(
       f,
       ['export', 'robot.json', '--format', 'c', '--out', 'controller.h'],
-      /--out: cannot write "controller\.c" \(it is written beside "controller\.h", and a file by that name already exists that you did not name and that is not an earlier export of the same file\): move it away, choose another --out name, or add --force to replace it/,
+      /--out: cannot write "controller\.c" \(it is written beside "controller\.h", and a file by that name already exists that you did not name and that is not an earlier export of the same file\): move it away, choose another --out name, or add --force to replace it \(--force also writes a policy whose constraint margins are negative, marked as forced\)/,
     );
     expect(readFileSync(join(f, 'controller.c'), 'utf8')).toBe(mine);
     const forced = pronk(f, 'export', 'robot.json', '--format', 'c', '--out', 'controller.h', '--force');

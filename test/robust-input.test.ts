@@ -282,3 +282,18 @@ describe.skipIf(!existsSync(join(repoRoot, 'dist', 'src', 'cli', 'main.js')))('c
     }
   }, 60_000);
 });
+
+describe('the engine never hands the kernel an allocation past 32 bits', () => {
+  it('a batch whose stride records exceed 4 GiB is an EngineError before any work, and the engine still runs after it', async () => {
+    const { EngineError, loadEngine, rolloutInput } = await import('../src/core/engine.js');
+    const { buildModel } = await import('../src/core/model.js');
+    const engine = await loadEngine();
+    const model = buildModel(demoScenario());
+    // 11 rollouts x 1e6 strides x 50 values x 8 bytes = 4.4e9 bytes > 2^32: once wrapped to 0.1 GB,
+    // which the kernel then wrote past (memory access out of bounds)
+    const inputs = new Float64Array(Array.from({ length: 11 }, (_, r) => [...rolloutInput(0.45, 3.35, r)]).flat());
+    expect(() => engine.runBatch({ model, inputs, strides: 1_000_000, records: true })).toThrow(EngineError);
+    const after = engine.runBatch({ model, inputs: rolloutInput(0.45, 3.35, 0), strides: 2, records: true });
+    expect(after.completed).toBe(1);
+  });
+});

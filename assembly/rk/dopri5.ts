@@ -21,19 +21,51 @@ export const DIM = 5;
 
 // Scratch buffers, each (DIM) f64, in static memory. Written only by the
 // functions in this file and by the stance driver through the named pointers.
+// A set is BUFFER_SET_BYTES long; the pointers below name the set in use
+// (useBuffers), so that two rollouts stepped together (stance.ts) each keep
+// their own. The default set is the one every single-rollout path uses.
 const BUF_BYTES: usize = DIM * 8;
-export const Y0: usize = memory.data(DIM * 8 * 12, 16); // state at the step start
-export const K1: usize = Y0 + BUF_BYTES; // f(t0, Y0): kept across steps (FSAL)
-export const K2: usize = K1 + BUF_BYTES;
-export const K3: usize = K2 + BUF_BYTES;
-export const K4: usize = K3 + BUF_BYTES;
-export const K5: usize = K4 + BUF_BYTES;
-export const K6: usize = K5 + BUF_BYTES;
-export const K7: usize = K6 + BUF_BYTES; // f(t0 + h, YN): the next step's K1
-export const YN: usize = K7 + BUF_BYTES; // state at the step end
-export const YS: usize = YN + BUF_BYTES; // stage state (scratch)
-export const YI: usize = YS + BUF_BYTES; // interpolated state, written by dense()
-export const DY: usize = YI + BUF_BYTES; // derivative scratch for callers
+export const BUFFER_SET_BYTES: usize = BUF_BYTES * 12;
+export const DEFAULT_BUFFERS: usize = memory.data(DIM * 8 * 12, 16);
+export let Y0: usize = DEFAULT_BUFFERS; // state at the step start
+export let K1: usize = Y0 + BUF_BYTES; // f(t0, Y0): kept across steps (FSAL)
+export let K2: usize = K1 + BUF_BYTES;
+export let K3: usize = K2 + BUF_BYTES;
+export let K4: usize = K3 + BUF_BYTES;
+export let K5: usize = K4 + BUF_BYTES;
+export let K6: usize = K5 + BUF_BYTES;
+export let K7: usize = K6 + BUF_BYTES; // f(t0 + h, YN): the next step's K1
+export let YN: usize = K7 + BUF_BYTES; // state at the step end
+export let YS: usize = YN + BUF_BYTES; // stage state (scratch)
+export let YI: usize = YS + BUF_BYTES; // interpolated state, written by dense()
+export let DY: usize = YI + BUF_BYTES; // derivative scratch for callers
+
+// Offsets of the buffers within a set.
+export const OFF_Y0: usize = 0;
+export const OFF_K1: usize = BUF_BYTES;
+export const OFF_K2: usize = 2 * BUF_BYTES;
+export const OFF_K3: usize = 3 * BUF_BYTES;
+export const OFF_K4: usize = 4 * BUF_BYTES;
+export const OFF_K5: usize = 5 * BUF_BYTES;
+export const OFF_K6: usize = 6 * BUF_BYTES;
+export const OFF_K7: usize = 7 * BUF_BYTES;
+export const OFF_YN: usize = 8 * BUF_BYTES;
+
+// Point the named buffers at the set at `base` (BUFFER_SET_BYTES, 16-byte aligned).
+export function useBuffers(base: usize): void {
+  Y0 = base;
+  K1 = base + BUF_BYTES;
+  K2 = base + 2 * BUF_BYTES;
+  K3 = base + 3 * BUF_BYTES;
+  K4 = base + 4 * BUF_BYTES;
+  K5 = base + 5 * BUF_BYTES;
+  K6 = base + 6 * BUF_BYTES;
+  K7 = base + 7 * BUF_BYTES;
+  YN = base + 8 * BUF_BYTES;
+  YS = base + 9 * BUF_BYTES;
+  YI = base + 10 * BUF_BYTES;
+  DY = base + 11 * BUF_BYTES;
+}
 
 // Butcher tableau, exact (Dormand & Prince 1980).
 const C2: f64 = 1.0 / 5.0;
@@ -41,35 +73,35 @@ const C3: f64 = 3.0 / 10.0;
 const C4: f64 = 4.0 / 5.0;
 const C5: f64 = 8.0 / 9.0;
 
-const A21: f64 = 1.0 / 5.0;
-const A31: f64 = 3.0 / 40.0;
-const A32: f64 = 9.0 / 40.0;
-const A41: f64 = 44.0 / 45.0;
-const A42: f64 = -56.0 / 15.0;
-const A43: f64 = 32.0 / 9.0;
-const A51: f64 = 19372.0 / 6561.0;
-const A52: f64 = -25360.0 / 2187.0;
-const A53: f64 = 64448.0 / 6561.0;
-const A54: f64 = -212.0 / 729.0;
-const A61: f64 = 9017.0 / 3168.0;
-const A62: f64 = -355.0 / 33.0;
-const A63: f64 = 46732.0 / 5247.0;
-const A64: f64 = 49.0 / 176.0;
-const A65: f64 = -5103.0 / 18656.0;
+export const A21: f64 = 1.0 / 5.0;
+export const A31: f64 = 3.0 / 40.0;
+export const A32: f64 = 9.0 / 40.0;
+export const A41: f64 = 44.0 / 45.0;
+export const A42: f64 = -56.0 / 15.0;
+export const A43: f64 = 32.0 / 9.0;
+export const A51: f64 = 19372.0 / 6561.0;
+export const A52: f64 = -25360.0 / 2187.0;
+export const A53: f64 = 64448.0 / 6561.0;
+export const A54: f64 = -212.0 / 729.0;
+export const A61: f64 = 9017.0 / 3168.0;
+export const A62: f64 = -355.0 / 33.0;
+export const A63: f64 = 46732.0 / 5247.0;
+export const A64: f64 = 49.0 / 176.0;
+export const A65: f64 = -5103.0 / 18656.0;
 // 5th-order weights (= row 7, first-same-as-last).
-const B1: f64 = 35.0 / 384.0;
-const B3: f64 = 500.0 / 1113.0;
-const B4: f64 = 125.0 / 192.0;
-const B5: f64 = -2187.0 / 6784.0;
-const B6: f64 = 11.0 / 84.0;
+export const B1: f64 = 35.0 / 384.0;
+export const B3: f64 = 500.0 / 1113.0;
+export const B4: f64 = 125.0 / 192.0;
+export const B5: f64 = -2187.0 / 6784.0;
+export const B6: f64 = 11.0 / 84.0;
 // Error weights e = b - b*, with b* the embedded 4th-order weights
 // (5179/57600, 0, 7571/16695, 393/640, -92097/339200, 187/2100, 1/40).
-const E1: f64 = 71.0 / 57600.0;
-const E3: f64 = -71.0 / 16695.0;
-const E4: f64 = 71.0 / 1920.0;
-const E5: f64 = -17253.0 / 339200.0;
-const E6: f64 = 22.0 / 525.0;
-const E7: f64 = -1.0 / 40.0;
+export const E1: f64 = 71.0 / 57600.0;
+export const E3: f64 = -71.0 / 16695.0;
+export const E4: f64 = 71.0 / 1920.0;
+export const E5: f64 = -17253.0 / 339200.0;
+export const E6: f64 = 22.0 / 525.0;
+export const E7: f64 = -1.0 / 40.0;
 
 // Dense-output matrix P (Shampine 1986), rows 1..7 (row 2 is zero).
 const P11: f64 = 1.0;
@@ -99,6 +131,21 @@ let errorDimension: f64 = <f64>DIM;
 
 export function setErrorDimension(n: i32): void {
   errorDimension = <f64>n;
+}
+
+// The stepper's own state, saved and restored when several rollouts take turns
+// (stance.ts): the last step size, the error-norm divisor, the controller's memory.
+export function getLastH(): f64 {
+  return lastH;
+}
+export function setLastH(h: f64): void {
+  lastH = h;
+}
+export function getErrorDimension(): f64 {
+  return errorDimension;
+}
+export function setErrorDimensionValue(n: f64): void {
+  errorDimension = n;
 }
 
 @inline function ld(p: usize, i: i32): f64 {
@@ -239,14 +286,53 @@ export function dense(theta: f64): void {
   }
 }
 
+// The first components of dense(theta), the same arithmetic, into di0..di3 instead of YI
+// (event location on the stance state, events.ts): dense2 the position, dense4 also the velocity.
+export let di0: f64 = 0.0;
+export let di1: f64 = 0.0;
+export let di2: f64 = 0.0;
+export let di3: f64 = 0.0;
+
+export function dense2(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = lastH;
+  di0 = ld(Y0, 0) + h * (q1 * ld(K1, 0) + q3 * ld(K3, 0) + q4 * ld(K4, 0) + q5 * ld(K5, 0) + q6 * ld(K6, 0) + q7 * ld(K7, 0));
+  di1 = ld(Y0, 1) + h * (q1 * ld(K1, 1) + q3 * ld(K3, 1) + q4 * ld(K4, 1) + q5 * ld(K5, 1) + q6 * ld(K6, 1) + q7 * ld(K7, 1));
+}
+
+export function dense4(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = lastH;
+  di0 = ld(Y0, 0) + h * (q1 * ld(K1, 0) + q3 * ld(K3, 0) + q4 * ld(K4, 0) + q5 * ld(K5, 0) + q6 * ld(K6, 0) + q7 * ld(K7, 0));
+  di1 = ld(Y0, 1) + h * (q1 * ld(K1, 1) + q3 * ld(K3, 1) + q4 * ld(K4, 1) + q5 * ld(K5, 1) + q6 * ld(K6, 1) + q7 * ld(K7, 1));
+  di2 = ld(Y0, 2) + h * (q1 * ld(K1, 2) + q3 * ld(K3, 2) + q4 * ld(K4, 2) + q5 * ld(K5, 2) + q6 * ld(K6, 2) + q7 * ld(K7, 2));
+  di3 = ld(Y0, 3) + h * (q1 * ld(K1, 3) + q3 * ld(K3, 3) + q4 * ld(K4, 3) + q5 * ld(K5, 3) + q6 * ld(K6, 3) + q7 * ld(K7, 3));
+}
+
 // Step-size control: the PI controller of Hairer, Nørsett, Wanner, Solving ODEs
 // I, 2nd ed., II.4 (eq. 4.13, after Gustafsson 1991), with the constants of their
 // DOPRI5 code: exponent 1/5 - 0.75 beta, beta = 0.04, safety 0.9, factors
 // limited to [0.2, 10], no growth right after a rejection. Its memory of the
 // last accepted error damps the step-size oscillation that made about one step
 // in five a rejection with the plain controller.
-const BETA: f64 = 0.04;
-const EXPO: f64 = 0.2 - 0.75 * BETA;
+export const BETA: f64 = 0.04;
+export const EXPO: f64 = 0.2 - 0.75 * BETA;
 let errOld: f64 = 1e-4;
 
 // x^p for x > 0 to about 1 %, from the bit pattern (a controller heuristic needs
@@ -267,15 +353,33 @@ let errOld: f64 = 1e-4;
 export function resetController(): void {
   errOld = 1e-4;
 }
+export function getErrOld(): f64 {
+  return errOld;
+}
+export function setErrOld(e: f64): void {
+  errOld = e;
+}
+
+// Factor for the next step after an accepted step with error err (<= 1), the
+// controller's memory being `old` (rk/dopri5x2.ts forms the same in f64x2 lanes).
+@inline function acceptedFactor(err: f64, afterReject: bool, old: f64): f64 {
+  const hi: f64 = afterReject ? 1.0 : 10.0;
+  const e = err > 1e-12 ? err : 1e-12;
+  let f = 0.9 * roughPow(e, -EXPO) * roughPow(old, BETA);
+  if (f < 0.2) f = 0.2;
+  if (f > hi) f = hi;
+  return f;
+}
+
+// The controller's memory after an accepted step with error err.
+@inline export function controllerMemory(err: f64): f64 {
+  return err > 1e-4 ? err : 1e-4;
+}
 
 // Factor for the next step after an accepted step with error err (<= 1).
 export function acceptFactor(err: f64, afterReject: bool): f64 {
-  const hi: f64 = afterReject ? 1.0 : 10.0;
-  const e = err > 1e-12 ? err : 1e-12;
-  let f = 0.9 * roughPow(e, -EXPO) * roughPow(errOld, BETA);
-  errOld = err > 1e-4 ? err : 1e-4;
-  if (f < 0.2) f = 0.2;
-  if (f > hi) f = hi;
+  const f = acceptedFactor(err, afterReject, errOld);
+  errOld = controllerMemory(err);
   return f;
 }
 

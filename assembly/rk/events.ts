@@ -9,7 +9,7 @@
 // the event state is as accurate as the integrator and not merely as the
 // interpolant.
 
-import { dense, YI, YN, K7 } from "./dopri5";
+import { dense, dense2, dense4, di0, di1, di2, di3, YI, YN, K7 } from "./dopri5";
 import { rhs, stanceMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
 
 // Liftoff: r - L0 without damping; with damping the foot leaves when the leg
@@ -164,4 +164,68 @@ export function refine(ev: i32, timeScale: f64): f64 {
     shift += dt;
   }
   return shift;
+}
+
+// The event value at theta of the last step, as eventValue(ev, YI) after dense(theta) gives it,
+// from only the components the event reads (dense2, dense4).
+@inline function eventAt(ev: i32, theta: f64): f64 {
+  if (ev == EV_MAX_COMPRESSION) {
+    dense4(theta);
+    const px = di0;
+    const py = di1;
+    return (px * di2 + py * di3) / Math.sqrt(px * px + py * py);
+  }
+  if (ev == EV_LIFTOFF) {
+    if (stanceC == 0.0) {
+      dense2(theta);
+      return Math.sqrt(di0 * di0 + di1 * di1) - stanceLeg;
+    }
+    dense4(theta);
+    const px = di0;
+    const py = di1;
+    const r = Math.sqrt(px * px + py * py);
+    const rdot = (px * di2 + py * di3) / r;
+    return -(stanceK * (stanceLeg - r) - stanceC * rdot);
+  }
+  if (ev == EV_BODY_GROUND) {
+    dense2(theta);
+    return -di1;
+  }
+  if (ev == EV_BACKWARD) {
+    dense4(theta);
+    return -di2;
+  }
+  dense(theta);
+  return eventValue(ev, YI);
+}
+
+// locate() for the single-leg stance's events: the same iterates and result, each event
+// value formed from only the interpolated components it reads. YI is not written.
+export function locateStance(ev: i32, g0: f64, g1: f64, tol: f64): f64 {
+  let a: f64 = 0.0;
+  let b: f64 = 1.0;
+  let ga = g0;
+  let gb = g1;
+  if (gb == 0.0) return 1.0;
+  let side = 0;
+  let theta: f64 = 1.0;
+  for (let it = 0; it < 80; it++) {
+    theta = (a * gb - b * ga) / (gb - ga);
+    if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
+    const g = eventAt(ev, theta);
+    const upper = ev == EV_BACKWARD ? g > 0.0 : g >= 0.0;
+    if (upper) {
+      b = theta;
+      gb = g;
+      if (side == 1) ga *= 0.5;
+      side = 1;
+    } else {
+      a = theta;
+      ga = g;
+      if (side == -1) gb *= 0.5;
+      side = -1;
+    }
+    if (b - a < tol) break;
+  }
+  return b;
 }

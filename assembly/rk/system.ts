@@ -29,6 +29,18 @@ export function setStance(m: f64, leg: f64, k: f64, c: f64, g: f64): void {
   stanceG = g;
 }
 
+// The stance parameters as setStance leaves them (invM = 1/m), for a rollout
+// that takes its turn again (stance.ts).
+export function setStanceParams(m: f64, invM: f64, leg: f64, k: f64, c: f64, g: f64): void {
+  system = SYSTEM_STANCE;
+  stanceMass = m;
+  stanceInvMass = invM;
+  stanceLeg = leg;
+  stanceK = k;
+  stanceC = c;
+  stanceG = g;
+}
+
 // Two legs in stance (double support), feet at (bipedFx*, bipedFy*) relative to the origin of
 // (px, py); set by the two-leg driver (biped.ts). Gravity and mass as for the stance.
 export let bipedFx0: f64 = 0.0;

@@ -1,7 +1,7 @@
 // `pronk basin [FILE] [--heights lo:hi:n] [--speeds lo:hi:n | --energy] [--strides N] [--tolerance M]
 // [--workers N] [--shard I/N --out FILE] [--json]`: the basin of attraction on flat ground.
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import type { BasinOptions, BasinResult, BasinRunOptions, GridAxis } from '../core/analysis/basin.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { jsonText, modelHeader } from '../core/json-output.js';
@@ -22,7 +22,8 @@ const SOURCE = 'pronk basin';
 export const basinCommand: Command = {
   name: 'basin',
   summary: 'basin of attraction on flat ground over a grid of start apex heights and speeds',
-  usage: 'basin [FILE] [--heights LO:HI:N] [--speeds LO:HI:N | --energy] [--strides N] [--tolerance M] [--workers N] [--shard I/N --out FILE] [--plot FILE.svg] [--json]',
+  usage:
+    'basin [FILE] [--heights LO:HI:N] [--speeds LO:HI:N | --energy] [--headings LO:HI:N] [--rates LO:HI:N] [--strides N] [--tolerance M] [--workers N] [--shard I/N --out FILE] [--plot FILE.svg] [--json]',
   details: [
     'Each cell of the grid starts at one apex (height, forward speed) and runs N strides on flat ground',
     "(the scenario's terrain is not used). A cell is converged when it completes them all and its",
@@ -32,6 +33,9 @@ export const basinCommand: Command = {
     "only, each at the speed that gives the scenario's start energy. Default grid: heights from the",
     'touchdown height to 2 y0 minus it and speeds from 0.5 v0 to 1.5 v0, 41 x 41; with --energy,',
     'heights from the touchdown height to E/(m g), 101 points. Results do not depend on --workers.',
+    'A "lateral" scenario: the grid is over errors of the heading to the body axis (--headings, deg) and',
+    "of the angular velocity (--rates, deg/s) from its gait's at the left touchdown, at the gait's energy;",
+    'converged when the last left touchdown is back on the gait within --tolerance (deg and deg/s, default 0.1).',
   ].join('\n'),
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
@@ -39,6 +43,8 @@ export const basinCommand: Command = {
     heights: { type: 'string', valueName: 'LO:HI:N', description: 'start apex heights: N values from LO to HI m (inclusive)' },
     speeds: { type: 'string', valueName: 'LO:HI:N', description: 'start forward speeds: N values from LO to HI m/s (inclusive)' },
     energy: { type: 'boolean', description: "1-D basin at the scenario's start energy: heights only, speed from energy" },
+    headings: { type: 'string', valueName: 'LO:HI:N', description: 'lateral: heading-to-body errors, N values from LO to HI deg (default -30:30:21)' },
+    rates: { type: 'string', valueName: 'LO:HI:N', description: 'lateral: angular-velocity errors, N values from LO to HI deg/s (default a quarter of speed / leg length, 21)' },
     strides: { type: 'string', valueName: 'N', description: 'strides per cell (default 30)' },
     tolerance: {
       type: 'string',
@@ -80,7 +86,31 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
 
-  const scenario = await scenarioArgument(file, io, 'basin');
+  const any = await anyScenarioArgument(file, io, 'basin');
+  if (any.kind === 'lateral') {
+    const refused = ['heights', 'speeds', 'energy', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
+    if (refused.length) {
+      throw new InputError(
+        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its basin takes --headings, --rates, --strides, --tolerance, --json)', found: describeFound(values[refused[0]]) }],
+        { source: SOURCE },
+      );
+    }
+    const { runLateralBasin } = await import('./lateral.js');
+    return runLateralBasin(any.scenario, io, {
+      json,
+      ...(values.headings !== undefined ? { headings: parseAxisOption(values.headings, '--headings', 'deg') } : {}),
+      ...(values.rates !== undefined ? { rates: parseAxisOption(values.rates, '--rates', 'deg/s') } : {}),
+      ...(strides !== undefined ? { strides } : {}),
+      ...(tolerance !== undefined ? { tolerance } : {}),
+    });
+  }
+  if (values.headings !== undefined || values.rates !== undefined) {
+    throw new InputError(
+      [{ path: values.headings !== undefined ? '--headings' : '--rates', expected: 'a "lateral" scenario (the option grids its heading and angular velocity)', found: `a "${any.kind}" scenario` }],
+      { source: SOURCE },
+    );
+  }
+  const scenario = any.scenario;
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const core = await import('../core/analysis/basin.js');

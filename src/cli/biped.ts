@@ -136,9 +136,11 @@ export function renderBipedMap(s: BipedScenario, result: BipedMapResult): string
       ['energy', `${fixed(result.energy_J, 3)} J, from the start ${walking ? 'single-support' : 'flight'} apex`],
       [
         'section',
-        walking
-          ? 'single-support apex; reduced state (height, offset), speed from the energy'
-          : 'flight apex; reduced state (height), speed from the energy',
+        !result.energy_conserving
+          ? `${walking ? 'single-support' : 'flight'} apex; the energy is not conserved (damping or split stiffness): the full map in (${result.reduced_state.join(', ')})`
+          : walking
+            ? 'single-support apex; reduced state (height, offset), speed from the energy'
+            : 'flight apex; reduced state (height), speed from the energy',
       ],
       ['map', `${count(result.map_strides, 'stride')} per application${result.map_strides === 2 ? ' (the legs differ: a whole gait cycle)' : ''}, flat ground`],
       [
@@ -161,7 +163,7 @@ export function renderBipedMap(s: BipedScenario, result: BipedMapResult): string
           fixed(f.offset_m * 1000, 3),
           f.stable ? 'yes' : 'no',
           f.eigenvalues.map(eigenText).join('; '),
-          f.energy_eigenvalue_deviation.toExponential(1),
+          Number.isFinite(f.energy_eigenvalue_deviation) ? f.energy_eigenvalue_deviation.toExponential(1) : '-',
           fixed(f.stride_s * 1000, 1),
           f.double_support_s === null ? '-' : fixed(f.double_support_s * 1000, 1),
           f.leg_vertical_force_peaks_N.map((p) => fixed(p / weight, 2)).join(', '),

@@ -161,7 +161,15 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
   const outputs = await checkOutputs(
     [
       { option: '--out', path: flags.out },
-      flags.format === 'c' ? { option: '--out', path: sourcePath, beside: flags.out, mayReplace: (text: string) => isCSourceOf(text, headerName) } : undefined,
+      flags.format === 'c'
+        ? {
+            option: '--out',
+            path: sourcePath,
+            beside: flags.out,
+            mayReplace: (text: string) => isCSourceOf(text, headerName),
+            forceAlso: 'writes a policy whose constraint margins are negative, marked as forced',
+          }
+        : undefined,
     ],
     [{ path: file, what: 'the input file' }],
     { force: flags.force, source: SOURCE },

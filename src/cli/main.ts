@@ -91,6 +91,11 @@ export const COMMANDS: readonly CommandEntry[] = [
     load: async () => (await import('./robustness.js')).robustnessCommand,
   },
   {
+    name: 'recover',
+    summary: 'impulse recovery of a gait: kick it at a chosen moment, strides and time to recover, heading lost, survival',
+    load: async () => (await import('./recover.js')).recoverCommand,
+  },
+  {
     name: 'optimize',
     summary: "NLopt search over a study's free policy parameters, re-scored on held-out seeds; writes a result file",
     load: async () => (await import('./optimize.js')).optimizeCommand,

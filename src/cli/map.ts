@@ -2,7 +2,7 @@
 // scenario's energy, its fixed points with slope, eigenvalues and stance symmetry, and the staircase
 // from the start apex.
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import type { FixedPointOut, ReturnMapResult } from '../core/analysis/return-map.js';
 import { InputError } from '../core/errors.js';
 import { type Scenario } from '../core/scenario.js';
@@ -55,7 +55,18 @@ async function runMap({ values, positionals }: ParsedCommandLine, io: CliIO): Pr
   const plot = await plotOption(values.plot);
   const file = positionals[0];
   const [plotFile] = await checkOutputs([outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
-  const scenario = await scenarioArgument(file, io, 'map');
+  const any = await anyScenarioArgument(file, io, 'map');
+  if (any.kind === 'lateral') {
+    if (samples !== undefined || iterations !== undefined || values.approx === true || plot !== undefined) {
+      throw new InputError(
+        [{ path: '', expected: '', found: '', message: 'a "lateral" scenario takes no --samples, --iterations, --approx or --plot (they describe the single-leg apex map)' }],
+        { source: SOURCE },
+      );
+    }
+    const { runLateralMap } = await import('./lateral.js');
+    return runLateralMap(any.scenario, io, { json });
+  }
+  const scenario = any.scenario;
   if (scenario.model === 'biped') {
     const biped = scenario as BipedScenario;
     if (values.approx === true || plot !== undefined) {

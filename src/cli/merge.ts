@@ -28,6 +28,10 @@ const VIEWS: Record<string, () => Promise<View>> = {
     const { robustnessJson, renderRobustness } = await import('./robustness.js');
     return { json: (s, r) => robustnessJson(r as never, s), text: (s, r) => renderRobustness(s, r as never) };
   },
+  recover: async () => {
+    const { recoverMonteCarloJson, renderMonteCarlo } = await import('./recover.js');
+    return { json: (_s, r) => recoverMonteCarloJson(r as never), text: (s, r) => renderMonteCarlo(s as never, r as never) };
+  },
 };
 
 export const mergeCommand: Command = {

@@ -39,6 +39,8 @@ export interface OutputRequest {
    */
   beside?: string;
   mayReplace?: (existing: string) => boolean;
+  /** What else `--force` does in this command, said where a refusal suggests it. */
+  forceAlso?: string;
 }
 
 /** One file a command reads: an output may not be it. `what` names it in messages, e.g. `the scenario file`. */
@@ -175,7 +177,7 @@ export async function checkOutputs(
             'a file name whose companion files do not exist yet',
             `it is written beside ${JSON.stringify(request.beside)}, and a file by that name already exists${where} that you did not name ` +
               'and that is not an earlier export of the same file',
-            `move it away, choose another ${request.option} name, or add --force to replace it`,
+            `move it away, choose another ${request.option} name, or add --force to replace it${request.forceAlso ? ` (--force also ${request.forceAlso})` : ''}`,
           ),
         );
         continue;

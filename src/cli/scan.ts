@@ -2,7 +2,7 @@
 // [--shard I/N --out FILE] [--json]`: where in a plane of two parameters the return map has a
 // stable fixed point (a stability-region map).
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import type { ScanOptions, ScanResult } from '../core/analysis/scan.js';
 import { InputError, UsageError } from '../core/errors.js';
 import { jsonText, modelHeader } from '../core/json-output.js';
@@ -34,7 +34,8 @@ export const scanCommand: Command = {
     "scenario with that cell's two values) at that cell's own start energy, on flat ground, and is none (no",
     'fixed point), unstable (fixed points, none with |slope| < 1) or stable (with the stable fixed point\'s',
     'height and slope). Cells are listed row-major, y outer: cells[iy * nx + ix]. Results do not depend on',
-    '--workers; shards merge with pronk merge.',
+    '--workers; shards merge with pronk merge. A "lateral" scenario: each cell\'s periodic gaits at its own',
+    "start energy (as 'pronk map' finds them), none, unstable, neutral or stable by the most stable gait.",
   ].join('\n'),
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
@@ -69,7 +70,19 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
 
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
-  const scenario = await scenarioArgument(file, io, 'scan');
+  const any = await anyScenarioArgument(file, io, 'scan');
+  if (any.kind === 'lateral') {
+    const refused = ['samples', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
+    if (refused.length) {
+      throw new InputError(
+        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its scan takes --x, --y, --json)', found: String(values[refused[0]]) }],
+        { source: SOURCE },
+      );
+    }
+    const { runLateralScan } = await import('./lateral.js');
+    return withSourceAsync(() => runLateralScan(any.scenario, io, { json, x: options.x, y: options.y }));
+  }
+  const scenario = any.scenario;
 
   // loaded on demand so that --help and input errors never wait for the WASM engine
   const { runBatchParallel } = await import('../worker/pool.js');

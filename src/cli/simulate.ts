@@ -1,6 +1,6 @@
 // `pronk simulate [FILE] [--json] [--strides N] [--trace-interval S]`: one rollout of a scenario, shown stride by stride.
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument } from './scenario-argument.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import {
@@ -42,7 +42,12 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
   const strides = parseStridesOption(values.strides);
   const traceInterval = parseTraceIntervalOption(values['trace-interval']);
   const file = positionals[0];
-  const scenario = await scenarioArgument(file, io, 'simulate');
+  const any = await anyScenarioArgument(file, io, 'simulate');
+  if (any.kind === 'lateral') {
+    const { runLateralSimulate } = await import('./lateral.js');
+    return runLateralSimulate(any.scenario, io, { json, strides, traceInterval });
+  }
+  const scenario = any.scenario;
   if (scenario.model === 'biped') {
     const biped = scenario as BipedScenario;
     const { simulateBiped } = await import('../core/models/biped-simulate.js');

@@ -18,7 +18,36 @@ export interface KernelExports {
     samples: number, capacity: number, dt: number,
   ): number;
   terrainGaussian(seed: number, stream: number, index: number): number;
+  rngUniform(seed: number, stream: number, counter: number): number;
   integrateArenstorf(mu: number, x0: number, vy0: number, tEnd: number, rtol: number, atol: number, out: number): void;
+  runLateralBatch(models: number, inputs: number, rollouts: number, strides: number, records: number, summaries: number): number;
+  traceLateralRollout(
+    model: number, input: number, strides: number, records: number, summary: number,
+    samples: number, capacity: number, dt: number,
+  ): number;
+  /** Rollouts runBatch steps together: 4 (default), 2 or 1; the results are the same bytes. */
+  batchLanes(n: number): void;
+  /** Steps the last runBatch took in pairs. */
+  batchPairedSteps(): number;
+}
+
+/** A batch of lateral leg-spring rollouts (layouts LM_ / LI_ / LR_ / LS_ in assembly/layout.ts). */
+export interface LateralBatchResult {
+  rollouts: number;
+  strides: number;
+  /** (rollouts x LS_SIZE) f64. */
+  summaries: Float64Array;
+  /** (rollouts x strides x LR_SIZE) f64 when requested. */
+  records?: Float64Array;
+  completed: number;
+}
+
+/** One lateral rollout with samples (samples x LT_SIZE), records (strides x LR_SIZE), summary (LS_SIZE). */
+export interface LateralTraceResult {
+  samples: Float64Array;
+  records: Float64Array;
+  summary: Float64Array;
+  truncated: boolean;
 }
 
 /** A compiled model: the (M_SIZE) block plus the tables it points into. */
@@ -101,11 +130,16 @@ async function instantiate(): Promise<KernelExports> {
 }
 
 const BYTES = 8;
+/** Largest allocation the 32-bit address space holds, bytes. */
+const MAX_ALLOC_BYTES = 2 ** 32 - 2 ** 16;
 
 export class Engine {
   constructor(readonly kernel: KernelExports) {}
 
   private alloc(count: number): number {
+    // the kernel takes a 32-bit byte count: a larger one would wrap to a small allocation that the
+    // kernel then writes past
+    if (!(count * BYTES <= MAX_ALLOC_BYTES)) throw new EngineError(`out of WASM memory allocating ${count} values (more than 4 GiB)`);
     const p = this.kernel.arenaAlloc(count * BYTES) >>> 0;
     if (p === 0) throw new EngineError(`out of WASM memory allocating ${count} values`);
     return p;
@@ -205,6 +239,68 @@ export class Engine {
       summary: this.view(summary, L.S_SIZE).slice(),
       truncated: n >= capacity,
     };
+  }
+
+  /** Lateral leg-spring rollouts: each input row (LI_SIZE) picks its model block (LM_SIZE) by LI_MODEL. */
+  runLateral(models: readonly Float64Array[], inputs: Float64Array, strides: number, records = false): LateralBatchResult {
+    const rollouts = inputs.length / L.LI_SIZE;
+    if (!Number.isInteger(rollouts) || rollouts < 1) {
+      throw new EngineError(`inputs hold ${inputs.length} values, expected a positive multiple of ${L.LI_SIZE}`);
+    }
+    if (!Number.isInteger(strides) || strides < 1) throw new EngineError(`strides must be a positive integer, found ${strides}`);
+    if (models.length < 1) throw new EngineError('a batch needs at least one model');
+    const all = new Float64Array(models.length * L.LM_SIZE);
+    models.forEach((m, i) => {
+      if (m.length !== L.LM_SIZE) throw new EngineError(`lateral model block ${i} has ${m.length} fields, expected ${L.LM_SIZE}`);
+      all.set(m, i * L.LM_SIZE);
+    });
+    for (let r = 0; r < rollouts; r++) {
+      const m = inputs[r * L.LI_SIZE + L.LI_MODEL];
+      if (!Number.isInteger(m) || m < 0 || m >= models.length) {
+        throw new EngineError(`rollout ${r} picks model ${m}, expected an integer from 0 to ${models.length - 1}`);
+      }
+    }
+    const k = this.kernel;
+    k.arenaReset();
+    const mp = this.put(all);
+    const ip = this.put(inputs);
+    const nRecords = records ? rollouts * strides * L.LR_SIZE : 0;
+    const rp = nRecords > 0 ? this.alloc(nRecords) : 0;
+    const sp = this.alloc(rollouts * L.LS_SIZE);
+    const completed = k.runLateralBatch(mp, ip, rollouts, strides, rp, sp);
+    return {
+      rollouts,
+      strides,
+      completed,
+      summaries: this.view(sp, rollouts * L.LS_SIZE).slice(),
+      records: nRecords > 0 ? this.view(rp, nRecords).slice() : undefined,
+    };
+  }
+
+  /** One lateral rollout with samples every dt seconds. */
+  traceLateral(model: Float64Array, input: Float64Array, strides: number, dt: number, capacity = 200_000): LateralTraceResult {
+    if (model.length !== L.LM_SIZE) throw new EngineError(`lateral model block has ${model.length} fields, expected ${L.LM_SIZE}`);
+    if (input.length !== L.LI_SIZE) throw new EngineError(`lateral input holds ${input.length} values, expected ${L.LI_SIZE}`);
+    if (!(dt > 0)) throw new EngineError(`trace interval must be > 0 s, found ${dt}`);
+    const k = this.kernel;
+    k.arenaReset();
+    const mp = this.put(model);
+    const ip = this.put(input);
+    const records = this.alloc(strides * L.LR_SIZE);
+    const summary = this.alloc(L.LS_SIZE);
+    const samples = this.alloc(capacity * L.LT_SIZE);
+    const n = k.traceLateralRollout(mp, ip, strides, records, summary, samples, capacity, dt);
+    return {
+      samples: this.view(samples, n * L.LT_SIZE).slice(),
+      records: this.view(records, strides * L.LR_SIZE).slice(),
+      summary: this.view(summary, L.LS_SIZE).slice(),
+      truncated: n >= capacity,
+    };
+  }
+
+  /** Uniform draw in (0, 1), number `counter` of stream `stream` of `seed` (counter-based: rng.ts). */
+  uniform(seed: number, stream: number, counter: number): number {
+    return this.kernel.rngUniform(seed, stream, counter);
   }
 
   /** Standard-normal draw `index` of terrain stream `stream` (for checks). */

@@ -12,6 +12,7 @@ import { z } from 'zod';
 import { policySchema, scenarioSchema } from './scenario.js';
 import { bipedScenarioSchema } from './models/biped.js';
 import { studySchema } from './optimize/study.js';
+import { bipedSchema } from './models/biped.js';
 import { resultSchema } from './export/input.js';
 
 export const JSON_SCHEMA_NAMES = ['scenario', 'study', 'result'] as const;
@@ -24,7 +25,7 @@ const TITLES: Record<JsonSchemaName, { title: string; description: string }> = {
   scenario: {
     title: 'Pronk scenario',
     description:
-      'A spring-mass runner (body, start apex, touchdown-angle and stiffness policy, terrain, stride count) for pronk. SI units, the unit in every field name; angles in degrees, the attack angle from the horizontal.',
+      'A spring-mass runner (body, start apex, touchdown-angle and stiffness policy, terrain, stride count) for pronk, on one spring leg or ("model": "biped") two. SI units, the unit in every field name; angles in degrees, the attack angle from the horizontal.',
   },
   study: {
     title: 'Pronk study',
@@ -66,7 +67,32 @@ function zodSchemaOf(name: JsonSchemaName): z.ZodType {
 
 /** The JSON Schema of one kind of file, as plain JSON. */
 export function jsonSchema(name: JsonSchemaName): Record<string, unknown> {
-  const generated = z.toJSONSchema(zodSchemaOf(name), {
+  const generated = generate(zodSchemaOf(name));
+  if (name === 'scenario') addModelKinds(generated);
+  const { $schema, description: _expected, ...rest } = generated;
+  return { $schema, ...TITLES[name], ...rest };
+}
+
+type Node = Record<string, unknown> & { properties?: Record<string, Node> };
+
+// The scenario schema describes every model kind's fields (src/core/models/): "model", and the
+// two-leg model's "legs" and start fields are added as optional properties, so an editor accepts
+// and completes either kind; which fields a kind needs together the validator checks.
+function addModelKinds(scenario: Node): void {
+  const biped = generate(bipedSchema()) as Node;
+  const props = scenario.properties!;
+  const bipedProps = biped.properties!;
+  props.model = {
+    enum: ['slip', 'biped'],
+    description: 'the model kind: "slip" (one spring leg, the default when absent) or "biped" (two spring legs)',
+  };
+  props.legs = bipedProps.legs;
+  const start = props.start.properties!;
+  for (const field of ['gait', 'offset_m', 'leg']) start[field] = bipedProps.start.properties![field];
+}
+
+function generate(schema: z.ZodType): Record<string, unknown> {
+  return z.toJSONSchema(schema, {
     target: 'draft-2020-12',
     io: 'input', // what a file may hold: fields with defaults are optional
     unrepresentable: 'any',
@@ -77,8 +103,6 @@ export function jsonSchema(name: JsonSchemaName): Record<string, unknown> {
       }
     },
   }) as Record<string, unknown>;
-  const { $schema, description: _expected, ...rest } = generated;
-  return { $schema, ...TITLES[name], ...rest };
 }
 
 /** The file's text: 2-space JSON with a final newline. */

@@ -3,6 +3,8 @@
 // result is exactly the one-machine result.
 
 import { InputError, describeFound, type InputIssue } from './errors.js';
+import { modelKindOf } from './models/kind.js';
+import { parseLateralScenario } from './models/lateral.js';
 import { parseScenario, type Scenario } from './scenario.js';
 import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, joinShards, type PartialResult } from './shard.js';
 import { contentHash } from './version.js';
@@ -17,6 +19,7 @@ const FINISHERS: Record<string, () => Promise<Finisher>> = {
   basin: async () => (await import('./analysis/basin.js')).finishBasin as Finisher,
   scan: async () => (await import('./analysis/scan.js')).finishScan as unknown as Finisher,
   robustness: async () => (await import('./analysis/robustness.js')).finishRobustness as unknown as Finisher,
+  recover: async () => (await import('./analysis/recover.js')).finishRecoverRun as unknown as Finisher,
 };
 
 // The number of items (cells, rollouts) the run's options describe, each options check the
@@ -35,6 +38,10 @@ const ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<string, u
   robustness: async (scenario, options) => {
     const { canonicalRobustnessOptions } = await import('./analysis/robustness.js');
     return canonicalRobustnessOptions(scenario, options as unknown as RobustnessOptions).rollouts;
+  },
+  recover: async (_scenario, options) => {
+    const { checkRecoverRunOptions } = await import('./analysis/recover.js');
+    return checkRecoverRunOptions(options).kicks.rollouts;
   },
 };
 
@@ -72,7 +79,12 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
       { path: `${first.source}: scenario`, expected: `the scenario whose hash is scenario_sha256`, found: 'a scenario with another hash (the file was edited)' },
     ]);
   }
-  const scenario = parseScenario(first.partial.scenario, { source: `${first.source}: scenario` });
+  // a lateral scenario (recover) has its own type and validator
+  const raw = first.partial.scenario;
+  const scenario =
+    modelKindOf(raw) === 'lateral'
+      ? (parseLateralScenario(raw, { source: `${first.source}: scenario` }) as unknown as Scenario)
+      : parseScenario(raw, { source: `${first.source}: scenario`, command: `merge (${command})` });
   let items: number;
   try {
     items = await ITEM_COUNTS[command](scenario, first.partial.options);

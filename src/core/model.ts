@@ -124,6 +124,9 @@ export const STATUS_NAMES: Record<number, string> = {
   [L.STATUS_GAIT_CHANGED]: 'gait_changed',
   [L.STATUS_STALLED]: 'stalled',
   [L.STATUS_NO_SECTION]: 'no_section',
+  // lateral leg-spring model
+  [L.STATUS_STALLED_FORWARD]: 'stalled_forward',
+  [L.STATUS_LEG_UNLOADED]: 'leg_unloaded',
 };
 
 /** What each failure means, in words for a report. */
@@ -144,6 +147,8 @@ export const STATUS_TEXT: Record<number, string> = {
   [L.STATUS_STALLED]: 'stalled in double support (forward speed reached zero, or no leg lifted off)',
   [L.STATUS_NO_SECTION]:
     'no section: the swing leg touched down a second time before the body reached its single-support apex',
+  [L.STATUS_STALLED_FORWARD]: 'the velocity along the body axis fell to zero (the body stalled or turned sideways)',
+  [L.STATUS_LEG_UNLOADED]: 'at a touchdown the body was already moving away from the new foot (the leg cannot load)',
 };
 
 /**

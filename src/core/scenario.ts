@@ -8,7 +8,7 @@ import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
 import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
-import { modelKindOf } from './models/kind.js';
+import { type ModelKind, modelKindOf, refuseModelKind } from './models/kind.js';
 import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
@@ -359,9 +359,31 @@ function showAbove(bound: number, found: number): string {
 // Validation entry points.
 
 // Checks any JSON value against the scenario schema; throws an InputError naming every problem.
-export function parseScenario(value: unknown, options: { source?: string } = {}): Scenario {
+export function parseScenario(
+  value: unknown,
+  options: { source?: string; command?: string; supported?: readonly ModelKind[] } = {},
+): Scenario {
   const kind = modelKindOf(value, options.source);
-  if (kind === 'biped') return parseBipedScenario(value, options);
+  // the lateral model has its own scenario type (models/lateral.ts): refused here by name
+  if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', options.supported ?? ['slip', 'biped'], kind, options.source);
+  if (kind === 'biped') {
+    const biped = parseBipedScenario(value, options);
+    // the accuracy-to-tolerance mapping (accuracy.ts) is calibrated on the single-leg runner only
+    const accuracy = (biped as { integrator?: { apex_accuracy_m?: number } }).integrator?.apex_accuracy_m;
+    if (accuracy !== undefined) {
+      throw new InputError(
+        [
+          {
+            path: 'integrator.apex_accuracy_m',
+            expected: 'no value for a "model": "biped" scenario (calibrated for the single-leg runner only; set relative_tolerance and absolute_tolerance)',
+            found: describeFound(accuracy),
+          },
+        ],
+        options,
+      );
+    }
+    return biped;
+  }
   if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
     const { model: _slip, ...rest } = value as Record<string, unknown>;
     value = rest; // "model": "slip" is the default, said out loud; the scenario is the same
@@ -418,9 +440,14 @@ export function demoScenario(): Scenario {
 // ---------------------------------------------------------------------------------------------
 // Reading scenario files (Node only; fs is loaded on demand so the module also runs in a browser).
 
-export async function readScenarioFile(path: string): Promise<Scenario> {
+export async function readScenarioFile(path: string, options: { command?: string; supported?: readonly ModelKind[] } = {}): Promise<Scenario> {
+  return parseScenario(await readScenarioValue(path), { source: path, ...options });
+}
+
+/** A scenario file's JSON value, unchecked (a file error or invalid JSON is an InputError). */
+export async function readScenarioValue(path: string): Promise<unknown> {
   const { readInputFile } = await import('./input-file.js');
-  return parseScenario(await readInputFile(path, 'scenario file'), { source: path });
+  return readInputFile(path, 'scenario file');
 }
 
 // JSON.parse, with a syntax error reported as an InputError at its line and column.

@@ -13,12 +13,22 @@ import { robustnessRows, type RobustnessOptions, type RobustnessRow } from '../c
 import { stepTolerance, type StepToleranceOptions, type StepToleranceResult } from '../core/analysis/stepdown.js';
 import { simulate, type SimulateOptions, type SimulationResult } from '../core/simulate.js';
 import { parseScenario, type Scenario } from '../core/scenario.js';
+import { bipedReturnMap, type BipedMapOptions, type BipedMapResult } from '../core/analysis/biped-map.js';
+import { isBiped, type BipedScenario } from '../core/models/biped.js';
+import { simulateBiped, type BipedSimulationResult } from '../core/models/biped-simulate.js';
 import type { PartialResult, ShardRange, ShardSpec } from '../core/shard.js';
 
 const inWorker = async (req: BatchRequest): Promise<BatchResult> => (await loadEngine()).runBatch(req);
 
 // A worker trusts nothing it is sent: every scenario is validated again here.
 const checked = (scenario: unknown): Scenario => parseScenario(scenario);
+
+// The two-leg analyses take a two-leg scenario only (never run another kind as this one).
+function checkedBiped(scenario: unknown): BipedScenario {
+  const s = checked(scenario);
+  if (!isBiped(s)) throw new Error(`a two-leg analysis needs a scenario with "model": "biped", found ${JSON.stringify(s.model ?? 'slip')}`);
+  return s;
+}
 
 const api = {
   /** Loads the kernel; resolves once the worker can compute. */
@@ -45,6 +55,14 @@ const api = {
 
   async robustnessRows(scenario: unknown, options: RobustnessOptions, range: ShardRange): Promise<RobustnessRow[]> {
     return robustnessRows(checked(scenario), options, range, { runBatch: inWorker });
+  },
+
+  async simulateBiped(scenario: unknown, options: { strides?: number; traceInterval_s?: number } = {}): Promise<BipedSimulationResult> {
+    return simulateBiped(checkedBiped(scenario), options);
+  },
+
+  async bipedMap(scenario: unknown, options: Omit<BipedMapOptions, 'runBatch'> = {}): Promise<BipedMapResult> {
+    return bipedReturnMap(checkedBiped(scenario), { ...options, runBatch: inWorker });
   },
 
   async stepdown(scenario: unknown, options: StepToleranceOptions = {}): Promise<StepToleranceResult> {

@@ -20,7 +20,7 @@
 // and the converged points are merged.
 
 import * as L from '../../../assembly/layout.js';
-import { type BatchRunner, inProcessRunner } from './return-map.js';
+import { type BatchRunner, conservesEnergy, inProcessRunner } from './return-map.js';
 import { loadEngine } from '../engine.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import {
@@ -90,6 +90,12 @@ export interface BipedMapResult {
   energy_J: number;
   /** Strides per application of the map: 1 with identical legs, 2 (a gait cycle) otherwise. */
   map_strides: number;
+  /**
+   * No damping and the same stiffness in compression and extension: the energy is conserved and
+   * the map is reduced by it. Otherwise fixed points and eigenvalues are those of the full map
+   * (reduced_state lists its coordinates) and energy_eigenvalue_deviation is null.
+   */
+  energy_conserving: boolean;
   /** The reduced state's coordinates. */
   reduced_state: string[];
   domain: { height_low_m: number; height_high_m: number; offset_low_m: number; offset_high_m: number };
@@ -116,6 +122,7 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
   const walking = gait === 'walking';
   const energy = sectionEnergy(scenario, start);
   const n = legsIdentical(scenario) ? 1 : 2;
+  const conserving = conservesEnergy(scenario) && legParameters(scenario).every((l) => l.damping_N_s_per_m === 0);
   const legs = legParameters(scenario);
   const L0 = legs[start.leg === 'right' ? 1 : 0].length_m;
   const model = buildModel({ ...scenario, terrain: { kind: 'flat' } });
@@ -217,11 +224,13 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
 
   // ---- Levenberg-Marquardt on G(z) = F(z) - z
   const dim = walking ? 2 : 1;
+  // full: z holds the full state (y, v[, d]) when fullMode, else the reduced one (made full here)
   const jacobian = async (z: number[], step: number, full = false): Promise<{ J: number[][]; G: number[]; ok: boolean }> => {
-    const base = full ? fullState(z) : stateOf(z);
+    const base = full ? (fullMode ? fromFull(z) : fullState(z)) : stateOf(z);
     const k = full ? dim + 1 : dim;
     const points: (SectionState | null)[] = [base];
     const coords = full ? toFull(base) : z;
+    if (coords.length === 0) return { J: [], G: [], ok: false };
     for (let c = 0; c < k; c++) {
       for (const sgn of [1, -1]) {
         const w = coords.slice();
@@ -250,14 +259,21 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
     return { gait, height_m: w[0], speed_m_per_s: w[1], offset_m: walking ? w[2] : 0, leg: start.leg };
   }
 
+  // Without energy conservation (damping, or a stiffness that differs between compression and
+  // extension) the energy is no constant of the map: fixed points are sought, and classified, on
+  // the full map (y, v[, d]) instead.
+  const fullMode = !conserving;
+  const stateAny = (z: number[]) => (fullMode ? fromFull(z) : stateOf(z));
+  const outAny = (e: Eval) => (fullMode ? e.full : e.z);
   const step = 1e-5 * L0;
   const found: number[][] = [];
   for (const seed of seeds) {
-    let z = seed.slice();
+    let z = fullMode ? toFull(stateOf(seed)) : seed.slice();
+    if (z.length === 0) continue;
     let lambda = 1e-3;
     let converged = false;
     for (let it = 0; it < 40; it++) {
-      const { J, G, ok } = await jacobian(z, step);
+      const { J, G, ok } = await jacobian(z, step, fullMode);
       if (!ok) break;
       const norm = Math.hypot(...G);
       if (norm < tol) converged = true;
@@ -268,9 +284,9 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
       for (let tries = 0; tries < 8; tries++) {
         const dz = solveDamped(A, G, lambda);
         const trial = z.map((v, i) => v + dz[i]);
-        const [e] = await evaluate([stateOf(trial)]);
+        const [e] = await evaluate([stateAny(trial)]);
         if (e.ok) {
-          const trialNorm = Math.hypot(...e.z.map((v, i) => v - trial[i]));
+          const trialNorm = Math.hypot(...outAny(e).map((v, i) => v - trial[i]));
           if (trialNorm < norm) {
             z = trial;
             lambda = Math.max(lambda / 10, 1e-12);
@@ -291,12 +307,13 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
   const engine = await loadEngine();
   const fixedPoints: BipedFixedPoint[] = [];
   for (const z of found) {
-    const reduced = await jacobian(z, step);
     const full = await jacobian(z, step, true);
-    const state = stateOf(z)!;
+    const reduced = fullMode ? full : await jacobian(z, step);
+    const state = stateAny(z)!;
     const eig = reduced.ok ? eigenvalues(reduced.J) : [];
     const fullEig = full.ok ? eigenvalues(full.J) : [];
-    const deviation = fullEig.length ? Math.min(...fullEig.map((e) => Math.hypot(e.re - 1, e.im))) : Number.NaN;
+    const deviation =
+      fullEig.length && !fullMode ? Math.min(...fullEig.map((e) => Math.hypot(e.re - 1, e.im))) : Number.NaN;
     // n + 1 strides: the leg landing in the first stride completes its contact
     const trace = engine.trace(model, sectionInput(state), n + 1, 1e-4);
     const landing = Number.isNaN(trace.records[L.R_TOUCHDOWN_TIME_0]) ? 1 : 0;
@@ -311,11 +328,11 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
       peak = Math.max(peak, rec(s, L.R_PEAK_VERTICAL_FORCE));
     }
     fixedPoints.push({
-      height_m: z[0],
+      height_m: state.height_m,
       speed_m_per_s: state.speed_m_per_s,
-      offset_m: walking ? z[1] : 0,
+      offset_m: state.offset_m,
       leg: start.leg,
-      symmetric: walking ? Math.abs(z[1]) < 1e-6 * L0 : true,
+      symmetric: walking ? Math.abs(state.offset_m) < 1e-6 * L0 : true,
       residual_m: reduced.ok ? Math.hypot(...reduced.G) : Number.NaN,
       eigenvalues: eig,
       stable: eig.length > 0 && eig.every((e) => e.modulus < 1),
@@ -347,7 +364,14 @@ export async function bipedReturnMap(scenario: BipedScenario, options: BipedMapO
     gait,
     energy_J: energy,
     map_strides: n,
-    reduced_state: walking ? ['height_m', 'offset_m'] : ['height_m'],
+    energy_conserving: conserving,
+    reduced_state: fullMode
+      ? walking
+        ? ['height_m', 'speed_m_per_s', 'offset_m']
+        : ['height_m', 'speed_m_per_s']
+      : walking
+        ? ['height_m', 'offset_m']
+        : ['height_m'],
     domain: { height_low_m: heightLow, height_high_m: heightHigh, offset_low_m: -offsetSpan, offset_high_m: offsetSpan },
     scan,
     fixed_points: fixedPoints,

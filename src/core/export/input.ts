@@ -145,7 +145,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
   let scenario: Scenario | undefined;
   try {
-    scenario = parseScenario(result.scenario);
+    scenario = parseScenario(result.scenario, { command: 'export', supported: ['slip', 'biped'] });
     requireKind(scenario, 'export', ['slip', 'biped']);
   } catch (error) {
     issues.push(...prefixed(error, 'scenario'));
@@ -195,7 +195,7 @@ export async function parseResult(value: unknown, file: string): Promise<ExportS
 
 /** A scenario file as an export source (its own policy, no constraints). */
 export async function scenarioSource(value: unknown, file: string): Promise<ExportSource> {
-  const scenario = parseScenario(value, { source: file });
+  const scenario = parseScenario(value, { source: file, command: 'export', supported: ['slip', 'biped'] });
   requireKind(scenario, 'export', ['slip', 'biped'], file);
   const scenarioHash = await contentHash(scenario);
   return {

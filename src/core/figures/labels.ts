@@ -30,6 +30,22 @@ const FIXED: Record<string, ParameterName> = {
   'integrator.relative_tolerance': { label: 'Relative tolerance', unit: '' },
   'integrator.absolute_tolerance': { label: 'Absolute tolerance', unit: '' },
   'integrator.max_steps_per_stance': { label: 'Max steps per stance', unit: '' },
+  // the two-leg model (models/biped.ts)
+  'start.offset_m': { label: 'Start offset, body − stance foot', unit: 'm' },
+  'legs.left.leg_length_m': { label: 'Left leg: rest length', unit: 'm' },
+  'legs.left.stiffness_scale': { label: 'Left leg: stiffness factor', unit: '×' },
+  'legs.left.leg_damping_N_s_per_m': { label: 'Left leg: damping', unit: 'N·s/m' },
+  'legs.right.leg_length_m': { label: 'Right leg: rest length', unit: 'm' },
+  'legs.right.stiffness_scale': { label: 'Right leg: stiffness factor', unit: '×' },
+  'legs.right.leg_damping_N_s_per_m': { label: 'Right leg: damping', unit: 'N·s/m' },
+  // the lateral leg-spring model (models/lateral.ts)
+  'body.moment_of_inertia_kg_m2': { label: 'Moment of inertia', unit: 'kg·m²' },
+  'body.attachment_offset_m': { label: 'Leg attachment offset d', unit: 'm' },
+  'body.attachment_rate_m_per_s': { label: 'Attachment offset rate', unit: 'm/s' },
+  'start.speed_m_per_s': { label: 'Start speed', unit: 'm/s' },
+  'start.heading_to_body_deg': { label: 'Start heading to body axis', unit: '°' },
+  'start.angular_velocity_deg_per_s': { label: 'Start angular velocity', unit: '°/s' },
+  'policy.angle.angle_to_body_deg': { label: 'Touchdown angle to body axis', unit: '°' },
 };
 
 // Table entries: `policy.angle.attack_deg[2]` is row 2 of the angle table.
@@ -52,6 +68,7 @@ export function unitOfPath(path: string): string {
     [/_N_per_m$/, 'N/m'],
     [/_m_per_s2$/, 'm/s²'],
     [/_m_per_s$/, 'm/s'],
+    [/_kg_m2$/, 'kg·m²'],
     [/_kg$/, 'kg'],
     [/_s$/, 's'],
     [/_m$/, 'm'],

@@ -35,7 +35,8 @@ export interface BipedStride {
    * support), hopping (both legs land and leave together).
    */
   gait: Gait | 'hopping';
-  touchdown_leg: LegName | null;
+  /** The leg that touched down in the stride ("both": together, a hop on both legs), null when none did. */
+  touchdown_leg: StartLeg | null;
   section_to_touchdown_s: number | null;
   attack_deg: number | null;
   ground_height_m: number;
@@ -132,7 +133,7 @@ export async function simulateBiped(
     out.push({
       index: s,
       gait: r(L.R_GAIT) === L.GAIT_RUNNING ? 'running' : r(L.R_GAIT) === L.GAIT_HOPPING ? 'hopping' : 'walking',
-      touchdown_leg: landing < 0 ? null : legName(landing),
+      touchdown_leg: landing < 0 ? null : td0 === td1 ? 'both' : legName(landing),
       section_to_touchdown_s: orNull(r(L.R_APEX_TO_TOUCHDOWN)),
       attack_deg: orNull(r(L.R_ATTACK) * RAD),
       ground_height_m: r(L.R_GROUND),

@@ -77,7 +77,8 @@ export const STIFFNESS_SCALE_BOUND = { low: 1e-3, high: 1e3, unit: 'factor on th
 
 // Built on first use: the shared field schemas live in scenario.ts, which imports this module.
 let schema: z.ZodType | undefined;
-function bipedSchema(): z.ZodType {
+/** The two-leg scenario's zod schema (its JSON Schema fields are merged into the scenario's). */
+export function bipedSchema(): z.ZodType {
   if (schema) return schema;
   const legShape = {
     leg_length_m: bounded(BOUNDS.leg_length_m).optional(),

@@ -1,17 +1,23 @@
 // Model kinds: which equations, events and section a scenario runs on. A scenario file's optional
 // top-level "model" selects one: absent or "slip" is the single-leg model (the file and every
-// output exactly as before "model" existed), "biped" the two-leg model (models/biped.ts). Each kind
+// output exactly as before "model" existed), "biped" the two-leg model (models/biped.ts), "lateral"
+// the lateral leg-spring model (models/lateral.ts, its own scenario type and kernel). Each kind
 // keeps its schema, defaults, messages and model-block builder in its own module; this file only
 // dispatches. A command that does not (yet) run a kind refuses it here, by name.
 
-import { InputError, describeFound } from '../errors.js';
+import { InputError, closestName, describeFound } from '../errors.js';
 
-export type ModelKind = 'slip' | 'biped';
+export type ModelKind = 'slip' | 'biped' | 'lateral';
 /** Every kind this build accepts, in the order messages list them. */
-export const MODEL_KINDS: readonly ModelKind[] = ['slip', 'biped'];
+export const MODEL_KINDS: readonly ModelKind[] = ['slip', 'biped', 'lateral'];
+
+/** The commands that run a kind, where that is not every command (for refusals). */
+export const KIND_COMMANDS: Partial<Record<ModelKind, readonly string[]>> = {
+  lateral: ['simulate', 'map', 'scan', 'basin', 'recover'],
+};
 
 /** The Poincaré section a kind's strides run between (the `--json` header's "section"). */
-export type SectionName = 'flight_apex' | 'single_support_apex';
+export type SectionName = 'flight_apex' | 'single_support_apex' | 'left_touchdown';
 
 function listKinds(kinds: readonly string[]): string {
   const quoted = kinds.map((k) => `"${k}"`);
@@ -24,8 +30,16 @@ export function modelKindOf(raw: unknown, source?: string): ModelKind {
   const model = (raw as Record<string, unknown>).model;
   if (model === undefined) return 'slip';
   if (typeof model === 'string' && (MODEL_KINDS as readonly string[]).includes(model)) return model as ModelKind;
+  const suggestion = typeof model === 'string' ? closestName(model, MODEL_KINDS) : undefined;
+  const found = describeFound(model);
   throw new InputError(
-    [{ path: 'model', expected: `one of the model kinds ${listKinds(MODEL_KINDS)} (absent: "slip")`, found: describeFound(model) }],
+    [
+      {
+        path: 'model',
+        expected: `one of the model kinds ${listKinds(MODEL_KINDS)} (absent: "slip")`,
+        found: suggestion ? `${found} (did you mean ${suggestion}?)` : found,
+      },
+    ],
     { source },
   );
 }
@@ -50,6 +64,29 @@ export function requireKind(scenario: { model?: string }, command: string, suppo
         expected: `a model kind ${command} supports (${list})`,
         found: `"${kind}"`,
         message: `scenario model "${kind}": ${command} supports ${list}, found "${kind}"`,
+      },
+    ],
+    { source },
+  );
+}
+
+/**
+ * Refuse a raw scenario of a kind `command` does not run, before validating it: exit 2 with e.g.
+ * `scenario model "lateral": stepdown supports "slip" and "biped", found "lateral" (a "lateral"
+ * scenario runs in pronk simulate, map, recover)`.
+ */
+export function refuseModelKind(command: string, supported: readonly ModelKind[], found: ModelKind, source?: string): never {
+  const list = supported.map((k) => `"${k}"`).join(' and ');
+  const runs = KIND_COMMANDS[found];
+  throw new InputError(
+    [
+      {
+        path: 'model',
+        expected: `a model kind ${command} supports (${list})`,
+        found: `"${found}"`,
+        message:
+          `scenario model "${found}": ${command} supports ${list}, found "${found}"` +
+          (runs ? ` (a "${found}" scenario runs in pronk ${runs.join(', ')})` : ''),
       },
     ],
     { source },

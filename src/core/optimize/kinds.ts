@@ -45,7 +45,7 @@ export function supportedTerms(kind: ModelKind): readonly string[] {
   return kind === 'slip' || kind === 'biped' ? ['survival', 'tracking', 'basin', 'step_down'] : [];
 }
 
-const KIND_NAMES: Record<ModelKind, string> = { slip: 'the single-leg model', biped: 'the two-leg model' };
+const KIND_NAMES: Record<ModelKind, string> = { slip: 'the single-leg model', biped: 'the two-leg model', lateral: 'the lateral leg-spring model' };
 
 /** Limits a model kind's search supports. */
 export function supportedLimits(kind: ModelKind): readonly string[] {

@@ -543,7 +543,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
   } else if (hasInline) {
     try {
-      scenario = parseScenario(raw.scenario);
+      scenario = parseScenario(raw.scenario, { command: 'optimize', supported: OPTIMIZE_KINDS });
       requireKind(scenario, 'optimize', OPTIMIZE_KINDS);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
@@ -861,7 +861,7 @@ export async function readStudyFile(path: string): Promise<Study> {
   let scenarioFromFile: Scenario | undefined;
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
-    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file));
+    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize', supported: OPTIMIZE_KINDS });
     requireKind(scenarioFromFile, 'optimize', OPTIMIZE_KINDS, resolve(dirname(path), file));
   }
   return parseStudy(value, { source: path, scenarioFromFile });

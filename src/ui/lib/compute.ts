@@ -7,6 +7,8 @@ import { basinCellCount, basinRunOptions, finishBasin, type BasinOptions, type B
 import { finishRobustness, canonicalRobustnessOptions, type RobustnessOptions, type RobustnessResult, type RobustnessRow } from '../../core/analysis/robustness.js';
 import { finishScan, normalizeScanOptions, checkAxisPath, type ScanOptions, type ScanResult, type ScanCell } from '../../core/analysis/scan.js';
 import type { ReturnMapResult } from '../../core/analysis/return-map.js';
+import type { BipedMapResult } from '../../core/analysis/biped-map.js';
+import type { BipedSimulationResult } from '../../core/models/biped-simulate.js';
 import type { StepToleranceResult } from '../../core/analysis/stepdown.js';
 import type { Scenario } from '../../core/scenario.js';
 import type { SimulationResult } from '../../core/simulate.js';
@@ -36,6 +38,16 @@ export async function runReturnMap(pool: EnginePool, scenario: Scenario, options
 /** Simulates the scenario with trajectory samples every `interval_s` (for the stride view). */
 export async function runTrace(pool: EnginePool, scenario: Scenario, options: { strides: number; interval_s: number }, control: RunControl = {}): Promise<SimulationResult> {
   return pool.use((api) => api.simulate(scenario, { strides: options.strides, traceInterval_s: options.interval_s }), control.signal);
+}
+
+/** The two-leg model's section map (fixed points with all eigenvalues) on one worker. */
+export async function runBipedMap(pool: EnginePool, scenario: Scenario, options: { samples: number; iterations: number }, control: RunControl = {}): Promise<BipedMapResult> {
+  return pool.use((api) => api.bipedMap(scenario, options), control.signal);
+}
+
+/** The two-leg model simulated with both legs' samples every `interval_s` (for the stride view). */
+export async function runBipedTrace(pool: EnginePool, scenario: Scenario, options: { strides: number; interval_s: number }, control: RunControl = {}): Promise<BipedSimulationResult> {
+  return pool.use((api) => api.simulateBiped(scenario, { strides: options.strides, traceInterval_s: options.interval_s }), control.signal);
 }
 
 export async function runStepdown(pool: EnginePool, scenario: Scenario, control: RunControl = {}): Promise<StepToleranceResult> {

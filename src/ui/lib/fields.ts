@@ -48,6 +48,50 @@ export const START_FIELDS: FieldDef[] = [
   scenarioField('strides'),
 ];
 
+// The two-leg model (src/core/models/biped.ts): per-leg parts (each empty: the body's value) and
+// the section the run starts on.
+export const BIPED_LEG_FIELDS = (leg: 'left' | 'right'): FieldDef[] => [
+  scenarioField(`legs.${leg}.leg_length_m`, { optional: true, hint: "empty: the body's" }),
+  scenarioField(`legs.${leg}.stiffness_scale`, { optional: true, hint: 'empty: 1' }),
+  scenarioField(`legs.${leg}.leg_damping_N_s_per_m`, { optional: true, hint: "empty: the body's" }),
+];
+
+export const BIPED_START_FIELDS: FieldDef[] = [
+  scenarioField('start.apex_height_m', { hint: 'walking: highest point in single support; running: flight apex' }),
+  scenarioField('start.forward_speed_m_per_s'),
+  scenarioField('start.offset_m', { optional: true, hint: 'empty: 0' }),
+];
+
+export const GAIT_CHOICES = [
+  { value: 'walking', label: 'Walking (start at the single-support apex)' },
+  { value: 'running', label: 'Running (start at the flight apex)' },
+];
+
+export const LEG_CHOICES = [
+  { value: 'left', label: 'Left' },
+  { value: 'right', label: 'Right' },
+  { value: 'both', label: 'Both (running: land together)' },
+];
+
+// The lateral leg-spring model (src/core/models/lateral.ts), seen from above.
+export const LATERAL_BODY_FIELDS: FieldDef[] = [
+  scenarioField('body.mass_kg'),
+  scenarioField('body.moment_of_inertia_kg_m2', { hint: 'about the centre of mass, vertical axis' }),
+  scenarioField('body.leg_length_m'),
+  scenarioField('body.leg_stiffness_N_per_m'),
+  scenarioField('body.attachment_offset_m', { optional: true, hint: 'empty: 0; ahead of the centre of mass > 0, behind < 0' }),
+  scenarioField('body.attachment_rate_m_per_s', { optional: true, hint: 'empty: 0; d moves along the body axis during stance' }),
+];
+
+export const LATERAL_START_FIELDS: FieldDef[] = [
+  scenarioField('start.speed_m_per_s', { hint: 'at a left touchdown' }),
+  scenarioField('start.heading_to_body_deg', { hint: 'velocity relative to the body axis, > 0 to the left' }),
+  scenarioField('start.angular_velocity_deg_per_s', { optional: true, hint: 'empty: 0; > 0 counter-clockwise from above' }),
+  scenarioField('strides'),
+];
+
+export const LATERAL_POLICY_FIELDS: FieldDef[] = [scenarioField('policy.angle.angle_to_body_deg', { hint: 'foot ahead of the attachment, mirrored left and right' })];
+
 export const INTEGRATOR_FIELDS: FieldDef[] = [
   scenarioField('integrator.relative_tolerance', { optional: true, hint: `empty: ${DEFAULT_RELATIVE_TOLERANCE}` }),
   scenarioField('integrator.absolute_tolerance', { optional: true, hint: `empty: ${DEFAULT_ABSOLUTE_TOLERANCE}` }),

@@ -55,6 +55,12 @@ const KIND_LABELS: Record<string, string> = {
   start: 'Start',
   policy: 'Policy',
   integrator: 'Integrator',
+  model: 'Model',
+  legs: 'Legs',
+  'legs.left': 'Left leg',
+  'legs.right': 'Right leg',
+  'start.gait': 'Start gait',
+  'start.leg': 'Start leg',
 };
 
 function scenarioLabel(path: string): string {

@@ -5,6 +5,10 @@
 
 import demoStudyJson from '../../../scenarios/demo-study.json' with { type: 'json' };
 import demoScenarioJson from '../../../scenarios/demo.json' with { type: 'json' };
+import demoBipedJson from '../../../scenarios/demo-biped.json' with { type: 'json' };
+import demoBipedRunJson from '../../../scenarios/demo-biped-run.json' with { type: 'json' };
+import type { BipedMapResult } from '../../core/analysis/biped-map.js';
+import type { BipedSimulationResult } from '../../core/models/biped-simulate.js';
 import { basinRunOptions, defaultBasinAxes, type BasinOptions, type BasinResult } from '../../core/analysis/basin.js';
 import type { ReturnMapResult } from '../../core/analysis/return-map.js';
 import { canonicalRobustnessOptions, type RobustnessOptions } from '../../core/analysis/robustness.js';
@@ -15,6 +19,7 @@ import type { OptimizationResult } from '../../core/optimize/search.js';
 import { parseStudy, type Study } from '../../core/optimize/study.js';
 import { canonicalJson } from '../../core/version.js';
 import { parseScenario, type Scenario } from '../../core/scenario.js';
+import { requireKind } from '../../core/models/kind.js';
 import type { SimulationResult } from '../../core/simulate.js';
 import { EnginePool, JobCancelled, WorkerLost, type PoolEvent } from '../../worker/browser-pool.js';
 import type { BrowserSearchProgress } from '../../worker/browser-optimize.js';
@@ -22,6 +27,8 @@ import {
   checkScan,
   pairSurvival,
   runBasin,
+  runBipedMap,
+  runBipedTrace,
   runReturnMap,
   runRobustness,
   runScan,
@@ -34,9 +41,18 @@ import { clone, getAt, setAt } from './draft.js';
 import { classifyFile, downloadText, fileStem, PROJECT_FORMAT, PROJECT_FORMAT_VERSION, type OpenedFile, type ProjectFile } from './files.js';
 import { History, type Drafts, type HistoryState } from './history.js';
 import { explainIssues, fieldLabel, type FieldIssue } from './issues.js';
+import { draftKind, draftOfKind, KIND_NAMES, lostBySwitch, MODEL_KIND_CHOICES, viewUnsupported, type DraftKind } from './kinds.js';
 import { loadDrafts, loadHistory, loadResults, saveDrafts, saveHistory, saveResult } from './persist.js';
 
-export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare';
+export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare' | 'recover';
+
+/** The demos the workbench offers: the single-leg runner (with its study) and invented machines of the other kinds. */
+export type DemoName = 'slip' | 'biped-walk' | 'biped-run';
+export const DEMOS: { name: DemoName; label: string; title: string; scenario: unknown }[] = [
+  { name: 'slip', label: 'Single-leg runner (Tamarack-9) and its study', title: 'The invented Tamarack-9 demo scenario and study', scenario: demoScenarioJson },
+  { name: 'biped-walk', label: 'Two-legged walker (Wren-2)', title: 'scenarios/demo-biped.json: the invented Wren-2 walking', scenario: demoBipedJson },
+  { name: 'biped-run', label: 'Two-legged runner (Wren-2)', title: 'scenarios/demo-biped-run.json: the invented Wren-2 running', scenario: demoBipedRunJson },
+];
 
 export type Json = Record<string, unknown>;
 
@@ -82,6 +98,9 @@ export interface Results {
   montecarlo?: Stamped<MonteCarloRun>;
   optimization?: OptimizationStamp;
   compare?: Stamped<ComparisonData>;
+  /** The two-leg model's stride trace and section map (models/biped-simulate.ts, analysis/biped-map.ts). */
+  bipedTrace?: Stamped<BipedSimulationResult>;
+  bipedMap?: Stamped<BipedMapResult>;
 }
 
 export interface Job {
@@ -127,6 +146,8 @@ export interface OptimizationLive {
 }
 
 const SAVED_VERSION = 1;
+/** The two-leg section map's samples along the symmetric line, at most (its default is 41). */
+export const BIPED_MAP_SAMPLES = 61;
 /** The live optimizer view is redrawn at most this often, ms. */
 const LIVE_REDRAW_MS = 250;
 /** A phase's label as a heading ("searching" → "Searching"). */
@@ -156,6 +177,7 @@ export function demoScenarioDraft(): Json {
 }
 
 export function defaultSettings(scenario: Scenario): Settings {
+  // (the two-leg model's basin axes are its section's: core/analysis/basin.ts)
   const axes = defaultBasinAxes(scenario, false);
   const round = (x: number) => Number(x.toPrecision(4));
   const angle = scenario.policy.angle;
@@ -183,7 +205,10 @@ export function defaultSettings(scenario: Scenario): Settings {
 
 export function checkScenario(draft: unknown): Check<Scenario> {
   try {
-    return { value: parseScenario(draft), issues: [] };
+    const value = parseScenario(draft);
+    // the workbench's views are the single-leg model's: another kind is refused by name
+    requireKind(value, 'the workbench', ['slip']);
+    return { value, issues: [] };
   } catch (error) {
     if (error instanceof InputError) return { value: null, issues: error.issues };
     return { value: null, issues: [{ path: '', expected: 'a scenario', found: String(error) }] };
@@ -248,6 +273,8 @@ export class Workbench {
   view = $state<ViewName>('map');
 
   scenarioCheck = $derived(checkScenario(this.scenarioDraft));
+  /** The model kind of the draft (the editor's sections) and of the last valid scenario (the views). */
+  draftKind = $derived<DraftKind>(draftKind(this.scenarioDraft));
   studyCheck = $derived(checkStudy(this.studyDraft, this.scenarioDraft));
   /** The issues as the editors show them: labelled, two-field errors on both fields. */
   scenarioIssues = $derived<FieldIssue[]>(explainIssues('sc', this.scenarioCheck.issues, this.scenarioDraft));
@@ -480,13 +507,17 @@ export class Workbench {
     return choice === 'replace';
   }
 
-  async resetToDemo(): Promise<void> {
-    if (!(await this.mayReplace('The demo'))) return;
+  /** Loads a demo: the single-leg one with its study, another kind's scenario alone (the study is kept). */
+  async resetToDemo(name: DemoName = 'slip'): Promise<void> {
+    const demo = DEMOS.find((d) => d.name === name) ?? DEMOS[0];
+    if (!(await this.mayReplace(`The demo "${demo.label}"`))) return;
     this.group('Demo loaded', () => {
-      this.scenarioDraft = demoScenarioDraft();
-      this.studyDraft = demoStudyDraft();
+      this.scenarioDraft = clone(demo.scenario) as Json;
+      if (name === 'slip') this.studyDraft = demoStudyDraft();
     });
-    this.settings = defaultSettings(parseScenario(demoScenarioJson));
+    // the views' settings (basin and scan axes, Monte Carlo strides) follow the demo's robot
+    this.settings = defaultSettings(parseScenario(demo.scenario));
+    if (this.view !== 'map' && this.view !== 'stride') this.view = 'stride';
     this.markSaved();
   }
 
@@ -615,6 +646,50 @@ export class Workbench {
     this.notify('info', `${label}: ${values.map((v) => `${fieldLabel('sc', v.path)} ${Number(v.value.toPrecision(6))}`).join(', ')}. Undo (Ctrl+Z) goes back.`);
   }
 
+  /** The model kind the views show: the last valid scenario's. */
+  get kind(): DraftKind {
+    return draftKind(this.lastValid.scenario);
+  }
+
+  /**
+   * Switches the scenario's model kind. The fields the new kind has not (a two-leg scenario's
+   * legs, a lateral body's moment of inertia, a policy the lateral model cannot run) are listed in
+   * a question first; the study's free parameters that the new scenario has not are dropped with
+   * them. One undoable step.
+   */
+  async switchModelKind(kind: DraftKind): Promise<boolean> {
+    const current = draftKind(this.scenarioDraft);
+    if (kind === current) return true;
+    const before = clone($state.snapshot(this.scenarioDraft) as Json);
+    const next = draftOfKind(kind, before);
+    const lost = lostBySwitch(kind, before);
+    const free = (Array.isArray(this.studyDraft.free_parameters) ? this.studyDraft.free_parameters : []) as Json[];
+    const orphaned = free.map((p, i) => ({ p, i })).filter(({ p }) => typeof p.path === 'string' && typeof getAt(next, p.path) !== 'number');
+    const label = MODEL_KIND_CHOICES.find((c) => c.value === kind)?.label ?? kind;
+    if (lost.length > 0 || orphaned.length > 0) {
+      const names = lost.map((path) => fieldLabel('sc', path));
+      const choice = await this.ask(
+        `Switch to the ${KIND_NAMES[kind]} model?`,
+        `The ${KIND_NAMES[kind]} model has no ${names.join(', ')}${names.length ? '' : 'such fields'}: the switch drops ${lost.length === 1 ? 'that field' : 'those fields'}` +
+          (orphaned.length ? ` and the study's free parameter${orphaned.length === 1 ? '' : 's'} ${orphaned.map(({ i }) => i + 1).join(', ')}` : '') +
+          '. Undo (Ctrl+Z) brings them back.',
+        [
+          { id: 'switch', label: `Switch and drop ${lost.length + orphaned.length === 1 ? 'it' : 'them'}`, primary: true },
+          { id: 'keep', label: `Keep the ${KIND_NAMES[current]} model` },
+        ],
+      );
+      if (choice !== 'switch') return false;
+    }
+    const dropped = new Set(orphaned.map(({ i }) => i));
+    this.group(`Model: ${label}`, () => {
+      this.scenarioDraft = next;
+      if (orphaned.length) this.studyDraft.free_parameters = clone(free.filter((_, i) => !dropped.has(i)));
+    });
+    const valid = checkScenario(next).value;
+    if (valid) this.settings = defaultSettings(valid);
+    return true;
+  }
+
   isCurrent(stamp: { scenarioKey: string } | undefined): boolean {
     return stamp !== undefined && stamp.scenarioKey === this.lastValid.key;
   }
@@ -722,7 +797,10 @@ export class Workbench {
     const iterations = Number(this.settings.map.iterations);
     const interval = Number(this.settings.trace.interval_s);
     const started = performance.now();
-    await this.job('auto', 'Return map and stride', async (signal, progress) => {
+    const kind = draftKind(scenario);
+    if (kind === 'biped') {
+      await this.runBipedAutomatic(scenario, key, { samples, iterations, interval, started });
+    } else await this.job('auto', 'Return map and stride', async (signal, progress) => {
       progress(0, 3, 'return map');
       const mapOk = Number.isInteger(samples) && samples >= 2 && samples <= 5000 && Number.isInteger(iterations) && iterations >= 0 && iterations <= 1000;
       const [map, trace, stepdown] = await Promise.all([
@@ -741,6 +819,35 @@ export class Workbench {
     }
   }
 
+  /**
+   * The two-leg model's automatic analyses: the section map (its samples along the symmetric line
+   * from the map settings, capped: each is a kernel stride, and the fixed-point search adds its own)
+   * and the stride trace.
+   */
+  private async runBipedAutomatic(scenario: Scenario, key: string, o: { samples: number; iterations: number; interval: number; started: number }): Promise<void> {
+    await this.job('auto', 'Section map and stride', async (signal, progress) => {
+      progress(0, 2, 'section map');
+      const mapOk = Number.isInteger(o.samples) && o.samples >= 2 && o.samples <= 5000 && Number.isInteger(o.iterations) && o.iterations >= 0 && o.iterations <= 1000;
+      const mapOptions = { samples: Math.min(o.samples, BIPED_MAP_SAMPLES), iterations: o.iterations };
+      const [map, trace, stepdown] = await Promise.all([
+        mapOk ? runBipedMap(this.pool, scenario, mapOptions, { signal }) : Promise.resolve(undefined),
+        o.interval > 0 && o.interval <= 0.1 ? runBipedTrace(this.pool, scenario, { strides: scenario.strides, interval_s: o.interval }, { signal }) : Promise.resolve(undefined),
+        runStepdown(this.pool, scenario, { signal }),
+      ]);
+      progress(2, 2);
+      if (map) this.keep('bipedMap', this.stamp(map, o.started, mapOptions, key));
+      if (trace) this.keep('bipedTrace', this.stamp(trace, o.started, { interval_s: o.interval }, key));
+      this.keep('stepdown', this.stamp(stepdown, o.started, undefined, key));
+    });
+  }
+
+  /** False (with a notice) when the last valid scenario's kind does not run `view`: never run it as another kind. */
+  private kindRuns(view: ViewName): boolean {
+    const reason = viewUnsupported(this.kind, view);
+    if (reason) this.notify('error', `${reason[0].toUpperCase()}${reason.slice(1)}.`);
+    return reason === null;
+  }
+
   private checkSettings(kind: 'scan' | 'basin' | 'montecarlo', check: () => void): boolean {
     const others = this.settingsIssues.filter((i) => !i.path.startsWith(`${kind}.`));
     try {
@@ -756,6 +863,7 @@ export class Workbench {
   }
 
   async runScan(): Promise<void> {
+    if (!this.kindRuns('scan')) return;
     const { scenario, key } = this.lastValid;
     const options = scanOptions(this.settings.scan);
     if (!this.checkSettings('scan', () => checkScan(scenario, options))) return;
@@ -767,6 +875,7 @@ export class Workbench {
   }
 
   async runBasin(): Promise<void> {
+    if (!this.kindRuns('basin')) return;
     const { scenario, key } = this.lastValid;
     const options = basinOptions(this.settings.basin);
     if (!this.checkSettings('basin', () => runBasinCheck(scenario, options))) return;
@@ -778,6 +887,7 @@ export class Workbench {
   }
 
   async runMonteCarlo(): Promise<void> {
+    if (!this.kindRuns('montecarlo')) return;
     const { scenario, key } = this.lastValid;
     const options = montecarloOptions(this.settings.montecarlo);
     if (!this.checkSettings('montecarlo', () => runMonteCarloCheck(scenario, options))) return;
@@ -790,6 +900,7 @@ export class Workbench {
 
   /** The study's search, with the last valid scenario as its base. */
   async runOptimization(): Promise<void> {
+    if (!this.kindRuns('optimize')) return;
     const { scenario, key } = this.lastValid;
     const check = checkStudy(this.studyDraft, scenario);
     if (!check.value) {

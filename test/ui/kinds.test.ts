@@ -1,0 +1,161 @@
+// @vitest-environment happy-dom
+// Every model kind in the workbench: the model-kind choice in the scenario editor (asking before a
+// switch drops fields), the two-leg fields with their validation beside them, the views a kind
+// does not run disabled with their reason, and the gait column's words and glyphs.
+import { fireEvent, render, screen } from '@testing-library/svelte';
+import { beforeEach, describe, expect, it } from 'vitest';
+import demoBiped from '../../scenarios/demo-biped.json' with { type: 'json' };
+import Editor from '../../src/ui/components/Editor.svelte';
+import type { BipedStride } from '../../src/core/models/biped-simulate.js';
+import { parseScenario } from '../../src/core/scenario.js';
+import { strideGaits } from '../../src/ui/lib/gait.js';
+import { draftKind, draftOfKind, lostBySwitch, viewUnsupported } from '../../src/ui/lib/kinds.js';
+import { Workbench } from '../../src/ui/lib/workbench.svelte.js';
+import type { EnginePool } from '../../src/worker/browser-pool.js';
+
+const idlePool = { size: 1, dispose() {} } as unknown as EnginePool;
+
+function setup() {
+  const wb = new Workbench({ pool: idlePool });
+  const view = render(Editor, { props: { wb } });
+  return { wb, view };
+}
+
+function describedBy(input: HTMLElement): string {
+  const ids = (input.getAttribute('aria-describedby') ?? '').split(/\s+/).filter(Boolean);
+  return ids.map((id) => document.getElementById(id)?.textContent ?? '').join(' ').trim();
+}
+
+function type(input: HTMLElement, text: string) {
+  fireEvent.input(input, { target: { value: text } });
+  fireEvent.blur(input);
+}
+
+async function settle() {
+  for (let i = 0; i < 5; i++) await new Promise((r) => setTimeout(r, 0));
+}
+
+beforeEach(() => {
+  localStorage.clear();
+  document.body.innerHTML = '';
+});
+
+describe('model kind in the scenario editor', () => {
+  it('switches the single-leg demo to two legs without a question (nothing is lost), then edits a leg', async () => {
+    const { wb } = setup();
+    expect(screen.queryByTestId('legs-section')).toBeNull();
+    fireEvent.change(screen.getByLabelText('Model'), { target: { value: 'biped' } });
+    await settle();
+    expect(wb.question).toBeNull();
+    expect(wb.scenarioDraft.model).toBe('biped');
+    expect(wb.scenarioDraft.start).toMatchObject({ gait: 'walking', leg: 'left', offset_m: 0 });
+    expect(screen.getByTestId('legs-section')).toBeTruthy();
+    // a weaker right leg: the draft gets the per-leg field of models/biped.ts
+    const factor = screen.getByLabelText('Right leg: stiffness factor');
+    type(factor, '0.8');
+    await Promise.resolve();
+    expect(wb.scenarioDraft.legs).toEqual({ right: { stiffness_scale: 0.8 } });
+    // a factor out of range is flagged beside the field with the validator's bound (STIFFNESS_SCALE_BOUND)
+    type(factor, '-1');
+    await Promise.resolve();
+    expect(factor.getAttribute('aria-invalid')).toBe('true');
+    expect(describedBy(factor)).toMatch(/^expected a number from 1e-3 to 1000 \(factor on the stiffness policy\), found -1$/);
+    const summary = screen.getByTestId('scenario-check').textContent ?? '';
+    expect(summary).toContain('Right leg: stiffness factor: expected');
+    expect(summary).not.toContain('legs.right.stiffness_scale');
+    // the JSON path is the field's tooltip
+    expect(screen.getByText('Right leg: stiffness factor').getAttribute('title')).toBe('legs.right.stiffness_scale in the file');
+    expect(screen.getByText('Model').getAttribute('title')).toBe('model in the file');
+  });
+
+  it('asks before a switch drops fields, and keeping leaves the draft as it was', async () => {
+    const { wb } = setup();
+    await wb.switchModelKind('biped');
+    wb.setScenarioField('legs.left.leg_length_m', 0.5);
+    const before = JSON.stringify(wb.scenarioDraft);
+    fireEvent.change(screen.getByLabelText('Model'), { target: { value: 'lateral' } });
+    await settle();
+    expect(wb.question?.title).toBe('Switch to the lateral model?');
+    // named by the labels on screen
+    expect(wb.question?.text).toContain('Legs');
+    expect(wb.question?.text).toContain('Ground');
+    expect(wb.question?.text).toContain('Start gait');
+    wb.respond('keep');
+    await settle();
+    expect(JSON.stringify(wb.scenarioDraft)).toBe(before);
+    // switched: one undoable step back to the two-leg draft
+    const switching = wb.switchModelKind('lateral');
+    await settle();
+    wb.respond('switch');
+    expect(await switching).toBe(true);
+    expect(wb.scenarioDraft.model).toBe('lateral');
+    expect(wb.scenarioDraft.terrain).toBeUndefined();
+    expect(screen.getByLabelText('Moment of inertia')).toBeTruthy();
+    expect(screen.getByLabelText('Touchdown angle to body axis')).toBeTruthy();
+    expect(screen.getByTestId('convention').textContent).toMatch(/to the body axis/);
+    wb.undo();
+    await settle();
+    expect(JSON.stringify(wb.scenarioDraft)).toBe(before);
+  });
+
+  it('shows the two-leg start section: gait, stance leg, offset', async () => {
+    const { wb } = setup();
+    wb.loadScenarioDraft(structuredClone(demoBiped));
+    await settle();
+    expect(draftKind(wb.scenarioDraft)).toBe('biped');
+    expect((screen.getByLabelText('Gait') as HTMLSelectElement).value).toBe('walking');
+    expect((screen.getByLabelText('Stance leg') as HTMLSelectElement).value).toBe('left');
+    // the walking start rule (models/biped.ts checkStart) lands on the apex height field: a start
+    // beyond the leg's reach, sqrt(0.592^2 + 0.2^2) = 0.6249 m > 0.6 m (Pythagoras)
+    type(screen.getByLabelText('Start offset, body − stance foot'), '0.2');
+    await Promise.resolve();
+    expect(describedBy(screen.getByLabelText('Start apex height'))).toMatch(/single-support apex the left leg reaches.*leg length 0\.624\d* m/);
+    fireEvent.change(screen.getByLabelText('Gait'), { target: { value: 'running' } });
+    await settle();
+    expect(screen.getByLabelText('Landing leg')).toBeTruthy();
+  });
+});
+
+describe('what each kind runs', () => {
+  it('disables the views a kind does not run, with a one-line reason', () => {
+    expect(viewUnsupported('slip', 'scan')).toBeNull();
+    expect(viewUnsupported('biped', 'map')).toBeNull();
+    expect(viewUnsupported('biped', 'stride')).toBeNull();
+    expect(viewUnsupported('biped', 'basin')).toBeNull();
+    expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not defined for the two-leg model yet/);
+    expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not defined for the lateral model/);
+    expect(viewUnsupported('slip', 'recover')).toMatch(/lateral model only/);
+  });
+
+  it('refuses to run a view the kind does not run, with a notice', async () => {
+    const wb = new Workbench({ pool: idlePool });
+    wb.loadScenarioDraft(structuredClone(demoBiped));
+    const s = parseScenario(demoBiped);
+    wb.lastValid = { scenario: s, key: 'biped', at: 0 };
+    await wb.runOptimization();
+    expect(wb.results.optimization).toBeUndefined();
+    expect(wb.notices.at(-1)?.text).toMatch(/^The optimizer: not defined for the two-leg model/);
+  });
+
+  it('carries shared numbers over a switch and lists what a switch loses', () => {
+    const biped = draftOfKind('biped', { body: { mass_kg: 9, leg_length_m: 0.45, leg_stiffness_N_per_m: 5000 }, start: { apex_height_m: 0.5, forward_speed_m_per_s: 2 }, policy: { angle: { kind: 'fixed', attack_deg: 66 }, stiffness: { kind: 'constant' } }, terrain: { kind: 'flat' }, strides: 10 });
+    expect(biped.body).toEqual({ mass_kg: 9, leg_length_m: 0.45, leg_stiffness_N_per_m: 5000 });
+    expect(() => parseScenario(biped)).not.toThrow();
+    const lateral = draftOfKind('lateral', biped);
+    // a slender body of the leg's length: m L^2 / 12 = 9 * 0.45^2 / 12 = 0.151875 kg m^2 (uniform rod, closed form)
+    expect((lateral.body as { moment_of_inertia_kg_m2: number }).moment_of_inertia_kg_m2).toBeCloseTo(0.1519, 4);
+    expect(lostBySwitch('lateral', biped)).toEqual(expect.arrayContaining(['terrain', 'start.gait', 'start.apex_height_m', 'policy.angle']));
+    expect(lostBySwitch('biped', lateral)).toEqual(expect.arrayContaining(['body.moment_of_inertia_kg_m2', 'start.heading_to_body_deg']));
+  });
+});
+
+describe('gait per stride', () => {
+  const stride = (index: number, gait: BipedStride['gait']) => ({ index, gait }) as BipedStride;
+  it('says walking, running or changed, each with a glyph', () => {
+    const cells = strideGaits([stride(0, 'walking'), stride(1, 'walking'), stride(2, 'running'), stride(3, 'running')], 'walking');
+    expect(cells.map((c) => c.word)).toEqual(['walking', 'walking', 'changed', 'running']);
+    expect(cells[2].text).toBe('changed: walking → running');
+    expect(new Set(cells.map((c) => c.glyph)).size).toBe(3);
+    expect(strideGaits([stride(0, 'walking')], 'running')[0].word).toBe('changed');
+  });
+});
