@@ -204,6 +204,8 @@ export const STATUS_NO_SECTION = 12; // a second touchdown before the stride's s
 export const STATUS_COUNT = 15;
 // Statuses the single-leg model can report (0 .. STATUS_COUNT_SLIP - 1).
 export const STATUS_COUNT_SLIP = 10;
+// Statuses the two-leg model can report (0 .. STATUS_COUNT_BIPED - 1).
+export const STATUS_COUNT_BIPED = 13;
 
 // ---------------------------------------------------------------------------
 // Trajectory samples: (samples x T_SIZE) f64, written by traceRollout.

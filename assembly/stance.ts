@@ -426,11 +426,7 @@ export function stanceRun(s: Stance): i32 {
 export function stepTwo(a: Stance, b: Stance): void {
   // the stepper's state of the current stance into its block, the new step sizes into each
   releaseStance();
-  stepPair(
-    a.bufs, b.bufs, a.h, b.h, a.rtol, b.rtol, a.atol, b.atol, a.errDim, b.errDim,
-    a.k, b.k, a.leg, b.leg, a.c, b.c, a.invMass, b.invMass, a.g, b.g,
-    a.errOld, b.errOld, a.afterReject ? 1.0 : 10.0, b.afterReject ? 1.0 : 10.0,
-  );
+  stepPair(a, b);
   a.lastH = a.h;
   b.lastH = b.h;
 }
@@ -438,20 +434,7 @@ export function stepTwo(a: Stance, b: Stance): void {
 // stepTwo for four stances; the error estimates are then laneErr0..laneErr3.
 export function stepFour(a: Stance, b: Stance, c: Stance, d: Stance): void {
   releaseStance();
-  stepQuad(
-    a.bufs, b.bufs, c.bufs, d.bufs,
-    a.h, b.h, c.h, d.h,
-    a.rtol, b.rtol, c.rtol, d.rtol,
-    a.atol, b.atol, c.atol, d.atol,
-    a.errDim, b.errDim, c.errDim, d.errDim,
-    a.k, b.k, c.k, d.k,
-    a.leg, b.leg, c.leg, d.leg,
-    a.c, b.c, c.c, d.c,
-    a.invMass, b.invMass, c.invMass, d.invMass,
-    a.g, b.g, c.g, d.g,
-    a.errOld, b.errOld, c.errOld, d.errOld,
-    a.afterReject ? 1.0 : 10.0, b.afterReject ? 1.0 : 10.0, c.afterReject ? 1.0 : 10.0, d.afterReject ? 1.0 : 10.0,
-  );
+  stepQuad(a, b, c, d);
   a.lastH = a.h;
   b.lastH = b.h;
   c.lastH = c.h;

@@ -11,6 +11,9 @@ import { loadEngine, rolloutInput, type BatchRequest, type BatchResult, type Eng
 import { buildModel, startInput } from '../src/core/model.js';
 import { parseScenario } from '../src/core/scenario.js';
 import { closeWorkerPool, runBatchParallel } from '../src/worker/pool.js';
+import { readFileSync } from 'node:fs';
+// @ts-expect-error: a plain .mjs script without types
+import { laneStepSource } from '../scripts/gen-lane-step.mjs';
 
 const ANGLES = [
   { kind: 'fixed', attack_deg: 68 },
@@ -113,6 +116,10 @@ function expectSameBytes(got: BatchResult, want: BatchResult) {
 afterAll(() => closeWorkerPool());
 
 describe('runBatch in two and four lanes', () => {
+  it('assembly/rk/dopri5x2.ts is what scripts/gen-lane-step.mjs writes', () => {
+    expect(readFileSync(new URL('../assembly/rk/dopri5x2.ts', import.meta.url), 'utf8')).toBe(laneStepSource());
+  });
+
   const models = allModels();
 
   it('every policy, stiffness and terrain kind, damped or not: the same bytes as one rollout after the other', async () => {

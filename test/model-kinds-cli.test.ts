@@ -6,7 +6,7 @@
 // Adding a model kind without fixtures here fails the first test, by name.
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Ajv2020 } from 'ajv/dist/2020.js';
@@ -197,7 +197,18 @@ describe('shards and merge over every model kind', () => {
   for (const kind of MODEL_KINDS) {
     const f = FIXTURES[kind];
     for (const command of SHARDABLE) {
-      if (!COMMAND_KINDS[command].includes(kind) || f.unsharded?.includes(command)) continue;
+      if (!COMMAND_KINDS[command].includes(kind)) continue;
+      if (f.unsharded?.includes(command)) {
+        it(`${command} on a "${kind}" scenario: --shard refused by name (exit 2), nothing written`, () => {
+          const part = join(dir, `${kind}-${command}-refused.json`);
+          const r = pronk([command, f.scenarioFor?.[command] ?? f.scenario, ...f.options[command], '--shard', '1/2', '--out', part]);
+          expect(r.code, r.stderr).toBe(2);
+          expect(r.stderr).toMatch(/--shard/);
+          expect(r.stderr).not.toMatch(/internal error/);
+          expect(existsSync(part)).toBe(false);
+        });
+        continue;
+      }
       it(`${command} on a "${kind}" scenario: two shards merged = the one-machine run, byte for byte`, () => {
         const args = [command, f.scenarioFor?.[command] ?? f.scenario, ...f.options[command], ...(WORKERS.includes(command) ? ['--workers', '1'] : [])];
         const one = pronk([...args, '--json']);

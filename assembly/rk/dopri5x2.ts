@@ -15,6 +15,7 @@ import {
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
   OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
+import { Stance } from "../stance";
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
 // f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
@@ -77,23 +78,34 @@ export let laneErr3: f64 = 0.0;
   return !isFinite(err) || finite != 0.0 ? NaN : err;
 }
 
-// One step of size hA in lane A (stepper buffers at pA, stance parameters ...A) and hB in lane B,
-// from each lane's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
+// One step of stance sA (its step size h, its buffers, parameters and controller memory) and of
+// sB, one in each lane, from each one's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
 // for unpackStages, and the error estimates into laneErr0, laneErr1.
-export function stepPair(
-  pA: usize, pB: usize,
-  hA: f64, hB: f64,
-  rtolA: f64, rtolB: f64,
-  atolA: f64, atolB: f64,
-  dimA: f64, dimB: f64,
-  kA: f64, kB: f64,
-  legA: f64, legB: f64,
-  cA: f64, cB: f64,
-  invMA: f64, invMB: f64,
-  gA: f64, gB: f64,
-  oldA: f64, oldB: f64,
-  hiA: f64, hiB: f64,
-): void {
+export function stepPair(sA: Stance, sB: Stance): void {
+  const pA = sA.bufs;
+  const hA = sA.h;
+  const rtolA = sA.rtol;
+  const atolA = sA.atol;
+  const dimA = sA.errDim;
+  const kA = sA.k;
+  const legA = sA.leg;
+  const cA = sA.c;
+  const invMA = sA.invMass;
+  const gA = sA.g;
+  const oldA = sA.errOld;
+  const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const pB = sB.bufs;
+  const hB = sB.h;
+  const rtolB = sB.rtol;
+  const atolB = sB.atol;
+  const dimB = sB.errDim;
+  const kB = sB.k;
+  const legB = sB.leg;
+  const cB = sB.c;
+  const invMB = sB.invMass;
+  const gB = sB.g;
+  const oldB = sB.errOld;
+  const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   const vA21 = f64x2(A21, A21);
@@ -362,20 +374,55 @@ export function stepPair(
 }
 
 // stepPair for four stances, lanes A..D; errors into laneErr0..laneErr3.
-export function stepQuad(
-  pA: usize, pB: usize, pC: usize, pD: usize,
-  hA: f64, hB: f64, hC: f64, hD: f64,
-  rtolA: f64, rtolB: f64, rtolC: f64, rtolD: f64,
-  atolA: f64, atolB: f64, atolC: f64, atolD: f64,
-  dimA: f64, dimB: f64, dimC: f64, dimD: f64,
-  kA: f64, kB: f64, kC: f64, kD: f64,
-  legA: f64, legB: f64, legC: f64, legD: f64,
-  cA: f64, cB: f64, cC: f64, cD: f64,
-  invMA: f64, invMB: f64, invMC: f64, invMD: f64,
-  gA: f64, gB: f64, gC: f64, gD: f64,
-  oldA: f64, oldB: f64, oldC: f64, oldD: f64,
-  hiA: f64, hiB: f64, hiC: f64, hiD: f64,
-): void {
+export function stepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
+  const pA = sA.bufs;
+  const hA = sA.h;
+  const rtolA = sA.rtol;
+  const atolA = sA.atol;
+  const dimA = sA.errDim;
+  const kA = sA.k;
+  const legA = sA.leg;
+  const cA = sA.c;
+  const invMA = sA.invMass;
+  const gA = sA.g;
+  const oldA = sA.errOld;
+  const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const pB = sB.bufs;
+  const hB = sB.h;
+  const rtolB = sB.rtol;
+  const atolB = sB.atol;
+  const dimB = sB.errDim;
+  const kB = sB.k;
+  const legB = sB.leg;
+  const cB = sB.c;
+  const invMB = sB.invMass;
+  const gB = sB.g;
+  const oldB = sB.errOld;
+  const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
+  const pC = sC.bufs;
+  const hC = sC.h;
+  const rtolC = sC.rtol;
+  const atolC = sC.atol;
+  const dimC = sC.errDim;
+  const kC = sC.k;
+  const legC = sC.leg;
+  const cC = sC.c;
+  const invMC = sC.invMass;
+  const gC = sC.g;
+  const oldC = sC.errOld;
+  const hiC: f64 = sC.afterReject ? 1.0 : 10.0;
+  const pD = sD.bufs;
+  const hD = sD.h;
+  const rtolD = sD.rtol;
+  const atolD = sD.atol;
+  const dimD = sD.errDim;
+  const kD = sD.k;
+  const legD = sD.leg;
+  const cD = sD.c;
+  const invMD = sD.invMass;
+  const gD = sD.g;
+  const oldD = sD.errOld;
+  const hiD: f64 = sD.afterReject ? 1.0 : 10.0;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   const vA21 = f64x2(A21, A21);

@@ -88,7 +88,8 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
 
   const any = await anyScenarioArgument(file, io, 'basin');
   if (any.kind === 'lateral') {
-    const refused = ['heights', 'speeds', 'energy', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
+    // --workers is accepted and changes nothing (the lateral basin runs in this thread)
+    const refused = ['heights', 'speeds', 'energy', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
     if (refused.length) {
       throw new InputError(
         [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its basin takes --headings, --rates, --strides, --tolerance, --json)', found: describeFound(values[refused[0]]) }],

@@ -2,7 +2,8 @@
 // "model": "lateral" scenario (the single-leg views are in simulate.ts and map.ts).
 
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText, jsonTextChunks } from '../core/json-output.js';
+import { writeChunks } from './stream-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
 import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
@@ -75,6 +76,7 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
     },
     ...(r.samples
       ? {
+          trajectory_truncated: r.truncated === true,
           trajectory: r.samples.map((p) => ({
             time_s: p.t,
             x_m: p.x,
@@ -96,7 +98,9 @@ export function lateralSimulationJson(s: LateralScenario, r: LateralSimulation):
 }
 
 export function renderLateralSimulation(s: LateralScenario, r: LateralSimulation, requested: number): string {
-  const rows = r.rows.map((row) => [
+  // past 60 strides, the first 40 and the last 10 (--json lists every stride)
+  const shown = r.rows.length > 60 ? [...r.rows.slice(0, 40), null, ...r.rows.slice(-10)] : r.rows;
+  const rows = shown.map((row) => row === null ? `... ${r.rows.length - 50} strides left out (--json lists every one) ...` : [
     String(row.stride),
     fixed(row.time_s, 4),
     fixed(row.speed_m_per_s, 4),
@@ -136,7 +140,8 @@ export async function runLateralSimulate(
   const engine = await loadEngine();
   const n = options.strides ?? s.strides;
   const r = simulateLateral(engine, s, { strides: n, ...(options.json && options.traceInterval ? { dt: options.traceInterval } : {}) });
-  if (options.json) io.stdout.write(jsonText('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
+  // in pieces: the documented 1 000 000 strides make more JSON than one string holds
+  if (options.json) await writeChunks(io.stdout, jsonTextChunks('simulate', lateralSimulationJson(s, r), LATERAL_HEADER));
   else io.stdout.write(renderLateralSimulation(s, r, n));
   return 0;
 }

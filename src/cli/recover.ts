@@ -91,10 +91,11 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
   const heightTol = numberOption(values['height-tol'], '--height-tol', 0, 1e4, 'm');
   const angle = numberOption(values['kick-angle'], '--kick-angle', -180, 180, 'deg');
   const rate = numberOption(values['kick-rate'], '--kick-rate', -1e5, 1e5, 'deg/s');
-  const stride = integerOption(values['kick-stride'], '--kick-stride', 0, 1_000_000) ?? DEFAULT_KICK_STRIDE;
+  // bounded so that one rollout's stride records stay far below the kernel's 4 GB memory
+  const stride = integerOption(values['kick-stride'], '--kick-stride', 0, 100_000) ?? DEFAULT_KICK_STRIDE;
   const at = numberOption(values['kick-at'], '--kick-at', 0, 0.999999, 'fraction of the stride period');
   const after = numberOption(values['kick-after'], '--kick-after', 0, 1e6, 's');
-  const stridesAfter = integerOption(values['strides-after'], '--strides-after', 3, 1_000_000);
+  const stridesAfter = integerOption(values['strides-after'], '--strides-after', 3, 100_000);
   const speedTol = numberOption(values['speed-tol'], '--speed-tol', 0, 1e3, 'm/s');
   const rateTol = numberOption(values['heading-rate-tol'], '--heading-rate-tol', 0, 1e5, 'deg/s');
   const angleTol = numberOption(values['body-angle-tol'], '--body-angle-tol', 0, 180, 'deg');

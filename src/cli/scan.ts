@@ -72,7 +72,8 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const any = await anyScenarioArgument(file, io, 'scan');
   if (any.kind === 'lateral') {
-    const refused = ['samples', 'workers', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
+    // --workers is accepted and changes nothing (the lateral scan runs in this thread)
+    const refused = ['samples', 'shard', 'out', 'plot'].filter((k) => values[k] !== undefined);
     if (refused.length) {
       throw new InputError(
         [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its scan takes --x, --y, --json)', found: String(values[refused[0]]) }],

@@ -16,6 +16,21 @@ import { parseScenario, type Scenario } from '../core/scenario.js';
 import { bipedReturnMap, type BipedMapOptions, type BipedMapResult } from '../core/analysis/biped-map.js';
 import { isBiped, type BipedScenario } from '../core/models/biped.js';
 import { simulateBiped, type BipedSimulationResult } from '../core/models/biped-simulate.js';
+import { lateralFixedPoints, simulateLateral, type LateralMapResult, type LateralSample, type LateralSimulation } from '../core/analysis/lateral.js';
+import { finishRecover, recoverOnce, recoverRows, scenarioGait, type KickSpec, type RandomKickSpec, type RecoverMonteCarloResult, type RecoverTolerances, type RecoveryResult, type RecoveryRow } from '../core/analysis/recover.js';
+import { parseLateralScenario, type LateralScenario } from '../core/models/lateral.js';
+
+/** One kick judged, with the paths with and without it (the workbench's recovery view). */
+export interface LateralRecoveryView {
+  result: RecoveryResult;
+  kicked: LateralSample[];
+  unkicked: LateralSample[];
+  /** The kick's moment on the runs' clock, s. */
+  kick_time_s: number;
+}
+
+const DEG = Math.PI / 180;
+const lateral = (scenario: unknown): LateralScenario => parseLateralScenario(scenario);
 import type { PartialResult, ShardRange, ShardSpec } from '../core/shard.js';
 
 const inWorker = async (req: BatchRequest): Promise<BatchResult> => (await loadEngine()).runBatch(req);
@@ -63,6 +78,43 @@ const api = {
 
   async bipedMap(scenario: unknown, options: Omit<BipedMapOptions, 'runBatch'> = {}): Promise<BipedMapResult> {
     return bipedReturnMap(checkedBiped(scenario), { ...options, runBatch: inWorker });
+  },
+
+  async lateralSimulate(scenario: unknown, options: { dt?: number; strides?: number } = {}): Promise<LateralSimulation> {
+    return simulateLateral(await loadEngine(), lateral(scenario), options);
+  },
+
+  async lateralMap(scenario: unknown): Promise<LateralMapResult> {
+    return lateralFixedPoints(await loadEngine(), lateral(scenario));
+  },
+
+  /** A kick on the scenario's gait, judged (recoverOnce), and both runs from the gait sampled every `dt`. */
+  async lateralRecover(scenario: unknown, spec: KickSpec, options: { stridesAfter?: number; tolerances?: Partial<RecoverTolerances>; dt: number }): Promise<LateralRecoveryView> {
+    const engine = await loadEngine();
+    const s = lateral(scenario);
+    const result = recoverOnce(engine, s, spec, options);
+    const { gait: fp } = scenarioGait(engine, s);
+    const start = { speed: fp.speed_m_per_s, delta: fp.heading_to_body_deg * DEG, omega: fp.angular_velocity_deg_per_s * DEG, heading: 0 };
+    const kick = {
+      stride: spec.stride,
+      time_s: result.kick.time_s,
+      forward_m_per_s: spec.forward_m_per_s,
+      left_m_per_s: spec.left_m_per_s,
+      angle_rad: spec.angle_deg * DEG,
+      rate_rad_per_s: spec.rate_deg_per_s * DEG,
+    };
+    const kicked = simulateLateral(engine, s, { start, kick, strides: result.strides, dt: options.dt }).samples ?? [];
+    const unkicked = simulateLateral(engine, s, { start, strides: result.strides, dt: options.dt }).samples ?? [];
+    const strideStart = unkicked.find((p) => p.stride === spec.stride)?.t ?? 0;
+    return { result, kicked, unkicked, kick_time_s: strideStart + result.kick.time_s };
+  },
+
+  async lateralRecoverRows(scenario: unknown, spec: RandomKickSpec, range: ShardRange, options: { stridesAfter?: number; tolerances?: Partial<RecoverTolerances> }): Promise<RecoveryRow[]> {
+    return recoverRows(await loadEngine(), lateral(scenario), spec, range, options);
+  },
+
+  async lateralRecoverFinish(scenario: unknown, spec: RandomKickSpec, rows: RecoveryRow[], options: { stridesAfter?: number; tolerances?: Partial<RecoverTolerances> }): Promise<RecoverMonteCarloResult> {
+    return finishRecover(await loadEngine(), lateral(scenario), spec, rows, options);
   },
 
   async stepdown(scenario: unknown, options: StepToleranceOptions = {}): Promise<StepToleranceResult> {

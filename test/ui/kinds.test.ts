@@ -5,6 +5,8 @@
 import { fireEvent, render, screen } from '@testing-library/svelte';
 import { beforeEach, describe, expect, it } from 'vitest';
 import demoBiped from '../../scenarios/demo-biped.json' with { type: 'json' };
+import demoHexapod from '../../scenarios/demo-hexapod.json' with { type: 'json' };
+import { classifyFile } from '../../src/ui/lib/files.js';
 import Editor from '../../src/ui/components/Editor.svelte';
 import type { BipedStride } from '../../src/core/models/biped-simulate.js';
 import { parseScenario } from '../../src/core/scenario.js';
@@ -124,7 +126,7 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('biped', 'basin')).toBeNull();
     expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not defined for the two-leg model yet/);
     expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not defined for the lateral model/);
-    expect(viewUnsupported('slip', 'recover')).toMatch(/lateral model only/);
+    expect(viewUnsupported('slip', 'recover')).toMatch(/for the lateral model only/);
   });
 
   it('refuses to run a view the kind does not run, with a notice', async () => {
@@ -157,5 +159,35 @@ describe('gait per stride', () => {
     expect(cells[2].text).toBe('changed: walking → running');
     expect(new Set(cells.map((c) => c.glyph)).size).toBe(3);
     expect(strideGaits([stride(0, 'walking')], 'running')[0].word).toBe('changed');
+  });
+});
+
+describe('the lateral model in the editor and in files', () => {
+  it('edits a lateral scenario with its own fields, validated beside them', async () => {
+    const { wb } = setup();
+    wb.loadScenarioDraft(structuredClone(demoHexapod));
+    await settle();
+    expect(wb.scenarioCheck.issues).toEqual([]);
+    expect((screen.getByLabelText('Moment of inertia') as HTMLInputElement).value).toBe('0.00675'); // scenarios/demo-hexapod.json
+    expect(screen.queryByLabelText('Gravity')).toBeNull();
+    expect(screen.queryByLabelText('Ground')).toBeNull();
+    // the attachment point at most a leg length (0.08 m) from the centre of mass (models/lateral.ts)
+    const d = screen.getByLabelText('Leg attachment offset d');
+    type(d, '0.1');
+    await Promise.resolve();
+    expect(d.getAttribute('aria-invalid')).toBe('true');
+    expect(describedBy(d)).toMatch(/^expected a number from -0\.08 to 0\.08 \(m; at most the leg length from the centre of mass\), found 0\.1$/);
+    expect(screen.getByText('Leg attachment offset d').getAttribute('title')).toBe('body.attachment_offset_m in the file');
+    type(screen.getByLabelText('Touchdown angle to body axis'), '95');
+    await Promise.resolve();
+    expect(describedBy(screen.getByLabelText('Touchdown angle to body axis'))).toMatch(/\(0, 90\]/);
+  });
+
+  it('opens scenario files of every kind, and refuses a broken lateral one with its reasons', () => {
+    for (const scenario of [demoBiped, demoHexapod]) {
+      expect(classifyFile(JSON.stringify(scenario), 'robot.json', { scenario: {} }).kind).toBe('scenario');
+    }
+    const broken = { ...structuredClone(demoHexapod), body: { ...demoHexapod.body, moment_of_inertia_kg_m2: -1 } };
+    expect(() => classifyFile(JSON.stringify(broken), 'robot.json', { scenario: {} })).toThrow(/moment_of_inertia_kg_m2/);
   });
 });

@@ -538,6 +538,8 @@ export interface LateralSimulation {
   rows: LateralStrideRow[];
   final: SectionState & { time_s: number; x_m: number; y_m: number; theta: number };
   samples?: LateralSample[];
+  /** The sample buffer filled up before the run ended (the trajectory stops early). */
+  truncated?: boolean;
 }
 
 /** Run the scenario (or a given start and kick) stride by stride; with dt, trajectory samples too. */
@@ -552,8 +554,10 @@ export function simulateLateral(
   let rec: Float64Array;
   let sum: Float64Array;
   let samples: LateralSample[] | undefined;
+  let truncated = false;
   if (options.dt !== undefined) {
     const t = engine.traceLateral(model, input, n, options.dt);
+    truncated = t.truncated;
     rec = t.records;
     sum = t.summary;
     samples = [];
@@ -610,6 +614,7 @@ export function simulateLateral(
     rows,
     final: { ...fin, time_s: sum[L.LS_TIME], x_m: sum[L.LS_X], y_m: sum[L.LS_Y], theta: sum[L.LS_THETA] },
     samples,
+    ...(samples ? { truncated } : {}),
   };
 }
 

@@ -393,7 +393,8 @@ export function recoverRows(
   const n = spec.stride + 1 + (options.stridesAfter ?? DEFAULT_STRIDES_AFTER);
   const model = buildLateralModel(s);
   const rows: RecoveryRow[] = [];
-  const CHUNK = 64;
+  // rollouts per kernel call: at most 64, and at most about 160 MB of stride records
+  const CHUNK = Math.max(1, Math.min(64, Math.floor(2e7 / (n * L.LR_SIZE))));
   for (let a = range.start; a < range.end; a += CHUNK) {
     const b = Math.min(range.end, a + CHUNK);
     const kicks: Kick[] = [];
@@ -509,7 +510,7 @@ export function checkRecoverRunOptions(options: unknown): RecoverRunOptions {
     return v as number;
   };
   const kicks: RandomKickSpec = {
-    stride: num(k.stride, 'kicks.stride', 0, 1_000_000, true),
+    stride: num(k.stride, 'kicks.stride', 0, 100_000, true),
     max_forward_m_per_s: num(k.max_forward_m_per_s, 'kicks.max_forward_m_per_s', 0, 1e3),
     max_left_m_per_s: num(k.max_left_m_per_s, 'kicks.max_left_m_per_s', 0, 1e3),
     max_angle_deg: num(k.max_angle_deg, 'kicks.max_angle_deg', 0, 180),
@@ -517,7 +518,7 @@ export function checkRecoverRunOptions(options: unknown): RecoverRunOptions {
     seed: num(k.seed, 'kicks.seed', 0, Number.MAX_SAFE_INTEGER, true),
     rollouts: num(k.rollouts, 'kicks.rollouts', 1, MAX_RECOVER_ROLLOUTS, true),
   };
-  const stridesAfter = num(o.strides_after, 'strides_after', 3, 1_000_000, true);
+  const stridesAfter = num(o.strides_after, 'strides_after', 3, 100_000, true);
   const t = (o.tolerances ?? {}) as Record<string, unknown>;
   const tolerances: Partial<RecoverTolerances> = {};
   if (t.speed_m_per_s !== undefined) tolerances.speed_m_per_s = num(t.speed_m_per_s, 'tolerances.speed_m_per_s', 0, 1e3);

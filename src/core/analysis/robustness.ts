@@ -237,7 +237,7 @@ export async function finishRobustness(
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
   // the statuses the scenario's model kind can report
-  const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT : L.STATUS_COUNT_SLIP;
+  const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT_BIPED : L.STATUS_COUNT_SLIP;
   for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
   let survived = 0;

@@ -88,8 +88,8 @@ export function lateralTopView(samples: readonly LateralTopSample[], index: numb
   const top = head.top;
   const plotW = Math.max(1, width - MARGIN.left - MARGIN.right);
   const plotH = Math.max(1, height - top - MARGIN.bottom);
-  // a window of 3.2 leg lengths across the shorter side, centred on the body, 1:1
-  const unit = (3.2 * L0) / Math.min(plotW, plotH);
+  // a window of 2.6 leg lengths across the shorter side, centred on the body, 1:1
+  const unit = (2.6 * L0) / Math.min(plotW, plotH);
   const xHalf = (plotW * unit) / 2;
   const yHalf = (plotH * unit) / 2;
   let peak = 0;

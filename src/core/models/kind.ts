@@ -11,10 +11,6 @@ export type ModelKind = 'slip' | 'biped' | 'lateral';
 /** Every kind this build accepts, in the order messages list them. */
 export const MODEL_KINDS: readonly ModelKind[] = ['slip', 'biped', 'lateral'];
 
-/** The commands that run a kind, where that is not every command (for refusals). */
-export const KIND_COMMANDS: Partial<Record<ModelKind, readonly string[]>> = {
-  lateral: ['simulate', 'map', 'scan', 'basin', 'recover'],
-};
 
 /** The Poincaré section a kind's strides run between (the `--json` header's "section"). */
 export type SectionName = 'flight_apex' | 'single_support_apex' | 'left_touchdown';
@@ -77,16 +73,14 @@ export function requireKind(scenario: { model?: string }, command: string, suppo
  */
 export function refuseModelKind(command: string, supported: readonly ModelKind[], found: ModelKind, source?: string): never {
   const list = supported.map((k) => `"${k}"`).join(' and ');
-  const runs = KIND_COMMANDS[found];
   throw new InputError(
     [
       {
         path: 'model',
         expected: `a model kind ${command} supports (${list})`,
         found: `"${found}"`,
-        message:
-          `scenario model "${found}": ${command} supports ${list}, found "${found}"` +
-          (runs ? ` (a "${found}" scenario runs in pronk ${runs.join(', ')})` : ''),
+        // the CLI appends the commands that do run the kind (withKindHint in cli/scenario-argument.ts)
+        message: `scenario model "${found}": ${command} supports ${list}, found "${found}"`,
       },
     ],
     { source },

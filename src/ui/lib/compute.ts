@@ -16,6 +16,10 @@ import { shardRange, type ShardRange } from '../../core/shard.js';
 import { pairedDifferenceInterval } from '../../core/optimize/objectives.js';
 import { wilsonInterval } from '../../core/stats.js';
 import type { EnginePool } from '../../worker/browser-pool.js';
+import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js';
+import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
+import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
+import type { LateralScenario } from '../../core/models/lateral.js';
 
 export interface RunControl {
   signal?: AbortSignal;
@@ -48,6 +52,28 @@ export async function runBipedMap(pool: EnginePool, scenario: Scenario, options:
 /** The two-leg model simulated with both legs' samples every `interval_s` (for the stride view). */
 export async function runBipedTrace(pool: EnginePool, scenario: Scenario, options: { strides: number; interval_s: number }, control: RunControl = {}): Promise<BipedSimulationResult> {
   return pool.use((api) => api.simulateBiped(scenario, { strides: options.strides, traceInterval_s: options.interval_s }), control.signal);
+}
+
+// ---------------------------------------------------------------------------------------------
+// The lateral leg-spring model (core/analysis/lateral.ts, recover.ts), each call on a worker.
+
+export async function runLateralTrace(pool: EnginePool, scenario: LateralScenario, options: { dt: number }, control: RunControl = {}): Promise<LateralSimulation> {
+  return pool.use((api) => api.lateralSimulate(scenario, { dt: options.dt }), control.signal);
+}
+
+export async function runLateralMap(pool: EnginePool, scenario: LateralScenario, control: RunControl = {}): Promise<LateralMapResult> {
+  return pool.use((api) => api.lateralMap(scenario), control.signal);
+}
+
+export async function runLateralRecover(pool: EnginePool, scenario: LateralScenario, spec: KickSpec, options: { stridesAfter: number; dt: number }, control: RunControl = {}): Promise<LateralRecoveryView> {
+  return pool.use((api) => api.lateralRecover(scenario, spec, options), control.signal);
+}
+
+/** Monte Carlo over random kicks: ranges of rollouts on the workers, finished (Wilson intervals) on one of them. */
+export async function runLateralRecoverMonteCarlo(pool: EnginePool, scenario: LateralScenario, spec: RandomKickSpec, options: { stridesAfter: number }, control: RunControl = {}): Promise<RecoverMonteCarloResult> {
+  const parts = await pool.map(ranges(spec.rollouts, pool.size * RANGES_PER_WORKER), (api, range) => api.lateralRecoverRows(scenario, spec, range, options), control);
+  const rows = parts.flat();
+  return pool.use((api) => api.lateralRecoverFinish(scenario, spec, rows, options), control.signal);
 }
 
 export async function runStepdown(pool: EnginePool, scenario: Scenario, control: RunControl = {}): Promise<StepToleranceResult> {

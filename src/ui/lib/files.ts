@@ -5,6 +5,7 @@
 import { InputError, describeFound, type InputIssue } from '../../core/errors.js';
 import { parseStudy } from '../../core/optimize/study.js';
 import { parseJson, parseScenario } from '../../core/scenario.js';
+import { parseLateralScenario } from '../../core/models/lateral.js';
 
 export const PROJECT_FORMAT = 'pronk-project';
 export const PROJECT_FORMAT_VERSION = 1;
@@ -127,7 +128,9 @@ export function classifyFile(text: string, name: string, context: { scenario: un
     return { kind: 'study', study, scenario: inline, scenarioFile };
   }
   try {
-    parseScenario(value);
+    // every model kind: the lateral one has its own validator (models/lateral.ts)
+    if (value.model === 'lateral') parseLateralScenario(value);
+    else parseScenario(value);
   } catch (error) {
     if (!(error instanceof InputError)) throw error;
     refuse(name, 'it is not a scenario Pronk can run (nor a study, a result or a project)', error.issues);

@@ -42,7 +42,7 @@ const VIEW_WORDS: Record<ViewName, string> = {
 /** null when `kind` runs `view`, else the one-line reason it is disabled. */
 export function viewUnsupported(kind: DraftKind, view: ViewName): string | null {
   if (SUPPORTED[kind].includes(view)) return null;
-  if (view === 'recover') return `${VIEW_WORDS[view]}: defined for the lateral model only (load the six-legged runner)`;
+  if (view === 'recover') return `${VIEW_WORDS[view]}: in the workbench for the lateral model only (pronk recover also kicks a single-leg runner)`;
   return `${VIEW_WORDS[view]}: not defined for the ${KIND_NAMES[kind]} model yet (it runs ${SUPPORTED[kind].map((v) => VIEW_WORDS[v]).join(', ')})`;
 }
 

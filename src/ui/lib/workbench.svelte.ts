@@ -7,6 +7,11 @@ import demoStudyJson from '../../../scenarios/demo-study.json' with { type: 'jso
 import demoScenarioJson from '../../../scenarios/demo.json' with { type: 'json' };
 import demoBipedJson from '../../../scenarios/demo-biped.json' with { type: 'json' };
 import demoBipedRunJson from '../../../scenarios/demo-biped-run.json' with { type: 'json' };
+import demoHexapodJson from '../../../scenarios/demo-hexapod.json' with { type: 'json' };
+import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
+import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
+import { parseLateralScenario, type LateralScenario } from '../../core/models/lateral.js';
+import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js';
 import type { BipedMapResult } from '../../core/analysis/biped-map.js';
 import type { BipedSimulationResult } from '../../core/models/biped-simulate.js';
 import { basinRunOptions, defaultBasinAxes, type BasinOptions, type BasinResult } from '../../core/analysis/basin.js';
@@ -19,7 +24,6 @@ import type { OptimizationResult } from '../../core/optimize/search.js';
 import { parseStudy, type Study } from '../../core/optimize/study.js';
 import { canonicalJson } from '../../core/version.js';
 import { parseScenario, type Scenario } from '../../core/scenario.js';
-import { requireKind } from '../../core/models/kind.js';
 import type { SimulationResult } from '../../core/simulate.js';
 import { EnginePool, JobCancelled, WorkerLost, type PoolEvent } from '../../worker/browser-pool.js';
 import type { BrowserSearchProgress } from '../../worker/browser-optimize.js';
@@ -29,6 +33,10 @@ import {
   runBasin,
   runBipedMap,
   runBipedTrace,
+  runLateralMap,
+  runLateralRecover,
+  runLateralRecoverMonteCarlo,
+  runLateralTrace,
   runReturnMap,
   runRobustness,
   runScan,
@@ -47,12 +55,22 @@ import { loadDrafts, loadHistory, loadResults, saveDrafts, saveHistory, saveResu
 export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare' | 'recover';
 
 /** The demos the workbench offers: the single-leg runner (with its study) and invented machines of the other kinds. */
-export type DemoName = 'slip' | 'biped-walk' | 'biped-run';
+export type DemoName = 'slip' | 'biped-walk' | 'biped-run' | 'hexapod';
 export const DEMOS: { name: DemoName; label: string; title: string; scenario: unknown }[] = [
   { name: 'slip', label: 'Single-leg runner (Tamarack-9) and its study', title: 'The invented Tamarack-9 demo scenario and study', scenario: demoScenarioJson },
   { name: 'biped-walk', label: 'Two-legged walker (Wren-2)', title: 'scenarios/demo-biped.json: the invented Wren-2 walking', scenario: demoBipedJson },
   { name: 'biped-run', label: 'Two-legged runner (Wren-2)', title: 'scenarios/demo-biped-run.json: the invented Wren-2 running', scenario: demoBipedRunJson },
+  { name: 'hexapod', label: 'Six-legged runner (Skitter-6), seen from above', title: 'scenarios/demo-hexapod.json: the invented Skitter-6 on the lateral leg-spring model', scenario: demoHexapodJson },
 ];
+
+/**
+ * A lateral scenario held where the workbench holds a scenario (the last valid one, the results'
+ * stamps). Only the lateral views read it, through this narrowing; every single-leg view is
+ * disabled for the lateral kind (kinds.ts), so none reads a field it has not.
+ */
+export function asLateral(s: Scenario): LateralScenario | null {
+  return (s as { model?: string }).model === 'lateral' ? (s as unknown as LateralScenario) : null;
+}
 
 export type Json = Record<string, unknown>;
 
@@ -63,6 +81,12 @@ export interface Settings {
   scan: { x: { path: unknown; lo: unknown; hi: unknown; n: unknown }; y: { path: unknown; lo: unknown; hi: unknown; n: unknown }; samples: unknown };
   basin: { mode: 'grid' | 'energy'; heights: { lo: unknown; hi: unknown; n: unknown }; speeds: { lo: unknown; hi: unknown; n: unknown }; strides: unknown };
   montecarlo: { rollouts: unknown; sigma_m: unknown; seed: unknown; terrain: 'random_walk' | 'random_heights'; strides: unknown };
+  /** A kick (the lateral model): at a fraction of a stride, in the body frame; Monte Carlo draws each up to these sizes. */
+  recover?: { stride: unknown; fraction: unknown; forward: unknown; left: unknown; angle: unknown; rate: unknown; after: unknown; rollouts: unknown; seed: unknown };
+}
+
+export function defaultRecoverSettings(): NonNullable<Settings['recover']> {
+  return { stride: 2, fraction: 0.5, forward: 0, left: 0.3, angle: 0, rate: 0, after: 30, rollouts: 400, seed: 1 };
 }
 
 /** A result and what it was computed from. */
@@ -101,6 +125,11 @@ export interface Results {
   /** The two-leg model's stride trace and section map (models/biped-simulate.ts, analysis/biped-map.ts). */
   bipedTrace?: Stamped<BipedSimulationResult>;
   bipedMap?: Stamped<BipedMapResult>;
+  /** The lateral model's run, gaits, one kick and Monte Carlo over kicks. */
+  lateralTrace?: Stamped<LateralSimulation>;
+  lateralMap?: Stamped<LateralMapResult>;
+  lateralRecover?: Stamped<LateralRecoveryView>;
+  lateralRecoverMC?: Stamped<RecoverMonteCarloResult>;
 }
 
 export interface Job {
@@ -177,7 +206,9 @@ export function demoScenarioDraft(): Json {
 }
 
 export function defaultSettings(scenario: Scenario): Settings {
-  // (the two-leg model's basin axes are its section's: core/analysis/basin.ts)
+  // (the two-leg model's basin axes are its section's: core/analysis/basin.ts); the lateral
+  // model's views have their own settings, the others keep the single-leg demo's
+  if (asLateral(scenario)) return { ...defaultSettings(parseScenario(demoScenarioJson)), recover: defaultRecoverSettings() };
   const axes = defaultBasinAxes(scenario, false);
   const round = (x: number) => Number(x.toPrecision(4));
   const angle = scenario.policy.angle;
@@ -205,10 +236,9 @@ export function defaultSettings(scenario: Scenario): Settings {
 
 export function checkScenario(draft: unknown): Check<Scenario> {
   try {
-    const value = parseScenario(draft);
-    // the workbench's views are the single-leg model's: another kind is refused by name
-    requireKind(value, 'the workbench', ['slip']);
-    return { value, issues: [] };
+    // the lateral model has its own scenario type (models/lateral.ts), held as asLateral() reads it
+    if (draftKind(draft) === 'lateral') return { value: parseLateralScenario(draft) as unknown as Scenario, issues: [] };
+    return { value: parseScenario(draft), issues: [] };
   } catch (error) {
     if (error instanceof InputError) return { value: null, issues: error.issues };
     return { value: null, issues: [{ path: '', expected: 'a scenario', found: String(error) }] };
@@ -250,9 +280,10 @@ const SETTING_PATHS: Record<string, Record<string, string>> = {
   scan: { '--x': 'scan.x', '--y': 'scan.y', '--samples': 'scan.samples', '--x, --y': 'scan.x' },
   basin: { heights: 'basin.heights', speeds: 'basin.speeds', strides: 'basin.strides', 'heights × speeds': 'basin.heights' },
   montecarlo: {},
+  recover: {},
 };
 
-export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo', error: unknown): InputIssue[] | null {
+export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo' | 'recover', error: unknown): InputIssue[] | null {
   if (!(error instanceof InputError)) return null;
   return error.issues.map((issue) => ({ ...issue, path: SETTING_PATHS[kind][issue.path] ?? (kind === 'montecarlo' ? `montecarlo.${issue.path}` : `${kind}.${issue.path}`) }));
 }
@@ -516,7 +547,8 @@ export class Workbench {
       if (name === 'slip') this.studyDraft = demoStudyDraft();
     });
     // the views' settings (basin and scan axes, Monte Carlo strides) follow the demo's robot
-    this.settings = defaultSettings(parseScenario(demo.scenario));
+    const parsed = checkScenario(demo.scenario).value;
+    if (parsed) this.settings = defaultSettings(parsed);
     if (this.view !== 'map' && this.view !== 'stride') this.view = 'stride';
     this.markSaved();
   }
@@ -798,7 +830,19 @@ export class Workbench {
     const interval = Number(this.settings.trace.interval_s);
     const started = performance.now();
     const kind = draftKind(scenario);
-    if (kind === 'biped') {
+    const lateral = asLateral(scenario);
+    if (lateral) {
+      await this.job('auto', 'Gaits and run', async (signal, progress) => {
+        progress(0, 2, 'gaits');
+        const [map, trace] = await Promise.all([
+          runLateralMap(this.pool, lateral, { signal }),
+          interval > 0 && interval <= 0.1 ? runLateralTrace(this.pool, lateral, { dt: interval }, { signal }) : Promise.resolve(undefined),
+        ]);
+        progress(2, 2);
+        this.keep('lateralMap', this.stamp(map, started, undefined, key));
+        if (trace) this.keep('lateralTrace', this.stamp(trace, started, { interval_s: interval }, key));
+      });
+    } else if (kind === 'biped') {
       await this.runBipedAutomatic(scenario, key, { samples, iterations, interval, started });
     } else await this.job('auto', 'Return map and stride', async (signal, progress) => {
       progress(0, 3, 'return map');
@@ -848,7 +892,7 @@ export class Workbench {
     return reason === null;
   }
 
-  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo', check: () => void): boolean {
+  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo' | 'recover', check: () => void): boolean {
     const others = this.settingsIssues.filter((i) => !i.path.startsWith(`${kind}.`));
     try {
       check();
@@ -953,6 +997,45 @@ export class Workbench {
     }
   }
 
+  /** The kick of the recovery settings on the lateral gait: judged, with the runs with and without it. */
+  async runRecover(): Promise<void> {
+    if (!this.kindRuns('recover')) return;
+    const { scenario, key } = this.lastValid;
+    const lateral = asLateral(scenario);
+    const r = this.settings.recover ?? defaultRecoverSettings();
+    if (!lateral || !this.checkSettings('recover', () => checkRecoverSettings(r))) return;
+    const spec = kickSpec(r);
+    const interval = Number(this.settings.trace.interval_s);
+    const started = performance.now();
+    const result = await this.job('recover', 'Kick recovery', () =>
+      runLateralRecover(this.pool, lateral, spec, { stridesAfter: Number(r.after), dt: interval > 0 && interval <= 0.1 ? interval : 0.002 }),
+    );
+    if (result) this.keep('lateralRecover', this.stamp(result, started, spec, key));
+  }
+
+  /** Monte Carlo over random kicks up to the sizes of the recovery settings (common random numbers by seed). */
+  async runRecoverMonteCarlo(): Promise<void> {
+    if (!this.kindRuns('recover')) return;
+    const { scenario, key } = this.lastValid;
+    const lateral = asLateral(scenario);
+    const r = this.settings.recover ?? defaultRecoverSettings();
+    if (!lateral || !this.checkSettings('recover', () => checkRecoverSettings(r, true))) return;
+    const spec: RandomKickSpec = {
+      stride: Number(r.stride),
+      max_forward_m_per_s: Math.abs(Number(r.forward)),
+      max_left_m_per_s: Math.abs(Number(r.left)),
+      max_angle_deg: Math.abs(Number(r.angle)),
+      max_rate_deg_per_s: Math.abs(Number(r.rate)),
+      seed: Number(r.seed),
+      rollouts: Number(r.rollouts),
+    };
+    const started = performance.now();
+    const result = await this.job('recoverMC', 'Monte Carlo over kicks', (signal, progress) =>
+      runLateralRecoverMonteCarlo(this.pool, lateral, spec, { stridesAfter: Number(r.after) }, { signal, onProgress: (d, t) => progress(d, t, 'ranges') }),
+    );
+    if (result) this.keep('lateralRecoverMC', this.stamp(result, started, spec, key));
+  }
+
   /** Baseline (the study's start) and optimized policy on the same terrain streams. */
   async runComparison(): Promise<void> {
     const opt = this.results.optimization;
@@ -1025,6 +1108,41 @@ export function stampFromResult(result: Json): OptimizationStamp {
     baseScenario,
     study: {},
   };
+}
+
+/** The recovery settings' kick (KickSpec of core/analysis/recover.ts). */
+export function kickSpec(r: NonNullable<Settings['recover']>): KickSpec {
+  return {
+    stride: Number(r.stride),
+    fraction: Number(r.fraction),
+    forward_m_per_s: Number(r.forward),
+    left_m_per_s: Number(r.left),
+    angle_deg: Number(r.angle),
+    rate_deg_per_s: Number(r.rate),
+  };
+}
+
+/** The recovery settings checked, each problem naming its field (recover.stride, recover.left, ...). */
+export function checkRecoverSettings(r: NonNullable<Settings['recover']>, monteCarlo = false): void {
+  const issues: InputIssue[] = [];
+  const check = (key: keyof typeof r, low: number, high: number, integer = false, unit = '') => {
+    const v = r[key];
+    if (typeof v !== 'number' || !Number.isFinite(v) || v < low || v > high || (integer && !Number.isInteger(v))) {
+      issues.push({ path: key, expected: `${integer ? 'an integer' : 'a number'} from ${low} to ${high}${unit ? ` (${unit})` : ''}`, found: v === undefined ? 'nothing' : JSON.stringify(v) });
+    }
+  };
+  check('stride', 0, 1000, true);
+  check('fraction', 0, 1);
+  check('forward', -1000, 1000, false, 'm/s');
+  check('left', -1000, 1000, false, 'm/s');
+  check('angle', -180, 180, false, '°');
+  check('rate', -1e5, 1e5, false, '°/s');
+  check('after', 3, 10000, true);
+  if (monteCarlo) {
+    check('rollouts', 1, 100000, true);
+    check('seed', 0, Number.MAX_SAFE_INTEGER, true);
+  }
+  if (issues.length) throw new InputError(issues);
 }
 
 function runBasinCheck(scenario: Scenario, options: BasinOptions): void {

@@ -1,0 +1,251 @@
+// Writes assembly/rk/dopri5x2.ts: the Dormand–Prince step of the stance for two (stepPair) or
+// four (stepQuad) stances at once in f64x2 lanes, unrolled from the tableau with the operations of
+// step() in rk/dopri5.ts, the stance right-hand side of rk/system.ts and the step-end quantities
+// and step factor of stanceAfterLaneStep (stance.ts) and acceptFactor (dopri5.ts), each in the same
+// order, so that every lane rounds as the scalar code does. Change those and run this together:
+//
+//   node scripts/gen-lane-step.mjs          (writes the file)
+//   node scripts/gen-lane-step.mjs --check  (exit 1 if the file differs from what this writes)
+//
+// test/lanes.test.ts checks the file against this script and the lanes against the scalar path.
+
+import { readFileSync, writeFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+
+const add = (a, b) => `f64x2.add(${a}, ${b})`;
+const sub = (a, b) => `f64x2.sub(${a}, ${b})`;
+const mul = (a, b) => `f64x2.mul(${a}, ${b})`;
+const sum = (terms) => terms.reduce((acc, t) => (acc === null ? t : add(acc, t)), null);
+const V = (name) => `v${name}`;
+const consts = ['A21','A31','A32','A41','A42','A43','A51','A52','A53','A54','A61','A62','A63','A64','A65','B1','B3','B4','B5','B6','E1','E3','E4','E5','E6','E7'];
+const stages = [
+  ['b', [['A21', 'a']]],
+  ['c', [['A31', 'a'], ['A32', 'b']]],
+  ['d', [['A41', 'a'], ['A42', 'b'], ['A43', 'c']]],
+  ['e', [['A51', 'a'], ['A52', 'b'], ['A53', 'c'], ['A54', 'd']]],
+  ['f', [['A61', 'a'], ['A62', 'b'], ['A63', 'c'], ['A64', 'd'], ['A65', 'e']]],
+];
+function fn(name, chains) {
+  const L = [];
+  const o = (s) => L.push(s);
+  const lanes = chains.flatMap((c) => c.lanes);
+  o(`export function ${name}(${lanes.map((l) => `s${l}: Stance`).join(', ')}): void {`);
+  for (const l of lanes) {
+    const U = l.toUpperCase();
+    o(`  const p${l} = s${l}.bufs;`);
+    for (const [v, f] of [['h', 'h'], ['rtol', 'rtol'], ['atol', 'atol'], ['dim', 'errDim'], ['k', 'k'], ['leg', 'leg'], ['c', 'c'], ['invM', 'invMass'], ['g', 'g'], ['old', 'errOld']]) {
+      o(`  const ${v}${U} = s${l}.${f};`);
+    }
+    o(`  const hi${U}: f64 = s${l}.afterReject ? 1.0 : 10.0;`);
+  }
+  o(`  const ONE = f64x2(1.0, 1.0);`);
+  o(`  const ZERO = f64x2(0.0, 0.0);`);
+  for (const c of consts) o(`  const ${V(c)} = f64x2(${c}, ${c});`);
+  for (const ch of chains) {
+    const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
+    o(`  const h${X} = ${U('h')};`);
+    o(`  const K${X} = ${U('k')};`);
+    o(`  const LEG${X} = ${U('leg')};`);
+    o(`  const C${X} = ${U('c')};`);
+    o(`  const IM${X} = ${U('invM')};`);
+    o(`  const G${X} = ${U('g')};`);
+    o(`  // the work component only with damping in a lane: without, it and its stage values stay +0`);
+    o(`  // (c r'^2 = +0 for finite r'; a non-finite r' makes the leg force NaN, and the step NaN, anyway),`);
+    o(`  // and its error term is +0 / atol = +0 (atol > 0 and rtol finite: a validated scenario's)`);
+    const L0 = l0.toUpperCase(), L1 = l1.toUpperCase();
+    o(`  const w${X} = !(c${L0} == 0.0 && c${L1} == 0.0 && atol${L0} > 0.0 && atol${L1} > 0.0 && Math.abs(rtol${L0}) < Infinity && Math.abs(rtol${L1}) < Infinity);`);
+    for (let i = 0; i < 5; i++) o(`  const y${i}${X} = gather(p${l0}, p${l1}, OFF_Y0 + ${i * 8});`);
+    for (let i = 0; i < 5; i++) o(`  const a${i}${X} = gather(p${l0}, p${l1}, OFF_K1 + ${i * 8});`);
+  }
+  const rhs = (X, out, px, py, vx, vy, ind) => {
+    const last = out === 'g';
+    if (last) o(`${ind}let rg${X}: v128, dg${X}: v128;`);
+    o(`${ind}{`);
+    o(`${ind}  const r = f64x2.sqrt(${add(mul(px, px), mul(py, py))});`);
+    o(`${ind}  const inv = f64x2.div(ONE, r);`);
+    o(`${ind}  const dot = ${add(mul(px, vx), mul(py, vy))};`);
+    if (last) o(`${ind}  rg${X} = r;`);
+    if (last) o(`${ind}  dg${X} = dot;`);
+    o(`${ind}  const rdot = ${mul('dot', 'inv')};`);
+    o(`${ind}  const force = ${sub(mul(`K${X}`, sub(`LEG${X}`, 'r')), mul(`C${X}`, 'rdot'))};`);
+    o(`${ind}  const acc = ${mul(mul('force', 'inv'), `IM${X}`)};`);
+    o(`${ind}  ${out}0${X} = ${vx};`);
+    o(`${ind}  ${out}1${X} = ${vy};`);
+    o(`${ind}  ${out}2${X} = ${mul('acc', px)};`);
+    o(`${ind}  ${out}3${X} = ${sub(mul('acc', py), `G${X}`)};`);
+    o(`${ind}  if (w${X}) ${out}4${X} = ${mul(mul(`C${X}`, 'rdot'), 'rdot')};`);
+    o(`${ind}  else ${out}4${X} = ZERO;`);
+    o(`${ind}}`);
+  };
+  for (const [nm, terms] of stages) {
+    for (const ch of chains) {
+      const X = ch.id;
+      o(`  let ${[0,1,2,3,4].map((i) => `${nm}${i}${X}: v128`).join(', ')};`);
+      o(`  {`);
+      [0, 1, 2, 3].forEach((i) => o(`    const s${i} = ${add(`y${i}${X}`, mul(`h${X}`, sum(terms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`));
+      rhs(X, nm, 's0', 's1', 's2', 's3', '    ');
+      o(`  }`);
+    }
+  }
+  const bterms = [['B1', 'a'], ['B3', 'c'], ['B4', 'd'], ['B5', 'e'], ['B6', 'f']];
+  for (const ch of chains) {
+    const X = ch.id;
+    for (let i = 0; i < 4; i++) o(`  const n${i}${X} = ${add(`y${i}${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`);
+    o(`  let n4${X} = y4${X}; // +0 + h (+0 ...) = +0 without damping`);
+    o(`  if (w${X}) n4${X} = ${add(`y4${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}4${X}`)))))};`);
+  }
+  for (const ch of chains) {
+    const X = ch.id;
+    o(`  let ${[0,1,2,3,4].map((i) => `g${i}${X}: v128`).join(', ')};`);
+    rhs(X, 'g', `n0${X}`, `n1${X}`, `n2${X}`, `n3${X}`, '  ');
+  }
+  const eterms = [['E1', 'a'], ['E3', 'c'], ['E4', 'd'], ['E5', 'e'], ['E6', 'f'], ['E7', 'g']];
+  for (const ch of chains) {
+    const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
+    o(`  const RTOL${X} = ${U('rtol')};`);
+    o(`  const ATOL${X} = ${U('atol')};`);
+    o(`  let sum${X} = f64x2(0.0, 0.0);`);
+    o(`  let finite${X} = f64x2(0.0, 0.0);`);
+    for (let i = 0; i < 5; i++) {
+      o(i === 4 ? `  if (w${X}) { // without damping the term is 0 / sc = +0, and n4 - n4 = 0` : `  {`);
+      o(`    const e = ${mul(`h${X}`, sum(eterms.map(([c, k]) => mul(V(c), `${k}${i}${X}`))))};`);
+      o(`    const sc = ${add(`ATOL${X}`, mul(`RTOL${X}`, `f64x2.max(f64x2.abs(y${i}${X}), f64x2.abs(n${i}${X}))`))};`);
+      o(`    const q = f64x2.div(e, sc);`);
+      o(`    sum${X} = ${add(`sum${X}`, mul('q', 'q'))};`);
+      o(`    finite${X} = ${add(`finite${X}`, sub(`n${i}${X}`, `n${i}${X}`))};`);
+      o(`  }`);
+    }
+    o(`  const err${X} = f64x2.sqrt(f64x2.div(sum${X}, ${U('dim')}));`);
+  }
+  for (const ch of chains) {
+    const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
+    ['c', 'd', 'e', 'f'].forEach((v, s) => {
+      for (let i = 0; i < 5; i++) o(`  v128.store(LANE_STAGES + ${ch.base / 2 * 320 + (s * 5 + i) * 16}, ${v}${i}${X});`);
+    });
+    for (const [buf, v] of [['OFF_K7', 'g'], ['OFF_YN', 'n']]) {
+      for (let i = 0; i < 5; i++) o(`  scatter(p${l0}, p${l1}, ${buf} + ${i * 8}, ${v}${i}${X});`);
+    }
+    o(`  {`);
+    o(`    // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic`);
+    o(`    const nr = rg${X}; // sqrt(px^2 + py^2) at YN, from K7's right-hand side`);
+    o(`    const nrdot = f64x2.div(dg${X}, nr); // (px vx + py vy) / r`);
+    o(`    v128.store(LANE_END + ${ch.base / 2 * 80}, ${sub(mul(`K${X}`, sub(`LEG${X}`, 'nr')), mul(`C${X}`, 'nrdot'))}); // leg force`);
+    o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 16}, ${sub('nr', `LEG${X}`)}); // r - L0`);
+    o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 32}, nrdot);`);
+    o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 48}, f64x2.abs(f64x2.div(n0${X}, n1${X}))); // friction ratio`);
+    o(`    // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)`);
+    o(`    const e = v128.bitselect(err${X}, f64x2(1e-12, 1e-12), f64x2.gt(err${X}, f64x2(1e-12, 1e-12)));`);
+    o(`    let f = f64x2.mul(f64x2.mul(f64x2(0.9, 0.9), roughPow2(e, -EXPO)), roughPow2(${U('old')}, BETA));`);
+    o(`    f = v128.bitselect(f64x2(0.2, 0.2), f, f64x2.lt(f, f64x2(0.2, 0.2)));`);
+    o(`    const hi = ${U('hi')};`);
+    o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 64}, v128.bitselect(hi, f, f64x2.gt(f, hi)));`);
+    o(`  }`);
+    o(`  // A NaN or infinity anywhere in the stages shows up in err or in YN.`);
+    o(`  laneErr${ch.base} = checked(f64x2.extract_lane(err${X}, 0), f64x2.extract_lane(finite${X}, 0));`);
+    o(`  laneErr${ch.base + 1} = checked(f64x2.extract_lane(err${X}, 1), f64x2.extract_lane(finite${X}, 1));`);
+  }
+  o(`}`);
+  return L.join('\n');
+}
+const out = [];
+out.push(`// Dormand–Prince 5(4) steps of several stances at once, one stance in each f64x2 lane:
+// the stances of rollouts stepped together (stance.ts, rollout.ts). Each lane performs the
+// same IEEE operations in the same order as step() in dopri5.ts (WebAssembly has no fused
+// multiply-add, and f64x2 arithmetic rounds each lane as scalar f64 does), so a lane's
+// result is the one step() gives, bit for bit; only the work component's stage values, which
+// no right-hand side reads, are not formed. A step is a latency-bound chain of square roots
+// and divisions: stepPair runs one f64x2 chain for two stances, stepQuad two independent
+// chains for four, and each costs little more than one scalar step.
+//
+// Generated from the tableau in dopri5.ts (the same constants, imported) and the stance
+// right-hand side in system.ts; change those and this together.
+
+import {
+  A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
+  B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
+} from "./dopri5";
+import { Stance } from "../stance";
+
+// K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
+// f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
+// (unpackStages), for the interpolant.
+const LANE_STAGES: usize = memory.data(2 * 4 * 5 * 16, 16);
+
+// The K3..K6 of lane number lane of the last stepPair or stepQuad into its buffers at p.
+export function unpackStages(lane: i32, p: usize): void {
+  const src = LANE_STAGES + <usize>(lane >> 1) * 320 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 20; j++) store<f64>(p + OFF_K3 + (j << 3), load<f64>(src + (j << 4)));
+}
+
+// For each lane of the last stepPair or stepQuad, as f64x2 pairs (lanes 0, 1, then 2, 3): the
+// leg force k (L0 - r) - c r', r - L0, r' and |px / py| at the step's end, and the factor
+// acceptFactor would give if the step is accepted (laneEnd).
+const LANE_END: usize = memory.data(2 * 5 * 16, 16);
+export const END_FORCE = 0;
+export const END_RADIUS = 1;
+export const END_RATE = 2;
+export const END_FRICTION = 3;
+export const END_FACTOR = 4;
+
+@inline export function laneEnd(lane: i32, q: i32): f64 {
+  return load<f64>(LANE_END + <usize>(lane >> 1) * 80 + (<usize>q << 4) + <usize>(lane & 1) * 8);
+}
+
+// roughPow (dopri5.ts) in each lane, the same operations.
+@inline function roughPow2(x: v128, p: f64): v128 {
+  const ex = i64x2.sub(i64x2.shr_u(x, 52), i64x2.splat(1023));
+  // the exponent (-1023..1024) from the low halves of the i64 lanes, exactly
+  const e = f64x2.convert_low_i32x4_s(i8x16.shuffle(ex, ex, 0, 1, 2, 3, 8, 9, 10, 11, 0, 1, 2, 3, 8, 9, 10, 11));
+  const m = f64x2.sub(v128.or(v128.and(x, i64x2.splat(0x000fffffffffffff)), i64x2.splat(0x3ff0000000000000)), f64x2(1.0, 1.0));
+  const log2x = f64x2.add(e, f64x2.mul(m, f64x2.sub(f64x2(1.4425, 1.4425), f64x2.mul(f64x2(0.4425, 0.4425), m))));
+  const y = f64x2.mul(f64x2.splat(p), log2x);
+  const n = f64x2.floor(y);
+  const f = f64x2.sub(y, n);
+  const twoF = f64x2.add(f64x2(1.0, 1.0), f64x2.mul(f, f64x2.add(f64x2(0.6565, 0.6565), f64x2.mul(f64x2(0.3435, 0.3435), f))));
+  const scale = i64x2.shl(i64x2.add(i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(n)), i64x2.splat(1023)), 52);
+  return f64x2.mul(twoF, scale);
+}
+
+// Error estimates of the last stepPair (lanes 0, 1) or stepQuad (0..3), as step() returns them.
+export let laneErr0: f64 = 0.0;
+export let laneErr1: f64 = 0.0;
+export let laneErr2: f64 = 0.0;
+export let laneErr3: f64 = 0.0;
+
+@inline function gather(pa: usize, pb: usize, off: usize): v128 {
+  return f64x2.replace_lane(f64x2.splat(load<f64>(pa + off)), 1, load<f64>(pb + off));
+}
+@inline function scatter(pa: usize, pb: usize, off: usize, v: v128): void {
+  store<f64>(pa + off, f64x2.extract_lane(v, 0));
+  store<f64>(pb + off, f64x2.extract_lane(v, 1));
+}
+@inline function pair(a: f64, b: f64): v128 {
+  return f64x2.replace_lane(f64x2.splat(a), 1, b);
+}
+// step()'s result from a lane's error and its finiteness sum (0 only if every new component is finite).
+@inline function checked(err: f64, finite: f64): f64 {
+  return !isFinite(err) || finite != 0.0 ? NaN : err;
+}
+
+// One step of stance sA (its step size h, its buffers, parameters and controller memory) and of
+// sB, one in each lane, from each one's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
+// for unpackStages, and the error estimates into laneErr0, laneErr1.`);
+out.push(fn('stepPair', [{ id: 'X', lanes: ['A', 'B'], base: 0 }]));
+out.push(`
+// stepPair for four stances, lanes A..D; errors into laneErr0..laneErr3.`);
+out.push(fn('stepQuad', [{ id: 'X', lanes: ['A', 'B'], base: 0 }, { id: 'Y', lanes: ['C', 'D'], base: 2 }]));
+/** The text of assembly/rk/dopri5x2.ts. */
+export function laneStepSource() {
+  return `${out.join('\n')}\n`;
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  const file = fileURLToPath(new URL('../assembly/rk/dopri5x2.ts', import.meta.url));
+  if (process.argv.includes('--check')) {
+    if (readFileSync(file, 'utf8') !== laneStepSource()) {
+      console.error(`${file} differs from what scripts/gen-lane-step.mjs writes: run it`);
+      process.exitCode = 1;
+    }
+  } else writeFileSync(file, laneStepSource());
+}
