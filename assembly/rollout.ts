@@ -34,7 +34,7 @@ import {
 import { groundAt, getWalk, setWalk } from "./terrain";
 import {
   Stance, MAX_LANES, laneStance, useStance, releaseStance, stanceStart, stanceRun, stanceBeforeStep,
-  stanceAfterStep, stanceAfterLaneStep, stepTwo, stepFour,
+  stanceAfterStep, stanceAfterLaneStep, stanceAfterEventStep, stepTwo, stepFour,
 } from "./stance";
 import { laneErr0, laneErr1, laneErr2, laneErr3, unpackStages } from "./rk/dopri5x2";
 import {
@@ -193,8 +193,7 @@ function strideBegin(R: Roll): bool {
   put(rec, R_APEX_SPEED, vx);
   put(rec, R_APEX_TIME, t);
   put(rec, R_APEX_X, x);
-  const energyBefore = R.mass * g * ya + 0.5 * R.mass * vx * vx;
-  put(rec, R_ENERGY_BEFORE, energyBefore);
+  if (R.rec0 != 0) put(rec, R_ENERGY_BEFORE, R.mass * g * ya + 0.5 * R.mass * vx * vx);
   if (!isFinite(ya) || !isFinite(vx)) { R.status = STATUS_NON_FINITE; return false; }
 
   setWalk(R.walk);
@@ -291,13 +290,16 @@ function strideEnd(R: Roll, status: i32): bool {
   put(rec, R_LIFTOFF_Y, yLift);
   put(rec, R_LIFTOFF_VX, outVx);
   put(rec, R_LIFTOFF_VY, outVy);
-  put(rec, R_LIFTOFF_ANGLE, Math.atan2(outPy, outPx));
   put(rec, R_LIFTOFF_LEG_FORCE, st.liftoffForce);
-  // Energy the body no longer has: the damper's work plus, with damping, the
-  // spring energy still in the (massless) leg when the foot leaves.
-  const rLift = Math.sqrt(outPx * outPx + outPy * outPy);
-  const stored = 0.5 * R.ke * (leg - rLift) * (leg - rLift);
-  put(rec, R_DISSIPATED, st.dissipated + (R.c > 0.0 ? stored : 0.0));
+  // Only a kept record is read: the values nothing else uses are formed only for one.
+  if (R.rec0 != 0) {
+    put(rec, R_LIFTOFF_ANGLE, Math.atan2(outPy, outPx));
+    // Energy the body no longer has: the damper's work plus, with damping, the
+    // spring energy still in the (massless) leg when the foot leaves.
+    const rLift = Math.sqrt(outPx * outPx + outPy * outPy);
+    const stored = 0.5 * R.ke * (leg - rLift) * (leg - rLift);
+    put(rec, R_DISSIPATED, st.dissipated + (R.c > 0.0 ? stored : 0.0));
+  }
   const t = R.t;
   const tLift = t + R.tTouch + st.contact;
 
@@ -316,7 +318,7 @@ function strideEnd(R: Roll, status: i32): bool {
   put(rec, R_NEXT_APEX_X, xNext);
   put(rec, R_NEXT_APEX_TIME, tNext);
   put(rec, R_STRIDE_TIME, tNext - t);
-  put(rec, R_ENERGY_AFTER, R.mass * g * yNext + 0.5 * R.mass * outVx * outVx);
+  if (R.rec0 != 0) put(rec, R_ENERGY_AFTER, R.mass * g * yNext + 0.5 * R.mass * outVx * outVx);
   put(rec, R_STATUS, <f64>STATUS_OK);
 
   if (st.peakForce > R.maxForce) R.maxForce = st.peakForce;
@@ -467,7 +469,7 @@ function runLanes(lanes: i32, models: usize, inputs: usize, rollouts: i32, strid
       if (r == -2) {
         unpackStages(i, st.bufs);
         useStance(st);
-        r = stanceAfterStep(st, err);
+        r = st.pending >= 0 ? stanceAfterEventStep(st) : stanceAfterStep(st, err, true);
       }
       if (r >= 0 && !laneNext(R, r)) live &= ~(1 << i);
     }

@@ -64,6 +64,9 @@ const LOCATE_TOL: f64 = 1e-9;
   gg0: f64 = 0.0;
   gb0: f64 = 0.0;
   gf0: f64 = 0.0;
+  pending: i32 = -1; // an event whose step is this lane's next one (stanceAfterStep), or -1
+  hNext: f64 = 0.0; // the step after it
+  tEvent: f64 = 0.0; // time at its end, before the Newton polish
   // results
   contact: f64 = 0.0; // s, touchdown to liftoff (or to the failure)
   px: f64 = 0.0; // liftoff state relative to the foot
@@ -195,6 +198,7 @@ export function stanceStart(
   s.h = h0;
   s.afterReject = false;
   s.nonFinite = 0;
+  s.pending = -1;
   s.gl0 = eventValue(EV_LIFTOFF, Y0);
   s.gm0 = eventValue(EV_MAX_COMPRESSION, Y0);
   s.gg0 = eventValue(EV_BODY_GROUND, Y0);
@@ -204,6 +208,7 @@ export function stanceStart(
 
 // Before each step: the stance's end by a limit (a status), or -1 to take the step s.h.
 @inline export function stanceBeforeStep(s: Stance): i32 {
+  if (s.pending >= 0) return -1; // the step to a located event is taken whatever the limits
   if (s.steps + s.rejected >= s.maxSteps) return finish(s, STATUS_STEP_LIMIT, s.t);
   if (s.t > s.tLimit) return finish(s, STATUS_NO_LIFTOFF, s.t);
   if (s.h < s.hMin) return finish(s, STATUS_STEP_UNDERFLOW, s.t);
@@ -212,7 +217,7 @@ export function stanceStart(
 
 // After the step of size s.h with error estimate err (stance s holds the stepper): accept or
 // reject it, locate the events in it; the stance's end (a status), or -1 to go on.
-export function stanceAfterStep(s: Stance, err: f64): i32 {
+export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 {
   const h = s.h;
   if (isNaN(err)) {
     // A step so long that the state blew up: shrink hard and retry.
@@ -313,9 +318,32 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
   // the true solution, then polish with Newton.
   const hNext = h * acceptFactor(err, s.afterReject);
   const hEvent = stopTheta * h;
+  if (deferEventStep) {
+    // the lane's next step (stepTwo/stepFour) is this one; stanceAfterEventStep goes on from there
+    s.pending = stopEvent;
+    s.hNext = hNext;
+    s.tEvent = t + hEvent;
+    s.h = hEvent;
+    return -1;
+  }
   step(hEvent, s.rtol, s.atol);
+  return eventReached(s, stopEvent, t + hEvent, hNext);
+}
+
+// After the step to a located liftoff or stiffness switch taken in a lane (stanceAfterStep with
+// deferEventStep; stance s holds the stepper again): what stanceAfterStep does after step(hEvent).
+export function stanceAfterEventStep(s: Stance): i32 {
+  const ev = s.pending;
+  s.pending = -1;
+  return eventReached(s, ev, s.tEvent, s.hNext);
+}
+
+// The step to a located liftoff or stiffness switch has been taken (YN, K7); polish the event
+// with Newton, then switch the stiffness or end the stance.
+function eventReached(s: Stance, stopEvent: i32, tStep: f64, hNext: f64): i32 {
+  const damped = s.damped;
   s.steps++;
-  let tEvent = t + hEvent;
+  let tEvent = tStep;
   tEvent += refine(stopEvent, s.timeScale);
 
   if (stopEvent == EV_MAX_COMPRESSION) {
@@ -357,7 +385,7 @@ export function stanceAfterStep(s: Stance, err: f64): i32 {
 // with this function's arithmetic (laneEnd). -2 (nothing changed) for the other cases: then
 // useStance and stanceAfterStep.
 export function stanceAfterLaneStep(s: Stance, err: f64, lane: i32): i32 {
-  if (s.damped || tracing || current == changetype<usize>(s)) return -2;
+  if (s.pending >= 0 || s.damped || tracing || current == changetype<usize>(s)) return -2;
   const h = s.h;
   if (isNaN(err)) {
     s.rejected++;
@@ -415,7 +443,7 @@ export function stanceRun(s: Stance): i32 {
     let r = stanceBeforeStep(s);
     if (r >= 0) return r;
     useStance(s);
-    r = stanceAfterStep(s, step(s.h, s.rtol, s.atol));
+    r = stanceAfterStep(s, step(s.h, s.rtol, s.atol), false);
     if (r >= 0) return r;
   }
 }

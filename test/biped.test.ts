@@ -7,7 +7,7 @@ import { main } from '../src/cli/main.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
 import { bipedReturnMap } from '../src/core/analysis/biped-map.js';
-import { eigenvalues } from '../src/core/analysis/eigen.js';
+import { eigenvaluesWithModulus as eigenvalues } from '../src/core/eigen.js';
 import { loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
 import { buildModel, startInput, STATUS_NAMES } from '../src/core/model.js';

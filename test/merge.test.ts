@@ -237,3 +237,28 @@ describe('shard counts and claims are bounded (no runaway merge)', () => {
     }, 30_000);
   }
 });
+
+// Found by the fuzz suite: a scan partial whose row said "stable_apex_height_m": "NaN" was merged
+// and printed as it stood; every field of a scan row is now checked as a run writes it.
+describe('a scan partial with an edited row is refused naming the row', () => {
+  const args = ['--x', 'policy.angle.attack_at_apex_deg:60:64:3', '--y', 'policy.angle.rate_deg_per_s:25:50:2', '--samples', '12', '--workers', '1'];
+  const edits: [string, (row: Record<string, unknown>) => void][] = [
+    ['a stable apex of "NaN"', (row) => { row.stable_apex_height_m = 'NaN'; }],
+    ['a fixed point without its slope', (row) => { row.fixed_points = [{ apex_height_m: 1, forward_speed_m_per_s: 5, stable: true }]; }],
+    ['a cell moved on the grid', (row) => { row.x = 1e308; }],
+    ['a missing flag', (row) => { delete row.identity_map; }],
+  ];
+  for (const [what, edit] of edits) {
+    it(what, async () => {
+      const files = [1, 2].map((i) => at(`scanrow_${i}.json`));
+      for (const [i, file] of files.entries()) expect((await pronk(['scan', at('robot.json'), ...args, '--shard', `${i + 1}/2`, '--out', file])).code).toBe(0);
+      const partial = JSON.parse(readFileSync(files[0], 'utf8')) as PartialResult<Record<string, unknown>>;
+      edit(partial.rows[1]);
+      writeFileSync(files[0], JSON.stringify(partial));
+      const r = await pronk(['merge', ...files, '--json']);
+      expect(r.code).toBe(2);
+      expect(r.stdout).toBe('');
+      expect(r.stderr).toMatch(/rows: expected 6 scan cells with indices 0 to 5 in order, found row 1: /);
+    }, 30_000);
+  }
+});

@@ -99,8 +99,6 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       recover: ['--kick-left', '0.05', '--rollouts', '8', '--strides-after', '10'],
       deadbeat: ['--ground=-0.01:0.01'],
     },
-    // the lateral scan and basin run in one process: no --workers, no --shard
-    unsharded: ['scan', 'basin'],
     study: {
       free_parameters: [{ path: 'policy.angle.angle_to_body_deg', lower: 50, upper: 65 }],
       objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.005, rollouts: 10, strides: 5 }] },

@@ -3,7 +3,7 @@
 // with all eigenvalues of the reduced map and the full map's energy eigenvalue).
 
 import type { BipedMapResult } from '../core/analysis/biped-map.js';
-import type { Eigenvalue } from '../core/analysis/eigen.js';
+import type { Eigenvalue } from '../core/eigen.js';
 import { type BipedScenario, legParameters } from '../core/models/biped.js';
 import type { BipedSimulationResult } from '../core/models/biped-simulate.js';
 import { SAFETY_CAUTION } from '../core/safety.js';

@@ -6,8 +6,11 @@ import { LATERAL_HEADER, jsonText, jsonTextChunks } from '../core/json-output.js
 import { writeChunks } from './stream-output.js';
 import { STATUS_NAMES, STATUS_TEXT } from '../core/model.js';
 import * as L from '../../assembly/layout.js';
-import type { LateralScanResult } from '../core/analysis/lateral-scan.js';
-import type { ScanAxis } from '../core/analysis/scan.js';
+import type { LateralScanCell, LateralScanResult } from '../core/analysis/lateral-scan.js';
+import type { ScanOptions } from '../core/analysis/scan.js';
+import type { ShardSpec } from '../core/shard.js';
+import type { CheckedOutput } from './output-files.js';
+import { makePartial, shardRange, writePartial, writeText } from './shard-output.js';
 import type { LateralBasinOptions, LateralBasinResult } from '../core/analysis/lateral-basin.js';
 import { InputError } from '../core/errors.js';
 import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
@@ -287,20 +290,42 @@ export function renderLateralBasin(s: LateralScenario, r: LateralBasinResult): s
   ].join('\n');
 }
 
-export async function runLateralBasin(s: LateralScenario, io: CliIO, options: { json: boolean } & LateralBasinOptions): Promise<number> {
+export async function runLateralBasin(
+  s: LateralScenario,
+  io: CliIO,
+  options: { json: boolean; shard?: ShardSpec; outFile?: CheckedOutput } & LateralBasinOptions,
+): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
-  const { lateralBasin } = await import('../core/analysis/lateral-basin.js');
+  const core = await import('../core/analysis/lateral-basin.js');
   const engine = await loadEngine();
-  const { json, ...rest } = options;
-  let r: LateralBasinResult;
+  const { json, shard, outFile, ...rest } = options;
+  const source = (error: unknown) => (error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error);
   try {
-    r = lateralBasin(engine, s, rest);
+    const run = core.lateralBasinRun(engine, s, rest);
+    const total = core.lateralBasinCellCount(run);
+    const range = shard ? shardRange(total, shard) : { start: 0, end: total };
+    const rows = core.lateralBasinRows(engine, s, run, range);
+    if (shard) {
+      const partial = await makePartial({ command: 'basin', scenario: s, options: run as unknown as Record<string, unknown>, spec: shard, range, total, rows });
+      await writePartial(io, outFile, partial);
+      return 0;
+    }
+    const r = core.finishLateralBasin(engine, s, run, rows);
+    await writeText(io, outFile, json ? lateralBasinJson(s, r) : renderLateralBasin(s, r), 'basin');
+    return 0;
   } catch (error) {
-    throw error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error;
+    throw source(error);
   }
-  if (json) io.stdout.write(jsonText('basin', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
-  else io.stdout.write(renderLateralBasin(s, r));
-  return 0;
+}
+
+/** The --json text of a lateral basin (also what `pronk merge --json` prints). */
+export function lateralBasinJson(s: LateralScenario, r: LateralBasinResult): string {
+  return jsonText('basin', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
+}
+
+/** The --json text of a lateral scan (also what `pronk merge --json` prints). */
+export function lateralScanJson(s: LateralScenario, r: LateralScanResult): string {
+  return jsonText('scan', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -331,19 +356,39 @@ export function renderLateralScan(s: LateralScenario, r: LateralScanResult): str
   ].join('\n');
 }
 
-export async function runLateralScan(s: LateralScenario, io: CliIO, options: { json: boolean; x: ScanAxis; y: ScanAxis }): Promise<number> {
+export async function runLateralScan(
+  s: LateralScenario,
+  io: CliIO,
+  options: { json: boolean; options: ScanOptions; shard?: ShardSpec; outFile?: CheckedOutput },
+): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
-  const { lateralScan } = await import('../core/analysis/lateral-scan.js');
+  const core = await import('../core/analysis/lateral-scan.js');
   const { startProgress } = await import('./progress.js');
   const engine = await loadEngine();
+  const { x, y } = options.options;
+  const total = x.n * y.n;
+  const range = options.shard ? shardRange(total, options.shard) : { start: 0, end: total };
   const progress = startProgress(io, 'scan', { unit: 'cells' });
-  let r: LateralScanResult;
+  let rows: LateralScanCell[];
   try {
-    r = lateralScan(engine, s, options.x, options.y, (d, t) => progress.update(d, t));
+    rows = core.lateralScanRows(engine, s, x, y, range, (d, t) => progress.update(d, t));
   } finally {
     progress.done();
   }
-  if (options.json) io.stdout.write(jsonText('scan', { scenario: s, ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER));
-  else io.stdout.write(renderLateralScan(s, r));
+  if (options.shard) {
+    const partial = await makePartial({
+      command: 'scan',
+      scenario: s,
+      options: options.options as unknown as Record<string, unknown>,
+      spec: options.shard,
+      range,
+      total,
+      rows,
+    });
+    await writePartial(io, options.outFile, partial);
+    return 0;
+  }
+  const r = core.finishLateralScan(x, y, rows);
+  await writeText(io, options.outFile, options.json ? lateralScanJson(s, r) : renderLateralScan(s, r), 'scan');
   return 0;
 }

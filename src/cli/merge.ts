@@ -34,6 +34,16 @@ const VIEWS: Record<string, () => Promise<View>> = {
   },
 };
 
+// A lateral scenario's scan and basin print with the lateral views (src/cli/lateral.ts).
+async function lateralView(command: string): Promise<View> {
+  const lateral = await import('./lateral.js');
+  if (command === 'basin') return { json: (s, r) => lateral.lateralBasinJson(s as never, r as never), text: (s, r) => lateral.renderLateralBasin(s as never, r as never) };
+  if (command === 'scan') return { json: (s, r) => lateral.lateralScanJson(s as never, r as never), text: (s, r) => lateral.renderLateralScan(s as never, r as never) };
+  const load = VIEWS[command];
+  if (!load) throw new Error(`no view for the merged command ${command}`);
+  return load();
+}
+
 export const mergeCommand: Command = {
   name: 'merge',
   summary: 'merge the partial results of a sharded run (--shard I/N) into the one-machine result',
@@ -70,7 +80,7 @@ async function runMerge({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const merged = await mergePartials(parts);
   const load = Object.hasOwn(VIEWS, merged.command) ? VIEWS[merged.command] : undefined;
   if (!load) throw new Error(`no view for the merged command ${merged.command}`);
-  const view = await load();
+  const view = (merged.scenario as { model?: string }).model === 'lateral' ? await lateralView(merged.command) : await load();
   const text = values.json === true ? view.json(merged.scenario, merged.result) : view.text(merged.scenario, merged.result);
   await writeText(io, outFile, text, 'merge');
   if (plotFile !== undefined) await writePlotFile(io, merged.command, plotFile, merged.result, `pronk merge (${merged.command})`);

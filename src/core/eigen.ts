@@ -131,3 +131,13 @@ export function eigenvalues(a: readonly (readonly number[])[]): Complex[] {
 export function modulus(z: Complex): number {
   return Math.hypot(z.re, z.im);
 }
+
+/** An eigenvalue with its modulus: below 1 the direction contracts. */
+export interface Eigenvalue extends Complex {
+  modulus: number;
+}
+
+/** Eigenvalues of a real square matrix with their moduli, largest modulus first. */
+export function eigenvaluesWithModulus(a: readonly (readonly number[])[]): Eigenvalue[] {
+  return eigenvalues(a).map((z) => ({ re: z.re, im: z.im, modulus: modulus(z) }));
+}

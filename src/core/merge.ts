@@ -45,6 +45,21 @@ const ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<string, u
   },
 };
 
+// A lateral scenario's scan and basin have their own finishers and options (analysis/lateral-*.ts).
+const LATERAL_FINISHERS: Record<string, () => Promise<Finisher>> = {
+  basin: async () => (await import('./analysis/lateral-basin.js')).finishLateralBasinMerge as unknown as Finisher,
+  scan: async () => (await import('./analysis/lateral-scan.js')).finishLateralScanMerge as unknown as Finisher,
+  recover: FINISHERS.recover,
+};
+const LATERAL_ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<string, unknown>) => Promise<number>> = {
+  basin: async (_scenario, options) => {
+    const { checkLateralBasinRun, lateralBasinCellCount } = await import('./analysis/lateral-basin.js');
+    return lateralBasinCellCount(checkLateralBasinRun(options));
+  },
+  scan: ITEM_COUNTS.scan,
+  recover: ITEM_COUNTS.recover,
+};
+
 export const MERGEABLE_COMMANDS: readonly string[] = Object.keys(FINISHERS);
 
 export interface MergedResult {
@@ -68,7 +83,9 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
   // scenario and the number of items its options give, which every claim of the files must match.
   const first = parts[0];
   const command = first.partial.command;
-  const load = Object.hasOwn(FINISHERS, command) ? FINISHERS[command] : undefined;
+  const lateral = modelKindOf(first.partial.scenario) === 'lateral';
+  const finishers = lateral ? LATERAL_FINISHERS : FINISHERS;
+  const load = Object.hasOwn(finishers, command) ? finishers[command] : undefined;
   if (!load) {
     throw new InputError([
       { path: `${first.source}: command`, expected: `a command that can be merged (${MERGEABLE_COMMANDS.join(', ')})`, found: describeFound(command) },
@@ -87,7 +104,7 @@ export async function mergePartials(parts: { source: string; partial: PartialRes
       : parseScenario(raw, { source: `${first.source}: scenario`, command: `merge (${command})` });
   let items: number;
   try {
-    items = await ITEM_COUNTS[command](scenario, first.partial.options);
+    items = await (lateral ? LATERAL_ITEM_COUNTS : ITEM_COUNTS)[command](scenario, first.partial.options);
   } catch (error) {
     if (error instanceof InputError) {
       // each field under options, named once (basin's checks already say options.heights, scan's

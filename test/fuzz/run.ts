@@ -38,13 +38,20 @@ export const PASSING: readonly Outcome[] = ['exit 0', 'exit 2', 'known issue'];
  * they are counted in the table under 'known issue' until fixed (then remove the entry: the
  * cases fail again if the fix is undone).
  */
-export const KNOWN_ISSUES: { name: string; matches: (detail: string) => boolean }[] = [
+export const KNOWN_ISSUES: { name: string; matches: (detail: string, fuzz: FuzzCase) => boolean }[] = [
   {
     // optimize writes constraints[].value and margin as null when the held-out rollouts completed
     // no stride (documented in objectives.ts), while the result schema (and so export) requires
     // finite numbers: export refuses the file optimize wrote, as if it were malformed.
     name: 'result file: unmeasured constraint written as null, refused by its own schema',
-    matches: (detail) => /not a valid result file \(data\/constraints\/\d+\/(value|margin) must be number\)/.test(detail),
+    matches: (detail) => /^(\(setup\) )?result\.json: not a valid result file \(data\/constraints\/\d+\/(value|margin) must be number\)/.test(detail),
+  },
+  {
+    // a leg damped at the bound (1e9 N s/m, a damping ratio of 1e5 and more) makes each stance
+    // stiff for the explicit integrator: every stride runs to the step limit (1e5 steps), and a
+    // map of 201 samples takes 30 to 60 s (deadbeat about 500 s: generate.ts leaves that out)
+    name: 'stance at a damping ratio of 1e5 and more runs to the step limit: slow',
+    matches: (detail, fuzz) => /^too slow/.test(detail) && fuzz.files.some((file) => /"leg_damping_N_s_per_m":\s*1000000000\b/.test(file.text ?? '')),
   },
 ];
 
@@ -162,7 +169,8 @@ function listing(dir: string): Map<string, string> {
   return out;
 }
 
-const MESSAGE_NAMES_SOMETHING = /expected|: unknown field|unknown (option|command)|--[a-z][a-z-]*|cannot read|invalid JSON|invalid input|no FILES given|is required|takes no value|needs a value|refus|over the .* limit/i;
+// a field path after the file (robot.json: start: ..., study.json: constraints.friction_coefficient: ...) names the field too
+const MESSAGE_NAMES_SOMETHING = /: [a-z_][\w.[\]]*: |expected|\bfound\b|: unknown field|unknown (option|command)|--[a-z][a-z-]*|cannot read|invalid JSON|invalid input|no FILES given|is required|takes no value|needs a value|refus|over the .* limit/i;
 
 interface RunResult {
   code: number | 'exception';
@@ -297,10 +305,14 @@ export async function runCase(fuzz: FuzzCase, root: string): Promise<CaseReport>
         else if (name.endsWith('.c') || name.endsWith('.h')) problem = cProblem(text, name);
         else if (/\bNaN\b|\bundefined\b|(?<![\w.])Infinity\b/.test(text)) problem = `${name} holds NaN, undefined or Infinity`;
         if (problem) {
-          const known = KNOWN_ISSUES.find((issue) => issue.matches(problem));
+          const known = KNOWN_ISSUES.find((issue) => issue.matches(problem, fuzz));
           return { ...report(known ? 'known issue' : 'bad output', seconds, `${known ? `${known.name}: ` : ''}${problem}\n    pronk ${args.join(' ')}`), variant };
         }
       }
+    }
+    if (verdict.outcome === 'too slow') {
+      const known = KNOWN_ISSUES.find((issue) => issue.matches(`too slow: ${verdict.detail}`, fuzz));
+      if (known) return { ...report('known issue', seconds, `${known.name}: ${verdict.detail}`), variant };
     }
     return { ...report(verdict.outcome, seconds, verdict.detail), variant };
   } finally {

@@ -37,7 +37,7 @@ import {
 } from '../models/biped.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { attackAtApexDeg } from '../scenario.js';
-import { type Eigenvalue, eigenvalues } from './eigen.js';
+import { type Eigenvalue, eigenvaluesWithModulus as eigenvalues } from '../eigen.js';
 
 const DEG = Math.PI / 180;
 

@@ -420,6 +420,49 @@ export async function scanShard(scenario: Scenario, options: ScanOptions, shard:
   };
 }
 
+// Every field of a cell as a run writes it, so that a row edited in a partial result is refused
+// rather than printed (a stable apex of "NaN" was merged as it stood).
+const SCAN_CLASSES = new Set<unknown>(['none', 'unstable', 'stable']);
+function isScanCell(value: unknown, index: number, xValues: readonly number[], yValues: readonly number[]): value is ScanCell {
+  const nx = xValues.length;
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) return false;
+  const row = value as Record<string, unknown>;
+  const finite = (x: unknown) => typeof x === 'number' && Number.isFinite(x);
+  const finiteOrNull = (x: unknown) => x === null || finite(x);
+  const isBoolean = (x: unknown) => typeof x === 'boolean';
+  const fixedPointsOk =
+    Array.isArray(row.fixed_points) &&
+    row.fixed_points.every((point: unknown) => {
+      if (typeof point !== 'object' || point === null) return false;
+      const p = point as Record<string, unknown>;
+      // a two-leg cell's fixed point has a spectral radius and an offset instead of a slope
+      const spectral = p.spectral_radius !== undefined;
+      const measure = spectral
+        ? p.slope === null && p.slope_error === null && finite(p.spectral_radius) && finite(p.offset_m)
+        : finite(p.slope) && finite(p.slope_error);
+      return finite(p.apex_height_m) && finite(p.forward_speed_m_per_s) && measure && isBoolean(p.stable);
+    });
+  const spectralOk = row.stable_spectral_radius === undefined || finiteOrNull(row.stable_spectral_radius);
+  const stableMeasure = row.stable_spectral_radius === undefined ? row.stable_slope : row.stable_spectral_radius;
+  return (
+    row.index === index &&
+    row.ix === index % nx &&
+    row.iy === Math.floor(index / nx) &&
+    row.x === xValues[index % nx] &&
+    row.y === yValues[Math.floor(index / nx)] &&
+    finite(row.energy_J) &&
+    SCAN_CLASSES.has(row.class) &&
+    finiteOrNull(row.stable_apex_height_m) &&
+    finiteOrNull(row.stable_slope) &&
+    spectralOk &&
+    (row.stable_apex_height_m === null) === (stableMeasure === null) &&
+    fixedPointsOk &&
+    isBoolean(row.energy_conserving) &&
+    isBoolean(row.domain_empty) &&
+    isBoolean(row.identity_map)
+  );
+}
+
 /**
  * The scan result from all rows (one machine's, or every shard's joined in order): exactly what
  * `pronk scan --json` prints. `scenario` and `options` may come straight from a partial result.
@@ -431,10 +474,7 @@ export async function finishScan(scenario: unknown, options: unknown, rowsGiven:
   const yValues = axisValues(normalized.y);
   const total = xValues.length * yValues.length;
   const rows = rowsGiven as readonly ScanCell[];
-  const classes = new Set<unknown>(['none', 'unstable', 'stable']);
-  const bad = rows.findIndex(
-    (row, i) => typeof row !== 'object' || row === null || row.index !== i || !classes.has(row.class) || !Number.isFinite(row.energy_J),
-  );
+  const bad = rows.findIndex((row, i) => !isScanCell(row, i, xValues, yValues));
   if (rows.length !== total || bad >= 0) {
     throw new InputError([
       {
