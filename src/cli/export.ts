@@ -3,11 +3,11 @@
 // a policy written as tables firmware can run (src/core/export/).
 
 import { InputError, describeFound } from '../core/errors.js';
-import { jsonText, modelHeader } from '../core/json-output.js';
+import { LATERAL_HEADER, jsonText, modelHeader } from '../core/json-output.js';
 import { buildExport, describeGrid, EXPORT_CAUTION, T_MAX_RANGE_S, type PolicyExport } from '../core/export/build.js';
 import { checkPrefix, defaultPrefix, isCSourceOf, writeC } from '../core/export/c99.js';
 import { writeCsv } from '../core/export/csv.js';
-import { readExportSource } from '../core/export/input.js';
+import { looksLikeResult, readExportSource } from '../core/export/input.js';
 import { writeJson } from '../core/export/json.js';
 import { hex32 } from '../core/export/lookup.js';
 import { MAX_POINTS, type GridRequest } from '../core/export/sample.js';
@@ -174,6 +174,13 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
     [{ path: file, what: 'the input file' }],
     { force: flags.force, source: SOURCE },
   );
+  // a lateral scenario: the chosen values, no tables (src/core/export/lateral.ts)
+  const { readInputFile } = await import('../core/input-file.js');
+  const { modelKindOf } = await import('../core/models/kind.js');
+  const raw = await readInputFile(file, 'result or scenario file');
+  if (!looksLikeResult(raw) && modelKindOf(raw, file) === 'lateral') {
+    return exportLateral(raw, file, flags, outputs, headerName, io, json);
+  }
   const source = await readExportSource(file);
   let exported: PolicyExport;
   try {
@@ -282,4 +289,66 @@ export function renderExport(e: PolicyExport, format: Format, written: Written[]
     wrap(EXPORT_CAUTION, TEXT_WIDTH, 'Caution: ', '  '),
     '',
   ].join('\n');
+}
+
+// The lateral leg-spring export: values only (its policy has no schedule to tabulate).
+async function exportLateral(
+  raw: unknown,
+  file: string,
+  flags: ExportFlags,
+  outputs: Awaited<ReturnType<typeof checkOutputs>>,
+  headerName: string,
+  io: CliIO,
+  json: boolean,
+): Promise<number> {
+  const tableOptions: [string, boolean][] = [
+    ['--points', flags.grid?.by === 'points'],
+    ['--max-error', flags.grid?.by === 'max_error'],
+    ['--uniform', flags.uniform],
+    ['--t-max', flags.tMax !== undefined],
+    ['--legs', flags.legs !== undefined],
+  ];
+  for (const [option, given] of tableOptions) {
+    if (given) throw issue(option, 'none with a "lateral" scenario (its export writes the chosen values: no tables, no grid)', option);
+  }
+  const { parseLateralScenario } = await import('../core/models/lateral.js');
+  const { buildLateralExport, writeLateralC, writeLateralCsv, writeLateralJson } = await import('../core/export/lateral.js');
+  const scenario = parseLateralScenario(raw, { source: file });
+  const e = await buildLateralExport(scenario, file, raw);
+  const prefix = flags.format === 'c' ? (flags.prefix ?? defaultPrefix(scenario.name)) : undefined;
+  const files: { text: string; contents: string }[] = [];
+  if (flags.format === 'c') {
+    const c = writeLateralC(e, prefix!, headerName);
+    files.push({ text: c.header, contents: 'C99 header: the values as macros, caution, provenance, units' });
+    files.push({ text: c.source, contents: 'C99 source: the float32 values and their checksum' });
+  } else if (flags.format === 'json') {
+    files.push({ text: writeLateralJson(e), contents: 'JSON (format pronk-policy, model lateral): the values in float64 and float32, provenance' });
+  } else {
+    files.push({ text: writeLateralCsv(e), contents: 'CSV: one row per value, float64 and float32, # comment lines' });
+  }
+  await writeOutputs(files.map((f, i) => ({ output: outputs[i]!, text: f.text })), { source: SOURCE });
+  const written: Written[] = files.map((f, i) => ({ path: outputs[i]!.path, bytes: Buffer.byteLength(f.text, 'utf8'), contents: f.contents }));
+  const report = {
+    file_format: flags.format,
+    written,
+    ...(prefix === undefined ? {} : { prefix }),
+    source: { file, kind: 'scenario', result_sha256: e.provenance.result_sha256, scenario_sha256: e.provenance.scenario_sha256 },
+    values: Object.fromEntries(e.values.map((v) => [v.name.toLowerCase(), v.float32])),
+    checksum_crc32: hex32(e.crc32),
+    caution: e.caution,
+  };
+  if (json) io.stdout.write(jsonText('export', report, LATERAL_HEADER));
+  else {
+    io.stdout.write(
+      [
+        `Exported the lateral values of ${JSON.stringify(e.name)} (${flags.format}): ${written.map((w) => `${w.path} (${w.bytes} bytes)`).join(', ')}`,
+        ...e.values.map((v) => `  ${v.name.toLowerCase().padEnd(34)} ${String(Number(v.float32.toPrecision(9))).padStart(14)} ${v.unit}`),
+        `  values CRC-32 ${hex32(e.crc32)}`,
+        '',
+        wrap(e.caution, TEXT_WIDTH, 'Caution: ', '  '),
+        '',
+      ].join('\n'),
+    );
+  }
+  return 0;
 }

@@ -23,7 +23,7 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   // commands that take a study or result file rather than a scenario: listed for the hint below
   deadbeat: ['slip'],
   optimize: ['slip', 'biped'],
-  export: ['slip', 'biped'],
+  export: ['slip', 'biped', 'lateral'],
 };
 
 /** The commands that run a scenario of this kind, for a refusal's message. */

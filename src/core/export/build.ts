@@ -108,13 +108,13 @@ export const FLOAT32_MIN_NORMAL = 2 ** -126;
 /** 90 deg in radians, as float32 (it rounds up: 1.57079637 > pi/2). */
 const RIGHT_ANGLE_RAD_F32 = Math.fround(Math.PI / 2);
 
-type Sign = 'positive' | 'non-negative' | 'any';
+export type Sign = 'positive' | 'non-negative' | 'any';
 
 /**
  * What is wrong with one exported number, or null: `value` is the float64 value (in `unit`),
  * `f32` the float32 the C holds (for the attack angle: in radians).
  */
-function numberProblem(value: number, f32: number, sign: Sign, unit: string): { expected: string; found: string } | null {
+export function numberProblem(value: number, f32: number, sign: Sign, unit: string): { expected: string; found: string } | null {
   const u = unit === '' ? '' : ` ${unit}`;
   const range = sign === 'positive' ? 'a number > 0' : sign === 'non-negative' ? 'a number >= 0' : 'a number';
   const expected = `${range} that float32 holds (finite; ${sign === 'positive' ? '' : '0 or '}at least ${show(FLOAT32_MIN_NORMAL)} in magnitude)`;

@@ -72,11 +72,11 @@ function commentSafe(text: string): string {
   return text.replace(/\*\//g, '* /').replace(/\?\?/g, '? ?').replace(/[\r\n\t]+/g, ' ');
 }
 
-function block(lines: readonly string[]): string {
+export function block(lines: readonly string[]): string {
   return ['/*', ...lines.map((l) => (l === '' ? ' *' : ` * ${commentSafe(l)}`)), ' */'].join('\n');
 }
 
-const WIDTH = 96;
+export const WIDTH = 96;
 
 /** The last component of a path. */
 export function baseName(path: string): string {
