@@ -5,6 +5,7 @@
 // 2.5 g, moment of inertia 2.04e-7 kg m^2, leg about 1.27 cm, stiffness about 3.5 N/m, touchdown
 // angle about 1 rad, speed about 0.2–0.3 m/s; from memory). These numbers are inputs only, never
 // check values: every check below is a law, a closed form, or a sign the paper reports.
+import { commandsRunning } from '../src/cli/scenario-argument.js';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -564,7 +565,9 @@ describe('every command on the lateral demo', () => {
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
       const kinds = cmd === 'deadbeat' ? '"slip"' : '"slip" and "biped"';
-      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${kinds}, found "lateral"; pronk simulate, map, scan, basin, recover run a "lateral" scenario`);
+      expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${kinds}, found "lateral"; pronk ${commandsRunning('lateral').join(', ')} run a "lateral" scenario`);
+      // the list is the commands' own table: every command that runs a lateral scenario is in it
+      expect(commandsRunning('lateral')).toEqual(expect.arrayContaining(['simulate', 'map', 'scan', 'basin', 'recover']));
     });
   }
 });
