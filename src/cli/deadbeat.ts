@@ -14,6 +14,7 @@ import { startProgress, type Progress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { decimalNumber } from '../core/decimal.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
@@ -218,7 +219,7 @@ export function parseRangeOption(
 ): [number, number] | undefined {
   if (value === undefined) return undefined;
   const parts = typeof value === 'string' ? value.split(':') : [];
-  const numbers = parts.map((p) => (p.trim() === '' ? NaN : Number(p)));
+  const numbers = parts.map(decimalNumber);
   const good = numbers.length === 2 && numbers.every(Number.isFinite) && numbers[0] < numbers[1] && ok(numbers[0], numbers[1]);
   if (!good) throw new InputError([{ path: flag, expected, found: describeFound(value) }], { source: SOURCE });
   return [numbers[0], numbers[1]];

@@ -268,7 +268,7 @@ export function jsonTextOf(random: Random, value: Json, broken: boolean): { text
 type OptionPool = { valid: string[]; bad: string[] };
 
 const INTEGER_BAD = ['0', '-1', '1.5', 'abc', '', ' ', '1e3', '99999999999999999999', 'NaN', 'Infinity', '0x10', '--'];
-const NUMBER_BAD = ['abc', '', 'NaN', 'Infinity', '-Infinity', '1e309', '--1', '1,5'];
+const NUMBER_BAD = ['abc', '', 'NaN', 'Infinity', '-Infinity', '1e309', '--1', '1,5', '0x10', '1_000', ' 5'];
 
 const POOLS: Record<string, OptionPool> = {
   strides: { valid: ['1', '3', '8'], bad: [...INTEGER_BAD, '1000001'] },
