@@ -164,6 +164,8 @@ describe('pronk deadbeat', () => {
     [['--ground=-0.1:0.1', '--compare', '--sigma=-1'], /--sigma: expected a finite number >= 0/],
     [['--ground=-0.1:0.1', '--compare', '--rate-range=5:1'], /--rate-range: expected two rates/],
     [['--ground=-0.1:0.1', '--after', '0'], /--after: expected an integer from 1/],
+    // bounded so that a run finishes in bounded time: 999999 strides after each step ran about 20 minutes
+    [['--ground=-0.1:0.1', '--after', '999999'], /--after: expected an integer from 1 to 1000, found "999999"/],
     [['--ground', '-0.1:0.1'], /--ground needs a value.*--ground=-0\.1:0\.1/],
     [['--grond=-0.1:0.1'], /unknown option --grond.*did you mean --ground/],
   ])('pronk deadbeat FILE %j exits 2 naming the option', (args, message) => {

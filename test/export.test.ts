@@ -16,7 +16,7 @@ import { parseResult, scenarioSource, type ExportSource } from '../src/core/expo
 import { readPolicyTables, writeJson } from '../src/core/export/json.js';
 import { crc32, crc32Float32, float32Bytes, lookupFloat32, nextFloat32 } from '../src/core/export/lookup.js';
 import { DEG, chooseGrid, checkTimes, float64Error, latestTouchdownS, tableSpecs, timeAxis } from '../src/core/export/sample.js';
-import { InputError } from '../src/core/errors.js';
+import { InputError, formatIssues } from '../src/core/errors.js';
 import { parseScenario } from '../src/core/scenario.js';
 import { contentHash, PRONK_VERSION } from '../src/core/version.js';
 
@@ -316,6 +316,41 @@ describe('refusals and --force', () => {
     expect(buildExport(clean).forced).toBe(false);
     expect(clean.provenance.scenario_sha256_matches).toBe(true);
   });
+
+  it('reads a result whose constraint was not measured (value and margin null, as optimize writes them) and refuses to export it, even with --force', async () => {
+    const scenario = parseScenario(scenarioWith(clampedRetraction));
+    const result = {
+      format: 'pronk-result',
+      format_version: 1,
+      kind: 'optimization',
+      scenario,
+      policy: scenario.policy,
+      // objectives.ts: a constraint measured on rollouts whose held-out strides all failed has
+      // value, margin and margin_percent null
+      constraints: [
+        { name: 'max_compression_m', value: 0.1, limit: 0.2, margin: 0.1 },
+        { name: 'peak_leg_force_N', value: null, limit: 2400, margin: null, margin_percent: null },
+      ],
+      provenance: { pronk_version: '0.0.9', scenario_sha256: await contentHash(scenario), date: '2026-01-01T00:00:00Z' },
+    };
+    const src = await parseResult(result, 'result.json');
+    expect(src.constraints?.[1].value).toBeNull();
+    let refusal: InputError | undefined;
+    try {
+      buildExport(src);
+    } catch (error) {
+      refusal = error as InputError;
+    }
+    expect(refusal).toBeInstanceOf(InputError);
+    const text = formatIssues(refusal!.issues, refusal!.source);
+    expect(text).toContain('result.json: constraints[1]: constraint "peak_leg_force_N" was not measured (value null): no held-out stride completed');
+    expect(text).toContain('a policy that never completes a stride is not exported (--force does not write it)');
+    expect(messages(() => buildExport(src, { force: true })).join('\n')).toContain('"peak_leg_force_N" was not measured');
+    // value and margin go together: one without the other is a malformed file
+    await expect(parseResult({ ...result, constraints: [{ name: 'x', value: null, limit: 1, margin: 0.5 }] }, 'result.json')).rejects.toThrow(
+      /constraints\[0\]\.margin: expected null exactly when value is null/,
+    );
+  });
 });
 
 describe('result files', () => {
@@ -346,7 +381,7 @@ describe('result files', () => {
     expect(await problemsOf({ ...good, kind: 'basin' })).toBe('r.json: kind: expected one of optimization, deadbeat, found "basin"');
     expect(await problemsOf({ ...good, format: 'pronk-partial' })).toMatch(/^r\.json: format: expected "pronk-result" \(a result file; a scenario file has no format field\), found "pronk-partial"$/);
     expect(await problemsOf({ ...good, constraints: [{ name: 'x', value: 1, limit: 2, margin: 'big' }] })).toBe(
-      'r.json: constraints[0].margin: expected a finite number (>= 0 when the constraint holds), found "big"',
+      'r.json: constraints[0].margin: expected a finite number (>= 0 when the constraint holds), or null when nothing was measured, found "big"',
     );
     expect(await problemsOf({ ...good, provenance: { ...good.provenance, scenario_sha256: 'abc' } })).toBe(
       'r.json: provenance.scenario_sha256: expected a SHA-256 in hex (64 characters), found "abc"',

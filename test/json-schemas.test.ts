@@ -189,6 +189,11 @@ describe('result files: the schema and the export reader agree', async () => {
     expect(schemaAccepts('result', result), JSON.stringify(validators.result.errors)).toBe(true);
     expect(await pronkAccepts('result', result)).toBe(true);
   });
+  it('both accept a result whose constraint was not measured (null value and margin, as pronk optimize writes it)', async () => {
+    const unmeasured = edited(edited(result, ['constraints', 0, 'value'], null), ['constraints', 0, 'margin'], null);
+    expect(schemaAccepts('result', unmeasured), JSON.stringify(validators.result.errors)).toBe(true);
+    expect(await pronkAccepts('result', unmeasured)).toBe(true);
+  });
   const bad: [string, unknown][] = [
     ['another format', edited(result, ['format'], 'pronk-results')],
     ['a newer format version', edited(result, ['format_version'], 2)],

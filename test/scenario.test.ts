@@ -10,6 +10,7 @@ import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
   DEFAULT_RELATIVE_TOLERANCE,
+  MAX_DAMPING_RATIO,
   attackAtApexDeg,
   demoScenario,
   locateJsonSyntaxError,
@@ -255,6 +256,8 @@ describe('physical bounds: every number in a stated range, so the physics stays 
       let base: unknown = CONTRACT_EXAMPLE;
       if (path[1] === 'apex_height_m' && value < 0) base = edited(['terrain'], { kind: 'steps', ground_heights_m: [-1e4] });
       if (path[1] === 'leg_length_m') base = edited(['start', 'apex_height_m'], 1000); // a 100 m leg needs a higher apex
+      // 1e9 N s/m is a damping ratio of 0.5 only on the heaviest, stiffest body (MAX_DAMPING_RATIO)
+      if (path[1] === 'leg_damping_N_s_per_m') base = edited(['body'], { ...CONTRACT_EXAMPLE.body, mass_kg: 1e6, leg_stiffness_N_per_m: 1e12 });
       return parseScenario(edited(path, value, base));
     };
     if (path[1] !== 'apex_height_m') expect(() => accepted(low)).not.toThrow();
@@ -506,5 +509,50 @@ describe('reading scenario files', () => {
     for (const text of ['{}', '[]', ' 0 ', '-1.5e+3', '"\\u00e9\\n"', '{"a": [true, false, null, {"b": "c"}]}', JSON.stringify(CONTRACT_EXAMPLE)]) {
       expect(locateJsonSyntaxError(text)).toBeNull();
     }
+  });
+});
+
+describe('leg damping ratio at most MAX_DAMPING_RATIO', () => {
+  // damping ratio zeta = c / (2 sqrt(k m)) of a mass on a spring and a damper (textbook definition,
+  // common practice); the contract example has m = 80 kg, k = 20 kN/m: sqrt(k m) = 1264.91 N s/m
+  const critical = 2 * Math.sqrt(20000 * 80); // 2529.82 N s/m, zeta = 1
+  it('accepts a ratio of 100 and refuses one above, naming damping, stiffness, mass and the ratio found', () => {
+    expect(MAX_DAMPING_RATIO).toBe(100);
+    expect(() => parseScenario(edited(['body', 'leg_damping_N_s_per_m'], 100 * critical))).not.toThrow();
+    const lines = issueLines(edited(['body', 'leg_damping_N_s_per_m'], 1e9)); // the field's own bound: zeta 3.95e5
+    expect(lines).toEqual([
+      'body.leg_damping_N_s_per_m: expected a damping ratio c / (2 sqrt(k m)) of at most 100 (a leg far past critical damping is not a ' +
+        'spring leg, and its stances take steps in proportion to the ratio): at most 2.52982e5 N s/m with body.leg_stiffness_N_per_m = ' +
+        '2e4 N/m and body.mass_kg = 80 kg (the value found is a damping ratio of 3.95e5), found 1000000000',
+    ]);
+    expect(issueLines(edited(['body', 'leg_damping_N_s_per_m'], 101 * critical))[0]).toMatch(/damping ratio of 101\)/);
+  });
+
+  it('uses the softest stiffness the policy sets: split and time-table columns', () => {
+    const damped = edited(['body', 'leg_damping_N_s_per_m'], 100 * critical);
+    const split = edited(['policy', 'stiffness'], { kind: 'split', compression_N_per_m: 20000, extension_N_per_m: 5000 }, damped);
+    // k = 5000: sqrt(20000/5000) = 2 times the ratio of the body's stiffness
+    expect(issueLines(split)[0]).toMatch(/with policy\.stiffness\.extension_N_per_m = 5000 N\/m .*ratio of 200\)/);
+    const table = edited(['policy', 'stiffness'], { kind: 'time_table', time_since_apex_s: [0, 0.1], compression_N_per_m: [20000, 1250], extension_N_per_m: [20000, 20000] }, damped);
+    expect(issueLines(table)[0]).toMatch(/with policy\.stiffness\.compression_N_per_m\[1\] = 1250 N\/m .*ratio of 400\)/);
+  });
+
+  it('checks each leg of a two-leg scenario with its own damping and stiffness scale', () => {
+    const biped = {
+      ...CONTRACT_EXAMPLE,
+      model: 'biped',
+      body: { ...CONTRACT_EXAMPLE.body, leg_damping_N_s_per_m: 50 },
+      start: { gait: 'running', apex_height_m: 1, forward_speed_m_per_s: 5 },
+      legs: { right: { stiffness_scale: 0.25, leg_damping_N_s_per_m: 100 * critical } },
+    };
+    // right leg: k = 0.25 * 20 kN/m, the ratio doubles to 200
+    expect(issueLines(biped)).toEqual([
+      expect.stringMatching(
+        /^legs\.right\.leg_damping_N_s_per_m: expected a damping ratio .* at most 100 .* with body\.leg_stiffness_N_per_m = 2e4 N\/m times legs\.right\.stiffness_scale = 0\.25 and body\.mass_kg = 80 kg \(the value found is a damping ratio of 200\), found 252982/,
+      ),
+    ]);
+    expect(() => parseScenario({ ...biped, legs: { right: { stiffness_scale: 1, leg_damping_N_s_per_m: 100 * critical } } })).not.toThrow();
+    // inherited by both legs from the body: one issue, on the body's field
+    expect(issueLines({ ...biped, body: { ...biped.body, leg_damping_N_s_per_m: 1e9 }, legs: {} })).toEqual([expect.stringMatching(/^body\.leg_damping_N_s_per_m: expected a damping ratio/)]);
   });
 });

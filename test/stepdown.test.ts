@@ -193,6 +193,8 @@ describe('bad input', () => {
   it.each<[Record<string, number>, string]>([
     [{ after: 0 }, 'after'],
     [{ after: 2.5 }, 'after'],
+    [{ after: 1001 }, 'after'], // MAX_AFTER: the work is bounded
+    [{ settle_strides: 100_001 }, 'settle_strides'],
     [{ resolution_m: 0 }, 'resolution_m'],
     [{ resolution_m: NaN }, 'resolution_m'],
     [{ resolution_m: 0.5 }, 'resolution_m'],
@@ -244,14 +246,18 @@ describe('pronk stepdown', () => {
   });
 
   it.each<[string[], RegExp]>([
-    [['--after', '0'], /^pronk stepdown: --after: expected an integer from 1 to 999999, found "0"$/],
-    [['--after', 'ten'], /--after: expected an integer from 1 to 999999, found "ten"/],
-    [['--after', '2.5'], /--after: expected an integer from 1 to 999999, found "2.5"/],
+    [['--after', '0'], /^pronk stepdown: --after: expected an integer from 1 to 1000, found "0"$/],
+    [['--after', 'ten'], /--after: expected an integer from 1 to 1000, found "ten"/],
+    [['--after', '2.5'], /--after: expected an integer from 1 to 1000, found "2.5"/],
     [['--resolution', '0'], /--resolution: expected a step size > 0 \(m\), found "0"/],
     [['--resolution', 'fine'], /--resolution: expected a step size > 0 \(m\), found "fine"/],
     [['--resolution', '0.5'], /--resolution: expected a step size from/],
     [['--grid', '0'], /--grid: expected a spacing > 0/],
     [['--settle-strides', '0'], /--settle-strides: expected an integer from 2/],
+    // bounded so that a run finishes in seconds: 999999 strides after the step ran past 300 s
+    [['--after', '999999'], /^pronk stepdown: --after: expected an integer from 1 to 1000, found "999999"$/],
+    [['--after', '1001'], /--after: expected an integer from 1 to 1000, found "1001"/],
+    [['--settle-strides', '1000000'], /--settle-strides: expected an integer from 2 to 100000, found "1000000"/],
     [['--settle-band=-1'], /--settle-band: expected a band > 0/],
   ])('stepdown FILE %j exits 2 naming the option', async (args, message) => {
     const run = await pronk(['stepdown', file, ...args]);

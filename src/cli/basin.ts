@@ -10,7 +10,8 @@ import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { parseIntegerOption } from './options.js';
+import { decimalDigits, decimalNumber } from '../core/decimal.js';
+import { expectedDecimal, parseIntegerOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
@@ -177,10 +178,12 @@ export function parseAxisOption(value: string | boolean | undefined, option: str
   const parts = text.split(':');
   const bad = (expected: string) => new InputError([{ path: option, expected, found: describeFound(value) }], { source: SOURCE });
   const shape = `lo:hi:n (e.g. ${unit === 'm' ? '0.9:1.5:41' : '3:7:41'}), n values from lo to hi ${unit} inclusive`;
-  if (parts.length !== 3 || parts.some((part) => part.trim() === '')) throw bad(shape);
-  const [low, high, n] = parts.map((part) => Number(part.trim()));
-  if (!Number.isFinite(low) || !Number.isFinite(high)) throw bad(`${shape}, with lo and hi finite numbers`);
-  if (!/^\s*\+?\d+\s*$/.test(parts[2])) throw bad(`${shape}, with n a whole number >= 1`);
+  if (parts.length !== 3 || parts.some((part) => part === '')) throw bad(shape);
+  const low = decimalNumber(parts[0]);
+  const high = decimalNumber(parts[1]);
+  const n = decimalDigits(parts[2]);
+  if (!Number.isFinite(low) || !Number.isFinite(high)) throw bad(`${shape}, with lo and hi finite numbers written in decimal`);
+  if (!Number.isSafeInteger(n)) throw bad(`${shape}, with n a whole number >= 1 in decimal digits`);
   if (n < 1) throw bad(`${shape}, with n >= 1 (n = 0 is an empty grid)`);
   if (low > high) throw bad(`${shape}, with lo <= hi (the range is inverted)`);
   if (atLeast !== undefined && low < atLeast) throw bad(`${shape}, with lo >= ${atLeast} ${unit}`);
@@ -191,9 +194,9 @@ export function parseAxisOption(value: string | boolean | undefined, option: str
 
 function parseToleranceOption(value: string | boolean | undefined): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
-  const tolerance = Number(value);
-  if (value.trim() === '' || !Number.isFinite(tolerance) || !(tolerance > 0)) {
-    throw new InputError([{ path: '--tolerance', expected: 'a number > 0 (m in height, m/s in speed)', found: describeFound(value) }], { source: SOURCE });
+  const tolerance = decimalNumber(value);
+  if (!Number.isFinite(tolerance) || !(tolerance > 0)) {
+    throw new InputError([{ path: '--tolerance', expected: expectedDecimal('a number > 0 (m in height, m/s in speed)', value), found: describeFound(value) }], { source: SOURCE });
   }
   return tolerance;
 }

@@ -11,9 +11,11 @@ import { InputError, describeFound } from '../core/errors.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText } from '../core/json-output.js';
 import { startProgress, type Progress } from './progress.js';
-import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
+import type { Scenario } from '../core/scenario.js';
+import { MAX_AFTER } from '../core/analysis/stepdown.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import { decimalNumber } from '../core/decimal.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
@@ -116,7 +118,7 @@ export const deadbeatCommand: Command = {
     after: {
       type: 'string',
       valueName: 'N',
-      description: 'strides to survive after a permanent step, in the step check and the comparison (default 20)',
+      description: `strides to survive after a permanent step, in the step check and the comparison, 1 to ${MAX_AFTER} (default 20)`,
     },
     'rate-range': {
       type: 'string',
@@ -181,7 +183,7 @@ export function parseDeadbeatFlags(values: ParsedCommandLine['values']): Flags {
   const sigma = parseNumberOption(values.sigma, '--sigma', 'a finite number >= 0 (m)', SOURCE, (v) => v >= 0);
   const rollouts = parseIntegerOption(values.rollouts, '--rollouts', 1, 10_000_000, SOURCE);
   const seed = parseIntegerOption(values.seed, '--seed', 0, Number.MAX_SAFE_INTEGER, SOURCE);
-  const after = parseIntegerOption(values.after, '--after', 1, MAX_STRIDES - 1, SOURCE);
+  const after = parseIntegerOption(values.after, '--after', 1, MAX_AFTER, SOURCE);
   const rateRange = parseRangeOption(values['rate-range'], '--rate-range', 'two rates LO:HI in deg/s with LO < HI (e.g. --rate-range=-100:300)');
   const workers = parseWorkers(values, SOURCE);
   const out = values.out;
@@ -218,7 +220,7 @@ export function parseRangeOption(
 ): [number, number] | undefined {
   if (value === undefined) return undefined;
   const parts = typeof value === 'string' ? value.split(':') : [];
-  const numbers = parts.map((p) => (p.trim() === '' ? NaN : Number(p)));
+  const numbers = parts.map(decimalNumber);
   const good = numbers.length === 2 && numbers.every(Number.isFinite) && numbers[0] < numbers[1] && ok(numbers[0], numbers[1]);
   if (!good) throw new InputError([{ path: flag, expected, found: describeFound(value) }], { source: SOURCE });
   return [numbers[0], numbers[1]];

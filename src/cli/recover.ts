@@ -2,7 +2,9 @@
 // lateral leg-spring scenario's periodic gait, one kick or Monte Carlo over random kicks.
 
 import { anyScenarioArgument } from './scenario-argument.js';
+import { decimalDigits, decimalNumber } from '../core/decimal.js';
 import { InputError, describeFound } from '../core/errors.js';
+import { expectedDecimal } from './options.js';
 import { LATERAL_HEADER, jsonText } from '../core/json-output.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult, RecoverTolerances, RecoveryResult } from '../core/analysis/recover.js';
@@ -68,19 +70,20 @@ export const recoverCommand: Command = {
 
 function numberOption(value: string | boolean | undefined, flag: string, low: number, high: number, unit: string): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
-  const x = Number(value);
-  if (value.trim() === '' || !Number.isFinite(x) || x < low || x > high) {
-    throw new InputError([{ path: flag, expected: `a number from ${low} to ${high} (${unit})`, found: describeFound(value) }], { source: SOURCE });
+  const x = decimalNumber(value);
+  if (!Number.isFinite(x) || x < low || x > high) {
+    throw new InputError([{ path: flag, expected: expectedDecimal(`a number from ${low} to ${high} (${unit})`, value), found: describeFound(value) }], { source: SOURCE });
   }
   return x;
 }
 
 function integerOption(value: string | boolean | undefined, flag: string, low: number, high: number): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
-  if (!/^\s*\+?\d+\s*$/.test(value) || Number(value) < low || Number(value) > high) {
-    throw new InputError([{ path: flag, expected: `an integer from ${low} to ${high}`, found: describeFound(value) }], { source: SOURCE });
+  const n = decimalDigits(value);
+  if (!(n >= low && n <= high)) {
+    throw new InputError([{ path: flag, expected: expectedDecimal(`an integer from ${low} to ${high}`, value, true), found: describeFound(value) }], { source: SOURCE });
   }
-  return Number(value);
+  return n;
 }
 
 async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {

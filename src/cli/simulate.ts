@@ -1,7 +1,9 @@
 // `pronk simulate [FILE] [--json] [--strides N] [--trace-interval S]`: one rollout of a scenario, shown stride by stride.
 
 import { anyScenarioArgument } from './scenario-argument.js';
+import { decimalDigits, decimalNumber } from '../core/decimal.js';
 import { InputError, describeFound } from '../core/errors.js';
+import { expectedDecimal } from './options.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import {
   MAX_STRIDES,
@@ -78,9 +80,9 @@ async function runSimulate({ values, positionals }: ParsedCommandLine, io: CliIO
 export function parseStridesOption(value: string | boolean | undefined): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
   const issue = (expected: string) =>
-    new InputError([{ path: '--strides', expected, found: describeFound(value) }], { source: 'pronk simulate' });
-  if (!/^\s*\+?\d+\s*$/.test(value) || Number(value) < 1) throw issue('a positive integer');
-  const strides = Number(value);
+    new InputError([{ path: '--strides', expected: expectedDecimal(expected, value, true), found: describeFound(value) }], { source: 'pronk simulate' });
+  const strides = decimalDigits(value);
+  if (!(strides >= 1)) throw issue('a positive integer');
   if (strides > MAX_STRIDES) throw issue(`a positive integer no larger than ${MAX_STRIDES}`);
   return strides;
 }
@@ -89,10 +91,10 @@ export function parseStridesOption(value: string | boolean | undefined): number 
 // any plot needs and keeps the sample buffer bounded).
 export function parseTraceIntervalOption(value: string | boolean | undefined): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
-  const interval = Number(value);
-  if (value.trim() === '' || !Number.isFinite(interval) || interval < 1e-5 || interval > 10) {
+  const interval = decimalNumber(value);
+  if (!Number.isFinite(interval) || interval < 1e-5 || interval > 10) {
     throw new InputError(
-      [{ path: '--trace-interval', expected: 'a time step in seconds from 1e-5 to 10', found: describeFound(value) }],
+      [{ path: '--trace-interval', expected: expectedDecimal('a time step in seconds from 1e-5 to 10', value), found: describeFound(value) }],
       { source: 'pronk simulate' },
     );
   }

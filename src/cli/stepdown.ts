@@ -4,10 +4,10 @@
 import { scenarioArgument } from './scenario-argument.js';
 import { InputError } from '../core/errors.js';
 import type { StepDirectionResult, StepToleranceOptionNames, StepToleranceResult } from '../core/analysis/stepdown.js';
-import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES, MAX_GRID_POINTS } from '../core/analysis/stepdown.js';
+import { DEFAULT_AFTER, DEFAULT_GRID_M, DEFAULT_RESOLUTION_M, DEFAULT_SETTLE_STRIDES, MAX_AFTER, MAX_GRID_POINTS, MAX_SETTLE_STRIDES } from '../core/analysis/stepdown.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText, modelHeader } from '../core/json-output.js';
-import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
+import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './main.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
@@ -36,13 +36,13 @@ export const stepdownCommand: Command = {
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
-    after: { type: 'string', valueName: 'N', description: `strides to survive after the one that meets the step (default ${DEFAULT_AFTER})` },
+    after: { type: 'string', valueName: 'N', description: `strides to survive after the one that meets the step, 1 to ${MAX_AFTER} (default ${DEFAULT_AFTER})` },
     resolution: { type: 'string', valueName: 'M', description: `resolution of the answer in metres (default ${DEFAULT_RESOLUTION_M})` },
     grid: { type: 'string', valueName: 'M', description: `spacing of the coarse scan in metres (default ${DEFAULT_GRID_M})` },
     'settle-strides': {
       type: 'string',
       valueName: 'N',
-      description: `length of the long run that finds the new fixed point after the largest steps (default ${DEFAULT_SETTLE_STRIDES})`,
+      description: `length of the long run that finds the new fixed point after the largest steps, 2 to ${MAX_SETTLE_STRIDES} (default ${DEFAULT_SETTLE_STRIDES})`,
     },
     'settle-band': { type: 'string', valueName: 'M', description: 'band about the new fixed point apex that counts as settled, m (default 0.001)' },
   },
@@ -52,11 +52,11 @@ export const stepdownCommand: Command = {
 
 async function runStepdown({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
   const json = values.json === true;
-  const after = parseIntegerOption(values.after, '--after', 1, MAX_STRIDES - 1, SOURCE);
+  const after = parseIntegerOption(values.after, '--after', 1, MAX_AFTER, SOURCE);
   const positive = (v: number) => v > 0;
   const resolution = parseNumberOption(values.resolution, '--resolution', 'a step size > 0 (m)', SOURCE, positive);
   const grid = parseNumberOption(values.grid, '--grid', 'a spacing > 0 (m)', SOURCE, positive);
-  const settleStrides = parseIntegerOption(values['settle-strides'], '--settle-strides', 2, MAX_STRIDES, SOURCE);
+  const settleStrides = parseIntegerOption(values['settle-strides'], '--settle-strides', 2, MAX_SETTLE_STRIDES, SOURCE);
   const settleBand = parseNumberOption(values['settle-band'], '--settle-band', 'a band > 0 (m)', SOURCE, positive);
   const file = positionals[0];
   const scenario = await scenarioArgument(file, io, 'stepdown');

@@ -277,7 +277,9 @@ const scenarioShape = {
 export const scenarioSchema = strictObject(
   scenarioShape,
   `a scenario object with ${fieldList(scenarioShape)}`,
-).superRefine(checkStartAboveTouchdown, always);
+)
+  .superRefine(checkStartAboveTouchdown, always)
+  .superRefine((value, ctx) => checkDampingRatios(value, ctx, [{ damping: ['body', 'leg_damping_N_s_per_m'] }]), always);
 
 /**
  * A validated scenario. The single-leg model's scenario has no "model" (or "slip"); other kinds
@@ -344,6 +346,85 @@ function checkStartAboveTouchdown(value: unknown, ctx: z.RefinementCtx): void {
     message: `> ${showAbove(touchdownHeight, apexHeight.data)} m (ground + leg length * sin(attack at apex))`,
     input: apexHeight.data,
   });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Cross-field check: a leg's damping ratio c / (2 sqrt(k m)) at most MAX_DAMPING_RATIO.
+
+/**
+ * The largest damping ratio c / (2 sqrt(k m)) a leg may have. Past critical damping (1) the stance
+ * has a fast mode of rate about 2 zeta omega beside the slow one, and the explicit stepper's steps per
+ * stance grow in proportion to zeta (stiffness of the ODE). Measured on a 2-core machine, `pronk map`
+ * of the demo (201 samples): 0.24 s undamped, 0.28 s at zeta 10, 0.50 s at 100, 1.35 s at 1000,
+ * 5.3 s at 1e4, and 16 to 60 s at the old damping bound (zeta 1e5 and more, every stance at the step
+ * limit). A leg at zeta 100 barely rebounds: it is a damper, not a spring leg, so nothing useful is lost.
+ */
+export const MAX_DAMPING_RATIO = 100;
+
+/** The softest stiffness the stiffness policy can give a leg, and the field that sets it. */
+function softestStiffness(value: unknown): { k: number; path: string } | undefined {
+  const policy = stiffnessPolicySchema.safeParse(valueAt(value, ['policy', 'stiffness']));
+  if (!policy.success) return undefined;
+  const p = policy.data;
+  if (p.kind === 'constant') {
+    const k = bodyShape.leg_stiffness_N_per_m.safeParse(valueAt(value, ['body', 'leg_stiffness_N_per_m']));
+    return k.success ? { k: k.data, path: 'body.leg_stiffness_N_per_m' } : undefined;
+  }
+  const columns =
+    p.kind === 'split'
+      ? ([['compression_N_per_m', [p.compression_N_per_m]], ['extension_N_per_m', [p.extension_N_per_m]]] as const)
+      : ([['compression_N_per_m', p.compression_N_per_m], ['extension_N_per_m', p.extension_N_per_m]] as const);
+  let best: { k: number; path: string } | undefined;
+  for (const [name, values] of columns) {
+    values.forEach((k, i) => {
+      if (best === undefined || k < best.k) best = { k, path: `policy.stiffness.${name}${p.kind === 'split' ? '' : `[${i}]`}` };
+    });
+  }
+  return best;
+}
+
+/** A leg to check: where its damping is (and, for a two-leg scenario, its stiffness scale). */
+export interface DampedLeg {
+  /** Path of the damping field that applies (the leg's own, or the body's it inherits). */
+  damping: (string | number)[];
+  /** Path and value of the leg's stiffness scale, when it has one. */
+  scale?: { path: string; value: number };
+}
+
+/**
+ * Refuses a damping whose ratio c / (2 sqrt(k m)) is above MAX_DAMPING_RATIO with the softest
+ * stiffness the policy gives the leg (the largest ratio), naming the damping, the stiffness and
+ * the mass, and the ratio found. One issue per damping field (its worst leg).
+ */
+export function checkDampingRatios(value: unknown, ctx: z.RefinementCtx, legs: readonly DampedLeg[]): void {
+  const mass = bodyShape.mass_kg.safeParse(valueAt(value, ['body', 'mass_kg']));
+  const softest = softestStiffness(value);
+  if (!mass.success || softest === undefined) return;
+  const worst = new Map<string, { ratio: number; leg: DampedLeg }>();
+  for (const leg of legs) {
+    const c = valueAt(value, leg.damping);
+    if (typeof c !== 'number' || !(c >= BOUNDS.damping_N_s_per_m.low && c <= BOUNDS.damping_N_s_per_m.high)) continue;
+    const k = softest.k * (leg.scale?.value ?? 1);
+    const ratio = c / (2 * Math.sqrt(k * mass.data));
+    const key = leg.damping.join('.');
+    if (ratio > MAX_DAMPING_RATIO && ratio > (worst.get(key)?.ratio ?? 0)) worst.set(key, { ratio, leg });
+  }
+  for (const { ratio, leg } of worst.values()) {
+    const k = softest.k * (leg.scale?.value ?? 1);
+    const stiffness = leg.scale
+      ? `${softest.path} = ${showNumber(softest.k)} N/m times ${leg.scale.path} = ${showNumber(leg.scale.value)}`
+      : `${softest.path} = ${showNumber(softest.k)} N/m`;
+    const cMax = Number((MAX_DAMPING_RATIO * 2 * Math.sqrt(k * mass.data)).toPrecision(6));
+    ctx.addIssue({
+      code: 'custom',
+      path: leg.damping as PropertyKey[],
+      message:
+        `a damping ratio c / (2 sqrt(k m)) of at most ${MAX_DAMPING_RATIO} (a leg far past critical damping is not a spring leg, and its ` +
+        `stances take steps in proportion to the ratio): at most ${showNumber(cMax)} N s/m with ${stiffness} and body.mass_kg = ` +
+        `${showNumber(mass.data)} kg (the value found is a damping ratio of ${showNumber(Number(ratio.toPrecision(3)))})`,
+      input: valueAt(value, leg.damping),
+    });
+  }
 }
 
 // `bound` rounded for display, with enough digits that it still reads as larger than `found`.

@@ -39,20 +39,6 @@ export const PASSING: readonly Outcome[] = ['exit 0', 'exit 2', 'known issue'];
  * cases fail again if the fix is undone).
  */
 export const KNOWN_ISSUES: { name: string; matches: (detail: string, fuzz: FuzzCase) => boolean }[] = [
-  {
-    // optimize writes constraints[].value and margin as null when the held-out rollouts completed
-    // no stride (documented in objectives.ts), while the result schema (and so export) requires
-    // finite numbers: export refuses the file optimize wrote, as if it were malformed.
-    name: 'result file: unmeasured constraint written as null, refused by its own schema',
-    matches: (detail) => /^(\(setup\) )?result\.json: not a valid result file \(data\/constraints\/\d+\/(value|margin) must be number\)/.test(detail),
-  },
-  {
-    // a leg damped at the bound (1e9 N s/m, a damping ratio of 1e5 and more) makes each stance
-    // stiff for the explicit integrator: every stride runs to the step limit (1e5 steps), and a
-    // map of 201 samples takes 30 to 60 s (deadbeat about 500 s: generate.ts leaves that out)
-    name: 'stance at a damping ratio of 1e5 and more runs to the step limit: slow',
-    matches: (detail, fuzz) => /^too slow/.test(detail) && fuzz.files.some((file) => /"leg_damping_N_s_per_m":\s*1000000000\b/.test(file.text ?? '')),
-  },
 ];
 
 export interface CaseReport {

@@ -12,6 +12,7 @@
 // finishScan(rows of all shards in order) is the one-machine result bit for bit.
 
 import * as L from '../../../assembly/layout.js';
+import { decimalDigits, decimalNumber } from '../decimal.js';
 import { InputError, closestName, describeFound } from '../errors.js';
 import { PARTIAL_FORMAT, PARTIAL_FORMAT_VERSION, shardRange, type PartialResult, type ShardSpec } from '../shard.js';
 import { SAFETY_CAUTION } from '../safety.js';
@@ -120,14 +121,14 @@ export function parseAxisOption(text: string, option: string): ScanAxis {
   const bad = (why: string) => new InputError([{ path: option, expected: `${expected}${why ? `; ${why}` : ''}`, found: describeFound(text) }]);
   const parts = text.split(':');
   if (parts.length !== 4) throw bad('');
-  const [path, loText, hiText, nText] = parts.map((p) => p.trim());
-  const number = (t: string) => (t === '' ? NaN : Number(t));
-  const lo = number(loText);
-  const hi = number(hiText);
-  const n = number(nText);
+  const [pathText, loText, hiText, nText] = parts;
+  const path = pathText.trim();
+  const lo = decimalNumber(loText);
+  const hi = decimalNumber(hiText);
+  const n = decimalDigits(nText);
   if (path === '') throw bad('the PATH is empty');
-  if (!Number.isFinite(lo) || !Number.isFinite(hi)) throw bad('lo and hi must be finite numbers');
-  if (!Number.isInteger(n) || n < 1) throw bad(`n must be an integer >= 1 (found ${nText || 'nothing'})`);
+  if (!Number.isFinite(lo) || !Number.isFinite(hi)) throw bad('lo and hi must be finite numbers written in decimal (e.g. 0.25, -3 or 1e-3)');
+  if (!Number.isSafeInteger(n) || n < 1) throw bad(`n must be an integer >= 1 in decimal digits (found ${nText ? JSON.stringify(nText) : 'nothing'})`);
   if (lo > hi) throw bad(`lo (${lo}) is above hi (${hi})`);
   if (n > 1 && lo === hi) throw bad(`lo equals hi (${lo}) with n = ${n}: use n = 1 for a single value`);
   return { path, lo, hi, n };

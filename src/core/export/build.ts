@@ -10,7 +10,10 @@
 //   speed >= 0) and, unless exactly 0 where 0 is allowed, at least the smallest normal float32
 //   (a subnormal is flushed to zero by many microcontrollers' FPUs, and a smaller value rounds to 0);
 // - a constraint of the result file with a negative margin: written with `force`, and every
-//   written file says so.
+//   written file says so;
+// - a constraint of the result file that was not measured (value and margin null: the held-out
+//   rollouts completed no stride), never written, not even with `force`: a policy that never
+//   completes a stride has nothing to show it holds any limit.
 // Each refusal is an InputError naming the number (table and index, or field and C macro), what was
 // expected and what was found.
 
@@ -95,12 +98,33 @@ export interface PolicyExport {
   caution: string;
 }
 
+/** Constraints the result file could not measure (value null), each an issue naming it. */
+function unmeasuredConstraints(source: ExportSource): InputIssue[] {
+  return (source.constraints ?? []).flatMap((c, i) =>
+    c.value === null || c.margin === null
+      ? [
+          {
+            path: `constraints[${i}]`,
+            expected: `a measured value for constraint ${JSON.stringify(c.name)} (limit ${show(c.limit)})`,
+            found: 'null',
+            message:
+              `constraint ${JSON.stringify(c.name)} was not measured (value null): no held-out stride completed, ` +
+              'so nothing shows the policy holds its limit; a policy that never completes a stride is not exported (--force does not write it)',
+          },
+        ]
+      : [],
+  );
+}
+
 const show = (x: number) => (Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x));
 
 function constraintProblems(source: ExportSource): string[] {
   return (source.constraints ?? [])
-    .filter((c) => c.margin < 0)
-    .map((c) => `constraint ${JSON.stringify(c.name)} is violated: value ${show(c.value)}, limit ${show(c.limit)}, margin ${show(c.margin)} (a negative margin)`);
+    .flatMap((c) =>
+      c.value !== null && c.margin !== null && c.margin < 0
+        ? [`constraint ${JSON.stringify(c.name)} is violated: value ${show(c.value)}, limit ${show(c.limit)}, margin ${show(c.margin)} (a negative margin)`]
+        : [],
+    );
 }
 
 /** The smallest normal float32, 2^-126 (IEEE 754 binary32). */
@@ -255,6 +279,8 @@ export function buildExport(source: ExportSource, options: ExportOptions = {}): 
     shown.push({ path: '', expected: '', found: '', message: 'nothing written: firmware must not run these numbers (--force does not write them)' });
     throw new InputError(shown, { source: source.file });
   }
+  const unmeasured = unmeasuredConstraints(source);
+  if (unmeasured.length) throw new InputError(unmeasured, { source: source.file });
   const problems = constraintProblems(source);
   const forced = problems.length > 0;
   if (forced && !options.force) {

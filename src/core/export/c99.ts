@@ -83,7 +83,9 @@ export function baseName(path: string): string {
   return path.split(/[\\/]/).pop() ?? path;
 }
 
-function fmt(x: number): string {
+// null: a constraint not measured (buildExport refuses those, so no written file holds one)
+function fmt(x: number | null): string {
+  if (x === null) return 'not measured';
   return Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x);
 }
 

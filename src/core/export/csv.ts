@@ -17,7 +17,8 @@ export function csvNumber(x: number): string {
   return x.toPrecision(17);
 }
 
-const fmt = (x: number) => (Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x));
+// null: a constraint not measured (buildExport refuses those, so no written file holds one)
+const fmt = (x: number | null) => (x === null ? 'not measured' : Number.isFinite(x) ? String(Number(x.toPrecision(6))) : String(x));
 
 export function writeCsv(e: PolicyExport): string {
   const prov = e.source.provenance;

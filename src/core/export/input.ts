@@ -5,7 +5,9 @@
 //   format, format_version, kind          the file's type
 //   scenario                              the validated scenario the policy was made for (its body and start)
 //   policy                                the policy to export (top level; it wins over scenario.policy)
-//   constraints[]                         optional; each { name, value, limit, margin }, margin >= 0 feasible
+//   constraints[]                         optional; each { name, value, limit, margin }, margin >= 0 feasible;
+//                                         value and margin null together: not measured (optimize writes that
+//                                         when no held-out stride completed; export refuses it, build.ts)
 //   provenance                            { pronk_version, scenario_sha256, date }
 //
 // Result files written before `provenance` existed carry pronk_version, scenario_sha256 and
@@ -26,10 +28,11 @@ export type SourceKind = 'scenario' | (typeof RESULT_KINDS)[number];
 
 export interface Constraint {
   name: string;
-  value: number;
+  /** The measured quantity; null when nothing was measured (no held-out stride completed). */
+  value: number | null;
   limit: number;
-  /** >= 0: the constraint holds; < 0: violated by this much. */
-  margin: number;
+  /** >= 0: the constraint holds; < 0: violated by this much; null with value. */
+  margin: number | null;
 }
 
 export interface ExportSource {
@@ -61,15 +64,24 @@ const finiteNumber = (what: string) => z.number({ error: `a finite number (${wha
 const text = (what: string) => z.string({ error: what }).min(1, { error: what });
 const sha256 = z.string({ error: 'a SHA-256 in hex (64 characters)' }).regex(/^[0-9a-f]{64}$/, { error: 'a SHA-256 in hex (64 characters)' });
 
-const constraintSchema = z.object(
-  {
-    name: text('a non-empty string (the constraint name)'),
-    value: finiteNumber('the constrained quantity'),
-    limit: finiteNumber('the limit'),
-    margin: finiteNumber('>= 0 when the constraint holds'),
-  },
-  { error: 'an object with name, value, limit, margin' },
-);
+// value and margin are null together when nothing was measured: pronk optimize writes that when
+// the held-out rollouts complete no stride (objectives.ts), and pronk export refuses such a file
+// by the constraint's name (build.ts); the file itself is a valid result.
+const measured = (what: string) => z.number({ error: `a finite number (${what}), or null when nothing was measured` }).nullable();
+const constraintSchema = z
+  .object(
+    {
+      name: text('a non-empty string (the constraint name)'),
+      value: measured('the constrained quantity'),
+      limit: finiteNumber('the limit'),
+      margin: measured('>= 0 when the constraint holds'),
+    },
+    { error: 'an object with name, value, limit, margin' },
+  )
+  .refine((c) => (c.value === null) === (c.margin === null), {
+    path: ['margin'],
+    error: 'null exactly when value is null (a constraint not measured has neither)',
+  });
 
 const provenanceSchema = z.object(
   {

@@ -31,6 +31,8 @@ import {
   MAX_STRIDES,
   bodySchema,
   bounded,
+  checkDampingRatios,
+  type DampedLeg,
   fieldList,
   firstTouchdownHeightM,
   integerIn,
@@ -107,8 +109,23 @@ export function bipedSchema(): z.ZodType {
     strides: integerIn(1, MAX_STRIDES),
     integrator: integratorSchema,
   };
-  schema = strictObject(shape, `a two-leg scenario object with ${fieldList(shape)}`).superRefine(checkStart, { when: () => true });
+  schema = strictObject(shape, `a two-leg scenario object with ${fieldList(shape)}`)
+    .superRefine(checkStart, { when: () => true })
+    .superRefine((value, ctx) => checkDampingRatios(value, ctx, dampedLegs(value)), { when: () => true });
   return schema;
+}
+
+// Each leg's damping (its own, or the body's it inherits) with its stiffness scale, for the
+// damping-ratio bound (MAX_DAMPING_RATIO in scenario.ts).
+function dampedLegs(value: unknown): DampedLeg[] {
+  return (['left', 'right'] as const).map((name) => {
+    const own = valueAt(value, ['legs', name, 'leg_damping_N_s_per_m']) !== undefined;
+    const scale = numberAt(value, ['legs', name, 'stiffness_scale']);
+    return {
+      damping: own ? ['legs', name, 'leg_damping_N_s_per_m'] : ['body', 'leg_damping_N_s_per_m'],
+      ...(scale === undefined ? {} : { scale: { path: `legs.${name}.stiffness_scale`, value: scale } }),
+    };
+  });
 }
 
 function numberAt(value: unknown, path: (string | number)[]): number | undefined {

@@ -30,11 +30,11 @@ import {
   type CanonicalRobustnessOptions,
   type RobustnessRow,
 } from '../analysis/robustness.js';
-import { DEFAULT_AFTER, stepTolerance, type StepToleranceOptionNames } from '../analysis/stepdown.js';
+import { DEFAULT_AFTER, MAX_AFTER, stepTolerance, type StepToleranceOptionNames } from '../analysis/stepdown.js';
 import { buildModel, STATUS_NAMES } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
 import { MODEL_KIND } from '../json-output.js';
-import { BOUNDS, MAX_STRIDES, boundText, parseScenario, type Scenario } from '../scenario.js';
+import { BOUNDS, boundText, parseScenario, type Scenario } from '../scenario.js';
 import { newcombeDifferenceInterval } from '../stats.js';
 import { PRONK_VERSION, contentHash } from '../version.js';
 import type { DeadbeatOptions, DeadbeatTable } from './deadbeat.js';
@@ -207,7 +207,7 @@ function canonicalOptions(scenario: Scenario, options: ComparisonOptions, names:
   // the scenario's bound on a retraction rate: a rate beyond it makes no valid policy to compare
   const rate = BOUNDS.rate_deg_per_s;
   check(pair(rateRange) && rateRange[0] >= rate.low && rateRange[1] <= rate.high, names.rate_range_deg_per_s, `two rates lo < hi, each ${boundText(rate, 'a rate')}`, rateRange);
-  check(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES, names.after, `a positive integer below ${MAX_STRIDES}`, after);
+  check(Number.isInteger(after) && after >= 1 && after <= MAX_AFTER, names.after, `an integer from 1 to ${MAX_AFTER}`, after);
   const rolloutsOk = Number.isInteger(rollouts) && rollouts >= 1;
   if (rolloutsOk) {
     check(Number.isInteger(screen) && screen >= 1 && screen <= rollouts, names.screen_rollouts, `an integer from 1 to the rollouts (${rollouts})`, screen);
@@ -645,8 +645,8 @@ export interface TableStepCheck {
  * there depends on how the closed loop treats the small errors left (first_apex vs final_apex).
  */
 export async function tableStepCheck(scenario: Scenario, table: DeadbeatTable, after: number = DEFAULT_AFTER): Promise<TableStepCheck> {
-  if (!(Number.isInteger(after) && after >= 1 && after < MAX_STRIDES)) {
-    throw new InputError([{ path: 'after', expected: `a positive integer below ${MAX_STRIDES}`, found: describeFound(after) }]);
+  if (!(Number.isInteger(after) && after >= 1 && after <= MAX_AFTER)) {
+    throw new InputError([{ path: 'after', expected: `an integer from 1 to ${MAX_AFTER}`, found: describeFound(after) }]);
   }
   const strides = 1 + after;
   const range = table.solved_range_m;
