@@ -54,9 +54,16 @@ import {
 import { groundAt, resetWalk } from "./terrain";
 import { initialStep } from "./rollout";
 import {
-  step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, Y0, K1, YN, YI, K7,
+  step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
+  Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,
+  A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
+  B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
 } from "./rk/dopri5";
-import { rhs, setStance, setStiffness, setBiped, setBipedStiffness } from "./rk/system";
+import {
+  rhs, setStance, setStiffness, setBiped, setBipedStiffness,
+  stanceInvMass, stanceLeg as sysLeg, stanceK, stanceC, stanceG,
+  bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
+} from "./rk/system";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
 
@@ -287,7 +294,7 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
     if (Math.abs(dt) > 1e-4 * timeScale || !(he + dt > 0.0)) break;
     he += dt;
     if (Math.abs(dt) > 1e-7 * timeScale) {
-      step(he, rtol, atol);
+      bstep(he);
       continue;
     }
     const vx = load<f64>(YN, 16);
@@ -303,6 +310,146 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
     rhs(YN, K7);
   }
   return he;
+}
+
+// Undamped legs: the damper's work stays exactly 0 (its rate c r'^2 is 0), so the stepper can
+// leave it out. step4 is the shared Dormand-Prince step (rk/dopri5.ts) on the first four
+// components with the right-hand side of the legs in stance written in (single support: the
+// single-leg stance's arithmetic, system.ts; double support: both legs'). Every operation on
+// those components is the shared step's, in the same order, and the fifth component only ever
+// added 0 to the error sum, so the result is bit for bit the shared step's; the fifth slots of
+// the buffers hold 0 (zeroFifth) for dense() and the polish.
+let undamped: bool = false;
+
+@inline function rhs4(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
+  store<f64>(dy, vx, 0);
+  store<f64>(dy, vy, 8);
+  if (single) {
+    const r = Math.sqrt(px * px + py * py);
+    const inv = 1.0 / r;
+    const rdot = (px * vx + py * vy) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    store<f64>(dy, a * px, 16);
+    store<f64>(dy, a * py - stanceG, 24);
+  } else {
+    const dx0 = px - bipedFx0;
+    const dy0 = py - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * vx + dy0 * vy) * inv0;
+    const a0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = px - bipedFx1;
+    const dy1 = py - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * vx + dy1 * vy) * inv1;
+    const a1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    store<f64>(dy, a0 * dx0 + a1 * dx1, 16);
+    store<f64>(dy, a0 * dy0 + a1 * dy1 - stanceG, 24);
+  }
+}
+
+function step4(h: f64): f64 {
+  setLastH(h);
+  const y0 = load<f64>(Y0, 0);
+  const y1 = load<f64>(Y0, 8);
+  const y2 = load<f64>(Y0, 16);
+  const y3 = load<f64>(Y0, 24);
+  const a0 = load<f64>(K1, 0);
+  const a1 = load<f64>(K1, 8);
+  const a2 = load<f64>(K1, 16);
+  const a3 = load<f64>(K1, 24);
+  rhs4(y0 + h * (A21 * a0), y1 + h * (A21 * a1), y2 + h * (A21 * a2), y3 + h * (A21 * a3), K2);
+  const b0 = load<f64>(K2, 0);
+  const b1 = load<f64>(K2, 8);
+  const b2 = load<f64>(K2, 16);
+  const b3 = load<f64>(K2, 24);
+  rhs4(y0 + h * (A31 * a0 + A32 * b0), y1 + h * (A31 * a1 + A32 * b1), y2 + h * (A31 * a2 + A32 * b2), y3 + h * (A31 * a3 + A32 * b3), K3);
+  const c0 = load<f64>(K3, 0);
+  const c1 = load<f64>(K3, 8);
+  const c2 = load<f64>(K3, 16);
+  const c3 = load<f64>(K3, 24);
+  rhs4(y0 + h * (A41 * a0 + A42 * b0 + A43 * c0), y1 + h * (A41 * a1 + A42 * b1 + A43 * c1), y2 + h * (A41 * a2 + A42 * b2 + A43 * c2), y3 + h * (A41 * a3 + A42 * b3 + A43 * c3), K4);
+  const d0 = load<f64>(K4, 0);
+  const d1 = load<f64>(K4, 8);
+  const d2 = load<f64>(K4, 16);
+  const d3 = load<f64>(K4, 24);
+  rhs4(y0 + h * (A51 * a0 + A52 * b0 + A53 * c0 + A54 * d0), y1 + h * (A51 * a1 + A52 * b1 + A53 * c1 + A54 * d1), y2 + h * (A51 * a2 + A52 * b2 + A53 * c2 + A54 * d2), y3 + h * (A51 * a3 + A52 * b3 + A53 * c3 + A54 * d3), K5);
+  const e0 = load<f64>(K5, 0);
+  const e1 = load<f64>(K5, 8);
+  const e2 = load<f64>(K5, 16);
+  const e3 = load<f64>(K5, 24);
+  rhs4(y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0 + A65 * e0), y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1 + A65 * e1), y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2 + A65 * e2), y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3 + A65 * e3), K6);
+  const f0 = load<f64>(K6, 0);
+  const f1 = load<f64>(K6, 8);
+  const f2 = load<f64>(K6, 16);
+  const f3 = load<f64>(K6, 24);
+  const n0 = y0 + h * (B1 * a0 + B3 * c0 + B4 * d0 + B5 * e0 + B6 * f0);
+  const n1 = y1 + h * (B1 * a1 + B3 * c1 + B4 * d1 + B5 * e1 + B6 * f1);
+  const n2 = y2 + h * (B1 * a2 + B3 * c2 + B4 * d2 + B5 * e2 + B6 * f2);
+  const n3 = y3 + h * (B1 * a3 + B3 * c3 + B4 * d3 + B5 * e3 + B6 * f3);
+  store<f64>(YN, n0, 0);
+  store<f64>(YN, n1, 8);
+  store<f64>(YN, n2, 16);
+  store<f64>(YN, n3, 24);
+  rhs4(n0, n1, n2, n3, K7);
+  const g0 = load<f64>(K7, 0);
+  const g1 = load<f64>(K7, 8);
+  const g2 = load<f64>(K7, 16);
+  const g3 = load<f64>(K7, 24);
+  let sum: f64 = 0.0;
+  let finite: f64 = 0.0; // stays 0 (not NaN) only if every new component is finite
+  {
+    const e = h * (E1 * a0 + E3 * c0 + E4 * d0 + E5 * e0 + E6 * f0 + E7 * g0);
+    const sc = atol + rtol * Math.max(Math.abs(y0), Math.abs(n0));
+    const q = e / sc;
+    sum += q * q;
+    finite += n0 - n0;
+  }
+  {
+    const e = h * (E1 * a1 + E3 * c1 + E4 * d1 + E5 * e1 + E6 * f1 + E7 * g1);
+    const sc = atol + rtol * Math.max(Math.abs(y1), Math.abs(n1));
+    const q = e / sc;
+    sum += q * q;
+    finite += n1 - n1;
+  }
+  {
+    const e = h * (E1 * a2 + E3 * c2 + E4 * d2 + E5 * e2 + E6 * f2 + E7 * g2);
+    const sc = atol + rtol * Math.max(Math.abs(y2), Math.abs(n2));
+    const q = e / sc;
+    sum += q * q;
+    finite += n2 - n2;
+  }
+  {
+    const e = h * (E1 * a3 + E3 * c3 + E4 * d3 + E5 * e3 + E6 * f3 + E7 * g3);
+    const sc = atol + rtol * Math.max(Math.abs(y3), Math.abs(n3));
+    const q = e / sc;
+    sum += q * q;
+    finite += n3 - n3;
+  }
+  const err = Math.sqrt(sum / 4.0);
+  // A NaN or infinity anywhere in the stages shows up in err or in YN.
+  if (!isFinite(err) || finite != 0.0) return NaN;
+  return err;
+}
+
+// The fifth (damper work) slot of every buffer step4 leaves alone, set to 0.
+function zeroFifth(): void {
+  store<f64>(Y0, 0.0, 32);
+  store<f64>(K1, 0.0, 32);
+  store<f64>(K2, 0.0, 32);
+  store<f64>(K3, 0.0, 32);
+  store<f64>(K4, 0.0, 32);
+  store<f64>(K5, 0.0, 32);
+  store<f64>(K6, 0.0, 32);
+  store<f64>(K7, 0.0, 32);
+  store<f64>(YN, 0.0, 32);
+}
+
+// One step of the contact: step4 with undamped legs, else the shared step.
+@inline function bstep(hh: f64): f64 {
+  return undamped ? step4(hh) : step(hh, rtol, atol);
 }
 
 // Set the right-hand side for the legs in stance (the origin is a stance foot).
@@ -460,6 +607,7 @@ function startValues(): void {
 // Integrate the contact phases from Y0 (time tS since the section) until the stride's section,
 // a flight, or a failure. Returns END_SECTION, END_FLIGHT or a STATUS_* code.
 function runContact(rec: usize): i32 {
+  if (undamped) zeroFifth();
   configure();
   resetController();
   rhs(Y0, K1);
@@ -473,7 +621,7 @@ function runContact(rec: usize): i32 {
     if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
     if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
     if (h < hMin) return STATUS_STEP_UNDERFLOW;
-    const err = step(h, rtol, atol);
+    const err = bstep(h);
     if (isNaN(err)) {
       rejected++;
       stepsHere++;
@@ -648,7 +796,7 @@ function runContact(rec: usize): i32 {
     const hNext = h * acceptFactor(err, afterReject);
     let hEvent = stopTheta * h;
     if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
-      step(hEvent, rtol, atol);
+      bstep(hEvent);
       steps++;
       stepsHere++;
     }
@@ -814,6 +962,7 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   ls(1, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_1) * kScale);
   ls(0, LF_C, mget(mdl, M_BIPED_DAMPING_0));
   ls(1, LF_C, mget(mdl, M_BIPED_DAMPING_1));
+  undamped = lg(0, LF_C) == 0.0 && lg(1, LF_C) == 0.0;
   fixedAngle = <i32>mget(mdl, M_ANGLE_KIND) == ANGLE_FIXED;
   if (fixedAngle) {
     const sinA = legSin(mget(mdl, M_ATTACK));
