@@ -314,41 +314,13 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
 
 // Undamped legs: the damper's work stays exactly 0 (its rate c r'^2 is 0), so the stepper can
 // leave it out. step4 is the shared Dormand-Prince step (rk/dopri5.ts) on the first four
-// components with the right-hand side of the legs in stance written in (single support: the
-// single-leg stance's arithmetic, system.ts; double support: both legs'). Every operation on
+// components with the right-hand side of the legs in stance written in, its stage derivatives
+// kept in locals (the stores are for dense() only; single support: the single-leg stance's
+// arithmetic, system.ts; double support: both legs', as system.ts). Every operation on
 // those components is the shared step's, in the same order, and the fifth component only ever
 // added 0 to the error sum, so the result is bit for bit the shared step's; the fifth slots of
 // the buffers hold 0 (zeroFifth) for dense() and the polish.
 let undamped: bool = false;
-
-@inline function rhs4(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
-  store<f64>(dy, vx, 0);
-  store<f64>(dy, vy, 8);
-  if (single) {
-    const r = Math.sqrt(px * px + py * py);
-    const inv = 1.0 / r;
-    const rdot = (px * vx + py * vy) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
-    const a = force * inv * stanceInvMass;
-    store<f64>(dy, a * px, 16);
-    store<f64>(dy, a * py - stanceG, 24);
-  } else {
-    const dx0 = px - bipedFx0;
-    const dy0 = py - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * vx + dy0 * vy) * inv0;
-    const a0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
-    const dx1 = px - bipedFx1;
-    const dy1 = py - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * vx + dy1 * vy) * inv1;
-    const a1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
-    store<f64>(dy, a0 * dx0 + a1 * dx1, 16);
-    store<f64>(dy, a0 * dy0 + a1 * dy1 - stanceG, 24);
-  }
-}
 
 function step4(h: f64): f64 {
   setLastH(h);
@@ -360,31 +332,181 @@ function step4(h: f64): f64 {
   const a1 = load<f64>(K1, 8);
   const a2 = load<f64>(K1, 16);
   const a3 = load<f64>(K1, 24);
-  rhs4(y0 + h * (A21 * a0), y1 + h * (A21 * a1), y2 + h * (A21 * a2), y3 + h * (A21 * a3), K2);
-  const b0 = load<f64>(K2, 0);
-  const b1 = load<f64>(K2, 8);
-  const b2 = load<f64>(K2, 16);
-  const b3 = load<f64>(K2, 24);
-  rhs4(y0 + h * (A31 * a0 + A32 * b0), y1 + h * (A31 * a1 + A32 * b1), y2 + h * (A31 * a2 + A32 * b2), y3 + h * (A31 * a3 + A32 * b3), K3);
-  const c0 = load<f64>(K3, 0);
-  const c1 = load<f64>(K3, 8);
-  const c2 = load<f64>(K3, 16);
-  const c3 = load<f64>(K3, 24);
-  rhs4(y0 + h * (A41 * a0 + A42 * b0 + A43 * c0), y1 + h * (A41 * a1 + A42 * b1 + A43 * c1), y2 + h * (A41 * a2 + A42 * b2 + A43 * c2), y3 + h * (A41 * a3 + A42 * b3 + A43 * c3), K4);
-  const d0 = load<f64>(K4, 0);
-  const d1 = load<f64>(K4, 8);
-  const d2 = load<f64>(K4, 16);
-  const d3 = load<f64>(K4, 24);
-  rhs4(y0 + h * (A51 * a0 + A52 * b0 + A53 * c0 + A54 * d0), y1 + h * (A51 * a1 + A52 * b1 + A53 * c1 + A54 * d1), y2 + h * (A51 * a2 + A52 * b2 + A53 * c2 + A54 * d2), y3 + h * (A51 * a3 + A52 * b3 + A53 * c3 + A54 * d3), K5);
-  const e0 = load<f64>(K5, 0);
-  const e1 = load<f64>(K5, 8);
-  const e2 = load<f64>(K5, 16);
-  const e3 = load<f64>(K5, 24);
-  rhs4(y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0 + A65 * e0), y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1 + A65 * e1), y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2 + A65 * e2), y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3 + A65 * e3), K6);
-  const f0 = load<f64>(K6, 0);
-  const f1 = load<f64>(K6, 8);
-  const f2 = load<f64>(K6, 16);
-  const f3 = load<f64>(K6, 24);
+  const bp0 = y0 + h * (A21 * a0);
+  const bp1 = y1 + h * (A21 * a1);
+  const bp2 = y2 + h * (A21 * a2);
+  const bp3 = y3 + h * (A21 * a3);
+  let b2: f64, b3: f64;
+  if (single) {
+    const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
+    const inv = 1.0 / r;
+    const rdot = (bp0 * bp2 + bp1 * bp3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    b2 = a * bp0;
+    b3 = a * bp1 - stanceG;
+  } else {
+    const dx0 = bp0 - bipedFx0;
+    const dy0 = bp1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * bp2 + dy0 * bp3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = bp0 - bipedFx1;
+    const dy1 = bp1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * bp2 + dy1 * bp3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    b2 = ac0 * dx0 + ac1 * dx1;
+    b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const b0 = bp2;
+  const b1 = bp3;
+  store<f64>(K2, b0, 0);
+  store<f64>(K2, b1, 8);
+  store<f64>(K2, b2, 16);
+  store<f64>(K2, b3, 24);
+  const cp0 = y0 + h * (A31 * a0 + A32 * b0);
+  const cp1 = y1 + h * (A31 * a1 + A32 * b1);
+  const cp2 = y2 + h * (A31 * a2 + A32 * b2);
+  const cp3 = y3 + h * (A31 * a3 + A32 * b3);
+  let c2: f64, c3: f64;
+  if (single) {
+    const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
+    const inv = 1.0 / r;
+    const rdot = (cp0 * cp2 + cp1 * cp3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    c2 = a * cp0;
+    c3 = a * cp1 - stanceG;
+  } else {
+    const dx0 = cp0 - bipedFx0;
+    const dy0 = cp1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * cp2 + dy0 * cp3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = cp0 - bipedFx1;
+    const dy1 = cp1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * cp2 + dy1 * cp3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    c2 = ac0 * dx0 + ac1 * dx1;
+    c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const c0 = cp2;
+  const c1 = cp3;
+  store<f64>(K3, c0, 0);
+  store<f64>(K3, c1, 8);
+  store<f64>(K3, c2, 16);
+  store<f64>(K3, c3, 24);
+  const dp0 = y0 + h * (A41 * a0 + A42 * b0 + A43 * c0);
+  const dp1 = y1 + h * (A41 * a1 + A42 * b1 + A43 * c1);
+  const dp2 = y2 + h * (A41 * a2 + A42 * b2 + A43 * c2);
+  const dp3 = y3 + h * (A41 * a3 + A42 * b3 + A43 * c3);
+  let d2: f64, d3: f64;
+  if (single) {
+    const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
+    const inv = 1.0 / r;
+    const rdot = (dp0 * dp2 + dp1 * dp3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    d2 = a * dp0;
+    d3 = a * dp1 - stanceG;
+  } else {
+    const dx0 = dp0 - bipedFx0;
+    const dy0 = dp1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * dp2 + dy0 * dp3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = dp0 - bipedFx1;
+    const dy1 = dp1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * dp2 + dy1 * dp3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    d2 = ac0 * dx0 + ac1 * dx1;
+    d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const d0 = dp2;
+  const d1 = dp3;
+  store<f64>(K4, d0, 0);
+  store<f64>(K4, d1, 8);
+  store<f64>(K4, d2, 16);
+  store<f64>(K4, d3, 24);
+  const ep0 = y0 + h * (A51 * a0 + A52 * b0 + A53 * c0 + A54 * d0);
+  const ep1 = y1 + h * (A51 * a1 + A52 * b1 + A53 * c1 + A54 * d1);
+  const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2 + A54 * d2);
+  const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3 + A54 * d3);
+  let e2: f64, e3: f64;
+  if (single) {
+    const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
+    const inv = 1.0 / r;
+    const rdot = (ep0 * ep2 + ep1 * ep3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    e2 = a * ep0;
+    e3 = a * ep1 - stanceG;
+  } else {
+    const dx0 = ep0 - bipedFx0;
+    const dy0 = ep1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * ep2 + dy0 * ep3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = ep0 - bipedFx1;
+    const dy1 = ep1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * ep2 + dy1 * ep3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    e2 = ac0 * dx0 + ac1 * dx1;
+    e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const e0 = ep2;
+  const e1 = ep3;
+  store<f64>(K5, e0, 0);
+  store<f64>(K5, e1, 8);
+  store<f64>(K5, e2, 16);
+  store<f64>(K5, e3, 24);
+  const fp0 = y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0 + A65 * e0);
+  const fp1 = y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1 + A65 * e1);
+  const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2 + A65 * e2);
+  const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3 + A65 * e3);
+  let f2: f64, f3: f64;
+  if (single) {
+    const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
+    const inv = 1.0 / r;
+    const rdot = (fp0 * fp2 + fp1 * fp3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    f2 = a * fp0;
+    f3 = a * fp1 - stanceG;
+  } else {
+    const dx0 = fp0 - bipedFx0;
+    const dy0 = fp1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * fp2 + dy0 * fp3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = fp0 - bipedFx1;
+    const dy1 = fp1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * fp2 + dy1 * fp3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    f2 = ac0 * dx0 + ac1 * dx1;
+    f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const f0 = fp2;
+  const f1 = fp3;
+  store<f64>(K6, f0, 0);
+  store<f64>(K6, f1, 8);
+  store<f64>(K6, f2, 16);
+  store<f64>(K6, f3, 24);
   const n0 = y0 + h * (B1 * a0 + B3 * c0 + B4 * d0 + B5 * e0 + B6 * f0);
   const n1 = y1 + h * (B1 * a1 + B3 * c1 + B4 * d1 + B5 * e1 + B6 * f1);
   const n2 = y2 + h * (B1 * a2 + B3 * c2 + B4 * d2 + B5 * e2 + B6 * f2);
@@ -393,11 +515,41 @@ function step4(h: f64): f64 {
   store<f64>(YN, n1, 8);
   store<f64>(YN, n2, 16);
   store<f64>(YN, n3, 24);
-  rhs4(n0, n1, n2, n3, K7);
-  const g0 = load<f64>(K7, 0);
-  const g1 = load<f64>(K7, 8);
-  const g2 = load<f64>(K7, 16);
-  const g3 = load<f64>(K7, 24);
+  const gp0 = n0;
+  const gp1 = n1;
+  const gp2 = n2;
+  const gp3 = n3;
+  let g2: f64, g3: f64;
+  if (single) {
+    const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
+    const inv = 1.0 / r;
+    const rdot = (gp0 * gp2 + gp1 * gp3) * inv;
+    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const a = force * inv * stanceInvMass;
+    g2 = a * gp0;
+    g3 = a * gp1 - stanceG;
+  } else {
+    const dx0 = gp0 - bipedFx0;
+    const dy0 = gp1 - bipedFy0;
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    const inv0 = 1.0 / r0;
+    const rdot0 = (dx0 * gp2 + dy0 * gp3) * inv0;
+    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const dx1 = gp0 - bipedFx1;
+    const dy1 = gp1 - bipedFy1;
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    const inv1 = 1.0 / r1;
+    const rdot1 = (dx1 * gp2 + dy1 * gp3) * inv1;
+    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    g2 = ac0 * dx0 + ac1 * dx1;
+    g3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+  }
+  const g0 = gp2;
+  const g1 = gp3;
+  store<f64>(K7, g0, 0);
+  store<f64>(K7, g1, 8);
+  store<f64>(K7, g2, 16);
+  store<f64>(K7, g3, 24);
   let sum: f64 = 0.0;
   let finite: f64 = 0.0; // stays 0 (not NaN) only if every new component is finite
   {
@@ -433,6 +585,7 @@ function step4(h: f64): f64 {
   if (!isFinite(err) || finite != 0.0) return NaN;
   return err;
 }
+
 
 // The fifth (damper work) slot of every buffer step4 leaves alone, set to 0.
 function zeroFifth(): void {
