@@ -891,7 +891,7 @@ function runContact(rec: usize): i32 {
       let gFrom = gt0;
       let look = armed;
       if (!armed) {
-        const gmid1 = evValue(EVB_MIDSTANCE, stanceLeg, YN, tS + h);
+        const gmid1 = load<f64>(YN, 0) - footRx(stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
         if (crossesB(EVB_MIDSTANCE, gt0, gmid1)) {
           from = locateB(EVB_MIDSTANCE, stanceLeg, 0.0, gt0, gmid1, tS, h);
           dense(from);
@@ -903,7 +903,10 @@ function runContact(rec: usize): i32 {
         }
       }
       if (look) {
-        gt1 = evValue(EVB_TOUCHDOWN, swing, YN, tS + h);
+        // evValue(EVB_TOUCHDOWN, ...), the fixed angle's height written in
+        gt1 = fixedAngle
+          ? lg(swing, LF_TOUCH_HEIGHT) - (load<f64>(YN, 8) + oy - swingGround)
+          : evValue(EVB_TOUCHDOWN, swing, YN, tS + h);
         if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
           const th = locateB(EVB_TOUCHDOWN, swing, from, gFrom, gt1, tS, h);
           dense(th);
