@@ -316,9 +316,11 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
 // leave it out. step4 is the shared Dormand-Prince step (rk/dopri5.ts) on the first four
 // components with the right-hand side of the legs in stance written in, its stage derivatives
 // kept in locals (the stores are for dense() only; single support: the single-leg stance's
-// arithmetic, system.ts; double support: both legs', as system.ts). Every operation on
-// those components is the shared step's, in the same order, and the fifth component only ever
-// added 0 to the error sum, so the result is bit for bit the shared step's; the fifth slots of
+// arithmetic, system.ts; double support: both legs', as system.ts), less the damper term c r'
+// (with c = 0 the shared step subtracts a zero: the same value, one multiply and the leg
+// speed r' fewer on the stage's critical path). Every other operation on those components is
+// the shared step's, in the same order, and the fifth component only ever added 0 to the error
+// sum, so for finite states the result is bit for bit the shared step's; the fifth slots of
 // the buffers hold 0 (zeroFifth) for dense() and the polish.
 let undamped: bool = false;
 
@@ -340,8 +342,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
     const inv = 1.0 / r;
-    const rdot = (bp0 * bp2 + bp1 * bp3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     b2 = a * bp0;
     b3 = a * bp1 - stanceG;
@@ -350,14 +351,12 @@ function step4(h: f64): f64 {
     const dy0 = bp1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * bp2 + dy0 * bp3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = bp0 - bipedFx1;
     const dy1 = bp1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * bp2 + dy1 * bp3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     b2 = ac0 * dx0 + ac1 * dx1;
     b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
@@ -375,8 +374,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
     const inv = 1.0 / r;
-    const rdot = (cp0 * cp2 + cp1 * cp3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     c2 = a * cp0;
     c3 = a * cp1 - stanceG;
@@ -385,14 +383,12 @@ function step4(h: f64): f64 {
     const dy0 = cp1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * cp2 + dy0 * cp3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = cp0 - bipedFx1;
     const dy1 = cp1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * cp2 + dy1 * cp3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     c2 = ac0 * dx0 + ac1 * dx1;
     c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
@@ -410,8 +406,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
     const inv = 1.0 / r;
-    const rdot = (dp0 * dp2 + dp1 * dp3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     d2 = a * dp0;
     d3 = a * dp1 - stanceG;
@@ -420,14 +415,12 @@ function step4(h: f64): f64 {
     const dy0 = dp1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * dp2 + dy0 * dp3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = dp0 - bipedFx1;
     const dy1 = dp1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * dp2 + dy1 * dp3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     d2 = ac0 * dx0 + ac1 * dx1;
     d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
@@ -445,8 +438,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
     const inv = 1.0 / r;
-    const rdot = (ep0 * ep2 + ep1 * ep3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     e2 = a * ep0;
     e3 = a * ep1 - stanceG;
@@ -455,14 +447,12 @@ function step4(h: f64): f64 {
     const dy0 = ep1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * ep2 + dy0 * ep3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = ep0 - bipedFx1;
     const dy1 = ep1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * ep2 + dy1 * ep3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     e2 = ac0 * dx0 + ac1 * dx1;
     e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
@@ -480,8 +470,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
     const inv = 1.0 / r;
-    const rdot = (fp0 * fp2 + fp1 * fp3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     f2 = a * fp0;
     f3 = a * fp1 - stanceG;
@@ -490,14 +479,12 @@ function step4(h: f64): f64 {
     const dy0 = fp1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * fp2 + dy0 * fp3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = fp0 - bipedFx1;
     const dy1 = fp1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * fp2 + dy1 * fp3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     f2 = ac0 * dx0 + ac1 * dx1;
     f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
@@ -523,8 +510,7 @@ function step4(h: f64): f64 {
   if (single) {
     const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
     const inv = 1.0 / r;
-    const rdot = (gp0 * gp2 + gp1 * gp3) * inv;
-    const force = stanceK * (sysLeg - r) - stanceC * rdot;
+    const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     g2 = a * gp0;
     g3 = a * gp1 - stanceG;
@@ -533,14 +519,12 @@ function step4(h: f64): f64 {
     const dy0 = gp1 - bipedFy0;
     const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
     const inv0 = 1.0 / r0;
-    const rdot0 = (dx0 * gp2 + dy0 * gp3) * inv0;
-    const ac0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = gp0 - bipedFx1;
     const dy1 = gp1 - bipedFy1;
     const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
     const inv1 = 1.0 / r1;
-    const rdot1 = (dx1 * gp2 + dy1 * gp3) * inv1;
-    const ac1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     g2 = ac0 * dx0 + ac1 * dx1;
     g3 = ac0 * dy0 + ac1 * dy1 - stanceG;
   }
