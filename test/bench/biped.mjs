@@ -51,6 +51,13 @@ function completedStrides(b) {
   return strides;
 }
 
+// Accepted integration steps per completed stride (the summaries' step counts).
+function stepsPerStride(b) {
+  let steps = 0;
+  for (let r = 0; r < ROLLOUTS; r++) steps += b.summaries[r * L.S_SIZE + L.S_STEPS];
+  return steps / completedStrides(b);
+}
+
 /**
  * CPU seconds per completed stride of each path, timed in alternation (walk, run, walk, ...) so
  * that both see the same machine; the ratio is the median of the per-repetition ratios.
@@ -66,16 +73,20 @@ function timeBoth(engine, walk, run) {
   const ratios = [];
   let walkStrides = 0;
   let runStrides = 0;
+  let walkSteps = 0;
+  let runSteps = 0;
   for (let rep = 0; rep < REPS; rep++) {
     const a = cpuSeconds(batch(walk.model, walkInputs));
     const b = cpuSeconds(batch(run.model, runInputs));
     walkStrides = completedStrides(a.out);
     runStrides = completedStrides(b.out);
+    walkSteps = stepsPerStride(a.out);
+    runSteps = stepsPerStride(b.out);
     w.push(a.seconds / walkStrides);
     r.push(b.seconds / runStrides);
     ratios.push(a.seconds / walkStrides / (b.seconds / runStrides));
   }
-  return { walk: median(w), run: median(r), ratio: median(ratios), walkStrides, runStrides };
+  return { walk: median(w), run: median(r), ratio: median(ratios), walkStrides, runStrides, walkSteps, runSteps };
 }
 
 export async function benchBiped(log = console.log) {
@@ -101,8 +112,8 @@ export async function benchBiped(log = console.log) {
   });
   const t = timeBoth(engine, { model: buildModel(walker), input: walkInput }, { model: buildModel(runner), input: startInput(runner) });
   const ratio = t.ratio;
-  log(`   walking stride (two legs, ${fp.speed_m_per_s.toFixed(3)} m/s fixed point): ${(t.walk * 1e6).toFixed(2)} us CPU (${t.walkStrides} strides a batch)`);
-  log(`   running stride (one leg, 5 m/s):                     ${(t.run * 1e6).toFixed(2)} us CPU (${t.runStrides} strides a batch)`);
+  log(`   walking stride (two legs, ${fp.speed_m_per_s.toFixed(3)} m/s fixed point): ${(t.walk * 1e6).toFixed(2)} us CPU (${t.walkStrides} strides a batch, ${t.walkSteps.toFixed(1)} steps a stride)`);
+  log(`   running stride (one leg, 5 m/s):                     ${(t.run * 1e6).toFixed(2)} us CPU (${t.runStrides} strides a batch, ${t.runSteps.toFixed(1)} steps a stride)`);
   log(`   ratio walking / running: ${ratio.toFixed(2)}x (median over ${REPS} alternating repetitions)`);
   goal('(g) two-leg walking stride vs single-leg running stride', `<= ${TARGET_RATIO}x`, `${ratio.toFixed(2)}x`, ratio <= TARGET_RATIO);
   return { walking_stride_s: t.walk, running_stride_s: t.run, ratio };
