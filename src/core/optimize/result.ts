@@ -353,7 +353,8 @@ export async function assembleResult(study: Study, record: SearchRecord): Promis
     provenance: {
       pronk_version: PRONK_VERSION,
       study_sha256: await contentHash(study),
-      scenario_sha256: await contentHash(study.scenario),
+      // the hash of the scenario this file holds (the winner), which pronk export checks the file against
+      scenario_sha256: await contentHash(scenario),
       seed: study.seed,
       holdout_seed: study.holdout.seed,
       method: study.search.method,
