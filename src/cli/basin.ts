@@ -8,14 +8,14 @@ import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
 import { MAX_STRIDES, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { decimalDigits, decimalNumber } from '../core/decimal.js';
 import { expectedDecimal, parseIntegerOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
-import { describeAngle, describeStiffness } from './simulate.js';
+import { describeAngle, describeStiffness } from './describe.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk basin';

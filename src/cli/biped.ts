@@ -8,7 +8,7 @@ import { type BipedScenario, legParameters } from '../core/models/biped.js';
 import type { BipedSimulationResult } from '../core/models/biped-simulate.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import { describeAngle, describeStiffness, describeTerrain } from './simulate.js';
+import { describeAngle, describeStiffness, describeTerrain } from './describe.js';
 
 const TEXT_WIDTH = 96;
 const MAX_ROWS_SHOWN = 60;

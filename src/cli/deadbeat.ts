@@ -14,13 +14,13 @@ import { startProgress, type Progress } from './progress.js';
 import type { Scenario } from '../core/scenario.js';
 import { MAX_AFTER } from '../core/analysis/stepdown.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { decimalNumber } from '../core/decimal.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { writeText } from './shard-output.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { checkOutputs, outputRequest, scenarioInput, type CheckedOutput } from './output-files.js';
-import { describeStiffness } from './simulate.js';
+import { describeStiffness } from './describe.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk deadbeat';

@@ -12,7 +12,7 @@ import { writeJson } from '../core/export/json.js';
 import { hex32 } from '../core/export/lookup.js';
 import { MAX_POINTS, type GridRequest } from '../core/export/sample.js';
 import { fields, plain, wrap } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { checkOutputs, writeOutputs } from './output-files.js';
 

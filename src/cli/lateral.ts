@@ -16,7 +16,7 @@ import { InputError } from '../core/errors.js';
 import type { LateralEigen, LateralFixedPoint, LateralMapResult, LateralSimulation } from '../core/analysis/lateral.js';
 import { type LateralScenario, sectionEnergy, lateralStart } from '../core/models/lateral.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO } from './main.js';
+import type { CliIO } from './command.js';
 
 const TEXT_WIDTH = 96;
 

@@ -12,42 +12,9 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { PRONK_VERSION } from '../core/version.js';
 import { wrap } from './format.js';
 
-export interface OutputStream {
-  write(chunk: string): unknown;
-  isTTY?: boolean;
-  /** The terminal's width, when it is a terminal. */
-  columns?: number;
-}
+import type { CliIO, Command, OptionSpec, ParsedCommandLine } from './command.js';
 
-// Where a command writes; tests pass their own.
-export interface CliIO {
-  stdout: OutputStream;
-  stderr: OutputStream;
-  env: Record<string, string | undefined>;
-}
-
-export interface OptionSpec {
-  type: 'boolean' | 'string';
-  short?: string;
-  valueName?: string; // shown in help: --strides N
-  description: string;
-}
-
-export interface ParsedCommandLine {
-  values: Record<string, string | boolean | undefined>;
-  positionals: string[];
-}
-
-export interface Command {
-  name: string;
-  summary: string; // one line for the command list
-  usage: string; // after "pronk ": "simulate [FILE] [--json] [--strides N]"
-  details?: string; // paragraphs shown in the command's help, e.g. what FILE defaults to
-  arguments?: { name: string; description: string }[];
-  options: Record<string, OptionSpec>;
-  maxPositionals: number;
-  run(commandLine: ParsedCommandLine, io: CliIO): Promise<number>;
-}
+export type { CliIO, Command, OptionSpec, OutputStream, ParsedCommandLine } from './command.js';
 
 const HELP_OPTION: OptionSpec = { type: 'boolean', short: 'h', description: 'show this help' };
 

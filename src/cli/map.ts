@@ -12,9 +12,9 @@ import type { BipedScenario } from '../core/models/biped.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { parseIntegerOption } from './options.js';
-import { describeAngle, describeStiffness } from './simulate.js';
+import { describeAngle, describeStiffness } from './describe.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk map';

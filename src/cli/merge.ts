@@ -4,7 +4,7 @@
 import { UsageError } from '../core/errors.js';
 import type { Scenario } from '../core/scenario.js';
 import type { PartialResult } from '../core/shard.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { outOption, writeText } from './shard-output.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, writePlotFile } from './output-files.js';

@@ -10,7 +10,7 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { fixed, plain, table, wrap, type Column } from './format.js';
 import { startProgress, status } from './progress.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 
 const SOURCE = 'pronk optimize';
 

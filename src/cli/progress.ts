@@ -5,7 +5,7 @@
 // quarter of a second (a quick run shows none), and erased when the work ends, so that what stays
 // on the terminal is the result and the status lines.
 
-import type { CliIO, OutputStream } from './main.js';
+import type { CliIO, OutputStream } from './command.js';
 
 export interface Progress {
   /** Starts a named phase (e.g. "held-out re-scoring"), with its total when it is known, and what it counts when that differs from the start's unit. */

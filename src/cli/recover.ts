@@ -12,7 +12,7 @@ import type { LateralScenario } from '../core/models/lateral.js';
 import type { SlipRecoveryResult } from '../core/analysis/recover-slip.js';
 import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { startProgress } from './progress.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { checkOutputs, outputRequest } from './output-files.js';

@@ -15,14 +15,14 @@ import type {
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { BOUNDS, boundText, type Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
 import { checkShardSize } from '../core/shard.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
 import { PLOT_OPTION, plotOption } from '../core/figures/plot-file.js';
 import { checkOutputs, outputRequest, scenarioInput, writePlotFile } from './output-files.js';
-import { describeAngle, describeStiffness } from './simulate.js';
+import { describeAngle, describeStiffness } from './describe.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk robustness';

@@ -4,7 +4,7 @@ import type { AnyScenario } from '../core/models/any.js';
 import type { InputIssue } from '../core/errors.js';
 import type { ModelKind } from '../core/models/kind.js';
 import type { Scenario } from '../core/scenario.js';
-import type { CliIO } from './main.js';
+import type { CliIO } from './command.js';
 import { status } from './progress.js';
 
 export const DEMO_SOURCE = 'scenarios/demo.json';

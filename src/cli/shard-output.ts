@@ -15,7 +15,7 @@ import {
   type ShardSpec,
 } from '../core/shard.js';
 import { PRONK_VERSION, contentHash } from '../core/version.js';
-import type { CliIO, OptionSpec, ParsedCommandLine } from './main.js';
+import type { CliIO, OptionSpec, ParsedCommandLine } from './command.js';
 
 /** The two options a shardable command adds to its own. */
 export const SHARD_OPTIONS: Record<string, OptionSpec> = {

@@ -9,9 +9,9 @@ import { SAFETY_CAUTION } from '../core/safety.js';
 import { jsonText, modelHeader } from '../core/json-output.js';
 import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
-import type { CliIO, Command, ParsedCommandLine } from './main.js';
+import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
-import { describeAngle, describeStiffness } from './simulate.js';
+import { describeAngle, describeStiffness } from './describe.js';
 
 const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk stepdown';

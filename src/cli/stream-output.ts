@@ -2,7 +2,7 @@
 // waiting for the stream to drain whenever it says its buffer is full, so that neither one string
 // nor the stream's queue has to hold the whole output.
 
-import type { OutputStream } from './main.js';
+import type { OutputStream } from './command.js';
 
 /** The size pieces are gathered to before each write (characters). */
 const WRITE_CHARS = 1 << 20;

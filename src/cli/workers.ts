@@ -8,7 +8,7 @@
 
 import { availableParallelism } from 'node:os';
 import { count } from './format.js';
-import type { CliIO, OptionSpec, ParsedCommandLine } from './main.js';
+import type { CliIO, OptionSpec, ParsedCommandLine } from './command.js';
 import { parseIntegerOption } from './options.js';
 import { status } from './progress.js';
 
