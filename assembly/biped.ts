@@ -52,7 +52,7 @@ import {
   touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE, TOUCHDOWN_GROUND_FIRST, TOUCHDOWN_ANGLE_LEFT,
 } from "./flight";
 import { groundAt, resetWalk } from "./terrain";
-import { initialStep } from "./rollout";
+import { initialStep } from "./rk/initial-step";
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
   Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,

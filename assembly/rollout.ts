@@ -9,6 +9,7 @@
 // rollout runs. A lane whose rollout ends takes the next one. Every rollout's
 // records and summary are the same bytes as when it runs alone.
 
+import { initialStep } from "./rk/initial-step";
 import {
   M_MASS, M_LEG_LENGTH, M_GRAVITY, M_DAMPING, M_RTOL, M_MODEL_KIND, MODEL_BIPED, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
   I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE, I_MODEL, I_SIZE, M_SIZE,
@@ -49,15 +50,6 @@ const SCRATCH_RECORD: usize = memory.data(8 * R_SIZE, 16); // (R_SIZE) f64, when
 }
 @inline function get(p: usize, field: i32): f64 {
   return load<f64>(p + (<usize>field << 3));
-}
-
-// First stance step: a fraction of the fastest time scale, shrunk with the
-// tolerance as h ~ rtol^(1/5) for a 5th-order method.
-export function initialStep(mass: f64, k: f64, speed: f64, leg: f64, rtol: f64): f64 {
-  const omega = Math.sqrt(k / mass) + speed / leg;
-  let f = 2.0 * Math.pow(rtol, 0.2);
-  if (f > 0.5) f = 0.5;
-  return f / omega;
 }
 
 // One rollout's state between its strides (and across its stance).

@@ -11,7 +11,7 @@
 // checks a dropped file's size with checkInputSize and never calls the reader).
 
 import { InputError } from './errors.js';
-import { parseJson } from './scenario.js';
+import { parseJson } from './json-text.js';
 import { PARTIAL_BYTES_LIMIT } from './shard.js';
 
 /** The largest scenario, study or result file accepted, in bytes (64 MiB). */

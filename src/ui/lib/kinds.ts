@@ -3,7 +3,8 @@
 // switch of kind starts from. A view that a kind does not run is shown disabled with its reason,
 // never run as the single-leg model.
 
-import type { ViewName } from './workbench.svelte.js';
+/** The workbench's views, by the name its tabs and state use. */
+export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare' | 'recover';
 
 export type DraftKind = 'slip' | 'biped' | 'lateral';
 

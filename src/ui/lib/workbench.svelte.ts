@@ -52,7 +52,8 @@ import { explainIssues, fieldLabel, type FieldIssue } from './issues.js';
 import { draftKind, draftOfKind, KIND_NAMES, lostBySwitch, MODEL_KIND_CHOICES, viewUnsupported, type DraftKind } from './kinds.js';
 import { loadDrafts, loadHistory, loadResults, saveDrafts, saveHistory, saveResult } from './persist.js';
 
-export type ViewName = 'map' | 'stride' | 'scan' | 'basin' | 'montecarlo' | 'optimize' | 'compare' | 'recover';
+export type { ViewName } from './kinds.js';
+import type { ViewName } from './kinds.js';
 
 /** The demos the workbench offers: the single-leg runner (with its study) and invented machines of the other kinds. */
 export type DemoName = 'slip' | 'biped-walk' | 'biped-run' | 'hexapod';
