@@ -4,7 +4,7 @@
 // and a small search is the same file on one and on two workers and validates against its schema.
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Ajv2020 } from 'ajv/dist/2020.js';
@@ -195,5 +195,11 @@ describe('pronk optimize on a lateral study', () => {
     // the result file's JSON Schema, judged by Ajv (an outside validator)
     const validate = new Ajv2020({ strict: true, allErrors: true }).compile(jsonSchema('result'));
     expect(validate(value), JSON.stringify(validate.errors)).toBe(true);
+    // pronk export does not read a lateral study's result file yet: refused by name, nothing written
+    const policy = join(dir, 'policy.json');
+    const e = pronk(['export', join(dir, 'result-1.json'), '--format', 'json', '--out', policy]);
+    expect(e.code).toBe(2);
+    expect(e.stderr).toMatch(/a result file of a lateral study/);
+    expect(existsSync(policy)).toBe(false);
   }, 180_000);
 });
