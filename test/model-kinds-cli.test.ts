@@ -100,8 +100,9 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       deadbeat: ['--ground=-0.01:0.01'],
     },
     study: {
-      free_parameters: [{ path: 'policy.angle.angle_to_body_deg', lower: 50, upper: 65 }],
-      objective: { terms: [{ kind: 'survival', terrain: 'random_walk', sigma_m: 0.005, rollouts: 10, strides: 5 }] },
+      free_parameters: [{ path: 'policy.angle.angle_to_body_deg', lower: 55, upper: 65 }],
+      objective: { terms: [{ kind: 'recovery', rollouts: 10, strides_after: 5, max_left_m_per_s: 0.3, max_rate_deg_per_s: 100 }] },
+      constraints: { max_leg_force_N: 100, max_compression_fraction: 0.9 },
     },
   },
 };

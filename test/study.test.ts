@@ -241,7 +241,7 @@ describe('bad studies name the field', () => {
 
   it('an unknown objective kind, with a did-you-mean', () => {
     const line = lineFor(edited(['objective', 'terms', 0, 'kind'], 'survial'), 'objective.terms[0].kind');
-    expect(line).toMatch(/expected one of survival, tracking, basin, step_down, found "survial" \(did you mean survival\?\)/);
+    expect(line).toMatch(/expected one of survival, tracking, basin, step_down, recovery, found "survial" \(did you mean survival\?\)/);
     expect(lineFor(edited(['objective', 'terms'], []), 'objective.terms')).toMatch(/an array of 1 to 32 objective terms, found \[\]/);
   });
 

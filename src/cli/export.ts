@@ -181,6 +181,14 @@ async function runExport({ values, positionals }: ParsedCommandLine, io: CliIO):
   if (!looksLikeResult(raw) && modelKindOf(raw, file) === 'lateral') {
     return exportLateral(raw, file, flags, outputs, headerName, io, json);
   }
+  if (looksLikeResult(raw) && (raw as { model?: unknown }).model === 'lateral') {
+    // the lateral export writes a scenario's chosen values; a lateral study's result file is not read yet
+    throw issue(
+      'FILE',
+      'a lateral scenario file (pronk export reads the result files of single-leg and two-leg studies; for a lateral study, write the result\'s "scenario" to a file and export that)',
+      `a result file of a lateral study (${file})`,
+    );
+  }
   const source = await readExportSource(file);
   let exported: PolicyExport;
   try {

@@ -175,7 +175,7 @@ export function renderOptimization(study: Study, r: OptimizationResult): string 
     const c = comparisons.find((x) => x.term === h.term);
     const band = (w?: [number, number]) => (w ? ` [${pct(w[0])}, ${pct(w[1])}]` : '');
     lines.push(
-      `Held-out survival, ${h.kind} term (${h.rollouts} rollouts on seeds the search never saw): start ${pct(h.start)}${band(c?.a.wilson95)} -> best ` +
+      `Held-out ${h.kind === 'recovery' ? 'recovery (kicks recovered from)' : 'survival'}, ${h.kind} term (${h.rollouts} rollouts on seeds the search never saw): start ${pct(h.start)}${band(c?.a.wilson95)} -> best ` +
         `${pct(h.best)}${band(c?.b.wilson95)}; gain ${signedPct(h.gain)} [${signedPct(h.gain_paired95[0])}, ${signedPct(h.gain_paired95[1])}] (paired 95 %)`,
     );
   }

@@ -22,7 +22,7 @@ export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   recover: ['slip', 'lateral'],
   // commands that take a study or result file rather than a scenario: listed for the hint below
   deadbeat: ['slip'],
-  optimize: ['slip', 'biped'],
+  optimize: ['slip', 'biped', 'lateral'],
   export: ['slip', 'biped', 'lateral'],
 };
 

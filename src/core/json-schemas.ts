@@ -11,6 +11,7 @@
 import { z } from 'zod';
 import { policySchema, scenarioSchema } from './scenario.js';
 import { bipedScenarioSchema } from './models/biped.js';
+import { lateralPolicySchema, lateralScenarioSchema } from './models/lateral.js';
 import { studySchema } from './optimize/study.js';
 import { bipedSchema } from './models/biped.js';
 import { resultSchema } from './export/input.js';
@@ -58,10 +59,14 @@ function zodSchemaOf(name: JsonSchemaName): z.ZodType {
       return scenarioSchema;
     case 'study':
       // the inline base scenario is a scenario (the validator reads it as one, after the rest)
-      return studySchema.extend({ scenario: z.union([scenarioSchema, bipedScenarioSchema()]).optional() });
+      return studySchema.extend({ scenario: z.union([scenarioSchema, bipedScenarioSchema(), lateralScenarioSchema]).optional() });
     case 'result':
       // a result's scenario is of any model kind the result's `model` names (single-leg or two-leg)
-      return resultSchema.extend({ $schema: z.string().optional(), scenario: z.union([scenarioSchema, bipedScenarioSchema()]), policy: policySchema });
+      return resultSchema.extend({
+        $schema: z.string().optional(),
+        scenario: z.union([scenarioSchema, bipedScenarioSchema(), lateralScenarioSchema]),
+        policy: z.union([policySchema, lateralPolicySchema]),
+      });
   }
 }
 

@@ -385,6 +385,8 @@ export function recoverRows(
   range: { start: number; end: number },
   options: { stridesAfter?: number; tolerances?: Partial<RecoverTolerances> } = {},
   onProgress?: (done: number) => void,
+  /** Hears every kernel call's stride records (rollouts x strides x LR_SIZE) and summaries, e.g. for limits on the peak leg force. */
+  onBatch?: (records: Float64Array, summaries: Float64Array, rollouts: number, strides: number) => void,
 ): RecoveryRow[] {
   const { gait: fp } = scenarioGait(engine, s);
   const gait = gaitState(fp);
@@ -406,6 +408,7 @@ export function recoverRows(
     }
     const r = engine.runLateral([model], inputs, n, true);
     const records = r.records as Float64Array;
+    onBatch?.(records, r.summaries, b - a, n);
     for (let i = a; i < b; i++) {
       const j = i - a;
       const { outcome } = judgeRecovery(

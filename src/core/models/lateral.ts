@@ -93,6 +93,8 @@ const stiffnessSchema = z
   .pipe(strictObject({ kind: z.literal('constant') }, 'an object with kind constant'))
   .default({ kind: 'constant' });
 const policyShape = { angle: angleSchema, stiffness: stiffnessSchema };
+/** The lateral policy alone (a result file's top-level policy of a lateral study). */
+export const lateralPolicySchema = strictObject(policyShape, fields(policyShape));
 
 const integratorShape = {
   relative_tolerance: z.number({ error: 'a number > 0 and < 0.1' }).gt(0).lt(0.1).default(DEFAULT_RELATIVE_TOLERANCE),

@@ -24,6 +24,16 @@
 //  - model mismatch: each robot's mass, then the left leg's stiffness and length, then the right
 //    leg's, drawn in that order from the study's seed (five factors a robot), each leg's factors
 //    multiplying that leg's stiffness scale and rest length.
+//
+// Lateral leg-spring model ("model": "lateral"), its section the left touchdown:
+//  - terms: recovery (the fraction of random kicks after which the gait recovers, as the Monte
+//    Carlo of pronk recover, kick i from stream i of the study's seed).
+//  - limits: max_leg_force_N (the kernel's peak leg force over every stance) and
+//    max_compression_fraction (the largest compression L0 − r over the leg's rest length), both
+//    over the completed strides of every kicked rollout. The others are refused by name (the
+//    reasons in LIMIT_REASONS).
+//  - free parameters: the touchdown angle to the body axis, the leg stiffness and the attachment
+//    point d (LATERAL_PARAMETERS); no model mismatch.
 
 import * as L from '../../../assembly/layout.js';
 import type { ModelBlock } from '../engine.js';
@@ -33,7 +43,10 @@ import { kindOf, type ModelKind } from '../models/kind.js';
 import type { Scenario } from '../scenario.js';
 
 /** The model kinds pronk optimize searches. */
-export const OPTIMIZE_KINDS: readonly ModelKind[] = ['slip', 'biped'];
+export const OPTIMIZE_KINDS: readonly ModelKind[] = ['slip', 'biped', 'lateral'];
+
+/** The numbers of a lateral scenario a search may move: touchdown angle, leg stiffness, attachment point. */
+export const LATERAL_PARAMETERS: readonly string[] = ['policy.angle.angle_to_body_deg', 'body.leg_stiffness_N_per_m', 'body.attachment_offset_m'];
 
 /** The first segment of a free parameter's path a kind allows. */
 export function parameterRoots(scenario: Scenario): readonly string[] {
@@ -42,7 +55,7 @@ export function parameterRoots(scenario: Scenario): readonly string[] {
 
 /** Term kinds a model kind's search supports. */
 export function supportedTerms(kind: ModelKind): readonly string[] {
-  return kind === 'slip' || kind === 'biped' ? ['survival', 'tracking', 'basin', 'step_down'] : [];
+  return kind === 'slip' || kind === 'biped' ? ['survival', 'tracking', 'basin', 'step_down'] : ['recovery'];
 }
 
 const KIND_NAMES: Record<ModelKind, string> = { slip: 'the single-leg model', biped: 'the two-leg model', lateral: 'the lateral leg-spring model' };
@@ -50,12 +63,18 @@ const KIND_NAMES: Record<ModelKind, string> = { slip: 'the single-leg model', bi
 /** Limits a model kind's search supports. */
 export function supportedLimits(kind: ModelKind): readonly string[] {
   const shared = ['max_leg_force_N', 'max_compression_fraction', 'leg_angle_range_deg', 'max_hip_rate_deg_per_s', 'stiffness_range_N_per_m'];
+  if (kind === 'lateral') return ['max_leg_force_N', 'max_compression_fraction'];
   return kind === 'biped' ? [...shared, 'max_vertical_force_N'] : [...shared.slice(0, 1), 'friction_coefficient', ...shared.slice(1)];
 }
 
 const LIMIT_REASONS: Record<string, string> = {
   'biped:friction_coefficient':
     'the two-leg kernel measures |Fx/Fy| of the summed ground force, which in double support is smaller than the friction either foot needs',
+  'lateral:friction_coefficient': 'the model lies in the horizontal plane: it has no vertical ground force to take |Fx/Fy| of',
+  'lateral:max_vertical_force_N': 'the model lies in the horizontal plane: it has no vertical ground force',
+  'lateral:leg_angle_range_deg': 'the leg is placed at the policy\'s fixed angle to the body axis, a free parameter bounded by its own lower and upper',
+  'lateral:max_hip_rate_deg_per_s': 'the lateral policy has a fixed touchdown angle and no schedule',
+  'lateral:stiffness_range_N_per_m': 'the lateral leg stiffness is one constant, a free parameter bounded by its own lower and upper',
   'slip:max_vertical_force_N': 'the peak summed vertical force of two legs; the single-leg model has one leg (use max_leg_force_N)',
 };
 
@@ -68,7 +87,7 @@ export function kindIssues(
   terms: readonly { kind: string; heights?: { high_m: number } }[],
   constraints: Record<string, unknown>,
 ): InputIssue[] {
-  const kind = kindOf(scenario);
+  const kind = studyKindOf(scenario);
   const issues: InputIssue[] = [];
   const terms_ = supportedTerms(kind);
   terms.forEach((term, i) => {
@@ -104,6 +123,11 @@ export function kindIssues(
     });
   }
   return issues;
+}
+
+/** The kind of a study's scenario (a lateral scenario is held where a Scenario goes: isLateralStudyScenario). */
+export function studyKindOf(scenario: { model?: string }): ModelKind {
+  return scenario.model === 'lateral' ? 'lateral' : kindOf(scenario);
 }
 
 /** Factors a model-mismatch robot draws: 3 for the single-leg model (mass, stiffness, length), 5 for two legs. */

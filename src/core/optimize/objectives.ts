@@ -30,11 +30,16 @@ import { InputError, describeFound } from '../errors.js';
 import { buildModel, DEG, landingLegLength, STATUS_NAMES, startInput } from '../model.js';
 import { isBiped, sectionEnergy, sectionInput, speedAtEnergy, startState } from '../models/biped.js';
 import { bipedRobotBlock, factorsPerRobot, shorterLegM, stiffnessScales } from './kinds.js';
+import { recoverRows, type RandomKickSpec } from '../analysis/recover.js';
+import type { LateralScenario } from '../models/lateral.js';
 import { parseScenario, type Scenario } from '../scenario.js';
 import { Z_95, newcombeDifferenceInterval, wilsonInterval } from '../stats.js';
 import {
   hasConstraints,
   isMonteCarloTerm,
+  lateralScenarioOf,
+  parseCandidateScenario,
+  type RecoveryTerm,
   scenarioValueAt,
   type BasinTerm,
   type ModelMismatch,
@@ -62,6 +67,13 @@ export const SCREENING_ROLLOUTS = 16;
  * before falling, the better).
  */
 export const FALL_TIE_BREAK = 0.5;
+
+/**
+ * The recovery term's tie-break for faster recovery: the mean over the recovered kicks of
+ * 1 − strides_to_recover / (strides_after + 1), times this, counts as that many recovered kicks.
+ * Below 1 (as FALL_TIE_BREAK), so it never outweighs one more kick recovered from.
+ */
+export const RECOVERY_TIE_BREAK = 0.5;
 
 /** A limit violated by more than this many times its own size counts as this much (keeps NLopt's values finite). */
 export const MAX_NORMALIZED_VIOLATION = 1e6;
@@ -106,12 +118,29 @@ export interface StepDownDetails {
   bounded_by: 'first_failure' | 'search_limit';
 }
 
+/** Lateral model: random kicks recovered from (the Monte Carlo of pronk recover). */
+export interface RecoveryDetails {
+  rollouts: number;
+  /** Kicks after which the gait recovered (as pronk recover's `recovered`). */
+  recovered: number;
+  recovery: number;
+  /** Wilson 1927 score interval at 95 %. */
+  wilson95: [number, number];
+  survived: number;
+  /** Median left touchdowns from the kick to recovery over the recovered kicks; null when none recovered. */
+  median_strides_to_recover: number | null;
+  /** Mean over the recovered kicks of 1 − strides_to_recover / (strides_after + 1); null when none recovered (the tie-break, RECOVERY_TIE_BREAK). */
+  speed_fraction: number | null;
+  /** Rollouts ended by each failure code (STATUS_NAMES), only codes that occurred. */
+  failures: Record<string, number>;
+}
+
 export interface TermResult {
   kind: TermKind;
   weight: number;
   /** The term's score (larger is better; see study.ts for each sense and scale). */
   score: number;
-  details: SurvivalDetails | TrackingDetails | BasinDetails | StepDownDetails;
+  details: SurvivalDetails | TrackingDetails | BasinDetails | StepDownDetails | RecoveryDetails;
 }
 
 export interface ConstraintResult {
@@ -359,6 +388,8 @@ export class StudyEvaluator {
 
   private readonly groups: BatchGroup[];
   private memo: Memo | null = null;
+  /** Lateral model: each recovery term's first kick stream (offset by the terms before it). */
+  private readonly kickStreams: number[] = [];
 
   constructor(
     readonly study: Study,
@@ -380,6 +411,21 @@ export class StudyEvaluator {
     // Streams and robots, fixed for every candidate.
     const plans: MonteCarloPlan[] = [];
     let streams = 0;
+    if (lateralScenarioOf(study.scenario)) {
+      // lateral: recovery terms only (kinds.ts); kick r of term j from stream offset_j + r
+      let kicks = 0;
+      this.rolloutsPerTerm = terms.map((term) => {
+        if (term.kind !== 'recovery') return null;
+        const span = set === 'holdout' ? study.holdout.rollouts : term.rollouts;
+        this.kickStreams.push(kicks);
+        kicks += span;
+        return set === 'screening' ? Math.min(term.rollouts, SCREENING_ROLLOUTS) : span;
+      });
+      this.groups = [];
+      this.invalidObjective = -INVALID_MARGIN;
+      this.invalidValue = INVALID_MARGIN + (this.constraintHandling === 'penalty' ? study.search.penalty_weight * this.constraintNames.length * INVALID_MARGIN ** 2 : 0);
+      return;
+    }
     this.rolloutsPerTerm = terms.map((term, i) => {
       if (!isMonteCarloTerm(term)) return null;
       // screening runs the first rollouts of each term's training streams (and robots)
@@ -450,7 +496,7 @@ export class StudyEvaluator {
   /** The candidate scenario: the base scenario with the free parameters set to x, validated (throws an InputError). */
   scenarioAt(x: readonly number[]): Scenario {
     this.checkLength(x);
-    return parseScenario(scenarioValueAt(this.study.scenario, this.study.free_parameters, x));
+    return parseCandidateScenario(scenarioValueAt(this.study.scenario, this.study.free_parameters, x));
   }
 
   /**
@@ -464,6 +510,7 @@ export class StudyEvaluator {
 
   /** The rollouts one evaluation runs in its Monte Carlo terms and nominal gait (the unit of evaluate's progress). */
   get rolloutCount(): number {
+    if (lateralScenarioOf(this.study.scenario)) return this.rolloutsPerTerm.reduce((n: number, r) => n + (r ?? 0), 0);
     return this.groups.reduce((n, g) => n + g.inputs.length / L.I_SIZE, 0);
   }
 
@@ -479,6 +526,32 @@ export class StudyEvaluator {
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       return { x, valid: false, nominal: { strides_completed: 0, strides: nominalStrides, status: 'invalid' }, rollouts: 0, survived: 0, stride_fraction: 0, viable: false, rank: -1 };
+    }
+    const lateral = lateralScenarioOf(scenario);
+    if (lateral) {
+      // the nominal gait: the periodic gait the kicks start from (none: every kick is refused)
+      const run = this.runLateral(lateral);
+      if ('failure' in run) {
+        return { x, valid: true, nominal: { strides_completed: 0, strides: nominalStrides, status: 'no_gait' }, rollouts: 0, survived: 0, stride_fraction: 0, viable: false, rank: 0 };
+      }
+      let rollouts = 0;
+      let recovered = 0;
+      for (const term of run.terms) {
+        const d = term.result.details as RecoveryDetails;
+        rollouts += d.rollouts;
+        recovered += d.recovered;
+      }
+      const fraction = rollouts > 0 ? recovered / rollouts : 1;
+      return {
+        x,
+        valid: true,
+        nominal: { strides_completed: nominalStrides, strides: nominalStrides, status: 'completed' },
+        rollouts,
+        survived: recovered,
+        stride_fraction: fraction,
+        viable: rollouts === 0 || recovered > 0,
+        rank: 1 + 2 * fraction,
+      };
     }
     const runs = this.runGroups(scenario);
     let rollouts = 0;
@@ -556,6 +629,8 @@ export class StudyEvaluator {
       return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, `invalid candidate: ${error.message}`));
     }
 
+    const lateral = lateralScenarioOf(scenario);
+    if (lateral) return this.runLateralCandidate(x, parameters, lateral, onRollouts);
     const terms = this.study.objective.terms;
     const results: (TermResult | null)[] = terms.map(() => null);
     const runs = this.runGroups(scenario, onRollouts);
@@ -655,6 +730,65 @@ export class StudyEvaluator {
     }
     monteCarlo.sort((a, b) => a.term - b.term);
     return { extremes, monteCarlo, nominal };
+  }
+
+  // Lateral model: every recovery term as the Monte Carlo of pronk recover (recoverRows), on this
+  // set's seed; the limits over the completed strides of every kicked rollout.
+  private runLateralCandidate(x: number[], parameters: Record<string, number>, scenario: LateralScenario, onRollouts?: (done: number, total: number) => void): Memo {
+    const run = this.runLateral(scenario, onRollouts);
+    if ('failure' in run) return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, `invalid candidate: ${run.failure}`));
+    const results = run.terms.map((t) => t.result);
+    const survived = new Map(run.terms.map((t) => [t.term, t.recovered] as const));
+    const objective = results.reduce((sum, t) => sum + t.weight * t.score, 0);
+    const constraints = measureConstraints(this.study, scenario as unknown as Scenario, run.extremes);
+    const penalty =
+      this.constraintHandling === 'penalty'
+        ? this.study.search.penalty_weight * constraints.reduce((sum, c) => sum + Math.max(0, c.normalized) ** 2, 0)
+        : 0;
+    const feasible = constraints.every((c) => c.margin === null || c.margin >= 0);
+    const value = -objective + penalty;
+    if (!Number.isFinite(value) || results.some((t) => !Number.isFinite(t.score))) {
+      return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, 'numerical failure: a score is not finite at this candidate'));
+    }
+    return this.remember(x, survived, { x, parameters, score: objective - penalty, value, objective, penalty, terms: results, constraints, feasible, valid: true });
+  }
+
+  private runLateral(
+    scenario: LateralScenario,
+    onRollouts?: (done: number, total: number) => void,
+  ): { failure: string } | { terms: { term: number; result: TermResult; recovered: Uint8Array }[]; extremes: Extremes } {
+    const engine = this.engine as Engine;
+    if (typeof engine.runLateral !== 'function') throw new Error('a lateral study needs the whole engine (runLateral), not a batch runner');
+    const extremes = new Extremes();
+    const terms: { term: number; result: TermResult; recovered: Uint8Array }[] = [];
+    const total = this.rolloutCount;
+    let done = 0;
+    let k = 0;
+    for (const [i, term] of this.study.objective.terms.entries()) {
+      if (term.kind !== 'recovery') continue;
+      const rollouts = this.rolloutsPerTerm[i]!;
+      const first = this.kickStreams[k++];
+      const spec = recoverySpec(term, this.seed, rollouts);
+      let rows: ReturnType<typeof recoverRows>;
+      try {
+        rows = recoverRows(
+          engine,
+          scenario,
+          spec,
+          { start: first, end: first + rollouts },
+          { stridesAfter: term.strides_after },
+          onRollouts && ((n) => onRollouts(done + n, total)),
+          (records, summaries, count, strides) => extremes.addLateral(records, summaries, count, strides, scenario.body.leg_length_m),
+        );
+      } catch (error) {
+        // no periodic gait at this candidate: nothing to kick (a status, never an abort)
+        if (error instanceof InputError) return { failure: error.message };
+        throw error;
+      }
+      done += rollouts;
+      terms.push({ term: i, result: recoveryResult(term, rows), recovered: Uint8Array.from(rows, (r) => r[1]) });
+    }
+    return { terms, extremes };
   }
 
   private remember(x: number[], survived: Map<number, Uint8Array>, evaluation: Evaluation): Memo {
@@ -775,6 +909,46 @@ function monteCarloModel(scenario: Scenario, term: MonteCarloTerm, seed: number)
   });
 }
 
+/** A recovery term's kicks as pronk recover --rollouts draws them, from stream 0 of `seed` on. */
+export function recoverySpec(term: RecoveryTerm, seed: number, rollouts: number): RandomKickSpec {
+  return {
+    stride: term.kick_stride,
+    max_forward_m_per_s: term.max_forward_m_per_s,
+    max_left_m_per_s: term.max_left_m_per_s,
+    max_angle_deg: term.max_angle_deg,
+    max_rate_deg_per_s: term.max_rate_deg_per_s,
+    seed,
+    rollouts,
+  };
+}
+
+function recoveryResult(term: RecoveryTerm, rows: ReturnType<typeof recoverRows>): TermResult {
+  const n = rows.length;
+  const done = rows.filter((r) => r[1] === 1);
+  const strides = done.map((r) => r[2] as number).sort((a, b) => a - b);
+  const speed = done.length > 0 ? strides.reduce((sum, k) => sum + (1 - k / (term.strides_after + 1)), 0) / done.length : null;
+  const failures: Record<string, number> = {};
+  for (const r of rows) {
+    if (r[0] === 1) continue;
+    const name = STATUS_NAMES[r[5]] ?? `status_${r[5]}`;
+    failures[name] = (failures[name] ?? 0) + 1;
+  }
+  // recovered kicks, plus the tie-break for faster recovery (RECOVERY_TIE_BREAK < 1: worth less than one more)
+  const credited = done.length + RECOVERY_TIE_BREAK * (speed ?? 0);
+  const details: RecoveryDetails = {
+    rollouts: n,
+    recovered: done.length,
+    recovery: done.length / n,
+    wilson95: wilsonInterval(done.length, n),
+    survived: rows.filter((r) => r[0] === 1).length,
+    // nearest rank (common practice)
+    median_strides_to_recover: strides.length ? strides[Math.ceil(0.5 * strides.length) - 1] : null,
+    speed_fraction: speed,
+    failures,
+  };
+  return { kind: 'recovery', weight: term.weight, score: credited / n, details };
+}
+
 /** The scenario's model on flat ground. */
 function flatModel(scenario: Scenario): ModelBlock {
   const model = buildModel(scenario);
@@ -848,6 +1022,19 @@ class Extremes {
   maxAttack = -Infinity;
   verticalForce = -Infinity;
   completed = 0;
+
+  /** Lateral model: the peak leg force and compression over the completed strides of a kernel call's rollouts (stride records). */
+  addLateral(records: Float64Array, summaries: Float64Array, rollouts: number, strides: number, legLength: number): void {
+    for (let r = 0; r < rollouts; r++) {
+      const completed = summaries[r * L.LS_SIZE + L.LS_STRIDES_COMPLETED];
+      this.completed += completed;
+      for (let k = 0; k < completed; k++) {
+        const at = (r * strides + k) * L.LR_SIZE;
+        this.peakForce = Math.max(this.peakForce, records[at + L.LR_PEAK_FORCE]);
+        this.compressionFraction = Math.max(this.compressionFraction, records[at + L.LR_MAX_COMPRESSION] / legLength);
+      }
+    }
+  }
 
   add(s: Float64Array, r: number, legLength: number): void {
     const at = r * L.S_SIZE;

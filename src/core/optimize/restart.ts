@@ -6,7 +6,7 @@
 import { loadEngine } from '../engine.js';
 import { minimize, seedToClock, type Outcome } from './nlopt.js';
 import { StudyEvaluator, type BatchEngine, type Evaluation } from './objectives.js';
-import { parseStudy, usesNativeConstraints } from './study.js';
+import { lateralScenarioOf, parseStudy, usesNativeConstraints } from './study.js';
 
 export interface RestartTask {
   /** The study, as validated JSON (re-validated here: a worker trusts nothing it is sent). */
@@ -49,7 +49,8 @@ export function restartSeed(searchSeed: number, restart: number): number {
 export async function runRestart(task: RestartTask, control: RestartControl = {}): Promise<RestartResult> {
   const started = performance.now();
   const study = parseStudy(task.study);
-  const engine = control.engine ?? (await loadEngine());
+  // a lateral study runs the whole engine in this thread (its kicks are drawn and judged here)
+  const engine = lateralScenarioOf(study.scenario) ? await loadEngine() : (control.engine ?? (await loadEngine()));
   const evaluator = new StudyEvaluator(study, engine, 'training');
   const native = usesNativeConstraints(study);
   // the start point first: its scores go in the result, and NLopt's first evaluation (at x0) reuses them

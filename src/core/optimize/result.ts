@@ -8,12 +8,11 @@
 import { modelHeader } from '../json-output.js';
 import type { ModelKind } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
-import { parseScenario } from '../scenario.js';
 import { contentHash, PRONK_VERSION } from '../version.js';
 import type { Outcome, StopReason } from './nlopt.js';
 import { markBinding, type ConstraintResult, type Evaluation, type PolicyComparison, type Rescore, type Screening } from './objectives.js';
 import type { RestartResult } from './restart.js';
-import { scenarioValueAt, usesNativeConstraints, type Study, type TermKind } from './study.js';
+import { parseCandidateScenario, scenarioValueAt, usesNativeConstraints, type Study, type TermKind } from './study.js';
 
 /** One point of a restart's convergence trace, in scores (larger is better). */
 export interface ScoreTracePoint {
@@ -278,7 +277,7 @@ export async function assembleResult(study: Study, record: SearchRecord): Promis
   const best = pickBest(results);
   const free = study.free_parameters;
   // the policy, the parameters and best_restart all come from this one winner
-  const scenario = parseScenario(scenarioValueAt(study.scenario, free, best.outcome.x));
+  const scenario = parseCandidateScenario(scenarioValueAt(study.scenario, free, best.outcome.x));
   const evaluations = results.reduce((n, r) => n + r.outcome.evaluations, 0);
   const holdout = record.holdout;
   const constraints = structuredClone(holdout ? holdout.best.evaluation.constraints : best.evaluation.constraints);

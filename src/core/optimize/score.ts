@@ -5,7 +5,7 @@
 
 import { loadEngine } from '../engine.js';
 import { StudyEvaluator, type BatchEngine, type Evaluation, type RolloutOutcomes, type Screening } from './objectives.js';
-import { parseStudy } from './study.js';
+import { lateralScenarioOf, parseStudy } from './study.js';
 
 export type ScoreTask =
   /** Screen candidate start points (StudyEvaluator.screen on the 'screening' set). */
@@ -38,14 +38,15 @@ export function scoreTaskSize(task: ScoreTask, study: { objective: { terms: read
   // the Monte Carlo rollouts and the nominal gait (StudyEvaluator.rolloutCount)
   let rollouts = 1;
   for (const term of study.objective.terms) {
-    if (term.kind === 'survival' || term.kind === 'tracking') rollouts += task.set === 'holdout' ? study.holdout.rollouts : term.rollouts!;
+    if (term.kind === 'survival' || term.kind === 'tracking' || term.kind === 'recovery') rollouts += task.set === 'holdout' ? study.holdout.rollouts : term.rollouts!;
   }
   return rollouts;
 }
 
 export async function runScoreTask(task: ScoreTask, control: ScoreControl = {}): Promise<ScoreResult> {
   const study = parseStudy(task.study);
-  const engine = control.engine ?? (await loadEngine());
+  // a lateral study runs the whole engine in this thread (its kicks are drawn and judged here)
+  const engine = lateralScenarioOf(study.scenario) ? await loadEngine() : (control.engine ?? (await loadEngine()));
   const stop = () => {
     if (control.shouldStop?.()) throw new ScoreCancelled();
   };

@@ -22,7 +22,7 @@ import {
 } from './result.js';
 import type { RestartProgress, RestartResult, RestartTask } from './restart.js';
 import { scoreTaskSize, type ScoreResult, type ScoreTask } from './score.js';
-import { isMonteCarloTerm, type Study } from './study.js';
+import { isRolloutTerm, type Study } from './study.js';
 
 export type SearchPhase = 'screening' | 'search' | 'holdout';
 
@@ -238,7 +238,7 @@ export async function searchStudy(study: Study, runner: SearchRunner, options: S
   if (!holdoutSignal.aborted) {
     const same = best.outcome.x.every((v, i) => Object.is(v, startPoint[i]));
     const points = same ? [startPoint] : [startPoint, best.outcome.x];
-    const monteCarlo = study.objective.terms.some(isMonteCarloTerm);
+    const monteCarlo = study.objective.terms.some(isRolloutTerm);
     const tasks: ScoreTask[] = points.map((x) => ({ kind: 'evaluate', study: studyJson, set: 'holdout', x, outcomes: monteCarlo }));
     const sizes = tasks.map((t) => scoreTaskSize(t, study));
     const total = sizes.reduce((a, b) => a + b, 0);

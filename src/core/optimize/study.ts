@@ -58,6 +58,10 @@
 //                              restarts [1], constraint_handling [native if the method takes
 //                              constraints (COBYLA, ISRES, AUGLAG), else penalty], penalty_weight
 //                              [100], seed (stochastic methods, restart points) [the study's seed]
+//  lateral scenarios           one term, recovery {rollouts, kick_stride (2), strides_after (20),
+//                              max_left_m_per_s, max_forward_m_per_s, max_angle_deg,
+//                              max_rate_deg_per_s}: the kicks pronk recover --rollouts draws
+//                              (kinds.ts for the paths and limits it takes)
 //  seed                        training terrains and model-mismatch draws
 //  holdout                     {seed (not the training seed), rollouts per Monte Carlo term}: re-scoring
 //                              on terrains and robots the search never saw
@@ -76,7 +80,8 @@ import { validateWith } from '../validation.js';
 import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
 import { landingLegLength } from '../model.js';
 import { requireKind } from '../models/kind.js';
-import { OPTIMIZE_KINDS, kindIssues, parameterRoots } from './kinds.js';
+import { LATERAL_PARAMETERS, OPTIMIZE_KINDS, kindIssues, parameterRoots } from './kinds.js';
+import { type LateralScenario, parseLateralScenario } from '../models/lateral.js';
 
 export const MAX_FREE_PARAMETERS = 64;
 export const MAX_TERM_ROLLOUTS = 1_000_000;
@@ -137,8 +142,15 @@ export const DEFAULT_XTOL_REL = 1e-4;
 export const DEFAULT_PENALTY_WEIGHT = 100;
 
 export type RandomTerrain = 'random_walk' | 'random_heights';
-export type TermKind = 'survival' | 'tracking' | 'basin' | 'step_down';
-export const TERM_KINDS: readonly TermKind[] = ['survival', 'tracking', 'basin', 'step_down'];
+export type TermKind = 'survival' | 'tracking' | 'basin' | 'step_down' | 'recovery';
+export const TERM_KINDS: readonly TermKind[] = ['survival', 'tracking', 'basin', 'step_down', 'recovery'];
+/** Default of a recovery term: strides run after the kick's stride (pronk recover --strides-after). */
+export const DEFAULT_RECOVERY_STRIDES_AFTER = 20;
+/** Default of a recovery term: the stride of the kick (pronk recover --kick-stride). */
+export const DEFAULT_RECOVERY_KICK_STRIDE = 2;
+/** Largest velocity kick a recovery term draws, m/s, and angular-velocity kick, deg/s. */
+export const MAX_KICK_SPEED_M_PER_S = 1000;
+export const MAX_KICK_RATE_DEG_PER_S = 100_000;
 
 // ---------------------------------------------------------------------------------------------
 // Field schemas; each carries its "expected" text (with the unit), used for every way it can fail.
@@ -238,8 +250,24 @@ const stepDownTerm = strictObject(
   'an object',
 );
 
+// Lateral model: random kicks as pronk recover --rollouts draws them (kick i from stream i).
+const recoveryTerm = strictObject(
+  {
+    kind: z.literal('recovery'),
+    weight,
+    rollouts: integerIn(1, MAX_TERM_ROLLOUTS),
+    kick_stride: integerIn(0, MAX_TERM_STRIDES).default(DEFAULT_RECOVERY_KICK_STRIDE),
+    strides_after: integerIn(3, MAX_TERM_STRIDES).default(DEFAULT_RECOVERY_STRIDES_AFTER),
+    max_left_m_per_s: between(0, MAX_KICK_SPEED_M_PER_S, 'm/s, the largest sideways velocity kick').default(0),
+    max_forward_m_per_s: between(0, MAX_KICK_SPEED_M_PER_S, 'm/s, the largest velocity kick along the body axis').default(0),
+    max_angle_deg: between(0, 180, 'deg, the largest body-angle kick').default(0),
+    max_rate_deg_per_s: between(0, MAX_KICK_RATE_DEG_PER_S, 'deg/s, the largest angular-velocity kick').default(0),
+  },
+  'an object',
+);
+
 const TERM_EXPECTED = `an object with kind ${TERM_KINDS.join(', ')}`;
-const termSchema = z.discriminatedUnion('kind', [survivalTerm, trackingTerm, basinTerm, stepDownTerm], {
+const termSchema = z.discriminatedUnion('kind', [survivalTerm, trackingTerm, basinTerm, stepDownTerm, recoveryTerm], {
   error: (issue) => ((issue.code as string) === 'invalid_type' ? TERM_EXPECTED : undefined),
 });
 
@@ -379,7 +407,20 @@ export interface StepDownTerm {
   grid_m: number;
 }
 
-export type ObjectiveTerm = SurvivalTerm | TrackingTerm | BasinTerm | StepDownTerm;
+/** Lateral model: the fraction of random kicks recovered from (pronk recover's Monte Carlo). */
+export interface RecoveryTerm {
+  kind: 'recovery';
+  weight: number;
+  rollouts: number;
+  kick_stride: number;
+  strides_after: number;
+  max_left_m_per_s: number;
+  max_forward_m_per_s: number;
+  max_angle_deg: number;
+  max_rate_deg_per_s: number;
+}
+
+export type ObjectiveTerm = SurvivalTerm | TrackingTerm | BasinTerm | StepDownTerm | RecoveryTerm;
 export type MonteCarloTerm = SurvivalTerm | TrackingTerm;
 
 export interface StudyConstraints {
@@ -437,6 +478,29 @@ export interface Study {
 
 export const isMonteCarloTerm = (term: ObjectiveTerm): term is MonteCarloTerm =>
   term.kind === 'survival' || term.kind === 'tracking';
+
+/** Terms of random rollouts, re-scored on the held-out seed and compared pair by pair. */
+export const isRolloutTerm = (term: ObjectiveTerm): term is MonteCarloTerm | RecoveryTerm => isMonteCarloTerm(term) || term.kind === 'recovery';
+
+/** A lateral scenario, held where a study's Scenario goes (its own type: models/lateral.ts). */
+export function lateralScenarioOf(scenario: Scenario): LateralScenario | null {
+  return (scenario as { model?: string }).model === 'lateral' ? (scenario as unknown as LateralScenario) : null;
+}
+
+/** A base scenario of any kind pronk optimize searches: the lateral one by its own validator. */
+function parseStudyScenario(value: unknown, options: { source?: string } = {}): Scenario {
+  if (typeof value === 'object' && value !== null && (value as { model?: unknown }).model === 'lateral') {
+    return parseLateralScenario(value, options) as unknown as Scenario;
+  }
+  const scenario = parseScenario(value, { command: 'optimize', supported: OPTIMIZE_KINDS, ...options });
+  requireKind(scenario, 'optimize', OPTIMIZE_KINDS);
+  return scenario;
+}
+
+/** The candidate scenario's value validated as its kind (a lateral one held as a Scenario: lateralScenarioOf). */
+export function parseCandidateScenario(value: Record<string, unknown>): Scenario {
+  return value.model === 'lateral' ? (parseLateralScenario(value) as unknown as Scenario) : parseScenario(value);
+}
 
 export const hasConstraints = (constraints: StudyConstraints): boolean =>
   Object.values(constraints).some((value) => value !== undefined);
@@ -543,8 +607,7 @@ export function parseStudy(value: unknown, options: ParseStudyOptions = {}): Stu
     issues.push({ path: 'scenario', expected: 'a scenario (an inline object) or scenario_file (a path relative to the study file)', found: 'missing' });
   } else if (hasInline) {
     try {
-      scenario = parseScenario(raw.scenario, { command: 'optimize', supported: OPTIMIZE_KINDS });
-      requireKind(scenario, 'optimize', OPTIMIZE_KINDS);
+      scenario = parseStudyScenario(raw.scenario);
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
       for (const issue of error.issues) issues.push({ ...issue, path: issue.path ? `scenario.${issue.path}` : 'scenario' });
@@ -623,6 +686,15 @@ function checkFreeParameters(list: ParsedFree[], scenario: Scenario, issues: Inp
       return null;
     }
     const canonical = formatPath(segments);
+    if (lateralScenarioOf(scenario) && !LATERAL_PARAMETERS.includes(canonical)) {
+      issues.push({
+        path: at('path'),
+        expected: `a number the lateral model's search moves: ${LATERAL_PARAMETERS.join(', ')}`,
+        found: describeFound(entry.path),
+        message: `scenario model "lateral": free parameter ${describeFound(entry.path)} is not searched (the lateral model's search moves ${LATERAL_PARAMETERS.join(', ')})`,
+      });
+      return null;
+    }
     const located = numberAtPath(scenario, segments);
     if ('problem' in located) {
       issues.push({ path: at('path'), expected: expectedPath, found: `${describeFound(entry.path)}: ${located.problem}` });
@@ -667,6 +739,8 @@ type ParsedTerm = z.output<typeof termSchema>;
 function completeTerm(term: ParsedTerm, i: number, scenario: Scenario, issues: InputIssue[]): ObjectiveTerm {
   const at = (field: string) => `objective.terms[${i}].${field}`;
   switch (term.kind) {
+    case 'recovery':
+      return term;
     case 'survival':
       return { ...term, strides: term.strides ?? scenario.strides };
     case 'tracking':
@@ -734,9 +808,10 @@ function checkWork(terms: ObjectiveTerm[], holdoutRollouts: number, search: Stud
   let training = 0;
   let heldOut = 0;
   terms.forEach((term) => {
-    if (!isMonteCarloTerm(term)) return;
-    training += term.rollouts * term.strides;
-    heldOut += holdoutRollouts * term.strides;
+    if (!isRolloutTerm(term)) return;
+    const strides = term.kind === 'recovery' ? term.kick_stride + 1 + term.strides_after : term.strides;
+    training += term.rollouts * strides;
+    heldOut += holdoutRollouts * strides;
   });
   if (training > MAX_EVALUATION_STRIDES) {
     issues.push({
@@ -836,7 +911,7 @@ function completeSearch(s: ParsedSearch, constraints: StudyConstraints, seed: nu
 
 function startScenarioIssue(study: Study): InputIssue | null {
   try {
-    parseScenario(scenarioValueAt(study.scenario, study.free_parameters, study.free_parameters.map((p) => p.start)));
+    parseCandidateScenario(scenarioValueAt(study.scenario, study.free_parameters, study.free_parameters.map((p) => p.start)));
     return null;
   } catch (error) {
     if (!(error instanceof InputError)) throw error;
@@ -861,8 +936,14 @@ export async function readStudyFile(path: string): Promise<Study> {
   let scenarioFromFile: Scenario | undefined;
   if (typeof file === 'string' && (value as Record<string, unknown>).scenario === undefined) {
     // the scenario file's own problems are reported against that file
-    scenarioFromFile = await readScenarioFile(resolve(dirname(path), file), { command: 'optimize', supported: OPTIMIZE_KINDS });
-    requireKind(scenarioFromFile, 'optimize', OPTIMIZE_KINDS, resolve(dirname(path), file));
+    const scenarioPath = resolve(dirname(path), file);
+    const scenarioValue = await readInputFile(scenarioPath, 'scenario file');
+    if (typeof scenarioValue === 'object' && scenarioValue !== null && (scenarioValue as { model?: unknown }).model === 'lateral') {
+      scenarioFromFile = parseLateralScenario(scenarioValue, { source: scenarioPath }) as unknown as Scenario;
+    } else {
+      scenarioFromFile = await readScenarioFile(scenarioPath, { command: 'optimize', supported: OPTIMIZE_KINDS });
+      requireKind(scenarioFromFile, 'optimize', OPTIMIZE_KINDS, scenarioPath);
+    }
   }
   return parseStudy(value, { source: path, scenarioFromFile });
 }
