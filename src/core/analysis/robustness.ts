@@ -212,15 +212,16 @@ export async function robustnessRows(
     const { runBatchParallel } = await import('../../worker/pool.js');
     batch = await runBatchParallel(req, { workers: execution.workers ?? 1, onProgress: execution.onProgress, signal: execution.signal });
   }
-  const rows: RobustnessRow[] = [];
-  for (let i = 0; i < count; i++) {
-    const s = (field: number) => batch.summaries[i * L.S_SIZE + field];
-    rows.push({
-      status: STATUS_NAMES[s(L.S_STATUS)] ?? `status_${s(L.S_STATUS)}`,
-      strides_completed: s(L.S_STRIDES_COMPLETED),
-      sum_sq_height_error_m2: s(L.S_SUM_SQ_HEIGHT_ERROR),
-      sum_sq_speed_error_m2_per_s2: s(L.S_SUM_SQ_SPEED_ERROR),
-    });
+  const rows: RobustnessRow[] = new Array(count);
+  const summaries = batch.summaries;
+  for (let i = 0, at = 0; i < count; i++, at += L.S_SIZE) {
+    const status = summaries[at + L.S_STATUS];
+    rows[i] = {
+      status: STATUS_NAMES[status] ?? `status_${status}`,
+      strides_completed: summaries[at + L.S_STRIDES_COMPLETED],
+      sum_sq_height_error_m2: summaries[at + L.S_SUM_SQ_HEIGHT_ERROR],
+      sum_sq_speed_error_m2_per_s2: summaries[at + L.S_SUM_SQ_SPEED_ERROR],
+    };
   }
   return rows;
 }
