@@ -27,13 +27,13 @@ export const STEPS = {
     run: () => tool('asc', ['assembly/index.ts', '--target', 'release']),
   },
   ts: {
-    what: 'the CLI and library (tsc) and the JSON Schemas',
+    what: 'the CLI and library (tsc, zod as one module) and the JSON Schemas',
     inputs: [
       'src/index.ts', 'src/core', 'src/cli', 'src/worker', 'src/types', 'assembly/layout.ts', 'scenarios',
-      'package.json', 'package-lock.json', 'tsconfig.json', 'tsconfig.build.json', 'scripts/build-schemas.mjs',
+      'package.json', 'package-lock.json', 'tsconfig.json', 'tsconfig.build.json', 'scripts/build-schemas.mjs', 'scripts/bundle-zod.mjs',
     ],
-    outputs: ['dist/src/index.js', 'dist/src/index.d.ts', 'dist/src/cli/main.js', 'schemas/scenario.schema.json', 'schemas/study.schema.json', 'schemas/result.schema.json'],
-    run: () => tool('tsc', ['-p', 'tsconfig.build.json']) && node('scripts/build-schemas.mjs'),
+    outputs: ['dist/src/index.js', 'dist/src/index.d.ts', 'dist/src/cli/main.js', 'dist/vendor/zod.js', 'schemas/scenario.schema.json', 'schemas/study.schema.json', 'schemas/result.schema.json'],
+    run: () => tool('tsc', ['-p', 'tsconfig.build.json']) && node('scripts/bundle-zod.mjs') && node('scripts/build-schemas.mjs'),
   },
   ui: {
     what: 'the workbench (vite)',

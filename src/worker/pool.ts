@@ -6,7 +6,8 @@
 // Node only. The browser workbench has its own comlink pool over the same engine.
 
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+// node:worker_threads is loaded when a pool is first made: a one-worker batch runs in this thread
+import type { Worker } from 'node:worker_threads';
 import * as L from '../../assembly/layout.js';
 import { loadEngine, type BatchRequest, type BatchResult } from '../core/engine.js';
 import { compiledWorkerUrl } from './paths.js';
@@ -133,8 +134,8 @@ class PoolWorker {
   private nextId = 0;
   dead = false;
 
-  constructor(url: URL) {
-    this.worker = new Worker(url);
+  constructor(WorkerThread: typeof Worker, url: URL) {
+    this.worker = new WorkerThread(url);
     this.worker.unref();
     this.worker.on('message', (reply: ChunkReply) => {
       const p = this.pending.get(reply.id);
@@ -175,9 +176,10 @@ class PoolWorker {
 let pool: PoolWorker[] = [];
 
 async function workerPool(size: number): Promise<PoolWorker[]> {
+  const { Worker: WorkerThread } = await import('node:worker_threads'); // before the pool is read: no await after
   pool = pool.filter((w) => !w.dead);
   const url = compiledWorkerUrl('node-batch-worker.js');
-  while (pool.length < size) pool.push(new PoolWorker(url));
+  while (pool.length < size) pool.push(new PoolWorker(WorkerThread, url));
   return pool.slice(0, size);
 }
 
