@@ -558,16 +558,43 @@ describe('every command on the lateral demo', () => {
     expect(b.code).toBe(2);
     expect(b.err).toMatch(/scenario model "biped": recover supports "slip" and "lateral", found "biped"/);
   });
-  for (const cmd of ['stepdown', 'robustness', 'deadbeat']) {
+  it('robustness runs the Monte Carlo over random kicks of recover --rollouts: the same JSON but for the format in the header', async () => {
+    const kicks = ['--kick-left', '0.2', '--kick-rate', '50', '--rollouts', '9', '--seed', '4', '--json'];
+    const robust = await run(['robustness', demo, ...kicks, '--strides', '12', '--workers', '1']);
+    expect(robust.code, robust.err).toBe(0);
+    const recover = await run(['recover', demo, ...kicks, '--strides-after', '12']);
+    expect(recover.code, recover.err).toBe(0);
+    const j = JSON.parse(robust.out);
+    expect([j.format, j.model, j.section]).toEqual(['pronk-robustness', 'lateral', 'left_touchdown']);
+    expect(j.rollouts).toBe(9);
+    expect(j.caution).toMatch(/not a guarantee/);
+    // only the header's format line differs
+    expect(robust.out.replace('"format": "pronk-robustness"', '"format": "pronk-recover"')).toBe(recover.out);
+    expect(robust.out).not.toBe(recover.out);
+  });
+  it('robustness on a lateral scenario refuses the terrain options by name (no ground: kicks), and needs a kick', async () => {
+    for (const [flag, value] of [['--sigma', '0.01'], ['--terrain', 'random_walk'], ['--target-height', '0.1'], ['--target-speed', '1']]) {
+      const r = await run(['robustness', demo, '--kick-left', '0.1', flag, value]);
+      expect(r.code).toBe(2);
+      expect(r.out).toBe('');
+      expect(r.err).toContain(`${flag}: expected no such option for a lateral scenario: the lateral model has no ground, its disturbances are kicks`);
+    }
+    const none = await run(['robustness', demo]);
+    expect(none.code).toBe(2);
+    expect(none.err).toMatch(/--kick-left: expected a kick/);
+    const slip = await run(['robustness', 'scenarios/demo.json', '--sigma', '0.01', '--kick-left', '0.1']);
+    expect(slip.code).toBe(2);
+    expect(slip.err).toMatch(/--kick-left: expected no kick for a single-leg or two-leg scenario/);
+  });
+  for (const cmd of ['stepdown', 'deadbeat']) {
     it(`${cmd} refuses it (exit 2, the model and the commands that run it)`, async () => {
-      const extra =
-        cmd === 'robustness' ? ['--sigma', '0.01'] : cmd === 'deadbeat' ? ['--ground=-0.03:0.01'] : [];
+      const extra = cmd === 'deadbeat' ? ['--ground=-0.03:0.01'] : [];
       const r = await run([cmd, demo, ...extra]);
       expect(r.code).toBe(2);
       const kinds = cmd === 'deadbeat' ? '"slip"' : '"slip" and "biped"';
       expect(r.err).toContain(`scenario model "lateral": ${cmd} supports ${kinds}, found "lateral"; pronk ${commandsRunning('lateral').join(', ')} run a "lateral" scenario`);
       // the list is the commands' own table: every command that runs a lateral scenario is in it
-      expect(commandsRunning('lateral')).toEqual(expect.arrayContaining(['simulate', 'map', 'scan', 'basin', 'recover']));
+      expect(commandsRunning('lateral')).toEqual(expect.arrayContaining(['simulate', 'map', 'scan', 'basin', 'robustness', 'recover']));
     });
   }
 });

@@ -95,7 +95,8 @@ const FIXTURES: Record<ModelKind, Fixture> = {
       scan: ['--x', 'body.attachment_offset_m:-0.014:-0.01:3', '--y', 'start.speed_m_per_s:1.2:1.4:2'],
       basin: ['--headings=-10:10:3', '--rates=-50:50:2', '--strides', '10'],
       stepdown: ['--after', '5'],
-      robustness: ['--sigma', '0.002', '--rollouts', '12', '--strides', '5'],
+      // no ground: random kicks, the Monte Carlo of recover --rollouts
+      robustness: ['--kick-left', '0.05', '--rollouts', '8', '--strides', '10'],
       recover: ['--kick-left', '0.05', '--rollouts', '8', '--strides-after', '10'],
       deadbeat: ['--ground=-0.01:0.01'],
     },

@@ -39,6 +39,11 @@ async function lateralView(command: string): Promise<View> {
   const lateral = await import('./lateral.js');
   if (command === 'basin') return { json: (s, r) => lateral.lateralBasinJson(s as never, r as never), text: (s, r) => lateral.renderLateralBasin(s as never, r as never) };
   if (command === 'scan') return { json: (s, r) => lateral.lateralScanJson(s as never, r as never), text: (s, r) => lateral.renderLateralScan(s as never, r as never) };
+  if (command === 'robustness') {
+    // the Monte Carlo over random kicks of recover --rollouts, under the robustness header
+    const { recoverMonteCarloJson, renderMonteCarlo } = await import('./recover.js');
+    return { json: (_s, r) => recoverMonteCarloJson(r as never, 'robustness'), text: (s, r) => renderMonteCarlo(s as never, r as never) };
+  }
   const load = VIEWS[command];
   if (!load) throw new Error(`no view for the merged command ${command}`);
   return load();

@@ -14,8 +14,9 @@ import type { Scenario } from '../core/scenario.js';
 import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { startProgress } from './progress.js';
+import type { ShardSpec } from '../core/shard.js';
 import { SHARD_OPTIONS, makePartial, outOption, shardOption, shardRange, writePartial, writeText } from './shard-output.js';
-import { checkOutputs, outputRequest } from './output-files.js';
+import { checkOutputs, outputRequest, type CheckedOutput } from './output-files.js';
 
 const SOURCE = 'pronk recover';
 const TEXT_WIDTH = 96;
@@ -68,22 +69,53 @@ export const recoverCommand: Command = {
   run: runRecover,
 };
 
-function numberOption(value: string | boolean | undefined, flag: string, low: number, high: number, unit: string): number | undefined {
+function numberOption(value: string | boolean | undefined, flag: string, low: number, high: number, unit: string, source = SOURCE): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
   const x = decimalNumber(value);
   if (!Number.isFinite(x) || x < low || x > high) {
-    throw new InputError([{ path: flag, expected: expectedDecimal(`a number from ${low} to ${high} (${unit})`, value), found: describeFound(value) }], { source: SOURCE });
+    throw new InputError([{ path: flag, expected: expectedDecimal(`a number from ${low} to ${high} (${unit})`, value), found: describeFound(value) }], { source });
   }
   return x;
 }
 
-function integerOption(value: string | boolean | undefined, flag: string, low: number, high: number): number | undefined {
+function integerOption(value: string | boolean | undefined, flag: string, low: number, high: number, source = SOURCE): number | undefined {
   if (value === undefined || typeof value === 'boolean') return undefined;
   const n = decimalDigits(value);
   if (!(n >= low && n <= high)) {
-    throw new InputError([{ path: flag, expected: expectedDecimal(`an integer from ${low} to ${high}`, value, true), found: describeFound(value) }], { source: SOURCE });
+    throw new InputError([{ path: flag, expected: expectedDecimal(`an integer from ${low} to ${high}`, value, true), found: describeFound(value) }], { source });
   }
   return n;
+}
+
+/** The options of the lateral kicks, shared by `pronk robustness` on a lateral scenario (same names, bounds and defaults). */
+export const LATERAL_KICK_OPTIONS = {
+  'kick-left': { type: 'string', valueName: 'V', description: 'lateral scenario: largest velocity change across the body axis, m/s (default 0)' },
+  'kick-forward': { type: 'string', valueName: 'V', description: 'lateral scenario: largest velocity change along the body axis, m/s (default 0)' },
+  'kick-angle': { type: 'string', valueName: 'DEG', description: 'lateral scenario: largest body angle change, deg (default 0)' },
+  'kick-rate': { type: 'string', valueName: 'DEG/S', description: 'lateral scenario: largest angular velocity change, deg/s (default 0)' },
+  'kick-stride': { type: 'string', valueName: 'N', description: `lateral scenario: stride of the kick, from 0 (default ${DEFAULT_KICK_STRIDE})` },
+} as const;
+
+/**
+ * The largest random kick sizes and the kick's stride from the command line, as `pronk recover
+ * --rollouts` reads them (the same bounds and defaults); at least one size must be non-zero.
+ */
+export function parseRandomKicks(
+  values: ParsedCommandLine['values'],
+  source: string,
+): { forward: number; left: number; angle: number; rate: number; stride: number } {
+  const left = numberOption(values['kick-left'], '--kick-left', -1e3, 1e3, 'm/s', source);
+  const forward = numberOption(values['kick-forward'], '--kick-forward', -1e3, 1e3, 'm/s', source);
+  const angle = numberOption(values['kick-angle'], '--kick-angle', -180, 180, 'deg', source);
+  const rate = numberOption(values['kick-rate'], '--kick-rate', -1e5, 1e5, 'deg/s', source);
+  const stride = integerOption(values['kick-stride'], '--kick-stride', 0, 100_000, source) ?? DEFAULT_KICK_STRIDE;
+  if (!left && !forward && !angle && !rate) {
+    throw new InputError(
+      [{ path: '--kick-left', expected: 'a kick: at least one of --kick-left, --kick-forward, --kick-angle, --kick-rate not 0', found: 'none' }],
+      { source },
+    );
+  }
+  return { forward: Math.abs(forward ?? 0), left: Math.abs(left ?? 0), angle: Math.abs(angle ?? 0), rate: Math.abs(rate ?? 0), stride };
 }
 
 async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
@@ -195,9 +227,35 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
     seed: seed ?? DEFAULT_SEED,
     rollouts,
   };
-  const run = { kicks: spec, strides_after: stridesAfter ?? recover.DEFAULT_STRIDES_AFTER, tolerances };
-  const range = shard ? withSource(() => shardRange(rollouts, shard)) : { start: 0, end: rollouts };
-  const progress = startProgress(io, 'recover', { unit: 'rollouts' });
+  return runLateralMonteCarlo(io, { command: 'recover', scenario: s, kicks: spec, stridesAfter, tolerances, shard, outFile, json });
+}
+
+/**
+ * The Monte Carlo over random kicks of a lateral scenario, run and printed: `pronk recover
+ * --rollouts` and `pronk robustness` on a lateral scenario (the same rows, finisher and views; only
+ * the JSON header's format and the partial result's command differ).
+ */
+export async function runLateralMonteCarlo(
+  io: CliIO,
+  a: {
+    command: 'recover' | 'robustness';
+    scenario: LateralScenario;
+    kicks: RandomKickSpec;
+    stridesAfter: number | undefined;
+    tolerances: Partial<RecoverTolerances>;
+    shard: ShardSpec | undefined;
+    outFile: CheckedOutput | undefined;
+    json: boolean;
+  },
+): Promise<number> {
+  const { scenario: s, kicks: spec, shard, outFile, tolerances } = a;
+  const { loadEngine } = await import('../core/engine.js');
+  const recover = await import('../core/analysis/recover.js');
+  const engine = await loadEngine();
+  const rollouts = spec.rollouts;
+  const run = { kicks: spec, strides_after: a.stridesAfter ?? recover.DEFAULT_STRIDES_AFTER, tolerances };
+  const range = shard ? withSource(() => shardRange(rollouts, shard), `pronk ${a.command}`) : { start: 0, end: rollouts };
+  const progress = startProgress(io, a.command, { unit: 'rollouts' });
   let rows: ReturnType<typeof recover.recoverRows>;
   try {
     progress.phase('kicks', range.end - range.start);
@@ -206,25 +264,25 @@ async function runRecover({ values, positionals }: ParsedCommandLine, io: CliIO)
     progress.done();
   }
   if (shard) {
-    const partial = await makePartial({ command: 'recover', scenario: s, options: run as unknown as Record<string, unknown>, spec: shard, range, total: rollouts, rows });
+    const partial = await makePartial({ command: a.command, scenario: s, options: run as unknown as Record<string, unknown>, spec: shard, range, total: rollouts, rows });
     await writePartial(io, outFile, partial);
     return 0;
   }
   const r = await recover.finishRecoverRun(s, run, rows);
-  await writeText(io, outFile, json ? recoverMonteCarloJson(r) : renderMonteCarlo(s, r), 'recover');
+  await writeText(io, outFile, a.json ? recoverMonteCarloJson(r, a.command) : renderMonteCarlo(s, r), a.command);
   return 0;
 }
 
 /** The --json text of a Monte Carlo recovery (also what `pronk merge --json` prints). */
-export function recoverMonteCarloJson(r: RecoverMonteCarloResult): string {
-  return jsonText('recover', { ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
+export function recoverMonteCarloJson(r: RecoverMonteCarloResult, command: 'recover' | 'robustness' = 'recover'): string {
+  return jsonText(command, { ...r, caution: SAFETY_CAUTION }, LATERAL_HEADER);
 }
 
-function withSource<T>(f: () => T): T {
+function withSource<T>(f: () => T, source = SOURCE): T {
   try {
     return f();
   } catch (error) {
-    if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source: SOURCE });
+    if (error instanceof InputError && error.source === undefined) throw new InputError(error.issues, { source });
     throw error;
   }
 }

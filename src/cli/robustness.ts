@@ -1,7 +1,8 @@
 // `pronk robustness [FILE] --sigma S [--rollouts R] [--seed N] ...`: Monte Carlo survival over
 // seeded random terrain, on the worker pool, optionally one shard of it (`--shard i/n`).
 
-import { scenarioArgument } from './scenario-argument.js';
+import { anyScenarioArgument, scenarioArgument } from './scenario-argument.js';
+import { LATERAL_KICK_OPTIONS, parseRandomKicks, runLateralMonteCarlo } from './recover.js';
 import { InputError, describeFound } from '../core/errors.js';
 import { jsonText, modelHeader } from '../core/json-output.js';
 import { startProgress } from './progress.js';
@@ -28,6 +29,8 @@ const DEMO_SOURCE = 'scenarios/demo.json';
 const SOURCE = 'pronk robustness';
 export const DEFAULT_ROLLOUTS = 1000;
 export const DEFAULT_SEED = 1;
+// the bound of `pronk recover --rollouts`
+const MAX_LATERAL_ROLLOUTS = 1_000_000;
 
 /** The core's option names as flags, so its messages name what the user typed. */
 const FLAG_NAMES: RobustnessOptionNames = {
@@ -43,11 +46,18 @@ const FLAG_NAMES: RobustnessOptionNames = {
 export const robustnessCommand: Command = {
   name: 'robustness',
   summary: 'Monte Carlo survival on seeded random terrain: survival with its Wilson 95 % interval, failures, apex RMS',
-  usage: 'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--target-height M] [--target-speed V] [--workers N] [--shard I/N] [--out FILE] [--plot FILE.svg] [--json]',
+  usage:
+    'robustness [FILE] --sigma S [--rollouts R] [--seed N] [--strides N] [--terrain KIND] [--target-height M] [--target-speed V] [--workers N] [--shard I/N] [--out FILE] [--plot FILE.svg] [--json] ' +
+    '(lateral FILE: --kick-left V, --kick-forward V, --kick-angle DEG, --kick-rate DEG/S, --kick-stride N instead of the terrain options)',
   details:
     "Runs R rollouts of the scenario's strides from its start apex on random terrain that replaces the scenario's own: " +
     'rollout r runs on terrain stream r of the seed, so the same seed gives the same terrains to every policy compared ' +
-    '(common random numbers). The result does not depend on --workers or on how the run is sharded.',
+    '(common random numbers). The result does not depend on --workers or on how the run is sharded.\n' +
+    'A "lateral" scenario has no ground: its disturbances are kicks. robustness then runs the Monte Carlo over random ' +
+    'kicks of `pronk recover --rollouts` (the same result, under the pronk-robustness header): each kick size uniform in ' +
+    '[-V, V] for the --kick-* options (at least one not 0), at a uniform moment of stride --kick-stride, rollout r from ' +
+    'stream r of --seed, --strides strides after the kick (default 30), survival and recovery with Wilson 95 % intervals. ' +
+    '--sigma, --terrain, --target-height, --target-speed and --plot are refused; it runs in this process (--workers is checked only).',
   arguments: [{ name: 'FILE', description: `scenario file (JSON); without it, the built-in demo (${DEMO_SOURCE})` }],
   options: {
     json: { type: 'boolean', description: 'print the result as JSON on stdout (and nothing else there)' },
@@ -77,6 +87,7 @@ export const robustnessCommand: Command = {
     workers: workersOption(),
     ...SHARD_OPTIONS,
     plot: PLOT_OPTION,
+    ...LATERAL_KICK_OPTIONS,
   },
   maxPositionals: 1,
   run: runRobustness,
@@ -84,6 +95,14 @@ export const robustnessCommand: Command = {
 
 async function runRobustness({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
   const json = values.json === true;
+  if (positionals[0] !== undefined && (await isLateralFile(positionals[0]))) return runLateralRobustness({ values, positionals }, io);
+  const kickGiven = Object.keys(LATERAL_KICK_OPTIONS).find((name) => values[name] !== undefined);
+  if (kickGiven !== undefined) {
+    throw new InputError(
+      [{ path: `--${kickGiven}`, expected: 'no kick for a single-leg or two-leg scenario (its disturbances are terrain: --sigma, --terrain)', found: describeFound(values[kickGiven]) }],
+      { source: SOURCE },
+    );
+  }
   const options = parseRobustnessFlags(values);
   const workers = parseWorkers(values, SOURCE);
   const spec = shardOption(values);
@@ -135,6 +154,65 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   await writeText(io, outFile, text, 'robustness');
   if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
   return 0;
+}
+
+// Whether FILE is a readable "lateral" scenario; anything else (unreadable, another kind) takes
+// the single-leg path, which reports it as before.
+async function isLateralFile(file: string): Promise<boolean> {
+  try {
+    const { readScenarioValue } = await import('../core/scenario.js');
+    const { modelKindOf } = await import('../core/models/kind.js');
+    return modelKindOf(await readScenarioValue(file), file) === 'lateral';
+  } catch {
+    return false;
+  }
+}
+
+// robustness on a lateral scenario: the Monte Carlo over random kicks of `pronk recover --rollouts`
+async function runLateralRobustness({ values, positionals }: ParsedCommandLine, io: CliIO): Promise<number> {
+  const file = positionals[0];
+  for (const name of ['sigma', 'terrain', 'target-height', 'target-speed', 'plot']) {
+    if (values[name] !== undefined) {
+      throw new InputError(
+        [
+          {
+            path: `--${name}`,
+            expected: 'no such option for a lateral scenario: the lateral model has no ground, its disturbances are kicks (--kick-left, --kick-forward, --kick-angle, --kick-rate)',
+            found: describeFound(values[name]),
+          },
+        ],
+        { source: SOURCE },
+      );
+    }
+  }
+  const kicks = parseRandomKicks(values, SOURCE);
+  const rollouts = parseIntegerOption(values.rollouts, '--rollouts', 1, MAX_LATERAL_ROLLOUTS, SOURCE) ?? DEFAULT_ROLLOUTS;
+  const seed = parseIntegerOption(values.seed, '--seed', 0, Number.MAX_SAFE_INTEGER, SOURCE) ?? DEFAULT_SEED;
+  const strides = parseIntegerOption(values.strides, '--strides', 3, 100_000, SOURCE);
+  parseWorkers(values, SOURCE);
+  const spec = shardOption(values);
+  const out = outOption(values);
+  const [outFile] = await checkOutputs([outputRequest('--out', out)], [scenarioInput(file)], { source: SOURCE });
+  const any = await anyScenarioArgument(file, io, 'robustness');
+  if (any.kind !== 'lateral') throw new Error('robustness: the file changed kind while it was read');
+  return runLateralMonteCarlo(io, {
+    command: 'robustness',
+    scenario: any.scenario,
+    kicks: {
+      stride: kicks.stride,
+      max_forward_m_per_s: kicks.forward,
+      max_left_m_per_s: kicks.left,
+      max_angle_deg: kicks.angle,
+      max_rate_deg_per_s: kicks.rate,
+      seed,
+      rollouts,
+    },
+    stridesAfter: strides,
+    tolerances: {},
+    shard: spec,
+    outFile,
+    json: values.json === true,
+  });
 }
 
 /** The analysis options from the command line (checked for syntax here, for range by the core). */

@@ -15,7 +15,7 @@ export const DEMO_SOURCE = 'scenarios/demo.json';
 export const COMMAND_KINDS: Record<string, readonly ModelKind[]> = {
   simulate: ['slip', 'biped', 'lateral'],
   map: ['slip', 'biped', 'lateral'],
-  robustness: ['slip', 'biped'],
+  robustness: ['slip', 'biped', 'lateral'],
   stepdown: ['slip', 'biped'],
   scan: ['slip', 'biped', 'lateral'],
   basin: ['slip', 'biped', 'lateral'],

@@ -50,6 +50,8 @@ const LATERAL_FINISHERS: Record<string, () => Promise<Finisher>> = {
   basin: async () => (await import('./analysis/lateral-basin.js')).finishLateralBasinMerge as unknown as Finisher,
   scan: async () => (await import('./analysis/lateral-scan.js')).finishLateralScanMerge as unknown as Finisher,
   recover: FINISHERS.recover,
+  // robustness on a lateral scenario is the Monte Carlo over random kicks of recover --rollouts
+  robustness: FINISHERS.recover,
 };
 const LATERAL_ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<string, unknown>) => Promise<number>> = {
   basin: async (_scenario, options) => {
@@ -58,6 +60,7 @@ const LATERAL_ITEM_COUNTS: Record<string, (scenario: Scenario, options: Record<s
   },
   scan: ITEM_COUNTS.scan,
   recover: ITEM_COUNTS.recover,
+  robustness: ITEM_COUNTS.recover,
 };
 
 export const MERGEABLE_COMMANDS: readonly string[] = Object.keys(FINISHERS);
