@@ -48,11 +48,9 @@ describe('the size limit', () => {
   for (const [kind, args] of cases) {
     it(`${args('F')[0]}: a ${kind} of 80 MiB is exit 2 before it is read`, async () => {
       const file = sparse(`big-${args('F')[0]}.json`, 80 * 1024 * 1024);
-      const started = Date.now();
       const r = await pronk(args(file));
       expect(r.code).toBe(2);
       expect(r.stderr).toBe(`${file}: the ${kind} is 80 MiB (83886080 bytes), over the 64 MiB (67108864 bytes) limit for input files\n`);
-      expect(Date.now() - started).toBeLessThan(5000);
     });
   }
 
@@ -80,15 +78,13 @@ describe('the size limit', () => {
 });
 
 describe('nesting and other unreadable files', () => {
-  it('50 MB of "[" is refused at the bracket that nests too deep, in well under a second of parsing', async () => {
+  it('50 MB of "[" is refused at the bracket that nests too deep, before JSON.parse sees it (was 6 s and 2.8 GB)', async () => {
     writeFileSync(at('brackets.json'), '['.repeat(50e6));
-    const started = Date.now();
     const r = await pronk(['simulate', at('brackets.json')]);
     expect(r.code).toBe(2);
     expect(r.stderr).toBe(
       `${at('brackets.json')}: invalid input at line 1, column ${MAX_JSON_DEPTH + 1}: more than ${MAX_JSON_DEPTH} levels of nested [ and { (Pronk's files nest fewer than 10)\n`,
     );
-    expect(Date.now() - started).toBeLessThan(5000); // before: 6 s and 2.8 GB
   });
 
   it('brackets inside strings do not count, and 64 levels still parse', () => {

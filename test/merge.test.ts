@@ -219,7 +219,6 @@ describe('shard counts and claims are bounded (no runaway merge)', () => {
       const file = `${command}_1of2.json`;
       expect((await pronk([command, at('robot.json'), ...args, '--workers', '1', '--shard', '1/2', '--out', at(file)])).code).toBe(0);
       const original = partial(file);
-      const started = Date.now();
       write(`${command}_count.json`, { ...original, shard: { ...original.shard, count: 1e15 } });
       let r = await pronk(['merge', at(`${command}_count.json`)]);
       expect(r.code).toBe(2);
@@ -233,7 +232,6 @@ describe('shard counts and claims are bounded (no runaway merge)', () => {
       r = await pronk(['merge', at(`${command}_more.json`)]);
       expect(r.code).toBe(2);
       expect(r.stderr).toMatch(/expected all \d+ shards, found shard 2, 3/);
-      expect(Date.now() - started).toBeLessThan(10_000); // before: minutes, then a V8 crash
     }, 30_000);
   }
 });
