@@ -71,7 +71,8 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     const node = await apexReturnMap(demoScenario());
     expect(await firstFixedPoint()).toBeCloseTo(node.fixed_points[0].apex_height_m, 5);
     expect(await page.getByTestId('fixed-point').count()).toBe(node.fixed_points.length);
-    expect(await revision('figure-map')).toBeGreaterThan(0);
+    // the chart library loads lazily, so the figure may draw a moment after the table shows
+    await expect.poll(() => revision('figure-map'), { timeout: 20_000 }).toBeGreaterThan(0);
     expect(await page.locator('footer').textContent()).toContain('Simulation results are not a guarantee');
     await shot('return-map');
   });
@@ -85,7 +86,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     const stable = node.fixed_points.find((f) => f.stable)!;
     expect(after).toBeCloseTo(node.fixed_points[0].apex_height_m, 5);
     expect(stable).toBeDefined();
-    expect(await revision('figure-map')).toBeGreaterThan(drawn);
+    await expect.poll(() => revision('figure-map'), { timeout: 20_000 }).toBeGreaterThan(drawn);
   });
 
   it('flags an invalid value beside its field and keeps computing on the last valid scenario', async () => {
@@ -133,7 +134,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     expect(await rows.count()).toBe(3);
     expect(await rows.first().locator('td').first().textContent()).toBe('Attack angle at apex (°)');
     expect(await rows.first().locator('td').first().getAttribute('title')).toBe('policy.angle.attack_at_apex_deg');
-    expect(await revision('figure-convergence')).toBeGreaterThan(0);
+    await expect.poll(() => revision('figure-convergence'), { timeout: 20_000 }).toBeGreaterThan(0);
     expectLegendsWhole(await t.option('figure-convergence'));
     // the margins as a share of each limit, the binding one marked
     const margins = page.getByTestId('limit-margins');
@@ -361,7 +362,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     const at = Number(await scrub.inputValue());
     await page.keyboard.press('ArrowRight');
     expect(Number(await scrub.inputValue())).toBe(at + 1);
-    expect(await revision('figure-scene')).toBeGreaterThan(1);
+    await expect.poll(() => revision('figure-scene'), { timeout: 20_000 }).toBeGreaterThan(1);
     await shot('stride');
     await expect.poll(() => revision('figure-forces')).toBeGreaterThan(0);
     const option = await t.option('figure-forces');
