@@ -69,10 +69,11 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
   });
 
   it('disables the views a two-leg scenario does not run, with the reason', async () => {
-    expect(await page.locator('#tab-optimize').getAttribute('aria-disabled')).toBe('true');
-    expect(await page.locator('#tab-optimize').getAttribute('title')).toMatch(/not in the workbench for the two-leg model/);
-    await page.locator('#tab-optimize').click({ force: true }); // a mouse click on the disabled tab shows its reason
-    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The optimizer: not in the workbench for the two-leg model yet/);
+    expect(await page.locator('#tab-compare').getAttribute('aria-disabled')).toBe('true');
+    expect(await page.locator('#tab-compare').getAttribute('title')).toMatch(/not in the workbench for the two-leg model/);
+    await page.locator('#tab-compare').click({ force: true }); // a mouse click on the disabled tab shows its reason
+    await expect.poll(() => page.getByTestId('view-unsupported').textContent()).toMatch(/^The comparison: not in the workbench for the two-leg model yet/);
+    expect(await page.locator('#tab-optimize').getAttribute('aria-disabled')).toBeNull();
     expect(await page.locator('#tab-map').getAttribute('aria-disabled')).toBeNull();
   });
 

@@ -12,7 +12,7 @@ import type { BipedStride } from '../../src/core/models/biped-simulate.js';
 import { parseScenario } from '../../src/core/scenario.js';
 import { strideGaits } from '../../src/ui/lib/gait.js';
 import { draftKind, draftOfKind, lostBySwitch, viewUnsupported } from '../../src/ui/lib/kinds.js';
-import { Workbench } from '../../src/ui/lib/workbench.svelte.js';
+import { checkScenario, Workbench } from '../../src/ui/lib/workbench.svelte.js';
 import type { EnginePool } from '../../src/worker/browser-pool.js';
 
 const idlePool = { size: 1, dispose() {} } as unknown as EnginePool;
@@ -124,19 +124,20 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('biped', 'map')).toBeNull();
     expect(viewUnsupported('biped', 'stride')).toBeNull();
     expect(viewUnsupported('biped', 'basin')).toBeNull();
-    expect(viewUnsupported('biped', 'optimize')).toMatch(/^the optimizer: not in the workbench for the two-leg model yet/);
+    expect(viewUnsupported('biped', 'optimize')).toBeNull();
+    expect(viewUnsupported('lateral', 'optimize')).toBeNull();
+    expect(viewUnsupported('biped', 'compare')).toMatch(/^the comparison: not in the workbench for the two-leg model yet/);
     expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not in the workbench for the lateral model/);
     expect(viewUnsupported('slip', 'recover')).toMatch(/for the lateral model only/);
   });
 
   it('refuses to run a view the kind does not run, with a notice', async () => {
     const wb = new Workbench({ pool: idlePool });
-    wb.loadScenarioDraft(structuredClone(demoBiped));
-    const s = parseScenario(demoBiped);
-    wb.lastValid = { scenario: s, key: 'biped', at: 0 };
-    await wb.runOptimization();
-    expect(wb.results.optimization).toBeUndefined();
-    expect(wb.notices.at(-1)?.text).toMatch(/^The optimizer: not in the workbench for the two-leg model/);
+    wb.loadScenarioDraft(structuredClone(demoHexapod));
+    wb.lastValid = { scenario: checkScenario(demoHexapod).value!, key: 'lateral', at: 0 };
+    await wb.runScan();
+    expect(wb.results.scan).toBeUndefined();
+    expect(wb.notices.at(-1)?.text).toMatch(/^Stability regions: not in the workbench for the lateral model/);
   });
 
   it('carries shared numbers over a switch and lists what a switch loses', () => {
@@ -189,5 +190,92 @@ describe('the lateral model in the editor and in files', () => {
     }
     const broken = { ...structuredClone(demoHexapod), body: { ...demoHexapod.body, moment_of_inertia_kg_m2: -1 } };
     expect(() => classifyFile(JSON.stringify(broken), 'robot.json', { scenario: {} })).toThrow(/moment_of_inertia_kg_m2/);
+  });
+});
+
+describe('the study follows the model kind (ui/lib/study-kinds.ts)', () => {
+  const limitLabels = () => [...document.querySelectorAll('[id^="st-constraints"]')].map((el) => el.id);
+
+  it('loads each demo with its kind’s demo study: no study problems, only the kind’s limits in the editor', async () => {
+    const { wb } = setup();
+    for (const [name, kind] of [['biped-walk', 'biped'], ['biped-run', 'biped'], ['hexapod', 'lateral'], ['slip', 'slip']] as const) {
+      await wb.resetToDemo(name);
+      await settle();
+      expect(wb.question).toBeNull(); // nothing unsaved: no question
+      expect(wb.studyCheck.issues).toEqual([]);
+      expect(wb.studyMisfit).toEqual({ limits: [], terms: [], parameters: [], mismatch: false });
+      expect(screen.queryByTestId('study-misfit')).toBeNull();
+      const ids = limitLabels().join(' ');
+      expect(ids.includes('friction_coefficient')).toBe(kind === 'slip');
+      expect(ids.includes('max_vertical_force_N')).toBe(kind === 'biped');
+      expect(ids.includes('leg_angle_range_deg')).toBe(kind !== 'lateral');
+    }
+  });
+
+  it('asks before a demo of another kind replaces an edited study; undo brings it back', async () => {
+    const { wb } = setup();
+    wb.setStudyField('search.max_evaluations', 17);
+    const loading = wb.resetToDemo('hexapod');
+    await settle();
+    expect(wb.question?.title).toBe('Replace the unsaved edits?');
+    wb.respond('replace');
+    await loading;
+    expect((wb.studyDraft.objective as { terms: { kind: string }[] }).terms.map((t) => t.kind)).toEqual(['recovery']);
+    wb.undo();
+    expect(wb.scenarioDraft.model).toBeUndefined();
+    expect((wb.studyDraft.search as { max_evaluations: number }).max_evaluations).toBe(17);
+  });
+
+  it('a switch of kind fits the study: says so, and asks first when that drops study edits', async () => {
+    const { wb } = setup();
+    // the demo study unedited: the friction limit goes without a question (it is in the demo), with a notice
+    await wb.switchModelKind('biped');
+    expect(wb.question).toBeNull();
+    expect(wb.studyDraft.constraints).not.toHaveProperty('friction_coefficient');
+    expect(wb.notices.at(-1)?.text).toMatch(/^The study now fits the two-leg model: it drops the friction limit/);
+    expect(wb.studyCheck.issues).toEqual([]);
+    // an edited study: asked, and keeping leaves both drafts as they were
+    wb.setStudyField('constraints.max_leg_force_N', 500);
+    const before = JSON.stringify([wb.scenarioDraft, wb.studyDraft]);
+    const switching = wb.switchModelKind('lateral');
+    await settle();
+    expect(wb.question?.text).toMatch(/The study's search for the lateral model drops the touchdown angle range/);
+    wb.respond('keep');
+    expect(await switching).toBe(false);
+    expect(JSON.stringify([wb.scenarioDraft, wb.studyDraft])).toBe(before);
+  });
+
+  it('opening a scenario of another kind fits the study; a study that does not fit offers the fit', async () => {
+    const { wb } = setup();
+    expect(await wb.openFile(JSON.stringify(demoHexapod), 'skitter.json')).toBe('scenario');
+    expect(wb.studyCheck.issues).toEqual([]);
+    expect(wb.notices.at(-1)?.text).toMatch(/^Opened the scenario skitter\.json\. The study now fits the lateral model: it drops/);
+    // a scenario put in place without the fit (e.g. by a test or an old autosave): the editor says so and fits it
+    wb.loadScenarioDraft(structuredClone(demoBiped));
+    await settle();
+    expect(wb.studyCheck.issues.length).toBeGreaterThan(0);
+    expect(screen.getByTestId('study-misfit').textContent).toMatch(/fitted to the two-leg model's search, it drops term 1 \(kick recovery\)/);
+    await fireEvent.click(screen.getByTestId('fit-study'));
+    await settle();
+    expect(wb.studyCheck.issues).toEqual([]);
+    expect(screen.queryByTestId('study-misfit')).toBeNull();
+  });
+});
+
+describe('an optimization result of another kind', () => {
+  it('is not copied into a scenario of another kind (it names numbers that scenario has not)', async () => {
+    const wb = new Workbench({ pool: idlePool });
+    const lateralResult = { scenario: structuredClone(demoHexapod), parameters: [{ path: 'policy.angle.angle_to_body_deg', value: 61, start: 57 }] };
+    wb.results = { optimization: { value: lateralResult, baseScenario: checkScenario(demoHexapod).value } as never };
+    const before = JSON.stringify(wb.scenarioDraft);
+    wb.applyOptimized();
+    expect(JSON.stringify(wb.scenarioDraft)).toBe(before);
+    expect(wb.notices.at(-1)?.text).toMatch(/^The optimized parameters belong to a lateral scenario and name Touchdown angle to body axis/);
+    await wb.runComparison();
+    expect(wb.notices.at(-1)?.text).toMatch(/^The comparison: not in the workbench for the lateral model yet/);
+    // on its own kind's scenario: copied, one undoable step
+    wb.loadScenarioDraft(structuredClone(demoHexapod));
+    wb.applyOptimized();
+    expect((wb.scenarioDraft.policy as { angle: { angle_to_body_deg: number } }).angle.angle_to_body_deg).toBe(61);
   });
 });

@@ -4,6 +4,8 @@
 
 import { getAt } from './draft.js';
 import { parameterName } from '../../core/figures/labels.js';
+import { LATERAL_PARAMETERS } from '../../core/optimize/kinds.js';
+import { draftKind } from './kinds.js';
 import {
   DEFAULT_ABSOLUTE_TOLERANCE,
   DEFAULT_MAX_STEPS_PER_STANCE,
@@ -13,6 +15,8 @@ import {
 import {
   DEFAULT_BASIN_STRIDES,
   DEFAULT_FALL_PENALTY,
+  DEFAULT_RECOVERY_KICK_STRIDE,
+  DEFAULT_RECOVERY_STRIDES_AFTER,
   DEFAULT_STEP_STRIDES_AFTER,
   DEFAULT_XTOL_REL,
 } from '../../core/optimize/study.js';
@@ -308,6 +312,21 @@ export const TERM_KINDS: KindDef[] = [
       { path: 'strides_after', label: 'Strides after the step', unit: '', optional: true, hint: `empty: ${DEFAULT_STEP_STRIDES_AFTER}` },
     ],
   },
+  {
+    // the lateral model's one term: random kicks as pronk recover --rollouts draws them
+    kind: 'recovery',
+    label: 'Kick recovery',
+    fields: [
+      { path: 'weight', label: 'Weight', unit: '' },
+      { path: 'rollouts', label: 'Kicks', unit: '' },
+      { path: 'kick_stride', label: 'Kicked stride', unit: '', optional: true, hint: `empty: ${DEFAULT_RECOVERY_KICK_STRIDE}` },
+      { path: 'strides_after', label: 'Strides after the kick', unit: '', optional: true, hint: `empty: ${DEFAULT_RECOVERY_STRIDES_AFTER}` },
+      { path: 'max_left_m_per_s', label: 'Sideways kick, up to', unit: 'm/s', optional: true, hint: 'empty: 0' },
+      { path: 'max_forward_m_per_s', label: 'Forward kick, up to', unit: 'm/s', optional: true, hint: 'empty: 0' },
+      { path: 'max_angle_deg', label: 'Body-angle kick, up to', unit: '°', optional: true, hint: 'empty: 0' },
+      { path: 'max_rate_deg_per_s', label: 'Turn-rate kick, up to', unit: '°/s', optional: true, hint: 'empty: 0' },
+    ],
+  },
 ];
 
 export function termOfKind(kind: string, current: unknown, scenario: unknown): Record<string, unknown> {
@@ -330,12 +349,17 @@ export function termOfKind(kind: string, current: unknown, scenario: unknown): R
         speeds: { low_m_per_s: Number((0.8 * v).toPrecision(3)), high_m_per_s: Number((1.2 * v).toPrecision(3)), count: 9 },
       };
     }
+    case 'recovery':
+      return { kind, weight, rollouts: num(t.rollouts, 100), kick_stride: DEFAULT_RECOVERY_KICK_STRIDE, strides_after: DEFAULT_RECOVERY_STRIDES_AFTER, max_left_m_per_s: 0.3 };
     default:
       return { kind: 'step_down', weight };
   }
 }
 
-/** Numeric fields of a policy and body in a scenario draft: the paths a study may set free. */
+/**
+ * The numbers of a scenario draft a study may set free: the policy and body, a two-leg robot's
+ * legs too, of a lateral scenario only the three its search moves (core/optimize/kinds.ts).
+ */
 export function searchablePaths(scenario: unknown): string[] {
   const out: string[] = [];
   const walk = (node: unknown, path: string) => {
@@ -346,9 +370,11 @@ export function searchablePaths(scenario: unknown): string[] {
     }
   };
   const s = (scenario ?? {}) as Record<string, unknown>;
+  const kind = draftKind(scenario);
   walk(s.policy, 'policy');
   walk(s.body, 'body');
-  return out;
+  if (kind === 'biped') walk(s.legs, 'legs');
+  return kind === 'lateral' ? out.filter((p) => LATERAL_PARAMETERS.includes(p)) : out;
 }
 
 /** Numeric fields anywhere in a scenario (for the two axes of a stability scan). */

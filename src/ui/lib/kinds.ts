@@ -25,8 +25,8 @@ export function draftKind(draft: unknown): DraftKind {
 /** The views each kind runs; the others are disabled with the reason below. */
 const SUPPORTED: Record<DraftKind, readonly ViewName[]> = {
   slip: ['map', 'stride', 'scan', 'basin', 'montecarlo', 'optimize', 'compare'],
-  biped: ['map', 'stride', 'scan', 'basin', 'montecarlo'],
-  lateral: ['map', 'stride', 'recover'],
+  biped: ['map', 'stride', 'scan', 'basin', 'montecarlo', 'optimize'],
+  lateral: ['map', 'stride', 'recover', 'optimize'],
 };
 
 const VIEW_WORDS: Record<ViewName, string> = {

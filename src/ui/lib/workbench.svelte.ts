@@ -3,7 +3,6 @@
 // jobs running on the workers, and the notices shown to the user. Components read and write it;
 // it runs the analyses through the worker pool (compute.ts) and autosaves (persist.ts).
 
-import demoStudyJson from '../../../scenarios/demo-study.json' with { type: 'json' };
 import demoScenarioJson from '../../../scenarios/demo.json' with { type: 'json' };
 import demoBipedJson from '../../../scenarios/demo-biped.json' with { type: 'json' };
 import demoBipedRunJson from '../../../scenarios/demo-biped-run.json' with { type: 'json' };
@@ -21,7 +20,7 @@ import type { ScanOptions, ScanResult } from '../../core/analysis/scan.js';
 import type { StepToleranceResult } from '../../core/analysis/stepdown.js';
 import { InputError, type InputIssue } from '../../core/errors.js';
 import type { OptimizationResult } from '../../core/optimize/search.js';
-import { parseStudy, type Study } from '../../core/optimize/study.js';
+import { parseCandidateScenario, parseStudy, type Study } from '../../core/optimize/study.js';
 import { canonicalJson } from '../../core/version.js';
 import { parseScenario, type Scenario } from '../../core/scenario.js';
 import type { SimulationResult } from '../../core/simulate.js';
@@ -51,17 +50,28 @@ import { History, type Drafts, type HistoryState } from './history.js';
 import { explainIssues, fieldLabel, type FieldIssue } from './issues.js';
 import { draftKind, draftOfKind, KIND_NAMES, lostBySwitch, MODEL_KIND_CHOICES, viewUnsupported, type DraftKind } from './kinds.js';
 import { loadDrafts, loadHistory, loadResults, saveDrafts, saveHistory, saveResult } from './persist.js';
+import { demoStudyOf, fitStudy, fitText, studyMisfit } from './study-kinds.js';
 
 export type { ViewName } from './kinds.js';
 import type { ViewName } from './kinds.js';
 
-/** The demos the workbench offers: the single-leg runner (with its study) and invented machines of the other kinds. */
+/** The demos the workbench offers, each with its kind's demo study: invented machines of every kind. */
 export type DemoName = 'slip' | 'biped-walk' | 'biped-run' | 'hexapod';
 export const DEMOS: { name: DemoName; label: string; title: string; scenario: unknown }[] = [
   { name: 'slip', label: 'Single-leg runner (Tamarack-9) and its study', title: 'The invented Tamarack-9 demo scenario and study', scenario: demoScenarioJson },
-  { name: 'biped-walk', label: 'Two-legged walker (Wren-2)', title: 'scenarios/demo-biped.json: the invented Wren-2 walking', scenario: demoBipedJson },
-  { name: 'biped-run', label: 'Two-legged runner (Wren-2)', title: 'scenarios/demo-biped-run.json: the invented Wren-2 running', scenario: demoBipedRunJson },
-  { name: 'hexapod', label: 'Six-legged runner (Skitter-6), seen from above', title: 'scenarios/demo-hexapod.json: the invented Skitter-6 on the lateral leg-spring model', scenario: demoHexapodJson },
+  { name: 'biped-walk', label: 'Two-legged walker (Wren-2) and its study', title: 'scenarios/demo-biped.json and demo-biped-study.json: the invented Wren-2 walking', scenario: demoBipedJson },
+  {
+    name: 'biped-run',
+    label: 'Two-legged runner (Wren-2) and its study',
+    title: "scenarios/demo-biped-run.json: the invented Wren-2 running, with the walker's study (demo-biped-study.json)",
+    scenario: demoBipedRunJson,
+  },
+  {
+    name: 'hexapod',
+    label: 'Six-legged runner (Skitter-6), seen from above, and its study',
+    title: 'scenarios/demo-hexapod.json and demo-hexapod-study.json: the invented Skitter-6 on the lateral leg-spring model',
+    scenario: demoHexapodJson,
+  },
 ];
 
 /**
@@ -198,8 +208,7 @@ interface Saved {
 }
 
 export function demoStudyDraft(): Json {
-  const { scenario_file: _file, ...study } = clone(demoStudyJson) as Json;
-  return study;
+  return demoStudyOf('slip');
 }
 
 export function demoScenarioDraft(): Json {
@@ -293,6 +302,15 @@ let noticeId = 0;
 let jobId = 0;
 let questionId = 0;
 
+/** One part of a drafts key (draftsKey) as JSON.stringify writes it; '' when the key is not one. */
+export function savedPart(key: string, part: 'scenario' | 'study'): string {
+  try {
+    return JSON.stringify((JSON.parse(key) as Record<string, unknown>)[part]);
+  } catch {
+    return '';
+  }
+}
+
 /** The drafts as one comparable text. */
 export function draftsKey(scenario: unknown, study: unknown): string {
   return JSON.stringify({ scenario, study });
@@ -315,6 +333,10 @@ export class Workbench {
   /** The drafts as last saved, opened or loaded; edits since then are "unsaved". */
   savedKey = $state(draftsKey(demoScenarioDraft(), demoStudyDraft()));
   dirty = $derived(draftsKey(this.scenarioDraft, this.studyDraft) !== this.savedKey);
+  /** The study has edits that are in no file (a fit to another model kind asks before it drops any of them). */
+  studyDirty = $derived(JSON.stringify(this.studyDraft) !== savedPart(this.savedKey, 'study'));
+  /** What of the study the scenario's model kind cannot search (study-kinds.ts): the editor offers to fit it. */
+  studyMisfit = $derived(studyMisfit(this.studyDraft, this.scenarioDraft));
 
   /** Undo and redo of the drafts (kept across a reload). */
   readonly history: History;
@@ -539,13 +561,13 @@ export class Workbench {
     return choice === 'replace';
   }
 
-  /** Loads a demo: the single-leg one with its study, another kind's scenario alone (the study is kept). */
+  /** Loads a demo with its kind's demo study (the study's limits, terms and free parameters are the kind's). */
   async resetToDemo(name: DemoName = 'slip'): Promise<void> {
     const demo = DEMOS.find((d) => d.name === name) ?? DEMOS[0];
     if (!(await this.mayReplace(`The demo "${demo.label}"`))) return;
     this.group('Demo loaded', () => {
       this.scenarioDraft = clone(demo.scenario) as Json;
-      if (name === 'slip') this.studyDraft = demoStudyDraft();
+      this.studyDraft = fitStudy(demoStudyOf(draftKind(demo.scenario)), demo.scenario).study;
     });
     // the views' settings (basin and scan axes, Monte Carlo strides) follow the demo's robot
     const parsed = checkScenario(demo.scenario).value;
@@ -575,6 +597,12 @@ export class Workbench {
     this.markSaved();
   }
 
+  /** Downloads the last optimization's result file, as `pronk optimize --out` writes it. */
+  saveResult(): void {
+    const result = this.results.optimization;
+    if (result) downloadText(`${JSON.stringify(result.value, null, 2)}\n`, `${fileStem(this.scenarioDraft.name, 'scenario')}.result.json`);
+  }
+
   /**
    * Opens a file's text: refused with the reasons when it is not a scenario, a study, a result or
    * a project (nothing changes); asks first when it would replace unsaved edits.
@@ -602,10 +630,22 @@ export class Workbench {
     }
     if (!(await this.mayReplace(`Opening ${name}`))) return null;
     switch (opened.kind) {
-      case 'scenario':
-        this.group(`Opened ${name}`, () => (this.scenarioDraft = clone(opened.scenario)));
-        this.notify('info', `Opened the scenario ${name}.`);
+      case 'scenario': {
+        // the study follows the scenario's model kind (the question above covered unsaved edits)
+        const fit = fitStudy($state.snapshot(this.studyDraft) as Json, opened.scenario);
+        this.group(`Opened ${name}`, () => {
+          this.scenarioDraft = clone(opened.scenario);
+          this.studyDraft = fit.study;
+        });
+        const kind = draftKind(opened.scenario);
+        const changed = fitText(fit);
+        this.notify(
+          'info',
+          `Opened the scenario ${name}.` + (changed ? ` The study now fits the ${KIND_NAMES[kind]} model: it ${changed}. Undo (Ctrl+Z) brings the study back.` : ''),
+        );
+        if (viewUnsupported(kind, this.view)) this.view = 'stride';
         break;
+      }
       case 'study':
         this.group(`Opened ${name}`, () => {
           this.studyDraft = clone(opened.study);
@@ -697,30 +737,53 @@ export class Workbench {
     const before = clone($state.snapshot(this.scenarioDraft) as Json);
     const next = draftOfKind(kind, before);
     const lost = lostBySwitch(kind, before);
-    const free = (Array.isArray(this.studyDraft.free_parameters) ? this.studyDraft.free_parameters : []) as Json[];
-    const orphaned = free.map((p, i) => ({ p, i })).filter(({ p }) => typeof p.path === 'string' && typeof getAt(next, p.path) !== 'number');
+    // the study follows: the limits, terms and free parameters the new kind has not are dropped
+    const fit = fitStudy($state.snapshot(this.studyDraft) as Json, next);
     const label = MODEL_KIND_CHOICES.find((c) => c.value === kind)?.label ?? kind;
-    if (lost.length > 0 || orphaned.length > 0) {
+    const studyChange = fitText(fit);
+    // asked when the switch drops scenario fields, or study edits that are in no file
+    if (lost.length > 0 || (fit.dropped.length > 0 && this.studyDirty)) {
       const names = lost.map((path) => fieldLabel('sc', path));
       const choice = await this.ask(
         `Switch to the ${KIND_NAMES[kind]} model?`,
-        `The ${KIND_NAMES[kind]} model has no ${names.join(', ')}${names.length ? '' : 'such fields'}: the switch drops ${lost.length === 1 ? 'that field' : 'those fields'}` +
-          (orphaned.length ? ` and the study's free parameter${orphaned.length === 1 ? '' : 's'} ${orphaned.map(({ i }) => i + 1).join(', ')}` : '') +
-          '. Undo (Ctrl+Z) brings them back.',
+        (lost.length
+          ? `The ${KIND_NAMES[kind]} model has no ${names.join(', ')}: the switch drops ${lost.length === 1 ? 'that field' : 'those fields'}.`
+          : `The switch keeps the scenario's fields.`) +
+          (studyChange ? ` The study's search for the ${KIND_NAMES[kind]} model ${studyChange}.` : '') +
+          ' Undo (Ctrl+Z) brings them back.',
         [
-          { id: 'switch', label: `Switch and drop ${lost.length + orphaned.length === 1 ? 'it' : 'them'}`, primary: true },
+          { id: 'switch', label: `Switch and drop ${lost.length + fit.dropped.length === 1 ? 'it' : 'them'}`, primary: true },
           { id: 'keep', label: `Keep the ${KIND_NAMES[current]} model` },
         ],
       );
       if (choice !== 'switch') return false;
     }
-    const dropped = new Set(orphaned.map(({ i }) => i));
     this.group(`Model: ${label}`, () => {
       this.scenarioDraft = next;
-      if (orphaned.length) this.studyDraft.free_parameters = clone(free.filter((_, i) => !dropped.has(i)));
+      this.studyDraft = fit.study;
     });
+    if (studyChange) this.notify('info', `The study now fits the ${KIND_NAMES[kind]} model: it ${studyChange}. Undo (Ctrl+Z) goes back.`);
     const valid = checkScenario(next).value;
     if (valid) this.settings = defaultSettings(valid);
+    return true;
+  }
+
+  /** Fits the study to the scenario's model kind (study-kinds.ts), one undoable step; asks before it drops study edits that are in no file. */
+  async fitStudyToKind(): Promise<boolean> {
+    const scenario = $state.snapshot(this.scenarioDraft) as Json;
+    const fit = fitStudy($state.snapshot(this.studyDraft) as Json, scenario);
+    const change = fitText(fit);
+    if (!change) return true;
+    const kind = KIND_NAMES[draftKind(scenario)];
+    if (fit.dropped.length > 0 && this.studyDirty) {
+      const choice = await this.ask(`Fit the study to the ${kind} model?`, `The ${kind} model's search ${change}. Undo (Ctrl+Z) brings them back.`, [
+        { id: 'fit', label: 'Fit the study', primary: true },
+        { id: 'keep', label: 'Keep the study as it is' },
+      ]);
+      if (choice !== 'fit') return false;
+    }
+    this.group(`Study fitted to the ${kind} model`, () => (this.studyDraft = fit.study));
+    this.notify('info', `The study now fits the ${kind} model: it ${change}. Undo (Ctrl+Z) goes back.`);
     return true;
   }
 
@@ -1042,6 +1105,12 @@ export class Workbench {
   async runComparison(): Promise<void> {
     const opt = this.results.optimization;
     if (!opt) return;
+    // the comparison runs the single-leg analyses: never on a result of another kind
+    const reason = viewUnsupported(draftKind(opt.baseScenario), 'compare');
+    if (reason) {
+      this.notify('error', `${reason[0].toUpperCase()}${reason.slice(1)} (the optimization result is of that model).`);
+      return;
+    }
     const options = montecarloOptions(this.settings.montecarlo);
     const baseline = opt.baseScenario;
     let candidate: Scenario;
@@ -1080,6 +1149,18 @@ export class Workbench {
   applyOptimized(): void {
     const opt = this.results.optimization;
     if (!opt) return;
+    // a result of another model kind names numbers this scenario has not
+    const kind = draftKind(opt.value.scenario);
+    const missing = opt.value.parameters.filter((p) => typeof getAt(this.scenarioDraft, p.path) !== 'number');
+    if (kind !== draftKind(this.scenarioDraft) || missing.length > 0) {
+      this.notify(
+        'error',
+        `The optimized parameters belong to a ${KIND_NAMES[kind]} scenario` +
+          (missing.length ? ` and name ${missing.map((p) => fieldLabel('sc', p.path)).join(', ')}, which the scenario being edited has not` : '') +
+          ': open that scenario (or its result file) first.',
+      );
+      return;
+    }
     this.group('Optimized parameters used', () => {
       for (const p of opt.value.parameters) setAt(this.scenarioDraft, p.path, p.value);
     });
@@ -1098,10 +1179,10 @@ export class Workbench {
 
 /** An optimization result file as the workbench keeps it: its baseline is the start of every parameter. */
 export function stampFromResult(result: Json): OptimizationStamp {
-  const best = parseScenario(result.scenario);
+  const best = parseCandidateScenario(result.scenario as Json);
   const base = structuredClone(best) as unknown as Json;
   for (const p of (result.parameters ?? []) as { path: string; start: number }[]) setAt(base, p.path, p.start);
-  const baseScenario = parseScenario(base);
+  const baseScenario = parseCandidateScenario(base);
   return {
     value: result as never,
     scenarioKey: canonicalJson(baseScenario),
