@@ -162,6 +162,20 @@ describe.skipIf(!available)('the optimizer for every model kind in the workbench
     await noStudyProblems();
     expect(await studyField('objective.terms[0].kind').inputValue()).toBe('recovery');
     expect(await page.locator('#st-model-mismatch-on').count()).toBe(0);
+    // the study's force limit on the top view's strides: the demo runs under its 32 N; a limit just
+    // below the largest stride peak marks exactly the strides above it
+    await t.view('stride');
+    await expect.poll(() => page.getByTestId('lateral-limit').textContent(), { timeout: 30_000 }).toMatch(/peak leg force 32 N/);
+    const peaks = page.locator('[role=tabpanel] tbody tr td:nth-child(6)');
+    await expect.poll(() => peaks.count(), { timeout: 30_000 }).toBeGreaterThan(0);
+    expect(await page.locator('[role=tabpanel] td.over').count()).toBe(0);
+    const values = (await peaks.evaluateAll((els) => els.map((e) => Number(e.getAttribute('data-value'))))) as number[];
+    const limit = Number((Math.max(...values) - 1e-3).toFixed(3));
+    await setStudy('constraints.max_leg_force_N', String(limit));
+    await expect.poll(() => page.locator('[role=tabpanel] td.over').count()).toBe(values.filter((v) => v > limit).length);
+    expect(values.filter((v) => v > limit).length).toBeGreaterThan(0);
+    await t.shot('lateral-stride-limit');
+    await setStudy('constraints.max_leg_force_N', '32');
   });
 
   it('runs a short lateral search in the workers: the same result as Node, saved and its values exported', async () => {
