@@ -55,6 +55,7 @@ import { groundAt, resetWalk } from "./terrain";
 import { initialStep } from "./rk/initial-step";
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
+  useBuffers, DEFAULT_BUFFERS,
   Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
@@ -89,7 +90,8 @@ const LF_TD = 13; // s since the section, touchdown in this stride (NaN: none)
 const LF_LO = 14; // s since the section, liftoff in this stride (NaN: none)
 const LF_TOUCH_HEIGHT = 15; // m, L0 sin(attack) when the attack angle is fixed
 const LF_N = 16;
-const LEGS: usize = memory.data(2 * LF_N * 8, 16);
+const LEGS_DEFAULT: usize = memory.data(2 * LF_N * 8, 16);
+let LEGS: usize = LEGS_DEFAULT; // the legs of the rollout in hand (runBipedBatch: of its lane)
 
 @inline function lg(i: i32, f: i32): f64 {
   return load<f64>(LEGS + (<usize>(i * LF_N + f) << 3));
@@ -998,308 +1000,339 @@ function startValues(): void {
   gb0 = evValue(EVB_BACKWARD, 0, Y0, tS);
 }
 
+// The contact loop's own state, kept in globals (not locals) so that rollouts can take turns
+// between steps (runBipedBatch): the record, the retry bookkeeping, the step floor.
+let contactRec: usize = 0;
+let afterReject = false;
+let nonFinite = 0;
+let stepsHere = 0;
+let hMin: f64 = 0.0;
+const CONTACT_GO: i32 = -3; // the contact goes on: take a step of size h
+
 // Integrate the contact phases from Y0 (time tS since the section) until the stride's section,
-// a flight, or a failure. Returns END_SECTION, END_FLIGHT or a STATUS_* code.
+// a flight, or a failure. Returns END_SECTION, END_FLIGHT or a STATUS_* code. The loop is cut
+// at the step: contactBegin, then contactBefore (CONTACT_GO or the end), the step of size h,
+// contactAfter with its error (CONTACT_GO or the end), and so on.
 function runContact(rec: usize): i32 {
+  contactBegin(rec);
+  for (;;) {
+    let r = contactBefore();
+    if (r != CONTACT_GO) return r;
+    r = contactAfter(bstep(h));
+    if (r != CONTACT_GO) return r;
+  }
+  return STATUS_STEP_LIMIT; // not reached: the loop returns
+}
+
+function contactBegin(rec: usize): void {
+  contactRec = rec;
   if (undamped) zeroFifth();
   configure();
   resetController();
   rhs(Y0, K1);
   startValues();
-  let afterReject = false;
-  let nonFinite = 0;
-  let stepsHere = 0;
-  const hMin = 1e-13 * timeScale;
+  afterReject = false;
+  nonFinite = 0;
+  stepsHere = 0;
+  hMin = 1e-13 * timeScale;
   noteForces(Y0);
-  for (;;) {
-    if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
-    if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
-    if (h < hMin) return STATUS_STEP_UNDERFLOW;
-    const err = bstep(h);
-    if (isNaN(err)) {
-      rejected++;
-      stepsHere++;
-      if (++nonFinite > 40) return STATUS_NON_FINITE;
-      h *= 0.1;
-      afterReject = true;
-      continue;
+}
+
+// The checks before each step: CONTACT_GO, or the status that ends the contact.
+function contactBefore(): i32 {
+  if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
+  if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
+  if (h < hMin) return STATUS_STEP_UNDERFLOW;
+  return CONTACT_GO;
+}
+
+// After a step of size h with error err (bstep's value): rejection, or acceptance with the
+// events inside the step. CONTACT_GO, or END_SECTION, END_FLIGHT or a STATUS_* code.
+function contactAfter(err: f64): i32 {
+  const rec = contactRec;
+  if (isNaN(err)) {
+    rejected++;
+    stepsHere++;
+    if (++nonFinite > 40) return STATUS_NON_FINITE;
+    h *= 0.1;
+    afterReject = true;
+    return CONTACT_GO;
+  }
+  if (err > 1.0) {
+    rejected++;
+    stepsHere++;
+    h *= rejectFactor(err);
+    afterReject = true;
+    return CONTACT_GO;
+  }
+  if (firstStep) {
+    firstH = h;
+    firstStep = false;
+  }
+  steps++;
+  stepsHere++;
+
+  // Event values at the step end.
+  let gl10: f64 = 0.0;
+  let gl11: f64 = 0.0;
+  let gm10: f64 = 0.0;
+  let gm11: f64 = 0.0;
+  if (single) {
+    // exactly the stance driver's arithmetic (stance.ts), foot at the origin
+    const npx = load<f64>(YN, 0);
+    const npy = load<f64>(YN, 8);
+    const nvx = load<f64>(YN, 16);
+    const nr = Math.sqrt(npx * npx + npy * npy);
+    const nrdot = (npx * nvx + npy * load<f64>(YN, 24)) / nr;
+    const leg = lg(stanceLeg, LF_L0);
+    const c = lg(stanceLeg, LF_C);
+    const nforce = lg(stanceLeg, LF_K) * (leg - nr) - c * nrdot;
+    const gl = c > 0.0 ? -nforce : nr - leg;
+    if (stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
+    stepForce0 = stanceLeg == 0 ? nforce : 0.0;
+    stepForce1 = stanceLeg == 1 ? nforce : 0.0;
+    stepComp0 = stanceLeg == 0 ? leg - nr : 0.0;
+    stepComp1 = stanceLeg == 1 ? leg - nr : 0.0;
+    stepFx = (nforce * npx) / nr;
+    stepFy = (nforce * npy) / nr;
+  } else {
+    // one square root per leg (the same values as evValue and legRdot)
+    const npx = load<f64>(YN, 0);
+    const npy = load<f64>(YN, 8);
+    const nvx = load<f64>(YN, 16);
+    const nvy = load<f64>(YN, 24);
+    const dx0 = npx - footRx(0);
+    const dy0 = npy - footRy(0);
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    gm10 = (dx0 * nvx + dy0 * nvy) / r0;
+    gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
+    const dx1 = npx - footRx(1);
+    const dy1 = npy - footRy(1);
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    gm11 = (dx1 * nvx + dy1 * nvy) / r1;
+    gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
+    stepComp0 = lg(0, LF_L0) - r0;
+    stepComp1 = lg(1, LF_L0) - r1;
+    stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
+    stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
+    stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
+    stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
+  }
+  const gs1 = -load<f64>(YN, 24);
+  const gg1 = groundRel - load<f64>(YN, 8);
+  const gb1 = -load<f64>(YN, 16);
+  let gt1: f64 = 0.0;
+  let armsHere = false;
+
+  let stopTheta: f64 = 2.0;
+  let stopEvent = -1;
+  let stopLeg = 0;
+  // maximum compression of each leg: the first splits the stance with a split schedule; a leg
+  // without one has every local maximum located (its force humps, e.g. a walking leg's two)
+  let mTheta0: f64 = 2.0;
+  let mTheta1: f64 = 2.0;
+  if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
+    mTheta0 = single ? locate(EV_MAX_COMPRESSION, gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, gm00, gm10, tS, h);
+    if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
+  }
+  if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
+    mTheta1 = single ? locate(EV_MAX_COMPRESSION, gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, gm01, gm11, tS, h);
+    if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
+  }
+  if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl00, gl10)) {
+    const th = single ? locate(EV_LIFTOFF, gl00, gl10, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, gl00, gl10, tS, h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
+  }
+  if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl01, gl11)) {
+    const th = single ? locate(EV_LIFTOFF, gl01, gl11, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, gl01, gl11, tS, h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
+  }
+  if (crossesB(EVB_GROUND, gg0, gg1)) {
+    const th = locateB(EVB_GROUND, 0, 0.0, gg0, gg1, tS, h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_GROUND; }
+  }
+  if (crossesB(EVB_BACKWARD, gb0, gb1)) {
+    const th = locateB(EVB_BACKWARD, 0, 0.0, gb0, gb1, tS, h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_BACKWARD; }
+  }
+  if (single && sectionArmed && crossesB(EVB_SECTION, gs0, gs1)) {
+    const th = locateB(EVB_SECTION, 0, 0.0, gs0, gs1, tS, h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_SECTION; }
+  }
+  if (single) {
+    // The swing leg: armed once the body passes midstance of the stance leg, then touches
+    // down at the next downward crossing of its touchdown height, the body descending.
+    let from: f64 = 0.0;
+    let gFrom = gt0;
+    let look = armed;
+    if (!armed) {
+      const gmid1 = load<f64>(YN, 0) - footRx(stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
+      if (crossesB(EVB_MIDSTANCE, gt0, gmid1)) {
+        from = locateB(EVB_MIDSTANCE, stanceLeg, 0.0, gt0, gmid1, tS, h);
+        dense(from);
+        gFrom = evValue(EVB_TOUCHDOWN, swing, YI, tS + from * h);
+        armsHere = true;
+        look = true;
+      } else {
+        gt1 = gmid1;
+      }
     }
-    if (err > 1.0) {
-      rejected++;
-      stepsHere++;
-      h *= rejectFactor(err);
-      afterReject = true;
-      continue;
+    if (look) {
+      // evValue(EVB_TOUCHDOWN, ...), the fixed angle's height written in
+      gt1 = fixedAngle
+        ? lg(swing, LF_TOUCH_HEIGHT) - (load<f64>(YN, 8) + oy - swingGround)
+        : evValue(EVB_TOUCHDOWN, swing, YN, tS + h);
+      if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
+        const th = locateB(EVB_TOUCHDOWN, swing, from, gFrom, gt1, tS, h);
+        dense(th);
+        if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = swing; }
+      }
     }
-    if (firstStep) {
-      firstH = h;
-      firstStep = false;
+  }
+
+  // Record-only maximum compressions before the stop.
+  if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
+    dense(mTheta0);
+    noteForces(YI);
+    ls(0, LF_COMPRESSING, 0.0);
+  }
+  if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
+    dense(mTheta1);
+    noteForces(YI);
+    ls(1, LF_COMPRESSING, 0.0);
+  }
+  if (tracing) traceContact(h, stopTheta < 1.0 ? stopTheta : 1.0);
+
+  if (stopEvent < 0) {
+    notePeaks();
+    tS += h;
+    advance();
+    gl00 = gl10;
+    gl01 = gl11;
+    gm00 = gm10;
+    gm01 = gm11;
+    gs0 = gs1;
+    gg0 = gg1;
+    gb0 = gb1;
+    if (single) {
+      if (armsHere) armed = true;
+      gt0 = gt1;
     }
+    h *= acceptFactor(err, afterReject);
+    afterReject = false;
+    return CONTACT_GO;
+  }
+
+  // The event: re-take the step to the located time on the true solution, then polish.
+  const hNext = h * acceptFactor(err, afterReject);
+  let hEvent = stopTheta * h;
+  if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
+    bstep(hEvent);
     steps++;
     stepsHere++;
+  }
+  let tEvent: f64;
+  if (single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
+    // the stance driver's own polish (events.ts), on the single-leg equations
+    tEvent = tS + hEvent;
+    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, timeScale);
+  } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
+    tEvent = tS + hEvent;
+  } else {
+    hEvent = polishB(stopEvent, stopLeg, hEvent);
+    tEvent = tS + hEvent;
+  }
+  if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
+  if (stopEvent == EVB_BACKWARD) return single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
+  noteForces(YN);
 
-    // Event values at the step end.
-    let gl10: f64 = 0.0;
-    let gl11: f64 = 0.0;
-    let gm10: f64 = 0.0;
-    let gm11: f64 = 0.0;
-    if (single) {
-      // exactly the stance driver's arithmetic (stance.ts), foot at the origin
-      const npx = load<f64>(YN, 0);
-      const npy = load<f64>(YN, 8);
-      const nvx = load<f64>(YN, 16);
-      const nr = Math.sqrt(npx * npx + npy * npy);
-      const nrdot = (npx * nvx + npy * load<f64>(YN, 24)) / nr;
-      const leg = lg(stanceLeg, LF_L0);
-      const c = lg(stanceLeg, LF_C);
-      const nforce = lg(stanceLeg, LF_K) * (leg - nr) - c * nrdot;
-      const gl = c > 0.0 ? -nforce : nr - leg;
-      if (stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
-      stepForce0 = stanceLeg == 0 ? nforce : 0.0;
-      stepForce1 = stanceLeg == 1 ? nforce : 0.0;
-      stepComp0 = stanceLeg == 0 ? leg - nr : 0.0;
-      stepComp1 = stanceLeg == 1 ? leg - nr : 0.0;
-      stepFx = (nforce * npx) / nr;
-      stepFy = (nforce * npy) / nr;
-    } else {
-      // one square root per leg (the same values as evValue and legRdot)
-      const npx = load<f64>(YN, 0);
-      const npy = load<f64>(YN, 8);
-      const nvx = load<f64>(YN, 16);
-      const nvy = load<f64>(YN, 24);
-      const dx0 = npx - footRx(0);
-      const dy0 = npy - footRy(0);
-      const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-      gm10 = (dx0 * nvx + dy0 * nvy) / r0;
-      gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
-      const dx1 = npx - footRx(1);
-      const dy1 = npy - footRy(1);
-      const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-      gm11 = (dx1 * nvx + dy1 * nvy) / r1;
-      gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
-      stepComp0 = lg(0, LF_L0) - r0;
-      stepComp1 = lg(1, LF_L0) - r1;
-      stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
-      stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
-      stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
-      stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
-    }
-    const gs1 = -load<f64>(YN, 24);
-    const gg1 = groundRel - load<f64>(YN, 8);
-    const gb1 = -load<f64>(YN, 16);
-    let gt1: f64 = 0.0;
-    let armsHere = false;
-
-    let stopTheta: f64 = 2.0;
-    let stopEvent = -1;
-    let stopLeg = 0;
-    // maximum compression of each leg: the first splits the stance with a split schedule; a leg
-    // without one has every local maximum located (its force humps, e.g. a walking leg's two)
-    let mTheta0: f64 = 2.0;
-    let mTheta1: f64 = 2.0;
-    if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
-      mTheta0 = single ? locate(EV_MAX_COMPRESSION, gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, gm00, gm10, tS, h);
-      if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
-    }
-    if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
-      mTheta1 = single ? locate(EV_MAX_COMPRESSION, gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, gm01, gm11, tS, h);
-      if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
-    }
-    if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl00, gl10)) {
-      const th = single ? locate(EV_LIFTOFF, gl00, gl10, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, gl00, gl10, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
-    }
-    if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl01, gl11)) {
-      const th = single ? locate(EV_LIFTOFF, gl01, gl11, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, gl01, gl11, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
-    }
-    if (crossesB(EVB_GROUND, gg0, gg1)) {
-      const th = locateB(EVB_GROUND, 0, 0.0, gg0, gg1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_GROUND; }
-    }
-    if (crossesB(EVB_BACKWARD, gb0, gb1)) {
-      const th = locateB(EVB_BACKWARD, 0, 0.0, gb0, gb1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_BACKWARD; }
-    }
-    if (single && sectionArmed && crossesB(EVB_SECTION, gs0, gs1)) {
-      const th = locateB(EVB_SECTION, 0, 0.0, gs0, gs1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_SECTION; }
-    }
-    if (single) {
-      // The swing leg: armed once the body passes midstance of the stance leg, then touches
-      // down at the next downward crossing of its touchdown height, the body descending.
-      let from: f64 = 0.0;
-      let gFrom = gt0;
-      let look = armed;
-      if (!armed) {
-        const gmid1 = load<f64>(YN, 0) - footRx(stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
-        if (crossesB(EVB_MIDSTANCE, gt0, gmid1)) {
-          from = locateB(EVB_MIDSTANCE, stanceLeg, 0.0, gt0, gmid1, tS, h);
-          dense(from);
-          gFrom = evValue(EVB_TOUCHDOWN, swing, YI, tS + from * h);
-          armsHere = true;
-          look = true;
-        } else {
-          gt1 = gmid1;
-        }
-      }
-      if (look) {
-        // evValue(EVB_TOUCHDOWN, ...), the fixed angle's height written in
-        gt1 = fixedAngle
-          ? lg(swing, LF_TOUCH_HEIGHT) - (load<f64>(YN, 8) + oy - swingGround)
-          : evValue(EVB_TOUCHDOWN, swing, YN, tS + h);
-        if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
-          const th = locateB(EVB_TOUCHDOWN, swing, from, gFrom, gt1, tS, h);
-          dense(th);
-          if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = swing; }
-        }
-      }
-    }
-
-    // Record-only maximum compressions before the stop.
-    if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
-      dense(mTheta0);
-      noteForces(YI);
-      ls(0, LF_COMPRESSING, 0.0);
-    }
-    if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
-      dense(mTheta1);
-      noteForces(YI);
-      ls(1, LF_COMPRESSING, 0.0);
-    }
-    if (tracing) traceContact(h, stopTheta < 1.0 ? stopTheta : 1.0);
-
-    if (stopEvent < 0) {
-      notePeaks();
-      tS += h;
-      advance();
-      gl00 = gl10;
-      gl01 = gl11;
-      gm00 = gm10;
-      gm01 = gm11;
-      gs0 = gs1;
-      gg0 = gg1;
-      gb0 = gb1;
-      if (single) {
-        if (armsHere) armed = true;
-        gt0 = gt1;
-      }
-      h *= acceptFactor(err, afterReject);
-      afterReject = false;
-      continue;
-    }
-
-    // The event: re-take the step to the located time on the true solution, then polish.
-    const hNext = h * acceptFactor(err, afterReject);
-    let hEvent = stopTheta * h;
-    if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
-      bstep(hEvent);
-      steps++;
-      stepsHere++;
-    }
-    let tEvent: f64;
-    if (single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
-      // the stance driver's own polish (events.ts), on the single-leg equations
-      tEvent = tS + hEvent;
-      tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, timeScale);
-    } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
-      tEvent = tS + hEvent;
-    } else {
-      hEvent = polishB(stopEvent, stopLeg, hEvent);
-      tEvent = tS + hEvent;
-    }
-    if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
-    if (stopEvent == EVB_BACKWARD) return single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
-    noteForces(YN);
-
-    if (stopEvent == EVB_SECTION) {
-      saveEnd(tEvent, stanceLeg);
-      return END_SECTION;
-    }
-    if (stopEvent == EVB_MAX_COMPRESSION) {
-      ls(stopLeg, LF_COMPRESSING, 0.0);
-      ls(stopLeg, LF_K, lg(stopLeg, LF_KE));
-      if (single) setStiffness(lg(stopLeg, LF_KE));
-      else setBipedStiffness(stopLeg, lg(stopLeg, LF_KE));
-      memory.copy(Y0, YN, 40);
-      rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
-      tS = tEvent;
-      startValues();
-      h = hNext;
-      afterReject = false;
-      continue;
-    }
-    if (stopEvent == EVB_LIFTOFF) {
-      ls(stopLeg, LF_ON, 0.0);
-      ls(stopLeg, LF_LO, tSec0 + tEvent);
-      if (single) {
-        saveEnd(tEvent, stopLeg);
-        recordLiftoff(rec, stopLeg);
-        return END_FLIGHT;
-      }
-      recordLiftoff(rec, stopLeg);
-      // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
-      // extending, within the event location's accuracy.
-      const o = 1 - stopLeg;
-      if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
-        ls(o, LF_ON, 0.0);
-        ls(o, LF_LO, tSec0 + tEvent);
-        put(rec, R_DOUBLE_END, tSec0 + tEvent);
-        saveEnd(tEvent, stopLeg);
-        endBoth = true;
-        return END_FLIGHT;
-      }
-      // double -> single support on the other leg; the frame moves to its foot
-      put(rec, R_DOUBLE_END, tSec0 + tEvent);
-      const m = 1 - stopLeg;
-      const sx = footRx(m);
-      const sy = footRy(m);
-      store<f64>(YN, load<f64>(YN, 0) - sx, 0);
-      store<f64>(YN, load<f64>(YN, 8) - sy, 8);
-      ox = lg(m, LF_FX);
-      oy = lg(m, LF_FY);
-      sectionArmed = strideWalking && touchedDown && !isNaN(lg(m, LF_TD));
-      armed = false;
-    } else {
-      // EVB_TOUCHDOWN of the swing leg
-      if (!strideWalking) return STATUS_GAIT_CHANGED;
-      if (touchedDown) return STATUS_NO_SECTION;
-      const j = stopLeg;
-      const tTd = tSec0 + tEvent;
-      const a = attackAt(model, tTd);
-      if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
-      if (a < minAttack) minAttack = a;
-      if (a > maxAttack) maxAttack = a;
-      const px = load<f64>(YN, 0);
-      ls(j, LF_ON, 1.0);
-      ls(j, LF_FX, ox + px + lg(j, LF_L0) * legCos(a));
-      ls(j, LF_FY, swingGround);
-      chooseStiffness(model, tTd, lg(j, LF_KSCALE));
-      ls(j, LF_KC, stanceKc);
-      ls(j, LF_KE, stanceKe);
-      ls(j, LF_K, stanceKc);
-      ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-      ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tTd);
-      touchedDown = true;
-      put(rec, R_DOUBLE_START, tTd);
-      put(rec, R_APEX_TO_TOUCHDOWN, tTd);
-      put(rec, R_ATTACK, a);
-      put(rec, R_FOOT_X, lg(j, LF_FX));
-      put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
-      put(rec, R_TOUCHDOWN_VY, load<f64>(YN, 24));
-      put(rec, R_K_COMPRESSION, stanceKc);
-      put(rec, R_K_EXTENSION, stanceKe);
-    }
+  if (stopEvent == EVB_SECTION) {
+    saveEnd(tEvent, stanceLeg);
+    return END_SECTION;
+  }
+  if (stopEvent == EVB_MAX_COMPRESSION) {
+    ls(stopLeg, LF_COMPRESSING, 0.0);
+    ls(stopLeg, LF_K, lg(stopLeg, LF_KE));
+    if (single) setStiffness(lg(stopLeg, LF_KE));
+    else setBipedStiffness(stopLeg, lg(stopLeg, LF_KE));
     memory.copy(Y0, YN, 40);
+    rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
     tS = tEvent;
-    configure();
-    rhs(Y0, K1);
     startValues();
     h = hNext;
     afterReject = false;
+    return CONTACT_GO;
   }
-  return STATUS_STEP_LIMIT; // not reached: the loop returns
+  if (stopEvent == EVB_LIFTOFF) {
+    ls(stopLeg, LF_ON, 0.0);
+    ls(stopLeg, LF_LO, tSec0 + tEvent);
+    if (single) {
+      saveEnd(tEvent, stopLeg);
+      recordLiftoff(rec, stopLeg);
+      return END_FLIGHT;
+    }
+    recordLiftoff(rec, stopLeg);
+    // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
+    // extending, within the event location's accuracy.
+    const o = 1 - stopLeg;
+    if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
+      ls(o, LF_ON, 0.0);
+      ls(o, LF_LO, tSec0 + tEvent);
+      put(rec, R_DOUBLE_END, tSec0 + tEvent);
+      saveEnd(tEvent, stopLeg);
+      endBoth = true;
+      return END_FLIGHT;
+    }
+    // double -> single support on the other leg; the frame moves to its foot
+    put(rec, R_DOUBLE_END, tSec0 + tEvent);
+    const m = 1 - stopLeg;
+    const sx = footRx(m);
+    const sy = footRy(m);
+    store<f64>(YN, load<f64>(YN, 0) - sx, 0);
+    store<f64>(YN, load<f64>(YN, 8) - sy, 8);
+    ox = lg(m, LF_FX);
+    oy = lg(m, LF_FY);
+    sectionArmed = strideWalking && touchedDown && !isNaN(lg(m, LF_TD));
+    armed = false;
+  } else {
+    // EVB_TOUCHDOWN of the swing leg
+    if (!strideWalking) return STATUS_GAIT_CHANGED;
+    if (touchedDown) return STATUS_NO_SECTION;
+    const j = stopLeg;
+    const tTd = tSec0 + tEvent;
+    const a = attackAt(model, tTd);
+    if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
+    if (a < minAttack) minAttack = a;
+    if (a > maxAttack) maxAttack = a;
+    const px = load<f64>(YN, 0);
+    ls(j, LF_ON, 1.0);
+    ls(j, LF_FX, ox + px + lg(j, LF_L0) * legCos(a));
+    ls(j, LF_FY, swingGround);
+    chooseStiffness(model, tTd, lg(j, LF_KSCALE));
+    ls(j, LF_KC, stanceKc);
+    ls(j, LF_KE, stanceKe);
+    ls(j, LF_K, stanceKc);
+    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+    ls(j, LF_COMPRESSING, 1.0);
+    ls(j, LF_TD, tTd);
+    touchedDown = true;
+    put(rec, R_DOUBLE_START, tTd);
+    put(rec, R_APEX_TO_TOUCHDOWN, tTd);
+    put(rec, R_ATTACK, a);
+    put(rec, R_FOOT_X, lg(j, LF_FX));
+    put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
+    put(rec, R_TOUCHDOWN_VY, load<f64>(YN, 24));
+    put(rec, R_K_COMPRESSION, stanceKc);
+    put(rec, R_K_EXTENSION, stanceKe);
+  }
+  memory.copy(Y0, YN, 40);
+  tS = tEvent;
+  configure();
+  rhs(Y0, K1);
+  startValues();
+  h = hNext;
+  afterReject = false;
+  return CONTACT_GO;
 }
 
 function saveEnd(t: f64, leg: i32): void {
@@ -1341,28 +1374,78 @@ function energyAt(x: f64, y: f64, vx: f64, vy: f64): f64 {
   return e;
 }
 
+// The rollout's state between strides, kept in globals (not locals) so that rollouts can take
+// turns between steps (runBipedBatch).
+let strides: i32 = 0;
+let rec0: usize = 0;
+let summary: usize = 0;
+let strideIndex: i32 = 0;
+let strideRec: usize = 0;
+let scratchRecord: usize = SCRATCH_RECORD;
+let targetHeight: f64 = 0.0;
+let targetSpeed: f64 = 0.0;
+let stream: u64 = 0;
+let section: i32 = 0;
+let apexY: f64 = 0.0;
+let apexVx: f64 = 0.0;
+let offset: f64 = 0.0;
+let leg: i32 = 0;
+let apexX: f64 = 0.0;
+let apexT: f64 = 0.0;
+let prevHeight: f64 = 0.0;
+let prevSpeed: f64 = 0.0;
+let prevOffset: f64 = 0.0;
+let status: i32 = 0;
+let completed: i32 = 0;
+let maxForce: f64 = 0.0;
+let maxFriction: f64 = 0.0;
+let maxCompression: f64 = 0.0;
+let maxVertical: f64 = 0.0;
+let sumSqHeight: f64 = 0.0;
+let sumSqSpeed: f64 = 0.0;
+let allSteps: i32 = 0;
+let allRejected: i32 = 0;
+
+// One rollout: rolloutBegin, then for each stride strideBegin, the contact (runContact) and
+// strideEnd, then rolloutEnd (the summary). runBipedBatch runs the same pieces for rollouts
+// that take turns.
 export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: usize, summary: usize): i32 {
+  LEGS = LEGS_DEFAULT;
+  scratchRecord = SCRATCH_RECORD;
+  useBuffers(DEFAULT_BUFFERS);
+  rolloutBegin(mdl, input, strides, rec0, summary);
+  while (strideBegin()) {
+    if (!strideEnd(runContact(strideRec))) break;
+  }
+  return rolloutEnd();
+}
+
+function rolloutBegin(mdl: usize, input: usize, nStrides: i32, records: usize, sum: usize): void {
   model = mdl;
-  mass = mget(mdl, M_MASS) * get(input, I_MASS_SCALE);
-  gravity = mget(mdl, M_GRAVITY);
-  rtol = mget(mdl, M_RTOL);
-  atol = mget(mdl, M_ATOL);
-  maxSteps = <i32>mget(mdl, M_MAX_STEPS);
+  strides = nStrides;
+  rec0 = records;
+  summary = sum;
+  strideIndex = 0;
+  mass = mget(model, M_MASS) * get(input, I_MASS_SCALE);
+  gravity = mget(model, M_GRAVITY);
+  rtol = mget(model, M_RTOL);
+  atol = mget(model, M_ATOL);
+  maxSteps = <i32>mget(model, M_MAX_STEPS);
   const kScale = get(input, I_STIFFNESS_SCALE);
   const legScale = get(input, I_LEG_SCALE);
-  const targetHeight = mget(mdl, M_TARGET_HEIGHT);
-  const targetSpeed = mget(mdl, M_TARGET_SPEED);
-  const stream = <u64>get(input, I_STREAM);
-  ls(0, LF_L0, mget(mdl, M_BIPED_LENGTH_0) * legScale);
-  ls(1, LF_L0, mget(mdl, M_BIPED_LENGTH_1) * legScale);
-  ls(0, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_0) * kScale);
-  ls(1, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_1) * kScale);
-  ls(0, LF_C, mget(mdl, M_BIPED_DAMPING_0));
-  ls(1, LF_C, mget(mdl, M_BIPED_DAMPING_1));
+  targetHeight = mget(model, M_TARGET_HEIGHT);
+  targetSpeed = mget(model, M_TARGET_SPEED);
+  stream = <u64>get(input, I_STREAM);
+  ls(0, LF_L0, mget(model, M_BIPED_LENGTH_0) * legScale);
+  ls(1, LF_L0, mget(model, M_BIPED_LENGTH_1) * legScale);
+  ls(0, LF_KSCALE, mget(model, M_BIPED_STIFFNESS_SCALE_0) * kScale);
+  ls(1, LF_KSCALE, mget(model, M_BIPED_STIFFNESS_SCALE_1) * kScale);
+  ls(0, LF_C, mget(model, M_BIPED_DAMPING_0));
+  ls(1, LF_C, mget(model, M_BIPED_DAMPING_1));
   undamped = lg(0, LF_C) == 0.0 && lg(1, LF_C) == 0.0;
-  fixedAngle = <i32>mget(mdl, M_ANGLE_KIND) == ANGLE_FIXED;
+  fixedAngle = <i32>mget(model, M_ANGLE_KIND) == ANGLE_FIXED;
   if (fixedAngle) {
-    const sinA = legSin(mget(mdl, M_ATTACK));
+    const sinA = legSin(mget(model, M_ATTACK));
     ls(0, LF_TOUCH_HEIGHT, lg(0, LF_L0) * sinA);
     ls(1, LF_TOUCH_HEIGHT, lg(1, LF_L0) * sinA);
   }
@@ -1373,40 +1456,40 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   }
   resetWalk();
 
-  let section = <i32>get(input, I_SECTION_KIND);
-  let y = get(input, I_APEX_HEIGHT);
-  let vx = get(input, I_FORWARD_SPEED);
-  let offset = section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
+  section = <i32>get(input, I_SECTION_KIND);
+  apexY = get(input, I_APEX_HEIGHT);
+  apexVx = get(input, I_FORWARD_SPEED);
+  offset = section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
   const legCode = <i32>get(input, I_SECTION_LEG);
-  let leg = legCode == 1 ? 1 : legCode == 2 && section == SECTION_FLIGHT_APEX ? 2 : 0;
-  let x: f64 = 0.0;
-  let t: f64 = 0.0;
-  let prevHeight = y;
-  let prevSpeed = vx;
-  let prevOffset = offset;
+  leg = legCode == 1 ? 1 : legCode == 2 && section == SECTION_FLIGHT_APEX ? 2 : 0;
+  apexX = 0.0;
+  apexT = 0.0;
+  prevHeight = apexY;
+  prevSpeed = apexVx;
+  prevOffset = offset;
   minAttack = Infinity;
   maxAttack = -Infinity;
 
-  let status = STATUS_OK;
-  let completed = 0;
-  let maxForce: f64 = 0.0;
-  let maxFriction: f64 = 0.0;
-  let maxCompression: f64 = 0.0;
-  let maxVertical: f64 = 0.0;
-  let sumSqHeight: f64 = 0.0;
-  let sumSqSpeed: f64 = 0.0;
-  let allSteps = 0;
-  let allRejected = 0;
+  status = STATUS_OK;
+  completed = 0;
+  maxForce = 0.0;
+  maxFriction = 0.0;
+  maxCompression = 0.0;
+  maxVertical = 0.0;
+  sumSqHeight = 0.0;
+  sumSqSpeed = 0.0;
+  allSteps = 0;
+  allRejected = 0;
   const leg0 = leg == 2 ? 0 : leg;
-  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg0, LF_KSCALE);
-  h = initialStep(mass, kFirst, vx, lg(leg0, LF_L0), rtol);
+  const kFirst = mget(model, M_STIFFNESS) * lg(leg0, LF_KSCALE);
+  h = initialStep(mass, kFirst, apexVx, lg(leg0, LF_L0), rtol);
 
   if (section == SECTION_SINGLE_SUPPORT_APEX) {
     // the stance leg at the start: pinned at -offset on ground 0, past its maximum compression
     ls(leg, LF_ON, 1.0);
     ls(leg, LF_FX, -offset);
     ls(leg, LF_FY, 0.0);
-    chooseStiffness(mdl, 0.0, lg(leg, LF_KSCALE));
+    chooseStiffness(model, 0.0, lg(leg, LF_KSCALE));
     ls(leg, LF_KC, stanceKc);
     ls(leg, LF_KE, stanceKe);
     ls(leg, LF_K, stanceKe);
@@ -1414,254 +1497,270 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
     ls(leg, LF_COMPRESSING, 0.0);
   }
 
-  for (let s = 0; s < strides; s++) {
-    const rec = rec0 != 0 ? rec0 + (<usize>s * R_SIZE << 3) : SCRATCH_RECORD;
-    if (rec0 != 0) for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
-    put(rec, R_APEX_HEIGHT, y);
-    put(rec, R_APEX_SPEED, vx);
-    put(rec, R_APEX_TIME, t);
-    put(rec, R_APEX_X, x);
-    put(rec, R_SECTION_KIND, <f64>section);
-    put(rec, R_SECTION_OFFSET, offset);
-    put(rec, R_SECTION_LEG, <f64>leg);
-    const energyBefore = energyAt(x, y, vx, 0.0);
-    put(rec, R_ENERGY_BEFORE, energyBefore);
-    if (!isFinite(y) || !isFinite(vx)) { status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>status); break; }
-    strideWalking = section == SECTION_SINGLE_SUPPORT_APEX;
-    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
-    endBoth = false;
-    traceStride = s;
-    traceT0 = t;
-    for (let i = 0; i < 2; i++) {
-      ls(i, LF_PEAK, 0.0);
-      ls(i, LF_MAXCOMP, 0.0);
-      ls(i, LF_TD, NaN);
-      ls(i, LF_LO, NaN);
-    }
-    peakVertical = 0.0;
-    peakFriction = 0.0;
-    lostSpring = 0.0;
-    touchedDown = false;
-    sectionArmed = false;
-    armed = false;
-    firstStep = true;
-    steps = 0;
-    rejected = 0;
-    swingGround = groundAt(mdl, s, stream);
-    put(rec, R_GROUND, swingGround);
+}
 
-    // The contact's time limit: far beyond any stance that ends (as the stance driver's).
-    let kMin: f64 = Infinity;
-    for (let i = 0; i < 2; i++) {
-      const k = mget(mdl, M_STIFFNESS) * lg(i, LF_KSCALE);
-      if (k < kMin) kMin = k;
-    }
+// The start of stride strideIndex up to its contact (the flight before it, for a running
+// stride): true when the contact is to run from Y0, false when the rollout ended here (status).
+function strideBegin(): bool {
+  if (strideIndex >= strides) return false;
+  const rec = rec0 != 0 ? rec0 + (<usize>strideIndex * R_SIZE << 3) : scratchRecord;
+  strideRec = rec;
+  if (rec0 != 0) for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
+  put(rec, R_APEX_HEIGHT, apexY);
+  put(rec, R_APEX_SPEED, apexVx);
+  put(rec, R_APEX_TIME, apexT);
+  put(rec, R_APEX_X, apexX);
+  put(rec, R_SECTION_KIND, <f64>section);
+  put(rec, R_SECTION_OFFSET, offset);
+  put(rec, R_SECTION_LEG, <f64>leg);
+  const energyBefore = energyAt(apexX, apexY, apexVx, 0.0);
+  put(rec, R_ENERGY_BEFORE, energyBefore);
+  if (!isFinite(apexY) || !isFinite(apexVx)) { status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>status); return false; }
+  strideWalking = section == SECTION_SINGLE_SUPPORT_APEX;
+  put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
+  endBoth = false;
+  traceStride = strideIndex;
+  traceT0 = apexT;
+  for (let i = 0; i < 2; i++) {
+    ls(i, LF_PEAK, 0.0);
+    ls(i, LF_MAXCOMP, 0.0);
+    ls(i, LF_TD, NaN);
+    ls(i, LF_LO, NaN);
+  }
+  peakVertical = 0.0;
+  peakFriction = 0.0;
+  lostSpring = 0.0;
+  touchedDown = false;
+  sectionArmed = false;
+  armed = false;
+  firstStep = true;
+  steps = 0;
+  rejected = 0;
+  swingGround = groundAt(model, strideIndex, stream);
+  put(rec, R_GROUND, swingGround);
 
-    if (strideWalking) {
-      ox = lg(leg, LF_FX);
-      oy = lg(leg, LF_FY);
-      const r = Math.sqrt((x - ox) * (x - ox) + (y - oy) * (y - oy));
-      if (!(r <= lg(leg, LF_L0))) { status = STATUS_LEG_NOT_PLACEABLE; put(rec, R_STATUS, <f64>status); break; }
-      // after a section the state relative to the stance foot carries over exactly
-      store<f64>(Y0, s > 0 ? relPx : x - ox, 0);
-      store<f64>(Y0, s > 0 ? relPy : y - oy, 8);
-      store<f64>(Y0, vx, 16);
-      store<f64>(Y0, 0.0, 24);
-      store<f64>(Y0, 0.0, 32);
-      tSec0 = 0.0;
-      tS = 0.0;
-    } else {
-      // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
-      // legs are ready and the one whose foot reaches the ground first lands (both at once when
-      // they reach it at the same time)
-      let j = leg == 2 ? 0 : leg;
-      let tTouch = touchdownTime(mdl, y, swingGround, lg(j, LF_L0), gravity);
-      let both = false;
-      if (leg == 2) {
-        const t1 = touchdownTime(mdl, y, swingGround, lg(1, LF_L0), gravity);
-        if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
-        else both = t1 == tTouch;
-      }
-      const l0 = lg(j, LF_L0);
-      if (tTouch < 0.0) {
-        status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
-          : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
-          : tTouch == TOUCHDOWN_ANGLE_LEFT ? STATUS_ATTACK_OUT_OF_RANGE
-          : STATUS_STEP_LIMIT;
-        put(rec, R_STATUS, <f64>status);
-        break;
-      }
-      const attack = attackAt(mdl, tTouch);
-      if (!(attack > 0.0 && attack <= MAX_ATTACK)) { status = STATUS_ATTACK_OUT_OF_RANGE; put(rec, R_STATUS, <f64>status); break; }
-      if (attack < minAttack) minAttack = attack;
-      if (attack > maxAttack) maxAttack = attack;
-      const cosA = legCos(attack);
-      const sinA = legSin(attack);
-      const xTouch = x + vx * tTouch;
-      const vyTouch = -gravity * tTouch;
-      const px = -l0 * cosA;
-      const py = l0 * sinA;
-      const footX = xTouch - px;
-      if (tracing) traceFlightB(t, t + tTouch, x, y, vx, 0.0, 0.0, false);
-      ls(j, LF_ON, 1.0);
-      ls(j, LF_FX, footX);
-      ls(j, LF_FY, swingGround);
-      chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE));
-      ls(j, LF_KC, stanceKc);
-      ls(j, LF_KE, stanceKe);
-      ls(j, LF_K, stanceKc);
-      ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-      ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tTouch);
-      if (both) {
-        const o = 1 - j;
-        ls(o, LF_ON, 1.0);
-        ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
-        ls(o, LF_FY, swingGround);
-        chooseStiffness(mdl, tTouch, lg(o, LF_KSCALE));
-        ls(o, LF_KC, stanceKc);
-        ls(o, LF_KE, stanceKe);
-        ls(o, LF_K, stanceKc);
-        ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-        ls(o, LF_COMPRESSING, 1.0);
-        ls(o, LF_TD, tTouch);
-        put(rec, R_DOUBLE_START, tTouch);
-        chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
-      }
-      touchedDown = true;
-      put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
-      put(rec, R_ATTACK, attack);
-      put(rec, R_FOOT_X, footX);
-      put(rec, R_TOUCHDOWN_VX, vx);
-      put(rec, R_TOUCHDOWN_VY, vyTouch);
-      put(rec, R_K_COMPRESSION, stanceKc);
-      put(rec, R_K_EXTENSION, stanceKe);
-      ox = footX;
-      oy = swingGround;
-      store<f64>(Y0, px, 0);
-      store<f64>(Y0, py, 8);
-      store<f64>(Y0, vx, 16);
-      store<f64>(Y0, vyTouch, 24);
-      store<f64>(Y0, 0.0, 32);
-      tSec0 = tTouch;
-      tS = 0.0;
-    }
-    tContactLimit = 20.0 * Math.PI * Math.sqrt(mass / kMin);
-
-    const end = runContact(rec);
-    allSteps += steps;
-    allRejected += rejected;
-    put(rec, R_STEPS, <f64>steps);
-    put(rec, R_REJECTED, <f64>rejected);
-    put(rec, R_TOUCHDOWN_TIME_0, lg(0, LF_TD));
-    put(rec, R_TOUCHDOWN_TIME_0 + 1, lg(1, LF_TD));
-    put(rec, R_LIFTOFF_TIME_0, lg(0, LF_LO));
-    put(rec, R_LIFTOFF_TIME_0 + 1, lg(1, LF_LO));
-    const p0 = lg(0, LF_PEAK);
-    const p1 = lg(1, LF_PEAK);
-    put(rec, R_PEAK_FORCE_0, p0);
-    put(rec, R_PEAK_FORCE_1, p1);
-    put(rec, R_PEAK_FORCE, p0 > p1 ? p0 : p1);
-    const c0 = lg(0, LF_MAXCOMP);
-    const c1 = lg(1, LF_MAXCOMP);
-    put(rec, R_MAX_COMPRESSION, c0 > c1 ? c0 : c1);
-    put(rec, R_PEAK_VERTICAL_FORCE, peakVertical);
-    put(rec, R_PEAK_FRICTION, peakFriction);
-    if (end >= 0) {
-      // a failure status; a gait change names the gait it changed to
-      if (end == STATUS_GAIT_CHANGED) put(rec, R_GAIT, strideWalking ? <f64>GAIT_RUNNING : <f64>GAIT_WALKING);
-      status = end;
-      put(rec, R_STATUS, <f64>status);
-      break;
-    }
-
-    let yNext: f64, xNext: f64, vxNext: f64, tNext: f64, eAfter: f64;
-    let nextSection: i32, nextOffset: f64, nextLeg: i32;
-    if (end == END_FLIGHT) {
-      const xLift = ox + endPx;
-      const yLift = oy + endPy;
-      const tLift = t + tSec0 + endT;
-      if (strideWalking) {
-        status = STATUS_GAIT_CHANGED;
-        put(rec, R_GAIT, <f64>GAIT_RUNNING);
-        put(rec, R_STATUS, <f64>status);
-        break;
-      }
-      put(rec, R_CONTACT, endT);
-      if (tracing) {
-        emit2(tLift, xLift, yLift, endVx, endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
-      }
-      if (!(endVy > 0.0)) { status = STATUS_NO_APEX; put(rec, R_STATUS, <f64>status); break; }
-      const tUp = endVy / gravity;
-      yNext = yLift + (endVy * endVy) / (2.0 * gravity);
-      xNext = xLift + endVx * tUp;
-      vxNext = endVx;
-      tNext = tLift + tUp;
-      if (tracing) traceFlightB(tLift, tNext, xLift, yLift, endVx, endVy, 0.0, true);
-      // the springs hold no energy in flight; with damping, what the leg still held is lost
-      eAfter = mass * gravity * yNext + 0.5 * mass * vxNext * vxNext;
-      nextSection = SECTION_FLIGHT_APEX;
-      nextOffset = NaN;
-      nextLeg = endBoth ? 2 : 1 - endLeg;
-    } else {
-      yNext = oy + endPy;
-      xNext = ox + endPx;
-      vxNext = endVx;
-      tNext = t + tSec0 + endT;
-      eAfter = energyAt(xNext, yNext, vxNext, 0.0);
-      nextSection = SECTION_SINGLE_SUPPORT_APEX;
-      nextOffset = endPx - footRx(endLeg);
-      nextLeg = endLeg;
-      relPx = endPx;
-      relPy = endPy;
-    }
-    // the dampers' work, and the spring energy damped legs still held when they left
-    put(rec, R_DISSIPATED, endW + lostSpring);
-    put(rec, R_NEXT_APEX_HEIGHT, yNext);
-    put(rec, R_NEXT_APEX_SPEED, vxNext);
-    put(rec, R_NEXT_APEX_X, xNext);
-    put(rec, R_NEXT_APEX_TIME, tNext);
-    put(rec, R_STRIDE_TIME, tNext - t);
-    put(rec, R_ENERGY_AFTER, eAfter);
-    put(rec, R_NEXT_SECTION_KIND, <f64>nextSection);
-    put(rec, R_NEXT_SECTION_OFFSET, nextOffset);
-    put(rec, R_NEXT_SECTION_LEG, <f64>nextLeg);
-    put(rec, R_STATUS, <f64>STATUS_OK);
-
-    const pk = p0 > p1 ? p0 : p1;
-    if (pk > maxForce) maxForce = pk;
-    if (peakFriction > maxFriction) maxFriction = peakFriction;
-    const cm = c0 > c1 ? c0 : c1;
-    if (cm > maxCompression) maxCompression = cm;
-    if (peakVertical > maxVertical) maxVertical = peakVertical;
-    const eh = yNext - targetHeight;
-    const ev = vxNext - targetSpeed;
-    sumSqHeight += eh * eh;
-    sumSqSpeed += ev * ev;
-    prevHeight = y;
-    prevSpeed = vx;
-    prevOffset = offset;
-    y = yNext;
-    vx = vxNext;
-    x = xNext;
-    t = tNext;
-    section = nextSection;
-    offset = nextOffset;
-    leg = nextLeg;
-    h = firstH;
-    completed++;
+  // The contact's time limit: far beyond any stance that ends (as the stance driver's).
+  let kMin: f64 = Infinity;
+  for (let i = 0; i < 2; i++) {
+    const k = mget(model, M_STIFFNESS) * lg(i, LF_KSCALE);
+    if (k < kMin) kMin = k;
   }
 
+  if (strideWalking) {
+    ox = lg(leg, LF_FX);
+    oy = lg(leg, LF_FY);
+    const r = Math.sqrt((apexX - ox) * (apexX - ox) + (apexY - oy) * (apexY - oy));
+    if (!(r <= lg(leg, LF_L0))) { status = STATUS_LEG_NOT_PLACEABLE; put(rec, R_STATUS, <f64>status); return false; }
+    // after a section the state relative to the stance foot carries over exactly
+    store<f64>(Y0, strideIndex > 0 ? relPx : apexX - ox, 0);
+    store<f64>(Y0, strideIndex > 0 ? relPy : apexY - oy, 8);
+    store<f64>(Y0, apexVx, 16);
+    store<f64>(Y0, 0.0, 24);
+    store<f64>(Y0, 0.0, 32);
+    tSec0 = 0.0;
+    tS = 0.0;
+  } else {
+    // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
+    // legs are ready and the one whose foot reaches the ground first lands (both at once when
+    // they reach it at the same time)
+    let j = leg == 2 ? 0 : leg;
+    let tTouch = touchdownTime(model, apexY, swingGround, lg(j, LF_L0), gravity);
+    let both = false;
+    if (leg == 2) {
+      const t1 = touchdownTime(model, apexY, swingGround, lg(1, LF_L0), gravity);
+      if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
+      else both = t1 == tTouch;
+    }
+    const l0 = lg(j, LF_L0);
+    if (tTouch < 0.0) {
+      status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
+        : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
+        : tTouch == TOUCHDOWN_ANGLE_LEFT ? STATUS_ATTACK_OUT_OF_RANGE
+        : STATUS_STEP_LIMIT;
+      put(rec, R_STATUS, <f64>status);
+      return false;
+    }
+    const attack = attackAt(model, tTouch);
+    if (!(attack > 0.0 && attack <= MAX_ATTACK)) { status = STATUS_ATTACK_OUT_OF_RANGE; put(rec, R_STATUS, <f64>status); return false; }
+    if (attack < minAttack) minAttack = attack;
+    if (attack > maxAttack) maxAttack = attack;
+    const cosA = legCos(attack);
+    const sinA = legSin(attack);
+    const xTouch = apexX + apexVx * tTouch;
+    const vyTouch = -gravity * tTouch;
+    const px = -l0 * cosA;
+    const py = l0 * sinA;
+    const footX = xTouch - px;
+    if (tracing) traceFlightB(apexT, apexT + tTouch, apexX, apexY, apexVx, 0.0, 0.0, false);
+    ls(j, LF_ON, 1.0);
+    ls(j, LF_FX, footX);
+    ls(j, LF_FY, swingGround);
+    chooseStiffness(model, tTouch, lg(j, LF_KSCALE));
+    ls(j, LF_KC, stanceKc);
+    ls(j, LF_KE, stanceKe);
+    ls(j, LF_K, stanceKc);
+    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+    ls(j, LF_COMPRESSING, 1.0);
+    ls(j, LF_TD, tTouch);
+    if (both) {
+      const o = 1 - j;
+      ls(o, LF_ON, 1.0);
+      ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
+      ls(o, LF_FY, swingGround);
+      chooseStiffness(model, tTouch, lg(o, LF_KSCALE));
+      ls(o, LF_KC, stanceKc);
+      ls(o, LF_KE, stanceKe);
+      ls(o, LF_K, stanceKc);
+      ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+      ls(o, LF_COMPRESSING, 1.0);
+      ls(o, LF_TD, tTouch);
+      put(rec, R_DOUBLE_START, tTouch);
+      chooseStiffness(model, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
+    }
+    touchedDown = true;
+    put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
+    put(rec, R_ATTACK, attack);
+    put(rec, R_FOOT_X, footX);
+    put(rec, R_TOUCHDOWN_VX, apexVx);
+    put(rec, R_TOUCHDOWN_VY, vyTouch);
+    put(rec, R_K_COMPRESSION, stanceKc);
+    put(rec, R_K_EXTENSION, stanceKe);
+    ox = footX;
+    oy = swingGround;
+    store<f64>(Y0, px, 0);
+    store<f64>(Y0, py, 8);
+    store<f64>(Y0, apexVx, 16);
+    store<f64>(Y0, vyTouch, 24);
+    store<f64>(Y0, 0.0, 32);
+    tSec0 = tTouch;
+    tS = 0.0;
+  }
+  tContactLimit = 20.0 * Math.PI * Math.sqrt(mass / kMin);
+
+  return true;
+}
+
+// The rest of the stride after its contact ended with `end` (END_SECTION, END_FLIGHT or a
+// STATUS_* code): true when the rollout goes on to the next stride.
+function strideEnd(end: i32): bool {
+  const rec = strideRec;
+  allSteps += steps;
+  allRejected += rejected;
+  put(rec, R_STEPS, <f64>steps);
+  put(rec, R_REJECTED, <f64>rejected);
+  put(rec, R_TOUCHDOWN_TIME_0, lg(0, LF_TD));
+  put(rec, R_TOUCHDOWN_TIME_0 + 1, lg(1, LF_TD));
+  put(rec, R_LIFTOFF_TIME_0, lg(0, LF_LO));
+  put(rec, R_LIFTOFF_TIME_0 + 1, lg(1, LF_LO));
+  const p0 = lg(0, LF_PEAK);
+  const p1 = lg(1, LF_PEAK);
+  put(rec, R_PEAK_FORCE_0, p0);
+  put(rec, R_PEAK_FORCE_1, p1);
+  put(rec, R_PEAK_FORCE, p0 > p1 ? p0 : p1);
+  const c0 = lg(0, LF_MAXCOMP);
+  const c1 = lg(1, LF_MAXCOMP);
+  put(rec, R_MAX_COMPRESSION, c0 > c1 ? c0 : c1);
+  put(rec, R_PEAK_VERTICAL_FORCE, peakVertical);
+  put(rec, R_PEAK_FRICTION, peakFriction);
+  if (end >= 0) {
+    // a failure status; a gait change names the gait it changed to
+    if (end == STATUS_GAIT_CHANGED) put(rec, R_GAIT, strideWalking ? <f64>GAIT_RUNNING : <f64>GAIT_WALKING);
+    status = end;
+    put(rec, R_STATUS, <f64>status);
+    return false;
+  }
+
+  let yNext: f64, xNext: f64, vxNext: f64, tNext: f64, eAfter: f64;
+  let nextSection: i32, nextOffset: f64, nextLeg: i32;
+  if (end == END_FLIGHT) {
+    const xLift = ox + endPx;
+    const yLift = oy + endPy;
+    const tLift = apexT + tSec0 + endT;
+    if (strideWalking) {
+      status = STATUS_GAIT_CHANGED;
+      put(rec, R_GAIT, <f64>GAIT_RUNNING);
+      put(rec, R_STATUS, <f64>status);
+      return false;
+    }
+    put(rec, R_CONTACT, endT);
+    if (tracing) {
+      emit2(tLift, xLift, yLift, endVx, endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
+    }
+    if (!(endVy > 0.0)) { status = STATUS_NO_APEX; put(rec, R_STATUS, <f64>status); return false; }
+    const tUp = endVy / gravity;
+    yNext = yLift + (endVy * endVy) / (2.0 * gravity);
+    xNext = xLift + endVx * tUp;
+    vxNext = endVx;
+    tNext = tLift + tUp;
+    if (tracing) traceFlightB(tLift, tNext, xLift, yLift, endVx, endVy, 0.0, true);
+    // the springs hold no energy in flight; with damping, what the leg still held is lost
+    eAfter = mass * gravity * yNext + 0.5 * mass * vxNext * vxNext;
+    nextSection = SECTION_FLIGHT_APEX;
+    nextOffset = NaN;
+    nextLeg = endBoth ? 2 : 1 - endLeg;
+  } else {
+    yNext = oy + endPy;
+    xNext = ox + endPx;
+    vxNext = endVx;
+    tNext = apexT + tSec0 + endT;
+    eAfter = energyAt(xNext, yNext, vxNext, 0.0);
+    nextSection = SECTION_SINGLE_SUPPORT_APEX;
+    nextOffset = endPx - footRx(endLeg);
+    nextLeg = endLeg;
+    relPx = endPx;
+    relPy = endPy;
+  }
+  // the dampers' work, and the spring energy damped legs still held when they left
+  put(rec, R_DISSIPATED, endW + lostSpring);
+  put(rec, R_NEXT_APEX_HEIGHT, yNext);
+  put(rec, R_NEXT_APEX_SPEED, vxNext);
+  put(rec, R_NEXT_APEX_X, xNext);
+  put(rec, R_NEXT_APEX_TIME, tNext);
+  put(rec, R_STRIDE_TIME, tNext - apexT);
+  put(rec, R_ENERGY_AFTER, eAfter);
+  put(rec, R_NEXT_SECTION_KIND, <f64>nextSection);
+  put(rec, R_NEXT_SECTION_OFFSET, nextOffset);
+  put(rec, R_NEXT_SECTION_LEG, <f64>nextLeg);
+  put(rec, R_STATUS, <f64>STATUS_OK);
+
+  const pk = p0 > p1 ? p0 : p1;
+  if (pk > maxForce) maxForce = pk;
+  if (peakFriction > maxFriction) maxFriction = peakFriction;
+  const cm = c0 > c1 ? c0 : c1;
+  if (cm > maxCompression) maxCompression = cm;
+  if (peakVertical > maxVertical) maxVertical = peakVertical;
+  const eh = yNext - targetHeight;
+  const ev = vxNext - targetSpeed;
+  sumSqHeight += eh * eh;
+  sumSqSpeed += ev * ev;
+  prevHeight = apexY;
+  prevSpeed = apexVx;
+  prevOffset = offset;
+  apexY = yNext;
+  apexVx = vxNext;
+  apexX = xNext;
+  apexT = tNext;
+  section = nextSection;
+  offset = nextOffset;
+  leg = nextLeg;
+  h = firstH;
+  completed++;
+  strideIndex++;
+  return true;
+}
+
+// The rest of the records and the summary; the rollout's status.
+function rolloutEnd(): i32 {
   if (rec0 != 0) {
-    for (let s = completed + 1; s < strides; s++) {
-      const rec = rec0 + (<usize>s * R_SIZE << 3);
+    for (let q = completed + 1; q < strides; q++) {
+      const rec = rec0 + (<usize>q * R_SIZE << 3);
       for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
     }
   }
   put(summary, S_STATUS, <f64>status);
   put(summary, S_STRIDES_COMPLETED, <f64>completed);
-  put(summary, S_FINAL_HEIGHT, y);
-  put(summary, S_FINAL_SPEED, vx);
+  put(summary, S_FINAL_HEIGHT, apexY);
+  put(summary, S_FINAL_SPEED, apexVx);
   put(summary, S_PREVIOUS_HEIGHT, prevHeight);
   put(summary, S_PREVIOUS_SPEED, prevSpeed);
   put(summary, S_MAX_PEAK_FORCE, maxForce);
@@ -1671,8 +1770,8 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   put(summary, S_MAX_ATTACK, maxAttack);
   put(summary, S_SUM_SQ_HEIGHT_ERROR, sumSqHeight);
   put(summary, S_SUM_SQ_SPEED_ERROR, sumSqSpeed);
-  put(summary, S_TIME, t);
-  put(summary, S_DISTANCE, x);
+  put(summary, S_TIME, apexT);
+  put(summary, S_DISTANCE, apexX);
   put(summary, S_STEPS, <f64>allSteps);
   put(summary, S_REJECTED, <f64>allRejected);
   put(summary, S_FINAL_OFFSET, offset);
