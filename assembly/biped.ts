@@ -74,7 +74,7 @@ import {
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
 import {
-  stepPairW, stepQuadW, stepPairW1, stepQuadW1, laneError, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
+  stepPairW, stepQuadW, stepPairW1, stepQuadW1, laneError, unpackStages, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
   PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
 } from "./rk/biped-x2";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
@@ -2011,8 +2011,10 @@ function laneAfterQuiet(i: i32, err: f64): bool {
     if (fr > s.peakFriction) s.peakFriction = fr;
   }
   s.tS += s.h;
-  memory.copy(buf + OFF_Y0, buf + OFF_YN, 40);
-  memory.copy(buf + OFF_K1, buf + OFF_K7, 40);
+  for (let j: usize = 0; j < 40; j += 8) {
+    store<f64>(buf + OFF_Y0 + j, load<f64>(buf + OFF_YN + j));
+    store<f64>(buf + OFF_K1 + j, load<f64>(buf + OFF_K7 + j));
+  }
   s.gl00 = gl10;
   s.gl01 = gl11;
   s.gm00 = gm10;
@@ -2135,6 +2137,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
       let err: f64;
       if ((paired & (1 << i)) != 0) {
         setLastH(S.h);
+        unpackStages(i, laneBuffers(i));
         err = laneError(i);
       } else {
         err = bstep(S.h);

@@ -13,7 +13,7 @@
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
-  OFF_Y0, OFF_K1, OFF_K2, OFF_K3, OFF_K4, OFF_K5, OFF_K6, OFF_K7, OFF_YN,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
 } from "./dopri5";
 
 // Each lane's step: for lanes 2 p and 2 p + 1 (lane pair p), as f64x2 at PAIR_PARAMS +
@@ -34,6 +34,20 @@ export const PP_FY1 = 10;
 export const PP_L1 = 11;
 export const PP_K1 = 12;
 export const PP_SINGLE = 13; // all bits set in a lane in single support, else 0
+
+// K3..K6 (first four components) of the last step of each lane pair, as f64x2 (stage, component)
+// at LANE_STAGES + 256 * pair: a lane's own buffers get them (unpackStages) only when it needs
+// them (the interpolant, for an event inside the step). K2 is not kept: no one reads it after
+// a step (dense() has no K2 term).
+const LANE_STAGES: usize = memory.data(2 * 256, 16);
+
+// The K3..K6 of lane `lane` (0..3) of the last step into its buffer set at p.
+export function unpackStages(lane: i32, p: usize): void {
+  const src = LANE_STAGES + <usize>(lane >> 1) * 256 + <usize>(lane & 1) * 8;
+  for (let k: usize = 0; k < 4; k++) {
+    for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_K3 + k * 40 + (j << 3), load<f64>(src + ((k * 4 + j) << 4)));
+  }
+}
 
 // The error of the last step in each lane (0..3), as step4w returns it (NaN: a non-finite stage).
 const LANE_ERRORS: usize = memory.data(4 * 8, 16);
@@ -70,9 +84,9 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
 }
 
 // One step of size PP_H from each lane's (Y0, K1) in the buffer sets at b0 and b1 (dopri5.ts
-// offsets): writes K2..K7 and YN (first four components) of each and pairErr0 / pairErr1.
+// offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and pairErr0 / pairErr1.
 // One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` in the buffer sets at b0 and
-// b1 (dopri5.ts offsets): writes K2..K7 and YN (first four components) of each and the lanes'
+// b1 (dopri5.ts offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and the lanes'
 // errors (laneError).
 export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const PA = pair;
@@ -120,10 +134,6 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q2s3 = mul(q2ac0, q2dy0);
   const b2v = v128.bitselect(q2s2, add(q2s2, mul(q2ac1, q2dx1)), single);
   const b3v = f64x2.sub(v128.bitselect(q2s3, add(q2s3, mul(q2ac1, q2dy1)), single), grav);
-  st2(b0, b1, OFF_K2, b0v);
-  st2(b0, b1, OFF_K2 + 8, b1v);
-  st2(b0, b1, OFF_K2 + 16, b2v);
-  st2(b0, b1, OFF_K2 + 24, b3v);
   // stage 3
   const cp0 = add(add(y0, mul(h, mul(sp(A31), a0))), mul(hA32, b0v));
   const cp1 = add(add(y1, mul(h, mul(sp(A31), a1))), mul(hA32, b1v));
@@ -141,10 +151,10 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q3s3 = mul(q3ac0, q3dy0);
   const c2 = v128.bitselect(q3s2, add(q3s2, mul(q3ac1, q3dx1)), single);
   const c3 = f64x2.sub(v128.bitselect(q3s3, add(q3s3, mul(q3ac1, q3dy1)), single), grav);
-  st2(b0, b1, OFF_K3, c0);
-  st2(b0, b1, OFF_K3 + 8, c1);
-  st2(b0, b1, OFF_K3 + 16, c2);
-  st2(b0, b1, OFF_K3 + 24, c3);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3);
   // stage 4
   const dp0 = add(add(y0, mul(h, add(mul(sp(A41), a0), mul(sp(A42), b0v)))), mul(hA43, c0));
   const dp1 = add(add(y1, mul(h, add(mul(sp(A41), a1), mul(sp(A42), b1v)))), mul(hA43, c1));
@@ -162,10 +172,10 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q4s3 = mul(q4ac0, q4dy0);
   const d2 = v128.bitselect(q4s2, add(q4s2, mul(q4ac1, q4dx1)), single);
   const d3 = f64x2.sub(v128.bitselect(q4s3, add(q4s3, mul(q4ac1, q4dy1)), single), grav);
-  st2(b0, b1, OFF_K4, d0);
-  st2(b0, b1, OFF_K4 + 8, d1);
-  st2(b0, b1, OFF_K4 + 16, d2);
-  st2(b0, b1, OFF_K4 + 24, d3);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3);
   // stage 5
   const ep0 = add(add(y0, mul(h, add(add(mul(sp(A51), a0), mul(sp(A52), b0v)), mul(sp(A53), c0)))), mul(hA54, d0));
   const ep1 = add(add(y1, mul(h, add(add(mul(sp(A51), a1), mul(sp(A52), b1v)), mul(sp(A53), c1)))), mul(hA54, d1));
@@ -183,10 +193,10 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q5s3 = mul(q5ac0, q5dy0);
   const e2 = v128.bitselect(q5s2, add(q5s2, mul(q5ac1, q5dx1)), single);
   const e3 = f64x2.sub(v128.bitselect(q5s3, add(q5s3, mul(q5ac1, q5dy1)), single), grav);
-  st2(b0, b1, OFF_K5, e0);
-  st2(b0, b1, OFF_K5 + 8, e1);
-  st2(b0, b1, OFF_K5 + 16, e2);
-  st2(b0, b1, OFF_K5 + 24, e3);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3);
   // stage 6
   const fp0 = add(add(y0, mul(h, add(add(add(mul(sp(A61), a0), mul(sp(A62), b0v)), mul(sp(A63), c0)), mul(sp(A64), d0)))), mul(hA65, e0));
   const fp1 = add(add(y1, mul(h, add(add(add(mul(sp(A61), a1), mul(sp(A62), b1v)), mul(sp(A63), c1)), mul(sp(A64), d1)))), mul(hA65, e1));
@@ -204,10 +214,10 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q6s3 = mul(q6ac0, q6dy0);
   const f2 = v128.bitselect(q6s2, add(q6s2, mul(q6ac1, q6dx1)), single);
   const f3 = f64x2.sub(v128.bitselect(q6s3, add(q6s3, mul(q6ac1, q6dy1)), single), grav);
-  st2(b0, b1, OFF_K6, f0);
-  st2(b0, b1, OFF_K6 + 8, f1);
-  st2(b0, b1, OFF_K6 + 16, f2);
-  st2(b0, b1, OFF_K6 + 24, f3);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3);
   // the 5th-order solution
   const n0 = add(add(y0, mul(h, add(add(add(mul(sp(B1), a0), mul(sp(B3), c0)), mul(sp(B4), d0)), mul(sp(B5), e0)))), mul(hB6, f0));
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
@@ -364,14 +374,6 @@ export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const b2v_1 = v128.bitselect(q2s2_1, add(q2s2_1, mul(q2ac1_1, q2dx1_1)), single_1);
   const b3v_0 = f64x2.sub(v128.bitselect(q2s3_0, add(q2s3_0, mul(q2ac1_0, q2dy1_0)), single_0), grav_0);
   const b3v_1 = f64x2.sub(v128.bitselect(q2s3_1, add(q2s3_1, mul(q2ac1_1, q2dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K2, b0v_0);
-  st2(b2, b3, OFF_K2, b0v_1);
-  st2(b0, b1, OFF_K2 + 8, b1v_0);
-  st2(b2, b3, OFF_K2 + 8, b1v_1);
-  st2(b0, b1, OFF_K2 + 16, b2v_0);
-  st2(b2, b3, OFF_K2 + 16, b2v_1);
-  st2(b0, b1, OFF_K2 + 24, b3v_0);
-  st2(b2, b3, OFF_K2 + 24, b3v_1);
   // stage 3
   const cp0_0 = add(add(y0_0, mul(h_0, mul(sp(A31), a0_0))), mul(hA32_0, b0v_0));
   const cp0_1 = add(add(y0_1, mul(h_1, mul(sp(A31), a0_1))), mul(hA32_1, b0v_1));
@@ -405,14 +407,14 @@ export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const c2_1 = v128.bitselect(q3s2_1, add(q3s2_1, mul(q3ac1_1, q3dx1_1)), single_1);
   const c3_0 = f64x2.sub(v128.bitselect(q3s3_0, add(q3s3_0, mul(q3ac1_0, q3dy1_0)), single_0), grav_0);
   const c3_1 = f64x2.sub(v128.bitselect(q3s3_1, add(q3s3_1, mul(q3ac1_1, q3dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K3, c0_0);
-  st2(b2, b3, OFF_K3, c0_1);
-  st2(b0, b1, OFF_K3 + 8, c1_0);
-  st2(b2, b3, OFF_K3 + 8, c1_1);
-  st2(b0, b1, OFF_K3 + 16, c2_0);
-  st2(b2, b3, OFF_K3 + 16, c2_1);
-  st2(b0, b1, OFF_K3 + 24, c3_0);
-  st2(b2, b3, OFF_K3 + 24, c3_1);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0_0);
+  v128.store(LANE_STAGES + PB * 256 + 0, c0_1);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1_0);
+  v128.store(LANE_STAGES + PB * 256 + 16, c1_1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2_0);
+  v128.store(LANE_STAGES + PB * 256 + 32, c2_1);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3_0);
+  v128.store(LANE_STAGES + PB * 256 + 48, c3_1);
   // stage 4
   const dp0_0 = add(add(y0_0, mul(h_0, add(mul(sp(A41), a0_0), mul(sp(A42), b0v_0)))), mul(hA43_0, c0_0));
   const dp0_1 = add(add(y0_1, mul(h_1, add(mul(sp(A41), a0_1), mul(sp(A42), b0v_1)))), mul(hA43_1, c0_1));
@@ -446,14 +448,14 @@ export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const d2_1 = v128.bitselect(q4s2_1, add(q4s2_1, mul(q4ac1_1, q4dx1_1)), single_1);
   const d3_0 = f64x2.sub(v128.bitselect(q4s3_0, add(q4s3_0, mul(q4ac1_0, q4dy1_0)), single_0), grav_0);
   const d3_1 = f64x2.sub(v128.bitselect(q4s3_1, add(q4s3_1, mul(q4ac1_1, q4dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K4, d0_0);
-  st2(b2, b3, OFF_K4, d0_1);
-  st2(b0, b1, OFF_K4 + 8, d1_0);
-  st2(b2, b3, OFF_K4 + 8, d1_1);
-  st2(b0, b1, OFF_K4 + 16, d2_0);
-  st2(b2, b3, OFF_K4 + 16, d2_1);
-  st2(b0, b1, OFF_K4 + 24, d3_0);
-  st2(b2, b3, OFF_K4 + 24, d3_1);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0_0);
+  v128.store(LANE_STAGES + PB * 256 + 64, d0_1);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1_0);
+  v128.store(LANE_STAGES + PB * 256 + 80, d1_1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2_0);
+  v128.store(LANE_STAGES + PB * 256 + 96, d2_1);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3_0);
+  v128.store(LANE_STAGES + PB * 256 + 112, d3_1);
   // stage 5
   const ep0_0 = add(add(y0_0, mul(h_0, add(add(mul(sp(A51), a0_0), mul(sp(A52), b0v_0)), mul(sp(A53), c0_0)))), mul(hA54_0, d0_0));
   const ep0_1 = add(add(y0_1, mul(h_1, add(add(mul(sp(A51), a0_1), mul(sp(A52), b0v_1)), mul(sp(A53), c0_1)))), mul(hA54_1, d0_1));
@@ -487,14 +489,14 @@ export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const e2_1 = v128.bitselect(q5s2_1, add(q5s2_1, mul(q5ac1_1, q5dx1_1)), single_1);
   const e3_0 = f64x2.sub(v128.bitselect(q5s3_0, add(q5s3_0, mul(q5ac1_0, q5dy1_0)), single_0), grav_0);
   const e3_1 = f64x2.sub(v128.bitselect(q5s3_1, add(q5s3_1, mul(q5ac1_1, q5dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K5, e0_0);
-  st2(b2, b3, OFF_K5, e0_1);
-  st2(b0, b1, OFF_K5 + 8, e1_0);
-  st2(b2, b3, OFF_K5 + 8, e1_1);
-  st2(b0, b1, OFF_K5 + 16, e2_0);
-  st2(b2, b3, OFF_K5 + 16, e2_1);
-  st2(b0, b1, OFF_K5 + 24, e3_0);
-  st2(b2, b3, OFF_K5 + 24, e3_1);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0_0);
+  v128.store(LANE_STAGES + PB * 256 + 128, e0_1);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1_0);
+  v128.store(LANE_STAGES + PB * 256 + 144, e1_1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2_0);
+  v128.store(LANE_STAGES + PB * 256 + 160, e2_1);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3_0);
+  v128.store(LANE_STAGES + PB * 256 + 176, e3_1);
   // stage 6
   const fp0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(A61), a0_0), mul(sp(A62), b0v_0)), mul(sp(A63), c0_0)), mul(sp(A64), d0_0)))), mul(hA65_0, e0_0));
   const fp0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(A61), a0_1), mul(sp(A62), b0v_1)), mul(sp(A63), c0_1)), mul(sp(A64), d0_1)))), mul(hA65_1, e0_1));
@@ -528,14 +530,14 @@ export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const f2_1 = v128.bitselect(q6s2_1, add(q6s2_1, mul(q6ac1_1, q6dx1_1)), single_1);
   const f3_0 = f64x2.sub(v128.bitselect(q6s3_0, add(q6s3_0, mul(q6ac1_0, q6dy1_0)), single_0), grav_0);
   const f3_1 = f64x2.sub(v128.bitselect(q6s3_1, add(q6s3_1, mul(q6ac1_1, q6dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K6, f0_0);
-  st2(b2, b3, OFF_K6, f0_1);
-  st2(b0, b1, OFF_K6 + 8, f1_0);
-  st2(b2, b3, OFF_K6 + 8, f1_1);
-  st2(b0, b1, OFF_K6 + 16, f2_0);
-  st2(b2, b3, OFF_K6 + 16, f2_1);
-  st2(b0, b1, OFF_K6 + 24, f3_0);
-  st2(b2, b3, OFF_K6 + 24, f3_1);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0_0);
+  v128.store(LANE_STAGES + PB * 256 + 192, f0_1);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1_0);
+  v128.store(LANE_STAGES + PB * 256 + 208, f1_1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2_0);
+  v128.store(LANE_STAGES + PB * 256 + 224, f2_1);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3_0);
+  v128.store(LANE_STAGES + PB * 256 + 240, f3_1);
   // the 5th-order solution
   const n0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(B1), a0_0), mul(sp(B3), c0_0)), mul(sp(B4), d0_0)), mul(sp(B5), e0_0)))), mul(hB6_0, f0_0));
   const n0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(B1), a0_1), mul(sp(B3), c0_1)), mul(sp(B4), d0_1)), mul(sp(B5), e0_1)))), mul(hB6_1, f0_1));
@@ -692,10 +694,6 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q2s3 = mul(q2ac0, q2dy0);
   const b2v = q2s2;
   const b3v = f64x2.sub(q2s3, grav);
-  st2(b0, b1, OFF_K2, b0v);
-  st2(b0, b1, OFF_K2 + 8, b1v);
-  st2(b0, b1, OFF_K2 + 16, b2v);
-  st2(b0, b1, OFF_K2 + 24, b3v);
   // stage 3
   const cp0 = add(add(y0, mul(h, mul(sp(A31), a0))), mul(hA32, b0v));
   const cp1 = add(add(y1, mul(h, mul(sp(A31), a1))), mul(hA32, b1v));
@@ -709,10 +707,10 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q3s3 = mul(q3ac0, q3dy0);
   const c2 = q3s2;
   const c3 = f64x2.sub(q3s3, grav);
-  st2(b0, b1, OFF_K3, c0);
-  st2(b0, b1, OFF_K3 + 8, c1);
-  st2(b0, b1, OFF_K3 + 16, c2);
-  st2(b0, b1, OFF_K3 + 24, c3);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3);
   // stage 4
   const dp0 = add(add(y0, mul(h, add(mul(sp(A41), a0), mul(sp(A42), b0v)))), mul(hA43, c0));
   const dp1 = add(add(y1, mul(h, add(mul(sp(A41), a1), mul(sp(A42), b1v)))), mul(hA43, c1));
@@ -726,10 +724,10 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q4s3 = mul(q4ac0, q4dy0);
   const d2 = q4s2;
   const d3 = f64x2.sub(q4s3, grav);
-  st2(b0, b1, OFF_K4, d0);
-  st2(b0, b1, OFF_K4 + 8, d1);
-  st2(b0, b1, OFF_K4 + 16, d2);
-  st2(b0, b1, OFF_K4 + 24, d3);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3);
   // stage 5
   const ep0 = add(add(y0, mul(h, add(add(mul(sp(A51), a0), mul(sp(A52), b0v)), mul(sp(A53), c0)))), mul(hA54, d0));
   const ep1 = add(add(y1, mul(h, add(add(mul(sp(A51), a1), mul(sp(A52), b1v)), mul(sp(A53), c1)))), mul(hA54, d1));
@@ -743,10 +741,10 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q5s3 = mul(q5ac0, q5dy0);
   const e2 = q5s2;
   const e3 = f64x2.sub(q5s3, grav);
-  st2(b0, b1, OFF_K5, e0);
-  st2(b0, b1, OFF_K5 + 8, e1);
-  st2(b0, b1, OFF_K5 + 16, e2);
-  st2(b0, b1, OFF_K5 + 24, e3);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3);
   // stage 6
   const fp0 = add(add(y0, mul(h, add(add(add(mul(sp(A61), a0), mul(sp(A62), b0v)), mul(sp(A63), c0)), mul(sp(A64), d0)))), mul(hA65, e0));
   const fp1 = add(add(y1, mul(h, add(add(add(mul(sp(A61), a1), mul(sp(A62), b1v)), mul(sp(A63), c1)), mul(sp(A64), d1)))), mul(hA65, e1));
@@ -760,10 +758,10 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q6s3 = mul(q6ac0, q6dy0);
   const f2 = q6s2;
   const f3 = f64x2.sub(q6s3, grav);
-  st2(b0, b1, OFF_K6, f0);
-  st2(b0, b1, OFF_K6 + 8, f1);
-  st2(b0, b1, OFF_K6 + 16, f2);
-  st2(b0, b1, OFF_K6 + 24, f3);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3);
   // the 5th-order solution
   const n0 = add(add(y0, mul(h, add(add(add(mul(sp(B1), a0), mul(sp(B3), c0)), mul(sp(B4), d0)), mul(sp(B5), e0)))), mul(hB6, f0));
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
@@ -898,14 +896,6 @@ export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const b2v_1 = q2s2_1;
   const b3v_0 = f64x2.sub(q2s3_0, grav_0);
   const b3v_1 = f64x2.sub(q2s3_1, grav_1);
-  st2(b0, b1, OFF_K2, b0v_0);
-  st2(b2, b3, OFF_K2, b0v_1);
-  st2(b0, b1, OFF_K2 + 8, b1v_0);
-  st2(b2, b3, OFF_K2 + 8, b1v_1);
-  st2(b0, b1, OFF_K2 + 16, b2v_0);
-  st2(b2, b3, OFF_K2 + 16, b2v_1);
-  st2(b0, b1, OFF_K2 + 24, b3v_0);
-  st2(b2, b3, OFF_K2 + 24, b3v_1);
   // stage 3
   const cp0_0 = add(add(y0_0, mul(h_0, mul(sp(A31), a0_0))), mul(hA32_0, b0v_0));
   const cp0_1 = add(add(y0_1, mul(h_1, mul(sp(A31), a0_1))), mul(hA32_1, b0v_1));
@@ -931,14 +921,14 @@ export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const c2_1 = q3s2_1;
   const c3_0 = f64x2.sub(q3s3_0, grav_0);
   const c3_1 = f64x2.sub(q3s3_1, grav_1);
-  st2(b0, b1, OFF_K3, c0_0);
-  st2(b2, b3, OFF_K3, c0_1);
-  st2(b0, b1, OFF_K3 + 8, c1_0);
-  st2(b2, b3, OFF_K3 + 8, c1_1);
-  st2(b0, b1, OFF_K3 + 16, c2_0);
-  st2(b2, b3, OFF_K3 + 16, c2_1);
-  st2(b0, b1, OFF_K3 + 24, c3_0);
-  st2(b2, b3, OFF_K3 + 24, c3_1);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0_0);
+  v128.store(LANE_STAGES + PB * 256 + 0, c0_1);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1_0);
+  v128.store(LANE_STAGES + PB * 256 + 16, c1_1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2_0);
+  v128.store(LANE_STAGES + PB * 256 + 32, c2_1);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3_0);
+  v128.store(LANE_STAGES + PB * 256 + 48, c3_1);
   // stage 4
   const dp0_0 = add(add(y0_0, mul(h_0, add(mul(sp(A41), a0_0), mul(sp(A42), b0v_0)))), mul(hA43_0, c0_0));
   const dp0_1 = add(add(y0_1, mul(h_1, add(mul(sp(A41), a0_1), mul(sp(A42), b0v_1)))), mul(hA43_1, c0_1));
@@ -964,14 +954,14 @@ export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const d2_1 = q4s2_1;
   const d3_0 = f64x2.sub(q4s3_0, grav_0);
   const d3_1 = f64x2.sub(q4s3_1, grav_1);
-  st2(b0, b1, OFF_K4, d0_0);
-  st2(b2, b3, OFF_K4, d0_1);
-  st2(b0, b1, OFF_K4 + 8, d1_0);
-  st2(b2, b3, OFF_K4 + 8, d1_1);
-  st2(b0, b1, OFF_K4 + 16, d2_0);
-  st2(b2, b3, OFF_K4 + 16, d2_1);
-  st2(b0, b1, OFF_K4 + 24, d3_0);
-  st2(b2, b3, OFF_K4 + 24, d3_1);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0_0);
+  v128.store(LANE_STAGES + PB * 256 + 64, d0_1);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1_0);
+  v128.store(LANE_STAGES + PB * 256 + 80, d1_1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2_0);
+  v128.store(LANE_STAGES + PB * 256 + 96, d2_1);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3_0);
+  v128.store(LANE_STAGES + PB * 256 + 112, d3_1);
   // stage 5
   const ep0_0 = add(add(y0_0, mul(h_0, add(add(mul(sp(A51), a0_0), mul(sp(A52), b0v_0)), mul(sp(A53), c0_0)))), mul(hA54_0, d0_0));
   const ep0_1 = add(add(y0_1, mul(h_1, add(add(mul(sp(A51), a0_1), mul(sp(A52), b0v_1)), mul(sp(A53), c0_1)))), mul(hA54_1, d0_1));
@@ -997,14 +987,14 @@ export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const e2_1 = q5s2_1;
   const e3_0 = f64x2.sub(q5s3_0, grav_0);
   const e3_1 = f64x2.sub(q5s3_1, grav_1);
-  st2(b0, b1, OFF_K5, e0_0);
-  st2(b2, b3, OFF_K5, e0_1);
-  st2(b0, b1, OFF_K5 + 8, e1_0);
-  st2(b2, b3, OFF_K5 + 8, e1_1);
-  st2(b0, b1, OFF_K5 + 16, e2_0);
-  st2(b2, b3, OFF_K5 + 16, e2_1);
-  st2(b0, b1, OFF_K5 + 24, e3_0);
-  st2(b2, b3, OFF_K5 + 24, e3_1);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0_0);
+  v128.store(LANE_STAGES + PB * 256 + 128, e0_1);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1_0);
+  v128.store(LANE_STAGES + PB * 256 + 144, e1_1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2_0);
+  v128.store(LANE_STAGES + PB * 256 + 160, e2_1);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3_0);
+  v128.store(LANE_STAGES + PB * 256 + 176, e3_1);
   // stage 6
   const fp0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(A61), a0_0), mul(sp(A62), b0v_0)), mul(sp(A63), c0_0)), mul(sp(A64), d0_0)))), mul(hA65_0, e0_0));
   const fp0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(A61), a0_1), mul(sp(A62), b0v_1)), mul(sp(A63), c0_1)), mul(sp(A64), d0_1)))), mul(hA65_1, e0_1));
@@ -1030,14 +1020,14 @@ export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
   const f2_1 = q6s2_1;
   const f3_0 = f64x2.sub(q6s3_0, grav_0);
   const f3_1 = f64x2.sub(q6s3_1, grav_1);
-  st2(b0, b1, OFF_K6, f0_0);
-  st2(b2, b3, OFF_K6, f0_1);
-  st2(b0, b1, OFF_K6 + 8, f1_0);
-  st2(b2, b3, OFF_K6 + 8, f1_1);
-  st2(b0, b1, OFF_K6 + 16, f2_0);
-  st2(b2, b3, OFF_K6 + 16, f2_1);
-  st2(b0, b1, OFF_K6 + 24, f3_0);
-  st2(b2, b3, OFF_K6 + 24, f3_1);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0_0);
+  v128.store(LANE_STAGES + PB * 256 + 192, f0_1);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1_0);
+  v128.store(LANE_STAGES + PB * 256 + 208, f1_1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2_0);
+  v128.store(LANE_STAGES + PB * 256 + 224, f2_1);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3_0);
+  v128.store(LANE_STAGES + PB * 256 + 240, f3_1);
   // the 5th-order solution
   const n0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(B1), a0_0), mul(sp(B3), c0_0)), mul(sp(B4), d0_0)), mul(sp(B5), e0_0)))), mul(hB6_0, f0_0));
   const n0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(B1), a0_1), mul(sp(B3), c0_1)), mul(sp(B4), d0_1)), mul(sp(B5), e0_1)))), mul(hB6_1, f0_1));
