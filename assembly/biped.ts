@@ -74,7 +74,8 @@ import {
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
 import {
-  stepPairW, stepQuadW, stepPairW1, stepQuadW1, laneError, unpackStages, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
+  stepPairW, stepPairW1, laneError, unpackStages, laneEnd,
+  END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
   PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
 } from "./rk/biped-x2";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
@@ -1856,7 +1857,7 @@ const LANE_LEGS: usize = memory.data(LANES_MAX * 2 * LF_N * 8, 16);
 const LANE_SCRATCH: usize = memory.data(LANES_MAX * 8 * R_SIZE, 16);
 const LANE_BUFFERS: usize = memory.data(<i32>(LANES_MAX * BUFFER_SET_BYTES), 16); // dopri5 buffer sets
 let batchOk = 0;
-let pairCalls: f64 = 0; // steps taken in f64x2 lanes (calls of stepPairW / stepQuadW) in the last runBipedBatch
+let pairCalls: f64 = 0; // steps taken in f64x2 lanes (calls of stepPairW, two lanes each) in the last runBipedBatch
 
 // Steps the last runBipedBatch took in lanes (for checks).
 export function bipedPairedSteps(): f64 {
@@ -1878,7 +1879,7 @@ function laneSelect(i: i32): void {
   store<f64>(PAIR_PARAMS + <usize>(lane >> 1) * PAIR_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), v);
 }
 
-// The lane's next step for stepPairW / stepQuadW; true when it is a walking step with undamped
+// The lane's next step for stepPairW; true when it is a walking step with undamped
 // legs (step4w).
 function laneStepParams(i: i32): bool {
   const s = S;
@@ -1921,56 +1922,46 @@ function laneStepParams(i: i32): bool {
   store<f64>(legs + (<usize>(i * LF_N + f) << 3), v);
 }
 
-// contactAfter's common case for lane i, without making it the rollout in hand: an accepted
-// step inside which no event value crosses (nothing to locate), with contactAfter's arithmetic
-// in its order. False, with nothing changed, when the step needs the whole of contactAfter.
+// contactAfter's common case for lane i after a lane step (undamped legs), without making it the
+// rollout in hand: an accepted step inside which no event value crosses (nothing to locate),
+// with contactAfter's arithmetic in its order. False, with nothing changed, when the step needs the whole of contactAfter.
 function laneAfterQuiet(i: i32, err: f64): bool {
   if (!(err <= 1.0)) return false; // a rejection or a non-finite stage
   const s = laneState(i);
   const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
   const buf = laneBuffers(i);
-  const npx = load<f64>(buf + OFF_YN, 0);
   const npy = load<f64>(buf + OFF_YN, 8);
   const nvx = load<f64>(buf + OFF_YN, 16);
   const nvy = load<f64>(buf + OFF_YN, 24);
+  // the leg values at the step end, formed in the lane step (laneEnd: contactAfter's arithmetic)
   let gl10: f64 = 0.0;
   let gl11: f64 = 0.0;
   let gm10: f64 = 0.0;
   let gm11: f64 = 0.0;
-  let f0: f64, f1: f64, c0: f64, c1: f64, fx: f64, fy: f64;
+  let f0: f64, f1: f64, c0: f64, c1: f64;
+  const fx = laneEnd(i, END_FX);
+  const fy = laneEnd(i, END_FY);
   const single = s.single;
   const sl = s.stanceLeg;
   if (single) {
-    const nr = Math.sqrt(npx * npx + npy * npy);
-    const nrdot = (npx * nvx + npy * nvy) / nr;
-    const leg = lgAt(legs, sl, LF_L0);
-    const c = lgAt(legs, sl, LF_C);
-    const nforce = lgAt(legs, sl, LF_K) * (leg - nr) - c * nrdot;
-    const gl = c > 0.0 ? -nforce : nr - leg;
+    const gl = laneEnd(i, END_GL0);
+    const nrdot = laneEnd(i, END_GM0);
+    const nforce = laneEnd(i, END_F0);
+    const comp = laneEnd(i, END_C0);
     if (sl == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
     f0 = sl == 0 ? nforce : 0.0;
     f1 = sl == 1 ? nforce : 0.0;
-    c0 = sl == 0 ? leg - nr : 0.0;
-    c1 = sl == 1 ? leg - nr : 0.0;
-    fx = (nforce * npx) / nr;
-    fy = (nforce * npy) / nr;
+    c0 = sl == 0 ? comp : 0.0;
+    c1 = sl == 1 ? comp : 0.0;
   } else {
-    const dx0 = npx - (lgAt(legs, 0, LF_FX) - s.ox);
-    const dy0 = npy - (lgAt(legs, 0, LF_FY) - s.oy);
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    gm10 = (dx0 * nvx + dy0 * nvy) / r0;
-    gl10 = lgAt(legs, 0, LF_C) == 0.0 ? r0 - lgAt(legs, 0, LF_L0) : -(lgAt(legs, 0, LF_K) * (lgAt(legs, 0, LF_L0) - r0) - lgAt(legs, 0, LF_C) * gm10);
-    const dx1 = npx - (lgAt(legs, 1, LF_FX) - s.ox);
-    const dy1 = npy - (lgAt(legs, 1, LF_FY) - s.oy);
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    gm11 = (dx1 * nvx + dy1 * nvy) / r1;
-    gl11 = lgAt(legs, 1, LF_C) == 0.0 ? r1 - lgAt(legs, 1, LF_L0) : -(lgAt(legs, 1, LF_K) * (lgAt(legs, 1, LF_L0) - r1) - lgAt(legs, 1, LF_C) * gm11);
-    c0 = lgAt(legs, 0, LF_L0) - r0;
-    c1 = lgAt(legs, 1, LF_L0) - r1;
-    f0 = lgAt(legs, 0, LF_K) * c0 - lgAt(legs, 0, LF_C) * gm10;
-    f1 = lgAt(legs, 1, LF_K) * c1 - lgAt(legs, 1, LF_C) * gm11;
-    fx = (f0 * dx0) / r0 + (f1 * dx1) / r1;
-    fy = (f0 * dy0) / r0 + (f1 * dy1) / r1;
+    gl10 = laneEnd(i, END_GL0);
+    gm10 = laneEnd(i, END_GM0);
+    gl11 = laneEnd(i, END_GL1);
+    gm11 = laneEnd(i, END_GM1);
+    c0 = laneEnd(i, END_C0);
+    c1 = laneEnd(i, END_C1);
+    f0 = laneEnd(i, END_F0);
+    f1 = laneEnd(i, END_F1);
   }
   const gs1 = -nvy;
   const gg1 = s.groundRel - npy;
@@ -1985,7 +1976,7 @@ function laneAfterQuiet(i: i32, err: f64): bool {
   let gt1: f64 = 0.0;
   if (single) {
     if (!s.armed) {
-      gt1 = npx - (lgAt(legs, sl, LF_FX) - s.ox);
+      gt1 = load<f64>(buf + OFF_YN, 0) - (lgAt(legs, sl, LF_FX) - s.ox);
       if (crossesB(EVB_MIDSTANCE, s.gt0, gt1)) return false;
     } else {
       const sw = s.swing;
@@ -2053,7 +2044,7 @@ function laneRun(r0: i32): bool {
 }
 
 // rollouts x strides of the two-leg model, `lanes` (2 or 4) rollouts at a time: walking steps
-// with undamped legs in f64x2 lanes (stepPairW, stepQuadW), every other step, event and stride
+// with undamped legs in f64x2 lanes, two lanes a step (stepPairW), every other step, event and stride
 // by the one-rollout code. The same records and summaries as runBipedRollout one rollout after
 // the other (the check: test/lanes.test.ts). Returns how many rollouts completed every stride.
 export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts: i32, nStrides: i32, records: usize, summaries: usize): i32 {
@@ -2063,7 +2054,6 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
   let live = 0; // bit i: lane i holds a rollout that asks for a step
   let pairable = 0; // bit i: that step is a walking step with undamped legs
   let singles = 0; // bit i: in single support
-  const all = (1 << lanes) - 1;
   for (;;) {
     for (let i = 0; i < lanes; i++) {
       if ((live & (1 << i)) != 0) continue;
@@ -2094,20 +2084,13 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
     if (live == 0) break;
     // the lanes whose step is taken in f64x2 lanes
     let paired = 0;
-    if (lanes == 4 && live == all && pairable == all) {
-      if ((singles & all) == all) stepQuadW1(laneBuffers(0), laneBuffers(1), laneBuffers(2), laneBuffers(3));
-      else stepQuadW(laneBuffers(0), laneBuffers(1), laneBuffers(2), laneBuffers(3));
-      paired = all;
-      pairCalls++;
-    } else {
-      for (let q = 0; q < lanes; q += 2) {
-        const m = 3 << q;
-        if ((live & m) == m && (pairable & m) == m) {
-          if ((singles & m) == m) stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
-          else stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
-          paired |= m;
-          pairCalls++;
-        }
+    for (let q = 0; q < lanes; q += 2) {
+      const m = 3 << q;
+      if ((live & m) == m && (pairable & m) == m) {
+        if ((singles & m) == m) stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        else stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        paired |= m;
+        pairCalls++;
       }
     }
     for (let i = 0; i < lanes; i++) {

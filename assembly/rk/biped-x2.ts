@@ -8,7 +8,8 @@
 // the foot at (0, 0) (x - 0 is x, bit for bit, -0 included), and its leg-0 term alone is taken
 // (bitselect), so its acceleration is single support's a (px, py) - (0, g) with the same
 // roundings; a lane in double support adds both legs' terms in step4w's order. The step is a
-// latency-bound chain of square roots and divisions: two chains in one costs little more than one.
+// chain of square roots and divisions; two in one f64x2 chain cost little more than one (four in
+// two interleaved chains measured no faster on the development machine: register pressure).
 
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
@@ -47,6 +48,27 @@ export function unpackStages(lane: i32, p: usize): void {
   for (let k: usize = 0; k < 4; k++) {
     for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_K3 + k * 40 + (j << 3), load<f64>(src + ((k * 4 + j) << 4)));
   }
+}
+
+// The step end's leg values of each lane pair, as f64x2 at LANE_END + END_BYTES * pair + 16 * field
+// (lane 0 / 2, lane 1 / 3): for slot 0 (leg 0, or the stance leg in single support) and slot 1
+// (leg 1 in double support) r - L0, r', L0 - r and the leg force, and the summed force along x
+// and y, as contactAfter forms them (laneAfterQuiet reads them).
+export const END_BYTES: usize = 10 * 16;
+const LANE_END: usize = memory.data(2 * 10 * 16, 16);
+export const END_GL0 = 0;
+export const END_GM0 = 1;
+export const END_C0 = 2;
+export const END_F0 = 3;
+export const END_GL1 = 4;
+export const END_GM1 = 5;
+export const END_C1 = 6;
+export const END_F1 = 7;
+export const END_FX = 8;
+export const END_FY = 9;
+
+@inline export function laneEnd(lane: i32, field: i32): f64 {
+  return load<f64>(LANE_END + <usize>(lane >> 1) * END_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3));
 }
 
 // The error of the last step in each lane (0..3), as step4w returns it (NaN: a non-finite stage).
@@ -246,6 +268,36 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   st2(b0, b1, OFF_K7 + 8, g1);
   st2(b0, b1, OFF_K7 + 16, g2);
   st2(b0, b1, OFF_K7 + 24, g3);
+  // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
+  // is the stance leg in single support
+  {
+    const zero = sp(0.0);
+    const dx0 = f64x2.sub(n0, fx0);
+    const dy0 = f64x2.sub(n1, fy0);
+    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
+    const c0 = f64x2.sub(l0, r0);
+    const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
+    const x0 = f64x2.div(mul(f0, dx0), r0);
+    const y0 = f64x2.div(mul(f0, dy0), r0);
+    const e = LANE_END + PA * END_BYTES;
+    v128.store(e + END_GL0 * 16, f64x2.sub(r0, l0));
+    v128.store(e + END_GM0 * 16, gm0);
+    v128.store(e + END_C0 * 16, c0);
+    v128.store(e + END_F0 * 16, f0);
+    const dx1 = f64x2.sub(n0, fx1);
+    const dy1 = f64x2.sub(n1, fy1);
+    const r1 = f64x2.sqrt(add(mul(dx1, dx1), mul(dy1, dy1)));
+    const gm1 = f64x2.div(add(mul(dx1, n2), mul(dy1, n3)), r1);
+    const c1 = f64x2.sub(l1, r1);
+    const f1 = f64x2.sub(mul(k1, c1), mul(zero, gm1));
+    v128.store(e + END_GL1 * 16, f64x2.sub(r1, l1));
+    v128.store(e + END_GM1 * 16, gm1);
+    v128.store(e + END_C1 * 16, c1);
+    v128.store(e + END_F1 * 16, f1);
+    v128.store(e + END_FX * 16, v128.bitselect(x0, add(x0, f64x2.div(mul(f1, dx1), r1)), single));
+    v128.store(e + END_FY * 16, v128.bitselect(y0, add(y0, f64x2.div(mul(f1, dy1), r1)), single));
+  }
   // the error norm over the four components, in step4w's order
   const rtol = ppAt(PP_RTOL, PA);
   const atol = ppAt(PP_ATOL, PA);
@@ -283,377 +335,6 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   storeErrors(err, finite, PA);
 }
 
-// stepPairW for both lane pairs (buffer sets b0..b3 of lanes 0..3), the two chains interleaved.
-export function stepQuadW(b0: usize, b1: usize, b2: usize, b3: usize): void {
-  const PA: usize = 0;
-  const PB: usize = 1;
-  const h_0 = ppAt(PP_H, PA);
-  const h_1 = ppAt(PP_H, PB);
-  const invM_0 = ppAt(PP_INV_MASS, PA);
-  const invM_1 = ppAt(PP_INV_MASS, PB);
-  const grav_0 = ppAt(PP_G, PA);
-  const grav_1 = ppAt(PP_G, PB);
-  const fx0_0 = ppAt(PP_FX0, PA);
-  const fx0_1 = ppAt(PP_FX0, PB);
-  const fy0_0 = ppAt(PP_FY0, PA);
-  const fy0_1 = ppAt(PP_FY0, PB);
-  const l0_0 = ppAt(PP_L0, PA);
-  const l0_1 = ppAt(PP_L0, PB);
-  const k0_0 = ppAt(PP_K0, PA);
-  const k0_1 = ppAt(PP_K0, PB);
-  const fx1_0 = ppAt(PP_FX1, PA);
-  const fx1_1 = ppAt(PP_FX1, PB);
-  const fy1_0 = ppAt(PP_FY1, PA);
-  const fy1_1 = ppAt(PP_FY1, PB);
-  const l1_0 = ppAt(PP_L1, PA);
-  const l1_1 = ppAt(PP_L1, PB);
-  const k1_0 = ppAt(PP_K1, PA);
-  const k1_1 = ppAt(PP_K1, PB);
-  const single_0 = ppAt(PP_SINGLE, PA);
-  const single_1 = ppAt(PP_SINGLE, PB);
-  const one_0 = sp(1.0);
-  const one_1 = sp(1.0);
-  const hA21_0 = mul(h_0, sp(A21));
-  const hA21_1 = mul(h_1, sp(A21));
-  const hA32_0 = mul(h_0, sp(A32));
-  const hA32_1 = mul(h_1, sp(A32));
-  const hA43_0 = mul(h_0, sp(A43));
-  const hA43_1 = mul(h_1, sp(A43));
-  const hA54_0 = mul(h_0, sp(A54));
-  const hA54_1 = mul(h_1, sp(A54));
-  const hA65_0 = mul(h_0, sp(A65));
-  const hA65_1 = mul(h_1, sp(A65));
-  const hB6_0 = mul(h_0, sp(B6));
-  const hB6_1 = mul(h_1, sp(B6));
-  const y0_0 = ld2(b0, b1, OFF_Y0);
-  const y0_1 = ld2(b2, b3, OFF_Y0);
-  const y1_0 = ld2(b0, b1, OFF_Y0 + 8);
-  const y1_1 = ld2(b2, b3, OFF_Y0 + 8);
-  const y2_0 = ld2(b0, b1, OFF_Y0 + 16);
-  const y2_1 = ld2(b2, b3, OFF_Y0 + 16);
-  const y3_0 = ld2(b0, b1, OFF_Y0 + 24);
-  const y3_1 = ld2(b2, b3, OFF_Y0 + 24);
-  const a0_0 = ld2(b0, b1, OFF_K1);
-  const a0_1 = ld2(b2, b3, OFF_K1);
-  const a1_0 = ld2(b0, b1, OFF_K1 + 8);
-  const a1_1 = ld2(b2, b3, OFF_K1 + 8);
-  const a2_0 = ld2(b0, b1, OFF_K1 + 16);
-  const a2_1 = ld2(b2, b3, OFF_K1 + 16);
-  const a3_0 = ld2(b0, b1, OFF_K1 + 24);
-  const a3_1 = ld2(b2, b3, OFF_K1 + 24);
-  // stage 2
-  const bp0_0 = add(y0_0, mul(hA21_0, a0_0));
-  const bp0_1 = add(y0_1, mul(hA21_1, a0_1));
-  const bp1_0 = add(y1_0, mul(hA21_0, a1_0));
-  const bp1_1 = add(y1_1, mul(hA21_1, a1_1));
-  const b0v_0 = add(y2_0, mul(hA21_0, a2_0));
-  const b0v_1 = add(y2_1, mul(hA21_1, a2_1));
-  const b1v_0 = add(y3_0, mul(hA21_0, a3_0));
-  const b1v_1 = add(y3_1, mul(hA21_1, a3_1));
-  const q2dx0_0 = f64x2.sub(bp0_0, fx0_0);
-  const q2dx0_1 = f64x2.sub(bp0_1, fx0_1);
-  const q2dy0_0 = f64x2.sub(bp1_0, fy0_0);
-  const q2dy0_1 = f64x2.sub(bp1_1, fy0_1);
-  const q2r0_0 = f64x2.sqrt(add(mul(q2dx0_0, q2dx0_0), mul(q2dy0_0, q2dy0_0)));
-  const q2r0_1 = f64x2.sqrt(add(mul(q2dx0_1, q2dx0_1), mul(q2dy0_1, q2dy0_1)));
-  const q2ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q2r0_0)), f64x2.div(one_0, q2r0_0)), invM_0);
-  const q2ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q2r0_1)), f64x2.div(one_1, q2r0_1)), invM_1);
-  const q2dx1_0 = f64x2.sub(bp0_0, fx1_0);
-  const q2dx1_1 = f64x2.sub(bp0_1, fx1_1);
-  const q2dy1_0 = f64x2.sub(bp1_0, fy1_0);
-  const q2dy1_1 = f64x2.sub(bp1_1, fy1_1);
-  const q2r1_0 = f64x2.sqrt(add(mul(q2dx1_0, q2dx1_0), mul(q2dy1_0, q2dy1_0)));
-  const q2r1_1 = f64x2.sqrt(add(mul(q2dx1_1, q2dx1_1), mul(q2dy1_1, q2dy1_1)));
-  const q2ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q2r1_0)), f64x2.div(one_0, q2r1_0)), invM_0);
-  const q2ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q2r1_1)), f64x2.div(one_1, q2r1_1)), invM_1);
-  const q2s2_0 = mul(q2ac0_0, q2dx0_0);
-  const q2s2_1 = mul(q2ac0_1, q2dx0_1);
-  const q2s3_0 = mul(q2ac0_0, q2dy0_0);
-  const q2s3_1 = mul(q2ac0_1, q2dy0_1);
-  const b2v_0 = v128.bitselect(q2s2_0, add(q2s2_0, mul(q2ac1_0, q2dx1_0)), single_0);
-  const b2v_1 = v128.bitselect(q2s2_1, add(q2s2_1, mul(q2ac1_1, q2dx1_1)), single_1);
-  const b3v_0 = f64x2.sub(v128.bitselect(q2s3_0, add(q2s3_0, mul(q2ac1_0, q2dy1_0)), single_0), grav_0);
-  const b3v_1 = f64x2.sub(v128.bitselect(q2s3_1, add(q2s3_1, mul(q2ac1_1, q2dy1_1)), single_1), grav_1);
-  // stage 3
-  const cp0_0 = add(add(y0_0, mul(h_0, mul(sp(A31), a0_0))), mul(hA32_0, b0v_0));
-  const cp0_1 = add(add(y0_1, mul(h_1, mul(sp(A31), a0_1))), mul(hA32_1, b0v_1));
-  const cp1_0 = add(add(y1_0, mul(h_0, mul(sp(A31), a1_0))), mul(hA32_0, b1v_0));
-  const cp1_1 = add(add(y1_1, mul(h_1, mul(sp(A31), a1_1))), mul(hA32_1, b1v_1));
-  const c0_0 = add(add(y2_0, mul(h_0, mul(sp(A31), a2_0))), mul(hA32_0, b2v_0));
-  const c0_1 = add(add(y2_1, mul(h_1, mul(sp(A31), a2_1))), mul(hA32_1, b2v_1));
-  const c1_0 = add(add(y3_0, mul(h_0, mul(sp(A31), a3_0))), mul(hA32_0, b3v_0));
-  const c1_1 = add(add(y3_1, mul(h_1, mul(sp(A31), a3_1))), mul(hA32_1, b3v_1));
-  const q3dx0_0 = f64x2.sub(cp0_0, fx0_0);
-  const q3dx0_1 = f64x2.sub(cp0_1, fx0_1);
-  const q3dy0_0 = f64x2.sub(cp1_0, fy0_0);
-  const q3dy0_1 = f64x2.sub(cp1_1, fy0_1);
-  const q3r0_0 = f64x2.sqrt(add(mul(q3dx0_0, q3dx0_0), mul(q3dy0_0, q3dy0_0)));
-  const q3r0_1 = f64x2.sqrt(add(mul(q3dx0_1, q3dx0_1), mul(q3dy0_1, q3dy0_1)));
-  const q3ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q3r0_0)), f64x2.div(one_0, q3r0_0)), invM_0);
-  const q3ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q3r0_1)), f64x2.div(one_1, q3r0_1)), invM_1);
-  const q3dx1_0 = f64x2.sub(cp0_0, fx1_0);
-  const q3dx1_1 = f64x2.sub(cp0_1, fx1_1);
-  const q3dy1_0 = f64x2.sub(cp1_0, fy1_0);
-  const q3dy1_1 = f64x2.sub(cp1_1, fy1_1);
-  const q3r1_0 = f64x2.sqrt(add(mul(q3dx1_0, q3dx1_0), mul(q3dy1_0, q3dy1_0)));
-  const q3r1_1 = f64x2.sqrt(add(mul(q3dx1_1, q3dx1_1), mul(q3dy1_1, q3dy1_1)));
-  const q3ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q3r1_0)), f64x2.div(one_0, q3r1_0)), invM_0);
-  const q3ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q3r1_1)), f64x2.div(one_1, q3r1_1)), invM_1);
-  const q3s2_0 = mul(q3ac0_0, q3dx0_0);
-  const q3s2_1 = mul(q3ac0_1, q3dx0_1);
-  const q3s3_0 = mul(q3ac0_0, q3dy0_0);
-  const q3s3_1 = mul(q3ac0_1, q3dy0_1);
-  const c2_0 = v128.bitselect(q3s2_0, add(q3s2_0, mul(q3ac1_0, q3dx1_0)), single_0);
-  const c2_1 = v128.bitselect(q3s2_1, add(q3s2_1, mul(q3ac1_1, q3dx1_1)), single_1);
-  const c3_0 = f64x2.sub(v128.bitselect(q3s3_0, add(q3s3_0, mul(q3ac1_0, q3dy1_0)), single_0), grav_0);
-  const c3_1 = f64x2.sub(v128.bitselect(q3s3_1, add(q3s3_1, mul(q3ac1_1, q3dy1_1)), single_1), grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 0, c0_0);
-  v128.store(LANE_STAGES + PB * 256 + 0, c0_1);
-  v128.store(LANE_STAGES + PA * 256 + 16, c1_0);
-  v128.store(LANE_STAGES + PB * 256 + 16, c1_1);
-  v128.store(LANE_STAGES + PA * 256 + 32, c2_0);
-  v128.store(LANE_STAGES + PB * 256 + 32, c2_1);
-  v128.store(LANE_STAGES + PA * 256 + 48, c3_0);
-  v128.store(LANE_STAGES + PB * 256 + 48, c3_1);
-  // stage 4
-  const dp0_0 = add(add(y0_0, mul(h_0, add(mul(sp(A41), a0_0), mul(sp(A42), b0v_0)))), mul(hA43_0, c0_0));
-  const dp0_1 = add(add(y0_1, mul(h_1, add(mul(sp(A41), a0_1), mul(sp(A42), b0v_1)))), mul(hA43_1, c0_1));
-  const dp1_0 = add(add(y1_0, mul(h_0, add(mul(sp(A41), a1_0), mul(sp(A42), b1v_0)))), mul(hA43_0, c1_0));
-  const dp1_1 = add(add(y1_1, mul(h_1, add(mul(sp(A41), a1_1), mul(sp(A42), b1v_1)))), mul(hA43_1, c1_1));
-  const d0_0 = add(add(y2_0, mul(h_0, add(mul(sp(A41), a2_0), mul(sp(A42), b2v_0)))), mul(hA43_0, c2_0));
-  const d0_1 = add(add(y2_1, mul(h_1, add(mul(sp(A41), a2_1), mul(sp(A42), b2v_1)))), mul(hA43_1, c2_1));
-  const d1_0 = add(add(y3_0, mul(h_0, add(mul(sp(A41), a3_0), mul(sp(A42), b3v_0)))), mul(hA43_0, c3_0));
-  const d1_1 = add(add(y3_1, mul(h_1, add(mul(sp(A41), a3_1), mul(sp(A42), b3v_1)))), mul(hA43_1, c3_1));
-  const q4dx0_0 = f64x2.sub(dp0_0, fx0_0);
-  const q4dx0_1 = f64x2.sub(dp0_1, fx0_1);
-  const q4dy0_0 = f64x2.sub(dp1_0, fy0_0);
-  const q4dy0_1 = f64x2.sub(dp1_1, fy0_1);
-  const q4r0_0 = f64x2.sqrt(add(mul(q4dx0_0, q4dx0_0), mul(q4dy0_0, q4dy0_0)));
-  const q4r0_1 = f64x2.sqrt(add(mul(q4dx0_1, q4dx0_1), mul(q4dy0_1, q4dy0_1)));
-  const q4ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q4r0_0)), f64x2.div(one_0, q4r0_0)), invM_0);
-  const q4ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q4r0_1)), f64x2.div(one_1, q4r0_1)), invM_1);
-  const q4dx1_0 = f64x2.sub(dp0_0, fx1_0);
-  const q4dx1_1 = f64x2.sub(dp0_1, fx1_1);
-  const q4dy1_0 = f64x2.sub(dp1_0, fy1_0);
-  const q4dy1_1 = f64x2.sub(dp1_1, fy1_1);
-  const q4r1_0 = f64x2.sqrt(add(mul(q4dx1_0, q4dx1_0), mul(q4dy1_0, q4dy1_0)));
-  const q4r1_1 = f64x2.sqrt(add(mul(q4dx1_1, q4dx1_1), mul(q4dy1_1, q4dy1_1)));
-  const q4ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q4r1_0)), f64x2.div(one_0, q4r1_0)), invM_0);
-  const q4ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q4r1_1)), f64x2.div(one_1, q4r1_1)), invM_1);
-  const q4s2_0 = mul(q4ac0_0, q4dx0_0);
-  const q4s2_1 = mul(q4ac0_1, q4dx0_1);
-  const q4s3_0 = mul(q4ac0_0, q4dy0_0);
-  const q4s3_1 = mul(q4ac0_1, q4dy0_1);
-  const d2_0 = v128.bitselect(q4s2_0, add(q4s2_0, mul(q4ac1_0, q4dx1_0)), single_0);
-  const d2_1 = v128.bitselect(q4s2_1, add(q4s2_1, mul(q4ac1_1, q4dx1_1)), single_1);
-  const d3_0 = f64x2.sub(v128.bitselect(q4s3_0, add(q4s3_0, mul(q4ac1_0, q4dy1_0)), single_0), grav_0);
-  const d3_1 = f64x2.sub(v128.bitselect(q4s3_1, add(q4s3_1, mul(q4ac1_1, q4dy1_1)), single_1), grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 64, d0_0);
-  v128.store(LANE_STAGES + PB * 256 + 64, d0_1);
-  v128.store(LANE_STAGES + PA * 256 + 80, d1_0);
-  v128.store(LANE_STAGES + PB * 256 + 80, d1_1);
-  v128.store(LANE_STAGES + PA * 256 + 96, d2_0);
-  v128.store(LANE_STAGES + PB * 256 + 96, d2_1);
-  v128.store(LANE_STAGES + PA * 256 + 112, d3_0);
-  v128.store(LANE_STAGES + PB * 256 + 112, d3_1);
-  // stage 5
-  const ep0_0 = add(add(y0_0, mul(h_0, add(add(mul(sp(A51), a0_0), mul(sp(A52), b0v_0)), mul(sp(A53), c0_0)))), mul(hA54_0, d0_0));
-  const ep0_1 = add(add(y0_1, mul(h_1, add(add(mul(sp(A51), a0_1), mul(sp(A52), b0v_1)), mul(sp(A53), c0_1)))), mul(hA54_1, d0_1));
-  const ep1_0 = add(add(y1_0, mul(h_0, add(add(mul(sp(A51), a1_0), mul(sp(A52), b1v_0)), mul(sp(A53), c1_0)))), mul(hA54_0, d1_0));
-  const ep1_1 = add(add(y1_1, mul(h_1, add(add(mul(sp(A51), a1_1), mul(sp(A52), b1v_1)), mul(sp(A53), c1_1)))), mul(hA54_1, d1_1));
-  const e0_0 = add(add(y2_0, mul(h_0, add(add(mul(sp(A51), a2_0), mul(sp(A52), b2v_0)), mul(sp(A53), c2_0)))), mul(hA54_0, d2_0));
-  const e0_1 = add(add(y2_1, mul(h_1, add(add(mul(sp(A51), a2_1), mul(sp(A52), b2v_1)), mul(sp(A53), c2_1)))), mul(hA54_1, d2_1));
-  const e1_0 = add(add(y3_0, mul(h_0, add(add(mul(sp(A51), a3_0), mul(sp(A52), b3v_0)), mul(sp(A53), c3_0)))), mul(hA54_0, d3_0));
-  const e1_1 = add(add(y3_1, mul(h_1, add(add(mul(sp(A51), a3_1), mul(sp(A52), b3v_1)), mul(sp(A53), c3_1)))), mul(hA54_1, d3_1));
-  const q5dx0_0 = f64x2.sub(ep0_0, fx0_0);
-  const q5dx0_1 = f64x2.sub(ep0_1, fx0_1);
-  const q5dy0_0 = f64x2.sub(ep1_0, fy0_0);
-  const q5dy0_1 = f64x2.sub(ep1_1, fy0_1);
-  const q5r0_0 = f64x2.sqrt(add(mul(q5dx0_0, q5dx0_0), mul(q5dy0_0, q5dy0_0)));
-  const q5r0_1 = f64x2.sqrt(add(mul(q5dx0_1, q5dx0_1), mul(q5dy0_1, q5dy0_1)));
-  const q5ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q5r0_0)), f64x2.div(one_0, q5r0_0)), invM_0);
-  const q5ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q5r0_1)), f64x2.div(one_1, q5r0_1)), invM_1);
-  const q5dx1_0 = f64x2.sub(ep0_0, fx1_0);
-  const q5dx1_1 = f64x2.sub(ep0_1, fx1_1);
-  const q5dy1_0 = f64x2.sub(ep1_0, fy1_0);
-  const q5dy1_1 = f64x2.sub(ep1_1, fy1_1);
-  const q5r1_0 = f64x2.sqrt(add(mul(q5dx1_0, q5dx1_0), mul(q5dy1_0, q5dy1_0)));
-  const q5r1_1 = f64x2.sqrt(add(mul(q5dx1_1, q5dx1_1), mul(q5dy1_1, q5dy1_1)));
-  const q5ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q5r1_0)), f64x2.div(one_0, q5r1_0)), invM_0);
-  const q5ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q5r1_1)), f64x2.div(one_1, q5r1_1)), invM_1);
-  const q5s2_0 = mul(q5ac0_0, q5dx0_0);
-  const q5s2_1 = mul(q5ac0_1, q5dx0_1);
-  const q5s3_0 = mul(q5ac0_0, q5dy0_0);
-  const q5s3_1 = mul(q5ac0_1, q5dy0_1);
-  const e2_0 = v128.bitselect(q5s2_0, add(q5s2_0, mul(q5ac1_0, q5dx1_0)), single_0);
-  const e2_1 = v128.bitselect(q5s2_1, add(q5s2_1, mul(q5ac1_1, q5dx1_1)), single_1);
-  const e3_0 = f64x2.sub(v128.bitselect(q5s3_0, add(q5s3_0, mul(q5ac1_0, q5dy1_0)), single_0), grav_0);
-  const e3_1 = f64x2.sub(v128.bitselect(q5s3_1, add(q5s3_1, mul(q5ac1_1, q5dy1_1)), single_1), grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 128, e0_0);
-  v128.store(LANE_STAGES + PB * 256 + 128, e0_1);
-  v128.store(LANE_STAGES + PA * 256 + 144, e1_0);
-  v128.store(LANE_STAGES + PB * 256 + 144, e1_1);
-  v128.store(LANE_STAGES + PA * 256 + 160, e2_0);
-  v128.store(LANE_STAGES + PB * 256 + 160, e2_1);
-  v128.store(LANE_STAGES + PA * 256 + 176, e3_0);
-  v128.store(LANE_STAGES + PB * 256 + 176, e3_1);
-  // stage 6
-  const fp0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(A61), a0_0), mul(sp(A62), b0v_0)), mul(sp(A63), c0_0)), mul(sp(A64), d0_0)))), mul(hA65_0, e0_0));
-  const fp0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(A61), a0_1), mul(sp(A62), b0v_1)), mul(sp(A63), c0_1)), mul(sp(A64), d0_1)))), mul(hA65_1, e0_1));
-  const fp1_0 = add(add(y1_0, mul(h_0, add(add(add(mul(sp(A61), a1_0), mul(sp(A62), b1v_0)), mul(sp(A63), c1_0)), mul(sp(A64), d1_0)))), mul(hA65_0, e1_0));
-  const fp1_1 = add(add(y1_1, mul(h_1, add(add(add(mul(sp(A61), a1_1), mul(sp(A62), b1v_1)), mul(sp(A63), c1_1)), mul(sp(A64), d1_1)))), mul(hA65_1, e1_1));
-  const f0_0 = add(add(y2_0, mul(h_0, add(add(add(mul(sp(A61), a2_0), mul(sp(A62), b2v_0)), mul(sp(A63), c2_0)), mul(sp(A64), d2_0)))), mul(hA65_0, e2_0));
-  const f0_1 = add(add(y2_1, mul(h_1, add(add(add(mul(sp(A61), a2_1), mul(sp(A62), b2v_1)), mul(sp(A63), c2_1)), mul(sp(A64), d2_1)))), mul(hA65_1, e2_1));
-  const f1_0 = add(add(y3_0, mul(h_0, add(add(add(mul(sp(A61), a3_0), mul(sp(A62), b3v_0)), mul(sp(A63), c3_0)), mul(sp(A64), d3_0)))), mul(hA65_0, e3_0));
-  const f1_1 = add(add(y3_1, mul(h_1, add(add(add(mul(sp(A61), a3_1), mul(sp(A62), b3v_1)), mul(sp(A63), c3_1)), mul(sp(A64), d3_1)))), mul(hA65_1, e3_1));
-  const q6dx0_0 = f64x2.sub(fp0_0, fx0_0);
-  const q6dx0_1 = f64x2.sub(fp0_1, fx0_1);
-  const q6dy0_0 = f64x2.sub(fp1_0, fy0_0);
-  const q6dy0_1 = f64x2.sub(fp1_1, fy0_1);
-  const q6r0_0 = f64x2.sqrt(add(mul(q6dx0_0, q6dx0_0), mul(q6dy0_0, q6dy0_0)));
-  const q6r0_1 = f64x2.sqrt(add(mul(q6dx0_1, q6dx0_1), mul(q6dy0_1, q6dy0_1)));
-  const q6ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q6r0_0)), f64x2.div(one_0, q6r0_0)), invM_0);
-  const q6ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q6r0_1)), f64x2.div(one_1, q6r0_1)), invM_1);
-  const q6dx1_0 = f64x2.sub(fp0_0, fx1_0);
-  const q6dx1_1 = f64x2.sub(fp0_1, fx1_1);
-  const q6dy1_0 = f64x2.sub(fp1_0, fy1_0);
-  const q6dy1_1 = f64x2.sub(fp1_1, fy1_1);
-  const q6r1_0 = f64x2.sqrt(add(mul(q6dx1_0, q6dx1_0), mul(q6dy1_0, q6dy1_0)));
-  const q6r1_1 = f64x2.sqrt(add(mul(q6dx1_1, q6dx1_1), mul(q6dy1_1, q6dy1_1)));
-  const q6ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q6r1_0)), f64x2.div(one_0, q6r1_0)), invM_0);
-  const q6ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q6r1_1)), f64x2.div(one_1, q6r1_1)), invM_1);
-  const q6s2_0 = mul(q6ac0_0, q6dx0_0);
-  const q6s2_1 = mul(q6ac0_1, q6dx0_1);
-  const q6s3_0 = mul(q6ac0_0, q6dy0_0);
-  const q6s3_1 = mul(q6ac0_1, q6dy0_1);
-  const f2_0 = v128.bitselect(q6s2_0, add(q6s2_0, mul(q6ac1_0, q6dx1_0)), single_0);
-  const f2_1 = v128.bitselect(q6s2_1, add(q6s2_1, mul(q6ac1_1, q6dx1_1)), single_1);
-  const f3_0 = f64x2.sub(v128.bitselect(q6s3_0, add(q6s3_0, mul(q6ac1_0, q6dy1_0)), single_0), grav_0);
-  const f3_1 = f64x2.sub(v128.bitselect(q6s3_1, add(q6s3_1, mul(q6ac1_1, q6dy1_1)), single_1), grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 192, f0_0);
-  v128.store(LANE_STAGES + PB * 256 + 192, f0_1);
-  v128.store(LANE_STAGES + PA * 256 + 208, f1_0);
-  v128.store(LANE_STAGES + PB * 256 + 208, f1_1);
-  v128.store(LANE_STAGES + PA * 256 + 224, f2_0);
-  v128.store(LANE_STAGES + PB * 256 + 224, f2_1);
-  v128.store(LANE_STAGES + PA * 256 + 240, f3_0);
-  v128.store(LANE_STAGES + PB * 256 + 240, f3_1);
-  // the 5th-order solution
-  const n0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(B1), a0_0), mul(sp(B3), c0_0)), mul(sp(B4), d0_0)), mul(sp(B5), e0_0)))), mul(hB6_0, f0_0));
-  const n0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(B1), a0_1), mul(sp(B3), c0_1)), mul(sp(B4), d0_1)), mul(sp(B5), e0_1)))), mul(hB6_1, f0_1));
-  const n1_0 = add(add(y1_0, mul(h_0, add(add(add(mul(sp(B1), a1_0), mul(sp(B3), c1_0)), mul(sp(B4), d1_0)), mul(sp(B5), e1_0)))), mul(hB6_0, f1_0));
-  const n1_1 = add(add(y1_1, mul(h_1, add(add(add(mul(sp(B1), a1_1), mul(sp(B3), c1_1)), mul(sp(B4), d1_1)), mul(sp(B5), e1_1)))), mul(hB6_1, f1_1));
-  const n2_0 = add(add(y2_0, mul(h_0, add(add(add(mul(sp(B1), a2_0), mul(sp(B3), c2_0)), mul(sp(B4), d2_0)), mul(sp(B5), e2_0)))), mul(hB6_0, f2_0));
-  const n2_1 = add(add(y2_1, mul(h_1, add(add(add(mul(sp(B1), a2_1), mul(sp(B3), c2_1)), mul(sp(B4), d2_1)), mul(sp(B5), e2_1)))), mul(hB6_1, f2_1));
-  const n3_0 = add(add(y3_0, mul(h_0, add(add(add(mul(sp(B1), a3_0), mul(sp(B3), c3_0)), mul(sp(B4), d3_0)), mul(sp(B5), e3_0)))), mul(hB6_0, f3_0));
-  const n3_1 = add(add(y3_1, mul(h_1, add(add(add(mul(sp(B1), a3_1), mul(sp(B3), c3_1)), mul(sp(B4), d3_1)), mul(sp(B5), e3_1)))), mul(hB6_1, f3_1));
-  st2(b0, b1, OFF_YN, n0_0);
-  st2(b2, b3, OFF_YN, n0_1);
-  st2(b0, b1, OFF_YN + 8, n1_0);
-  st2(b2, b3, OFF_YN + 8, n1_1);
-  st2(b0, b1, OFF_YN + 16, n2_0);
-  st2(b2, b3, OFF_YN + 16, n2_1);
-  st2(b0, b1, OFF_YN + 24, n3_0);
-  st2(b2, b3, OFF_YN + 24, n3_1);
-  // stage 7 (FSAL)
-  const g0_0 = n2_0;
-  const g0_1 = n2_1;
-  const g1_0 = n3_0;
-  const g1_1 = n3_1;
-  const q7dx0_0 = f64x2.sub(n0_0, fx0_0);
-  const q7dx0_1 = f64x2.sub(n0_1, fx0_1);
-  const q7dy0_0 = f64x2.sub(n1_0, fy0_0);
-  const q7dy0_1 = f64x2.sub(n1_1, fy0_1);
-  const q7r0_0 = f64x2.sqrt(add(mul(q7dx0_0, q7dx0_0), mul(q7dy0_0, q7dy0_0)));
-  const q7r0_1 = f64x2.sqrt(add(mul(q7dx0_1, q7dx0_1), mul(q7dy0_1, q7dy0_1)));
-  const q7ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q7r0_0)), f64x2.div(one_0, q7r0_0)), invM_0);
-  const q7ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q7r0_1)), f64x2.div(one_1, q7r0_1)), invM_1);
-  const q7dx1_0 = f64x2.sub(n0_0, fx1_0);
-  const q7dx1_1 = f64x2.sub(n0_1, fx1_1);
-  const q7dy1_0 = f64x2.sub(n1_0, fy1_0);
-  const q7dy1_1 = f64x2.sub(n1_1, fy1_1);
-  const q7r1_0 = f64x2.sqrt(add(mul(q7dx1_0, q7dx1_0), mul(q7dy1_0, q7dy1_0)));
-  const q7r1_1 = f64x2.sqrt(add(mul(q7dx1_1, q7dx1_1), mul(q7dy1_1, q7dy1_1)));
-  const q7ac1_0 = mul(mul(mul(k1_0, f64x2.sub(l1_0, q7r1_0)), f64x2.div(one_0, q7r1_0)), invM_0);
-  const q7ac1_1 = mul(mul(mul(k1_1, f64x2.sub(l1_1, q7r1_1)), f64x2.div(one_1, q7r1_1)), invM_1);
-  const q7s2_0 = mul(q7ac0_0, q7dx0_0);
-  const q7s2_1 = mul(q7ac0_1, q7dx0_1);
-  const q7s3_0 = mul(q7ac0_0, q7dy0_0);
-  const q7s3_1 = mul(q7ac0_1, q7dy0_1);
-  const g2_0 = v128.bitselect(q7s2_0, add(q7s2_0, mul(q7ac1_0, q7dx1_0)), single_0);
-  const g2_1 = v128.bitselect(q7s2_1, add(q7s2_1, mul(q7ac1_1, q7dx1_1)), single_1);
-  const g3_0 = f64x2.sub(v128.bitselect(q7s3_0, add(q7s3_0, mul(q7ac1_0, q7dy1_0)), single_0), grav_0);
-  const g3_1 = f64x2.sub(v128.bitselect(q7s3_1, add(q7s3_1, mul(q7ac1_1, q7dy1_1)), single_1), grav_1);
-  st2(b0, b1, OFF_K7, g0_0);
-  st2(b2, b3, OFF_K7, g0_1);
-  st2(b0, b1, OFF_K7 + 8, g1_0);
-  st2(b2, b3, OFF_K7 + 8, g1_1);
-  st2(b0, b1, OFF_K7 + 16, g2_0);
-  st2(b2, b3, OFF_K7 + 16, g2_1);
-  st2(b0, b1, OFF_K7 + 24, g3_0);
-  st2(b2, b3, OFF_K7 + 24, g3_1);
-  // the error norm over the four components, in step4w's order
-  const rtol_0 = ppAt(PP_RTOL, PA);
-  const rtol_1 = ppAt(PP_RTOL, PB);
-  const atol_0 = ppAt(PP_ATOL, PA);
-  const atol_1 = ppAt(PP_ATOL, PB);
-  let sum_0 = sp(0.0);
-  let sum_1 = sp(0.0);
-  let finite_0 = sp(0.0);
-  let finite_1 = sp(0.0);
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a0_0), mul(sp(E3), c0_0)), mul(sp(E4), d0_0)), mul(sp(E5), e0_0)), mul(sp(E6), f0_0)), mul(sp(E7), g0_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a0_1), mul(sp(E3), c0_1)), mul(sp(E4), d0_1)), mul(sp(E5), e0_1)), mul(sp(E6), f0_1)), mul(sp(E7), g0_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y0_0), f64x2.abs(n0_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y0_1), f64x2.abs(n0_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n0_0, n0_0));
-    finite_1 = add(finite_1, f64x2.sub(n0_1, n0_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a1_0), mul(sp(E3), c1_0)), mul(sp(E4), d1_0)), mul(sp(E5), e1_0)), mul(sp(E6), f1_0)), mul(sp(E7), g1_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a1_1), mul(sp(E3), c1_1)), mul(sp(E4), d1_1)), mul(sp(E5), e1_1)), mul(sp(E6), f1_1)), mul(sp(E7), g1_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y1_0), f64x2.abs(n1_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y1_1), f64x2.abs(n1_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n1_0, n1_0));
-    finite_1 = add(finite_1, f64x2.sub(n1_1, n1_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a2_0), mul(sp(E3), c2_0)), mul(sp(E4), d2_0)), mul(sp(E5), e2_0)), mul(sp(E6), f2_0)), mul(sp(E7), g2_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a2_1), mul(sp(E3), c2_1)), mul(sp(E4), d2_1)), mul(sp(E5), e2_1)), mul(sp(E6), f2_1)), mul(sp(E7), g2_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y2_0), f64x2.abs(n2_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y2_1), f64x2.abs(n2_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n2_0, n2_0));
-    finite_1 = add(finite_1, f64x2.sub(n2_1, n2_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a3_0), mul(sp(E3), c3_0)), mul(sp(E4), d3_0)), mul(sp(E5), e3_0)), mul(sp(E6), f3_0)), mul(sp(E7), g3_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a3_1), mul(sp(E3), c3_1)), mul(sp(E4), d3_1)), mul(sp(E5), e3_1)), mul(sp(E6), f3_1)), mul(sp(E7), g3_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y3_0), f64x2.abs(n3_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y3_1), f64x2.abs(n3_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n3_0, n3_0));
-    finite_1 = add(finite_1, f64x2.sub(n3_1, n3_1));
-  }
-  const err_0 = f64x2.sqrt(f64x2.div(sum_0, sp(4.0)));
-  const err_1 = f64x2.sqrt(f64x2.div(sum_1, sp(4.0)));
-  storeErrors(err_0, finite_0, PA);
-  storeErrors(err_1, finite_1, PB);
-}
 
 // stepPairW for two lanes both in single support: leg 0 alone (the same operations as
 // stepPairW's leg-0 term, which single support takes).
@@ -786,6 +467,26 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   st2(b0, b1, OFF_K7 + 8, g1);
   st2(b0, b1, OFF_K7 + 16, g2);
   st2(b0, b1, OFF_K7 + 24, g3);
+  // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
+  // is the stance leg in single support
+  {
+    const zero = sp(0.0);
+    const dx0 = f64x2.sub(n0, fx0);
+    const dy0 = f64x2.sub(n1, fy0);
+    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
+    const c0 = f64x2.sub(l0, r0);
+    const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
+    const x0 = f64x2.div(mul(f0, dx0), r0);
+    const y0 = f64x2.div(mul(f0, dy0), r0);
+    const e = LANE_END + PA * END_BYTES;
+    v128.store(e + END_GL0 * 16, f64x2.sub(r0, l0));
+    v128.store(e + END_GM0 * 16, gm0);
+    v128.store(e + END_C0 * 16, c0);
+    v128.store(e + END_F0 * 16, f0);
+    v128.store(e + END_FX * 16, x0);
+    v128.store(e + END_FY * 16, y0);
+  }
   // the error norm over the four components, in step4w's order
   const rtol = ppAt(PP_RTOL, PA);
   const atol = ppAt(PP_ATOL, PA);
@@ -821,318 +522,4 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   }
   const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
   storeErrors(err, finite, PA);
-}
-
-// stepQuadW for four lanes all in single support.
-export function stepQuadW1(b0: usize, b1: usize, b2: usize, b3: usize): void {
-  const PA: usize = 0;
-  const PB: usize = 1;
-  const h_0 = ppAt(PP_H, PA);
-  const h_1 = ppAt(PP_H, PB);
-  const invM_0 = ppAt(PP_INV_MASS, PA);
-  const invM_1 = ppAt(PP_INV_MASS, PB);
-  const grav_0 = ppAt(PP_G, PA);
-  const grav_1 = ppAt(PP_G, PB);
-  const fx0_0 = ppAt(PP_FX0, PA);
-  const fx0_1 = ppAt(PP_FX0, PB);
-  const fy0_0 = ppAt(PP_FY0, PA);
-  const fy0_1 = ppAt(PP_FY0, PB);
-  const l0_0 = ppAt(PP_L0, PA);
-  const l0_1 = ppAt(PP_L0, PB);
-  const k0_0 = ppAt(PP_K0, PA);
-  const k0_1 = ppAt(PP_K0, PB);
-  const one_0 = sp(1.0);
-  const one_1 = sp(1.0);
-  const hA21_0 = mul(h_0, sp(A21));
-  const hA21_1 = mul(h_1, sp(A21));
-  const hA32_0 = mul(h_0, sp(A32));
-  const hA32_1 = mul(h_1, sp(A32));
-  const hA43_0 = mul(h_0, sp(A43));
-  const hA43_1 = mul(h_1, sp(A43));
-  const hA54_0 = mul(h_0, sp(A54));
-  const hA54_1 = mul(h_1, sp(A54));
-  const hA65_0 = mul(h_0, sp(A65));
-  const hA65_1 = mul(h_1, sp(A65));
-  const hB6_0 = mul(h_0, sp(B6));
-  const hB6_1 = mul(h_1, sp(B6));
-  const y0_0 = ld2(b0, b1, OFF_Y0);
-  const y0_1 = ld2(b2, b3, OFF_Y0);
-  const y1_0 = ld2(b0, b1, OFF_Y0 + 8);
-  const y1_1 = ld2(b2, b3, OFF_Y0 + 8);
-  const y2_0 = ld2(b0, b1, OFF_Y0 + 16);
-  const y2_1 = ld2(b2, b3, OFF_Y0 + 16);
-  const y3_0 = ld2(b0, b1, OFF_Y0 + 24);
-  const y3_1 = ld2(b2, b3, OFF_Y0 + 24);
-  const a0_0 = ld2(b0, b1, OFF_K1);
-  const a0_1 = ld2(b2, b3, OFF_K1);
-  const a1_0 = ld2(b0, b1, OFF_K1 + 8);
-  const a1_1 = ld2(b2, b3, OFF_K1 + 8);
-  const a2_0 = ld2(b0, b1, OFF_K1 + 16);
-  const a2_1 = ld2(b2, b3, OFF_K1 + 16);
-  const a3_0 = ld2(b0, b1, OFF_K1 + 24);
-  const a3_1 = ld2(b2, b3, OFF_K1 + 24);
-  // stage 2
-  const bp0_0 = add(y0_0, mul(hA21_0, a0_0));
-  const bp0_1 = add(y0_1, mul(hA21_1, a0_1));
-  const bp1_0 = add(y1_0, mul(hA21_0, a1_0));
-  const bp1_1 = add(y1_1, mul(hA21_1, a1_1));
-  const b0v_0 = add(y2_0, mul(hA21_0, a2_0));
-  const b0v_1 = add(y2_1, mul(hA21_1, a2_1));
-  const b1v_0 = add(y3_0, mul(hA21_0, a3_0));
-  const b1v_1 = add(y3_1, mul(hA21_1, a3_1));
-  const q2dx0_0 = f64x2.sub(bp0_0, fx0_0);
-  const q2dx0_1 = f64x2.sub(bp0_1, fx0_1);
-  const q2dy0_0 = f64x2.sub(bp1_0, fy0_0);
-  const q2dy0_1 = f64x2.sub(bp1_1, fy0_1);
-  const q2r0_0 = f64x2.sqrt(add(mul(q2dx0_0, q2dx0_0), mul(q2dy0_0, q2dy0_0)));
-  const q2r0_1 = f64x2.sqrt(add(mul(q2dx0_1, q2dx0_1), mul(q2dy0_1, q2dy0_1)));
-  const q2ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q2r0_0)), f64x2.div(one_0, q2r0_0)), invM_0);
-  const q2ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q2r0_1)), f64x2.div(one_1, q2r0_1)), invM_1);
-  const q2s2_0 = mul(q2ac0_0, q2dx0_0);
-  const q2s2_1 = mul(q2ac0_1, q2dx0_1);
-  const q2s3_0 = mul(q2ac0_0, q2dy0_0);
-  const q2s3_1 = mul(q2ac0_1, q2dy0_1);
-  const b2v_0 = q2s2_0;
-  const b2v_1 = q2s2_1;
-  const b3v_0 = f64x2.sub(q2s3_0, grav_0);
-  const b3v_1 = f64x2.sub(q2s3_1, grav_1);
-  // stage 3
-  const cp0_0 = add(add(y0_0, mul(h_0, mul(sp(A31), a0_0))), mul(hA32_0, b0v_0));
-  const cp0_1 = add(add(y0_1, mul(h_1, mul(sp(A31), a0_1))), mul(hA32_1, b0v_1));
-  const cp1_0 = add(add(y1_0, mul(h_0, mul(sp(A31), a1_0))), mul(hA32_0, b1v_0));
-  const cp1_1 = add(add(y1_1, mul(h_1, mul(sp(A31), a1_1))), mul(hA32_1, b1v_1));
-  const c0_0 = add(add(y2_0, mul(h_0, mul(sp(A31), a2_0))), mul(hA32_0, b2v_0));
-  const c0_1 = add(add(y2_1, mul(h_1, mul(sp(A31), a2_1))), mul(hA32_1, b2v_1));
-  const c1_0 = add(add(y3_0, mul(h_0, mul(sp(A31), a3_0))), mul(hA32_0, b3v_0));
-  const c1_1 = add(add(y3_1, mul(h_1, mul(sp(A31), a3_1))), mul(hA32_1, b3v_1));
-  const q3dx0_0 = f64x2.sub(cp0_0, fx0_0);
-  const q3dx0_1 = f64x2.sub(cp0_1, fx0_1);
-  const q3dy0_0 = f64x2.sub(cp1_0, fy0_0);
-  const q3dy0_1 = f64x2.sub(cp1_1, fy0_1);
-  const q3r0_0 = f64x2.sqrt(add(mul(q3dx0_0, q3dx0_0), mul(q3dy0_0, q3dy0_0)));
-  const q3r0_1 = f64x2.sqrt(add(mul(q3dx0_1, q3dx0_1), mul(q3dy0_1, q3dy0_1)));
-  const q3ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q3r0_0)), f64x2.div(one_0, q3r0_0)), invM_0);
-  const q3ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q3r0_1)), f64x2.div(one_1, q3r0_1)), invM_1);
-  const q3s2_0 = mul(q3ac0_0, q3dx0_0);
-  const q3s2_1 = mul(q3ac0_1, q3dx0_1);
-  const q3s3_0 = mul(q3ac0_0, q3dy0_0);
-  const q3s3_1 = mul(q3ac0_1, q3dy0_1);
-  const c2_0 = q3s2_0;
-  const c2_1 = q3s2_1;
-  const c3_0 = f64x2.sub(q3s3_0, grav_0);
-  const c3_1 = f64x2.sub(q3s3_1, grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 0, c0_0);
-  v128.store(LANE_STAGES + PB * 256 + 0, c0_1);
-  v128.store(LANE_STAGES + PA * 256 + 16, c1_0);
-  v128.store(LANE_STAGES + PB * 256 + 16, c1_1);
-  v128.store(LANE_STAGES + PA * 256 + 32, c2_0);
-  v128.store(LANE_STAGES + PB * 256 + 32, c2_1);
-  v128.store(LANE_STAGES + PA * 256 + 48, c3_0);
-  v128.store(LANE_STAGES + PB * 256 + 48, c3_1);
-  // stage 4
-  const dp0_0 = add(add(y0_0, mul(h_0, add(mul(sp(A41), a0_0), mul(sp(A42), b0v_0)))), mul(hA43_0, c0_0));
-  const dp0_1 = add(add(y0_1, mul(h_1, add(mul(sp(A41), a0_1), mul(sp(A42), b0v_1)))), mul(hA43_1, c0_1));
-  const dp1_0 = add(add(y1_0, mul(h_0, add(mul(sp(A41), a1_0), mul(sp(A42), b1v_0)))), mul(hA43_0, c1_0));
-  const dp1_1 = add(add(y1_1, mul(h_1, add(mul(sp(A41), a1_1), mul(sp(A42), b1v_1)))), mul(hA43_1, c1_1));
-  const d0_0 = add(add(y2_0, mul(h_0, add(mul(sp(A41), a2_0), mul(sp(A42), b2v_0)))), mul(hA43_0, c2_0));
-  const d0_1 = add(add(y2_1, mul(h_1, add(mul(sp(A41), a2_1), mul(sp(A42), b2v_1)))), mul(hA43_1, c2_1));
-  const d1_0 = add(add(y3_0, mul(h_0, add(mul(sp(A41), a3_0), mul(sp(A42), b3v_0)))), mul(hA43_0, c3_0));
-  const d1_1 = add(add(y3_1, mul(h_1, add(mul(sp(A41), a3_1), mul(sp(A42), b3v_1)))), mul(hA43_1, c3_1));
-  const q4dx0_0 = f64x2.sub(dp0_0, fx0_0);
-  const q4dx0_1 = f64x2.sub(dp0_1, fx0_1);
-  const q4dy0_0 = f64x2.sub(dp1_0, fy0_0);
-  const q4dy0_1 = f64x2.sub(dp1_1, fy0_1);
-  const q4r0_0 = f64x2.sqrt(add(mul(q4dx0_0, q4dx0_0), mul(q4dy0_0, q4dy0_0)));
-  const q4r0_1 = f64x2.sqrt(add(mul(q4dx0_1, q4dx0_1), mul(q4dy0_1, q4dy0_1)));
-  const q4ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q4r0_0)), f64x2.div(one_0, q4r0_0)), invM_0);
-  const q4ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q4r0_1)), f64x2.div(one_1, q4r0_1)), invM_1);
-  const q4s2_0 = mul(q4ac0_0, q4dx0_0);
-  const q4s2_1 = mul(q4ac0_1, q4dx0_1);
-  const q4s3_0 = mul(q4ac0_0, q4dy0_0);
-  const q4s3_1 = mul(q4ac0_1, q4dy0_1);
-  const d2_0 = q4s2_0;
-  const d2_1 = q4s2_1;
-  const d3_0 = f64x2.sub(q4s3_0, grav_0);
-  const d3_1 = f64x2.sub(q4s3_1, grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 64, d0_0);
-  v128.store(LANE_STAGES + PB * 256 + 64, d0_1);
-  v128.store(LANE_STAGES + PA * 256 + 80, d1_0);
-  v128.store(LANE_STAGES + PB * 256 + 80, d1_1);
-  v128.store(LANE_STAGES + PA * 256 + 96, d2_0);
-  v128.store(LANE_STAGES + PB * 256 + 96, d2_1);
-  v128.store(LANE_STAGES + PA * 256 + 112, d3_0);
-  v128.store(LANE_STAGES + PB * 256 + 112, d3_1);
-  // stage 5
-  const ep0_0 = add(add(y0_0, mul(h_0, add(add(mul(sp(A51), a0_0), mul(sp(A52), b0v_0)), mul(sp(A53), c0_0)))), mul(hA54_0, d0_0));
-  const ep0_1 = add(add(y0_1, mul(h_1, add(add(mul(sp(A51), a0_1), mul(sp(A52), b0v_1)), mul(sp(A53), c0_1)))), mul(hA54_1, d0_1));
-  const ep1_0 = add(add(y1_0, mul(h_0, add(add(mul(sp(A51), a1_0), mul(sp(A52), b1v_0)), mul(sp(A53), c1_0)))), mul(hA54_0, d1_0));
-  const ep1_1 = add(add(y1_1, mul(h_1, add(add(mul(sp(A51), a1_1), mul(sp(A52), b1v_1)), mul(sp(A53), c1_1)))), mul(hA54_1, d1_1));
-  const e0_0 = add(add(y2_0, mul(h_0, add(add(mul(sp(A51), a2_0), mul(sp(A52), b2v_0)), mul(sp(A53), c2_0)))), mul(hA54_0, d2_0));
-  const e0_1 = add(add(y2_1, mul(h_1, add(add(mul(sp(A51), a2_1), mul(sp(A52), b2v_1)), mul(sp(A53), c2_1)))), mul(hA54_1, d2_1));
-  const e1_0 = add(add(y3_0, mul(h_0, add(add(mul(sp(A51), a3_0), mul(sp(A52), b3v_0)), mul(sp(A53), c3_0)))), mul(hA54_0, d3_0));
-  const e1_1 = add(add(y3_1, mul(h_1, add(add(mul(sp(A51), a3_1), mul(sp(A52), b3v_1)), mul(sp(A53), c3_1)))), mul(hA54_1, d3_1));
-  const q5dx0_0 = f64x2.sub(ep0_0, fx0_0);
-  const q5dx0_1 = f64x2.sub(ep0_1, fx0_1);
-  const q5dy0_0 = f64x2.sub(ep1_0, fy0_0);
-  const q5dy0_1 = f64x2.sub(ep1_1, fy0_1);
-  const q5r0_0 = f64x2.sqrt(add(mul(q5dx0_0, q5dx0_0), mul(q5dy0_0, q5dy0_0)));
-  const q5r0_1 = f64x2.sqrt(add(mul(q5dx0_1, q5dx0_1), mul(q5dy0_1, q5dy0_1)));
-  const q5ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q5r0_0)), f64x2.div(one_0, q5r0_0)), invM_0);
-  const q5ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q5r0_1)), f64x2.div(one_1, q5r0_1)), invM_1);
-  const q5s2_0 = mul(q5ac0_0, q5dx0_0);
-  const q5s2_1 = mul(q5ac0_1, q5dx0_1);
-  const q5s3_0 = mul(q5ac0_0, q5dy0_0);
-  const q5s3_1 = mul(q5ac0_1, q5dy0_1);
-  const e2_0 = q5s2_0;
-  const e2_1 = q5s2_1;
-  const e3_0 = f64x2.sub(q5s3_0, grav_0);
-  const e3_1 = f64x2.sub(q5s3_1, grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 128, e0_0);
-  v128.store(LANE_STAGES + PB * 256 + 128, e0_1);
-  v128.store(LANE_STAGES + PA * 256 + 144, e1_0);
-  v128.store(LANE_STAGES + PB * 256 + 144, e1_1);
-  v128.store(LANE_STAGES + PA * 256 + 160, e2_0);
-  v128.store(LANE_STAGES + PB * 256 + 160, e2_1);
-  v128.store(LANE_STAGES + PA * 256 + 176, e3_0);
-  v128.store(LANE_STAGES + PB * 256 + 176, e3_1);
-  // stage 6
-  const fp0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(A61), a0_0), mul(sp(A62), b0v_0)), mul(sp(A63), c0_0)), mul(sp(A64), d0_0)))), mul(hA65_0, e0_0));
-  const fp0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(A61), a0_1), mul(sp(A62), b0v_1)), mul(sp(A63), c0_1)), mul(sp(A64), d0_1)))), mul(hA65_1, e0_1));
-  const fp1_0 = add(add(y1_0, mul(h_0, add(add(add(mul(sp(A61), a1_0), mul(sp(A62), b1v_0)), mul(sp(A63), c1_0)), mul(sp(A64), d1_0)))), mul(hA65_0, e1_0));
-  const fp1_1 = add(add(y1_1, mul(h_1, add(add(add(mul(sp(A61), a1_1), mul(sp(A62), b1v_1)), mul(sp(A63), c1_1)), mul(sp(A64), d1_1)))), mul(hA65_1, e1_1));
-  const f0_0 = add(add(y2_0, mul(h_0, add(add(add(mul(sp(A61), a2_0), mul(sp(A62), b2v_0)), mul(sp(A63), c2_0)), mul(sp(A64), d2_0)))), mul(hA65_0, e2_0));
-  const f0_1 = add(add(y2_1, mul(h_1, add(add(add(mul(sp(A61), a2_1), mul(sp(A62), b2v_1)), mul(sp(A63), c2_1)), mul(sp(A64), d2_1)))), mul(hA65_1, e2_1));
-  const f1_0 = add(add(y3_0, mul(h_0, add(add(add(mul(sp(A61), a3_0), mul(sp(A62), b3v_0)), mul(sp(A63), c3_0)), mul(sp(A64), d3_0)))), mul(hA65_0, e3_0));
-  const f1_1 = add(add(y3_1, mul(h_1, add(add(add(mul(sp(A61), a3_1), mul(sp(A62), b3v_1)), mul(sp(A63), c3_1)), mul(sp(A64), d3_1)))), mul(hA65_1, e3_1));
-  const q6dx0_0 = f64x2.sub(fp0_0, fx0_0);
-  const q6dx0_1 = f64x2.sub(fp0_1, fx0_1);
-  const q6dy0_0 = f64x2.sub(fp1_0, fy0_0);
-  const q6dy0_1 = f64x2.sub(fp1_1, fy0_1);
-  const q6r0_0 = f64x2.sqrt(add(mul(q6dx0_0, q6dx0_0), mul(q6dy0_0, q6dy0_0)));
-  const q6r0_1 = f64x2.sqrt(add(mul(q6dx0_1, q6dx0_1), mul(q6dy0_1, q6dy0_1)));
-  const q6ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q6r0_0)), f64x2.div(one_0, q6r0_0)), invM_0);
-  const q6ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q6r0_1)), f64x2.div(one_1, q6r0_1)), invM_1);
-  const q6s2_0 = mul(q6ac0_0, q6dx0_0);
-  const q6s2_1 = mul(q6ac0_1, q6dx0_1);
-  const q6s3_0 = mul(q6ac0_0, q6dy0_0);
-  const q6s3_1 = mul(q6ac0_1, q6dy0_1);
-  const f2_0 = q6s2_0;
-  const f2_1 = q6s2_1;
-  const f3_0 = f64x2.sub(q6s3_0, grav_0);
-  const f3_1 = f64x2.sub(q6s3_1, grav_1);
-  v128.store(LANE_STAGES + PA * 256 + 192, f0_0);
-  v128.store(LANE_STAGES + PB * 256 + 192, f0_1);
-  v128.store(LANE_STAGES + PA * 256 + 208, f1_0);
-  v128.store(LANE_STAGES + PB * 256 + 208, f1_1);
-  v128.store(LANE_STAGES + PA * 256 + 224, f2_0);
-  v128.store(LANE_STAGES + PB * 256 + 224, f2_1);
-  v128.store(LANE_STAGES + PA * 256 + 240, f3_0);
-  v128.store(LANE_STAGES + PB * 256 + 240, f3_1);
-  // the 5th-order solution
-  const n0_0 = add(add(y0_0, mul(h_0, add(add(add(mul(sp(B1), a0_0), mul(sp(B3), c0_0)), mul(sp(B4), d0_0)), mul(sp(B5), e0_0)))), mul(hB6_0, f0_0));
-  const n0_1 = add(add(y0_1, mul(h_1, add(add(add(mul(sp(B1), a0_1), mul(sp(B3), c0_1)), mul(sp(B4), d0_1)), mul(sp(B5), e0_1)))), mul(hB6_1, f0_1));
-  const n1_0 = add(add(y1_0, mul(h_0, add(add(add(mul(sp(B1), a1_0), mul(sp(B3), c1_0)), mul(sp(B4), d1_0)), mul(sp(B5), e1_0)))), mul(hB6_0, f1_0));
-  const n1_1 = add(add(y1_1, mul(h_1, add(add(add(mul(sp(B1), a1_1), mul(sp(B3), c1_1)), mul(sp(B4), d1_1)), mul(sp(B5), e1_1)))), mul(hB6_1, f1_1));
-  const n2_0 = add(add(y2_0, mul(h_0, add(add(add(mul(sp(B1), a2_0), mul(sp(B3), c2_0)), mul(sp(B4), d2_0)), mul(sp(B5), e2_0)))), mul(hB6_0, f2_0));
-  const n2_1 = add(add(y2_1, mul(h_1, add(add(add(mul(sp(B1), a2_1), mul(sp(B3), c2_1)), mul(sp(B4), d2_1)), mul(sp(B5), e2_1)))), mul(hB6_1, f2_1));
-  const n3_0 = add(add(y3_0, mul(h_0, add(add(add(mul(sp(B1), a3_0), mul(sp(B3), c3_0)), mul(sp(B4), d3_0)), mul(sp(B5), e3_0)))), mul(hB6_0, f3_0));
-  const n3_1 = add(add(y3_1, mul(h_1, add(add(add(mul(sp(B1), a3_1), mul(sp(B3), c3_1)), mul(sp(B4), d3_1)), mul(sp(B5), e3_1)))), mul(hB6_1, f3_1));
-  st2(b0, b1, OFF_YN, n0_0);
-  st2(b2, b3, OFF_YN, n0_1);
-  st2(b0, b1, OFF_YN + 8, n1_0);
-  st2(b2, b3, OFF_YN + 8, n1_1);
-  st2(b0, b1, OFF_YN + 16, n2_0);
-  st2(b2, b3, OFF_YN + 16, n2_1);
-  st2(b0, b1, OFF_YN + 24, n3_0);
-  st2(b2, b3, OFF_YN + 24, n3_1);
-  // stage 7 (FSAL)
-  const g0_0 = n2_0;
-  const g0_1 = n2_1;
-  const g1_0 = n3_0;
-  const g1_1 = n3_1;
-  const q7dx0_0 = f64x2.sub(n0_0, fx0_0);
-  const q7dx0_1 = f64x2.sub(n0_1, fx0_1);
-  const q7dy0_0 = f64x2.sub(n1_0, fy0_0);
-  const q7dy0_1 = f64x2.sub(n1_1, fy0_1);
-  const q7r0_0 = f64x2.sqrt(add(mul(q7dx0_0, q7dx0_0), mul(q7dy0_0, q7dy0_0)));
-  const q7r0_1 = f64x2.sqrt(add(mul(q7dx0_1, q7dx0_1), mul(q7dy0_1, q7dy0_1)));
-  const q7ac0_0 = mul(mul(mul(k0_0, f64x2.sub(l0_0, q7r0_0)), f64x2.div(one_0, q7r0_0)), invM_0);
-  const q7ac0_1 = mul(mul(mul(k0_1, f64x2.sub(l0_1, q7r0_1)), f64x2.div(one_1, q7r0_1)), invM_1);
-  const q7s2_0 = mul(q7ac0_0, q7dx0_0);
-  const q7s2_1 = mul(q7ac0_1, q7dx0_1);
-  const q7s3_0 = mul(q7ac0_0, q7dy0_0);
-  const q7s3_1 = mul(q7ac0_1, q7dy0_1);
-  const g2_0 = q7s2_0;
-  const g2_1 = q7s2_1;
-  const g3_0 = f64x2.sub(q7s3_0, grav_0);
-  const g3_1 = f64x2.sub(q7s3_1, grav_1);
-  st2(b0, b1, OFF_K7, g0_0);
-  st2(b2, b3, OFF_K7, g0_1);
-  st2(b0, b1, OFF_K7 + 8, g1_0);
-  st2(b2, b3, OFF_K7 + 8, g1_1);
-  st2(b0, b1, OFF_K7 + 16, g2_0);
-  st2(b2, b3, OFF_K7 + 16, g2_1);
-  st2(b0, b1, OFF_K7 + 24, g3_0);
-  st2(b2, b3, OFF_K7 + 24, g3_1);
-  // the error norm over the four components, in step4w's order
-  const rtol_0 = ppAt(PP_RTOL, PA);
-  const rtol_1 = ppAt(PP_RTOL, PB);
-  const atol_0 = ppAt(PP_ATOL, PA);
-  const atol_1 = ppAt(PP_ATOL, PB);
-  let sum_0 = sp(0.0);
-  let sum_1 = sp(0.0);
-  let finite_0 = sp(0.0);
-  let finite_1 = sp(0.0);
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a0_0), mul(sp(E3), c0_0)), mul(sp(E4), d0_0)), mul(sp(E5), e0_0)), mul(sp(E6), f0_0)), mul(sp(E7), g0_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a0_1), mul(sp(E3), c0_1)), mul(sp(E4), d0_1)), mul(sp(E5), e0_1)), mul(sp(E6), f0_1)), mul(sp(E7), g0_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y0_0), f64x2.abs(n0_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y0_1), f64x2.abs(n0_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n0_0, n0_0));
-    finite_1 = add(finite_1, f64x2.sub(n0_1, n0_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a1_0), mul(sp(E3), c1_0)), mul(sp(E4), d1_0)), mul(sp(E5), e1_0)), mul(sp(E6), f1_0)), mul(sp(E7), g1_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a1_1), mul(sp(E3), c1_1)), mul(sp(E4), d1_1)), mul(sp(E5), e1_1)), mul(sp(E6), f1_1)), mul(sp(E7), g1_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y1_0), f64x2.abs(n1_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y1_1), f64x2.abs(n1_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n1_0, n1_0));
-    finite_1 = add(finite_1, f64x2.sub(n1_1, n1_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a2_0), mul(sp(E3), c2_0)), mul(sp(E4), d2_0)), mul(sp(E5), e2_0)), mul(sp(E6), f2_0)), mul(sp(E7), g2_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a2_1), mul(sp(E3), c2_1)), mul(sp(E4), d2_1)), mul(sp(E5), e2_1)), mul(sp(E6), f2_1)), mul(sp(E7), g2_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y2_0), f64x2.abs(n2_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y2_1), f64x2.abs(n2_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n2_0, n2_0));
-    finite_1 = add(finite_1, f64x2.sub(n2_1, n2_1));
-  }
-  {
-    const e_0 = mul(h_0, add(add(add(add(add(mul(sp(E1), a3_0), mul(sp(E3), c3_0)), mul(sp(E4), d3_0)), mul(sp(E5), e3_0)), mul(sp(E6), f3_0)), mul(sp(E7), g3_0)));
-    const e_1 = mul(h_1, add(add(add(add(add(mul(sp(E1), a3_1), mul(sp(E3), c3_1)), mul(sp(E4), d3_1)), mul(sp(E5), e3_1)), mul(sp(E6), f3_1)), mul(sp(E7), g3_1)));
-    const sc_0 = add(atol_0, mul(rtol_0, f64x2.max(f64x2.abs(y3_0), f64x2.abs(n3_0))));
-    const sc_1 = add(atol_1, mul(rtol_1, f64x2.max(f64x2.abs(y3_1), f64x2.abs(n3_1))));
-    const q_0 = f64x2.div(e_0, sc_0);
-    const q_1 = f64x2.div(e_1, sc_1);
-    sum_0 = add(sum_0, mul(q_0, q_0));
-    sum_1 = add(sum_1, mul(q_1, q_1));
-    finite_0 = add(finite_0, f64x2.sub(n3_0, n3_0));
-    finite_1 = add(finite_1, f64x2.sub(n3_1, n3_1));
-  }
-  const err_0 = f64x2.sqrt(f64x2.div(sum_0, sp(4.0)));
-  const err_1 = f64x2.sqrt(f64x2.div(sum_1, sp(4.0)));
-  storeErrors(err_0, finite_0, PA);
-  storeErrors(err_1, finite_1, PB);
 }
