@@ -21,13 +21,20 @@
 // Events are checked at the ends of every accepted step, located on the interpolant (Illinois),
 // re-stepped on the true solution and polished with Newton steps (re-taking the step to the
 // corrected time), as the stance driver does.
+//
+// Batches (runBipedBatch): two or four rollouts take turns between steps, each with its own state
+// block (BipedState), legs, record scratch and stepper buffers. A walking step with undamped legs
+// is taken for all of them at once in f64x2 lanes (rk/biped-x2.ts, step4w's arithmetic), and a
+// step with no event inside it is finished for each without switching to it (laneAfterQuiet,
+// contactAfter's arithmetic); every other step, event and stride runs the one-rollout code on the
+// lane's state. Each rollout's records and summary are the bytes runBipedRollout gives.
 
 import {
   M_MASS, M_GRAVITY, M_RTOL, M_ATOL, M_MAX_STEPS, M_TARGET_HEIGHT, M_TARGET_SPEED, M_STIFFNESS,
   M_BIPED_LENGTH_0, M_BIPED_LENGTH_1, M_BIPED_STIFFNESS_SCALE_0, M_BIPED_STIFFNESS_SCALE_1,
   M_BIPED_DAMPING_0, M_BIPED_DAMPING_1, M_ANGLE_KIND, M_ATTACK, ANGLE_FIXED,
   I_APEX_HEIGHT, I_FORWARD_SPEED, I_STREAM, I_MASS_SCALE, I_STIFFNESS_SCALE, I_LEG_SCALE,
-  I_SECTION_KIND, I_SECTION_OFFSET, I_SECTION_LEG,
+  I_SECTION_KIND, I_SECTION_OFFSET, I_SECTION_LEG, I_SIZE, I_MODEL, M_SIZE, S_SIZE,
   R_APEX_HEIGHT, R_APEX_SPEED, R_APEX_TIME, R_APEX_X, R_APEX_TO_TOUCHDOWN, R_CONTACT, R_STRIDE_TIME,
   R_ATTACK, R_GROUND, R_PEAK_FORCE, R_MAX_COMPRESSION, R_PEAK_FRICTION, R_ENERGY_BEFORE,
   R_ENERGY_AFTER, R_DISSIPATED, R_STEPS, R_REJECTED, R_FOOT_X, R_TOUCHDOWN_VX, R_TOUCHDOWN_VY,
@@ -51,10 +58,11 @@ import { mget, attackAt, angleRateAt, chooseStiffness, stanceKc, stanceKe, stanc
 import {
   touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE, TOUCHDOWN_GROUND_FIRST, TOUCHDOWN_ANGLE_LEFT,
 } from "./flight";
-import { groundAt, resetWalk } from "./terrain";
+import { groundAt, resetWalk, getWalk, setWalk } from "./terrain";
 import { initialStep } from "./rk/initial-step";
 import {
   step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
+  useBuffers, DEFAULT_BUFFERS, BUFFER_SET_BYTES, OFF_Y0, OFF_K1, OFF_K7, OFF_YN, acceptedFactor, controllerMemory, getLastH, getErrorDimension, setErrorDimensionValue, getErrOld, setErrOld,
   Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
@@ -63,7 +71,13 @@ import {
   rhs, setStance, setStiffness, setBiped, setBipedStiffness,
   stanceInvMass, stanceLeg as sysLeg, stanceK, stanceC, stanceG,
   bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
+  saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
+import {
+  stepPairW, stepPairW1, laneError, unpackStages, laneEnd,
+  END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
+  PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
+} from "./rk/biped-x2";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
 
@@ -89,7 +103,103 @@ const LF_TD = 13; // s since the section, touchdown in this stride (NaN: none)
 const LF_LO = 14; // s since the section, liftoff in this stride (NaN: none)
 const LF_TOUCH_HEIGHT = 15; // m, L0 sin(attack) when the attack angle is fixed
 const LF_N = 16;
-const LEGS: usize = memory.data(2 * LF_N * 8, 16);
+const LEGS_DEFAULT: usize = memory.data(2 * LF_N * 8, 16);
+let LEGS: usize = LEGS_DEFAULT; // the legs of the rollout in hand (runBipedBatch: of its lane)
+
+// The state of the rollout in hand: every value that lives across a step, a stride or the
+// rollout (the stride loop's and the contact loop's state included). S points at one block;
+// runBipedBatch keeps one per lane and switches the pointer, so rollouts take turns between
+// steps and each reads the state it wrote.
+@unmanaged class BipedState {
+  model: usize;
+  mass: f64;
+  gravity: f64;
+  rtol: f64;
+  atol: f64;
+  maxSteps: i32;
+  fixedAngle: bool;
+  ox: f64;
+  oy: f64;
+  single: bool;
+  stanceLeg: i32;
+  timeScale: f64;
+  groundRel: f64;
+  strideWalking: bool;
+  tS: f64;
+  tSec0: f64;
+  h: f64;
+  firstH: f64;
+  firstStep: bool;
+  steps: i32;
+  rejected: i32;
+  touchedDown: bool;
+  sectionArmed: bool;
+  swing: i32;
+  armed: bool;
+  swingGround: f64;
+  peakVertical: f64;
+  peakFriction: f64;
+  tContactLimit: f64;
+  minAttack: f64;
+  maxAttack: f64;
+  lostSpring: f64;
+  endPx: f64;
+  endPy: f64;
+  endVx: f64;
+  endVy: f64;
+  endT: f64;
+  endW: f64;
+  endLeg: i32;
+  endBoth: bool;
+  relPx: f64;
+  relPy: f64;
+  undamped: bool;
+  traceT0: f64;
+  gl00: f64;
+  gl01: f64;
+  gm00: f64;
+  gm01: f64;
+  gt0: f64;
+  gs0: f64;
+  gg0: f64;
+  gb0: f64;
+  contactRec: usize;
+  afterReject: bool;
+  nonFinite: i32;
+  stepsHere: i32;
+  hMin: f64;
+  strides: i32;
+  rec0: usize;
+  summary: usize;
+  strideIndex: i32;
+  strideRec: usize;
+  targetHeight: f64;
+  targetSpeed: f64;
+  stream: u64;
+  section: i32;
+  apexY: f64;
+  apexVx: f64;
+  offset: f64;
+  leg: i32;
+  apexX: f64;
+  apexT: f64;
+  prevHeight: f64;
+  prevSpeed: f64;
+  prevOffset: f64;
+  status: i32;
+  completed: i32;
+  maxForce: f64;
+  maxFriction: f64;
+  maxCompression: f64;
+  maxVertical: f64;
+  sumSqHeight: f64;
+  sumSqSpeed: f64;
+  allSteps: i32;
+  allRejected: i32;
+  scratchRecord: usize;
+}
+const STATE_DEFAULT: usize = memory.data(<i32>offsetof<BipedState>(), 16);
+let S: BipedState = changetype<BipedState>(STATE_DEFAULT);
 
 @inline function lg(i: i32, f: i32): f64 {
   return load<f64>(LEGS + (<usize>(i * LF_N + f) << 3));
@@ -105,55 +215,13 @@ const LEGS: usize = memory.data(2 * LF_N * 8, 16);
 }
 
 // Rollout constants.
-let model: usize = 0;
-let mass: f64 = 1.0;
-let gravity: f64 = 9.80665;
-let rtol: f64 = 1e-10;
-let atol: f64 = 1e-12;
-let maxSteps: i32 = 100000;
-let fixedAngle: bool = false; // the attack angle is constant: the touchdown height is too
 
 // Integration frame: (px, py) = body - origin, the origin a foot in stance.
-let ox: f64 = 0.0;
-let oy: f64 = 0.0;
-let single: bool = true; // one leg in stance (the origin's), else two
-let stanceLeg: i32 = 0; // in single support
-let timeScale: f64 = 1.0; // s, 1/omega of the softest leg in stance
-let groundRel: f64 = 0.0; // m, the lowest foot in stance relative to the origin
 
 // Stride state.
-let strideWalking: bool = true; // the stride started at a single-support apex
-let tS: f64 = 0.0; // s since the contact began, at Y0 (the single-leg driver's clock)
-let tSec0: f64 = 0.0; // s from the section to the contact's start
-let h: f64 = 0.0;
-let firstH: f64 = 0.0; // the stride's first accepted step: a start for the next stride
-let firstStep: bool = true;
-let steps: i32 = 0;
-let rejected: i32 = 0;
-let touchedDown: bool = false; // the stride's touchdown happened
-let sectionArmed: bool = false; // single support on the leg that touched down in this stride
-let swing: i32 = -1; // the leg in swing during single support
-let armed: bool = false; // the swing leg may touch down (past midstance of the stance leg)
-let swingGround: f64 = 0.0; // m, ground height at the stride's touchdown
-let peakVertical: f64 = 0.0;
-let peakFriction: f64 = 0.0;
-let tContactLimit: f64 = 0.0;
-let minAttack: f64 = Infinity;
-let maxAttack: f64 = -Infinity;
-let lostSpring: f64 = 0.0; // J, spring energy a damped leg still held when it left the ground
 
 // End of contact: the state (relative to the origin) and time since the section.
-let endPx: f64 = 0.0;
-let endPy: f64 = 0.0;
-let endVx: f64 = 0.0;
-let endVy: f64 = 0.0;
-let endT: f64 = 0.0;
-let endW: f64 = 0.0;
-let endLeg: i32 = 0; // the leg that lifted off (flight) or is in stance (section)
-let endBoth: bool = false; // both legs left the ground together
 
-let relPx: f64 = 0.0; // state relative to the stance foot at the last single-support apex
-let relPy: f64 = 0.0;
 
 const END_SECTION: i32 = -1;
 const END_FLIGHT: i32 = -2;
@@ -168,10 +236,10 @@ const EVB_BACKWARD = 5; // -vx
 const EVB_MIDSTANCE = 6; // body x - stance foot x
 
 @inline function footRx(i: i32): f64 {
-  return lg(i, LF_FX) - ox;
+  return lg(i, LF_FX) - S.ox;
 }
 @inline function footRy(i: i32): f64 {
-  return lg(i, LF_FY) - oy;
+  return lg(i, LF_FY) - S.oy;
 }
 
 function legR(i: i32, p: usize): f64 {
@@ -210,14 +278,15 @@ function lowestFoot(): f64 {
 }
 
 function evValue(ev: i32, leg: i32, p: usize, t: f64): f64 {
+  const s = S;
   if (ev == EVB_LIFTOFF) {
     if (lg(leg, LF_C) == 0.0) return legR(leg, p) - lg(leg, LF_L0);
     return -legForceAt(leg, p);
   }
   if (ev == EVB_MAX_COMPRESSION) return legRdot(leg, p);
   if (ev == EVB_TOUCHDOWN) {
-    const height = fixedAngle ? lg(leg, LF_TOUCH_HEIGHT) : lg(leg, LF_L0) * legSin(attackAt(model, tSec0 + t));
-    return height - (load<f64>(p, 8) + oy - swingGround);
+    const height = s.fixedAngle ? lg(leg, LF_TOUCH_HEIGHT) : lg(leg, LF_L0) * legSin(attackAt(s.model, s.tSec0 + t));
+    return height - (load<f64>(p, 8) + s.oy - s.swingGround);
   }
   if (ev == EVB_SECTION) return -load<f64>(p, 24);
   if (ev == EVB_GROUND) return lowestFoot() - load<f64>(p, 8);
@@ -227,13 +296,14 @@ function evValue(ev: i32, leg: i32, p: usize, t: f64): f64 {
 
 // dg/dt at the state p with derivative d, for the Newton polish.
 function evRate(ev: i32, leg: i32, p: usize, d: usize, t: f64): f64 {
+  const s = S;
   if (ev == EVB_LIFTOFF) {
     if (lg(leg, LF_C) == 0.0) return legRdot(leg, p);
     return lg(leg, LF_K) * legRdot(leg, p) + lg(leg, LF_C) * legRddot(leg, p, d);
   }
   if (ev == EVB_MAX_COMPRESSION) return legRddot(leg, p, d);
   if (ev == EVB_TOUCHDOWN) {
-    return lg(leg, LF_L0) * legCos(attackAt(model, tSec0 + t)) * angleRateAt(model, tSec0 + t) - load<f64>(p, 24);
+    return lg(leg, LF_L0) * legCos(attackAt(s.model, s.tSec0 + t)) * angleRateAt(s.model, s.tSec0 + t) - load<f64>(p, 24);
   }
   if (ev == EVB_SECTION) return -load<f64>(d, 24);
   if (ev == EVB_GROUND) return -load<f64>(p, 24);
@@ -284,16 +354,17 @@ function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f6
 // stepper's error for |dt| <= 1e-7 of the time scale); a larger one re-takes the step to the
 // corrected time. Returns the polished step size (YN, K7 the polished state and derivative).
 function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
+  const s = S;
   let he = hEvent;
   for (let it = 0; it < 3; it++) {
-    const g = evValue(ev, leg, YN, tS + he);
-    const gd = evRate(ev, leg, YN, K7, tS + he);
+    const g = evValue(ev, leg, YN, s.tS + he);
+    const gd = evRate(ev, leg, YN, K7, s.tS + he);
     if (gd == 0.0 || !isFinite(gd)) break;
     const dt = -g / gd;
-    if (!(Math.abs(dt) > 1e-17 * timeScale)) break;
-    if (Math.abs(dt) > 1e-4 * timeScale || !(he + dt > 0.0)) break;
+    if (!(Math.abs(dt) > 1e-17 * s.timeScale)) break;
+    if (Math.abs(dt) > 1e-4 * s.timeScale || !(he + dt > 0.0)) break;
     he += dt;
-    if (Math.abs(dt) > 1e-7 * timeScale) {
+    if (Math.abs(dt) > 1e-7 * s.timeScale) {
       bstep(he);
       continue;
     }
@@ -322,9 +393,9 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
 // the shared step's, in the same order, and the fifth component only ever added 0 to the error
 // sum, so for finite states the result is bit for bit the shared step's; the fifth slots of
 // the buffers hold 0 (zeroFifth) for dense() and the polish.
-let undamped: bool = false;
 
 function step4(h: f64): f64 {
+  const s = S;
   setLastH(h);
   const y0 = load<f64>(Y0, 0);
   const y1 = load<f64>(Y0, 8);
@@ -339,7 +410,7 @@ function step4(h: f64): f64 {
   const bp2 = y2 + h * (A21 * a2);
   const bp3 = y3 + h * (A21 * a3);
   let b2: f64, b3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -371,7 +442,7 @@ function step4(h: f64): f64 {
   const cp2 = y2 + h * (A31 * a2 + A32 * b2);
   const cp3 = y3 + h * (A31 * a3 + A32 * b3);
   let c2: f64, c3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -403,7 +474,7 @@ function step4(h: f64): f64 {
   const dp2 = y2 + h * (A41 * a2 + A42 * b2 + A43 * c2);
   const dp3 = y3 + h * (A41 * a3 + A42 * b3 + A43 * c3);
   let d2: f64, d3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -435,7 +506,7 @@ function step4(h: f64): f64 {
   const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2 + A54 * d2);
   const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3 + A54 * d3);
   let e2: f64, e3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -467,7 +538,7 @@ function step4(h: f64): f64 {
   const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2 + A65 * e2);
   const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3 + A65 * e3);
   let f2: f64, f3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -507,7 +578,7 @@ function step4(h: f64): f64 {
   const gp2 = n2;
   const gp3 = n3;
   let g2: f64, g3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -538,28 +609,28 @@ function step4(h: f64): f64 {
   let finite: f64 = 0.0; // stays 0 (not NaN) only if every new component is finite
   {
     const e = h * (E1 * a0 + E3 * c0 + E4 * d0 + E5 * e0 + E6 * f0 + E7 * g0);
-    const sc = atol + rtol * Math.max(Math.abs(y0), Math.abs(n0));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y0), Math.abs(n0));
     const q = e / sc;
     sum += q * q;
     finite += n0 - n0;
   }
   {
     const e = h * (E1 * a1 + E3 * c1 + E4 * d1 + E5 * e1 + E6 * f1 + E7 * g1);
-    const sc = atol + rtol * Math.max(Math.abs(y1), Math.abs(n1));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y1), Math.abs(n1));
     const q = e / sc;
     sum += q * q;
     finite += n1 - n1;
   }
   {
     const e = h * (E1 * a2 + E3 * c2 + E4 * d2 + E5 * e2 + E6 * f2 + E7 * g2);
-    const sc = atol + rtol * Math.max(Math.abs(y2), Math.abs(n2));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y2), Math.abs(n2));
     const q = e / sc;
     sum += q * q;
     finite += n2 - n2;
   }
   {
     const e = h * (E1 * a3 + E3 * c3 + E4 * d3 + E5 * e3 + E6 * f3 + E7 * g3);
-    const sc = atol + rtol * Math.max(Math.abs(y3), Math.abs(n3));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y3), Math.abs(n3));
     const q = e / sc;
     sum += q * q;
     finite += n3 - n3;
@@ -576,6 +647,7 @@ function step4(h: f64): f64 {
 // older stages is formed while the newest is still being computed. Rounding differs from
 // step4's at the level of the last bit; the order of the method is the same.
 function step4w(h: f64): f64 {
+  const s = S;
   const hA21 = h * A21;
   const hA32 = h * A32;
   const hA43 = h * A43;
@@ -596,7 +668,7 @@ function step4w(h: f64): f64 {
   const bp2 = y2 + hA21 * a2;
   const bp3 = y3 + hA21 * a3;
   let b2: f64, b3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -628,7 +700,7 @@ function step4w(h: f64): f64 {
   const cp2 = y2 + h * (A31 * a2) + hA32 * b2;
   const cp3 = y3 + h * (A31 * a3) + hA32 * b3;
   let c2: f64, c3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -660,7 +732,7 @@ function step4w(h: f64): f64 {
   const dp2 = y2 + h * (A41 * a2 + A42 * b2) + hA43 * c2;
   const dp3 = y3 + h * (A41 * a3 + A42 * b3) + hA43 * c3;
   let d2: f64, d3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -692,7 +764,7 @@ function step4w(h: f64): f64 {
   const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2) + hA54 * d2;
   const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3) + hA54 * d3;
   let e2: f64, e3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -724,7 +796,7 @@ function step4w(h: f64): f64 {
   const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2) + hA65 * e2;
   const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3) + hA65 * e3;
   let f2: f64, f3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -764,7 +836,7 @@ function step4w(h: f64): f64 {
   const gp2 = n2;
   const gp3 = n3;
   let g2: f64, g3: f64;
-  if (single) {
+  if (s.single) {
     const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
     const inv = 1.0 / r;
     const force = stanceK * (sysLeg - r);
@@ -795,28 +867,28 @@ function step4w(h: f64): f64 {
   let finite: f64 = 0.0; // stays 0 (not NaN) only if every new component is finite
   {
     const e = h * (E1 * a0 + E3 * c0 + E4 * d0 + E5 * e0 + E6 * f0 + E7 * g0);
-    const sc = atol + rtol * Math.max(Math.abs(y0), Math.abs(n0));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y0), Math.abs(n0));
     const q = e / sc;
     sum += q * q;
     finite += n0 - n0;
   }
   {
     const e = h * (E1 * a1 + E3 * c1 + E4 * d1 + E5 * e1 + E6 * f1 + E7 * g1);
-    const sc = atol + rtol * Math.max(Math.abs(y1), Math.abs(n1));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y1), Math.abs(n1));
     const q = e / sc;
     sum += q * q;
     finite += n1 - n1;
   }
   {
     const e = h * (E1 * a2 + E3 * c2 + E4 * d2 + E5 * e2 + E6 * f2 + E7 * g2);
-    const sc = atol + rtol * Math.max(Math.abs(y2), Math.abs(n2));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y2), Math.abs(n2));
     const q = e / sc;
     sum += q * q;
     finite += n2 - n2;
   }
   {
     const e = h * (E1 * a3 + E3 * c3 + E4 * d3 + E5 * e3 + E6 * f3 + E7 * g3);
-    const sc = atol + rtol * Math.max(Math.abs(y3), Math.abs(n3));
+    const sc = s.atol + s.rtol * Math.max(Math.abs(y3), Math.abs(n3));
     const q = e / sc;
     sum += q * q;
     finite += n3 - n3;
@@ -843,11 +915,13 @@ function zeroFifth(): void {
 
 // One step of the contact: step4 with undamped legs, else the shared step.
 @inline function bstep(hh: f64): f64 {
-  return undamped ? (strideWalking ? step4w(hh) : step4(hh)) : step(hh, rtol, atol);
+  const s = S;
+  return s.undamped ? (s.strideWalking ? step4w(hh) : step4(hh)) : step(hh, s.rtol, s.atol);
 }
 
 // Set the right-hand side for the legs in stance (the origin is a stance foot).
 function configure(): void {
+  const s = S;
   const on0 = lg(0, LF_ON) != 0.0;
   const on1 = lg(1, LF_ON) != 0.0;
   let kMin: f64 = Infinity;
@@ -860,20 +934,20 @@ function configure(): void {
     if (k < kMin) kMin = k;
     if (lg(i, LF_C) > 0.0) damped = true;
   }
-  timeScale = Math.sqrt(mass / kMin);
-  groundRel = lowestFoot();
+  s.timeScale = Math.sqrt(s.mass / kMin);
+  s.groundRel = lowestFoot();
   if (on0 && on1) {
-    single = false;
+    s.single = false;
     setBiped(
-      mass, gravity,
+      s.mass, s.gravity,
       footRx(0), footRy(0), lg(0, LF_L0), lg(0, LF_K), lg(0, LF_C),
       footRx(1), footRy(1), lg(1, LF_L0), lg(1, LF_K), lg(1, LF_C),
     );
   } else {
-    single = true;
-    stanceLeg = on0 ? 0 : 1;
-    swing = 1 - stanceLeg;
-    setStance(mass, lg(stanceLeg, LF_L0), lg(stanceLeg, LF_K), lg(stanceLeg, LF_C), gravity);
+    s.single = true;
+    s.stanceLeg = on0 ? 0 : 1;
+    s.swing = 1 - s.stanceLeg;
+    setStance(s.mass, lg(s.stanceLeg, LF_L0), lg(s.stanceLeg, LF_K), lg(s.stanceLeg, LF_C), s.gravity);
   }
   setErrorDimension(damped ? 5 : 4);
 }
@@ -887,20 +961,22 @@ let stepFx: f64 = 0.0;
 let stepFy: f64 = 0.0;
 
 function notePeaks(): void {
+  const s = S;
   if (stepForce0 > lg(0, LF_PEAK)) ls(0, LF_PEAK, stepForce0);
   if (stepForce1 > lg(1, LF_PEAK)) ls(1, LF_PEAK, stepForce1);
   if (stepComp0 > lg(0, LF_MAXCOMP)) ls(0, LF_MAXCOMP, stepComp0);
   if (stepComp1 > lg(1, LF_MAXCOMP)) ls(1, LF_MAXCOMP, stepComp1);
-  if (stepFy > peakVertical) peakVertical = stepFy;
+  if (stepFy > s.peakVertical) s.peakVertical = stepFy;
   if (stepFy > 0.0) {
     const fr = Math.abs(stepFx / stepFy);
-    if (fr > peakFriction) peakFriction = fr;
+    if (fr > s.peakFriction) s.peakFriction = fr;
   }
 }
 
 // Peak leg forces, compressions, summed vertical force and friction ratio at the state p: one
 // square root per leg in stance (this runs at every accepted step).
 function noteForces(p: usize): void {
+  const s = S;
   const px = load<f64>(p, 0);
   const py = load<f64>(p, 8);
   const vx = load<f64>(p, 16);
@@ -920,38 +996,39 @@ function noteForces(p: usize): void {
     fx += f * dx * inv;
     fy += f * dy * inv;
   }
-  if (fy > peakVertical) peakVertical = fy;
+  if (fy > s.peakVertical) s.peakVertical = fy;
   if (fy > 0.0) {
     const fr = Math.abs(fx / fy);
-    if (fr > peakFriction) peakFriction = fr;
+    if (fr > s.peakFriction) s.peakFriction = fr;
   }
 }
 
 // Trace samples inside the last accepted step (from tS, size hh) up to the fraction thetaEnd.
-let traceT0: f64 = 0.0; // absolute time of the stride's section
 function traceContact(hh: f64, thetaEnd: f64): void {
-  const tEnd = traceT0 + tSec0 + tS + thetaEnd * hh;
+  const s = S;
+  const tEnd = s.traceT0 + s.tSec0 + s.tS + thetaEnd * hh;
   for (;;) {
     const ts = traceNext(tEnd);
     if (ts < 0.0) return;
-    const theta = (ts - traceT0 - tSec0 - tS) / hh;
+    const theta = (ts - s.traceT0 - s.tSec0 - s.tS) / hh;
     if (theta < 0.0) continue;
     dense(theta);
-    emitAt(ts, YI, ts - traceT0);
+    emitAt(ts, YI, ts - s.traceT0);
   }
 }
 
 // One sample of the body at p (relative to the origin) at absolute time ts.
 function emitAt(ts: f64, p: usize, tSec: f64): void {
-  const x = ox + load<f64>(p, 0);
-  const y = oy + load<f64>(p, 8);
-  const a = attackAt(model, tSec);
+  const s = S;
+  const x = s.ox + load<f64>(p, 0);
+  const y = s.oy + load<f64>(p, 8);
+  const a = attackAt(s.model, tSec);
   let f0x: f64, f0y: f64, f1x: f64, f1y: f64;
   if (lg(0, LF_ON) != 0.0) { f0x = lg(0, LF_FX); f0y = lg(0, LF_FY); }
   else { f0x = x + lg(0, LF_L0) * legCos(a); f0y = y - lg(0, LF_L0) * legSin(a); }
   if (lg(1, LF_ON) != 0.0) { f1x = lg(1, LF_FX); f1y = lg(1, LF_FY); }
   else { f1x = x + lg(1, LF_L0) * legCos(a); f1y = y - lg(1, LF_L0) * legSin(a); }
-  const phase = single ? PHASE_STANCE : PHASE_DOUBLE;
+  const phase = s.single ? PHASE_STANCE : PHASE_DOUBLE;
   emit2(ts, x, y, load<f64>(p, 16), load<f64>(p, 24), f0x, f0y, legForceAt(0, p), f1x, f1y, legForceAt(1, p), phase);
 }
 
@@ -964,10 +1041,10 @@ function traceFlightB(t0: f64, t1: f64, x0: f64, y0: f64, vx: f64, vy0: f64, tAn
     const s = ts - t0;
     if (s < 0.0) continue;
     const x = x0 + vx * s;
-    const y = y0 + vy0 * s - 0.5 * gravity * s * s;
-    const a = attackAt(model, hold ? tAngle0 : tAngle0 + s);
+    const y = y0 + vy0 * s - 0.5 * S.gravity * s * s;
+    const a = attackAt(S.model, hold ? tAngle0 : tAngle0 + s);
     emit2(
-      ts, x, y, vx, vy0 - gravity * s,
+      ts, x, y, vx, vy0 - S.gravity * s,
       x + lg(0, LF_L0) * legCos(a), y - lg(0, LF_L0) * legSin(a), 0.0,
       x + lg(1, LF_L0) * legCos(a), y - lg(1, LF_L0) * legSin(a), 0.0, PHASE_FLIGHT,
     );
@@ -975,352 +1052,376 @@ function traceFlightB(t0: f64, t1: f64, x0: f64, y0: f64, vx: f64, vy0: f64, tAn
 }
 
 // Event values at the start of a contact piece (Y0).
-let gl00: f64 = 0.0; // liftoff, leg 0 / 1
-let gl01: f64 = 0.0;
-let gm00: f64 = 0.0; // r', leg 0 / 1
-let gm01: f64 = 0.0;
-let gt0: f64 = 0.0; // touchdown of the swing leg (armed) or midstance (not yet armed)
-let gs0: f64 = 0.0; // section
-let gg0: f64 = 0.0; // body on the ground
-let gb0: f64 = 0.0; // backward
 
 function startValues(): void {
-  gl00 = lg(0, LF_ON) != 0.0 ? evValue(EVB_LIFTOFF, 0, Y0, tS) : 0.0;
-  gl01 = lg(1, LF_ON) != 0.0 ? evValue(EVB_LIFTOFF, 1, Y0, tS) : 0.0;
-  gm00 = lg(0, LF_ON) != 0.0 ? legRdot(0, Y0) : 0.0;
-  gm01 = lg(1, LF_ON) != 0.0 ? legRdot(1, Y0) : 0.0;
-  if (single) {
-    armed = armed || evValue(EVB_MIDSTANCE, stanceLeg, Y0, tS) >= 0.0;
-    gt0 = armed ? evValue(EVB_TOUCHDOWN, swing, Y0, tS) : evValue(EVB_MIDSTANCE, stanceLeg, Y0, tS);
+  const s = S;
+  s.gl00 = lg(0, LF_ON) != 0.0 ? evValue(EVB_LIFTOFF, 0, Y0, s.tS) : 0.0;
+  s.gl01 = lg(1, LF_ON) != 0.0 ? evValue(EVB_LIFTOFF, 1, Y0, s.tS) : 0.0;
+  s.gm00 = lg(0, LF_ON) != 0.0 ? legRdot(0, Y0) : 0.0;
+  s.gm01 = lg(1, LF_ON) != 0.0 ? legRdot(1, Y0) : 0.0;
+  if (s.single) {
+    s.armed = s.armed || evValue(EVB_MIDSTANCE, s.stanceLeg, Y0, s.tS) >= 0.0;
+    s.gt0 = s.armed ? evValue(EVB_TOUCHDOWN, s.swing, Y0, s.tS) : evValue(EVB_MIDSTANCE, s.stanceLeg, Y0, s.tS);
   }
-  gs0 = evValue(EVB_SECTION, 0, Y0, tS);
-  gg0 = evValue(EVB_GROUND, 0, Y0, tS);
-  gb0 = evValue(EVB_BACKWARD, 0, Y0, tS);
+  s.gs0 = evValue(EVB_SECTION, 0, Y0, s.tS);
+  s.gg0 = evValue(EVB_GROUND, 0, Y0, s.tS);
+  s.gb0 = evValue(EVB_BACKWARD, 0, Y0, s.tS);
 }
 
+// The contact loop's own state, kept in globals (not locals) so that rollouts can take turns
+// between steps (runBipedBatch): the record, the retry bookkeeping, the step floor.
+const CONTACT_GO: i32 = -3; // the contact goes on: take a step of size h
+
 // Integrate the contact phases from Y0 (time tS since the section) until the stride's section,
-// a flight, or a failure. Returns END_SECTION, END_FLIGHT or a STATUS_* code.
+// a flight, or a failure. Returns END_SECTION, END_FLIGHT or a STATUS_* code. The loop is cut
+// at the step: contactBegin, then contactBefore (CONTACT_GO or the end), the step of size h,
+// contactAfter with its error (CONTACT_GO or the end), and so on.
 function runContact(rec: usize): i32 {
-  if (undamped) zeroFifth();
-  configure();
-  resetController();
-  rhs(Y0, K1);
-  startValues();
-  let afterReject = false;
-  let nonFinite = 0;
-  let stepsHere = 0;
-  const hMin = 1e-13 * timeScale;
-  noteForces(Y0);
+  contactBegin(rec);
   for (;;) {
-    if (stepsHere >= maxSteps) return STATUS_STEP_LIMIT;
-    if (tS > tContactLimit) return single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
-    if (h < hMin) return STATUS_STEP_UNDERFLOW;
-    const err = bstep(h);
-    if (isNaN(err)) {
-      rejected++;
-      stepsHere++;
-      if (++nonFinite > 40) return STATUS_NON_FINITE;
-      h *= 0.1;
-      afterReject = true;
-      continue;
-    }
-    if (err > 1.0) {
-      rejected++;
-      stepsHere++;
-      h *= rejectFactor(err);
-      afterReject = true;
-      continue;
-    }
-    if (firstStep) {
-      firstH = h;
-      firstStep = false;
-    }
-    steps++;
-    stepsHere++;
-
-    // Event values at the step end.
-    let gl10: f64 = 0.0;
-    let gl11: f64 = 0.0;
-    let gm10: f64 = 0.0;
-    let gm11: f64 = 0.0;
-    if (single) {
-      // exactly the stance driver's arithmetic (stance.ts), foot at the origin
-      const npx = load<f64>(YN, 0);
-      const npy = load<f64>(YN, 8);
-      const nvx = load<f64>(YN, 16);
-      const nr = Math.sqrt(npx * npx + npy * npy);
-      const nrdot = (npx * nvx + npy * load<f64>(YN, 24)) / nr;
-      const leg = lg(stanceLeg, LF_L0);
-      const c = lg(stanceLeg, LF_C);
-      const nforce = lg(stanceLeg, LF_K) * (leg - nr) - c * nrdot;
-      const gl = c > 0.0 ? -nforce : nr - leg;
-      if (stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
-      stepForce0 = stanceLeg == 0 ? nforce : 0.0;
-      stepForce1 = stanceLeg == 1 ? nforce : 0.0;
-      stepComp0 = stanceLeg == 0 ? leg - nr : 0.0;
-      stepComp1 = stanceLeg == 1 ? leg - nr : 0.0;
-      stepFx = (nforce * npx) / nr;
-      stepFy = (nforce * npy) / nr;
-    } else {
-      // one square root per leg (the same values as evValue and legRdot)
-      const npx = load<f64>(YN, 0);
-      const npy = load<f64>(YN, 8);
-      const nvx = load<f64>(YN, 16);
-      const nvy = load<f64>(YN, 24);
-      const dx0 = npx - footRx(0);
-      const dy0 = npy - footRy(0);
-      const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-      gm10 = (dx0 * nvx + dy0 * nvy) / r0;
-      gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
-      const dx1 = npx - footRx(1);
-      const dy1 = npy - footRy(1);
-      const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-      gm11 = (dx1 * nvx + dy1 * nvy) / r1;
-      gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
-      stepComp0 = lg(0, LF_L0) - r0;
-      stepComp1 = lg(1, LF_L0) - r1;
-      stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
-      stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
-      stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
-      stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
-    }
-    const gs1 = -load<f64>(YN, 24);
-    const gg1 = groundRel - load<f64>(YN, 8);
-    const gb1 = -load<f64>(YN, 16);
-    let gt1: f64 = 0.0;
-    let armsHere = false;
-
-    let stopTheta: f64 = 2.0;
-    let stopEvent = -1;
-    let stopLeg = 0;
-    // maximum compression of each leg: the first splits the stance with a split schedule; a leg
-    // without one has every local maximum located (its force humps, e.g. a walking leg's two)
-    let mTheta0: f64 = 2.0;
-    let mTheta1: f64 = 2.0;
-    if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm00, gm10)) {
-      mTheta0 = single ? locate(EV_MAX_COMPRESSION, gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, gm00, gm10, tS, h);
-      if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
-    }
-    if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, gm01, gm11)) {
-      mTheta1 = single ? locate(EV_MAX_COMPRESSION, gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, gm01, gm11, tS, h);
-      if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
-    }
-    if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl00, gl10)) {
-      const th = single ? locate(EV_LIFTOFF, gl00, gl10, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, gl00, gl10, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
-    }
-    if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, gl01, gl11)) {
-      const th = single ? locate(EV_LIFTOFF, gl01, gl11, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, gl01, gl11, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
-    }
-    if (crossesB(EVB_GROUND, gg0, gg1)) {
-      const th = locateB(EVB_GROUND, 0, 0.0, gg0, gg1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_GROUND; }
-    }
-    if (crossesB(EVB_BACKWARD, gb0, gb1)) {
-      const th = locateB(EVB_BACKWARD, 0, 0.0, gb0, gb1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_BACKWARD; }
-    }
-    if (single && sectionArmed && crossesB(EVB_SECTION, gs0, gs1)) {
-      const th = locateB(EVB_SECTION, 0, 0.0, gs0, gs1, tS, h);
-      if (th < stopTheta) { stopTheta = th; stopEvent = EVB_SECTION; }
-    }
-    if (single) {
-      // The swing leg: armed once the body passes midstance of the stance leg, then touches
-      // down at the next downward crossing of its touchdown height, the body descending.
-      let from: f64 = 0.0;
-      let gFrom = gt0;
-      let look = armed;
-      if (!armed) {
-        const gmid1 = load<f64>(YN, 0) - footRx(stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
-        if (crossesB(EVB_MIDSTANCE, gt0, gmid1)) {
-          from = locateB(EVB_MIDSTANCE, stanceLeg, 0.0, gt0, gmid1, tS, h);
-          dense(from);
-          gFrom = evValue(EVB_TOUCHDOWN, swing, YI, tS + from * h);
-          armsHere = true;
-          look = true;
-        } else {
-          gt1 = gmid1;
-        }
-      }
-      if (look) {
-        // evValue(EVB_TOUCHDOWN, ...), the fixed angle's height written in
-        gt1 = fixedAngle
-          ? lg(swing, LF_TOUCH_HEIGHT) - (load<f64>(YN, 8) + oy - swingGround)
-          : evValue(EVB_TOUCHDOWN, swing, YN, tS + h);
-        if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
-          const th = locateB(EVB_TOUCHDOWN, swing, from, gFrom, gt1, tS, h);
-          dense(th);
-          if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = swing; }
-        }
-      }
-    }
-
-    // Record-only maximum compressions before the stop.
-    if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
-      dense(mTheta0);
-      noteForces(YI);
-      ls(0, LF_COMPRESSING, 0.0);
-    }
-    if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
-      dense(mTheta1);
-      noteForces(YI);
-      ls(1, LF_COMPRESSING, 0.0);
-    }
-    if (tracing) traceContact(h, stopTheta < 1.0 ? stopTheta : 1.0);
-
-    if (stopEvent < 0) {
-      notePeaks();
-      tS += h;
-      advance();
-      gl00 = gl10;
-      gl01 = gl11;
-      gm00 = gm10;
-      gm01 = gm11;
-      gs0 = gs1;
-      gg0 = gg1;
-      gb0 = gb1;
-      if (single) {
-        if (armsHere) armed = true;
-        gt0 = gt1;
-      }
-      h *= acceptFactor(err, afterReject);
-      afterReject = false;
-      continue;
-    }
-
-    // The event: re-take the step to the located time on the true solution, then polish.
-    const hNext = h * acceptFactor(err, afterReject);
-    let hEvent = stopTheta * h;
-    if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
-      bstep(hEvent);
-      steps++;
-      stepsHere++;
-    }
-    let tEvent: f64;
-    if (single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
-      // the stance driver's own polish (events.ts), on the single-leg equations
-      tEvent = tS + hEvent;
-      tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, timeScale);
-    } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
-      tEvent = tS + hEvent;
-    } else {
-      hEvent = polishB(stopEvent, stopLeg, hEvent);
-      tEvent = tS + hEvent;
-    }
-    if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
-    if (stopEvent == EVB_BACKWARD) return single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
-    noteForces(YN);
-
-    if (stopEvent == EVB_SECTION) {
-      saveEnd(tEvent, stanceLeg);
-      return END_SECTION;
-    }
-    if (stopEvent == EVB_MAX_COMPRESSION) {
-      ls(stopLeg, LF_COMPRESSING, 0.0);
-      ls(stopLeg, LF_K, lg(stopLeg, LF_KE));
-      if (single) setStiffness(lg(stopLeg, LF_KE));
-      else setBipedStiffness(stopLeg, lg(stopLeg, LF_KE));
-      memory.copy(Y0, YN, 40);
-      rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
-      tS = tEvent;
-      startValues();
-      h = hNext;
-      afterReject = false;
-      continue;
-    }
-    if (stopEvent == EVB_LIFTOFF) {
-      ls(stopLeg, LF_ON, 0.0);
-      ls(stopLeg, LF_LO, tSec0 + tEvent);
-      if (single) {
-        saveEnd(tEvent, stopLeg);
-        recordLiftoff(rec, stopLeg);
-        return END_FLIGHT;
-      }
-      recordLiftoff(rec, stopLeg);
-      // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
-      // extending, within the event location's accuracy.
-      const o = 1 - stopLeg;
-      if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
-        ls(o, LF_ON, 0.0);
-        ls(o, LF_LO, tSec0 + tEvent);
-        put(rec, R_DOUBLE_END, tSec0 + tEvent);
-        saveEnd(tEvent, stopLeg);
-        endBoth = true;
-        return END_FLIGHT;
-      }
-      // double -> single support on the other leg; the frame moves to its foot
-      put(rec, R_DOUBLE_END, tSec0 + tEvent);
-      const m = 1 - stopLeg;
-      const sx = footRx(m);
-      const sy = footRy(m);
-      store<f64>(YN, load<f64>(YN, 0) - sx, 0);
-      store<f64>(YN, load<f64>(YN, 8) - sy, 8);
-      ox = lg(m, LF_FX);
-      oy = lg(m, LF_FY);
-      sectionArmed = strideWalking && touchedDown && !isNaN(lg(m, LF_TD));
-      armed = false;
-    } else {
-      // EVB_TOUCHDOWN of the swing leg
-      if (!strideWalking) return STATUS_GAIT_CHANGED;
-      if (touchedDown) return STATUS_NO_SECTION;
-      const j = stopLeg;
-      const tTd = tSec0 + tEvent;
-      const a = attackAt(model, tTd);
-      if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
-      if (a < minAttack) minAttack = a;
-      if (a > maxAttack) maxAttack = a;
-      const px = load<f64>(YN, 0);
-      ls(j, LF_ON, 1.0);
-      ls(j, LF_FX, ox + px + lg(j, LF_L0) * legCos(a));
-      ls(j, LF_FY, swingGround);
-      chooseStiffness(model, tTd, lg(j, LF_KSCALE));
-      ls(j, LF_KC, stanceKc);
-      ls(j, LF_KE, stanceKe);
-      ls(j, LF_K, stanceKc);
-      ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-      ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tTd);
-      touchedDown = true;
-      put(rec, R_DOUBLE_START, tTd);
-      put(rec, R_APEX_TO_TOUCHDOWN, tTd);
-      put(rec, R_ATTACK, a);
-      put(rec, R_FOOT_X, lg(j, LF_FX));
-      put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
-      put(rec, R_TOUCHDOWN_VY, load<f64>(YN, 24));
-      put(rec, R_K_COMPRESSION, stanceKc);
-      put(rec, R_K_EXTENSION, stanceKe);
-    }
-    memory.copy(Y0, YN, 40);
-    tS = tEvent;
-    configure();
-    rhs(Y0, K1);
-    startValues();
-    h = hNext;
-    afterReject = false;
+    let r = contactBefore();
+    if (r != CONTACT_GO) return r;
+    r = contactAfter(bstep(S.h));
+    if (r != CONTACT_GO) return r;
   }
   return STATUS_STEP_LIMIT; // not reached: the loop returns
 }
 
+function contactBegin(rec: usize): void {
+  const s = S;
+  s.contactRec = rec;
+  if (s.undamped) zeroFifth();
+  configure();
+  resetController();
+  rhs(Y0, K1);
+  startValues();
+  s.afterReject = false;
+  s.nonFinite = 0;
+  s.stepsHere = 0;
+  s.hMin = 1e-13 * s.timeScale;
+  noteForces(Y0);
+}
+
+// The checks before each step: CONTACT_GO, or the status that ends the contact.
+function contactBefore(): i32 {
+  const s = S;
+  if (s.stepsHere >= s.maxSteps) return STATUS_STEP_LIMIT;
+  if (s.tS > s.tContactLimit) return s.single ? STATUS_NO_LIFTOFF : STATUS_STALLED;
+  if (s.h < s.hMin) return STATUS_STEP_UNDERFLOW;
+  return CONTACT_GO;
+}
+
+// After a step of size h with error err (bstep's value): rejection, or acceptance with the
+// events inside the step. CONTACT_GO, or END_SECTION, END_FLIGHT or a STATUS_* code.
+function contactAfter(err: f64): i32 {
+  const s = S;
+  const rec = s.contactRec;
+  if (isNaN(err)) {
+    s.rejected++;
+    s.stepsHere++;
+    if (++s.nonFinite > 40) return STATUS_NON_FINITE;
+    s.h *= 0.1;
+    s.afterReject = true;
+    return CONTACT_GO;
+  }
+  if (err > 1.0) {
+    s.rejected++;
+    s.stepsHere++;
+    s.h *= rejectFactor(err);
+    s.afterReject = true;
+    return CONTACT_GO;
+  }
+  if (s.firstStep) {
+    s.firstH = s.h;
+    s.firstStep = false;
+  }
+  s.steps++;
+  s.stepsHere++;
+
+  // Event values at the step end.
+  let gl10: f64 = 0.0;
+  let gl11: f64 = 0.0;
+  let gm10: f64 = 0.0;
+  let gm11: f64 = 0.0;
+  if (s.single) {
+    // exactly the stance driver's arithmetic (stance.ts), foot at the origin
+    const npx = load<f64>(YN, 0);
+    const npy = load<f64>(YN, 8);
+    const nvx = load<f64>(YN, 16);
+    const nr = Math.sqrt(npx * npx + npy * npy);
+    const nrdot = (npx * nvx + npy * load<f64>(YN, 24)) / nr;
+    const leg = lg(s.stanceLeg, LF_L0);
+    const c = lg(s.stanceLeg, LF_C);
+    const nforce = lg(s.stanceLeg, LF_K) * (leg - nr) - c * nrdot;
+    const gl = c > 0.0 ? -nforce : nr - leg;
+    if (s.stanceLeg == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
+    stepForce0 = s.stanceLeg == 0 ? nforce : 0.0;
+    stepForce1 = s.stanceLeg == 1 ? nforce : 0.0;
+    stepComp0 = s.stanceLeg == 0 ? leg - nr : 0.0;
+    stepComp1 = s.stanceLeg == 1 ? leg - nr : 0.0;
+    stepFx = (nforce * npx) / nr;
+    stepFy = (nforce * npy) / nr;
+  } else {
+    // one square root per leg (the same values as evValue and legRdot)
+    const npx = load<f64>(YN, 0);
+    const npy = load<f64>(YN, 8);
+    const nvx = load<f64>(YN, 16);
+    const nvy = load<f64>(YN, 24);
+    const dx0 = npx - footRx(0);
+    const dy0 = npy - footRy(0);
+    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
+    gm10 = (dx0 * nvx + dy0 * nvy) / r0;
+    gl10 = lg(0, LF_C) == 0.0 ? r0 - lg(0, LF_L0) : -(lg(0, LF_K) * (lg(0, LF_L0) - r0) - lg(0, LF_C) * gm10);
+    const dx1 = npx - footRx(1);
+    const dy1 = npy - footRy(1);
+    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
+    gm11 = (dx1 * nvx + dy1 * nvy) / r1;
+    gl11 = lg(1, LF_C) == 0.0 ? r1 - lg(1, LF_L0) : -(lg(1, LF_K) * (lg(1, LF_L0) - r1) - lg(1, LF_C) * gm11);
+    stepComp0 = lg(0, LF_L0) - r0;
+    stepComp1 = lg(1, LF_L0) - r1;
+    stepForce0 = lg(0, LF_K) * stepComp0 - lg(0, LF_C) * gm10;
+    stepForce1 = lg(1, LF_K) * stepComp1 - lg(1, LF_C) * gm11;
+    stepFx = (stepForce0 * dx0) / r0 + (stepForce1 * dx1) / r1;
+    stepFy = (stepForce0 * dy0) / r0 + (stepForce1 * dy1) / r1;
+  }
+  const gs1 = -load<f64>(YN, 24);
+  const gg1 = s.groundRel - load<f64>(YN, 8);
+  const gb1 = -load<f64>(YN, 16);
+  let gt1: f64 = 0.0;
+  let armsHere = false;
+
+  let stopTheta: f64 = 2.0;
+  let stopEvent = -1;
+  let stopLeg = 0;
+  // maximum compression of each leg: the first splits the stance with a split schedule; a leg
+  // without one has every local maximum located (its force humps, e.g. a walking leg's two)
+  let mTheta0: f64 = 2.0;
+  let mTheta1: f64 = 2.0;
+  if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm00, gm10)) {
+    mTheta0 = s.single ? locate(EV_MAX_COMPRESSION, s.gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, s.gm00, gm10, s.tS, s.h);
+    if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
+  }
+  if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm01, gm11)) {
+    mTheta1 = s.single ? locate(EV_MAX_COMPRESSION, s.gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, s.gm01, gm11, s.tS, s.h);
+    if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
+  }
+  if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl00, gl10)) {
+    const th = s.single ? locate(EV_LIFTOFF, s.gl00, gl10, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, s.gl00, gl10, s.tS, s.h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
+  }
+  if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl01, gl11)) {
+    const th = s.single ? locate(EV_LIFTOFF, s.gl01, gl11, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, s.gl01, gl11, s.tS, s.h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
+  }
+  if (crossesB(EVB_GROUND, s.gg0, gg1)) {
+    const th = locateB(EVB_GROUND, 0, 0.0, s.gg0, gg1, s.tS, s.h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_GROUND; }
+  }
+  if (crossesB(EVB_BACKWARD, s.gb0, gb1)) {
+    const th = locateB(EVB_BACKWARD, 0, 0.0, s.gb0, gb1, s.tS, s.h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_BACKWARD; }
+  }
+  if (s.single && s.sectionArmed && crossesB(EVB_SECTION, s.gs0, gs1)) {
+    const th = locateB(EVB_SECTION, 0, 0.0, s.gs0, gs1, s.tS, s.h);
+    if (th < stopTheta) { stopTheta = th; stopEvent = EVB_SECTION; }
+  }
+  if (s.single) {
+    // The swing leg: armed once the body passes midstance of the stance leg, then touches
+    // down at the next downward crossing of its touchdown height, the body descending.
+    let from: f64 = 0.0;
+    let gFrom = s.gt0;
+    let look = s.armed;
+    if (!s.armed) {
+      const gmid1 = load<f64>(YN, 0) - footRx(s.stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
+      if (crossesB(EVB_MIDSTANCE, s.gt0, gmid1)) {
+        from = locateB(EVB_MIDSTANCE, s.stanceLeg, 0.0, s.gt0, gmid1, s.tS, s.h);
+        dense(from);
+        gFrom = evValue(EVB_TOUCHDOWN, s.swing, YI, s.tS + from * s.h);
+        armsHere = true;
+        look = true;
+      } else {
+        gt1 = gmid1;
+      }
+    }
+    if (look) {
+      // evValue(EVB_TOUCHDOWN, ...), the fixed angle's height written in
+      gt1 = s.fixedAngle
+        ? lg(s.swing, LF_TOUCH_HEIGHT) - (load<f64>(YN, 8) + s.oy - s.swingGround)
+        : evValue(EVB_TOUCHDOWN, s.swing, YN, s.tS + s.h);
+      if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
+        const th = locateB(EVB_TOUCHDOWN, s.swing, from, gFrom, gt1, s.tS, s.h);
+        dense(th);
+        if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = s.swing; }
+      }
+    }
+  }
+
+  // Record-only maximum compressions before the stop.
+  if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
+    dense(mTheta0);
+    noteForces(YI);
+    ls(0, LF_COMPRESSING, 0.0);
+  }
+  if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
+    dense(mTheta1);
+    noteForces(YI);
+    ls(1, LF_COMPRESSING, 0.0);
+  }
+  if (tracing) traceContact(s.h, stopTheta < 1.0 ? stopTheta : 1.0);
+
+  if (stopEvent < 0) {
+    notePeaks();
+    s.tS += s.h;
+    advance();
+    s.gl00 = gl10;
+    s.gl01 = gl11;
+    s.gm00 = gm10;
+    s.gm01 = gm11;
+    s.gs0 = gs1;
+    s.gg0 = gg1;
+    s.gb0 = gb1;
+    if (s.single) {
+      if (armsHere) s.armed = true;
+      s.gt0 = gt1;
+    }
+    s.h *= acceptFactor(err, s.afterReject);
+    s.afterReject = false;
+    return CONTACT_GO;
+  }
+
+  // The event: re-take the step to the located time on the true solution, then polish.
+  const hNext = s.h * acceptFactor(err, s.afterReject);
+  let hEvent = stopTheta * s.h;
+  if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
+    bstep(hEvent);
+    s.steps++;
+    s.stepsHere++;
+  }
+  let tEvent: f64;
+  if (s.single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
+    // the stance driver's own polish (events.ts), on the single-leg equations
+    tEvent = s.tS + hEvent;
+    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, s.timeScale);
+  } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
+    tEvent = s.tS + hEvent;
+  } else {
+    hEvent = polishB(stopEvent, stopLeg, hEvent);
+    tEvent = s.tS + hEvent;
+  }
+  if (stopEvent == EVB_GROUND) return STATUS_BODY_HIT_GROUND;
+  if (stopEvent == EVB_BACKWARD) return s.single ? STATUS_FELL_BACKWARD : STATUS_STALLED;
+  noteForces(YN);
+
+  if (stopEvent == EVB_SECTION) {
+    saveEnd(tEvent, s.stanceLeg);
+    return END_SECTION;
+  }
+  if (stopEvent == EVB_MAX_COMPRESSION) {
+    ls(stopLeg, LF_COMPRESSING, 0.0);
+    ls(stopLeg, LF_K, lg(stopLeg, LF_KE));
+    if (s.single) setStiffness(lg(stopLeg, LF_KE));
+    else setBipedStiffness(stopLeg, lg(stopLeg, LF_KE));
+    memory.copy(Y0, YN, 40);
+    rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
+    s.tS = tEvent;
+    startValues();
+    s.h = hNext;
+    s.afterReject = false;
+    return CONTACT_GO;
+  }
+  if (stopEvent == EVB_LIFTOFF) {
+    ls(stopLeg, LF_ON, 0.0);
+    ls(stopLeg, LF_LO, s.tSec0 + tEvent);
+    if (s.single) {
+      saveEnd(tEvent, stopLeg);
+      recordLiftoff(rec, stopLeg);
+      return END_FLIGHT;
+    }
+    recordLiftoff(rec, stopLeg);
+    // Two legs leaving together (a hop on both legs): the other leg is back at rest length,
+    // extending, within the event location's accuracy.
+    const o = 1 - stopLeg;
+    if (evValue(EVB_LIFTOFF, o, YN, tEvent) >= -1e-9 * lg(o, LF_L0) && legRdot(o, YN) > 0.0) {
+      ls(o, LF_ON, 0.0);
+      ls(o, LF_LO, s.tSec0 + tEvent);
+      put(rec, R_DOUBLE_END, s.tSec0 + tEvent);
+      saveEnd(tEvent, stopLeg);
+      s.endBoth = true;
+      return END_FLIGHT;
+    }
+    // double -> single support on the other leg; the frame moves to its foot
+    put(rec, R_DOUBLE_END, s.tSec0 + tEvent);
+    const m = 1 - stopLeg;
+    const sx = footRx(m);
+    const sy = footRy(m);
+    store<f64>(YN, load<f64>(YN, 0) - sx, 0);
+    store<f64>(YN, load<f64>(YN, 8) - sy, 8);
+    s.ox = lg(m, LF_FX);
+    s.oy = lg(m, LF_FY);
+    s.sectionArmed = s.strideWalking && s.touchedDown && !isNaN(lg(m, LF_TD));
+    s.armed = false;
+  } else {
+    // EVB_TOUCHDOWN of the swing leg
+    if (!s.strideWalking) return STATUS_GAIT_CHANGED;
+    if (s.touchedDown) return STATUS_NO_SECTION;
+    const j = stopLeg;
+    const tTd = s.tSec0 + tEvent;
+    const a = attackAt(s.model, tTd);
+    if (!(a > 0.0 && a <= MAX_ATTACK)) return STATUS_ATTACK_OUT_OF_RANGE;
+    if (a < s.minAttack) s.minAttack = a;
+    if (a > s.maxAttack) s.maxAttack = a;
+    const px = load<f64>(YN, 0);
+    ls(j, LF_ON, 1.0);
+    ls(j, LF_FX, s.ox + px + lg(j, LF_L0) * legCos(a));
+    ls(j, LF_FY, s.swingGround);
+    chooseStiffness(s.model, tTd, lg(j, LF_KSCALE));
+    ls(j, LF_KC, stanceKc);
+    ls(j, LF_KE, stanceKe);
+    ls(j, LF_K, stanceKc);
+    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+    ls(j, LF_COMPRESSING, 1.0);
+    ls(j, LF_TD, tTd);
+    s.touchedDown = true;
+    put(rec, R_DOUBLE_START, tTd);
+    put(rec, R_APEX_TO_TOUCHDOWN, tTd);
+    put(rec, R_ATTACK, a);
+    put(rec, R_FOOT_X, lg(j, LF_FX));
+    put(rec, R_TOUCHDOWN_VX, load<f64>(YN, 16));
+    put(rec, R_TOUCHDOWN_VY, load<f64>(YN, 24));
+    put(rec, R_K_COMPRESSION, stanceKc);
+    put(rec, R_K_EXTENSION, stanceKe);
+  }
+  memory.copy(Y0, YN, 40);
+  s.tS = tEvent;
+  configure();
+  rhs(Y0, K1);
+  startValues();
+  s.h = hNext;
+  s.afterReject = false;
+  return CONTACT_GO;
+}
+
 function saveEnd(t: f64, leg: i32): void {
-  endPx = load<f64>(YN, 0);
-  endPy = load<f64>(YN, 8);
-  endVx = load<f64>(YN, 16);
-  endVy = load<f64>(YN, 24);
-  endW = load<f64>(YN, 32);
-  endT = t;
-  endLeg = leg;
+  const s = S;
+  s.endPx = load<f64>(YN, 0);
+  s.endPy = load<f64>(YN, 8);
+  s.endVx = load<f64>(YN, 16);
+  s.endVy = load<f64>(YN, 24);
+  s.endW = load<f64>(YN, 32);
+  s.endT = t;
+  s.endLeg = leg;
 }
 
 function recordLiftoff(rec: usize, leg: i32): void {
+  const s = S;
   const dx = load<f64>(YN, 0) - footRx(leg);
   const dy = load<f64>(YN, 8) - footRy(leg);
   if (lg(leg, LF_C) > 0.0) {
     const c = lg(leg, LF_L0) - Math.sqrt(dx * dx + dy * dy);
-    lostSpring += 0.5 * lg(leg, LF_K) * c * c;
+    s.lostSpring += 0.5 * lg(leg, LF_K) * c * c;
   }
-  put(rec, R_LIFTOFF_X, ox + load<f64>(YN, 0));
-  put(rec, R_LIFTOFF_Y, oy + load<f64>(YN, 8));
+  put(rec, R_LIFTOFF_X, s.ox + load<f64>(YN, 0));
+  put(rec, R_LIFTOFF_Y, s.oy + load<f64>(YN, 8));
   put(rec, R_LIFTOFF_VX, load<f64>(YN, 16));
   put(rec, R_LIFTOFF_VY, load<f64>(YN, 24));
   put(rec, R_LIFTOFF_ANGLE, Math.atan2(dy, dx));
@@ -1330,7 +1431,8 @@ function recordLiftoff(rec: usize, leg: i32): void {
 
 // Energy of the body and the springs in stance, J (potential from height 0).
 function energyAt(x: f64, y: f64, vx: f64, vy: f64): f64 {
-  let e = mass * gravity * y + 0.5 * mass * (vx * vx + vy * vy);
+  const s = S;
+  let e = s.mass * s.gravity * y + 0.5 * s.mass * (vx * vx + vy * vy);
   for (let i = 0; i < 2; i++) {
     if (lg(i, LF_ON) == 0.0) continue;
     const dx = x - lg(i, LF_FX);
@@ -1341,28 +1443,51 @@ function energyAt(x: f64, y: f64, vx: f64, vy: f64): f64 {
   return e;
 }
 
+// The rollout's state between strides, kept in globals (not locals) so that rollouts can take
+// turns between steps (runBipedBatch).
+
+// One rollout: rolloutBegin, then for each stride strideBegin, the contact (runContact) and
+// strideEnd, then rolloutEnd (the summary). runBipedBatch runs the same pieces for rollouts
+// that take turns.
 export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: usize, summary: usize): i32 {
-  model = mdl;
-  mass = mget(mdl, M_MASS) * get(input, I_MASS_SCALE);
-  gravity = mget(mdl, M_GRAVITY);
-  rtol = mget(mdl, M_RTOL);
-  atol = mget(mdl, M_ATOL);
-  maxSteps = <i32>mget(mdl, M_MAX_STEPS);
+  S = changetype<BipedState>(STATE_DEFAULT);
+  LEGS = LEGS_DEFAULT;
+  S.scratchRecord = SCRATCH_RECORD;
+  useBuffers(DEFAULT_BUFFERS);
+  rolloutBegin(mdl, input, strides, rec0, summary);
+  while (strideBegin()) {
+    if (!strideEnd(runContact(S.strideRec))) break;
+  }
+  return rolloutEnd();
+}
+
+function rolloutBegin(mdl: usize, input: usize, nStrides: i32, records: usize, sum: usize): void {
+  const s = S;
+  s.model = mdl;
+  s.strides = nStrides;
+  s.rec0 = records;
+  s.summary = sum;
+  s.strideIndex = 0;
+  s.mass = mget(s.model, M_MASS) * get(input, I_MASS_SCALE);
+  s.gravity = mget(s.model, M_GRAVITY);
+  s.rtol = mget(s.model, M_RTOL);
+  s.atol = mget(s.model, M_ATOL);
+  s.maxSteps = <i32>mget(s.model, M_MAX_STEPS);
   const kScale = get(input, I_STIFFNESS_SCALE);
   const legScale = get(input, I_LEG_SCALE);
-  const targetHeight = mget(mdl, M_TARGET_HEIGHT);
-  const targetSpeed = mget(mdl, M_TARGET_SPEED);
-  const stream = <u64>get(input, I_STREAM);
-  ls(0, LF_L0, mget(mdl, M_BIPED_LENGTH_0) * legScale);
-  ls(1, LF_L0, mget(mdl, M_BIPED_LENGTH_1) * legScale);
-  ls(0, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_0) * kScale);
-  ls(1, LF_KSCALE, mget(mdl, M_BIPED_STIFFNESS_SCALE_1) * kScale);
-  ls(0, LF_C, mget(mdl, M_BIPED_DAMPING_0));
-  ls(1, LF_C, mget(mdl, M_BIPED_DAMPING_1));
-  undamped = lg(0, LF_C) == 0.0 && lg(1, LF_C) == 0.0;
-  fixedAngle = <i32>mget(mdl, M_ANGLE_KIND) == ANGLE_FIXED;
-  if (fixedAngle) {
-    const sinA = legSin(mget(mdl, M_ATTACK));
+  s.targetHeight = mget(s.model, M_TARGET_HEIGHT);
+  s.targetSpeed = mget(s.model, M_TARGET_SPEED);
+  s.stream = <u64>get(input, I_STREAM);
+  ls(0, LF_L0, mget(s.model, M_BIPED_LENGTH_0) * legScale);
+  ls(1, LF_L0, mget(s.model, M_BIPED_LENGTH_1) * legScale);
+  ls(0, LF_KSCALE, mget(s.model, M_BIPED_STIFFNESS_SCALE_0) * kScale);
+  ls(1, LF_KSCALE, mget(s.model, M_BIPED_STIFFNESS_SCALE_1) * kScale);
+  ls(0, LF_C, mget(s.model, M_BIPED_DAMPING_0));
+  ls(1, LF_C, mget(s.model, M_BIPED_DAMPING_1));
+  s.undamped = lg(0, LF_C) == 0.0 && lg(1, LF_C) == 0.0;
+  s.fixedAngle = <i32>mget(s.model, M_ANGLE_KIND) == ANGLE_FIXED;
+  if (s.fixedAngle) {
+    const sinA = legSin(mget(s.model, M_ATTACK));
     ls(0, LF_TOUCH_HEIGHT, lg(0, LF_L0) * sinA);
     ls(1, LF_TOUCH_HEIGHT, lg(1, LF_L0) * sinA);
   }
@@ -1373,312 +1498,647 @@ export function runBipedRollout(mdl: usize, input: usize, strides: i32, rec0: us
   }
   resetWalk();
 
-  let section = <i32>get(input, I_SECTION_KIND);
-  let y = get(input, I_APEX_HEIGHT);
-  let vx = get(input, I_FORWARD_SPEED);
-  let offset = section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
+  s.section = <i32>get(input, I_SECTION_KIND);
+  s.apexY = get(input, I_APEX_HEIGHT);
+  s.apexVx = get(input, I_FORWARD_SPEED);
+  s.offset = s.section == SECTION_SINGLE_SUPPORT_APEX ? get(input, I_SECTION_OFFSET) : NaN;
   const legCode = <i32>get(input, I_SECTION_LEG);
-  let leg = legCode == 1 ? 1 : legCode == 2 && section == SECTION_FLIGHT_APEX ? 2 : 0;
-  let x: f64 = 0.0;
-  let t: f64 = 0.0;
-  let prevHeight = y;
-  let prevSpeed = vx;
-  let prevOffset = offset;
-  minAttack = Infinity;
-  maxAttack = -Infinity;
+  s.leg = legCode == 1 ? 1 : legCode == 2 && s.section == SECTION_FLIGHT_APEX ? 2 : 0;
+  s.apexX = 0.0;
+  s.apexT = 0.0;
+  s.prevHeight = s.apexY;
+  s.prevSpeed = s.apexVx;
+  s.prevOffset = s.offset;
+  s.minAttack = Infinity;
+  s.maxAttack = -Infinity;
 
-  let status = STATUS_OK;
-  let completed = 0;
-  let maxForce: f64 = 0.0;
-  let maxFriction: f64 = 0.0;
-  let maxCompression: f64 = 0.0;
-  let maxVertical: f64 = 0.0;
-  let sumSqHeight: f64 = 0.0;
-  let sumSqSpeed: f64 = 0.0;
-  let allSteps = 0;
-  let allRejected = 0;
-  const leg0 = leg == 2 ? 0 : leg;
-  const kFirst = mget(mdl, M_STIFFNESS) * lg(leg0, LF_KSCALE);
-  h = initialStep(mass, kFirst, vx, lg(leg0, LF_L0), rtol);
+  s.status = STATUS_OK;
+  s.completed = 0;
+  s.maxForce = 0.0;
+  s.maxFriction = 0.0;
+  s.maxCompression = 0.0;
+  s.maxVertical = 0.0;
+  s.sumSqHeight = 0.0;
+  s.sumSqSpeed = 0.0;
+  s.allSteps = 0;
+  s.allRejected = 0;
+  const leg0 = s.leg == 2 ? 0 : s.leg;
+  const kFirst = mget(s.model, M_STIFFNESS) * lg(leg0, LF_KSCALE);
+  s.h = initialStep(s.mass, kFirst, s.apexVx, lg(leg0, LF_L0), s.rtol);
 
-  if (section == SECTION_SINGLE_SUPPORT_APEX) {
+  if (s.section == SECTION_SINGLE_SUPPORT_APEX) {
     // the stance leg at the start: pinned at -offset on ground 0, past its maximum compression
-    ls(leg, LF_ON, 1.0);
-    ls(leg, LF_FX, -offset);
-    ls(leg, LF_FY, 0.0);
-    chooseStiffness(mdl, 0.0, lg(leg, LF_KSCALE));
-    ls(leg, LF_KC, stanceKc);
-    ls(leg, LF_KE, stanceKe);
-    ls(leg, LF_K, stanceKe);
-    ls(leg, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-    ls(leg, LF_COMPRESSING, 0.0);
+    ls(s.leg, LF_ON, 1.0);
+    ls(s.leg, LF_FX, -s.offset);
+    ls(s.leg, LF_FY, 0.0);
+    chooseStiffness(s.model, 0.0, lg(s.leg, LF_KSCALE));
+    ls(s.leg, LF_KC, stanceKc);
+    ls(s.leg, LF_KE, stanceKe);
+    ls(s.leg, LF_K, stanceKe);
+    ls(s.leg, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+    ls(s.leg, LF_COMPRESSING, 0.0);
   }
 
-  for (let s = 0; s < strides; s++) {
-    const rec = rec0 != 0 ? rec0 + (<usize>s * R_SIZE << 3) : SCRATCH_RECORD;
-    if (rec0 != 0) for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
-    put(rec, R_APEX_HEIGHT, y);
-    put(rec, R_APEX_SPEED, vx);
-    put(rec, R_APEX_TIME, t);
-    put(rec, R_APEX_X, x);
-    put(rec, R_SECTION_KIND, <f64>section);
-    put(rec, R_SECTION_OFFSET, offset);
-    put(rec, R_SECTION_LEG, <f64>leg);
-    const energyBefore = energyAt(x, y, vx, 0.0);
-    put(rec, R_ENERGY_BEFORE, energyBefore);
-    if (!isFinite(y) || !isFinite(vx)) { status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>status); break; }
-    strideWalking = section == SECTION_SINGLE_SUPPORT_APEX;
-    put(rec, R_GAIT, strideWalking ? <f64>GAIT_WALKING : leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
-    endBoth = false;
-    traceStride = s;
-    traceT0 = t;
-    for (let i = 0; i < 2; i++) {
-      ls(i, LF_PEAK, 0.0);
-      ls(i, LF_MAXCOMP, 0.0);
-      ls(i, LF_TD, NaN);
-      ls(i, LF_LO, NaN);
-    }
-    peakVertical = 0.0;
-    peakFriction = 0.0;
-    lostSpring = 0.0;
-    touchedDown = false;
-    sectionArmed = false;
-    armed = false;
-    firstStep = true;
-    steps = 0;
-    rejected = 0;
-    swingGround = groundAt(mdl, s, stream);
-    put(rec, R_GROUND, swingGround);
+}
 
-    // The contact's time limit: far beyond any stance that ends (as the stance driver's).
-    let kMin: f64 = Infinity;
-    for (let i = 0; i < 2; i++) {
-      const k = mget(mdl, M_STIFFNESS) * lg(i, LF_KSCALE);
-      if (k < kMin) kMin = k;
-    }
+// The start of stride strideIndex up to its contact (the flight before it, for a running
+// stride): true when the contact is to run from Y0, false when the rollout ended here (status).
+function strideBegin(): bool {
+  const s = S;
+  if (s.strideIndex >= s.strides) return false;
+  const rec = s.rec0 != 0 ? s.rec0 + (<usize>s.strideIndex * R_SIZE << 3) : s.scratchRecord;
+  s.strideRec = rec;
+  if (s.rec0 != 0) for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
+  put(rec, R_APEX_HEIGHT, s.apexY);
+  put(rec, R_APEX_SPEED, s.apexVx);
+  put(rec, R_APEX_TIME, s.apexT);
+  put(rec, R_APEX_X, s.apexX);
+  put(rec, R_SECTION_KIND, <f64>s.section);
+  put(rec, R_SECTION_OFFSET, s.offset);
+  put(rec, R_SECTION_LEG, <f64>s.leg);
+  const energyBefore = energyAt(s.apexX, s.apexY, s.apexVx, 0.0);
+  put(rec, R_ENERGY_BEFORE, energyBefore);
+  if (!isFinite(s.apexY) || !isFinite(s.apexVx)) { s.status = STATUS_NON_FINITE; put(rec, R_STATUS, <f64>s.status); return false; }
+  s.strideWalking = s.section == SECTION_SINGLE_SUPPORT_APEX;
+  put(rec, R_GAIT, s.strideWalking ? <f64>GAIT_WALKING : s.leg == 2 ? <f64>GAIT_HOPPING : <f64>GAIT_RUNNING);
+  s.endBoth = false;
+  traceStride = s.strideIndex;
+  s.traceT0 = s.apexT;
+  for (let i = 0; i < 2; i++) {
+    ls(i, LF_PEAK, 0.0);
+    ls(i, LF_MAXCOMP, 0.0);
+    ls(i, LF_TD, NaN);
+    ls(i, LF_LO, NaN);
+  }
+  s.peakVertical = 0.0;
+  s.peakFriction = 0.0;
+  s.lostSpring = 0.0;
+  s.touchedDown = false;
+  s.sectionArmed = false;
+  s.armed = false;
+  s.firstStep = true;
+  s.steps = 0;
+  s.rejected = 0;
+  s.swingGround = groundAt(s.model, s.strideIndex, s.stream);
+  put(rec, R_GROUND, s.swingGround);
 
-    if (strideWalking) {
-      ox = lg(leg, LF_FX);
-      oy = lg(leg, LF_FY);
-      const r = Math.sqrt((x - ox) * (x - ox) + (y - oy) * (y - oy));
-      if (!(r <= lg(leg, LF_L0))) { status = STATUS_LEG_NOT_PLACEABLE; put(rec, R_STATUS, <f64>status); break; }
-      // after a section the state relative to the stance foot carries over exactly
-      store<f64>(Y0, s > 0 ? relPx : x - ox, 0);
-      store<f64>(Y0, s > 0 ? relPy : y - oy, 8);
-      store<f64>(Y0, vx, 16);
-      store<f64>(Y0, 0.0, 24);
-      store<f64>(Y0, 0.0, 32);
-      tSec0 = 0.0;
-      tS = 0.0;
-    } else {
-      // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
-      // legs are ready and the one whose foot reaches the ground first lands (both at once when
-      // they reach it at the same time)
-      let j = leg == 2 ? 0 : leg;
-      let tTouch = touchdownTime(mdl, y, swingGround, lg(j, LF_L0), gravity);
-      let both = false;
-      if (leg == 2) {
-        const t1 = touchdownTime(mdl, y, swingGround, lg(1, LF_L0), gravity);
-        if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
-        else both = t1 == tTouch;
-      }
-      const l0 = lg(j, LF_L0);
-      if (tTouch < 0.0) {
-        status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
-          : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
-          : tTouch == TOUCHDOWN_ANGLE_LEFT ? STATUS_ATTACK_OUT_OF_RANGE
-          : STATUS_STEP_LIMIT;
-        put(rec, R_STATUS, <f64>status);
-        break;
-      }
-      const attack = attackAt(mdl, tTouch);
-      if (!(attack > 0.0 && attack <= MAX_ATTACK)) { status = STATUS_ATTACK_OUT_OF_RANGE; put(rec, R_STATUS, <f64>status); break; }
-      if (attack < minAttack) minAttack = attack;
-      if (attack > maxAttack) maxAttack = attack;
-      const cosA = legCos(attack);
-      const sinA = legSin(attack);
-      const xTouch = x + vx * tTouch;
-      const vyTouch = -gravity * tTouch;
-      const px = -l0 * cosA;
-      const py = l0 * sinA;
-      const footX = xTouch - px;
-      if (tracing) traceFlightB(t, t + tTouch, x, y, vx, 0.0, 0.0, false);
-      ls(j, LF_ON, 1.0);
-      ls(j, LF_FX, footX);
-      ls(j, LF_FY, swingGround);
-      chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE));
-      ls(j, LF_KC, stanceKc);
-      ls(j, LF_KE, stanceKe);
-      ls(j, LF_K, stanceKc);
-      ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-      ls(j, LF_COMPRESSING, 1.0);
-      ls(j, LF_TD, tTouch);
-      if (both) {
-        const o = 1 - j;
-        ls(o, LF_ON, 1.0);
-        ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
-        ls(o, LF_FY, swingGround);
-        chooseStiffness(mdl, tTouch, lg(o, LF_KSCALE));
-        ls(o, LF_KC, stanceKc);
-        ls(o, LF_KE, stanceKe);
-        ls(o, LF_K, stanceKc);
-        ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-        ls(o, LF_COMPRESSING, 1.0);
-        ls(o, LF_TD, tTouch);
-        put(rec, R_DOUBLE_START, tTouch);
-        chooseStiffness(mdl, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
-      }
-      touchedDown = true;
-      put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
-      put(rec, R_ATTACK, attack);
-      put(rec, R_FOOT_X, footX);
-      put(rec, R_TOUCHDOWN_VX, vx);
-      put(rec, R_TOUCHDOWN_VY, vyTouch);
-      put(rec, R_K_COMPRESSION, stanceKc);
-      put(rec, R_K_EXTENSION, stanceKe);
-      ox = footX;
-      oy = swingGround;
-      store<f64>(Y0, px, 0);
-      store<f64>(Y0, py, 8);
-      store<f64>(Y0, vx, 16);
-      store<f64>(Y0, vyTouch, 24);
-      store<f64>(Y0, 0.0, 32);
-      tSec0 = tTouch;
-      tS = 0.0;
-    }
-    tContactLimit = 20.0 * Math.PI * Math.sqrt(mass / kMin);
-
-    const end = runContact(rec);
-    allSteps += steps;
-    allRejected += rejected;
-    put(rec, R_STEPS, <f64>steps);
-    put(rec, R_REJECTED, <f64>rejected);
-    put(rec, R_TOUCHDOWN_TIME_0, lg(0, LF_TD));
-    put(rec, R_TOUCHDOWN_TIME_0 + 1, lg(1, LF_TD));
-    put(rec, R_LIFTOFF_TIME_0, lg(0, LF_LO));
-    put(rec, R_LIFTOFF_TIME_0 + 1, lg(1, LF_LO));
-    const p0 = lg(0, LF_PEAK);
-    const p1 = lg(1, LF_PEAK);
-    put(rec, R_PEAK_FORCE_0, p0);
-    put(rec, R_PEAK_FORCE_1, p1);
-    put(rec, R_PEAK_FORCE, p0 > p1 ? p0 : p1);
-    const c0 = lg(0, LF_MAXCOMP);
-    const c1 = lg(1, LF_MAXCOMP);
-    put(rec, R_MAX_COMPRESSION, c0 > c1 ? c0 : c1);
-    put(rec, R_PEAK_VERTICAL_FORCE, peakVertical);
-    put(rec, R_PEAK_FRICTION, peakFriction);
-    if (end >= 0) {
-      // a failure status; a gait change names the gait it changed to
-      if (end == STATUS_GAIT_CHANGED) put(rec, R_GAIT, strideWalking ? <f64>GAIT_RUNNING : <f64>GAIT_WALKING);
-      status = end;
-      put(rec, R_STATUS, <f64>status);
-      break;
-    }
-
-    let yNext: f64, xNext: f64, vxNext: f64, tNext: f64, eAfter: f64;
-    let nextSection: i32, nextOffset: f64, nextLeg: i32;
-    if (end == END_FLIGHT) {
-      const xLift = ox + endPx;
-      const yLift = oy + endPy;
-      const tLift = t + tSec0 + endT;
-      if (strideWalking) {
-        status = STATUS_GAIT_CHANGED;
-        put(rec, R_GAIT, <f64>GAIT_RUNNING);
-        put(rec, R_STATUS, <f64>status);
-        break;
-      }
-      put(rec, R_CONTACT, endT);
-      if (tracing) {
-        emit2(tLift, xLift, yLift, endVx, endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
-      }
-      if (!(endVy > 0.0)) { status = STATUS_NO_APEX; put(rec, R_STATUS, <f64>status); break; }
-      const tUp = endVy / gravity;
-      yNext = yLift + (endVy * endVy) / (2.0 * gravity);
-      xNext = xLift + endVx * tUp;
-      vxNext = endVx;
-      tNext = tLift + tUp;
-      if (tracing) traceFlightB(tLift, tNext, xLift, yLift, endVx, endVy, 0.0, true);
-      // the springs hold no energy in flight; with damping, what the leg still held is lost
-      eAfter = mass * gravity * yNext + 0.5 * mass * vxNext * vxNext;
-      nextSection = SECTION_FLIGHT_APEX;
-      nextOffset = NaN;
-      nextLeg = endBoth ? 2 : 1 - endLeg;
-    } else {
-      yNext = oy + endPy;
-      xNext = ox + endPx;
-      vxNext = endVx;
-      tNext = t + tSec0 + endT;
-      eAfter = energyAt(xNext, yNext, vxNext, 0.0);
-      nextSection = SECTION_SINGLE_SUPPORT_APEX;
-      nextOffset = endPx - footRx(endLeg);
-      nextLeg = endLeg;
-      relPx = endPx;
-      relPy = endPy;
-    }
-    // the dampers' work, and the spring energy damped legs still held when they left
-    put(rec, R_DISSIPATED, endW + lostSpring);
-    put(rec, R_NEXT_APEX_HEIGHT, yNext);
-    put(rec, R_NEXT_APEX_SPEED, vxNext);
-    put(rec, R_NEXT_APEX_X, xNext);
-    put(rec, R_NEXT_APEX_TIME, tNext);
-    put(rec, R_STRIDE_TIME, tNext - t);
-    put(rec, R_ENERGY_AFTER, eAfter);
-    put(rec, R_NEXT_SECTION_KIND, <f64>nextSection);
-    put(rec, R_NEXT_SECTION_OFFSET, nextOffset);
-    put(rec, R_NEXT_SECTION_LEG, <f64>nextLeg);
-    put(rec, R_STATUS, <f64>STATUS_OK);
-
-    const pk = p0 > p1 ? p0 : p1;
-    if (pk > maxForce) maxForce = pk;
-    if (peakFriction > maxFriction) maxFriction = peakFriction;
-    const cm = c0 > c1 ? c0 : c1;
-    if (cm > maxCompression) maxCompression = cm;
-    if (peakVertical > maxVertical) maxVertical = peakVertical;
-    const eh = yNext - targetHeight;
-    const ev = vxNext - targetSpeed;
-    sumSqHeight += eh * eh;
-    sumSqSpeed += ev * ev;
-    prevHeight = y;
-    prevSpeed = vx;
-    prevOffset = offset;
-    y = yNext;
-    vx = vxNext;
-    x = xNext;
-    t = tNext;
-    section = nextSection;
-    offset = nextOffset;
-    leg = nextLeg;
-    h = firstH;
-    completed++;
+  // The contact's time limit: far beyond any stance that ends (as the stance driver's).
+  let kMin: f64 = Infinity;
+  for (let i = 0; i < 2; i++) {
+    const k = mget(s.model, M_STIFFNESS) * lg(i, LF_KSCALE);
+    if (k < kMin) kMin = k;
   }
 
-  if (rec0 != 0) {
-    for (let s = completed + 1; s < strides; s++) {
-      const rec = rec0 + (<usize>s * R_SIZE << 3);
+  if (s.strideWalking) {
+    s.ox = lg(s.leg, LF_FX);
+    s.oy = lg(s.leg, LF_FY);
+    const r = Math.sqrt((s.apexX - s.ox) * (s.apexX - s.ox) + (s.apexY - s.oy) * (s.apexY - s.oy));
+    if (!(r <= lg(s.leg, LF_L0))) { s.status = STATUS_LEG_NOT_PLACEABLE; put(rec, R_STATUS, <f64>s.status); return false; }
+    // after a section the state relative to the stance foot carries over exactly
+    store<f64>(Y0, s.strideIndex > 0 ? s.relPx : s.apexX - s.ox, 0);
+    store<f64>(Y0, s.strideIndex > 0 ? s.relPy : s.apexY - s.oy, 8);
+    store<f64>(Y0, s.apexVx, 16);
+    store<f64>(Y0, 0.0, 24);
+    store<f64>(Y0, 0.0, 32);
+    s.tSec0 = 0.0;
+    s.tS = 0.0;
+  } else {
+    // flight from the apex to the touchdown of `leg`, closed form (flight.ts); with leg 2 both
+    // legs are ready and the one whose foot reaches the ground first lands (both at once when
+    // they reach it at the same time)
+    let j = s.leg == 2 ? 0 : s.leg;
+    let tTouch = touchdownTime(s.model, s.apexY, s.swingGround, lg(j, LF_L0), s.gravity);
+    let both = false;
+    if (s.leg == 2) {
+      const t1 = touchdownTime(s.model, s.apexY, s.swingGround, lg(1, LF_L0), s.gravity);
+      if (t1 >= 0.0 && (tTouch < 0.0 || t1 < tTouch)) { j = 1; tTouch = t1; }
+      else both = t1 == tTouch;
+    }
+    const l0 = lg(j, LF_L0);
+    if (tTouch < 0.0) {
+      s.status = tTouch == TOUCHDOWN_NOT_PLACEABLE ? STATUS_LEG_NOT_PLACEABLE
+        : tTouch == TOUCHDOWN_GROUND_FIRST ? STATUS_BODY_HIT_GROUND
+        : tTouch == TOUCHDOWN_ANGLE_LEFT ? STATUS_ATTACK_OUT_OF_RANGE
+        : STATUS_STEP_LIMIT;
+      put(rec, R_STATUS, <f64>s.status);
+      return false;
+    }
+    const attack = attackAt(s.model, tTouch);
+    if (!(attack > 0.0 && attack <= MAX_ATTACK)) { s.status = STATUS_ATTACK_OUT_OF_RANGE; put(rec, R_STATUS, <f64>s.status); return false; }
+    if (attack < s.minAttack) s.minAttack = attack;
+    if (attack > s.maxAttack) s.maxAttack = attack;
+    const cosA = legCos(attack);
+    const sinA = legSin(attack);
+    const xTouch = s.apexX + s.apexVx * tTouch;
+    const vyTouch = -s.gravity * tTouch;
+    const px = -l0 * cosA;
+    const py = l0 * sinA;
+    const footX = xTouch - px;
+    if (tracing) traceFlightB(s.apexT, s.apexT + tTouch, s.apexX, s.apexY, s.apexVx, 0.0, 0.0, false);
+    ls(j, LF_ON, 1.0);
+    ls(j, LF_FX, footX);
+    ls(j, LF_FY, s.swingGround);
+    chooseStiffness(s.model, tTouch, lg(j, LF_KSCALE));
+    ls(j, LF_KC, stanceKc);
+    ls(j, LF_KE, stanceKe);
+    ls(j, LF_K, stanceKc);
+    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+    ls(j, LF_COMPRESSING, 1.0);
+    ls(j, LF_TD, tTouch);
+    if (both) {
+      const o = 1 - j;
+      ls(o, LF_ON, 1.0);
+      ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
+      ls(o, LF_FY, s.swingGround);
+      chooseStiffness(s.model, tTouch, lg(o, LF_KSCALE));
+      ls(o, LF_KC, stanceKc);
+      ls(o, LF_KE, stanceKe);
+      ls(o, LF_K, stanceKc);
+      ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+      ls(o, LF_COMPRESSING, 1.0);
+      ls(o, LF_TD, tTouch);
+      put(rec, R_DOUBLE_START, tTouch);
+      chooseStiffness(s.model, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
+    }
+    s.touchedDown = true;
+    put(rec, R_APEX_TO_TOUCHDOWN, tTouch);
+    put(rec, R_ATTACK, attack);
+    put(rec, R_FOOT_X, footX);
+    put(rec, R_TOUCHDOWN_VX, s.apexVx);
+    put(rec, R_TOUCHDOWN_VY, vyTouch);
+    put(rec, R_K_COMPRESSION, stanceKc);
+    put(rec, R_K_EXTENSION, stanceKe);
+    s.ox = footX;
+    s.oy = s.swingGround;
+    store<f64>(Y0, px, 0);
+    store<f64>(Y0, py, 8);
+    store<f64>(Y0, s.apexVx, 16);
+    store<f64>(Y0, vyTouch, 24);
+    store<f64>(Y0, 0.0, 32);
+    s.tSec0 = tTouch;
+    s.tS = 0.0;
+  }
+  s.tContactLimit = 20.0 * Math.PI * Math.sqrt(s.mass / kMin);
+
+  return true;
+}
+
+// The rest of the stride after its contact ended with `end` (END_SECTION, END_FLIGHT or a
+// STATUS_* code): true when the rollout goes on to the next stride.
+function strideEnd(end: i32): bool {
+  const s = S;
+  const rec = s.strideRec;
+  s.allSteps += s.steps;
+  s.allRejected += s.rejected;
+  put(rec, R_STEPS, <f64>s.steps);
+  put(rec, R_REJECTED, <f64>s.rejected);
+  put(rec, R_TOUCHDOWN_TIME_0, lg(0, LF_TD));
+  put(rec, R_TOUCHDOWN_TIME_0 + 1, lg(1, LF_TD));
+  put(rec, R_LIFTOFF_TIME_0, lg(0, LF_LO));
+  put(rec, R_LIFTOFF_TIME_0 + 1, lg(1, LF_LO));
+  const p0 = lg(0, LF_PEAK);
+  const p1 = lg(1, LF_PEAK);
+  put(rec, R_PEAK_FORCE_0, p0);
+  put(rec, R_PEAK_FORCE_1, p1);
+  put(rec, R_PEAK_FORCE, p0 > p1 ? p0 : p1);
+  const c0 = lg(0, LF_MAXCOMP);
+  const c1 = lg(1, LF_MAXCOMP);
+  put(rec, R_MAX_COMPRESSION, c0 > c1 ? c0 : c1);
+  put(rec, R_PEAK_VERTICAL_FORCE, s.peakVertical);
+  put(rec, R_PEAK_FRICTION, s.peakFriction);
+  if (end >= 0) {
+    // a failure status; a gait change names the gait it changed to
+    if (end == STATUS_GAIT_CHANGED) put(rec, R_GAIT, s.strideWalking ? <f64>GAIT_RUNNING : <f64>GAIT_WALKING);
+    s.status = end;
+    put(rec, R_STATUS, <f64>s.status);
+    return false;
+  }
+
+  let yNext: f64, xNext: f64, vxNext: f64, tNext: f64, eAfter: f64;
+  let nextSection: i32, nextOffset: f64, nextLeg: i32;
+  if (end == END_FLIGHT) {
+    const xLift = s.ox + s.endPx;
+    const yLift = s.oy + s.endPy;
+    const tLift = s.apexT + s.tSec0 + s.endT;
+    if (s.strideWalking) {
+      s.status = STATUS_GAIT_CHANGED;
+      put(rec, R_GAIT, <f64>GAIT_RUNNING);
+      put(rec, R_STATUS, <f64>s.status);
+      return false;
+    }
+    put(rec, R_CONTACT, s.endT);
+    if (tracing) {
+      emit2(tLift, xLift, yLift, s.endVx, s.endVy, lg(0, LF_FX), lg(0, LF_FY), 0.0, lg(1, LF_FX), lg(1, LF_FY), 0.0, PHASE_FLIGHT);
+    }
+    if (!(s.endVy > 0.0)) { s.status = STATUS_NO_APEX; put(rec, R_STATUS, <f64>s.status); return false; }
+    const tUp = s.endVy / s.gravity;
+    yNext = yLift + (s.endVy * s.endVy) / (2.0 * s.gravity);
+    xNext = xLift + s.endVx * tUp;
+    vxNext = s.endVx;
+    tNext = tLift + tUp;
+    if (tracing) traceFlightB(tLift, tNext, xLift, yLift, s.endVx, s.endVy, 0.0, true);
+    // the springs hold no energy in flight; with damping, what the leg still held is lost
+    eAfter = s.mass * s.gravity * yNext + 0.5 * s.mass * vxNext * vxNext;
+    nextSection = SECTION_FLIGHT_APEX;
+    nextOffset = NaN;
+    nextLeg = s.endBoth ? 2 : 1 - s.endLeg;
+  } else {
+    yNext = s.oy + s.endPy;
+    xNext = s.ox + s.endPx;
+    vxNext = s.endVx;
+    tNext = s.apexT + s.tSec0 + s.endT;
+    eAfter = energyAt(xNext, yNext, vxNext, 0.0);
+    nextSection = SECTION_SINGLE_SUPPORT_APEX;
+    nextOffset = s.endPx - footRx(s.endLeg);
+    nextLeg = s.endLeg;
+    s.relPx = s.endPx;
+    s.relPy = s.endPy;
+  }
+  // the dampers' work, and the spring energy damped legs still held when they left
+  put(rec, R_DISSIPATED, s.endW + s.lostSpring);
+  put(rec, R_NEXT_APEX_HEIGHT, yNext);
+  put(rec, R_NEXT_APEX_SPEED, vxNext);
+  put(rec, R_NEXT_APEX_X, xNext);
+  put(rec, R_NEXT_APEX_TIME, tNext);
+  put(rec, R_STRIDE_TIME, tNext - s.apexT);
+  put(rec, R_ENERGY_AFTER, eAfter);
+  put(rec, R_NEXT_SECTION_KIND, <f64>nextSection);
+  put(rec, R_NEXT_SECTION_OFFSET, nextOffset);
+  put(rec, R_NEXT_SECTION_LEG, <f64>nextLeg);
+  put(rec, R_STATUS, <f64>STATUS_OK);
+
+  const pk = p0 > p1 ? p0 : p1;
+  if (pk > s.maxForce) s.maxForce = pk;
+  if (s.peakFriction > s.maxFriction) s.maxFriction = s.peakFriction;
+  const cm = c0 > c1 ? c0 : c1;
+  if (cm > s.maxCompression) s.maxCompression = cm;
+  if (s.peakVertical > s.maxVertical) s.maxVertical = s.peakVertical;
+  const eh = yNext - s.targetHeight;
+  const ev = vxNext - s.targetSpeed;
+  s.sumSqHeight += eh * eh;
+  s.sumSqSpeed += ev * ev;
+  s.prevHeight = s.apexY;
+  s.prevSpeed = s.apexVx;
+  s.prevOffset = s.offset;
+  s.apexY = yNext;
+  s.apexVx = vxNext;
+  s.apexX = xNext;
+  s.apexT = tNext;
+  s.section = nextSection;
+  s.offset = nextOffset;
+  s.leg = nextLeg;
+  s.h = s.firstH;
+  s.completed++;
+  s.strideIndex++;
+  return true;
+}
+
+// The rest of the records and the summary; the rollout's status.
+function rolloutEnd(): i32 {
+  const s = S;
+  if (s.rec0 != 0) {
+    for (let q = s.completed + 1; q < s.strides; q++) {
+      const rec = s.rec0 + (<usize>q * R_SIZE << 3);
       for (let f = 0; f < R_SIZE; f++) put(rec, f, NaN);
     }
   }
-  put(summary, S_STATUS, <f64>status);
-  put(summary, S_STRIDES_COMPLETED, <f64>completed);
-  put(summary, S_FINAL_HEIGHT, y);
-  put(summary, S_FINAL_SPEED, vx);
-  put(summary, S_PREVIOUS_HEIGHT, prevHeight);
-  put(summary, S_PREVIOUS_SPEED, prevSpeed);
-  put(summary, S_MAX_PEAK_FORCE, maxForce);
-  put(summary, S_MAX_FRICTION, maxFriction);
-  put(summary, S_MAX_COMPRESSION, maxCompression);
-  put(summary, S_MIN_ATTACK, minAttack);
-  put(summary, S_MAX_ATTACK, maxAttack);
-  put(summary, S_SUM_SQ_HEIGHT_ERROR, sumSqHeight);
-  put(summary, S_SUM_SQ_SPEED_ERROR, sumSqSpeed);
-  put(summary, S_TIME, t);
-  put(summary, S_DISTANCE, x);
-  put(summary, S_STEPS, <f64>allSteps);
-  put(summary, S_REJECTED, <f64>allRejected);
-  put(summary, S_FINAL_OFFSET, offset);
-  put(summary, S_PREVIOUS_OFFSET, prevOffset);
-  put(summary, S_FINAL_LEG, <f64>leg);
-  put(summary, S_FINAL_SECTION_KIND, <f64>section);
-  put(summary, S_MAX_VERTICAL_FORCE, maxVertical);
-  return status;
+  put(s.summary, S_STATUS, <f64>s.status);
+  put(s.summary, S_STRIDES_COMPLETED, <f64>s.completed);
+  put(s.summary, S_FINAL_HEIGHT, s.apexY);
+  put(s.summary, S_FINAL_SPEED, s.apexVx);
+  put(s.summary, S_PREVIOUS_HEIGHT, s.prevHeight);
+  put(s.summary, S_PREVIOUS_SPEED, s.prevSpeed);
+  put(s.summary, S_MAX_PEAK_FORCE, s.maxForce);
+  put(s.summary, S_MAX_FRICTION, s.maxFriction);
+  put(s.summary, S_MAX_COMPRESSION, s.maxCompression);
+  put(s.summary, S_MIN_ATTACK, s.minAttack);
+  put(s.summary, S_MAX_ATTACK, s.maxAttack);
+  put(s.summary, S_SUM_SQ_HEIGHT_ERROR, s.sumSqHeight);
+  put(s.summary, S_SUM_SQ_SPEED_ERROR, s.sumSqSpeed);
+  put(s.summary, S_TIME, s.apexT);
+  put(s.summary, S_DISTANCE, s.apexX);
+  put(s.summary, S_STEPS, <f64>s.allSteps);
+  put(s.summary, S_REJECTED, <f64>s.allRejected);
+  put(s.summary, S_FINAL_OFFSET, s.offset);
+  put(s.summary, S_PREVIOUS_OFFSET, s.prevOffset);
+  put(s.summary, S_FINAL_LEG, <f64>s.leg);
+  put(s.summary, S_FINAL_SECTION_KIND, <f64>s.section);
+  put(s.summary, S_MAX_VERTICAL_FORCE, s.maxVertical);
+  return s.status;
+}
+
+// Two rollouts taking turns (runBipedBatch): each lane keeps its own legs, scratch record and
+// stepper buffers (pointers switched), and the rest of its state (every global above that lives
+// across a step, the stepper's controller, the right-hand side's setting, the terrain walk) in
+// its block, saved after it asks for a step and loaded before it goes on. The state a rollout
+// reads is the state it wrote, so each rollout runs the one-rollout arithmetic, step for step.
+// What the rollout in hand keeps outside this module: the stepper's last step and controller
+// memory, the error norm's dimension, the terrain walk, the right-hand side's setting.
+const EXT_BYTES: usize = 32 + SYSTEM_STATE_BYTES;
+function laneSave(c: usize): void {
+  store<f64>(c, getLastH(), 0);
+  store<f64>(c, getErrorDimension(), 8);
+  store<f64>(c, getErrOld(), 16);
+  store<f64>(c, getWalk(), 24);
+  saveSystem(c + 32);
+}
+function laneLoad(c: usize): void {
+  setLastH(load<f64>(c, 0));
+  setErrorDimensionValue(load<f64>(c, 8));
+  setErrOld(load<f64>(c, 16));
+  setWalk(load<f64>(c, 24));
+  loadSystem(c + 32);
+}
+const LANE_BYTES: usize = EXT_BYTES;
+const LANES_MAX = 4;
+const LANE_STATES: usize = memory.data(<i32>(LANES_MAX * offsetof<BipedState>()), 16);
+const LANE_EXT: usize = memory.data(<i32>(LANES_MAX * LANE_BYTES), 16);
+const LANE_LEGS: usize = memory.data(LANES_MAX * 2 * LF_N * 8, 16);
+const LANE_SCRATCH: usize = memory.data(LANES_MAX * 8 * R_SIZE, 16);
+const LANE_BUFFERS: usize = memory.data(<i32>(LANES_MAX * BUFFER_SET_BYTES), 16); // dopri5 buffer sets
+let batchOk = 0;
+let pairCalls: f64 = 0; // steps taken in f64x2 lanes (calls of stepPairW, two lanes each) in the last runBipedBatch
+
+// Steps the last runBipedBatch took in lanes (for checks).
+export function bipedPairedSteps(): f64 {
+  return pairCalls;
+}
+
+@inline function laneBuffers(i: i32): usize {
+  return LANE_BUFFERS + <usize>i * BUFFER_SET_BYTES;
+}
+
+function laneSelect(i: i32): void {
+  S = changetype<BipedState>(LANE_STATES + <usize>i * offsetof<BipedState>());
+  LEGS = LANE_LEGS + <usize>i * (2 * LF_N * 8);
+  S.scratchRecord = LANE_SCRATCH + <usize>i * (8 * R_SIZE);
+  useBuffers(laneBuffers(i));
+}
+
+@inline function ppSet(field: i32, lane: i32, v: f64): void {
+  store<f64>(PAIR_PARAMS + <usize>(lane >> 1) * PAIR_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), v);
+}
+
+// The lane's next step for stepPairW; true when it is a walking step with undamped
+// legs (step4w).
+function laneStepParams(i: i32): bool {
+  const s = S;
+  if (!(s.undamped && s.strideWalking)) return false;
+  ppSet(PP_H, i, s.h);
+  ppSet(PP_RTOL, i, s.rtol);
+  ppSet(PP_ATOL, i, s.atol);
+  ppSet(PP_INV_MASS, i, stanceInvMass);
+  ppSet(PP_G, i, stanceG);
+  if (s.single) {
+    ppSet(PP_FX0, i, 0.0);
+    ppSet(PP_FY0, i, 0.0);
+    ppSet(PP_L0, i, sysLeg);
+    ppSet(PP_K0, i, stanceK);
+    ppSet(PP_FX1, i, 0.0);
+    ppSet(PP_FY1, i, 0.0);
+    ppSet(PP_L1, i, sysLeg);
+    ppSet(PP_K1, i, stanceK);
+  } else {
+    ppSet(PP_FX0, i, bipedFx0);
+    ppSet(PP_FY0, i, bipedFy0);
+    ppSet(PP_L0, i, bipedL0);
+    ppSet(PP_K0, i, bipedK0);
+    ppSet(PP_FX1, i, bipedFx1);
+    ppSet(PP_FY1, i, bipedFy1);
+    ppSet(PP_L1, i, bipedL1);
+    ppSet(PP_K1, i, bipedK1);
+  }
+  store<u64>(PAIR_PARAMS + <usize>(i >> 1) * PAIR_BYTES + (<usize>PP_SINGLE << 4) + (<usize>(i & 1) << 3), s.single ? 0xffffffffffffffff : 0);
+  return true;
+}
+
+@inline function laneState(i: i32): BipedState {
+  return changetype<BipedState>(LANE_STATES + <usize>i * offsetof<BipedState>());
+}
+@inline function lgAt(legs: usize, i: i32, f: i32): f64 {
+  return load<f64>(legs + (<usize>(i * LF_N + f) << 3));
+}
+@inline function lsAt(legs: usize, i: i32, f: i32, v: f64): void {
+  store<f64>(legs + (<usize>(i * LF_N + f) << 3), v);
+}
+
+// contactAfter's common case for lane i after a lane step (undamped legs), without making it the
+// rollout in hand: an accepted step inside which no event value crosses (nothing to locate),
+// with contactAfter's arithmetic in its order. False, with nothing changed, when the step needs the whole of contactAfter.
+function laneAfterQuiet(i: i32, err: f64): bool {
+  if (!(err <= 1.0)) return false; // a rejection or a non-finite stage
+  const s = laneState(i);
+  const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
+  const buf = laneBuffers(i);
+  const npy = load<f64>(buf + OFF_YN, 8);
+  const nvx = load<f64>(buf + OFF_YN, 16);
+  const nvy = load<f64>(buf + OFF_YN, 24);
+  // the leg values at the step end, formed in the lane step (laneEnd: contactAfter's arithmetic)
+  let gl10: f64 = 0.0;
+  let gl11: f64 = 0.0;
+  let gm10: f64 = 0.0;
+  let gm11: f64 = 0.0;
+  let f0: f64, f1: f64, c0: f64, c1: f64;
+  const fx = laneEnd(i, END_FX);
+  const fy = laneEnd(i, END_FY);
+  const single = s.single;
+  const sl = s.stanceLeg;
+  if (single) {
+    const gl = laneEnd(i, END_GL0);
+    const nrdot = laneEnd(i, END_GM0);
+    const nforce = laneEnd(i, END_F0);
+    const comp = laneEnd(i, END_C0);
+    if (sl == 0) { gl10 = gl; gm10 = nrdot; } else { gl11 = gl; gm11 = nrdot; }
+    f0 = sl == 0 ? nforce : 0.0;
+    f1 = sl == 1 ? nforce : 0.0;
+    c0 = sl == 0 ? comp : 0.0;
+    c1 = sl == 1 ? comp : 0.0;
+  } else {
+    gl10 = laneEnd(i, END_GL0);
+    gm10 = laneEnd(i, END_GM0);
+    gl11 = laneEnd(i, END_GL1);
+    gm11 = laneEnd(i, END_GM1);
+    c0 = laneEnd(i, END_C0);
+    c1 = laneEnd(i, END_C1);
+    f0 = laneEnd(i, END_F0);
+    f1 = laneEnd(i, END_F1);
+  }
+  const gs1 = -nvy;
+  const gg1 = s.groundRel - npy;
+  const gb1 = -nvx;
+  if (lgAt(legs, 0, LF_ON) != 0.0 && (lgAt(legs, 0, LF_COMPRESSING) != 0.0 || lgAt(legs, 0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm00, gm10)) return false;
+  if (lgAt(legs, 1, LF_ON) != 0.0 && (lgAt(legs, 1, LF_COMPRESSING) != 0.0 || lgAt(legs, 1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm01, gm11)) return false;
+  if (lgAt(legs, 0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl00, gl10)) return false;
+  if (lgAt(legs, 1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl01, gl11)) return false;
+  if (crossesB(EVB_GROUND, s.gg0, gg1)) return false;
+  if (crossesB(EVB_BACKWARD, s.gb0, gb1)) return false;
+  if (single && s.sectionArmed && crossesB(EVB_SECTION, s.gs0, gs1)) return false;
+  let gt1: f64 = 0.0;
+  if (single) {
+    if (!s.armed) {
+      gt1 = load<f64>(buf + OFF_YN, 0) - (lgAt(legs, sl, LF_FX) - s.ox);
+      if (crossesB(EVB_MIDSTANCE, s.gt0, gt1)) return false;
+    } else {
+      const sw = s.swing;
+      const height = s.fixedAngle ? lgAt(legs, sw, LF_TOUCH_HEIGHT) : lgAt(legs, sw, LF_L0) * legSin(attackAt(s.model, s.tSec0 + (s.tS + s.h)));
+      gt1 = height - (npy + s.oy - s.swingGround);
+      if (crossesB(EVB_TOUCHDOWN, s.gt0, gt1)) return false;
+    }
+  }
+  // accepted, no event: contactAfter's bookkeeping, notePeaks, advance and acceptFactor
+  if (s.firstStep) {
+    s.firstH = s.h;
+    s.firstStep = false;
+  }
+  s.steps++;
+  s.stepsHere++;
+  if (f0 > lgAt(legs, 0, LF_PEAK)) lsAt(legs, 0, LF_PEAK, f0);
+  if (f1 > lgAt(legs, 1, LF_PEAK)) lsAt(legs, 1, LF_PEAK, f1);
+  if (c0 > lgAt(legs, 0, LF_MAXCOMP)) lsAt(legs, 0, LF_MAXCOMP, c0);
+  if (c1 > lgAt(legs, 1, LF_MAXCOMP)) lsAt(legs, 1, LF_MAXCOMP, c1);
+  if (fy > s.peakVertical) s.peakVertical = fy;
+  if (fy > 0.0) {
+    const fr = Math.abs(fx / fy);
+    if (fr > s.peakFriction) s.peakFriction = fr;
+  }
+  s.tS += s.h;
+  for (let j: usize = 0; j < 40; j += 8) {
+    store<f64>(buf + OFF_Y0 + j, load<f64>(buf + OFF_YN + j));
+    store<f64>(buf + OFF_K1 + j, load<f64>(buf + OFF_K7 + j));
+  }
+  s.gl00 = gl10;
+  s.gl01 = gl11;
+  s.gm00 = gm10;
+  s.gm01 = gm11;
+  s.gs0 = gs1;
+  s.gg0 = gg1;
+  s.gb0 = gb1;
+  if (single) s.gt0 = gt1;
+  const ext = LANE_EXT + <usize>i * LANE_BYTES;
+  const f = acceptedFactor(err, s.afterReject, load<f64>(ext, 16));
+  store<f64>(ext, controllerMemory(err), 16);
+  store<f64>(ext, s.h, 0);
+  s.h *= f;
+  s.afterReject = false;
+  return true;
+}
+
+// From the end of a contact piece (r: CONTACT_GO while the contact goes on), run the rollout in
+// hand up to its next step: true when it needs one (of size h), false when it has ended (its
+// summary written).
+function laneRun(r0: i32): bool {
+  let r = r0;
+  for (;;) {
+    if (r == CONTACT_GO) {
+      r = contactBefore();
+      if (r == CONTACT_GO) return true;
+    }
+    if (!strideEnd(r) || !strideBegin()) {
+      if (rolloutEnd() == STATUS_OK) batchOk++;
+      return false;
+    }
+    contactBegin(S.strideRec);
+    r = CONTACT_GO;
+  }
+  return false; // not reached
+}
+
+// rollouts x strides of the two-leg model, `lanes` (2 or 4) rollouts at a time: walking steps
+// with undamped legs in f64x2 lanes, two lanes a step (stepPairW), every other step, event and stride
+// by the one-rollout code. The same records and summaries as runBipedRollout one rollout after
+// the other (the check: test/lanes.test.ts). Returns how many rollouts completed every stride.
+export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts: i32, nStrides: i32, records: usize, summaries: usize): i32 {
+  batchOk = 0;
+  pairCalls = 0;
+  let next = 0;
+  let live = 0; // bit i: lane i holds a rollout that asks for a step
+  let pairable = 0; // bit i: that step is a walking step with undamped legs
+  let singles = 0; // bit i: in single support
+  for (;;) {
+    for (let i = 0; i < lanes; i++) {
+      if ((live & (1 << i)) != 0) continue;
+      laneSelect(i);
+      while (next < rollouts) {
+        const r = next++;
+        const input = inputs + (<usize>r * I_SIZE << 3);
+        const mdl = models + (<usize>get(input, I_MODEL) * M_SIZE << 3);
+        const rec = records != 0 ? records + (<usize>r * nStrides * R_SIZE << 3) : 0;
+        const sum = summaries + (<usize>r * S_SIZE << 3);
+        rolloutBegin(mdl, input, nStrides, rec, sum);
+        if (!strideBegin()) {
+          if (rolloutEnd() == STATUS_OK) batchOk++;
+          continue;
+        }
+        contactBegin(S.strideRec);
+        if (laneRun(CONTACT_GO)) {
+          live |= 1 << i;
+          if (laneStepParams(i)) pairable |= 1 << i;
+          else pairable &= ~(1 << i);
+          if (S.single) singles |= 1 << i;
+          else singles &= ~(1 << i);
+          laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          break;
+        }
+      }
+    }
+    if (live == 0) break;
+    // the lanes whose step is taken in f64x2 lanes
+    let paired = 0;
+    for (let q = 0; q < lanes; q += 2) {
+      const m = 3 << q;
+      if ((live & m) == m && (pairable & m) == m) {
+        if ((singles & m) == m) stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        else stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        paired |= m;
+        pairCalls++;
+      }
+    }
+    for (let i = 0; i < lanes; i++) {
+      if ((live & (1 << i)) == 0) continue;
+      if ((paired & (1 << i)) != 0 && laneAfterQuiet(i, laneError(i))) {
+        // contactBefore's checks; the contact goes on without switching to the lane
+        const s = laneState(i);
+        if (s.stepsHere < s.maxSteps && !(s.tS > s.tContactLimit) && !(s.h < s.hMin)) {
+          ppSet(PP_H, i, s.h);
+          continue;
+        }
+        laneSelect(i);
+        laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
+        if (laneRun(CONTACT_GO)) {
+          if (laneStepParams(i)) pairable |= 1 << i;
+          else pairable &= ~(1 << i);
+          if (S.single) singles |= 1 << i;
+          else singles &= ~(1 << i);
+          laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+        } else {
+          live &= ~(1 << i);
+        }
+        continue;
+      }
+      laneSelect(i);
+      laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
+      let err: f64;
+      if ((paired & (1 << i)) != 0) {
+        setLastH(S.h);
+        unpackStages(i, laneBuffers(i));
+        err = laneError(i);
+      } else {
+        err = bstep(S.h);
+      }
+      if (laneRun(contactAfter(err))) {
+        if (laneStepParams(i)) pairable |= 1 << i;
+        else pairable &= ~(1 << i);
+        if (S.single) singles |= 1 << i;
+        else singles &= ~(1 << i);
+        laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+      } else {
+        live &= ~(1 << i);
+      }
+    }
+  }
+  S = changetype<BipedState>(STATE_DEFAULT);
+  LEGS = LEGS_DEFAULT;
+  S.scratchRecord = SCRATCH_RECORD;
+  useBuffers(DEFAULT_BUFFERS);
+  return batchOk;
 }

@@ -27,7 +27,7 @@ import {
   STATUS_ATTACK_OUT_OF_RANGE, STATUS_STEP_LIMIT,
   PHASE_STANCE, PHASE_FLIGHT,
 } from "./layout";
-import { runBipedRollout } from "./biped";
+import { runBipedRollout, runBipedBatch, bipedPairedSteps } from "./biped";
 import { mget, attackAt, chooseStiffness, stanceKc, stanceKe, stanceSplit } from "./policy";
 import {
   touchdownTime, legSin, legCos, TOUCHDOWN_NOT_PLACEABLE, TOUCHDOWN_GROUND_FIRST, TOUCHDOWN_ANGLE_LEFT,
@@ -477,12 +477,20 @@ function runLanes(lanes: i32, models: usize, inputs: usize, rollouts: i32, strid
 export function runBatch(models: usize, inputs: usize, rollouts: i32, strides: i32, records: usize, summaries: usize): i32 {
   pairSteps = 0;
   let pairs = batchLanes > 1 && rollouts > 1;
-  for (let r = 0; r < rollouts && pairs; r++) {
+  let bipeds = 0;
+  for (let r = 0; r < rollouts; r++) {
     const input = inputs + (<usize>r * I_SIZE << 3);
     const model = models + (<usize>get(input, I_MODEL) * M_SIZE << 3);
-    if (<i32>mget(model, M_MODEL_KIND) == MODEL_BIPED) pairs = false;
+    if (<i32>mget(model, M_MODEL_KIND) == MODEL_BIPED) bipeds++;
   }
-  if (pairs) return runLanes(rollouts >= 4 ? batchLanes : 2, models, inputs, rollouts, strides, records, summaries);
+  // one model kind in lanes (single-leg: runLanes; two-leg: runBipedBatch), a mixed batch one
+  // rollout after the other
+  if (pairs && bipeds == 0) return runLanes(rollouts >= 4 ? batchLanes : 2, models, inputs, rollouts, strides, records, summaries);
+  if (pairs && bipeds == rollouts) {
+    const ok = runBipedBatch(rollouts >= 4 ? batchLanes : 2, models, inputs, rollouts, strides, records, summaries);
+    pairSteps = bipedPairedSteps();
+    return ok;
+  }
   let ok = 0;
   for (let r = 0; r < rollouts; r++) {
     const input = inputs + (<usize>r * I_SIZE << 3);

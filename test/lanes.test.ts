@@ -9,6 +9,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { L, scenario } from './helpers.js';
 import { loadEngine, rolloutInput, type BatchRequest, type BatchResult, type Engine } from '../src/core/engine.js';
 import { buildModel, startInput } from '../src/core/model.js';
+import { type BipedScenario, sectionInput } from '../src/core/models/biped.js';
 import { parseScenario } from '../src/core/scenario.js';
 import { closeWorkerPool, runBatchParallel } from '../src/worker/pool.js';
 import { readFileSync } from 'node:fs';
@@ -218,3 +219,148 @@ describe('runBatch in two and four lanes', () => {
     }
   });
 });
+
+// The two-leg model in lanes (assembly/biped.ts runBipedBatch; walking steps with undamped legs
+// in the f64x2 lanes of assembly/rk/biped-x2.ts, everything else by the one-rollout code): the
+// check value is again the kernel's own one-lane path, byte for byte.
+const BIPED_ANGLES = [
+  { kind: 'fixed', attack_deg: 70 },
+  { kind: 'retraction', attack_at_apex_deg: 68, rate_deg_per_s: 20, min_deg: 60, max_deg: 75 },
+  { kind: 'time_table', time_since_apex_s: [0, 0.2, 0.4], attack_deg: [70, 69.5, 69] },
+];
+const BIPED_STIFFNESSES = [{ kind: 'constant' }, { kind: 'split', compression_N_per_m: 20000, extension_N_per_m: 20400 }];
+const BIPED_TERRAINS = [
+  { kind: 'flat' },
+  { kind: 'random_heights', sigma_m: 0.005, seed: 7 },
+  { kind: 'random_walk', sigma_m: 0.003, seed: 3 },
+];
+
+/** Every angle kind, two stiffness kinds, three terrains, damped or not; unequal legs and two tolerances alternating. */
+function bipedModels() {
+  const models = [];
+  let k = 0;
+  for (const angle of BIPED_ANGLES) {
+    for (const stiffness of BIPED_STIFFNESSES) {
+      for (const terrain of BIPED_TERRAINS) {
+        for (const damping of [0, 30]) {
+          const s = parseScenario({
+            model: 'biped',
+            body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81, leg_damping_N_s_per_m: damping },
+            legs: k % 3 === 1 ? { right: { leg_length_m: 1.01, stiffness_scale: 0.95 } } : {},
+            start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 1.2 },
+            policy: { angle, stiffness },
+            terrain,
+            strides: 10,
+            integrator: TOLERANCES[k++ % 2],
+          }) as BipedScenario;
+          models.push(buildModel(s));
+        }
+      }
+    }
+  }
+  return models;
+}
+
+/** Walking starts about the walking fixed point and running starts (either leg or both), some body scales. */
+function bipedInputs(rollouts: number, models: number, seed: number): Float64Array {
+  let s = seed;
+  // the C standard's example rand() (ISO/IEC 9899 7.22.2.2), as inputsFor
+  const rnd = () => {
+    s = (s * 1103515245 + 12345) % 2147483648;
+    return s / 2147483648;
+  };
+  const v = new Float64Array(rollouts * L.I_SIZE);
+  for (let r = 0; r < rollouts; r++) {
+    const model = Math.floor(rnd() * models);
+    const row =
+      rnd() < 0.6
+        ? sectionInput({ gait: 'walking', height_m: 0.975 + 0.01 * rnd(), speed_m_per_s: 1.05 + 0.3 * rnd(), offset_m: -0.02 + 0.04 * rnd(), leg: rnd() < 0.5 ? 'left' : 'right' }, r % 5, model)
+        : sectionInput({ gait: 'running', height_m: 0.95 + 0.1 * rnd(), speed_m_per_s: 3 + 3 * rnd(), offset_m: 0, leg: (['left', 'right', 'both'] as const)[Math.floor(rnd() * 3)] }, r % 5, model);
+    if (rnd() < 0.3) {
+      row[L.I_MASS_SCALE] = 0.95 + 0.1 * rnd();
+      row[L.I_STIFFNESS_SCALE] = 0.95 + 0.1 * rnd();
+      row[L.I_LEG_SCALE] = 0.98 + 0.04 * rnd();
+    }
+    v.set(row, r * L.I_SIZE);
+  }
+  return v;
+}
+
+describe('two-leg rollouts in two and four lanes', () => {
+  const models = bipedModels();
+
+  it('walking and running, every angle kind, damped or not: the same bytes as one rollout after the other', async () => {
+    const engine = await loadEngine();
+    const rollouts = 4 * models.length;
+    const req = { model: models, inputs: bipedInputs(rollouts, models.length, 12345), strides: 12, records: true };
+    const one = runWith(engine, 1, req);
+    expect(laneControl(engine).batchPairedSteps()).toBe(0);
+    for (const n of [2, 4]) {
+      const many = runWith(engine, n, req);
+      // walking steps of undamped legs were taken in lanes (a walking stride takes about 180 steps)
+      expect(laneControl(engine).batchPairedSteps()).toBeGreaterThan((20 * 180) / n);
+      expectSameBytes(many, one);
+    }
+    // The comparison means something: both gaits ran, rollouts ended at many different strides
+    // with several statuses, and some completed every stride.
+    const gaits = new Set<number>();
+    for (let i = 0; i < rollouts * 12; i++) if (one.records![i * L.R_SIZE + L.R_STATUS] === L.STATUS_OK) gaits.add(one.records![i * L.R_SIZE + L.R_GAIT]);
+    expect(gaits.has(L.GAIT_WALKING) && gaits.has(L.GAIT_RUNNING)).toBe(true);
+    const statuses = new Set<number>();
+    const ends = new Set<number>();
+    for (let r = 0; r < rollouts; r++) {
+      statuses.add(one.summaries[r * L.S_SIZE + L.S_STATUS]);
+      ends.add(one.summaries[r * L.S_SIZE + L.S_STRIDES_COMPLETED]);
+    }
+    expect(statuses.size).toBeGreaterThan(2);
+    expect(ends.size).toBeGreaterThan(6);
+    expect(one.completed).toBeGreaterThan(rollouts / 10);
+    expect(one.completed).toBeLessThan(rollouts);
+  });
+
+  it('any number of rollouts, with or without records: the same bytes', async () => {
+    const engine = await loadEngine();
+    for (const rollouts of [1, 2, 3, 5, 9]) {
+      for (const records of [true, false]) {
+        const req = { model: models, inputs: bipedInputs(rollouts, models.length, 31 + rollouts), strides: 8, records };
+        const one = runWith(engine, 1, req);
+        expectSameBytes(runWith(engine, 2, req), one);
+        expectSameBytes(runWith(engine, 4, req), one);
+      }
+    }
+  });
+
+  it('a two-leg rollout gives its own bytes alone or with any partners', async () => {
+    const engine = await loadEngine();
+    const inputs = bipedInputs(20, models.length, 77);
+    const all = runWith(engine, 4, { model: models, inputs, strides: 6, records: true });
+    for (const r of [0, 7, 13, 19]) {
+      const alone = runWith(engine, 1, { model: models, inputs: inputs.slice(r * L.I_SIZE, (r + 1) * L.I_SIZE), strides: 6, records: true });
+      expect(bytes(all.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!.equals(bytes(alone.summaries)!)).toBe(true);
+      const n = 6 * L.R_SIZE;
+      expect(bytes(all.records!.subarray(r * n, (r + 1) * n))!.equals(bytes(alone.records)!)).toBe(true);
+    }
+  });
+
+  it('step limits end a lane as they end a lone rollout', async () => {
+    const engine = await loadEngine();
+    const tight = buildModel(
+      parseScenario({
+        model: 'biped',
+        body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },
+        start: { gait: 'walking', apex_height_m: 0.98, forward_speed_m_per_s: 1.2 },
+        policy: { angle: { kind: 'fixed', attack_deg: 70 } },
+        terrain: { kind: 'flat' },
+        strides: 5,
+        integrator: { relative_tolerance: 1e-12, absolute_tolerance: 1e-14, max_steps_per_stance: 150 },
+      }),
+    );
+    const req = { model: [tight, models[0]], inputs: bipedInputs(12, 2, 5), strides: 5, records: true };
+    const one = runWith(engine, 1, req);
+    expectSameBytes(runWith(engine, 2, req), one);
+    expectSameBytes(runWith(engine, 4, req), one);
+    const statuses = new Set(Array.from({ length: 12 }, (_, r) => one.summaries[r * L.S_SIZE + L.S_STATUS]));
+    expect(statuses.has(L.STATUS_STEP_LIMIT)).toBe(true);
+  });
+});
+

@@ -315,7 +315,7 @@ export function setErrOld(e: f64): void {
 
 // Factor for the next step after an accepted step with error err (<= 1), the
 // controller's memory being `old` (rk/dopri5x2.ts forms the same in f64x2 lanes).
-@inline function acceptedFactor(err: f64, afterReject: bool, old: f64): f64 {
+@inline export function acceptedFactor(err: f64, afterReject: bool, old: f64): f64 {
   const hi: f64 = afterReject ? 1.0 : 10.0;
   const e = err > 1e-12 ? err : 1e-12;
   let f = 0.9 * roughPow(e, -EXPO) * roughPow(old, BETA);

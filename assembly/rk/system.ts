@@ -151,3 +151,46 @@ export function setArenstorf(mu: f64): void {
 export function rhs(y: usize, dy: usize): void {
   rhs5(load<f64>(y, 0), load<f64>(y, 8), load<f64>(y, 16), load<f64>(y, 24), load<f64>(y, 32), dy);
 }
+
+// The right-hand side's whole setting (the system and every parameter above but Arenstorf's),
+// SYSTEM_STATE_BYTES at p, and back: rollouts that take turns between steps (biped.ts) each
+// keep their own.
+export const SYSTEM_STATE_BYTES: usize = 17 * 8;
+export function saveSystem(p: usize): void {
+  store<f64>(p, <f64>system, 0);
+  store<f64>(p, stanceMass, 8);
+  store<f64>(p, stanceInvMass, 16);
+  store<f64>(p, stanceLeg, 24);
+  store<f64>(p, stanceK, 32);
+  store<f64>(p, stanceC, 40);
+  store<f64>(p, stanceG, 48);
+  store<f64>(p, bipedFx0, 56);
+  store<f64>(p, bipedFy0, 64);
+  store<f64>(p, bipedFx1, 72);
+  store<f64>(p, bipedFy1, 80);
+  store<f64>(p, bipedL0, 88);
+  store<f64>(p, bipedL1, 96);
+  store<f64>(p, bipedK0, 104);
+  store<f64>(p, bipedK1, 112);
+  store<f64>(p, bipedC0, 120);
+  store<f64>(p, bipedC1, 128);
+}
+export function loadSystem(p: usize): void {
+  system = <i32>load<f64>(p, 0);
+  stanceMass = load<f64>(p, 8);
+  stanceInvMass = load<f64>(p, 16);
+  stanceLeg = load<f64>(p, 24);
+  stanceK = load<f64>(p, 32);
+  stanceC = load<f64>(p, 40);
+  stanceG = load<f64>(p, 48);
+  bipedFx0 = load<f64>(p, 56);
+  bipedFy0 = load<f64>(p, 64);
+  bipedFx1 = load<f64>(p, 72);
+  bipedFy1 = load<f64>(p, 80);
+  bipedL0 = load<f64>(p, 88);
+  bipedL1 = load<f64>(p, 96);
+  bipedK0 = load<f64>(p, 104);
+  bipedK1 = load<f64>(p, 112);
+  bipedC0 = load<f64>(p, 120);
+  bipedC1 = load<f64>(p, 128);
+}

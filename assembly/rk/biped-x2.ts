@@ -1,0 +1,525 @@
+// The two-leg model's walking step (step4w in biped.ts: undamped legs, the first four components)
+// for two rollouts at once, one in each f64x2 lane (runBipedBatch in biped.ts). Each lane
+// performs the same IEEE operations in the same order as step4w (WebAssembly has no fused
+// multiply-add, and f64x2 arithmetic rounds each lane as scalar f64 does; WebAssembly SIMD
+// specification), so a lane's stages, end state and error are step4w's, bit for bit.
+//
+// A lane in single support has its stance foot at the origin: its leg 0 is the stance leg with
+// the foot at (0, 0) (x - 0 is x, bit for bit, -0 included), and its leg-0 term alone is taken
+// (bitselect), so its acceleration is single support's a (px, py) - (0, g) with the same
+// roundings; a lane in double support adds both legs' terms in step4w's order. The step is a
+// chain of square roots and divisions; two in one f64x2 chain cost little more than one (four in
+// two interleaved chains measured no faster on the development machine: register pressure).
+
+import {
+  A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
+  B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
+} from "./dopri5";
+
+// Each lane's step: for lanes 2 p and 2 p + 1 (lane pair p), as f64x2 at PAIR_PARAMS +
+// PAIR_BYTES * p + 16 * field; written by the driver before a step.
+export const PAIR_BYTES: usize = 14 * 16;
+export const PAIR_PARAMS: usize = memory.data(2 * 14 * 16, 16);
+export const PP_H = 0; // s, step size
+export const PP_RTOL = 1;
+export const PP_ATOL = 2;
+export const PP_INV_MASS = 3; // 1/kg
+export const PP_G = 4; // m/s^2
+export const PP_FX0 = 5; // m, leg 0's foot relative to the origin (single support: the stance leg, 0)
+export const PP_FY0 = 6;
+export const PP_L0 = 7; // m, leg 0's rest length
+export const PP_K0 = 8; // N/m, leg 0's current stiffness
+export const PP_FX1 = 9; // leg 1 likewise (single support: unused)
+export const PP_FY1 = 10;
+export const PP_L1 = 11;
+export const PP_K1 = 12;
+export const PP_SINGLE = 13; // all bits set in a lane in single support, else 0
+
+// K3..K6 (first four components) of the last step of each lane pair, as f64x2 (stage, component)
+// at LANE_STAGES + 256 * pair: a lane's own buffers get them (unpackStages) only when it needs
+// them (the interpolant, for an event inside the step). K2 is not kept: no one reads it after
+// a step (dense() has no K2 term).
+const LANE_STAGES: usize = memory.data(2 * 256, 16);
+
+// The K3..K6 of lane `lane` (0..3) of the last step into its buffer set at p.
+export function unpackStages(lane: i32, p: usize): void {
+  const src = LANE_STAGES + <usize>(lane >> 1) * 256 + <usize>(lane & 1) * 8;
+  for (let k: usize = 0; k < 4; k++) {
+    for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_K3 + k * 40 + (j << 3), load<f64>(src + ((k * 4 + j) << 4)));
+  }
+}
+
+// The step end's leg values of each lane pair, as f64x2 at LANE_END + END_BYTES * pair + 16 * field
+// (lane 0 / 2, lane 1 / 3): for slot 0 (leg 0, or the stance leg in single support) and slot 1
+// (leg 1 in double support) r - L0, r', L0 - r and the leg force, and the summed force along x
+// and y, as contactAfter forms them (laneAfterQuiet reads them).
+export const END_BYTES: usize = 10 * 16;
+const LANE_END: usize = memory.data(2 * 10 * 16, 16);
+export const END_GL0 = 0;
+export const END_GM0 = 1;
+export const END_C0 = 2;
+export const END_F0 = 3;
+export const END_GL1 = 4;
+export const END_GM1 = 5;
+export const END_C1 = 6;
+export const END_F1 = 7;
+export const END_FX = 8;
+export const END_FY = 9;
+
+@inline export function laneEnd(lane: i32, field: i32): f64 {
+  return load<f64>(LANE_END + <usize>(lane >> 1) * END_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3));
+}
+
+// The error of the last step in each lane (0..3), as step4w returns it (NaN: a non-finite stage).
+const LANE_ERRORS: usize = memory.data(4 * 8, 16);
+@inline export function laneError(lane: i32): f64 {
+  return load<f64>(LANE_ERRORS + (<usize>lane << 3));
+}
+
+@inline function ppAt(field: i32, pair: usize): v128 {
+  return v128.load(PAIR_PARAMS + pair * PAIR_BYTES + (<usize>field << 4));
+}
+
+@inline function storeErrors(err: v128, finite: v128, pair: usize): void {
+  const e0 = f64x2.extract_lane(err, 0);
+  const e1 = f64x2.extract_lane(err, 1);
+  store<f64>(LANE_ERRORS + (pair << 4), !isFinite(e0) || f64x2.extract_lane(finite, 0) != 0.0 ? NaN : e0);
+  store<f64>(LANE_ERRORS + (pair << 4) + 8, !isFinite(e1) || f64x2.extract_lane(finite, 1) != 0.0 ? NaN : e1);
+}
+@inline function ld2(b0: usize, b1: usize, off: usize): v128 {
+  return f64x2.replace_lane(f64x2.splat(load<f64>(b0 + off)), 1, load<f64>(b1 + off));
+}
+@inline function st2(b0: usize, b1: usize, off: usize, v: v128): void {
+  store<f64>(b0 + off, f64x2.extract_lane(v, 0));
+  store<f64>(b1 + off, f64x2.extract_lane(v, 1));
+}
+
+@inline function mul(a: v128, b: v128): v128 {
+  return f64x2.mul(a, b);
+}
+@inline function add(a: v128, b: v128): v128 {
+  return f64x2.add(a, b);
+}
+@inline function sp(c: f64): v128 {
+  return f64x2.splat(c);
+}
+
+// One step of size PP_H from each lane's (Y0, K1) in the buffer sets at b0 and b1 (dopri5.ts
+// offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and pairErr0 / pairErr1.
+// One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` in the buffer sets at b0 and
+// b1 (dopri5.ts offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and the lanes'
+// errors (laneError).
+export function stepPairW(b0: usize, b1: usize, pair: usize): void {
+  const PA = pair;
+  const h = ppAt(PP_H, PA);
+  const invM = ppAt(PP_INV_MASS, PA);
+  const grav = ppAt(PP_G, PA);
+  const fx0 = ppAt(PP_FX0, PA);
+  const fy0 = ppAt(PP_FY0, PA);
+  const l0 = ppAt(PP_L0, PA);
+  const k0 = ppAt(PP_K0, PA);
+  const fx1 = ppAt(PP_FX1, PA);
+  const fy1 = ppAt(PP_FY1, PA);
+  const l1 = ppAt(PP_L1, PA);
+  const k1 = ppAt(PP_K1, PA);
+  const single = ppAt(PP_SINGLE, PA);
+  const one = sp(1.0);
+  const hA21 = mul(h, sp(A21));
+  const hA32 = mul(h, sp(A32));
+  const hA43 = mul(h, sp(A43));
+  const hA54 = mul(h, sp(A54));
+  const hA65 = mul(h, sp(A65));
+  const hB6 = mul(h, sp(B6));
+  const y0 = ld2(b0, b1, OFF_Y0);
+  const y1 = ld2(b0, b1, OFF_Y0 + 8);
+  const y2 = ld2(b0, b1, OFF_Y0 + 16);
+  const y3 = ld2(b0, b1, OFF_Y0 + 24);
+  const a0 = ld2(b0, b1, OFF_K1);
+  const a1 = ld2(b0, b1, OFF_K1 + 8);
+  const a2 = ld2(b0, b1, OFF_K1 + 16);
+  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  // stage 2
+  const bp0 = add(y0, mul(hA21, a0));
+  const bp1 = add(y1, mul(hA21, a1));
+  const b0v = add(y2, mul(hA21, a2));
+  const b1v = add(y3, mul(hA21, a3));
+  const q2dx0 = f64x2.sub(bp0, fx0);
+  const q2dy0 = f64x2.sub(bp1, fy0);
+  const q2r0 = f64x2.sqrt(add(mul(q2dx0, q2dx0), mul(q2dy0, q2dy0)));
+  const q2ac0 = mul(mul(mul(k0, f64x2.sub(l0, q2r0)), f64x2.div(one, q2r0)), invM);
+  const q2dx1 = f64x2.sub(bp0, fx1);
+  const q2dy1 = f64x2.sub(bp1, fy1);
+  const q2r1 = f64x2.sqrt(add(mul(q2dx1, q2dx1), mul(q2dy1, q2dy1)));
+  const q2ac1 = mul(mul(mul(k1, f64x2.sub(l1, q2r1)), f64x2.div(one, q2r1)), invM);
+  const q2s2 = mul(q2ac0, q2dx0);
+  const q2s3 = mul(q2ac0, q2dy0);
+  const b2v = v128.bitselect(q2s2, add(q2s2, mul(q2ac1, q2dx1)), single);
+  const b3v = f64x2.sub(v128.bitselect(q2s3, add(q2s3, mul(q2ac1, q2dy1)), single), grav);
+  // stage 3
+  const cp0 = add(add(y0, mul(h, mul(sp(A31), a0))), mul(hA32, b0v));
+  const cp1 = add(add(y1, mul(h, mul(sp(A31), a1))), mul(hA32, b1v));
+  const c0 = add(add(y2, mul(h, mul(sp(A31), a2))), mul(hA32, b2v));
+  const c1 = add(add(y3, mul(h, mul(sp(A31), a3))), mul(hA32, b3v));
+  const q3dx0 = f64x2.sub(cp0, fx0);
+  const q3dy0 = f64x2.sub(cp1, fy0);
+  const q3r0 = f64x2.sqrt(add(mul(q3dx0, q3dx0), mul(q3dy0, q3dy0)));
+  const q3ac0 = mul(mul(mul(k0, f64x2.sub(l0, q3r0)), f64x2.div(one, q3r0)), invM);
+  const q3dx1 = f64x2.sub(cp0, fx1);
+  const q3dy1 = f64x2.sub(cp1, fy1);
+  const q3r1 = f64x2.sqrt(add(mul(q3dx1, q3dx1), mul(q3dy1, q3dy1)));
+  const q3ac1 = mul(mul(mul(k1, f64x2.sub(l1, q3r1)), f64x2.div(one, q3r1)), invM);
+  const q3s2 = mul(q3ac0, q3dx0);
+  const q3s3 = mul(q3ac0, q3dy0);
+  const c2 = v128.bitselect(q3s2, add(q3s2, mul(q3ac1, q3dx1)), single);
+  const c3 = f64x2.sub(v128.bitselect(q3s3, add(q3s3, mul(q3ac1, q3dy1)), single), grav);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3);
+  // stage 4
+  const dp0 = add(add(y0, mul(h, add(mul(sp(A41), a0), mul(sp(A42), b0v)))), mul(hA43, c0));
+  const dp1 = add(add(y1, mul(h, add(mul(sp(A41), a1), mul(sp(A42), b1v)))), mul(hA43, c1));
+  const d0 = add(add(y2, mul(h, add(mul(sp(A41), a2), mul(sp(A42), b2v)))), mul(hA43, c2));
+  const d1 = add(add(y3, mul(h, add(mul(sp(A41), a3), mul(sp(A42), b3v)))), mul(hA43, c3));
+  const q4dx0 = f64x2.sub(dp0, fx0);
+  const q4dy0 = f64x2.sub(dp1, fy0);
+  const q4r0 = f64x2.sqrt(add(mul(q4dx0, q4dx0), mul(q4dy0, q4dy0)));
+  const q4ac0 = mul(mul(mul(k0, f64x2.sub(l0, q4r0)), f64x2.div(one, q4r0)), invM);
+  const q4dx1 = f64x2.sub(dp0, fx1);
+  const q4dy1 = f64x2.sub(dp1, fy1);
+  const q4r1 = f64x2.sqrt(add(mul(q4dx1, q4dx1), mul(q4dy1, q4dy1)));
+  const q4ac1 = mul(mul(mul(k1, f64x2.sub(l1, q4r1)), f64x2.div(one, q4r1)), invM);
+  const q4s2 = mul(q4ac0, q4dx0);
+  const q4s3 = mul(q4ac0, q4dy0);
+  const d2 = v128.bitselect(q4s2, add(q4s2, mul(q4ac1, q4dx1)), single);
+  const d3 = f64x2.sub(v128.bitselect(q4s3, add(q4s3, mul(q4ac1, q4dy1)), single), grav);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3);
+  // stage 5
+  const ep0 = add(add(y0, mul(h, add(add(mul(sp(A51), a0), mul(sp(A52), b0v)), mul(sp(A53), c0)))), mul(hA54, d0));
+  const ep1 = add(add(y1, mul(h, add(add(mul(sp(A51), a1), mul(sp(A52), b1v)), mul(sp(A53), c1)))), mul(hA54, d1));
+  const e0 = add(add(y2, mul(h, add(add(mul(sp(A51), a2), mul(sp(A52), b2v)), mul(sp(A53), c2)))), mul(hA54, d2));
+  const e1 = add(add(y3, mul(h, add(add(mul(sp(A51), a3), mul(sp(A52), b3v)), mul(sp(A53), c3)))), mul(hA54, d3));
+  const q5dx0 = f64x2.sub(ep0, fx0);
+  const q5dy0 = f64x2.sub(ep1, fy0);
+  const q5r0 = f64x2.sqrt(add(mul(q5dx0, q5dx0), mul(q5dy0, q5dy0)));
+  const q5ac0 = mul(mul(mul(k0, f64x2.sub(l0, q5r0)), f64x2.div(one, q5r0)), invM);
+  const q5dx1 = f64x2.sub(ep0, fx1);
+  const q5dy1 = f64x2.sub(ep1, fy1);
+  const q5r1 = f64x2.sqrt(add(mul(q5dx1, q5dx1), mul(q5dy1, q5dy1)));
+  const q5ac1 = mul(mul(mul(k1, f64x2.sub(l1, q5r1)), f64x2.div(one, q5r1)), invM);
+  const q5s2 = mul(q5ac0, q5dx0);
+  const q5s3 = mul(q5ac0, q5dy0);
+  const e2 = v128.bitselect(q5s2, add(q5s2, mul(q5ac1, q5dx1)), single);
+  const e3 = f64x2.sub(v128.bitselect(q5s3, add(q5s3, mul(q5ac1, q5dy1)), single), grav);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3);
+  // stage 6
+  const fp0 = add(add(y0, mul(h, add(add(add(mul(sp(A61), a0), mul(sp(A62), b0v)), mul(sp(A63), c0)), mul(sp(A64), d0)))), mul(hA65, e0));
+  const fp1 = add(add(y1, mul(h, add(add(add(mul(sp(A61), a1), mul(sp(A62), b1v)), mul(sp(A63), c1)), mul(sp(A64), d1)))), mul(hA65, e1));
+  const f0 = add(add(y2, mul(h, add(add(add(mul(sp(A61), a2), mul(sp(A62), b2v)), mul(sp(A63), c2)), mul(sp(A64), d2)))), mul(hA65, e2));
+  const f1 = add(add(y3, mul(h, add(add(add(mul(sp(A61), a3), mul(sp(A62), b3v)), mul(sp(A63), c3)), mul(sp(A64), d3)))), mul(hA65, e3));
+  const q6dx0 = f64x2.sub(fp0, fx0);
+  const q6dy0 = f64x2.sub(fp1, fy0);
+  const q6r0 = f64x2.sqrt(add(mul(q6dx0, q6dx0), mul(q6dy0, q6dy0)));
+  const q6ac0 = mul(mul(mul(k0, f64x2.sub(l0, q6r0)), f64x2.div(one, q6r0)), invM);
+  const q6dx1 = f64x2.sub(fp0, fx1);
+  const q6dy1 = f64x2.sub(fp1, fy1);
+  const q6r1 = f64x2.sqrt(add(mul(q6dx1, q6dx1), mul(q6dy1, q6dy1)));
+  const q6ac1 = mul(mul(mul(k1, f64x2.sub(l1, q6r1)), f64x2.div(one, q6r1)), invM);
+  const q6s2 = mul(q6ac0, q6dx0);
+  const q6s3 = mul(q6ac0, q6dy0);
+  const f2 = v128.bitselect(q6s2, add(q6s2, mul(q6ac1, q6dx1)), single);
+  const f3 = f64x2.sub(v128.bitselect(q6s3, add(q6s3, mul(q6ac1, q6dy1)), single), grav);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3);
+  // the 5th-order solution
+  const n0 = add(add(y0, mul(h, add(add(add(mul(sp(B1), a0), mul(sp(B3), c0)), mul(sp(B4), d0)), mul(sp(B5), e0)))), mul(hB6, f0));
+  const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
+  const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
+  const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
+  st2(b0, b1, OFF_YN, n0);
+  st2(b0, b1, OFF_YN + 8, n1);
+  st2(b0, b1, OFF_YN + 16, n2);
+  st2(b0, b1, OFF_YN + 24, n3);
+  // stage 7 (FSAL)
+  const g0 = n2;
+  const g1 = n3;
+  const q7dx0 = f64x2.sub(n0, fx0);
+  const q7dy0 = f64x2.sub(n1, fy0);
+  const q7r0 = f64x2.sqrt(add(mul(q7dx0, q7dx0), mul(q7dy0, q7dy0)));
+  const q7ac0 = mul(mul(mul(k0, f64x2.sub(l0, q7r0)), f64x2.div(one, q7r0)), invM);
+  const q7dx1 = f64x2.sub(n0, fx1);
+  const q7dy1 = f64x2.sub(n1, fy1);
+  const q7r1 = f64x2.sqrt(add(mul(q7dx1, q7dx1), mul(q7dy1, q7dy1)));
+  const q7ac1 = mul(mul(mul(k1, f64x2.sub(l1, q7r1)), f64x2.div(one, q7r1)), invM);
+  const q7s2 = mul(q7ac0, q7dx0);
+  const q7s3 = mul(q7ac0, q7dy0);
+  const g2 = v128.bitselect(q7s2, add(q7s2, mul(q7ac1, q7dx1)), single);
+  const g3 = f64x2.sub(v128.bitselect(q7s3, add(q7s3, mul(q7ac1, q7dy1)), single), grav);
+  st2(b0, b1, OFF_K7, g0);
+  st2(b0, b1, OFF_K7 + 8, g1);
+  st2(b0, b1, OFF_K7 + 16, g2);
+  st2(b0, b1, OFF_K7 + 24, g3);
+  // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
+  // is the stance leg in single support
+  {
+    const zero = sp(0.0);
+    const dx0 = f64x2.sub(n0, fx0);
+    const dy0 = f64x2.sub(n1, fy0);
+    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
+    const c0 = f64x2.sub(l0, r0);
+    const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
+    const x0 = f64x2.div(mul(f0, dx0), r0);
+    const y0 = f64x2.div(mul(f0, dy0), r0);
+    const e = LANE_END + PA * END_BYTES;
+    v128.store(e + END_GL0 * 16, f64x2.sub(r0, l0));
+    v128.store(e + END_GM0 * 16, gm0);
+    v128.store(e + END_C0 * 16, c0);
+    v128.store(e + END_F0 * 16, f0);
+    const dx1 = f64x2.sub(n0, fx1);
+    const dy1 = f64x2.sub(n1, fy1);
+    const r1 = f64x2.sqrt(add(mul(dx1, dx1), mul(dy1, dy1)));
+    const gm1 = f64x2.div(add(mul(dx1, n2), mul(dy1, n3)), r1);
+    const c1 = f64x2.sub(l1, r1);
+    const f1 = f64x2.sub(mul(k1, c1), mul(zero, gm1));
+    v128.store(e + END_GL1 * 16, f64x2.sub(r1, l1));
+    v128.store(e + END_GM1 * 16, gm1);
+    v128.store(e + END_C1 * 16, c1);
+    v128.store(e + END_F1 * 16, f1);
+    v128.store(e + END_FX * 16, v128.bitselect(x0, add(x0, f64x2.div(mul(f1, dx1), r1)), single));
+    v128.store(e + END_FY * 16, v128.bitselect(y0, add(y0, f64x2.div(mul(f1, dy1), r1)), single));
+  }
+  // the error norm over the four components, in step4w's order
+  const rtol = ppAt(PP_RTOL, PA);
+  const atol = ppAt(PP_ATOL, PA);
+  let sum = sp(0.0);
+  let finite = sp(0.0);
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a0), mul(sp(E3), c0)), mul(sp(E4), d0)), mul(sp(E5), e0)), mul(sp(E6), f0)), mul(sp(E7), g0)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y0), f64x2.abs(n0))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n0, n0));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a1), mul(sp(E3), c1)), mul(sp(E4), d1)), mul(sp(E5), e1)), mul(sp(E6), f1)), mul(sp(E7), g1)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y1), f64x2.abs(n1))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n1, n1));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a2), mul(sp(E3), c2)), mul(sp(E4), d2)), mul(sp(E5), e2)), mul(sp(E6), f2)), mul(sp(E7), g2)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y2), f64x2.abs(n2))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n2, n2));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a3), mul(sp(E3), c3)), mul(sp(E4), d3)), mul(sp(E5), e3)), mul(sp(E6), f3)), mul(sp(E7), g3)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y3), f64x2.abs(n3))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n3, n3));
+  }
+  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  storeErrors(err, finite, PA);
+}
+
+
+// stepPairW for two lanes both in single support: leg 0 alone (the same operations as
+// stepPairW's leg-0 term, which single support takes).
+export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
+  const PA = pair;
+  const h = ppAt(PP_H, PA);
+  const invM = ppAt(PP_INV_MASS, PA);
+  const grav = ppAt(PP_G, PA);
+  const fx0 = ppAt(PP_FX0, PA);
+  const fy0 = ppAt(PP_FY0, PA);
+  const l0 = ppAt(PP_L0, PA);
+  const k0 = ppAt(PP_K0, PA);
+  const one = sp(1.0);
+  const hA21 = mul(h, sp(A21));
+  const hA32 = mul(h, sp(A32));
+  const hA43 = mul(h, sp(A43));
+  const hA54 = mul(h, sp(A54));
+  const hA65 = mul(h, sp(A65));
+  const hB6 = mul(h, sp(B6));
+  const y0 = ld2(b0, b1, OFF_Y0);
+  const y1 = ld2(b0, b1, OFF_Y0 + 8);
+  const y2 = ld2(b0, b1, OFF_Y0 + 16);
+  const y3 = ld2(b0, b1, OFF_Y0 + 24);
+  const a0 = ld2(b0, b1, OFF_K1);
+  const a1 = ld2(b0, b1, OFF_K1 + 8);
+  const a2 = ld2(b0, b1, OFF_K1 + 16);
+  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  // stage 2
+  const bp0 = add(y0, mul(hA21, a0));
+  const bp1 = add(y1, mul(hA21, a1));
+  const b0v = add(y2, mul(hA21, a2));
+  const b1v = add(y3, mul(hA21, a3));
+  const q2dx0 = f64x2.sub(bp0, fx0);
+  const q2dy0 = f64x2.sub(bp1, fy0);
+  const q2r0 = f64x2.sqrt(add(mul(q2dx0, q2dx0), mul(q2dy0, q2dy0)));
+  const q2ac0 = mul(mul(mul(k0, f64x2.sub(l0, q2r0)), f64x2.div(one, q2r0)), invM);
+  const q2s2 = mul(q2ac0, q2dx0);
+  const q2s3 = mul(q2ac0, q2dy0);
+  const b2v = q2s2;
+  const b3v = f64x2.sub(q2s3, grav);
+  // stage 3
+  const cp0 = add(add(y0, mul(h, mul(sp(A31), a0))), mul(hA32, b0v));
+  const cp1 = add(add(y1, mul(h, mul(sp(A31), a1))), mul(hA32, b1v));
+  const c0 = add(add(y2, mul(h, mul(sp(A31), a2))), mul(hA32, b2v));
+  const c1 = add(add(y3, mul(h, mul(sp(A31), a3))), mul(hA32, b3v));
+  const q3dx0 = f64x2.sub(cp0, fx0);
+  const q3dy0 = f64x2.sub(cp1, fy0);
+  const q3r0 = f64x2.sqrt(add(mul(q3dx0, q3dx0), mul(q3dy0, q3dy0)));
+  const q3ac0 = mul(mul(mul(k0, f64x2.sub(l0, q3r0)), f64x2.div(one, q3r0)), invM);
+  const q3s2 = mul(q3ac0, q3dx0);
+  const q3s3 = mul(q3ac0, q3dy0);
+  const c2 = q3s2;
+  const c3 = f64x2.sub(q3s3, grav);
+  v128.store(LANE_STAGES + PA * 256 + 0, c0);
+  v128.store(LANE_STAGES + PA * 256 + 16, c1);
+  v128.store(LANE_STAGES + PA * 256 + 32, c2);
+  v128.store(LANE_STAGES + PA * 256 + 48, c3);
+  // stage 4
+  const dp0 = add(add(y0, mul(h, add(mul(sp(A41), a0), mul(sp(A42), b0v)))), mul(hA43, c0));
+  const dp1 = add(add(y1, mul(h, add(mul(sp(A41), a1), mul(sp(A42), b1v)))), mul(hA43, c1));
+  const d0 = add(add(y2, mul(h, add(mul(sp(A41), a2), mul(sp(A42), b2v)))), mul(hA43, c2));
+  const d1 = add(add(y3, mul(h, add(mul(sp(A41), a3), mul(sp(A42), b3v)))), mul(hA43, c3));
+  const q4dx0 = f64x2.sub(dp0, fx0);
+  const q4dy0 = f64x2.sub(dp1, fy0);
+  const q4r0 = f64x2.sqrt(add(mul(q4dx0, q4dx0), mul(q4dy0, q4dy0)));
+  const q4ac0 = mul(mul(mul(k0, f64x2.sub(l0, q4r0)), f64x2.div(one, q4r0)), invM);
+  const q4s2 = mul(q4ac0, q4dx0);
+  const q4s3 = mul(q4ac0, q4dy0);
+  const d2 = q4s2;
+  const d3 = f64x2.sub(q4s3, grav);
+  v128.store(LANE_STAGES + PA * 256 + 64, d0);
+  v128.store(LANE_STAGES + PA * 256 + 80, d1);
+  v128.store(LANE_STAGES + PA * 256 + 96, d2);
+  v128.store(LANE_STAGES + PA * 256 + 112, d3);
+  // stage 5
+  const ep0 = add(add(y0, mul(h, add(add(mul(sp(A51), a0), mul(sp(A52), b0v)), mul(sp(A53), c0)))), mul(hA54, d0));
+  const ep1 = add(add(y1, mul(h, add(add(mul(sp(A51), a1), mul(sp(A52), b1v)), mul(sp(A53), c1)))), mul(hA54, d1));
+  const e0 = add(add(y2, mul(h, add(add(mul(sp(A51), a2), mul(sp(A52), b2v)), mul(sp(A53), c2)))), mul(hA54, d2));
+  const e1 = add(add(y3, mul(h, add(add(mul(sp(A51), a3), mul(sp(A52), b3v)), mul(sp(A53), c3)))), mul(hA54, d3));
+  const q5dx0 = f64x2.sub(ep0, fx0);
+  const q5dy0 = f64x2.sub(ep1, fy0);
+  const q5r0 = f64x2.sqrt(add(mul(q5dx0, q5dx0), mul(q5dy0, q5dy0)));
+  const q5ac0 = mul(mul(mul(k0, f64x2.sub(l0, q5r0)), f64x2.div(one, q5r0)), invM);
+  const q5s2 = mul(q5ac0, q5dx0);
+  const q5s3 = mul(q5ac0, q5dy0);
+  const e2 = q5s2;
+  const e3 = f64x2.sub(q5s3, grav);
+  v128.store(LANE_STAGES + PA * 256 + 128, e0);
+  v128.store(LANE_STAGES + PA * 256 + 144, e1);
+  v128.store(LANE_STAGES + PA * 256 + 160, e2);
+  v128.store(LANE_STAGES + PA * 256 + 176, e3);
+  // stage 6
+  const fp0 = add(add(y0, mul(h, add(add(add(mul(sp(A61), a0), mul(sp(A62), b0v)), mul(sp(A63), c0)), mul(sp(A64), d0)))), mul(hA65, e0));
+  const fp1 = add(add(y1, mul(h, add(add(add(mul(sp(A61), a1), mul(sp(A62), b1v)), mul(sp(A63), c1)), mul(sp(A64), d1)))), mul(hA65, e1));
+  const f0 = add(add(y2, mul(h, add(add(add(mul(sp(A61), a2), mul(sp(A62), b2v)), mul(sp(A63), c2)), mul(sp(A64), d2)))), mul(hA65, e2));
+  const f1 = add(add(y3, mul(h, add(add(add(mul(sp(A61), a3), mul(sp(A62), b3v)), mul(sp(A63), c3)), mul(sp(A64), d3)))), mul(hA65, e3));
+  const q6dx0 = f64x2.sub(fp0, fx0);
+  const q6dy0 = f64x2.sub(fp1, fy0);
+  const q6r0 = f64x2.sqrt(add(mul(q6dx0, q6dx0), mul(q6dy0, q6dy0)));
+  const q6ac0 = mul(mul(mul(k0, f64x2.sub(l0, q6r0)), f64x2.div(one, q6r0)), invM);
+  const q6s2 = mul(q6ac0, q6dx0);
+  const q6s3 = mul(q6ac0, q6dy0);
+  const f2 = q6s2;
+  const f3 = f64x2.sub(q6s3, grav);
+  v128.store(LANE_STAGES + PA * 256 + 192, f0);
+  v128.store(LANE_STAGES + PA * 256 + 208, f1);
+  v128.store(LANE_STAGES + PA * 256 + 224, f2);
+  v128.store(LANE_STAGES + PA * 256 + 240, f3);
+  // the 5th-order solution
+  const n0 = add(add(y0, mul(h, add(add(add(mul(sp(B1), a0), mul(sp(B3), c0)), mul(sp(B4), d0)), mul(sp(B5), e0)))), mul(hB6, f0));
+  const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
+  const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
+  const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
+  st2(b0, b1, OFF_YN, n0);
+  st2(b0, b1, OFF_YN + 8, n1);
+  st2(b0, b1, OFF_YN + 16, n2);
+  st2(b0, b1, OFF_YN + 24, n3);
+  // stage 7 (FSAL)
+  const g0 = n2;
+  const g1 = n3;
+  const q7dx0 = f64x2.sub(n0, fx0);
+  const q7dy0 = f64x2.sub(n1, fy0);
+  const q7r0 = f64x2.sqrt(add(mul(q7dx0, q7dx0), mul(q7dy0, q7dy0)));
+  const q7ac0 = mul(mul(mul(k0, f64x2.sub(l0, q7r0)), f64x2.div(one, q7r0)), invM);
+  const q7s2 = mul(q7ac0, q7dx0);
+  const q7s3 = mul(q7ac0, q7dy0);
+  const g2 = q7s2;
+  const g3 = f64x2.sub(q7s3, grav);
+  st2(b0, b1, OFF_K7, g0);
+  st2(b0, b1, OFF_K7 + 8, g1);
+  st2(b0, b1, OFF_K7 + 16, g2);
+  st2(b0, b1, OFF_K7 + 24, g3);
+  // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
+  // is the stance leg in single support
+  {
+    const zero = sp(0.0);
+    const dx0 = f64x2.sub(n0, fx0);
+    const dy0 = f64x2.sub(n1, fy0);
+    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
+    const c0 = f64x2.sub(l0, r0);
+    const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
+    const x0 = f64x2.div(mul(f0, dx0), r0);
+    const y0 = f64x2.div(mul(f0, dy0), r0);
+    const e = LANE_END + PA * END_BYTES;
+    v128.store(e + END_GL0 * 16, f64x2.sub(r0, l0));
+    v128.store(e + END_GM0 * 16, gm0);
+    v128.store(e + END_C0 * 16, c0);
+    v128.store(e + END_F0 * 16, f0);
+    v128.store(e + END_FX * 16, x0);
+    v128.store(e + END_FY * 16, y0);
+  }
+  // the error norm over the four components, in step4w's order
+  const rtol = ppAt(PP_RTOL, PA);
+  const atol = ppAt(PP_ATOL, PA);
+  let sum = sp(0.0);
+  let finite = sp(0.0);
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a0), mul(sp(E3), c0)), mul(sp(E4), d0)), mul(sp(E5), e0)), mul(sp(E6), f0)), mul(sp(E7), g0)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y0), f64x2.abs(n0))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n0, n0));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a1), mul(sp(E3), c1)), mul(sp(E4), d1)), mul(sp(E5), e1)), mul(sp(E6), f1)), mul(sp(E7), g1)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y1), f64x2.abs(n1))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n1, n1));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a2), mul(sp(E3), c2)), mul(sp(E4), d2)), mul(sp(E5), e2)), mul(sp(E6), f2)), mul(sp(E7), g2)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y2), f64x2.abs(n2))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n2, n2));
+  }
+  {
+    const e = mul(h, add(add(add(add(add(mul(sp(E1), a3), mul(sp(E3), c3)), mul(sp(E4), d3)), mul(sp(E5), e3)), mul(sp(E6), f3)), mul(sp(E7), g3)));
+    const sc = add(atol, mul(rtol, f64x2.max(f64x2.abs(y3), f64x2.abs(n3))));
+    const q = f64x2.div(e, sc);
+    sum = add(sum, mul(q, q));
+    finite = add(finite, f64x2.sub(n3, n3));
+  }
+  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  storeErrors(err, finite, PA);
+}
