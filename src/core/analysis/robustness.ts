@@ -11,6 +11,7 @@ import * as L from '../../../assembly/layout.js';
 import { type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
+import { calibratedScenario, type CalibrationRollouts } from '../accuracy-calibration.js';
 import { buildModel, startInput, STATUS_NAMES } from '../model.js';
 import { kindOf } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
@@ -185,14 +186,39 @@ export function robustnessModel(scenario: Scenario, options: CanonicalRobustness
   return model;
 }
 
+/** Rollouts of the run (streams 0, 1, ...) that an apex accuracy is calibrated on (accuracy-calibration.ts). */
+export const CALIBRATION_ROLLOUTS = 4;
+
+/** The calibration of integrator.apex_accuracy_m on the first rollouts of this run, whatever shard runs. */
+function robustnessCalibration(scenario: Scenario, options: CanonicalRobustnessOptions): CalibrationRollouts {
+  const n = Math.min(CALIBRATION_ROLLOUTS, options.rollouts);
+  const inputs = new Float64Array(n * L.I_SIZE);
+  const row = startInput(scenario);
+  for (let i = 0; i < n; i++) {
+    row[L.I_STREAM] = i;
+    inputs.set(row, i * L.I_SIZE);
+  }
+  return { model: robustnessModel(scenario, options), inputs, strides: options.strides, key: 'robustness' };
+}
+
+/**
+ * The scenario the rollouts run: with integrator.apex_accuracy_m, its tolerances calibrated on the
+ * run's own first rollouts (accuracy-calibration.ts); otherwise the scenario itself.
+ */
+export async function robustnessScenario(scenario: Scenario, options: RobustnessOptions) {
+  const canonical = canonicalRobustnessOptions(scenario, options);
+  return calibratedScenario(scenario, (s) => robustnessCalibration(s, canonical));
+}
+
 /** Rows of rollouts [range.start, range.end) (all of them by default); rollout r runs on stream r. */
 export async function robustnessRows(
-  scenario: Scenario,
+  given: Scenario,
   options: RobustnessOptions,
   range?: ShardRange,
   execution: RobustnessExecution = {},
 ): Promise<RobustnessRow[]> {
-  const canonical = canonicalRobustnessOptions(scenario, options);
+  const canonical = canonicalRobustnessOptions(given, options);
+  const { scenario } = await robustnessScenario(given, options);
   const start = range?.start ?? 0;
   const end = range?.end ?? canonical.rollouts;
   const count = end - start;
@@ -279,7 +305,7 @@ export async function finishRobustness(
       ...(kindOf(scenario) === 'biped' ? { gait: scenario.start.gait, offset_m: scenario.start.offset_m, leg: scenario.start.leg } : {}),
     },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
-    ...accuracyReport(scenario.integrator),
+    ...accuracyReport(scenario.integrator, (await robustnessScenario(scenario, options)).calibration),
     strides_completed_total: stridesTotal,
     apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
     forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,
