@@ -15,7 +15,7 @@
 //
 // Deterministic (the kernel's results are bit-reproducible), so every shard and worker of a run
 // picks the same tolerances; cached per scenario and calibration rollouts. Results state the
-// tolerances used and the largest one-stride apex error measured at them. test/accuracy.test.ts
+// tolerances used and the largest one-stride apex error measured at them. test/accuracy-calibration.test.ts
 // checks the achieved error over seeded scenarios on strides the calibration did not see.
 
 import * as L from '../../assembly/layout.js';
