@@ -61,6 +61,10 @@ export interface AccuracyReport {
   apex_accuracy_m: number;
   relative_tolerance: number;
   absolute_tolerance: number;
+  /** With a per-scenario calibration (accuracy-calibration.ts): the largest one-stride apex error measured at these tolerances, m. */
+  calibrated_apex_error_m?: number;
+  /** With a calibration: the reference strides it compared. */
+  calibration_strides?: number;
   definition: string;
 }
 
@@ -68,13 +72,35 @@ export const ACCURACY_DEFINITION =
   'apex_accuracy_m: the requested accuracy of one stride\'s apex height against a tight-tolerance run from the same apex; ' +
   'relative_tolerance and absolute_tolerance: the integrator tolerances it gives for this gait (accuracy / (4 (L0 + v^2/g)), and that times L0)';
 
+export const CALIBRATED_ACCURACY_DEFINITION =
+  'apex_accuracy_m: the requested accuracy of one stride\'s apex height against a tight-tolerance run from the same apex; ' +
+  'relative_tolerance and absolute_tolerance: the tolerances used, calibrated on this run\'s own gait: the loosest (from accuracy / (4 (L0 + v^2/g)) ' +
+  'upward by factors of 10^(1/4), atol = rtol L0) whose one-stride apex errors, and every tighter one\'s, stay within half the accuracy over the strides of ' +
+  'the first rollouts rerun from their apexes of a run at rtol 1e-13; calibrated_apex_error_m: the largest of those errors at the tolerances used, ' +
+  'over calibration_strides strides';
+
 /** `{ integrator: ... }` to spread into a result when the scenario set integrator.apex_accuracy_m; `{}` otherwise (outputs unchanged). */
-export function accuracyReport(integrator: {
-  apex_accuracy_m?: number;
-  relative_tolerance: number;
-  absolute_tolerance: number;
-}): { integrator?: AccuracyReport } {
+export function accuracyReport(
+  integrator: {
+    apex_accuracy_m?: number;
+    relative_tolerance: number;
+    absolute_tolerance: number;
+  },
+  calibration?: { relative_tolerance: number; absolute_tolerance: number; calibrated_apex_error_m: number; calibration_strides: number } | null,
+): { integrator?: AccuracyReport } {
   if (integrator.apex_accuracy_m === undefined) return {};
+  if (calibration) {
+    return {
+      integrator: {
+        apex_accuracy_m: integrator.apex_accuracy_m,
+        relative_tolerance: calibration.relative_tolerance,
+        absolute_tolerance: calibration.absolute_tolerance,
+        calibrated_apex_error_m: calibration.calibrated_apex_error_m,
+        calibration_strides: calibration.calibration_strides,
+        definition: CALIBRATED_ACCURACY_DEFINITION,
+      },
+    };
+  }
   return {
     integrator: {
       apex_accuracy_m: integrator.apex_accuracy_m,

@@ -76,6 +76,7 @@ export function processCpu(cmd, args, options = {}) {
     encoding: 'utf8',
     maxBuffer: 1 << 28,
     cwd: options.cwd ?? ROOT,
+    env: options.env ?? process.env,
   });
   const wall = (performance.now() - t0) / 1000;
   if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} exited with ${r.status}: ${r.stderr.slice(-2000)}`);

@@ -278,6 +278,14 @@ async function benchNativeBaseline({ engine, out, start, refApex, refNext, kCal 
       `    C baseline:                 ${cCpu.toFixed(2)} s CPU (runs ${cRuns.map((r) => r.cpu.toFixed(2)).join(', ')}); ${cOut[2]} of ${ROBUSTNESS.rollouts} survived, ${cOut[1]} strides`,
     );
     out(`    ratio C CPU / pronk CPU: ${bRatio.toFixed(2)}x (target >= ${ROBUSTNESS_TARGET}x)`);
+    // What any Node process costs before pronk's first line runs (part of the pronk CPU above).
+    const bare = (env) => median(Array.from({ length: 3 }, () => processCpu(process.execPath, ['-e', '0'], { env }).cpu));
+    const certs = process.env.NODE_EXTRA_CA_CERTS;
+    const withoutCerts = certs ? (() => { const { NODE_EXTRA_CA_CERTS: _, ...env } = process.env; return bare(env); })() : undefined;
+    out(
+      `    of which Node's own start-up (node -e 0): ${bare(process.env).toFixed(2)} s CPU` +
+        (certs ? ` (${withoutCerts.toFixed(2)} s without this environment's NODE_EXTRA_CA_CERTS, which Node parses at every start)` : ''),
+    );
     goal(
       '(b) pronk robustness process vs C, CPU',
       `>= ${ROBUSTNESS_TARGET}x`,

@@ -11,6 +11,7 @@ import * as L from '../../../assembly/layout.js';
 import { type BatchRequest, type BatchResult, type ModelBlock } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
+import { calibratedScenario, type CalibrationRollouts } from '../accuracy-calibration.js';
 import { buildModel, startInput, STATUS_NAMES } from '../model.js';
 import { kindOf } from '../models/kind.js';
 import { SAFETY_CAUTION } from '../safety.js';
@@ -185,24 +186,44 @@ export function robustnessModel(scenario: Scenario, options: CanonicalRobustness
   return model;
 }
 
+/** Rollouts of the run (streams 0, 1, ...) that an apex accuracy is calibrated on (accuracy-calibration.ts). */
+export const CALIBRATION_ROLLOUTS = 4;
+
+/** The calibration of integrator.apex_accuracy_m on the first rollouts of this run, whatever shard runs. */
+function robustnessCalibration(scenario: Scenario, options: CanonicalRobustnessOptions): CalibrationRollouts {
+  const n = Math.min(CALIBRATION_ROLLOUTS, options.rollouts);
+  const inputs = new Float64Array(n * L.I_SIZE);
+  const row = startInput(scenario);
+  for (let i = 0; i < n; i++) {
+    row[L.I_STREAM] = i;
+    inputs.set(row, i * L.I_SIZE);
+  }
+  return { model: robustnessModel(scenario, options), inputs, strides: options.strides, key: 'robustness' };
+}
+
+/**
+ * The scenario the rollouts run: with integrator.apex_accuracy_m, its tolerances calibrated on the
+ * run's own first rollouts (accuracy-calibration.ts); otherwise the scenario itself.
+ */
+export async function robustnessScenario(scenario: Scenario, options: RobustnessOptions) {
+  const canonical = canonicalRobustnessOptions(scenario, options);
+  return calibratedScenario(scenario, (s) => robustnessCalibration(s, canonical));
+}
+
 /** Rows of rollouts [range.start, range.end) (all of them by default); rollout r runs on stream r. */
 export async function robustnessRows(
-  scenario: Scenario,
+  given: Scenario,
   options: RobustnessOptions,
   range?: ShardRange,
   execution: RobustnessExecution = {},
 ): Promise<RobustnessRow[]> {
-  const canonical = canonicalRobustnessOptions(scenario, options);
+  const canonical = canonicalRobustnessOptions(given, options);
   const start = range?.start ?? 0;
   const end = range?.end ?? canonical.rollouts;
   const count = end - start;
   if (count <= 0) return [];
-  const inputs = new Float64Array(count * L.I_SIZE); // (count x I_SIZE), stream = global rollout index
-  const row = startInput(scenario); // the kind's start section; each rollout's row differs only in its stream
-  for (let i = 0; i < count; i++) {
-    row[L.I_STREAM] = start + i;
-    inputs.set(row, i * L.I_SIZE);
-  }
+  const { scenario } = await robustnessScenario(given, options);
+  const inputs = inputsOf(scenario, start, count);
   const req: BatchRequest = { model: robustnessModel(scenario, canonical), inputs, strides: canonical.strides };
   let batch: BatchResult;
   if (execution.runBatch) {
@@ -212,8 +233,27 @@ export async function robustnessRows(
     const { runBatchParallel } = await import('../../worker/pool.js');
     batch = await runBatchParallel(req, { workers: execution.workers ?? 1, onProgress: execution.onProgress, signal: execution.signal });
   }
+  return rowsOf(batch.summaries, count);
+}
+
+// The per-rollout loops live in plain (not async) functions: V8 replaces a long-running loop by
+// optimized code on the fly (on-stack replacement) there, not inside an async function, where
+// 20,000 rows ran in the interpreter (about 40 ms of a one-shot `pronk robustness`).
+
+/** (count x I_SIZE) inputs of rollouts start, start + 1, ...: the kind's start section, stream = global rollout index. */
+function inputsOf(scenario: Scenario, start: number, count: number): Float64Array {
+  const inputs = new Float64Array(count * L.I_SIZE);
+  const row = startInput(scenario); // each rollout's row differs only in its stream
+  for (let i = 0; i < count; i++) {
+    row[L.I_STREAM] = start + i;
+    inputs.set(row, i * L.I_SIZE);
+  }
+  return inputs;
+}
+
+/** The rows of `count` rollout summaries (count x S_SIZE). */
+function rowsOf(summaries: Float64Array, count: number): RobustnessRow[] {
   const rows: RobustnessRow[] = new Array(count);
-  const summaries = batch.summaries;
   for (let i = 0, at = 0; i < count; i++, at += L.S_SIZE) {
     const status = summaries[at + L.S_STATUS];
     rows[i] = {
@@ -224,6 +264,30 @@ export async function robustnessRows(
     };
   }
   return rows;
+}
+
+interface RowTally {
+  survived: number;
+  stridesTotal: number;
+  sumSqHeight: number;
+  sumSqSpeed: number;
+}
+
+/** Survivors, failures by status (into `failures`), strides and error sums over the rows, in row order. */
+function tallyRows(rows: readonly RobustnessRow[], completedName: string, failures: Record<string, number>, runningAfter: number[]): RowTally {
+  let survived = 0;
+  let stridesTotal = 0;
+  let sumSqHeight = 0;
+  let sumSqSpeed = 0;
+  for (const row of rows) {
+    if (row.status === completedName) survived++;
+    else failures[row.status]++;
+    stridesTotal += row.strides_completed;
+    sumSqHeight += row.sum_sq_height_error_m2;
+    sumSqSpeed += row.sum_sq_speed_error_m2_per_s2;
+    if (row.strides_completed > 0) runningAfter[row.strides_completed - 1]++;
+  }
+  return { survived, stridesTotal, sumSqHeight, sumSqSpeed };
 }
 
 /**
@@ -243,18 +307,7 @@ export async function finishRobustness(
   const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT_BIPED : L.STATUS_COUNT_SLIP;
   for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
-  let survived = 0;
-  let stridesTotal = 0;
-  let sumSqHeight = 0;
-  let sumSqSpeed = 0;
-  for (const row of rows) {
-    if (row.status === completedName) survived++;
-    else failures[row.status]++;
-    stridesTotal += row.strides_completed;
-    sumSqHeight += row.sum_sq_height_error_m2;
-    sumSqSpeed += row.sum_sq_speed_error_m2_per_s2;
-    if (row.strides_completed > 0) runningAfter[row.strides_completed - 1]++;
-  }
+  const { survived, stridesTotal, sumSqHeight, sumSqSpeed } = tallyRows(rows, completedName, failures, runningAfter);
   // cumulative from the last stride back: running after stride s = completed more than s strides
   for (let s = o.strides - 2; s >= 0; s--) runningAfter[s] += runningAfter[s + 1];
   const n = o.rollouts;
@@ -279,7 +332,7 @@ export async function finishRobustness(
       ...(kindOf(scenario) === 'biped' ? { gait: scenario.start.gait, offset_m: scenario.start.offset_m, leg: scenario.start.leg } : {}),
     },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
-    ...accuracyReport(scenario.integrator),
+    ...accuracyReport(scenario.integrator, (await robustnessScenario(scenario, options)).calibration),
     strides_completed_total: stridesTotal,
     apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
     forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,

@@ -27,6 +27,7 @@ import {
   canonicalRobustnessOptions,
   finishRobustness,
   robustnessModel,
+  robustnessScenario,
   type CanonicalRobustnessOptions,
   type RobustnessRow,
 } from '../analysis/robustness.js';
@@ -270,7 +271,9 @@ class MonteCarlo {
     const perBatch = Math.max(1, Math.floor(MAX_BATCH_ROLLOUTS / n));
     for (let first = 0; first < scenarios.length; first += perBatch) {
       const group = scenarios.slice(first, first + perBatch);
-      const models: ModelBlock[] = group.map((s) => robustnessModel(s, this.mc));
+      // with integrator.apex_accuracy_m, the tolerances robustness runs (calibrated on its first rollouts)
+      const run = await Promise.all(group.map(async (s) => (await robustnessScenario(s, this.mc)).scenario));
+      const models: ModelBlock[] = run.map((s) => robustnessModel(s, this.mc));
       const inputs = new Float64Array(group.length * n * L.I_SIZE); // (candidates x n x I_SIZE)
       group.forEach((s, c) => {
         for (let r = 0; r < n; r++) {
