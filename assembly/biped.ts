@@ -77,6 +77,9 @@ import {
   stepPairW, stepPairW1, laneError, unpackStages, laneEnd,
   END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
   PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
+  LANE_QUIET, QS_BYTES, QS_GL0, QS_GL1, QS_GM0, QS_GM1, QS_GG, QS_GB, QS_GS, QS_GT, QS_EN_MC0, QS_EN_MC1,
+  QS_EN_LO0, QS_EN_LO1, QS_EN_SEC, QS_EN_MID, QS_EN_TD, QS_MID, QS_TDH, QS_OY, QS_SWG, QS_GREL, QS_PK0,
+  QS_PK1, QS_MC0, QS_MC1, QS_PV, QS_PF, QS_TS, QS_OLD, QS_HI, QS_N, QS_LIMIT, QS_TLIM, QS_HMIN, QS_ON, QS_LASTH,
 } from "./rk/biped-x2";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
@@ -2023,6 +2026,107 @@ function laneAfterQuiet(i: i32, err: f64): bool {
   return true;
 }
 
+// Lane mode (runBipedBatch): a lane whose steps are taken in f64x2 lanes keeps the state its quiet
+// step ends change packed (LANE_QUIET, quietEnd in rk/biped-x2.ts) from packLane to unpackLane;
+// its BipedState, legs and controller memory are current again after unpackLane.
+@inline function qsSet(field: i32, lane: i32, v: f64): void {
+  store<f64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), v);
+}
+@inline function qsGet(field: i32, lane: i32): f64 {
+  return load<f64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3));
+}
+@inline function qsMask(field: i32, lane: i32, on: bool): void {
+  store<u64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), on ? 0xffffffffffffffff : 0);
+}
+
+// Lane i (the rollout in hand, its step just set by laneStepParams) into lane mode, when its quiet
+// step ends can be finished in f64x2 (not its first step; a fixed attack angle once armed).
+function packLane(i: i32): bool {
+  const s = S;
+  const single = s.single;
+  if (s.firstStep || (single && s.armed && !s.fixedAngle)) {
+    qsMask(QS_ON, i, false);
+    return false;
+  }
+  const a = single ? s.stanceLeg : 0; // slot 0's leg
+  const b = 1 - a;
+  qsSet(QS_GL0, i, a == 0 ? s.gl00 : s.gl01);
+  qsSet(QS_GM0, i, a == 0 ? s.gm00 : s.gm01);
+  qsSet(QS_GL1, i, b == 0 ? s.gl00 : s.gl01);
+  qsSet(QS_GM1, i, b == 0 ? s.gm00 : s.gm01);
+  qsSet(QS_GG, i, s.gg0);
+  qsSet(QS_GB, i, s.gb0);
+  qsSet(QS_GS, i, s.gs0);
+  qsSet(QS_GT, i, s.gt0);
+  qsMask(QS_EN_MC0, i, lg(a, LF_ON) != 0.0 && (lg(a, LF_COMPRESSING) != 0.0 || lg(a, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_MC1, i, lg(b, LF_ON) != 0.0 && (lg(b, LF_COMPRESSING) != 0.0 || lg(b, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_LO0, i, lg(a, LF_ON) != 0.0);
+  qsMask(QS_EN_LO1, i, lg(b, LF_ON) != 0.0);
+  qsMask(QS_EN_SEC, i, single && s.sectionArmed);
+  qsMask(QS_EN_MID, i, single && !s.armed);
+  qsMask(QS_EN_TD, i, single && s.armed);
+  qsSet(QS_MID, i, single ? lg(s.stanceLeg, LF_FX) - s.ox : 0.0);
+  qsSet(QS_TDH, i, single ? lg(s.swing, LF_TOUCH_HEIGHT) : 0.0);
+  qsSet(QS_OY, i, s.oy);
+  qsSet(QS_SWG, i, s.swingGround);
+  qsSet(QS_GREL, i, s.groundRel);
+  qsSet(QS_PK0, i, lg(a, LF_PEAK));
+  qsSet(QS_PK1, i, lg(b, LF_PEAK));
+  qsSet(QS_MC0, i, lg(a, LF_MAXCOMP));
+  qsSet(QS_MC1, i, lg(b, LF_MAXCOMP));
+  qsSet(QS_PV, i, s.peakVertical);
+  qsSet(QS_PF, i, s.peakFriction);
+  qsSet(QS_TS, i, s.tS);
+  qsSet(QS_OLD, i, getErrOld());
+  qsSet(QS_HI, i, s.afterReject ? 1.0 : 10.0);
+  qsSet(QS_N, i, 0.0);
+  qsSet(QS_LIMIT, i, <f64>(s.maxSteps - s.stepsHere));
+  qsSet(QS_TLIM, i, s.tContactLimit);
+  qsSet(QS_HMIN, i, s.hMin);
+  qsMask(QS_ON, i, true);
+  return true;
+}
+
+// Lane i out of lane mode: what its quiet step ends changed, back into its state.
+function unpackLane(i: i32): void {
+  qsMask(QS_ON, i, false);
+  const n = <i32>qsGet(QS_N, i);
+  if (n == 0) return;
+  const s = laneState(i);
+  const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
+  const a = s.single ? s.stanceLeg : 0;
+  const b = 1 - a;
+  if (a == 0) {
+    s.gl00 = qsGet(QS_GL0, i);
+    s.gm00 = qsGet(QS_GM0, i);
+    s.gl01 = qsGet(QS_GL1, i);
+    s.gm01 = qsGet(QS_GM1, i);
+  } else {
+    s.gl01 = qsGet(QS_GL0, i);
+    s.gm01 = qsGet(QS_GM0, i);
+    s.gl00 = qsGet(QS_GL1, i);
+    s.gm00 = qsGet(QS_GM1, i);
+  }
+  s.gg0 = qsGet(QS_GG, i);
+  s.gb0 = qsGet(QS_GB, i);
+  s.gs0 = qsGet(QS_GS, i);
+  if (s.single) s.gt0 = qsGet(QS_GT, i);
+  lsAt(legs, a, LF_PEAK, qsGet(QS_PK0, i));
+  lsAt(legs, b, LF_PEAK, qsGet(QS_PK1, i));
+  lsAt(legs, a, LF_MAXCOMP, qsGet(QS_MC0, i));
+  lsAt(legs, b, LF_MAXCOMP, qsGet(QS_MC1, i));
+  s.peakVertical = qsGet(QS_PV, i);
+  s.peakFriction = qsGet(QS_PF, i);
+  s.tS = qsGet(QS_TS, i);
+  s.h = load<f64>(PAIR_PARAMS + <usize>(i >> 1) * PAIR_BYTES + (<usize>PP_H << 4) + (<usize>(i & 1) << 3));
+  s.afterReject = false;
+  s.steps += n;
+  s.stepsHere += n;
+  const ext = LANE_EXT + <usize>i * LANE_BYTES;
+  store<f64>(ext, qsGet(QS_LASTH, i), 0);
+  store<f64>(ext, qsGet(QS_OLD, i), 16);
+}
+
 // From the end of a contact piece (r: CONTACT_GO while the contact goes on), run the rollout in
 // hand up to its next step: true when it needs one (of size h), false when it has ended (its
 // summary written).
@@ -2054,6 +2158,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
   let live = 0; // bit i: lane i holds a rollout that asks for a step
   let pairable = 0; // bit i: that step is a walking step with undamped legs
   let singles = 0; // bit i: in single support
+  let packed = 0; // bit i: lane i is in lane mode (packLane)
   for (;;) {
     for (let i = 0; i < lanes; i++) {
       if ((live & (1 << i)) != 0) continue;
@@ -2072,8 +2177,10 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         contactBegin(S.strideRec);
         if (laneRun(CONTACT_GO)) {
           live |= 1 << i;
-          if (laneStepParams(i)) pairable |= 1 << i;
-          else pairable &= ~(1 << i);
+          if (laneStepParams(i)) {
+            pairable |= 1 << i;
+            if (packLane(i)) packed |= 1 << i;
+          } else pairable &= ~(1 << i);
           if (S.single) singles |= 1 << i;
           else singles &= ~(1 << i);
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
@@ -2084,18 +2191,45 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
     if (live == 0) break;
     // the lanes whose step is taken in f64x2 lanes
     let paired = 0;
+    let quiet = 0; // bit i: lane i (in lane mode) finished a quiet step in the lanes
+    let going = 0; // bit i: ... and goes on with its next step in lane mode
     for (let q = 0; q < lanes; q += 2) {
       const m = 3 << q;
       if ((live & m) == m && (pairable & m) == m) {
-        if ((singles & m) == m) stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
-        else stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        const r = (singles & m) == m
+          ? stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1))
+          : stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        quiet |= (r & 3) << q;
+        going |= (r >> 2) << q;
         paired |= m;
         pairCalls++;
       }
     }
+    if ((going & live) == live) continue; // every lane goes on in lane mode
     for (let i = 0; i < lanes; i++) {
-      if ((live & (1 << i)) == 0) continue;
-      if ((paired & (1 << i)) != 0 && laneAfterQuiet(i, laneError(i))) {
+      const bit = 1 << i;
+      if ((live & bit) == 0 || (going & bit) != 0) continue;
+      if ((packed & bit) != 0) {
+        unpackLane(i);
+        packed &= ~bit;
+        if ((quiet & bit) != 0) {
+          // a quiet step that contactBefore stops
+          laneSelect(i);
+          laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
+          if (laneRun(CONTACT_GO)) {
+            if (laneStepParams(i)) {
+              pairable |= bit;
+              if (packLane(i)) packed |= bit;
+            } else pairable &= ~bit;
+            if (S.single) singles |= bit;
+            else singles &= ~bit;
+            laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          } else {
+            live &= ~bit;
+          }
+          continue;
+        }
+      } else if ((paired & bit) != 0 && laneAfterQuiet(i, laneError(i))) {
         // contactBefore's checks; the contact goes on without switching to the lane
         const s = laneState(i);
         if (s.stepsHere < s.maxSteps && !(s.tS > s.tContactLimit) && !(s.h < s.hMin)) {
@@ -2105,20 +2239,22 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         laneSelect(i);
         laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
         if (laneRun(CONTACT_GO)) {
-          if (laneStepParams(i)) pairable |= 1 << i;
-          else pairable &= ~(1 << i);
-          if (S.single) singles |= 1 << i;
-          else singles &= ~(1 << i);
+          if (laneStepParams(i)) {
+            pairable |= bit;
+            if (packLane(i)) packed |= bit;
+          } else pairable &= ~bit;
+          if (S.single) singles |= bit;
+          else singles &= ~bit;
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
         } else {
-          live &= ~(1 << i);
+          live &= ~bit;
         }
         continue;
       }
       laneSelect(i);
       laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
       let err: f64;
-      if ((paired & (1 << i)) != 0) {
+      if ((paired & bit) != 0) {
         setLastH(S.h);
         unpackStages(i, laneBuffers(i));
         err = laneError(i);
@@ -2126,13 +2262,15 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         err = bstep(S.h);
       }
       if (laneRun(contactAfter(err))) {
-        if (laneStepParams(i)) pairable |= 1 << i;
-        else pairable &= ~(1 << i);
-        if (S.single) singles |= 1 << i;
-        else singles &= ~(1 << i);
+        if (laneStepParams(i)) {
+          pairable |= bit;
+          if (packLane(i)) packed |= bit;
+        } else pairable &= ~bit;
+        if (S.single) singles |= bit;
+        else singles &= ~bit;
         laneSave(LANE_EXT + <usize>i * LANE_BYTES);
       } else {
-        live &= ~(1 << i);
+        live &= ~bit;
       }
     }
   }

@@ -14,7 +14,7 @@
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
-  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
 
 // Each lane's step: for lanes 2 p and 2 p + 1 (lane pair p), as f64x2 at PAIR_PARAMS +
@@ -110,7 +110,7 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
 // One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` in the buffer sets at b0 and
 // b1 (dopri5.ts offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and the lanes'
 // errors (laneError).
-export function stepPairW(b0: usize, b1: usize, pair: usize): void {
+export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -333,12 +333,19 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   }
   const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
   storeErrors(err, finite, PA);
+  const le = LANE_END + PA * END_BYTES;
+  const z = sp(0.0);
+  return quietEnd(PA, b0, b1, h, single, y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+    v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
+    v128.bitselect(z, v128.load(le + END_GL1 * 16), single), v128.bitselect(z, v128.load(le + END_GM1 * 16), single),
+    v128.bitselect(z, v128.load(le + END_C1 * 16), single), v128.bitselect(z, v128.load(le + END_F1 * 16), single),
+    v128.load(le + END_FX * 16), v128.load(le + END_FY * 16));
 }
 
 
 // stepPairW for two lanes both in single support: leg 0 alone (the same operations as
 // stepPairW's leg-0 term, which single support takes).
-export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
+export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -522,4 +529,162 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   }
   const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
   storeErrors(err, finite, PA);
+  const le = LANE_END + PA * END_BYTES;
+  const z = sp(0.0);
+  return quietEnd(PA, b0, b1, h, v128.not(z), y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+    v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
+    z, z, z, z, v128.load(le + END_FX * 16), v128.load(le + END_FY * 16));
+}
+
+// roughPow (dopri5.ts) in each lane, the same operations (as dopri5x2.ts forms it).
+@inline function roughPow2(x: v128, p: f64): v128 {
+  const ex = i64x2.sub(i64x2.shr_u(x, 52), i64x2.splat(1023));
+  const e = f64x2.convert_low_i32x4_s(i8x16.shuffle(ex, ex, 0, 1, 2, 3, 8, 9, 10, 11, 0, 1, 2, 3, 8, 9, 10, 11));
+  const m = f64x2.sub(v128.or(v128.and(x, i64x2.splat(0x000fffffffffffff)), i64x2.splat(0x3ff0000000000000)), f64x2(1.0, 1.0));
+  const log2x = f64x2.add(e, f64x2.mul(m, f64x2.sub(f64x2(1.4425, 1.4425), f64x2.mul(f64x2(0.4425, 0.4425), m))));
+  const y = f64x2.mul(f64x2.splat(p), log2x);
+  const n = f64x2.floor(y);
+  const f = f64x2.sub(y, n);
+  const twoF = f64x2.add(f64x2(1.0, 1.0), f64x2.mul(f, f64x2.add(f64x2(0.6565, 0.6565), f64x2.mul(f64x2(0.3435, 0.3435), f))));
+  const scale = i64x2.shl(i64x2.add(i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(n)), i64x2.splat(1023)), 52);
+  return f64x2.mul(twoF, scale);
+}
+
+// The state a lane in lane mode keeps packed between lane steps (runBipedBatch: packLane loads it
+// from the lane's BipedState, unpackLane writes it back before the one-rollout code runs on the
+// lane), as f64x2 at LANE_QUIET + QS_BYTES * pair + 16 * field. Slot 0 is leg 0 (double support)
+// or the stance leg (single support), slot 1 the other leg. Masks: all bits set or 0.
+export const QS_BYTES: usize = 36 * 16;
+export const LANE_QUIET: usize = memory.data(2 * 36 * 16, 16);
+export const QS_GL0 = 0; // the last accepted step's event values (contactAfter's gl0x, gm0x, ...)
+export const QS_GL1 = 1;
+export const QS_GM0 = 2;
+export const QS_GM1 = 3;
+export const QS_GG = 4;
+export const QS_GB = 5;
+export const QS_GS = 6;
+export const QS_GT = 7;
+export const QS_EN_MC0 = 8; // mask: slot 0's maximum compression is looked for
+export const QS_EN_MC1 = 9;
+export const QS_EN_LO0 = 10; // mask: slot 0's liftoff is looked for (the leg is on)
+export const QS_EN_LO1 = 11;
+export const QS_EN_SEC = 12; // mask: the section is looked for
+export const QS_EN_MID = 13; // mask: midstance is looked for
+export const QS_EN_TD = 14; // mask: the swing leg's touchdown (fixed angle) is looked for
+export const QS_MID = 15; // the stance foot's x less ox (the midstance value is px minus it)
+export const QS_TDH = 16; // the swing leg's touchdown height
+export const QS_OY = 17;
+export const QS_SWG = 18; // the swing leg's ground
+export const QS_GREL = 19; // groundRel
+export const QS_PK0 = 20; // peak force of slot 0's leg
+export const QS_PK1 = 21;
+export const QS_MC0 = 22; // largest compression of slot 0's leg
+export const QS_MC1 = 23;
+export const QS_PV = 24; // peakVertical
+export const QS_PF = 25; // peakFriction
+export const QS_TS = 26; // tS
+export const QS_OLD = 27; // the controller's memory
+export const QS_HI = 28; // the step factor's upper bound (1 after a rejection, else 10)
+export const QS_N = 29; // quiet steps taken in lane mode since packLane
+export const QS_LIMIT = 30; // maxSteps - stepsHere at packLane
+export const QS_TLIM = 31; // tContactLimit
+export const QS_HMIN = 32;
+export const QS_ON = 33; // mask: the lane is in lane mode
+export const QS_LASTH = 34; // the last quiet step's size
+
+@inline function qsAt(field: i32, pair: usize): v128 {
+  return v128.load(LANE_QUIET + pair * QS_BYTES + (<usize>field << 4));
+}
+@inline function qsPut(field: i32, pair: usize, v: v128): void {
+  v128.store(LANE_QUIET + pair * QS_BYTES + (<usize>field << 4), v);
+}
+@inline function crosses(g0: v128, g1: v128): v128 {
+  return v128.and(f64x2.lt(g0, sp(0.0)), f64x2.ge(g1, sp(0.0)));
+}
+@inline function upd(field: i32, pair: usize, v: v128, m: v128): void {
+  qsPut(field, pair, v128.bitselect(v, qsAt(field, pair), m));
+}
+@inline function raise(field: i32, pair: usize, v: v128, m: v128): void {
+  const old = qsAt(field, pair);
+  qsPut(field, pair, v128.bitselect(v, old, v128.and(m, f64x2.gt(v, old))));
+}
+
+// laneAfterQuiet (biped.ts) for both lanes of pair `pair` in lane mode, in f64x2: each lane whose
+// step is accepted with no event value crossing inside it gets contactAfter's bookkeeping (event
+// values, peaks, tS, the step factor, Y0 <- YN and K1 <- K7 in its buffers) with the same
+// operations; the others are left as they were. Bits 0/1: lane 0/1 quiet; bits 2/3: that lane
+// also passes contactBefore's checks for its next step (it goes on in lane mode).
+@inline function quietEnd(
+  PA: usize, b0: usize, b1: usize, h: v128, single: v128,
+  y0: v128, y1: v128, y2: v128, y3: v128, a0: v128, a1: v128, a2: v128, a3: v128,
+  n0: v128, n1: v128, n2: v128, n3: v128, g2: v128, g3: v128, err: v128, finite: v128,
+  gl0: v128, gm0: v128, c0: v128, f0: v128, gl1: v128, gm1: v128, c1: v128, f1: v128, fx: v128, fy: v128,
+): i32 {
+  const zero = sp(0.0);
+  let q = v128.and(qsAt(QS_ON, PA), v128.and(f64x2.le(err, sp(1.0)), f64x2.eq(finite, zero)));
+  if (!v128.any_true(q)) return 0;
+  const gs1 = f64x2.neg(n3);
+  const gg1 = f64x2.sub(qsAt(QS_GREL, PA), n1);
+  const gb1 = f64x2.neg(n2);
+  let ev = v128.and(qsAt(QS_EN_MC0, PA), crosses(qsAt(QS_GM0, PA), gm0));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_MC1, PA), crosses(qsAt(QS_GM1, PA), gm1)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_LO0, PA), crosses(qsAt(QS_GL0, PA), gl0)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_LO1, PA), crosses(qsAt(QS_GL1, PA), gl1)));
+  ev = v128.or(ev, crosses(qsAt(QS_GG, PA), gg1));
+  ev = v128.or(ev, v128.and(f64x2.le(qsAt(QS_GB, PA), zero), f64x2.gt(gb1, zero)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_SEC, PA), crosses(qsAt(QS_GS, PA), gs1)));
+  const enMid = qsAt(QS_EN_MID, PA);
+  const gt1 = v128.bitselect(
+    f64x2.sub(n0, qsAt(QS_MID, PA)),
+    f64x2.sub(qsAt(QS_TDH, PA), f64x2.sub(add(n1, qsAt(QS_OY, PA)), qsAt(QS_SWG, PA))),
+    enMid,
+  );
+  ev = v128.or(ev, v128.and(v128.or(enMid, qsAt(QS_EN_TD, PA)), crosses(qsAt(QS_GT, PA), gt1)));
+  q = v128.andnot(q, ev);
+  if (!v128.any_true(q)) return 0;
+  // accepted, no event: the bookkeeping of the quiet lanes
+  raise(QS_PK0, PA, f0, q);
+  raise(QS_PK1, PA, f1, q);
+  raise(QS_MC0, PA, c0, q);
+  raise(QS_MC1, PA, c1, q);
+  raise(QS_PV, PA, fy, q);
+  raise(QS_PF, PA, f64x2.abs(f64x2.div(fx, fy)), v128.and(q, f64x2.gt(fy, zero)));
+  const tS = add(qsAt(QS_TS, PA), h);
+  upd(QS_TS, PA, tS, q);
+  upd(QS_GL0, PA, gl0, q);
+  upd(QS_GL1, PA, gl1, q);
+  upd(QS_GM0, PA, gm0, q);
+  upd(QS_GM1, PA, gm1, q);
+  upd(QS_GS, PA, gs1, q);
+  upd(QS_GG, PA, gg1, q);
+  upd(QS_GB, PA, gb1, q);
+  upd(QS_GT, PA, gt1, v128.and(q, single));
+  // acceptedFactor(err, afterReject, old) and controllerMemory(err) (dopri5.ts)
+  const e = v128.bitselect(err, sp(1e-12), f64x2.gt(err, sp(1e-12)));
+  let f = mul(mul(sp(0.9), roughPow2(e, -EXPO)), roughPow2(qsAt(QS_OLD, PA), BETA));
+  f = v128.bitselect(sp(0.2), f, f64x2.lt(f, sp(0.2)));
+  const hi = qsAt(QS_HI, PA);
+  f = v128.bitselect(hi, f, f64x2.gt(f, hi));
+  upd(QS_OLD, PA, v128.bitselect(err, sp(1e-4), f64x2.gt(err, sp(1e-4))), q);
+  upd(QS_HI, PA, sp(10.0), q);
+  upd(QS_LASTH, PA, h, q);
+  const hNew = mul(h, f);
+  v128.store(PAIR_PARAMS + PA * PAIR_BYTES + (<usize>PP_H << 4), v128.bitselect(hNew, h, q));
+  const nq = add(qsAt(QS_N, PA), sp(1.0));
+  upd(QS_N, PA, nq, q);
+  // Y0 <- YN, K1 <- K7 (the first four components; the fifth stays 0 in a walking step)
+  st2(b0, b1, OFF_Y0, v128.bitselect(n0, y0, q));
+  st2(b0, b1, OFF_Y0 + 8, v128.bitselect(n1, y1, q));
+  st2(b0, b1, OFF_Y0 + 16, v128.bitselect(n2, y2, q));
+  st2(b0, b1, OFF_Y0 + 24, v128.bitselect(n3, y3, q));
+  st2(b0, b1, OFF_K1, v128.bitselect(n2, a0, q));
+  st2(b0, b1, OFF_K1 + 8, v128.bitselect(n3, a1, q));
+  st2(b0, b1, OFF_K1 + 16, v128.bitselect(g2, a2, q));
+  st2(b0, b1, OFF_K1 + 24, v128.bitselect(g3, a3, q));
+  // contactBefore's checks for the next step
+  const go = v128.and(
+    f64x2.lt(nq, qsAt(QS_LIMIT, PA)),
+    v128.not(v128.or(f64x2.gt(tS, qsAt(QS_TLIM, PA)), f64x2.lt(hNew, qsAt(QS_HMIN, PA)))),
+  );
+  return i64x2.bitmask(q) | (i64x2.bitmask(v128.and(q, go)) << 2);
 }
