@@ -2039,10 +2039,11 @@ function laneAfterQuiet(i: i32, err: f64): bool {
   store<u64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), on ? 0xffffffffffffffff : 0);
 }
 
-// Lane i (the rollout in hand, its step just set by laneStepParams) into lane mode, when its quiet
+// Lane i (its step set by laneStepParams, its controller saved) into lane mode, when its quiet
 // step ends can be finished in f64x2 (not its first step; a fixed attack angle once armed).
 function packLane(i: i32): bool {
-  const s = S;
+  const s = laneState(i);
+  const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
   const single = s.single;
   if (s.firstStep || (single && s.armed && !s.fixedAngle)) {
     qsMask(QS_ON, i, false);
@@ -2058,26 +2059,26 @@ function packLane(i: i32): bool {
   qsSet(QS_GB, i, s.gb0);
   qsSet(QS_GS, i, s.gs0);
   qsSet(QS_GT, i, s.gt0);
-  qsMask(QS_EN_MC0, i, lg(a, LF_ON) != 0.0 && (lg(a, LF_COMPRESSING) != 0.0 || lg(a, LF_SPLIT) == 0.0));
-  qsMask(QS_EN_MC1, i, lg(b, LF_ON) != 0.0 && (lg(b, LF_COMPRESSING) != 0.0 || lg(b, LF_SPLIT) == 0.0));
-  qsMask(QS_EN_LO0, i, lg(a, LF_ON) != 0.0);
-  qsMask(QS_EN_LO1, i, lg(b, LF_ON) != 0.0);
+  qsMask(QS_EN_MC0, i, lgAt(legs, a, LF_ON) != 0.0 && (lgAt(legs, a, LF_COMPRESSING) != 0.0 || lgAt(legs, a, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_MC1, i, lgAt(legs, b, LF_ON) != 0.0 && (lgAt(legs, b, LF_COMPRESSING) != 0.0 || lgAt(legs, b, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_LO0, i, lgAt(legs, a, LF_ON) != 0.0);
+  qsMask(QS_EN_LO1, i, lgAt(legs, b, LF_ON) != 0.0);
   qsMask(QS_EN_SEC, i, single && s.sectionArmed);
   qsMask(QS_EN_MID, i, single && !s.armed);
   qsMask(QS_EN_TD, i, single && s.armed);
-  qsSet(QS_MID, i, single ? lg(s.stanceLeg, LF_FX) - s.ox : 0.0);
-  qsSet(QS_TDH, i, single ? lg(s.swing, LF_TOUCH_HEIGHT) : 0.0);
+  qsSet(QS_MID, i, single ? lgAt(legs, s.stanceLeg, LF_FX) - s.ox : 0.0);
+  qsSet(QS_TDH, i, single ? lgAt(legs, s.swing, LF_TOUCH_HEIGHT) : 0.0);
   qsSet(QS_OY, i, s.oy);
   qsSet(QS_SWG, i, s.swingGround);
   qsSet(QS_GREL, i, s.groundRel);
-  qsSet(QS_PK0, i, lg(a, LF_PEAK));
-  qsSet(QS_PK1, i, lg(b, LF_PEAK));
-  qsSet(QS_MC0, i, lg(a, LF_MAXCOMP));
-  qsSet(QS_MC1, i, lg(b, LF_MAXCOMP));
+  qsSet(QS_PK0, i, lgAt(legs, a, LF_PEAK));
+  qsSet(QS_PK1, i, lgAt(legs, b, LF_PEAK));
+  qsSet(QS_MC0, i, lgAt(legs, a, LF_MAXCOMP));
+  qsSet(QS_MC1, i, lgAt(legs, b, LF_MAXCOMP));
   qsSet(QS_PV, i, s.peakVertical);
   qsSet(QS_PF, i, s.peakFriction);
   qsSet(QS_TS, i, s.tS);
-  qsSet(QS_OLD, i, getErrOld());
+  qsSet(QS_OLD, i, load<f64>(LANE_EXT + <usize>i * LANE_BYTES, 16));
   qsSet(QS_HI, i, s.afterReject ? 1.0 : 10.0);
   qsSet(QS_N, i, 0.0);
   qsSet(QS_LIMIT, i, <f64>(s.maxSteps - s.stepsHere));
@@ -2177,13 +2178,12 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         contactBegin(S.strideRec);
         if (laneRun(CONTACT_GO)) {
           live |= 1 << i;
-          if (laneStepParams(i)) {
-            pairable |= 1 << i;
-            if (packLane(i)) packed |= 1 << i;
-          } else pairable &= ~(1 << i);
+          if (laneStepParams(i)) pairable |= 1 << i;
+          else pairable &= ~(1 << i);
           if (S.single) singles |= 1 << i;
           else singles &= ~(1 << i);
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          if ((pairable & (1 << i)) != 0 && packLane(i)) packed |= 1 << i;
           break;
         }
       }
@@ -2217,13 +2217,12 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
           laneSelect(i);
           laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
           if (laneRun(CONTACT_GO)) {
-            if (laneStepParams(i)) {
-              pairable |= bit;
-              if (packLane(i)) packed |= bit;
-            } else pairable &= ~bit;
+            if (laneStepParams(i)) pairable |= bit;
+            else pairable &= ~bit;
             if (S.single) singles |= bit;
             else singles &= ~bit;
             laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+            if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
           } else {
             live &= ~bit;
           }
@@ -2234,18 +2233,18 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         const s = laneState(i);
         if (s.stepsHere < s.maxSteps && !(s.tS > s.tContactLimit) && !(s.h < s.hMin)) {
           ppSet(PP_H, i, s.h);
+          if (packLane(i)) packed |= bit;
           continue;
         }
         laneSelect(i);
         laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
         if (laneRun(CONTACT_GO)) {
-          if (laneStepParams(i)) {
-            pairable |= bit;
-            if (packLane(i)) packed |= bit;
-          } else pairable &= ~bit;
+          if (laneStepParams(i)) pairable |= bit;
+          else pairable &= ~bit;
           if (S.single) singles |= bit;
           else singles &= ~bit;
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
         } else {
           live &= ~bit;
         }
@@ -2262,13 +2261,12 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         err = bstep(S.h);
       }
       if (laneRun(contactAfter(err))) {
-        if (laneStepParams(i)) {
-          pairable |= bit;
-          if (packLane(i)) packed |= bit;
-        } else pairable &= ~bit;
+        if (laneStepParams(i)) pairable |= bit;
+        else pairable &= ~bit;
         if (S.single) singles |= bit;
         else singles &= ~bit;
         laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+        if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
       } else {
         live &= ~bit;
       }
