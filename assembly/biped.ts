@@ -74,7 +74,7 @@ import {
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
 import {
-  stepPairW, stepPairW1, laneError, unpackStages, laneEnd,
+  stepPairW, stepPairW1, laneError, unpackStages, laneEnd, packY, unpackY, unpackEnd,
   END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
   PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
   LANE_QUIET, QS_BYTES, QS_GL0, QS_GL1, QS_GM0, QS_GM1, QS_GG, QS_GB, QS_GS, QS_GT, QS_EN_MC0, QS_EN_MC1,
@@ -1912,6 +1912,7 @@ function laneStepParams(i: i32): bool {
     ppSet(PP_K1, i, bipedK1);
   }
   store<u64>(PAIR_PARAMS + <usize>(i >> 1) * PAIR_BYTES + (<usize>PP_SINGLE << 4) + (<usize>(i & 1) << 3), s.single ? 0xffffffffffffffff : 0);
+  packY(i, laneBuffers(i));
   return true;
 }
 
@@ -2093,6 +2094,7 @@ function unpackLane(i: i32): void {
   qsMask(QS_ON, i, false);
   const n = <i32>qsGet(QS_N, i);
   if (n == 0) return;
+  unpackY(i, laneBuffers(i));
   const s = laneState(i);
   const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
   const a = s.single ? s.stanceLeg : 0;
@@ -2196,9 +2198,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
     for (let q = 0; q < lanes; q += 2) {
       const m = 3 << q;
       if ((live & m) == m && (pairable & m) == m) {
-        const r = (singles & m) == m
-          ? stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1))
-          : stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        const r = (singles & m) == m ? stepPairW1(<usize>(q >> 1)) : stepPairW(<usize>(q >> 1));
         quiet |= (r & 3) << q;
         going |= (r >> 2) << q;
         paired |= m;
@@ -2209,6 +2209,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
     for (let i = 0; i < lanes; i++) {
       const bit = 1 << i;
       if ((live & bit) == 0 || (going & bit) != 0) continue;
+      if ((paired & bit) != 0) unpackEnd(i, laneBuffers(i));
       if ((packed & bit) != 0) {
         unpackLane(i);
         packed &= ~bit;
@@ -2233,6 +2234,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         const s = laneState(i);
         if (s.stepsHere < s.maxSteps && !(s.tS > s.tContactLimit) && !(s.h < s.hMin)) {
           ppSet(PP_H, i, s.h);
+          packY(i, laneBuffers(i));
           if (packLane(i)) packed |= bit;
           continue;
         }

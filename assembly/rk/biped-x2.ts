@@ -50,6 +50,40 @@ export function unpackStages(lane: i32, p: usize): void {
   }
 }
 
+// Each lane pair's step start, Y0 and K1 (first four components), as f64x2 (LANE_Y + 128 pair +
+// 16 (component, then 4 + component)): a lane's buffers keep theirs too, except while the lane is
+// in lane mode (quietEnd advances LANE_Y alone; unpackY writes it back). The step end, YN and
+// K7 (first four components; K7's first two are YN's last two), likewise at LANE_N + 96 pair:
+// unpackEnd writes a lane's into its buffers when it needs them.
+const LANE_Y: usize = memory.data(2 * 128, 16);
+const LANE_N: usize = memory.data(2 * 96, 16);
+
+// Lane `lane`'s Y0 and K1 from its buffer set at p into LANE_Y.
+export function packY(lane: i32, p: usize): void {
+  const d = LANE_Y + <usize>(lane >> 1) * 128 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) {
+    store<f64>(d + (j << 4), load<f64>(p + OFF_Y0 + (j << 3)));
+    store<f64>(d + 64 + (j << 4), load<f64>(p + OFF_K1 + (j << 3)));
+  }
+}
+// Lane `lane`'s Y0 and K1 from LANE_Y into its buffer set at p.
+export function unpackY(lane: i32, p: usize): void {
+  const d = LANE_Y + <usize>(lane >> 1) * 128 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) {
+    store<f64>(p + OFF_Y0 + (j << 3), load<f64>(d + (j << 4)));
+    store<f64>(p + OFF_K1 + (j << 3), load<f64>(d + 64 + (j << 4)));
+  }
+}
+// Lane `lane`'s YN and K7 of the last lane step into its buffer set at p.
+export function unpackEnd(lane: i32, p: usize): void {
+  const d = LANE_N + <usize>(lane >> 1) * 96 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_YN + (j << 3), load<f64>(d + (j << 4)));
+  store<f64>(p + OFF_K7, load<f64>(d + 32));
+  store<f64>(p + OFF_K7 + 8, load<f64>(d + 48));
+  store<f64>(p + OFF_K7 + 16, load<f64>(d + 64));
+  store<f64>(p + OFF_K7 + 24, load<f64>(d + 80));
+}
+
 // The step end's leg values of each lane pair, as f64x2 at LANE_END + END_BYTES * pair + 16 * field
 // (lane 0 / 2, lane 1 / 3): for slot 0 (leg 0, or the stance leg in single support) and slot 1
 // (leg 1 in double support) r - L0, r', L0 - r and the leg force, and the summed force along x
@@ -87,14 +121,6 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
   store<f64>(LANE_ERRORS + (pair << 4), !isFinite(e0) || f64x2.extract_lane(finite, 0) != 0.0 ? NaN : e0);
   store<f64>(LANE_ERRORS + (pair << 4) + 8, !isFinite(e1) || f64x2.extract_lane(finite, 1) != 0.0 ? NaN : e1);
 }
-@inline function ld2(b0: usize, b1: usize, off: usize): v128 {
-  return f64x2.replace_lane(f64x2.splat(load<f64>(b0 + off)), 1, load<f64>(b1 + off));
-}
-@inline function st2(b0: usize, b1: usize, off: usize, v: v128): void {
-  store<f64>(b0 + off, f64x2.extract_lane(v, 0));
-  store<f64>(b1 + off, f64x2.extract_lane(v, 1));
-}
-
 @inline function mul(a: v128, b: v128): v128 {
   return f64x2.mul(a, b);
 }
@@ -105,12 +131,11 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
   return f64x2.splat(c);
 }
 
-// One step of size PP_H from each lane's (Y0, K1) in the buffer sets at b0 and b1 (dopri5.ts
-// offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and pairErr0 / pairErr1.
-// One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` in the buffer sets at b0 and
-// b1 (dopri5.ts offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and the lanes'
-// errors (laneError).
-export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
+// One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` (LANE_Y): writes YN and K7
+// (first four components) into LANE_N, K3..K6 into LANE_STAGES, the step end's leg values into
+// LANE_END and the lanes' errors (laneError), then finishes the quiet step ends of the lanes in
+// lane mode (quietEnd; its bits returned).
+export function stepPairW(pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -131,14 +156,15 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
   const hA54 = mul(h, sp(A54));
   const hA65 = mul(h, sp(A65));
   const hB6 = mul(h, sp(B6));
-  const y0 = ld2(b0, b1, OFF_Y0);
-  const y1 = ld2(b0, b1, OFF_Y0 + 8);
-  const y2 = ld2(b0, b1, OFF_Y0 + 16);
-  const y3 = ld2(b0, b1, OFF_Y0 + 24);
-  const a0 = ld2(b0, b1, OFF_K1);
-  const a1 = ld2(b0, b1, OFF_K1 + 8);
-  const a2 = ld2(b0, b1, OFF_K1 + 16);
-  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  const ly = LANE_Y + PA * 128;
+  const y0 = v128.load(ly);
+  const y1 = v128.load(ly + 16);
+  const y2 = v128.load(ly + 32);
+  const y3 = v128.load(ly + 48);
+  const a0 = v128.load(ly + 64);
+  const a1 = v128.load(ly + 80);
+  const a2 = v128.load(ly + 96);
+  const a3 = v128.load(ly + 112);
   // stage 2
   const bp0 = add(y0, mul(hA21, a0));
   const bp1 = add(y1, mul(hA21, a1));
@@ -245,10 +271,11 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
   const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
   const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
-  st2(b0, b1, OFF_YN, n0);
-  st2(b0, b1, OFF_YN + 8, n1);
-  st2(b0, b1, OFF_YN + 16, n2);
-  st2(b0, b1, OFF_YN + 24, n3);
+  const ln = LANE_N + PA * 96;
+  v128.store(ln, n0);
+  v128.store(ln + 16, n1);
+  v128.store(ln + 32, n2);
+  v128.store(ln + 48, n3);
   // stage 7 (FSAL)
   const g0 = n2;
   const g1 = n3;
@@ -264,10 +291,8 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
   const q7s3 = mul(q7ac0, q7dy0);
   const g2 = v128.bitselect(q7s2, add(q7s2, mul(q7ac1, q7dx1)), single);
   const g3 = f64x2.sub(v128.bitselect(q7s3, add(q7s3, mul(q7ac1, q7dy1)), single), grav);
-  st2(b0, b1, OFF_K7, g0);
-  st2(b0, b1, OFF_K7 + 8, g1);
-  st2(b0, b1, OFF_K7 + 16, g2);
-  st2(b0, b1, OFF_K7 + 24, g3);
+  v128.store(ln + 64, g2);
+  v128.store(ln + 80, g3);
   // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
   // is the stance leg in single support
   {
@@ -335,7 +360,7 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
   storeErrors(err, finite, PA);
   const le = LANE_END + PA * END_BYTES;
   const z = sp(0.0);
-  return quietEnd(PA, b0, b1, h, single, y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+  return quietEnd(PA, h, single, y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
     v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
     v128.bitselect(z, v128.load(le + END_GL1 * 16), single), v128.bitselect(z, v128.load(le + END_GM1 * 16), single),
     v128.bitselect(z, v128.load(le + END_C1 * 16), single), v128.bitselect(z, v128.load(le + END_F1 * 16), single),
@@ -345,7 +370,7 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): i32 {
 
 // stepPairW for two lanes both in single support: leg 0 alone (the same operations as
 // stepPairW's leg-0 term, which single support takes).
-export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
+export function stepPairW1(pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -361,14 +386,15 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
   const hA54 = mul(h, sp(A54));
   const hA65 = mul(h, sp(A65));
   const hB6 = mul(h, sp(B6));
-  const y0 = ld2(b0, b1, OFF_Y0);
-  const y1 = ld2(b0, b1, OFF_Y0 + 8);
-  const y2 = ld2(b0, b1, OFF_Y0 + 16);
-  const y3 = ld2(b0, b1, OFF_Y0 + 24);
-  const a0 = ld2(b0, b1, OFF_K1);
-  const a1 = ld2(b0, b1, OFF_K1 + 8);
-  const a2 = ld2(b0, b1, OFF_K1 + 16);
-  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  const ly = LANE_Y + PA * 128;
+  const y0 = v128.load(ly);
+  const y1 = v128.load(ly + 16);
+  const y2 = v128.load(ly + 32);
+  const y3 = v128.load(ly + 48);
+  const a0 = v128.load(ly + 64);
+  const a1 = v128.load(ly + 80);
+  const a2 = v128.load(ly + 96);
+  const a3 = v128.load(ly + 112);
   // stage 2
   const bp0 = add(y0, mul(hA21, a0));
   const bp1 = add(y1, mul(hA21, a1));
@@ -455,10 +481,11 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
   const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
   const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
-  st2(b0, b1, OFF_YN, n0);
-  st2(b0, b1, OFF_YN + 8, n1);
-  st2(b0, b1, OFF_YN + 16, n2);
-  st2(b0, b1, OFF_YN + 24, n3);
+  const ln = LANE_N + PA * 96;
+  v128.store(ln, n0);
+  v128.store(ln + 16, n1);
+  v128.store(ln + 32, n2);
+  v128.store(ln + 48, n3);
   // stage 7 (FSAL)
   const g0 = n2;
   const g1 = n3;
@@ -470,10 +497,8 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
   const q7s3 = mul(q7ac0, q7dy0);
   const g2 = q7s2;
   const g3 = f64x2.sub(q7s3, grav);
-  st2(b0, b1, OFF_K7, g0);
-  st2(b0, b1, OFF_K7 + 8, g1);
-  st2(b0, b1, OFF_K7 + 16, g2);
-  st2(b0, b1, OFF_K7 + 24, g3);
+  v128.store(ln + 64, g2);
+  v128.store(ln + 80, g3);
   // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
   // is the stance leg in single support
   {
@@ -531,7 +556,7 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): i32 {
   storeErrors(err, finite, PA);
   const le = LANE_END + PA * END_BYTES;
   const z = sp(0.0);
-  return quietEnd(PA, b0, b1, h, v128.not(z), y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+  return quietEnd(PA, h, v128.not(z), y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
     v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
     z, z, z, z, v128.load(le + END_FX * 16), v128.load(le + END_FY * 16));
 }
@@ -615,7 +640,7 @@ export const QS_LASTH = 34; // the last quiet step's size
 // operations; the others are left as they were. Bits 0/1: lane 0/1 quiet; bits 2/3: that lane
 // also passes contactBefore's checks for its next step (it goes on in lane mode).
 @inline function quietEnd(
-  PA: usize, b0: usize, b1: usize, h: v128, single: v128,
+  PA: usize, h: v128, single: v128,
   y0: v128, y1: v128, y2: v128, y3: v128, a0: v128, a1: v128, a2: v128, a3: v128,
   n0: v128, n1: v128, n2: v128, n3: v128, g2: v128, g3: v128, err: v128, finite: v128,
   gl0: v128, gm0: v128, c0: v128, f0: v128, gl1: v128, gm1: v128, c1: v128, f1: v128, fx: v128, fy: v128,
@@ -672,15 +697,16 @@ export const QS_LASTH = 34; // the last quiet step's size
   v128.store(PAIR_PARAMS + PA * PAIR_BYTES + (<usize>PP_H << 4), v128.bitselect(hNew, h, q));
   const nq = add(qsAt(QS_N, PA), sp(1.0));
   upd(QS_N, PA, nq, q);
-  // Y0 <- YN, K1 <- K7 (the first four components; the fifth stays 0 in a walking step)
-  st2(b0, b1, OFF_Y0, v128.bitselect(n0, y0, q));
-  st2(b0, b1, OFF_Y0 + 8, v128.bitselect(n1, y1, q));
-  st2(b0, b1, OFF_Y0 + 16, v128.bitselect(n2, y2, q));
-  st2(b0, b1, OFF_Y0 + 24, v128.bitselect(n3, y3, q));
-  st2(b0, b1, OFF_K1, v128.bitselect(n2, a0, q));
-  st2(b0, b1, OFF_K1 + 8, v128.bitselect(n3, a1, q));
-  st2(b0, b1, OFF_K1 + 16, v128.bitselect(g2, a2, q));
-  st2(b0, b1, OFF_K1 + 24, v128.bitselect(g3, a3, q));
+  // Y0 <- YN, K1 <- K7 in LANE_Y (the first four components; the fifth stays 0 in a walking step)
+  const ly = LANE_Y + PA * 128;
+  v128.store(ly, v128.bitselect(n0, y0, q));
+  v128.store(ly + 16, v128.bitselect(n1, y1, q));
+  v128.store(ly + 32, v128.bitselect(n2, y2, q));
+  v128.store(ly + 48, v128.bitselect(n3, y3, q));
+  v128.store(ly + 64, v128.bitselect(n2, a0, q));
+  v128.store(ly + 80, v128.bitselect(n3, a1, q));
+  v128.store(ly + 96, v128.bitselect(g2, a2, q));
+  v128.store(ly + 112, v128.bitselect(g3, a3, q));
   // contactBefore's checks for the next step
   const go = v128.and(
     f64x2.lt(nq, qsAt(QS_LIMIT, PA)),
