@@ -297,9 +297,9 @@ export function stepPairW(pair: usize): i32 {
   // is the stance leg in single support
   {
     const zero = sp(0.0);
-    const dx0 = f64x2.sub(n0, fx0);
-    const dy0 = f64x2.sub(n1, fy0);
-    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const dx0 = q7dx0; // n0 - fx0, n1 - fy0 and the radius, as stage 7 formed them
+    const dy0 = q7dy0;
+    const r0 = q7r0;
     const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
     const c0 = f64x2.sub(l0, r0);
     const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
@@ -310,9 +310,9 @@ export function stepPairW(pair: usize): i32 {
     v128.store(e + END_GM0 * 16, gm0);
     v128.store(e + END_C0 * 16, c0);
     v128.store(e + END_F0 * 16, f0);
-    const dx1 = f64x2.sub(n0, fx1);
-    const dy1 = f64x2.sub(n1, fy1);
-    const r1 = f64x2.sqrt(add(mul(dx1, dx1), mul(dy1, dy1)));
+    const dx1 = q7dx1;
+    const dy1 = q7dy1;
+    const r1 = q7r1;
     const gm1 = f64x2.div(add(mul(dx1, n2), mul(dy1, n3)), r1);
     const c1 = f64x2.sub(l1, r1);
     const f1 = f64x2.sub(mul(k1, c1), mul(zero, gm1));
@@ -356,7 +356,7 @@ export function stepPairW(pair: usize): i32 {
     sum = add(sum, mul(q, q));
     finite = add(finite, f64x2.sub(n3, n3));
   }
-  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  const err = f64x2.sqrt(mul(sum, sp(0.25))); // sum / 4 (a power of two: the same rounding)
   storeErrors(err, finite, PA);
   const le = LANE_END + PA * END_BYTES;
   const z = sp(0.0);
@@ -503,9 +503,9 @@ export function stepPairW1(pair: usize): i32 {
   // is the stance leg in single support
   {
     const zero = sp(0.0);
-    const dx0 = f64x2.sub(n0, fx0);
-    const dy0 = f64x2.sub(n1, fy0);
-    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const dx0 = q7dx0; // n0 - fx0, n1 - fy0 and the radius, as stage 7 formed them
+    const dy0 = q7dy0;
+    const r0 = q7r0;
     const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
     const c0 = f64x2.sub(l0, r0);
     const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
@@ -552,7 +552,7 @@ export function stepPairW1(pair: usize): i32 {
     sum = add(sum, mul(q, q));
     finite = add(finite, f64x2.sub(n3, n3));
   }
-  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  const err = f64x2.sqrt(mul(sum, sp(0.25))); // sum / 4 (a power of two: the same rounding)
   storeErrors(err, finite, PA);
   const le = LANE_END + PA * END_BYTES;
   const z = sp(0.0);
