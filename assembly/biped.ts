@@ -61,7 +61,7 @@ import {
 import { groundAt, resetWalk, getWalk, setWalk } from "./terrain";
 import { initialStep } from "./rk/initial-step";
 import {
-  step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
+  step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
   useBuffers, DEFAULT_BUFFERS, BUFFER_SET_BYTES, OFF_Y0, OFF_K1, OFF_K7, OFF_YN, acceptedFactor, controllerMemory, getLastH, getErrorDimension, setErrorDimensionValue, getErrOld, setErrOld,
   Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
@@ -73,6 +73,7 @@ import {
   bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
+import { P11, P12, P13, P14, P32, P33, P34, P42, P43, P44, P52, P53, P54, P62, P63, P64, P72, P73, P74 } from "./rk/tableau";
 import {
   stepPairW, stepPairW1, laneError, unpackStages, laneEnd, packY, unpackY, unpackEnd,
   END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
@@ -319,6 +320,37 @@ function evRate(ev: i32, leg: i32, p: usize, d: usize, t: f64): f64 {
   return g0 < 0.0 && g1 >= 0.0;
 }
 
+// dense() (dopri5.ts) on the rollout's buffers, its arithmetic: the first four components two at
+// a time in f64x2 (each lane the scalar expression's operations in its order), the fifth scalar.
+function denseB(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = getLastH();
+  const vq1 = f64x2.splat(q1);
+  const vq3 = f64x2.splat(q3);
+  const vq4 = f64x2.splat(q4);
+  const vq5 = f64x2.splat(q5);
+  const vq6 = f64x2.splat(q6);
+  const vq7 = f64x2.splat(q7);
+  const vh = f64x2.splat(h);
+  for (let j: usize = 0; j < 32; j += 16) {
+    let acc = f64x2.add(f64x2.mul(vq1, v128.load(K1 + j)), f64x2.mul(vq3, v128.load(K3 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq4, v128.load(K4 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq5, v128.load(K5 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq6, v128.load(K6 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq7, v128.load(K7 + j)));
+    v128.store(YI + j, f64x2.add(v128.load(Y0 + j), f64x2.mul(vh, acc)));
+  }
+  store<f64>(YI, load<f64>(Y0, 32) + h * (q1 * load<f64>(K1, 32) + q3 * load<f64>(K3, 32) + q4 * load<f64>(K4, 32) + q5 * load<f64>(K5, 32) + q6 * load<f64>(K6, 32) + q7 * load<f64>(K7, 32)), 32);
+}
+
 // Fraction of the last step (from a, where the value is ga) where g crosses, on the interpolant
 // (Illinois method, as events.ts).
 function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f64): f64 {
@@ -331,7 +363,7 @@ function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f6
   for (let it = 0; it < 80; it++) {
     let theta = (a * gb - b * ga) / (gb - ga);
     if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
-    dense(theta);
+    denseB(theta);
     const g = evValue(ev, leg, YI, t0 + theta * hh);
     const upper = ev == EVB_BACKWARD ? g > 0.0 : g >= 0.0;
     if (upper) {
@@ -1015,7 +1047,7 @@ function traceContact(hh: f64, thetaEnd: f64): void {
     if (ts < 0.0) return;
     const theta = (ts - s.traceT0 - s.tSec0 - s.tS) / hh;
     if (theta < 0.0) continue;
-    dense(theta);
+    denseB(theta);
     emitAt(ts, YI, ts - s.traceT0);
   }
 }
@@ -1238,7 +1270,7 @@ function contactAfter(err: f64): i32 {
       const gmid1 = load<f64>(YN, 0) - footRx(s.stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
       if (crossesB(EVB_MIDSTANCE, s.gt0, gmid1)) {
         from = locateB(EVB_MIDSTANCE, s.stanceLeg, 0.0, s.gt0, gmid1, s.tS, s.h);
-        dense(from);
+        denseB(from);
         gFrom = evValue(EVB_TOUCHDOWN, s.swing, YI, s.tS + from * s.h);
         armsHere = true;
         look = true;
@@ -1253,7 +1285,7 @@ function contactAfter(err: f64): i32 {
         : evValue(EVB_TOUCHDOWN, s.swing, YN, s.tS + s.h);
       if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
         const th = locateB(EVB_TOUCHDOWN, s.swing, from, gFrom, gt1, s.tS, s.h);
-        dense(th);
+        denseB(th);
         if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = s.swing; }
       }
     }
@@ -1261,12 +1293,12 @@ function contactAfter(err: f64): i32 {
 
   // Record-only maximum compressions before the stop.
   if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
-    dense(mTheta0);
+    denseB(mTheta0);
     noteForces(YI);
     ls(0, LF_COMPRESSING, 0.0);
   }
   if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
-    dense(mTheta1);
+    denseB(mTheta1);
     noteForces(YI);
     ls(1, LF_COMPRESSING, 0.0);
   }
