@@ -2194,6 +2194,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
   let pairable = 0; // bit i: that step is a walking step with undamped legs
   let singles = 0; // bit i: in single support
   let packed = 0; // bit i: lane i is in lane mode (packLane)
+  for (let i = 0; i < LANES_MAX; i++) qsMask(QS_ON, i, false);
   for (;;) {
     for (let i = 0; i < lanes; i++) {
       if ((live & (1 << i)) != 0) continue;
