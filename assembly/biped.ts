@@ -61,7 +61,7 @@ import {
 import { groundAt, resetWalk, getWalk, setWalk } from "./terrain";
 import { initialStep } from "./rk/initial-step";
 import {
-  step, dense, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
+  step, acceptFactor, rejectFactor, resetController, advance, setErrorDimension, setLastH,
   useBuffers, DEFAULT_BUFFERS, BUFFER_SET_BYTES, OFF_Y0, OFF_K1, OFF_K7, OFF_YN, acceptedFactor, controllerMemory, getLastH, getErrorDimension, setErrorDimensionValue, getErrOld, setErrOld,
   Y0, K1, K2, K3, K4, K5, K6, K7, YN, YI,
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
@@ -73,10 +73,14 @@ import {
   bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
+import { P11, P12, P13, P14, P32, P33, P34, P42, P43, P44, P52, P53, P54, P62, P63, P64, P72, P73, P74 } from "./rk/tableau";
 import {
-  stepPairW, stepPairW1, laneError, unpackStages, laneEnd,
+  stepPairW, stepPairW1, laneError, unpackStages, laneEnd, packY, unpackY, unpackEnd,
   END_GL0, END_GM0, END_C0, END_F0, END_GL1, END_GM1, END_C1, END_F1, END_FX, END_FY, PAIR_PARAMS, PAIR_BYTES, PP_H, PP_RTOL, PP_ATOL, PP_INV_MASS, PP_G, PP_FX0, PP_FY0, PP_L0, PP_K0,
   PP_FX1, PP_FY1, PP_L1, PP_K1, PP_SINGLE,
+  LANE_QUIET, QS_BYTES, QS_GL0, QS_GL1, QS_GM0, QS_GM1, QS_GG, QS_GB, QS_GS, QS_GT, QS_EN_MC0, QS_EN_MC1,
+  QS_EN_LO0, QS_EN_LO1, QS_EN_SEC, QS_EN_MID, QS_EN_TD, QS_MID, QS_TDH, QS_OY, QS_SWG, QS_GREL, QS_PK0,
+  QS_PK1, QS_MC0, QS_MC1, QS_PV, QS_PF, QS_TS, QS_OLD, QS_HI, QS_N, QS_LIMIT, QS_TLIM, QS_HMIN, QS_ON, QS_LASTH,
 } from "./rk/biped-x2";
 import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
@@ -316,6 +320,37 @@ function evRate(ev: i32, leg: i32, p: usize, d: usize, t: f64): f64 {
   return g0 < 0.0 && g1 >= 0.0;
 }
 
+// dense() (dopri5.ts) on the rollout's buffers, its arithmetic: the first four components two at
+// a time in f64x2 (each lane the scalar expression's operations in its order), the fifth scalar.
+function denseB(theta: f64): void {
+  const t2 = theta * theta;
+  const t3 = t2 * theta;
+  const t4 = t3 * theta;
+  const q1 = P11 * theta + P12 * t2 + P13 * t3 + P14 * t4;
+  const q3 = P32 * t2 + P33 * t3 + P34 * t4;
+  const q4 = P42 * t2 + P43 * t3 + P44 * t4;
+  const q5 = P52 * t2 + P53 * t3 + P54 * t4;
+  const q6 = P62 * t2 + P63 * t3 + P64 * t4;
+  const q7 = P72 * t2 + P73 * t3 + P74 * t4;
+  const h = getLastH();
+  const vq1 = f64x2.splat(q1);
+  const vq3 = f64x2.splat(q3);
+  const vq4 = f64x2.splat(q4);
+  const vq5 = f64x2.splat(q5);
+  const vq6 = f64x2.splat(q6);
+  const vq7 = f64x2.splat(q7);
+  const vh = f64x2.splat(h);
+  for (let j: usize = 0; j < 32; j += 16) {
+    let acc = f64x2.add(f64x2.mul(vq1, v128.load(K1 + j)), f64x2.mul(vq3, v128.load(K3 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq4, v128.load(K4 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq5, v128.load(K5 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq6, v128.load(K6 + j)));
+    acc = f64x2.add(acc, f64x2.mul(vq7, v128.load(K7 + j)));
+    v128.store(YI + j, f64x2.add(v128.load(Y0 + j), f64x2.mul(vh, acc)));
+  }
+  store<f64>(YI, load<f64>(Y0, 32) + h * (q1 * load<f64>(K1, 32) + q3 * load<f64>(K3, 32) + q4 * load<f64>(K4, 32) + q5 * load<f64>(K5, 32) + q6 * load<f64>(K6, 32) + q7 * load<f64>(K7, 32)), 32);
+}
+
 // Fraction of the last step (from a, where the value is ga) where g crosses, on the interpolant
 // (Illinois method, as events.ts).
 function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f64): f64 {
@@ -328,7 +363,7 @@ function locateB(ev: i32, leg: i32, a0: f64, ga0: f64, gb0: f64, t0: f64, hh: f6
   for (let it = 0; it < 80; it++) {
     let theta = (a * gb - b * ga) / (gb - ga);
     if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
-    dense(theta);
+    denseB(theta);
     const g = evValue(ev, leg, YI, t0 + theta * hh);
     const upper = ev == EVB_BACKWARD ? g > 0.0 : g >= 0.0;
     if (upper) {
@@ -1012,7 +1047,7 @@ function traceContact(hh: f64, thetaEnd: f64): void {
     if (ts < 0.0) return;
     const theta = (ts - s.traceT0 - s.tSec0 - s.tS) / hh;
     if (theta < 0.0) continue;
-    dense(theta);
+    denseB(theta);
     emitAt(ts, YI, ts - s.traceT0);
   }
 }
@@ -1235,7 +1270,7 @@ function contactAfter(err: f64): i32 {
       const gmid1 = load<f64>(YN, 0) - footRx(s.stanceLeg); // evValue(EVB_MIDSTANCE, ...) written in
       if (crossesB(EVB_MIDSTANCE, s.gt0, gmid1)) {
         from = locateB(EVB_MIDSTANCE, s.stanceLeg, 0.0, s.gt0, gmid1, s.tS, s.h);
-        dense(from);
+        denseB(from);
         gFrom = evValue(EVB_TOUCHDOWN, s.swing, YI, s.tS + from * s.h);
         armsHere = true;
         look = true;
@@ -1250,7 +1285,7 @@ function contactAfter(err: f64): i32 {
         : evValue(EVB_TOUCHDOWN, s.swing, YN, s.tS + s.h);
       if (from < stopTheta && crossesB(EVB_TOUCHDOWN, gFrom, gt1)) {
         const th = locateB(EVB_TOUCHDOWN, s.swing, from, gFrom, gt1, s.tS, s.h);
-        dense(th);
+        denseB(th);
         if (th < stopTheta && load<f64>(YI, 24) < 0.0) { stopTheta = th; stopEvent = EVB_TOUCHDOWN; stopLeg = s.swing; }
       }
     }
@@ -1258,12 +1293,12 @@ function contactAfter(err: f64): i32 {
 
   // Record-only maximum compressions before the stop.
   if (mTheta0 <= 1.0 && mTheta0 <= stopTheta && lg(0, LF_SPLIT) == 0.0) {
-    dense(mTheta0);
+    denseB(mTheta0);
     noteForces(YI);
     ls(0, LF_COMPRESSING, 0.0);
   }
   if (mTheta1 <= 1.0 && mTheta1 <= stopTheta && lg(1, LF_SPLIT) == 0.0) {
-    dense(mTheta1);
+    denseB(mTheta1);
     noteForces(YI);
     ls(1, LF_COMPRESSING, 0.0);
   }
@@ -1909,6 +1944,7 @@ function laneStepParams(i: i32): bool {
     ppSet(PP_K1, i, bipedK1);
   }
   store<u64>(PAIR_PARAMS + <usize>(i >> 1) * PAIR_BYTES + (<usize>PP_SINGLE << 4) + (<usize>(i & 1) << 3), s.single ? 0xffffffffffffffff : 0);
+  packY(i, laneBuffers(i));
   return true;
 }
 
@@ -2023,6 +2059,109 @@ function laneAfterQuiet(i: i32, err: f64): bool {
   return true;
 }
 
+// Lane mode (runBipedBatch): a lane whose steps are taken in f64x2 lanes keeps the state its quiet
+// step ends change packed (LANE_QUIET, quietEnd in rk/biped-x2.ts) from packLane to unpackLane;
+// its BipedState, legs and controller memory are current again after unpackLane.
+@inline function qsSet(field: i32, lane: i32, v: f64): void {
+  store<f64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), v);
+}
+@inline function qsGet(field: i32, lane: i32): f64 {
+  return load<f64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3));
+}
+@inline function qsMask(field: i32, lane: i32, on: bool): void {
+  store<u64>(LANE_QUIET + <usize>(lane >> 1) * QS_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3), on ? 0xffffffffffffffff : 0);
+}
+
+// Lane i (its step set by laneStepParams, its controller saved) into lane mode, when its quiet
+// step ends can be finished in f64x2 (not its first step; a fixed attack angle once armed).
+function packLane(i: i32): bool {
+  const s = laneState(i);
+  const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
+  const single = s.single;
+  if (s.firstStep || (single && s.armed && !s.fixedAngle)) {
+    qsMask(QS_ON, i, false);
+    return false;
+  }
+  const a = single ? s.stanceLeg : 0; // slot 0's leg
+  const b = 1 - a;
+  qsSet(QS_GL0, i, a == 0 ? s.gl00 : s.gl01);
+  qsSet(QS_GM0, i, a == 0 ? s.gm00 : s.gm01);
+  qsSet(QS_GL1, i, b == 0 ? s.gl00 : s.gl01);
+  qsSet(QS_GM1, i, b == 0 ? s.gm00 : s.gm01);
+  qsSet(QS_GG, i, s.gg0);
+  qsSet(QS_GB, i, s.gb0);
+  qsSet(QS_GS, i, s.gs0);
+  qsSet(QS_GT, i, s.gt0);
+  qsMask(QS_EN_MC0, i, lgAt(legs, a, LF_ON) != 0.0 && (lgAt(legs, a, LF_COMPRESSING) != 0.0 || lgAt(legs, a, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_MC1, i, lgAt(legs, b, LF_ON) != 0.0 && (lgAt(legs, b, LF_COMPRESSING) != 0.0 || lgAt(legs, b, LF_SPLIT) == 0.0));
+  qsMask(QS_EN_LO0, i, lgAt(legs, a, LF_ON) != 0.0);
+  qsMask(QS_EN_LO1, i, lgAt(legs, b, LF_ON) != 0.0);
+  qsMask(QS_EN_SEC, i, single && s.sectionArmed);
+  qsMask(QS_EN_MID, i, single && !s.armed);
+  qsMask(QS_EN_TD, i, single && s.armed);
+  qsSet(QS_MID, i, single ? lgAt(legs, s.stanceLeg, LF_FX) - s.ox : 0.0);
+  qsSet(QS_TDH, i, single ? lgAt(legs, s.swing, LF_TOUCH_HEIGHT) : 0.0);
+  qsSet(QS_OY, i, s.oy);
+  qsSet(QS_SWG, i, s.swingGround);
+  qsSet(QS_GREL, i, s.groundRel);
+  qsSet(QS_PK0, i, lgAt(legs, a, LF_PEAK));
+  qsSet(QS_PK1, i, lgAt(legs, b, LF_PEAK));
+  qsSet(QS_MC0, i, lgAt(legs, a, LF_MAXCOMP));
+  qsSet(QS_MC1, i, lgAt(legs, b, LF_MAXCOMP));
+  qsSet(QS_PV, i, s.peakVertical);
+  qsSet(QS_PF, i, s.peakFriction);
+  qsSet(QS_TS, i, s.tS);
+  qsSet(QS_OLD, i, load<f64>(LANE_EXT + <usize>i * LANE_BYTES, 16));
+  qsSet(QS_HI, i, s.afterReject ? 1.0 : 10.0);
+  qsSet(QS_N, i, 0.0);
+  qsSet(QS_LIMIT, i, <f64>(s.maxSteps - s.stepsHere));
+  qsSet(QS_TLIM, i, s.tContactLimit);
+  qsSet(QS_HMIN, i, s.hMin);
+  qsMask(QS_ON, i, true);
+  return true;
+}
+
+// Lane i out of lane mode: what its quiet step ends changed, back into its state.
+function unpackLane(i: i32): void {
+  qsMask(QS_ON, i, false);
+  const n = <i32>qsGet(QS_N, i);
+  if (n == 0) return;
+  unpackY(i, laneBuffers(i));
+  const s = laneState(i);
+  const legs = LANE_LEGS + <usize>i * (2 * LF_N * 8);
+  const a = s.single ? s.stanceLeg : 0;
+  const b = 1 - a;
+  if (a == 0) {
+    s.gl00 = qsGet(QS_GL0, i);
+    s.gm00 = qsGet(QS_GM0, i);
+    s.gl01 = qsGet(QS_GL1, i);
+    s.gm01 = qsGet(QS_GM1, i);
+  } else {
+    s.gl01 = qsGet(QS_GL0, i);
+    s.gm01 = qsGet(QS_GM0, i);
+    s.gl00 = qsGet(QS_GL1, i);
+    s.gm00 = qsGet(QS_GM1, i);
+  }
+  s.gg0 = qsGet(QS_GG, i);
+  s.gb0 = qsGet(QS_GB, i);
+  s.gs0 = qsGet(QS_GS, i);
+  if (s.single) s.gt0 = qsGet(QS_GT, i);
+  lsAt(legs, a, LF_PEAK, qsGet(QS_PK0, i));
+  lsAt(legs, b, LF_PEAK, qsGet(QS_PK1, i));
+  lsAt(legs, a, LF_MAXCOMP, qsGet(QS_MC0, i));
+  lsAt(legs, b, LF_MAXCOMP, qsGet(QS_MC1, i));
+  s.peakVertical = qsGet(QS_PV, i);
+  s.peakFriction = qsGet(QS_PF, i);
+  s.tS = qsGet(QS_TS, i);
+  s.h = load<f64>(PAIR_PARAMS + <usize>(i >> 1) * PAIR_BYTES + (<usize>PP_H << 4) + (<usize>(i & 1) << 3));
+  s.afterReject = false;
+  s.steps += n;
+  s.stepsHere += n;
+  const ext = LANE_EXT + <usize>i * LANE_BYTES;
+  store<f64>(ext, qsGet(QS_LASTH, i), 0);
+  store<f64>(ext, qsGet(QS_OLD, i), 16);
+}
+
 // From the end of a contact piece (r: CONTACT_GO while the contact goes on), run the rollout in
 // hand up to its next step: true when it needs one (of size h), false when it has ended (its
 // summary written).
@@ -2054,6 +2193,8 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
   let live = 0; // bit i: lane i holds a rollout that asks for a step
   let pairable = 0; // bit i: that step is a walking step with undamped legs
   let singles = 0; // bit i: in single support
+  let packed = 0; // bit i: lane i is in lane mode (packLane)
+  for (let i = 0; i < LANES_MAX; i++) qsMask(QS_ON, i, false);
   for (;;) {
     for (let i = 0; i < lanes; i++) {
       if ((live & (1 << i)) != 0) continue;
@@ -2077,6 +2218,7 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
           if (S.single) singles |= 1 << i;
           else singles &= ~(1 << i);
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          if ((pairable & (1 << i)) != 0 && packLane(i)) packed |= 1 << i;
           break;
         }
       }
@@ -2084,41 +2226,69 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
     if (live == 0) break;
     // the lanes whose step is taken in f64x2 lanes
     let paired = 0;
+    let quiet = 0; // bit i: lane i (in lane mode) finished a quiet step in the lanes
+    let going = 0; // bit i: ... and goes on with its next step in lane mode
     for (let q = 0; q < lanes; q += 2) {
       const m = 3 << q;
       if ((live & m) == m && (pairable & m) == m) {
-        if ((singles & m) == m) stepPairW1(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
-        else stepPairW(laneBuffers(q), laneBuffers(q + 1), <usize>(q >> 1));
+        const r = (singles & m) == m ? stepPairW1(<usize>(q >> 1)) : stepPairW(<usize>(q >> 1));
+        quiet |= (r & 3) << q;
+        going |= (r >> 2) << q;
         paired |= m;
         pairCalls++;
       }
     }
+    if ((going & live) == live) continue; // every lane goes on in lane mode
     for (let i = 0; i < lanes; i++) {
-      if ((live & (1 << i)) == 0) continue;
-      if ((paired & (1 << i)) != 0 && laneAfterQuiet(i, laneError(i))) {
+      const bit = 1 << i;
+      if ((live & bit) == 0 || (going & bit) != 0) continue;
+      if ((paired & bit) != 0) unpackEnd(i, laneBuffers(i));
+      if ((packed & bit) != 0) {
+        unpackLane(i);
+        packed &= ~bit;
+        if ((quiet & bit) != 0) {
+          // a quiet step that contactBefore stops
+          laneSelect(i);
+          laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
+          if (laneRun(CONTACT_GO)) {
+            if (laneStepParams(i)) pairable |= bit;
+            else pairable &= ~bit;
+            if (S.single) singles |= bit;
+            else singles &= ~bit;
+            laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+            if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
+          } else {
+            live &= ~bit;
+          }
+          continue;
+        }
+      } else if ((paired & bit) != 0 && laneAfterQuiet(i, laneError(i))) {
         // contactBefore's checks; the contact goes on without switching to the lane
         const s = laneState(i);
         if (s.stepsHere < s.maxSteps && !(s.tS > s.tContactLimit) && !(s.h < s.hMin)) {
           ppSet(PP_H, i, s.h);
+          packY(i, laneBuffers(i));
+          if (packLane(i)) packed |= bit;
           continue;
         }
         laneSelect(i);
         laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
         if (laneRun(CONTACT_GO)) {
-          if (laneStepParams(i)) pairable |= 1 << i;
-          else pairable &= ~(1 << i);
-          if (S.single) singles |= 1 << i;
-          else singles &= ~(1 << i);
+          if (laneStepParams(i)) pairable |= bit;
+          else pairable &= ~bit;
+          if (S.single) singles |= bit;
+          else singles &= ~bit;
           laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+          if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
         } else {
-          live &= ~(1 << i);
+          live &= ~bit;
         }
         continue;
       }
       laneSelect(i);
       laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
       let err: f64;
-      if ((paired & (1 << i)) != 0) {
+      if ((paired & bit) != 0) {
         setLastH(S.h);
         unpackStages(i, laneBuffers(i));
         err = laneError(i);
@@ -2126,13 +2296,14 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         err = bstep(S.h);
       }
       if (laneRun(contactAfter(err))) {
-        if (laneStepParams(i)) pairable |= 1 << i;
-        else pairable &= ~(1 << i);
-        if (S.single) singles |= 1 << i;
-        else singles &= ~(1 << i);
+        if (laneStepParams(i)) pairable |= bit;
+        else pairable &= ~bit;
+        if (S.single) singles |= bit;
+        else singles &= ~bit;
         laneSave(LANE_EXT + <usize>i * LANE_BYTES);
+        if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
       } else {
-        live &= ~(1 << i);
+        live &= ~bit;
       }
     }
   }

@@ -14,7 +14,7 @@
 import {
   A21, A31, A32, A41, A42, A43, A51, A52, A53, A54, A61, A62, A63, A64, A65,
   B1, B3, B4, B5, B6, E1, E3, E4, E5, E6, E7,
-  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN,
+  OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
 
 // Each lane's step: for lanes 2 p and 2 p + 1 (lane pair p), as f64x2 at PAIR_PARAMS +
@@ -48,6 +48,40 @@ export function unpackStages(lane: i32, p: usize): void {
   for (let k: usize = 0; k < 4; k++) {
     for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_K3 + k * 40 + (j << 3), load<f64>(src + ((k * 4 + j) << 4)));
   }
+}
+
+// Each lane pair's step start, Y0 and K1 (first four components), as f64x2 (LANE_Y + 128 pair +
+// 16 (component, then 4 + component)): a lane's buffers keep theirs too, except while the lane is
+// in lane mode (quietEnd advances LANE_Y alone; unpackY writes it back). The step end, YN and
+// K7 (first four components; K7's first two are YN's last two), likewise at LANE_N + 96 pair:
+// unpackEnd writes a lane's into its buffers when it needs them.
+const LANE_Y: usize = memory.data(2 * 128, 16);
+const LANE_N: usize = memory.data(2 * 96, 16);
+
+// Lane `lane`'s Y0 and K1 from its buffer set at p into LANE_Y.
+export function packY(lane: i32, p: usize): void {
+  const d = LANE_Y + <usize>(lane >> 1) * 128 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) {
+    store<f64>(d + (j << 4), load<f64>(p + OFF_Y0 + (j << 3)));
+    store<f64>(d + 64 + (j << 4), load<f64>(p + OFF_K1 + (j << 3)));
+  }
+}
+// Lane `lane`'s Y0 and K1 from LANE_Y into its buffer set at p.
+export function unpackY(lane: i32, p: usize): void {
+  const d = LANE_Y + <usize>(lane >> 1) * 128 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) {
+    store<f64>(p + OFF_Y0 + (j << 3), load<f64>(d + (j << 4)));
+    store<f64>(p + OFF_K1 + (j << 3), load<f64>(d + 64 + (j << 4)));
+  }
+}
+// Lane `lane`'s YN and K7 of the last lane step into its buffer set at p.
+export function unpackEnd(lane: i32, p: usize): void {
+  const d = LANE_N + <usize>(lane >> 1) * 96 + <usize>(lane & 1) * 8;
+  for (let j: usize = 0; j < 4; j++) store<f64>(p + OFF_YN + (j << 3), load<f64>(d + (j << 4)));
+  store<f64>(p + OFF_K7, load<f64>(d + 32));
+  store<f64>(p + OFF_K7 + 8, load<f64>(d + 48));
+  store<f64>(p + OFF_K7 + 16, load<f64>(d + 64));
+  store<f64>(p + OFF_K7 + 24, load<f64>(d + 80));
 }
 
 // The step end's leg values of each lane pair, as f64x2 at LANE_END + END_BYTES * pair + 16 * field
@@ -87,14 +121,6 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
   store<f64>(LANE_ERRORS + (pair << 4), !isFinite(e0) || f64x2.extract_lane(finite, 0) != 0.0 ? NaN : e0);
   store<f64>(LANE_ERRORS + (pair << 4) + 8, !isFinite(e1) || f64x2.extract_lane(finite, 1) != 0.0 ? NaN : e1);
 }
-@inline function ld2(b0: usize, b1: usize, off: usize): v128 {
-  return f64x2.replace_lane(f64x2.splat(load<f64>(b0 + off)), 1, load<f64>(b1 + off));
-}
-@inline function st2(b0: usize, b1: usize, off: usize, v: v128): void {
-  store<f64>(b0 + off, f64x2.extract_lane(v, 0));
-  store<f64>(b1 + off, f64x2.extract_lane(v, 1));
-}
-
 @inline function mul(a: v128, b: v128): v128 {
   return f64x2.mul(a, b);
 }
@@ -105,12 +131,11 @@ const LANE_ERRORS: usize = memory.data(4 * 8, 16);
   return f64x2.splat(c);
 }
 
-// One step of size PP_H from each lane's (Y0, K1) in the buffer sets at b0 and b1 (dopri5.ts
-// offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and pairErr0 / pairErr1.
-// One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` in the buffer sets at b0 and
-// b1 (dopri5.ts offsets): writes K7 and YN (first four components) into each, K3..K6 into LANE_STAGES and the lanes'
-// errors (laneError).
-export function stepPairW(b0: usize, b1: usize, pair: usize): void {
+// One step of size PP_H from each lane's (Y0, K1) of lane pair `pair` (LANE_Y): writes YN and K7
+// (first four components) into LANE_N, K3..K6 into LANE_STAGES, the step end's leg values into
+// LANE_END and the lanes' errors (laneError), then finishes the quiet step ends of the lanes in
+// lane mode (quietEnd; its bits returned).
+export function stepPairW(pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -131,14 +156,15 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const hA54 = mul(h, sp(A54));
   const hA65 = mul(h, sp(A65));
   const hB6 = mul(h, sp(B6));
-  const y0 = ld2(b0, b1, OFF_Y0);
-  const y1 = ld2(b0, b1, OFF_Y0 + 8);
-  const y2 = ld2(b0, b1, OFF_Y0 + 16);
-  const y3 = ld2(b0, b1, OFF_Y0 + 24);
-  const a0 = ld2(b0, b1, OFF_K1);
-  const a1 = ld2(b0, b1, OFF_K1 + 8);
-  const a2 = ld2(b0, b1, OFF_K1 + 16);
-  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  const ly = LANE_Y + PA * 128;
+  const y0 = v128.load(ly);
+  const y1 = v128.load(ly + 16);
+  const y2 = v128.load(ly + 32);
+  const y3 = v128.load(ly + 48);
+  const a0 = v128.load(ly + 64);
+  const a1 = v128.load(ly + 80);
+  const a2 = v128.load(ly + 96);
+  const a3 = v128.load(ly + 112);
   // stage 2
   const bp0 = add(y0, mul(hA21, a0));
   const bp1 = add(y1, mul(hA21, a1));
@@ -245,10 +271,11 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
   const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
   const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
-  st2(b0, b1, OFF_YN, n0);
-  st2(b0, b1, OFF_YN + 8, n1);
-  st2(b0, b1, OFF_YN + 16, n2);
-  st2(b0, b1, OFF_YN + 24, n3);
+  const ln = LANE_N + PA * 96;
+  v128.store(ln, n0);
+  v128.store(ln + 16, n1);
+  v128.store(ln + 32, n2);
+  v128.store(ln + 48, n3);
   // stage 7 (FSAL)
   const g0 = n2;
   const g1 = n3;
@@ -264,17 +291,15 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
   const q7s3 = mul(q7ac0, q7dy0);
   const g2 = v128.bitselect(q7s2, add(q7s2, mul(q7ac1, q7dx1)), single);
   const g3 = f64x2.sub(v128.bitselect(q7s3, add(q7s3, mul(q7ac1, q7dy1)), single), grav);
-  st2(b0, b1, OFF_K7, g0);
-  st2(b0, b1, OFF_K7 + 8, g1);
-  st2(b0, b1, OFF_K7 + 16, g2);
-  st2(b0, b1, OFF_K7 + 24, g3);
+  v128.store(ln + 64, g2);
+  v128.store(ln + 80, g3);
   // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
   // is the stance leg in single support
   {
     const zero = sp(0.0);
-    const dx0 = f64x2.sub(n0, fx0);
-    const dy0 = f64x2.sub(n1, fy0);
-    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const dx0 = q7dx0; // n0 - fx0, n1 - fy0 and the radius, as stage 7 formed them
+    const dy0 = q7dy0;
+    const r0 = q7r0;
     const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
     const c0 = f64x2.sub(l0, r0);
     const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
@@ -285,9 +310,9 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
     v128.store(e + END_GM0 * 16, gm0);
     v128.store(e + END_C0 * 16, c0);
     v128.store(e + END_F0 * 16, f0);
-    const dx1 = f64x2.sub(n0, fx1);
-    const dy1 = f64x2.sub(n1, fy1);
-    const r1 = f64x2.sqrt(add(mul(dx1, dx1), mul(dy1, dy1)));
+    const dx1 = q7dx1;
+    const dy1 = q7dy1;
+    const r1 = q7r1;
     const gm1 = f64x2.div(add(mul(dx1, n2), mul(dy1, n3)), r1);
     const c1 = f64x2.sub(l1, r1);
     const f1 = f64x2.sub(mul(k1, c1), mul(zero, gm1));
@@ -331,14 +356,21 @@ export function stepPairW(b0: usize, b1: usize, pair: usize): void {
     sum = add(sum, mul(q, q));
     finite = add(finite, f64x2.sub(n3, n3));
   }
-  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  const err = f64x2.sqrt(mul(sum, sp(0.25))); // sum / 4 (a power of two: the same rounding)
   storeErrors(err, finite, PA);
+  const le = LANE_END + PA * END_BYTES;
+  const z = sp(0.0);
+  return quietEnd(PA, h, single, y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+    v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
+    v128.bitselect(z, v128.load(le + END_GL1 * 16), single), v128.bitselect(z, v128.load(le + END_GM1 * 16), single),
+    v128.bitselect(z, v128.load(le + END_C1 * 16), single), v128.bitselect(z, v128.load(le + END_F1 * 16), single),
+    v128.load(le + END_FX * 16), v128.load(le + END_FY * 16));
 }
 
 
 // stepPairW for two lanes both in single support: leg 0 alone (the same operations as
 // stepPairW's leg-0 term, which single support takes).
-export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
+export function stepPairW1(pair: usize): i32 {
   const PA = pair;
   const h = ppAt(PP_H, PA);
   const invM = ppAt(PP_INV_MASS, PA);
@@ -354,14 +386,15 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const hA54 = mul(h, sp(A54));
   const hA65 = mul(h, sp(A65));
   const hB6 = mul(h, sp(B6));
-  const y0 = ld2(b0, b1, OFF_Y0);
-  const y1 = ld2(b0, b1, OFF_Y0 + 8);
-  const y2 = ld2(b0, b1, OFF_Y0 + 16);
-  const y3 = ld2(b0, b1, OFF_Y0 + 24);
-  const a0 = ld2(b0, b1, OFF_K1);
-  const a1 = ld2(b0, b1, OFF_K1 + 8);
-  const a2 = ld2(b0, b1, OFF_K1 + 16);
-  const a3 = ld2(b0, b1, OFF_K1 + 24);
+  const ly = LANE_Y + PA * 128;
+  const y0 = v128.load(ly);
+  const y1 = v128.load(ly + 16);
+  const y2 = v128.load(ly + 32);
+  const y3 = v128.load(ly + 48);
+  const a0 = v128.load(ly + 64);
+  const a1 = v128.load(ly + 80);
+  const a2 = v128.load(ly + 96);
+  const a3 = v128.load(ly + 112);
   // stage 2
   const bp0 = add(y0, mul(hA21, a0));
   const bp1 = add(y1, mul(hA21, a1));
@@ -448,10 +481,11 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const n1 = add(add(y1, mul(h, add(add(add(mul(sp(B1), a1), mul(sp(B3), c1)), mul(sp(B4), d1)), mul(sp(B5), e1)))), mul(hB6, f1));
   const n2 = add(add(y2, mul(h, add(add(add(mul(sp(B1), a2), mul(sp(B3), c2)), mul(sp(B4), d2)), mul(sp(B5), e2)))), mul(hB6, f2));
   const n3 = add(add(y3, mul(h, add(add(add(mul(sp(B1), a3), mul(sp(B3), c3)), mul(sp(B4), d3)), mul(sp(B5), e3)))), mul(hB6, f3));
-  st2(b0, b1, OFF_YN, n0);
-  st2(b0, b1, OFF_YN + 8, n1);
-  st2(b0, b1, OFF_YN + 16, n2);
-  st2(b0, b1, OFF_YN + 24, n3);
+  const ln = LANE_N + PA * 96;
+  v128.store(ln, n0);
+  v128.store(ln + 16, n1);
+  v128.store(ln + 32, n2);
+  v128.store(ln + 48, n3);
   // stage 7 (FSAL)
   const g0 = n2;
   const g1 = n3;
@@ -463,17 +497,15 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
   const q7s3 = mul(q7ac0, q7dy0);
   const g2 = q7s2;
   const g3 = f64x2.sub(q7s3, grav);
-  st2(b0, b1, OFF_K7, g0);
-  st2(b0, b1, OFF_K7 + 8, g1);
-  st2(b0, b1, OFF_K7 + 16, g2);
-  st2(b0, b1, OFF_K7 + 24, g3);
+  v128.store(ln + 64, g2);
+  v128.store(ln + 80, g3);
   // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
   // is the stance leg in single support
   {
     const zero = sp(0.0);
-    const dx0 = f64x2.sub(n0, fx0);
-    const dy0 = f64x2.sub(n1, fy0);
-    const r0 = f64x2.sqrt(add(mul(dx0, dx0), mul(dy0, dy0)));
+    const dx0 = q7dx0; // n0 - fx0, n1 - fy0 and the radius, as stage 7 formed them
+    const dy0 = q7dy0;
+    const r0 = q7r0;
     const gm0 = f64x2.div(add(mul(dx0, n2), mul(dy0, n3)), r0);
     const c0 = f64x2.sub(l0, r0);
     const f0 = f64x2.sub(mul(k0, c0), mul(zero, gm0));
@@ -520,6 +552,165 @@ export function stepPairW1(b0: usize, b1: usize, pair: usize): void {
     sum = add(sum, mul(q, q));
     finite = add(finite, f64x2.sub(n3, n3));
   }
-  const err = f64x2.sqrt(f64x2.div(sum, sp(4.0)));
+  const err = f64x2.sqrt(mul(sum, sp(0.25))); // sum / 4 (a power of two: the same rounding)
   storeErrors(err, finite, PA);
+  const le = LANE_END + PA * END_BYTES;
+  const z = sp(0.0);
+  return quietEnd(PA, h, v128.not(z), y0, y1, y2, y3, a0, a1, a2, a3, n0, n1, n2, n3, g2, g3, err, finite,
+    v128.load(le + END_GL0 * 16), v128.load(le + END_GM0 * 16), v128.load(le + END_C0 * 16), v128.load(le + END_F0 * 16),
+    z, z, z, z, v128.load(le + END_FX * 16), v128.load(le + END_FY * 16));
+}
+
+// roughPow (dopri5.ts) in each lane, the same operations (as dopri5x2.ts forms it).
+@inline function roughPow2(x: v128, p: f64): v128 {
+  const ex = i64x2.sub(i64x2.shr_u(x, 52), i64x2.splat(1023));
+  const e = f64x2.convert_low_i32x4_s(i8x16.shuffle(ex, ex, 0, 1, 2, 3, 8, 9, 10, 11, 0, 1, 2, 3, 8, 9, 10, 11));
+  const m = f64x2.sub(v128.or(v128.and(x, i64x2.splat(0x000fffffffffffff)), i64x2.splat(0x3ff0000000000000)), f64x2(1.0, 1.0));
+  const log2x = f64x2.add(e, f64x2.mul(m, f64x2.sub(f64x2(1.4425, 1.4425), f64x2.mul(f64x2(0.4425, 0.4425), m))));
+  const y = f64x2.mul(f64x2.splat(p), log2x);
+  const n = f64x2.floor(y);
+  const f = f64x2.sub(y, n);
+  const twoF = f64x2.add(f64x2(1.0, 1.0), f64x2.mul(f, f64x2.add(f64x2(0.6565, 0.6565), f64x2.mul(f64x2(0.3435, 0.3435), f))));
+  const scale = i64x2.shl(i64x2.add(i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(n)), i64x2.splat(1023)), 52);
+  return f64x2.mul(twoF, scale);
+}
+
+// The state a lane in lane mode keeps packed between lane steps (runBipedBatch: packLane loads it
+// from the lane's BipedState, unpackLane writes it back before the one-rollout code runs on the
+// lane), as f64x2 at LANE_QUIET + QS_BYTES * pair + 16 * field. Slot 0 is leg 0 (double support)
+// or the stance leg (single support), slot 1 the other leg. Masks: all bits set or 0.
+export const QS_BYTES: usize = 36 * 16;
+export const LANE_QUIET: usize = memory.data(2 * 36 * 16, 16);
+export const QS_GL0 = 0; // the last accepted step's event values (contactAfter's gl0x, gm0x, ...)
+export const QS_GL1 = 1;
+export const QS_GM0 = 2;
+export const QS_GM1 = 3;
+export const QS_GG = 4;
+export const QS_GB = 5;
+export const QS_GS = 6;
+export const QS_GT = 7;
+export const QS_EN_MC0 = 8; // mask: slot 0's maximum compression is looked for
+export const QS_EN_MC1 = 9;
+export const QS_EN_LO0 = 10; // mask: slot 0's liftoff is looked for (the leg is on)
+export const QS_EN_LO1 = 11;
+export const QS_EN_SEC = 12; // mask: the section is looked for
+export const QS_EN_MID = 13; // mask: midstance is looked for
+export const QS_EN_TD = 14; // mask: the swing leg's touchdown (fixed angle) is looked for
+export const QS_MID = 15; // the stance foot's x less ox (the midstance value is px minus it)
+export const QS_TDH = 16; // the swing leg's touchdown height
+export const QS_OY = 17;
+export const QS_SWG = 18; // the swing leg's ground
+export const QS_GREL = 19; // groundRel
+export const QS_PK0 = 20; // peak force of slot 0's leg
+export const QS_PK1 = 21;
+export const QS_MC0 = 22; // largest compression of slot 0's leg
+export const QS_MC1 = 23;
+export const QS_PV = 24; // peakVertical
+export const QS_PF = 25; // peakFriction
+export const QS_TS = 26; // tS
+export const QS_OLD = 27; // the controller's memory
+export const QS_HI = 28; // the step factor's upper bound (1 after a rejection, else 10)
+export const QS_N = 29; // quiet steps taken in lane mode since packLane
+export const QS_LIMIT = 30; // maxSteps - stepsHere at packLane
+export const QS_TLIM = 31; // tContactLimit
+export const QS_HMIN = 32;
+export const QS_ON = 33; // mask: the lane is in lane mode
+export const QS_LASTH = 34; // the last quiet step's size
+
+@inline function qsAt(field: i32, pair: usize): v128 {
+  return v128.load(LANE_QUIET + pair * QS_BYTES + (<usize>field << 4));
+}
+@inline function qsPut(field: i32, pair: usize, v: v128): void {
+  v128.store(LANE_QUIET + pair * QS_BYTES + (<usize>field << 4), v);
+}
+@inline function crosses(g0: v128, g1: v128): v128 {
+  return v128.and(f64x2.lt(g0, sp(0.0)), f64x2.ge(g1, sp(0.0)));
+}
+@inline function upd(field: i32, pair: usize, v: v128, m: v128): void {
+  qsPut(field, pair, v128.bitselect(v, qsAt(field, pair), m));
+}
+@inline function raise(field: i32, pair: usize, v: v128, m: v128): void {
+  const old = qsAt(field, pair);
+  qsPut(field, pair, v128.bitselect(v, old, v128.and(m, f64x2.gt(v, old))));
+}
+
+// laneAfterQuiet (biped.ts) for both lanes of pair `pair` in lane mode, in f64x2: each lane whose
+// step is accepted with no event value crossing inside it gets contactAfter's bookkeeping (event
+// values, peaks, tS, the step factor, Y0 <- YN and K1 <- K7 in its buffers) with the same
+// operations; the others are left as they were. Bits 0/1: lane 0/1 quiet; bits 2/3: that lane
+// also passes contactBefore's checks for its next step (it goes on in lane mode).
+@inline function quietEnd(
+  PA: usize, h: v128, single: v128,
+  y0: v128, y1: v128, y2: v128, y3: v128, a0: v128, a1: v128, a2: v128, a3: v128,
+  n0: v128, n1: v128, n2: v128, n3: v128, g2: v128, g3: v128, err: v128, finite: v128,
+  gl0: v128, gm0: v128, c0: v128, f0: v128, gl1: v128, gm1: v128, c1: v128, f1: v128, fx: v128, fy: v128,
+): i32 {
+  const zero = sp(0.0);
+  let q = v128.and(qsAt(QS_ON, PA), v128.and(f64x2.le(err, sp(1.0)), f64x2.eq(finite, zero)));
+  if (!v128.any_true(q)) return 0;
+  const gs1 = f64x2.neg(n3);
+  const gg1 = f64x2.sub(qsAt(QS_GREL, PA), n1);
+  const gb1 = f64x2.neg(n2);
+  let ev = v128.and(qsAt(QS_EN_MC0, PA), crosses(qsAt(QS_GM0, PA), gm0));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_MC1, PA), crosses(qsAt(QS_GM1, PA), gm1)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_LO0, PA), crosses(qsAt(QS_GL0, PA), gl0)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_LO1, PA), crosses(qsAt(QS_GL1, PA), gl1)));
+  ev = v128.or(ev, crosses(qsAt(QS_GG, PA), gg1));
+  ev = v128.or(ev, v128.and(f64x2.le(qsAt(QS_GB, PA), zero), f64x2.gt(gb1, zero)));
+  ev = v128.or(ev, v128.and(qsAt(QS_EN_SEC, PA), crosses(qsAt(QS_GS, PA), gs1)));
+  const enMid = qsAt(QS_EN_MID, PA);
+  const gt1 = v128.bitselect(
+    f64x2.sub(n0, qsAt(QS_MID, PA)),
+    f64x2.sub(qsAt(QS_TDH, PA), f64x2.sub(add(n1, qsAt(QS_OY, PA)), qsAt(QS_SWG, PA))),
+    enMid,
+  );
+  ev = v128.or(ev, v128.and(v128.or(enMid, qsAt(QS_EN_TD, PA)), crosses(qsAt(QS_GT, PA), gt1)));
+  q = v128.andnot(q, ev);
+  if (!v128.any_true(q)) return 0;
+  // accepted, no event: the bookkeeping of the quiet lanes
+  raise(QS_PK0, PA, f0, q);
+  raise(QS_PK1, PA, f1, q);
+  raise(QS_MC0, PA, c0, q);
+  raise(QS_MC1, PA, c1, q);
+  raise(QS_PV, PA, fy, q);
+  raise(QS_PF, PA, f64x2.abs(f64x2.div(fx, fy)), v128.and(q, f64x2.gt(fy, zero)));
+  const tS = add(qsAt(QS_TS, PA), h);
+  upd(QS_TS, PA, tS, q);
+  upd(QS_GL0, PA, gl0, q);
+  upd(QS_GL1, PA, gl1, q);
+  upd(QS_GM0, PA, gm0, q);
+  upd(QS_GM1, PA, gm1, q);
+  upd(QS_GS, PA, gs1, q);
+  upd(QS_GG, PA, gg1, q);
+  upd(QS_GB, PA, gb1, q);
+  upd(QS_GT, PA, gt1, v128.and(q, single));
+  // acceptedFactor(err, afterReject, old) and controllerMemory(err) (dopri5.ts)
+  const e = v128.bitselect(err, sp(1e-12), f64x2.gt(err, sp(1e-12)));
+  let f = mul(mul(sp(0.9), roughPow2(e, -EXPO)), roughPow2(qsAt(QS_OLD, PA), BETA));
+  f = v128.bitselect(sp(0.2), f, f64x2.lt(f, sp(0.2)));
+  const hi = qsAt(QS_HI, PA);
+  f = v128.bitselect(hi, f, f64x2.gt(f, hi));
+  upd(QS_OLD, PA, v128.bitselect(err, sp(1e-4), f64x2.gt(err, sp(1e-4))), q);
+  upd(QS_HI, PA, sp(10.0), q);
+  upd(QS_LASTH, PA, h, q);
+  const hNew = mul(h, f);
+  v128.store(PAIR_PARAMS + PA * PAIR_BYTES + (<usize>PP_H << 4), v128.bitselect(hNew, h, q));
+  const nq = add(qsAt(QS_N, PA), sp(1.0));
+  upd(QS_N, PA, nq, q);
+  // Y0 <- YN, K1 <- K7 in LANE_Y (the first four components; the fifth stays 0 in a walking step)
+  const ly = LANE_Y + PA * 128;
+  v128.store(ly, v128.bitselect(n0, y0, q));
+  v128.store(ly + 16, v128.bitselect(n1, y1, q));
+  v128.store(ly + 32, v128.bitselect(n2, y2, q));
+  v128.store(ly + 48, v128.bitselect(n3, y3, q));
+  v128.store(ly + 64, v128.bitselect(n2, a0, q));
+  v128.store(ly + 80, v128.bitselect(n3, a1, q));
+  v128.store(ly + 96, v128.bitselect(g2, a2, q));
+  v128.store(ly + 112, v128.bitselect(g3, a3, q));
+  // contactBefore's checks for the next step
+  const go = v128.and(
+    f64x2.lt(nq, qsAt(QS_LIMIT, PA)),
+    v128.not(v128.or(f64x2.gt(tS, qsAt(QS_TLIM, PA)), f64x2.lt(hNew, qsAt(QS_HMIN, PA)))),
+  );
+  return i64x2.bitmask(q) | (i64x2.bitmask(v128.and(q, go)) << 2);
 }
