@@ -35,6 +35,15 @@ function nearest(values: readonly number[], v: number): number {
   return best;
 }
 
+/** Each grid value's index (the first, as nearest() finds it), for the data items that hold grid values exactly. */
+function indexOfValue(values: readonly number[]): Map<number, number> {
+  const out = new Map<number, number>();
+  values.forEach((v, i) => {
+    if (!Number.isNaN(v) && !out.has(v)) out.set(v, i);
+  });
+  return out;
+}
+
 export interface CellSeriesOptions {
   id: string;
   name: string;
@@ -64,12 +73,24 @@ export interface CellSeriesSpec {
 /** The spec of every series cellSeries built, by the series object (nothing else holds it). */
 export const CELL_SERIES = new WeakMap<object, CellSeriesSpec>();
 
+/** A cell's rectangle: the cell at (x, y) of size w × h, less a hairline gap between cells big enough to show one. */
+export function cellRect(x: number, y: number, w: number, h: number): { x: number; y: number; width: number; height: number } {
+  const gap = w >= 6 && h >= 6 ? 0.5 : 0;
+  return { x: x + gap, y: y + gap, width: Math.max(0.5, w - 2 * gap), height: Math.max(0.5, h - 2 * gap) };
+}
+
+/** Whether a cell of w × h draws its rectangle alone, with no outline and no glyph (cellElements gives a plain filled rect). */
+export function cellIsPlain(o: CellSeriesOptions, w: number, h: number): boolean {
+  const gap = w >= 6 && h >= 6;
+  return !(o.outline && gap) && (!o.glyph || Math.min(w, h) < 7);
+}
+
 /** A cell's graphic elements (ECharts custom-series element options): its rectangle, and its glyph where it is big enough. */
 export function cellElements(o: CellSeriesOptions, x: number, y: number, w: number, h: number, fill: string, value: number): unknown {
   const gap = w >= 6 && h >= 6 ? 0.5 : 0;
   const rect = {
     type: 'rect',
-    shape: { x: x + gap, y: y + gap, width: Math.max(0.5, w - 2 * gap), height: Math.max(0.5, h - 2 * gap) },
+    shape: cellRect(x, y, w, h),
     style: { fill, stroke: o.outline ?? null, lineWidth: o.outline && gap ? 1 : 0 },
   };
   const size = Math.min(w, h);
@@ -92,7 +113,9 @@ export function cellElements(o: CellSeriesOptions, x: number, y: number, w: numb
 export function cellSeries(o: CellSeriesOptions): CustomSeriesOption {
   const xe = cellEdges(o.xs);
   const ye = cellEdges(o.ys);
-  const position = o.data.map(([x, y]) => [nearest(o.xs, x), nearest(o.ys, y)] as const);
+  const column = indexOfValue(o.xs);
+  const row = indexOfValue(o.ys);
+  const position = o.data.map(([x, y]) => [column.get(x) ?? nearest(o.xs, x), row.get(y) ?? nearest(o.ys, y)] as const);
   const series = {
     id: o.id,
     name: o.name,
