@@ -189,7 +189,8 @@ function bitmapRenderItem(spec: CellSeriesSpec, colors: string[]) {
     const context = params.context as { round?: Round };
     const i = params.dataIndexInside;
     const opening = context.round === undefined;
-    const round = (context.round ??= startRound(params, api, i));
+    if (opening) context.round = startRound(params, api, i);
+    const round = context.round as Round;
     const at = place(api, i);
     if (at) {
       const [ix, iy] = at;
