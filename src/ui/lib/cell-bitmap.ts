@@ -3,7 +3,7 @@
 // main-thread work creating, diffing and painting that many elements (drawn a few hundred a frame,
 // every frame a long task). Here each cell paints itself into a canvas, with the same geometry and
 // colours as the element per cell (cellElements; colours from ECharts' own visual maps, so legend
-// and visual-map filters still apply), and each render round of a series (500 cells a frame)
+// and visual-map filters still apply), and each render round of a series (250 cells a frame)
 // shows its canvas as one image. Pointer hits, tooltips and clicks are found
 // from the grid (cellAt) since the image does not know its cells. Files (SVG, PNG) keep the element
 // per cell: only the option drawn in the page is changed.
@@ -128,7 +128,7 @@ type Element = { type: string; shape: Record<string, number>; style: { fill?: st
  * (its visual maps too), so a frame stays short whatever the grid; each round paints its own
  * bitmap over the box of its cells.
  */
-export const CELLS_PER_ROUND = 500;
+export const CELLS_PER_ROUND = 250;
 
 interface Round {
   px: number[];
