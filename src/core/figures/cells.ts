@@ -35,6 +35,15 @@ function nearest(values: readonly number[], v: number): number {
   return best;
 }
 
+/** Each grid value's index (the first, as nearest() finds it), for the data items that hold grid values exactly. */
+function indexOfValue(values: readonly number[]): Map<number, number> {
+  const out = new Map<number, number>();
+  values.forEach((v, i) => {
+    if (!Number.isNaN(v) && !out.has(v)) out.set(v, i);
+  });
+  return out;
+}
+
 export interface CellSeriesOptions {
   id: string;
   name: string;
@@ -51,12 +60,63 @@ export interface CellSeriesOptions {
   tooltip?: (index: number) => string;
 }
 
+/** What a page needs to draw a cell series some other way than item by item (see src/ui/lib/cell-bitmap.ts): its options and each data item's grid position. */
+export interface CellSeriesSpec {
+  options: CellSeriesOptions;
+  /** Cell edges along x and y (cellEdges). */
+  xe: number[];
+  ye: number[];
+  /** Per data item: [x index, y index] in the grid. */
+  position: (readonly [number, number])[];
+}
+
+/** The spec of every series cellSeries built, by the series object (nothing else holds it). */
+export const CELL_SERIES = new WeakMap<object, CellSeriesSpec>();
+
+/** A cell's rectangle: the cell at (x, y) of size w × h, less a hairline gap between cells big enough to show one. */
+export function cellRect(x: number, y: number, w: number, h: number): { x: number; y: number; width: number; height: number } {
+  const gap = w >= 6 && h >= 6 ? 0.5 : 0;
+  return { x: x + gap, y: y + gap, width: Math.max(0.5, w - 2 * gap), height: Math.max(0.5, h - 2 * gap) };
+}
+
+/** Whether a cell of w × h draws its rectangle alone, with no outline and no glyph (cellElements gives a plain filled rect). */
+export function cellIsPlain(o: CellSeriesOptions, w: number, h: number): boolean {
+  const gap = w >= 6 && h >= 6;
+  return !(o.outline && gap) && (!o.glyph || Math.min(w, h) < 7);
+}
+
+/** A cell's graphic elements (ECharts custom-series element options): its rectangle, and its glyph where it is big enough. */
+export function cellElements(o: CellSeriesOptions, x: number, y: number, w: number, h: number, fill: string, value: number): unknown {
+  const gap = w >= 6 && h >= 6 ? 0.5 : 0;
+  const rect = {
+    type: 'rect',
+    shape: cellRect(x, y, w, h),
+    style: { fill, stroke: o.outline ?? null, lineWidth: o.outline && gap ? 1 : 0 },
+  };
+  const size = Math.min(w, h);
+  if (!o.glyph || size < 7) return rect;
+  const ink = typeof o.glyphColor === 'function' ? o.glyphColor(value) : (o.glyphColor ?? PALETTE.ink);
+  const cx = x + w / 2;
+  const cy = y + h / 2;
+  const r = Math.min(size * 0.28, 6);
+  const line = (x1: number, y1: number, x2: number, y2: number) => ({ type: 'line', shape: { x1, y1, x2, y2 }, style: { stroke: ink, lineWidth: size >= 14 ? 1.6 : 1.1 } });
+  const glyph =
+    o.glyph === 'cross'
+      ? [line(cx - r, cy - r, cx + r, cy + r), line(cx - r, cy + r, cx + r, cy - r)]
+      : o.glyph === 'slash'
+        ? [line(cx - r, cy + r, cx + r, cy - r)]
+        : [{ type: 'circle', shape: { cx, cy, r: Math.max(1.2, r * 0.55) }, style: { fill: ink } }];
+  return { type: 'group', children: [rect, ...glyph] };
+}
+
 /** One class of cells as an ECharts custom series on value axes. */
 export function cellSeries(o: CellSeriesOptions): CustomSeriesOption {
   const xe = cellEdges(o.xs);
   const ye = cellEdges(o.ys);
-  const position = o.data.map(([x, y]) => [nearest(o.xs, x), nearest(o.ys, y)] as const);
-  return {
+  const column = indexOfValue(o.xs);
+  const row = indexOfValue(o.ys);
+  const position = o.data.map(([x, y]) => [column.get(x) ?? nearest(o.xs, x), row.get(y) ?? nearest(o.ys, y)] as const);
+  const series = {
     id: o.id,
     name: o.name,
     type: 'custom',
@@ -74,30 +134,11 @@ export function cellSeries(o: CellSeriesOptions): CustomSeriesOption {
       const y = Math.min(a[1], b[1]);
       const w = Math.abs(b[0] - a[0]);
       const h = Math.abs(b[1] - a[1]);
-      const fill = api.visual('color') as string;
-      const gap = w >= 6 && h >= 6 ? 0.5 : 0;
-      const rect = {
-        type: 'rect',
-        shape: { x: x + gap, y: y + gap, width: Math.max(0.5, w - 2 * gap), height: Math.max(0.5, h - 2 * gap) },
-        style: { fill, stroke: o.outline ?? null, lineWidth: o.outline && gap ? 1 : 0 },
-      };
-      const size = Math.min(w, h);
-      if (!o.glyph || size < 7) return rect as never;
-      const value = api.value(2) as number;
-      const ink = typeof o.glyphColor === 'function' ? o.glyphColor(value) : (o.glyphColor ?? PALETTE.ink);
-      const cx = x + w / 2;
-      const cy = y + h / 2;
-      const r = Math.min(size * 0.28, 6);
-      const line = (x1: number, y1: number, x2: number, y2: number) => ({ type: 'line', shape: { x1, y1, x2, y2 }, style: { stroke: ink, lineWidth: size >= 14 ? 1.6 : 1.1 } });
-      const glyph =
-        o.glyph === 'cross'
-          ? [line(cx - r, cy - r, cx + r, cy + r), line(cx - r, cy + r, cx + r, cy - r)]
-          : o.glyph === 'slash'
-            ? [line(cx - r, cy + r, cx + r, cy - r)]
-            : [{ type: 'circle', shape: { cx, cy, r: Math.max(1.2, r * 0.55) }, style: { fill: ink } }];
-      return { type: 'group', children: [rect, ...glyph] } as never;
+      return cellElements(o, x, y, w, h, api.visual('color') as string, api.value(2) as number) as never;
     },
   } as CustomSeriesOption;
+  CELL_SERIES.set(series, { options: o, xe, ye, position });
+  return series;
 }
 
 /** A value axis over the cells' full extent with round ticks. */

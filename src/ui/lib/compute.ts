@@ -15,11 +15,18 @@ import type { SimulationResult } from '../../core/simulate.js';
 import { shardRange, type ShardRange } from '../../core/shard.js';
 import { pairedDifferenceInterval } from '../../core/optimize/objectives.js';
 import { wilsonInterval } from '../../core/stats.js';
-import type { EnginePool } from '../../worker/browser-pool.js';
+import { JobCancelled, type EnginePool } from '../../worker/browser-pool.js';
 import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js';
 import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
 import type { LateralScenario } from '../../core/models/lateral.js';
+import { nextTask } from './yield.js';
+
+/** The next task, unless the job was cancelled meanwhile (a cancel between the last part and the finish still cancels). */
+async function pause(control: RunControl): Promise<void> {
+  await nextTask();
+  if (control.signal?.aborted) throw new JobCancelled();
+}
 
 export interface RunControl {
   signal?: AbortSignal;
@@ -94,15 +101,22 @@ export async function runScan(pool: EnginePool, scenario: Scenario, options: Sca
   const count = Math.max(1, Math.min(cells, pool.size * RANGES_PER_WORKER));
   const shards = Array.from({ length: count }, (_, i) => ({ index: i + 1, count }));
   const parts = await pool.map(shards, (api, shard) => api.scanShard(scenario, normalized, shard), control);
+  // the last part's message, the finish and the result's first draw: each its own task
+  await pause(control);
   const rows: ScanCell[] = parts.flatMap((part) => part.rows);
-  return finishScan(scenario, normalized, rows);
+  const result = finishScan(scenario, normalized, rows);
+  await pause(control);
+  return result;
 }
 
 export async function runBasin(pool: EnginePool, scenario: Scenario, options: BasinOptions, control: RunControl = {}): Promise<BasinResult> {
   const run = basinRunOptions(scenario, options);
   const parts = await pool.map(ranges(basinCellCount(run), pool.size * RANGES_PER_WORKER), (api, range) => api.basinRows(scenario, run, range), control);
+  await pause(control);
   const rows: BasinRow[] = parts.flat();
-  return finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
+  const result = finishBasin(scenario, run as unknown as Record<string, unknown>, rows);
+  await pause(control);
+  return result;
 }
 
 export interface MonteCarloRun {
@@ -114,8 +128,11 @@ export interface MonteCarloRun {
 export async function runRobustness(pool: EnginePool, scenario: Scenario, options: RobustnessOptions, control: RunControl = {}): Promise<MonteCarloRun> {
   const canonical = canonicalRobustnessOptions(scenario, options);
   const parts = await pool.map(ranges(canonical.rollouts, pool.size * RANGES_PER_WORKER), (api, range) => api.robustnessRows(scenario, canonical, range), control);
+  await pause(control);
   const rows = parts.flat();
-  return { result: await finishRobustness(scenario, canonical, rows), rows };
+  const result = await finishRobustness(scenario, canonical, rows);
+  await pause(control);
+  return { result, rows };
 }
 
 // ---------------------------------------------------------------------------------------------
