@@ -2243,25 +2243,12 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
       const bit = 1 << i;
       if ((live & bit) == 0 || (going & bit) != 0) continue;
       if ((paired & bit) != 0) unpackEnd(i, laneBuffers(i));
+      // a quiet step ended in the lanes that the contact goes on from on its own (contactBefore)
+      let resume = false;
       if ((packed & bit) != 0) {
         unpackLane(i);
         packed &= ~bit;
-        if ((quiet & bit) != 0) {
-          // a quiet step that contactBefore stops
-          laneSelect(i);
-          laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
-          if (laneRun(CONTACT_GO)) {
-            if (laneStepParams(i)) pairable |= bit;
-            else pairable &= ~bit;
-            if (S.single) singles |= bit;
-            else singles &= ~bit;
-            laneSave(LANE_EXT + <usize>i * LANE_BYTES);
-            if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
-          } else {
-            live &= ~bit;
-          }
-          continue;
-        }
+        resume = (quiet & bit) != 0; // a quiet step that contactBefore stops
       } else if ((paired & bit) != 0 && laneAfterQuiet(i, laneError(i))) {
         // contactBefore's checks; the contact goes on without switching to the lane
         const s = laneState(i);
@@ -2271,6 +2258,9 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
           if (packLane(i)) packed |= bit;
           continue;
         }
+        resume = true;
+      }
+      if (resume) {
         laneSelect(i);
         laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
         if (laneRun(CONTACT_GO)) {
