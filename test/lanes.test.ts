@@ -116,6 +116,31 @@ function expectSameBytes(got: BatchResult, want: BatchResult) {
 
 afterAll(() => closeWorkerPool());
 
+/** Every batch size, with and without records: two and four lanes give the one-lane bytes. */
+async function expectSameAtEverySize(models: BatchRequest['model'], make: (rollouts: number) => Float64Array, sizes: number[], strides: number) {
+  const engine = await loadEngine();
+  for (const rollouts of sizes) {
+    for (const records of [true, false]) {
+      const req = { model: models, inputs: make(rollouts), strides, records };
+      const one = runWith(engine, 1, req);
+      expectSameBytes(runWith(engine, 2, req), one);
+      expectSameBytes(runWith(engine, 4, req), one);
+    }
+  }
+}
+
+/** The picked rollouts of a four-lane batch give the bytes each gives alone. */
+async function expectOwnBytes(models: BatchRequest['model'], inputs: Float64Array, picks: number[], strides: number) {
+  const engine = await loadEngine();
+  const all = runWith(engine, 4, { model: models, inputs, strides, records: true });
+  for (const r of picks) {
+    const alone = runWith(engine, 1, { model: models, inputs: inputs.slice(r * L.I_SIZE, (r + 1) * L.I_SIZE), strides, records: true });
+    expect(bytes(all.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!.equals(bytes(alone.summaries)!)).toBe(true);
+    const n = strides * L.R_SIZE;
+    expect(bytes(all.records!.subarray(r * n, (r + 1) * n))!.equals(bytes(alone.records)!)).toBe(true);
+  }
+}
+
 describe('runBatch in two and four lanes', () => {
   it('assembly/rk/dopri5x2.ts is what scripts/gen-lane-step.mjs writes', () => {
     expect(readFileSync(new URL('../assembly/rk/dopri5x2.ts', import.meta.url), 'utf8')).toBe(laneStepSource());
@@ -149,27 +174,11 @@ describe('runBatch in two and four lanes', () => {
   });
 
   it('any number of rollouts, with or without records: the same bytes', async () => {
-    const engine = await loadEngine();
-    for (const rollouts of [1, 2, 3, 5, 16, 41]) {
-      for (const records of [true, false]) {
-        const req = { model: models, inputs: inputsFor(rollouts, models.length, 7 + rollouts), strides: 12, records };
-        const one = runWith(engine, 1, req);
-        expectSameBytes(runWith(engine, 2, req), one);
-        expectSameBytes(runWith(engine, 4, req), one);
-      }
-    }
+    await expectSameAtEverySize(models, (rollouts) => inputsFor(rollouts, models.length, 7 + rollouts), [1, 2, 3, 5, 16, 41], 12);
   });
 
   it('a rollout paired with different partners gives the same bytes (its own result, alone or in any batch)', async () => {
-    const engine = await loadEngine();
-    const inputs = inputsFor(24, models.length, 99);
-    const all = runWith(engine, 4, { model: models, inputs, strides: 6, records: true });
-    for (const r of [0, 5, 11, 23]) {
-      const alone = runWith(engine, 1, { model: models, inputs: inputs.slice(r * L.I_SIZE, (r + 1) * L.I_SIZE), strides: 6, records: true });
-      expect(bytes(all.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!.equals(bytes(alone.summaries)!)).toBe(true);
-      const n = 6 * L.R_SIZE;
-      expect(bytes(all.records!.subarray(r * n, (r + 1) * n))!.equals(bytes(alone.records)!)).toBe(true);
-    }
+    await expectOwnBytes(models, inputsFor(24, models.length, 99), [0, 5, 11, 23], 6);
   });
 
   it('step limits, body contact and other failures end a lane as they end a lone rollout', async () => {
@@ -319,27 +328,11 @@ describe('two-leg rollouts in two and four lanes', () => {
   });
 
   it('any number of rollouts, with or without records: the same bytes', async () => {
-    const engine = await loadEngine();
-    for (const rollouts of [1, 2, 3, 5, 9]) {
-      for (const records of [true, false]) {
-        const req = { model: models, inputs: bipedInputs(rollouts, models.length, 31 + rollouts), strides: 8, records };
-        const one = runWith(engine, 1, req);
-        expectSameBytes(runWith(engine, 2, req), one);
-        expectSameBytes(runWith(engine, 4, req), one);
-      }
-    }
+    await expectSameAtEverySize(models, (rollouts) => bipedInputs(rollouts, models.length, 31 + rollouts), [1, 2, 3, 5, 9], 8);
   });
 
   it('a two-leg rollout gives its own bytes alone or with any partners', async () => {
-    const engine = await loadEngine();
-    const inputs = bipedInputs(20, models.length, 77);
-    const all = runWith(engine, 4, { model: models, inputs, strides: 6, records: true });
-    for (const r of [0, 7, 13, 19]) {
-      const alone = runWith(engine, 1, { model: models, inputs: inputs.slice(r * L.I_SIZE, (r + 1) * L.I_SIZE), strides: 6, records: true });
-      expect(bytes(all.summaries.subarray(r * L.S_SIZE, (r + 1) * L.S_SIZE))!.equals(bytes(alone.summaries)!)).toBe(true);
-      const n = 6 * L.R_SIZE;
-      expect(bytes(all.records!.subarray(r * n, (r + 1) * n))!.equals(bytes(alone.records)!)).toBe(true);
-    }
+    await expectOwnBytes(models, bipedInputs(20, models.length, 77), [0, 7, 13, 19], 6);
   });
 
   it('step limits end a lane as they end a lone rollout', async () => {
