@@ -7,41 +7,26 @@
 //
 // Skipped, with the reason printed, when /usr/bin/chromium is absent.
 
-import { mkdirSync } from 'node:fs';
 import type { Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import demoBiped from '../../scenarios/demo-biped.json' with { type: 'json' };
 import { bipedReturnMap } from '../../src/core/analysis/biped-map.js';
 import type { BipedScenario } from '../../src/core/models/biped.js';
 import { parseScenario } from '../../src/core/scenario.js';
-import { CHROMIUM, ensureBuilt, haveChromium, launchBrowser, startPreview } from './harness.mjs';
-import { pageTools, SCREEN, SHOTS } from './page.js';
+import { CHROMIUM, haveChromium } from './harness.mjs';
+import { pageTools, workbenchSession } from './page.js';
 
 const available = haveChromium();
 if (!available) console.warn(`e2e: skipped: ${CHROMIUM} is absent (install it with: apt-get update && apt-get install -y chromium)`);
 
 describe.skipIf(!available)('model kinds in the workbench', () => {
-  let preview: Awaited<ReturnType<typeof startPreview>>;
-  let browser: Awaited<ReturnType<typeof launchBrowser>>;
   let page: Page;
   const pageErrors: string[] = [];
+  workbenchSession((p) => {
+    page = p;
+  }, pageErrors, { waitForMap: true });
   const t = pageTools(() => page);
 
-  beforeAll(async () => {
-    mkdirSync(SHOTS, { recursive: true });
-    ensureBuilt((m) => console.log(`e2e: ${m}`));
-    preview = await startPreview();
-    browser = await launchBrowser({ viewport: SCREEN });
-    page = await browser.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(preview.url);
-    await page.getByTestId('fixed-point').first().waitFor({ timeout: 30_000 });
-  }, 120_000);
-
-  afterAll(async () => {
-    await browser?.close();
-    await preview?.stop();
-  });
 
   const current = () => page.getByTestId('provenance').first().getAttribute('data-current');
 

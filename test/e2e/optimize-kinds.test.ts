@@ -9,9 +9,8 @@
 //
 // Skipped, with the reason printed, when /usr/bin/chromium is absent.
 
-import { mkdirSync } from 'node:fs';
 import type { Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import demoBiped from '../../scenarios/demo-biped.json' with { type: 'json' };
 import demoBipedStudy from '../../scenarios/demo-biped-study.json' with { type: 'json' };
@@ -24,8 +23,8 @@ import { hex32 } from '../../src/core/export/lookup.js';
 import { parseLateralScenario } from '../../src/core/models/lateral.js';
 import { parseStudy } from '../../src/core/optimize/study.js';
 import { optimizeStudy } from '../../src/worker/node-optimize.js';
-import { CHROMIUM, ensureBuilt, haveChromium, launchBrowser, startPreview } from './harness.mjs';
-import { pageTools, SCREEN, SHOTS } from './page.js';
+import { CHROMIUM, haveChromium } from './harness.mjs';
+import { pageTools, workbenchSession } from './page.js';
 
 const available = haveChromium();
 if (!available) console.warn(`e2e: skipped: ${CHROMIUM} is absent (install it with: apt-get update && apt-get install -y chromium)`);
@@ -40,27 +39,13 @@ function small(study: Json, scenario: unknown, termRollouts: number): Json {
 }
 
 describe.skipIf(!available)('the optimizer for every model kind in the workbench', () => {
-  let preview: Awaited<ReturnType<typeof startPreview>>;
-  let browser: Awaited<ReturnType<typeof launchBrowser>>;
   let page: Page;
   const pageErrors: string[] = [];
+  workbenchSession((p) => {
+    page = p;
+  }, pageErrors, { waitForMap: true });
   const t = pageTools(() => page);
 
-  beforeAll(async () => {
-    mkdirSync(SHOTS, { recursive: true });
-    ensureBuilt((m) => console.log(`e2e: ${m}`));
-    preview = await startPreview();
-    browser = await launchBrowser({ viewport: SCREEN });
-    page = await browser.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(preview.url);
-    await page.getByTestId('fixed-point').first().waitFor({ timeout: 30_000 });
-  }, 120_000);
-
-  afterAll(async () => {
-    await browser?.close();
-    await preview?.stop();
-  });
 
   const loadDemo = async (name: string) => {
     await page.getByTestId('demo-menu').click();

@@ -2,15 +2,42 @@
 // files opened through the Open… input, downloads read back, the figures' drawn options read from
 // the chart element (Chart.svelte attaches them for tests), screenshots at 1440 × 900.
 
-import { readFileSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Download, Page } from 'playwright-core';
-import { expect } from 'vitest';
-import { ROOT } from './harness.mjs';
+import { afterAll, beforeAll, expect } from 'vitest';
+import { ensureBuilt, launchBrowser, ROOT, startPreview } from './harness.mjs';
 
 export const SHOTS = join(ROOT, 'test-output/screenshots');
 /** The size every screenshot is taken at. */
 export const SCREEN = { width: 1440, height: 900 };
+
+/**
+ * One workbench page for a describe block: `vite preview` of the production build (built first if
+ * need be), Chromium at SCREEN, the page's uncaught errors pushed to `errors`, everything closed
+ * after the block. `open(page)` receives the page once it has loaded (with `waitForMap`, once the
+ * demo's return map shows); the returned `url()` is the preview's address.
+ */
+export function workbenchSession(open: (page: Page) => void, errors: string[], { waitForMap = false } = {}) {
+  let preview: Awaited<ReturnType<typeof startPreview>> | undefined;
+  let browser: Awaited<ReturnType<typeof launchBrowser>> | undefined;
+  beforeAll(async () => {
+    mkdirSync(SHOTS, { recursive: true });
+    ensureBuilt((m) => console.log(`e2e: ${m}`));
+    preview = await startPreview();
+    browser = await launchBrowser({ viewport: SCREEN });
+    const page = await browser.context.newPage();
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto(preview.url);
+    if (waitForMap) await page.getByTestId('fixed-point').first().waitFor({ timeout: 30_000 });
+    open(page);
+  }, 120_000);
+  afterAll(async () => {
+    await browser?.close();
+    await preview?.stop();
+  });
+  return { url: () => preview!.url };
+}
 
 export function pageTools(page: () => Page) {
   const field = (label: string) => page().getByLabel(label, { exact: true });

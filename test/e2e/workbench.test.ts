@@ -10,16 +10,16 @@
 //
 // Skipped, with the reason printed, when /usr/bin/chromium is absent (CI installs it).
 
-import { mkdirSync, readFileSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import type { Download, Page } from 'playwright-core';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { apexReturnMap } from '../../src/core/analysis/return-map.js';
 import { buildExport } from '../../src/core/export/build.js';
 import { scenarioSource } from '../../src/core/export/input.js';
 import { hex32 } from '../../src/core/export/lookup.js';
 import { demoScenario, parseScenario, type Scenario } from '../../src/core/scenario.js';
-import { ensureBuilt, haveChromium, launchBrowser, startPreview, CHROMIUM } from './harness.mjs';
-import { expectLegendsWhole, overlaps, pageTools, SCREEN, SHOTS } from './page.js';
+import { CHROMIUM, haveChromium } from './harness.mjs';
+import { expectLegendsWhole, overlaps, pageTools, SCREEN, workbenchSession } from './page.js';
 
 const available = haveChromium();
 if (!available) console.warn(`e2e: skipped: ${CHROMIUM} is absent (install it with: apt-get update && apt-get install -y chromium)`);
@@ -32,10 +32,11 @@ function demoWithAttack(attack: number): Scenario {
 }
 
 describe.skipIf(!available)('the workbench in headless Chromium', () => {
-  let preview: Awaited<ReturnType<typeof startPreview>>;
-  let browser: Awaited<ReturnType<typeof launchBrowser>>;
   let page: Page;
   const pageErrors: string[] = [];
+  const session = workbenchSession((p) => {
+    page = p;
+  }, pageErrors);
 
   const t = pageTools(() => page);
   const { shot, field, setField, describedBy, revision } = t;
@@ -46,20 +47,6 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     return firstFixedPoint();
   }
 
-  beforeAll(async () => {
-    mkdirSync(SHOTS, { recursive: true });
-    ensureBuilt((m) => console.log(`e2e: ${m}`));
-    preview = await startPreview();
-    browser = await launchBrowser({ viewport: SCREEN });
-    page = await browser.context.newPage();
-    page.on('pageerror', (e) => pageErrors.push(e.message));
-    await page.goto(preview.url);
-  }, 120_000);
-
-  afterAll(async () => {
-    await browser?.close();
-    await preview?.stop();
-  });
 
   it('loads the demo scenario and computes its return map in the workers', async () => {
     await expect.poll(() => page.getByTestId('fixed-point').count(), { timeout: 20_000 }).toBeGreaterThan(0);
@@ -411,7 +398,7 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
   });
 
   it('replaces a worker that dies and keeps the work', async () => {
-    await page.goto(`${preview.url}?diagnostics`);
+    await page.goto(`${session.url()}?diagnostics`);
     await page.locator('#tab-map').click();
     await expect.poll(() => page.getByTestId('fixed-point').count(), { timeout: 20_000 }).toBeGreaterThan(0);
     const before = await firstFixedPoint();
