@@ -175,9 +175,12 @@ describe('scenario editor', () => {
 });
 
 describe('study editor', () => {
+  // the study editor is put together in the task after the page's first (Editor.svelte)
+  const studyShown = () => screen.findByLabelText('Touchdown angle, steepest');
+
   it('reports half an angle range at its missing end', async () => {
     const { wb } = setup();
-    const steepest = screen.getByLabelText('Touchdown angle, steepest');
+    const steepest = await studyShown();
     type(steepest, '');
     await Promise.resolve();
     // src/core/optimize/study.ts: leg_angle_range_deg {min_deg, max_deg}, both angles in [0.01, 90]
@@ -219,6 +222,7 @@ describe('study editor', () => {
 
   it('marks both bounds of a free parameter whose lower bound is above its upper', async () => {
     setup();
+    await studyShown();
     const upper = screen.getAllByLabelText('Upper bound')[0];
     const lower = screen.getAllByLabelText('Lower bound')[0];
     type(upper, '50'); // below the lower bound, 55 (scenarios/demo-study.json)
@@ -230,6 +234,7 @@ describe('study editor', () => {
 
   it('marks both ends of the limits\' touchdown angle range', async () => {
     setup();
+    await studyShown();
     const lowest = screen.getByLabelText('Touchdown angle, lowest');
     const steepest = screen.getByLabelText('Touchdown angle, steepest');
     type(lowest, '88'); // above the demo study's steepest, 85°
