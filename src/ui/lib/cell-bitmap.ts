@@ -1,12 +1,13 @@
 // Cell maps (basin, stability regions) in the page as bitmaps instead of one ECharts element per
 // cell: a 121 × 121 basin is 14,641 cells, and ECharts spent hundreds of milliseconds of
-// main-thread work creating, diffing and painting that many elements (drawn a few hundred a frame,
-// every frame a long task). Here each cell paints itself into a canvas, with the same geometry and
-// colours as the element per cell (cellElements; colours from ECharts' own visual maps, so legend
-// and visual-map filters still apply), and each render round of a series (250 cells a frame)
-// shows its canvas as one image. Pointer hits, tooltips and clicks are found
-// from the grid (cellAt) since the image does not know its cells. Files (SVG, PNG) keep the element
-// per cell: only the option drawn in the page is changed.
+// main-thread work taking in, colouring and drawing that many data items. Here each cell series
+// hands ECharts one data item (its name, legend entry and visual map stay ECharts'), whose
+// element is an image of the whole series: the page paints every cell into it, with the same
+// geometry and colours as the element per cell (cellElements; colours from ECharts' own visual
+// maps, so legend and visual-map filters still apply), in a task after the figure's first frame.
+// Pointer hits, tooltips and clicks are found from the grid (cellAt) since the image does not know
+// its cells. Files (SVG, PNG) keep the element per cell: only the option drawn in the page is
+// changed.
 
 import type { CustomSeriesRenderItemAPI, CustomSeriesRenderItemParams } from 'echarts';
 import { CELL_SERIES, cellElements, cellIsPlain, cellRect, type CellSeriesSpec } from '../../core/figures/cells.js';
@@ -23,12 +24,28 @@ export interface CellHit {
   color: string | undefined;
 }
 
+/** What the page's chart gives the cell images: each cell's colour, and a redraw once they are painted. */
+export interface CellPainter {
+  /**
+   * The colour a value of series `seriesIndex` is drawn in (its visual maps'), or null when it is
+   * not drawn (out of a visual map's range); `key` changes whenever a colour may (the visual maps'
+   * ranges and selections).
+   */
+  colorOf(seriesIndex: number): { key: string; color(value: number): string | null };
+  /** The images hold new pixels: draw the chart again. */
+  redraw(): void;
+  /** Runs `paint` in a later task. */
+  later(paint: () => void): void;
+}
+
 /** The cells of a bitmap-drawn map, by grid position. */
 export interface CellMap {
   xe: readonly number[];
   ye: readonly number[];
   /** The cell at grid position (ix, iy), or null (no series holds it). */
   at(ix: number, iy: number): CellHit | null;
+  /** Each cell series' index in the option and its data items as built (ECharts holds one item per series). */
+  series: { index: number; data: readonly unknown[] }[];
 }
 
 interface SeriesLike {
@@ -48,7 +65,7 @@ interface SeriesLike {
  * in place; returns how to find a cell by grid position, or null when the option has none (or cell
  * series on different grids, which then draw as before).
  */
-export function bitmapCells(option: { series?: unknown; tooltip?: unknown }): CellMap | null {
+export function bitmapCells(option: { series?: unknown; tooltip?: unknown }, painter: CellPainter): CellMap | null {
   const series = option.series;
   if (!Array.isArray(series)) return null;
   const cells: { index: number; spec: CellSeriesSpec; series: SeriesLike; colors: string[] }[] = [];
@@ -67,9 +84,10 @@ export function bitmapCells(option: { series?: unknown; tooltip?: unknown }): Ce
       owner[iy * nx + ix] = k;
       item[iy * nx + ix] = dataIndex;
     });
-    c.series.renderItem = bitmapRenderItem(c.spec, c.colors);
-    c.series.progressive = CELLS_PER_ROUND;
-    c.series.progressiveThreshold = CELLS_PER_ROUND;
+    const { xs, ys } = c.spec.options;
+    // one item inside the grid: the series' image (ECharts filters items outside the axes)
+    c.series.data = [[xs[0], ys[0], 0, -1]];
+    c.series.renderItem = imageRenderItem(c.spec, c.index, c.colors, painter);
     c.series.silent = true; // hits come from the grid (cellAt)
   });
   // the tooltip shows on the page's own pointer handling (showTip) alone: ECharts' would hide it,
@@ -79,6 +97,7 @@ export function bitmapCells(option: { series?: unknown; tooltip?: unknown }): Ce
   return {
     xe,
     ye,
+    series: cells.map((c) => ({ index: c.index, data: c.spec.options.data })),
     at(ix, iy) {
       if (ix < 0 || iy < 0 || ix >= nx || iy >= ye.length - 1) return null;
       const k = owner[iy * nx + ix];
@@ -123,102 +142,83 @@ export function intervalOf(edges: readonly number[], v: number): number {
 
 type Element = { type: string; shape: Record<string, number>; style: { fill?: string | null; stroke?: string | null; lineWidth?: number }; children?: Element[] };
 
-/**
- * Items per render round: ECharts draws a bigger series progressively, this many items a frame
- * (its visual maps too), so a frame stays short whatever the grid; each round paints its own
- * bitmap over the box of its cells.
- */
-export const CELLS_PER_ROUND = 250;
-
-interface Round {
-  px: number[];
-  py: number[];
+interface Brush {
   g: CanvasRenderingContext2D;
-  element: unknown;
   fill: string | null;
 }
 
 /**
- * `colors` receives each item's colour (by data index: the cell series are never filtered). Each
- * render round (params.context is new for each) paints into a canvas of its own, which the round's
- * first item shows as one image; every item paints its own cell, with its own visual colour.
+ * The series' one item draws an image of all its cells. The image is painted in a later task
+ * (the figure's first frame lays out its axes, legend and colour bar alone), and again whenever the
+ * cells' pixel edges or colours change (a resize, a visual map's range); `colors` receives each
+ * item's colour by data index.
  */
-function bitmapRenderItem(spec: CellSeriesSpec, colors: string[]) {
-  const { xe, ye, options } = spec;
-  const column = new Map(options.xs.map((x, i) => [x, i]));
-  const row = new Map(options.ys.map((y, i) => [y, i]));
-  const place = (api: CustomSeriesRenderItemAPI, i: number) => {
-    const ix = column.get(api.value(0, i) as number);
-    const iy = row.get(api.value(1, i) as number);
-    return ix === undefined || iy === undefined ? null : [ix, iy];
-  };
-  function startRound(params: CustomSeriesRenderItemParams, api: CustomSeriesRenderItemAPI, first: number): Round {
+function imageRenderItem(spec: CellSeriesSpec, seriesIndex: number, colors: string[], painter: CellPainter) {
+  const { xe, ye, options, position } = spec;
+  let canvas: HTMLCanvasElement | null = null;
+  let painted = '';
+  let pending = '';
+  return (params: CustomSeriesRenderItemParams, api: CustomSeriesRenderItemAPI) => {
     // pixel edges: the axes are linear and separate, so a column's edges do not depend on the row
     const px = xe.map((x) => api.coord([x, ye[0]])[0]);
     const py = ye.map((y) => api.coord([xe[0], y])[1]);
-    // the box of this round's cells: a progressive round is the next CELLS_PER_ROUND items
-    const last = Math.min(params.dataInsideLength, first + CELLS_PER_ROUND);
-    let x0 = Infinity;
-    let y0 = Infinity;
-    let x1 = -Infinity;
-    let y1 = -Infinity;
-    for (let i = first; i < last; i++) {
-      const at = place(api, i);
-      if (!at) continue;
-      const [ix, iy] = at;
-      x0 = Math.min(x0, px[ix], px[ix + 1]);
-      x1 = Math.max(x1, px[ix], px[ix + 1]);
-      y0 = Math.min(y0, py[iy], py[iy + 1]);
-      y1 = Math.max(y1, py[iy], py[iy + 1]);
-    }
     const area = params.coordSys as unknown as { x: number; y: number; width: number; height: number };
-    if (!(x1 > x0 && y1 > y0)) [x0, y0, x1, y1] = [area.x, area.y, area.x + area.width, area.y + area.height];
-    x0 = Math.floor(x0) - 1;
-    y0 = Math.floor(y0) - 1;
-    const width = Math.ceil(x1) + 1 - x0;
-    const height = Math.ceil(y1) + 1 - y0;
+    const x0 = Math.floor(Math.min(area.x, ...px)) - 1;
+    const y0 = Math.floor(Math.min(area.y, ...py)) - 1;
+    const width = Math.ceil(Math.max(area.x + area.width, ...px)) + 1 - x0;
+    const height = Math.ceil(Math.max(area.y + area.height, ...py)) + 1 - y0;
     const ratio = Math.max(1, Math.min(3, Math.round(globalThis.devicePixelRatio || 1)));
-    const canvas = document.createElement('canvas');
-    canvas.width = width * ratio;
-    canvas.height = height * ratio;
-    const g = canvas.getContext('2d')!;
-    g.setTransform(ratio, 0, 0, ratio, -x0 * ratio, -y0 * ratio);
-    return { px, py, g, fill: null, element: { type: 'image', silent: true, style: { image: canvas, x: x0, y: y0, width, height } } };
-  }
-  return (params: CustomSeriesRenderItemParams, api: CustomSeriesRenderItemAPI) => {
-    const context = params.context as { round?: Round };
-    const i = params.dataIndexInside;
-    const opening = context.round === undefined;
-    if (opening) context.round = startRound(params, api, i);
-    const round = context.round as Round;
-    const at = place(api, i);
-    if (at) {
-      const [ix, iy] = at;
-      // as cellSeries' renderItem: a at (left edge, upper value edge), b at (right edge, lower value edge)
-      const ax = round.px[ix];
-      const bx = round.px[ix + 1];
-      const ay = round.py[iy + 1];
-      const by = round.py[iy];
-      const color = api.visual('color') as string;
-      colors[i] = color;
-      const [x, y, w, h] = [Math.min(ax, bx), Math.min(ay, by), Math.abs(bx - ax), Math.abs(by - ay)];
-      if (!color) {
-        // no colour, nothing drawn (as an element with no fill)
-      } else if (cellIsPlain(options, w, h)) {
-        // the common case of a big grid (small cells): a filled rectangle, no element objects
-        const r = cellRect(x, y, w, h);
-        if (color !== round.fill) round.g.fillStyle = round.fill = color;
-        round.g.fillRect(r.x, r.y, r.width, r.height);
-      } else paint(round, cellElements(options, x, y, w, h, color, api.value(2) as number) as Element);
+    // what the pixels depend on: the edges and the visual maps' state
+    const key = `${px.join()};${py.join()};${ratio};${painter.colorOf(seriesIndex).key}`;
+    canvas ??= document.createElement('canvas');
+    const image = canvas;
+    if (key !== painted && key !== pending) {
+      pending = key;
+      painter.later(() => {
+        if (pending !== key) return; // a later render asked for other pixels
+        pending = '';
+        painted = key;
+        image.width = width * ratio;
+        image.height = height * ratio;
+        const g = image.getContext('2d')!;
+        g.setTransform(ratio, 0, 0, ratio, -x0 * ratio, -y0 * ratio);
+        const brush: Brush = { g, fill: null };
+        const colorAt = painter.colorOf(seriesIndex).color;
+        const memo = new Map<number, string | null>();
+        options.data.forEach((datum, i) => {
+          const value = datum[2];
+          let fill = memo.get(value);
+          if (fill === undefined) {
+            fill = colorAt(value);
+            memo.set(value, fill);
+          }
+          if (!fill) return; // not drawn (as an element with no fill)
+          colors[i] = fill;
+          const [ix, iy] = position[i];
+          // as cellSeries' renderItem: a at (left edge, upper value edge), b at (right edge, lower value edge)
+          const ax = px[ix];
+          const bx = px[ix + 1];
+          const ay = py[iy + 1];
+          const by = py[iy];
+          const [x, y, w, h] = [Math.min(ax, bx), Math.min(ay, by), Math.abs(bx - ax), Math.abs(by - ay)];
+          if (cellIsPlain(options, w, h)) {
+            // the common case of a big grid (small cells): a filled rectangle, no element objects
+            const r = cellRect(x, y, w, h);
+            if (fill !== brush.fill) g.fillStyle = brush.fill = fill;
+            g.fillRect(r.x, r.y, r.width, r.height);
+          } else paint(brush, cellElements(options, x, y, w, h, fill, value) as Element);
+        });
+        painter.redraw();
+      });
     }
-    return (opening ? round.element : null) as never;
+    return { type: 'image', silent: true, style: { image, x: x0, y: y0, width, height } } as never;
   };
 }
 
-function paint(round: Round, e: Element): void {
-  const g = round.g;
+function paint(brush: Brush, e: Element): void {
+  const g = brush.g;
   if (e.type === 'group') {
-    for (const child of e.children ?? []) paint(round, child);
+    for (const child of e.children ?? []) paint(brush, child);
     return;
   }
   const { fill, stroke, lineWidth = 0 } = e.style;
@@ -226,7 +226,7 @@ function paint(round: Round, e: Element): void {
   const stroked = !!stroke && lineWidth > 0;
   if (e.type === 'rect' && !stroked) {
     if (!fill) return;
-    if (fill !== round.fill) g.fillStyle = round.fill = fill;
+    if (fill !== brush.fill) g.fillStyle = brush.fill = fill;
     g.fillRect(s.x, s.y, s.width, s.height);
     return;
   }
@@ -237,7 +237,7 @@ function paint(round: Round, e: Element): void {
     g.lineTo(s.x2, s.y2);
   } else if (e.type === 'circle') g.arc(s.cx, s.cy, s.r, 0, Math.PI * 2);
   if (fill && e.type !== 'line') {
-    if (fill !== round.fill) g.fillStyle = round.fill = fill;
+    if (fill !== brush.fill) g.fillStyle = brush.fill = fill;
     g.fill();
   }
   if (stroked) {
