@@ -211,6 +211,21 @@ let S: BipedState = changetype<BipedState>(STATE_DEFAULT);
 @inline function ls(i: i32, f: i32, v: f64): void {
   store<f64>(LEGS + (<usize>(i * LF_N + f) << 3), v);
 }
+// Leg j's contact begins at time t: its foot pinned at footX on the swing leg's ground, its
+// stiffness chosen for this contact (chooseStiffness), compressing.
+function legTouchdown(s: BipedState, j: i32, footX: f64, t: f64): void {
+  ls(j, LF_ON, 1.0);
+  ls(j, LF_FX, footX);
+  ls(j, LF_FY, s.swingGround);
+  chooseStiffness(s.model, t, lg(j, LF_KSCALE));
+  ls(j, LF_KC, stanceKc);
+  ls(j, LF_KE, stanceKe);
+  ls(j, LF_K, stanceKc);
+  ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
+  ls(j, LF_COMPRESSING, 1.0);
+  ls(j, LF_TD, t);
+}
+
 @inline function put(p: usize, field: i32, v: f64): void {
   store<f64>(p + (<usize>field << 3), v);
 }
@@ -1406,16 +1421,7 @@ function contactAfter(err: f64): i32 {
     if (a < s.minAttack) s.minAttack = a;
     if (a > s.maxAttack) s.maxAttack = a;
     const px = load<f64>(YN, 0);
-    ls(j, LF_ON, 1.0);
-    ls(j, LF_FX, s.ox + px + lg(j, LF_L0) * legCos(a));
-    ls(j, LF_FY, s.swingGround);
-    chooseStiffness(s.model, tTd, lg(j, LF_KSCALE));
-    ls(j, LF_KC, stanceKc);
-    ls(j, LF_KE, stanceKe);
-    ls(j, LF_K, stanceKc);
-    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-    ls(j, LF_COMPRESSING, 1.0);
-    ls(j, LF_TD, tTd);
+    legTouchdown(s, j, s.ox + px + lg(j, LF_L0) * legCos(a), tTd);
     s.touchedDown = true;
     put(rec, R_DOUBLE_START, tTd);
     put(rec, R_APEX_TO_TOUCHDOWN, tTd);
@@ -1670,28 +1676,10 @@ function strideBegin(): bool {
     const py = l0 * sinA;
     const footX = xTouch - px;
     if (tracing) traceFlightB(s.apexT, s.apexT + tTouch, s.apexX, s.apexY, s.apexVx, 0.0, 0.0, false);
-    ls(j, LF_ON, 1.0);
-    ls(j, LF_FX, footX);
-    ls(j, LF_FY, s.swingGround);
-    chooseStiffness(s.model, tTouch, lg(j, LF_KSCALE));
-    ls(j, LF_KC, stanceKc);
-    ls(j, LF_KE, stanceKe);
-    ls(j, LF_K, stanceKc);
-    ls(j, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-    ls(j, LF_COMPRESSING, 1.0);
-    ls(j, LF_TD, tTouch);
+    legTouchdown(s, j, footX, tTouch);
     if (both) {
       const o = 1 - j;
-      ls(o, LF_ON, 1.0);
-      ls(o, LF_FX, xTouch + lg(o, LF_L0) * cosA);
-      ls(o, LF_FY, s.swingGround);
-      chooseStiffness(s.model, tTouch, lg(o, LF_KSCALE));
-      ls(o, LF_KC, stanceKc);
-      ls(o, LF_KE, stanceKe);
-      ls(o, LF_K, stanceKc);
-      ls(o, LF_SPLIT, stanceSplit ? 1.0 : 0.0);
-      ls(o, LF_COMPRESSING, 1.0);
-      ls(o, LF_TD, tTouch);
+      legTouchdown(s, o, xTouch + lg(o, LF_L0) * cosA, tTouch);
       put(rec, R_DOUBLE_START, tTouch);
       chooseStiffness(s.model, tTouch, lg(j, LF_KSCALE)); // R_K_* below: the first leg's
     }
