@@ -2231,7 +2231,8 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
       const bit = 1 << i;
       if ((live & bit) == 0 || (going & bit) != 0) continue;
       if ((paired & bit) != 0) unpackEnd(i, laneBuffers(i));
-      // a quiet step ended in the lanes that the contact goes on from on its own (contactBefore)
+      // resume: the lane's last step already ended quietly in the lanes, so its contact goes on
+      // (contactBefore's checks, CONTACT_GO) instead of finishing a step with contactAfter
       let resume = false;
       if ((packed & bit) != 0) {
         unpackLane(i);
@@ -2248,32 +2249,21 @@ export function runBipedBatch(lanes: i32, models: usize, inputs: usize, rollouts
         }
         resume = true;
       }
-      if (resume) {
-        laneSelect(i);
-        laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
-        if (laneRun(CONTACT_GO)) {
-          if (laneStepParams(i)) pairable |= bit;
-          else pairable &= ~bit;
-          if (S.single) singles |= bit;
-          else singles &= ~bit;
-          laneSave(LANE_EXT + <usize>i * LANE_BYTES);
-          if ((pairable & bit) != 0 && packLane(i)) packed |= bit;
-        } else {
-          live &= ~bit;
-        }
-        continue;
-      }
       laneSelect(i);
       laneLoad(LANE_EXT + <usize>i * LANE_BYTES);
-      let err: f64;
-      if ((paired & bit) != 0) {
-        setLastH(S.h);
-        unpackStages(i, laneBuffers(i));
-        err = laneError(i);
-      } else {
-        err = bstep(S.h);
+      let next = CONTACT_GO;
+      if (!resume) {
+        let err: f64;
+        if ((paired & bit) != 0) {
+          setLastH(S.h);
+          unpackStages(i, laneBuffers(i));
+          err = laneError(i);
+        } else {
+          err = bstep(S.h);
+        }
+        next = contactAfter(err);
       }
-      if (laneRun(contactAfter(err))) {
+      if (laneRun(next)) {
         if (laneStepParams(i)) pairable |= bit;
         else pairable &= ~bit;
         if (S.single) singles |= bit;
