@@ -14,7 +14,7 @@ import {
 } from '../src/core/analysis/basin.js';
 import { loadEngine, rolloutInput } from '../src/core/engine.js';
 import { buildModel } from '../src/core/model.js';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 import { scenario } from './helpers.js';
 
@@ -192,12 +192,6 @@ describe('results do not depend on the number of workers', () => {
 });
 
 describe('pronk basin: bad input is exit 2 naming the option', () => {
-  async function pronk(args: string[]) {
-    let stdout = '';
-    let stderr = '';
-    const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-    return { code, stdout, stderr };
-  }
   const cases: [string[], RegExp][] = [
     [['--heights', '0.9:1.5:0'], /--heights: .*n >= 1.*empty grid/],
     [['--speeds', '3:7:0'], /--speeds: .*empty grid/],

@@ -3,7 +3,7 @@
 import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { describe, expect, it } from 'vitest';
 import { L, rel, scenario as slipScenario } from './helpers.js';
 import { bipedReturnMap } from '../src/core/analysis/biped-map.js';
@@ -324,12 +324,6 @@ describe('eigenvalues of small matrices (closed forms)', () => {
 });
 
 describe('pronk with a two-leg scenario', () => {
-  async function pronk(args: string[]) {
-    let stdout = '';
-    let stderr = '';
-    const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-    return { code, stdout, stderr };
-  }
   it('simulate --json on the demo walker: header model biped, section single_support_apex, per-leg fields, completed', async () => {
     const run = await pronk(['simulate', 'scenarios/demo-biped.json', '--json', '--strides', '5', '--trace-interval', '0.01']);
     expect(run.code).toBe(0);

@@ -5,20 +5,13 @@ import { closeSync, mkdtempSync, openSync, symlinkSync, writeFileSync, ftruncate
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { InputError } from '../src/core/errors.js';
 import { MAX_INPUT_FILE_BYTES, MAX_PARTIAL_FILE_BYTES, checkInputSize, readInputFile } from '../src/core/input-file.js';
 import { MAX_JSON_DEPTH, parseJson } from '../src/core/scenario.js';
 
 const directory = mkdtempSync(join(tmpdir(), 'pronk-input-'));
 const at = (name: string) => join(directory, name);
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 // A sparse file of `bytes` bytes: its size is on disk at once, its blocks never written.
 function sparse(name: string, bytes: number): string {

@@ -13,7 +13,7 @@ import { finishBasin } from '../src/core/analysis/basin.js';
 import { mergePartials } from '../src/core/merge.js';
 import { parseScenario } from '../src/core/scenario.js';
 import type { PartialResult } from '../src/core/shard.js';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 
 afterAll(() => closeWorkerPool());
@@ -37,13 +37,6 @@ writeFileSync(at('robot.json'), JSON.stringify(robot));
 function pronkBuilt(args: string[]) {
   const child = spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', cwd: directory, env: { ...process.env, PRONK_DEBUG: '' } });
   return { code: child.status, stdout: child.stdout, stderr: child.stderr };
-}
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
 }
 
 const GRID = ['--heights', '0.9:1.6:9', '--speeds', '3:8:7', '--strides', '25']; // 63 cells: 21 per shard of 3

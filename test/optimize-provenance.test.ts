@@ -7,7 +7,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 
 const root = join(import.meta.dirname, '..');
@@ -16,13 +16,6 @@ afterAll(async () => {
   rmSync(folder, { recursive: true, force: true });
   await closeWorkerPool();
 });
-
-async function pronk(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 describe('the provenance hash of an optimization result', () => {
   it('is the hash of the winning scenario the file holds: export finds a fresh file unedited, an edited one edited', async () => {

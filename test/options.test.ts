@@ -5,7 +5,7 @@
 
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { decimalDigits, decimalNumber } from '../src/core/decimal.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 
@@ -14,13 +14,6 @@ afterAll(async () => {
 });
 
 const demo = join(import.meta.dirname, '..', 'scenarios', 'demo.json');
-
-async function pronk(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 const ODD = ['0x10', '0X1A', '0b11', '0o17', '1_000', ' 5', '5 ', '\t5', 'Infinity', '-Infinity', '+Infinity', '1e', '.', '1.2.3', '5x', ''];
 

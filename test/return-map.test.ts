@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import {
   apexReturnMap,
   eigenvalues2,
@@ -355,13 +355,6 @@ describe('numerics', () => {
 
 // ---------------------------------------------------------------------------------------------
 // The command.
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 const directory = mkdtempSync(join(tmpdir(), 'pronk-map-'));
 

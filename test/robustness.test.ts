@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { described, jsonText } from '../src/core/json-output.js';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import {
   canonicalRobustnessOptions,
   finishRobustness,
@@ -251,13 +251,6 @@ describe('bad input', () => {
 const directory = mkdtempSync(join(tmpdir(), 'pronk-robustness-'));
 const file = join(directory, 'seyfarth.json');
 writeFileSync(file, JSON.stringify({ name: 'Seyfarth 2002 body', ...JSON.parse(JSON.stringify(fixed68)) }));
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 describe('pronk robustness', () => {
   it('--json has the contract fields and matches the core analysis', async () => {

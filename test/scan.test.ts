@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { jsonText } from '../src/core/json-output.js';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { apexReturnMap } from '../src/core/analysis/return-map.js';
 import { axisValues, finishScan, parseAxisOption, scan, scanShard, type ScanCell, type ScanOptions } from '../src/core/analysis/scan.js';
 import { InputError } from '../src/core/errors.js';
@@ -208,13 +208,6 @@ describe('bad scan input is an InputError naming the option', () => {
 
 // ---------------------------------------------------------------------------------------------
 // The command.
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 describe('pronk scan', () => {
   const directory = mkdtempSync(join(tmpdir(), 'pronk-scan-'));

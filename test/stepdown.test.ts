@@ -5,7 +5,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it, vi } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { MAX_GRID_POINTS, stepModel, stepTolerance, type StepToleranceResult } from '../src/core/analysis/stepdown.js';
 import { loadEngine, rolloutInput } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
@@ -214,13 +214,6 @@ describe('bad input', () => {
 const directory = mkdtempSync(join(tmpdir(), 'pronk-stepdown-'));
 const file = join(directory, 'seyfarth.json');
 writeFileSync(file, JSON.stringify({ name: 'Seyfarth 2002 body', ...JSON.parse(JSON.stringify(scenario({ integrator, strides: 20 }))) }));
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 describe('pronk stepdown', () => {
   it('--json has the contract fields; --after N is passed through', async () => {

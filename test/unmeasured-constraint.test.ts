@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Ajv2020 } from 'ajv/dist/2020.js';
 import { afterAll, describe, expect, it } from 'vitest';
-import { main } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 
 const root = join(import.meta.dirname, '..');
@@ -17,13 +17,6 @@ afterAll(async () => {
   rmSync(folder, { recursive: true, force: true });
   await closeWorkerPool();
 });
-
-async function pronk(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
-}
 
 describe('a result whose held-out rollouts completed no stride', () => {
   it('optimize writes null, the result schema accepts the file, export refuses it by name even with --force', async () => {

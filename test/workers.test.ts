@@ -3,7 +3,8 @@
 // thousand threads (8.5 GB, 44 s against 66 MB and 0.8 s on one).
 import { availableParallelism } from 'node:os';
 import { afterAll, describe, expect, it } from 'vitest';
-import { loadCommands, main, type CliIO } from '../src/cli/main.js';
+import { loadCommands, type CliIO } from '../src/cli/main.js';
+import { pronk } from './pronk-cli.js';
 import { MAX_WORKERS_OPTION, workerThreads } from '../src/cli/workers.js';
 import { closeWorkerPool } from '../src/worker/pool.js';
 
@@ -12,13 +13,6 @@ afterAll(() => closeWorkerPool());
 function capture(): CliIO & { err: () => string } {
   let stderr = '';
   return { stdout: { write: () => true }, stderr: { write: (c: string) => (stderr += c) }, env: {}, err: () => stderr };
-}
-
-async function pronk(args: string[]) {
-  let stdout = '';
-  let stderr = '';
-  const code = await main(args, { stdout: { write: (c: string) => (stdout += c) }, stderr: { write: (c: string) => (stderr += c) }, env: {} });
-  return { code, stdout, stderr };
 }
 
 describe('workerThreads: min(cores x per core, work items)', () => {
