@@ -166,23 +166,26 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     await page.getByTestId('start-optimize').click();
     await expect.poll(async () => Number((await page.getByTestId('optimize-evaluations').textContent().catch(() => '0')) ?? 0), { timeout: 60_000 }).toBeGreaterThan(1);
     expect(await page.getByTestId('phase-optimize').textContent()).toBe('Searching');
-    // the time from the click to the changed button, measured in the page (MutationObserver)
+    // at once: the button changes within the click's own task (its microtasks), before any task
+    // queued behind the click runs (no wall-clock bound: the bench measures latencies)
     const acknowledged = await page.getByTestId('cancel-optimize').evaluate(
       (button) =>
-        new Promise<number>((resolve) => {
-          const t0 = performance.now();
+        new Promise<boolean>((resolve) => {
           const observer = new MutationObserver(() => {
             if (button.getAttribute('data-cancelling') === 'true') {
               observer.disconnect();
-              resolve(performance.now() - t0);
+              resolve(true);
             }
           });
           observer.observe(button, { attributes: true, childList: true, characterData: true, subtree: true });
           (button as HTMLButtonElement).click();
+          setTimeout(() => {
+            observer.disconnect();
+            resolve(false);
+          }, 0);
         }),
     );
-    console.log(`e2e: Cancel acknowledged in ${acknowledged.toFixed(1)} ms`);
-    expect(acknowledged).toBeLessThan(200);
+    expect(acknowledged).toBe(true);
     expect(await page.getByTestId('cancel-optimize').textContent()).toBe('Cancelling…');
     expect(await page.getByTestId('cancel-optimize').isDisabled()).toBe(true);
     // the held-out re-scoring of the best point so far: a phase of its own, with its own progress
