@@ -645,8 +645,12 @@ export class StudyEvaluator {
       else if (term.kind === 'step_down') results[i] = this.stepDown(scenario, term);
     });
 
-    const termResults = results as TermResult[];
-    const objective = termResults.reduce((sum, t) => sum + t.weight * t.score, 0);
+    return this.rememberScored(x, parameters, scenario, results as TermResult[], extremes, survived);
+  }
+
+  /** The candidate's evaluation from its terms and the extremes of its rollouts: objective, constraints, penalty, feasibility. */
+  private rememberScored(x: number[], parameters: Record<string, number>, scenario: Scenario, terms: TermResult[], extremes: Extremes, survived: Map<number, Uint8Array>): Memo {
+    const objective = terms.reduce((sum, t) => sum + t.weight * t.score, 0);
     const constraints = measureConstraints(this.study, scenario, extremes);
     const penalty =
       this.constraintHandling === 'penalty'
@@ -655,10 +659,10 @@ export class StudyEvaluator {
     const feasible = constraints.every((c) => c.margin === null || c.margin >= 0);
     const value = -objective + penalty;
     // The study's bounds keep every score finite; should one not be, the candidate is a status, never an abort.
-    if (!Number.isFinite(value) || termResults.some((t) => !Number.isFinite(t.score))) {
+    if (!Number.isFinite(value) || terms.some((t) => !Number.isFinite(t.score))) {
       return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, 'numerical failure: a score is not finite at this candidate'));
     }
-    return this.remember(x, survived, { x, parameters, score: objective - penalty, value, objective, penalty, terms: termResults, constraints, feasible, valid: true });
+    return this.remember(x, survived, { x, parameters, score: objective - penalty, value, objective, penalty, terms, constraints, feasible, valid: true });
   }
 
   private invalidEvaluation(x: number[], parameters: Record<string, number>, message: string): Evaluation {
@@ -737,20 +741,8 @@ export class StudyEvaluator {
   private runLateralCandidate(x: number[], parameters: Record<string, number>, scenario: LateralScenario, onRollouts?: (done: number, total: number) => void): Memo {
     const run = this.runLateral(scenario, onRollouts);
     if ('failure' in run) return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, `invalid candidate: ${run.failure}`));
-    const results = run.terms.map((t) => t.result);
     const survived = new Map(run.terms.map((t) => [t.term, t.recovered] as const));
-    const objective = results.reduce((sum, t) => sum + t.weight * t.score, 0);
-    const constraints = measureConstraints(this.study, scenario as unknown as Scenario, run.extremes);
-    const penalty =
-      this.constraintHandling === 'penalty'
-        ? this.study.search.penalty_weight * constraints.reduce((sum, c) => sum + Math.max(0, c.normalized) ** 2, 0)
-        : 0;
-    const feasible = constraints.every((c) => c.margin === null || c.margin >= 0);
-    const value = -objective + penalty;
-    if (!Number.isFinite(value) || results.some((t) => !Number.isFinite(t.score))) {
-      return this.remember(x, new Map(), this.invalidEvaluation(x, parameters, 'numerical failure: a score is not finite at this candidate'));
-    }
-    return this.remember(x, survived, { x, parameters, score: objective - penalty, value, objective, penalty, terms: results, constraints, feasible, valid: true });
+    return this.rememberScored(x, parameters, scenario as unknown as Scenario, run.terms.map((t) => t.result), run.extremes, survived);
   }
 
   private runLateral(
