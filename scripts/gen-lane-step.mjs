@@ -16,7 +16,10 @@ const add = (a, b) => `f64x2.add(${a}, ${b})`;
 const sub = (a, b) => `f64x2.sub(${a}, ${b})`;
 const mul = (a, b) => `f64x2.mul(${a}, ${b})`;
 const sum = (terms) => terms.reduce((acc, t) => (acc === null ? t : add(acc, t)), null);
-const V = (name) => `v${name}`;
+// The lane pair's step parameters in LANE_PARAMS: name in the step, Stance field.
+const PARAMS = [['h', 'h'], ['K', 'k'], ['LEG', 'leg'], ['C', 'c'], ['IM', 'invM'], ['G', 'g']];
+const paramAt = (ch, name) => (ch.base / 2 * PARAMS.length + PARAMS.findIndex(([n]) => n === name)) * 16;
+const V = (name) => `v128.load(TABLEAU2 + ${consts.indexOf(name) * 16})`;
 const consts = ['A21','A31','A32','A41','A42','A43','A51','A52','A53','A54','A61','A62','A63','A64','A65','B1','B3','B4','B5','B6','E1','E3','E4','E5','E6','E7'];
 const stages = [
   ['b', [['A21', 'a']]],
@@ -25,37 +28,27 @@ const stages = [
   ['e', [['A51', 'a'], ['A52', 'b'], ['A53', 'c'], ['A54', 'd']]],
   ['f', [['A61', 'a'], ['A62', 'b'], ['A63', 'c'], ['A64', 'd'], ['A65', 'e']]],
 ];
-function fn(name, chains) {
+function fn(name, chains, spring) {
   const L = [];
   const o = (s) => L.push(s);
   const lanes = chains.flatMap((c) => c.lanes);
-  o(`export function ${name}(${lanes.map((l) => `s${l}: Stance`).join(', ')}): void {`);
+  o(`function ${name}(${lanes.map((l) => `s${l}: Stance`).join(', ')}): void {`);
   for (const l of lanes) {
     const U = l.toUpperCase();
     o(`  const p${l} = s${l}.bufs;`);
-    for (const [v, f] of [['h', 'h'], ['rtol', 'rtol'], ['atol', 'atol'], ['dim', 'errDim'], ['k', 'k'], ['leg', 'leg'], ['c', 'c'], ['invM', 'invMass'], ['g', 'g'], ['old', 'errOld']]) {
+    for (const [v, f] of [['h', 'h'], ['rtol', 'rtol'], ['atol', 'atol'], ['dim', 'errDim'], ['k', 'k'], ['leg', 'leg'], ...(spring ? [] : [['c', 'c']]), ['invM', 'invMass'], ['g', 'g'], ['old', 'errOld']]) {
       o(`  const ${v}${U} = s${l}.${f};`);
     }
     o(`  const hi${U}: f64 = s${l}.afterReject ? 1.0 : 10.0;`);
   }
   o(`  const ONE = f64x2(1.0, 1.0);`);
   o(`  const ZERO = f64x2(0.0, 0.0);`);
-  for (const c of consts) o(`  const ${V(c)} = f64x2(${c}, ${c});`);
   for (const ch of chains) {
     const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
-    o(`  const h${X} = ${U('h')};`);
-    o(`  const K${X} = ${U('k')};`);
-    o(`  const LEG${X} = ${U('leg')};`);
-    o(`  const C${X} = ${U('c')};`);
-    o(`  const IM${X} = ${U('invM')};`);
-    o(`  const G${X} = ${U('g')};`);
-    o(`  // the work component only with damping in a lane: without, it and its stage values stay +0`);
-    o(`  // (c r'^2 = +0 for finite r'; a non-finite r' makes the leg force NaN, and the step NaN, anyway),`);
-    o(`  // and its error term is +0 / atol = +0 (atol > 0 and rtol finite: a validated scenario's)`);
-    const L0 = l0.toUpperCase(), L1 = l1.toUpperCase();
-    o(`  const w${X} = !(c${L0} == 0.0 && c${L1} == 0.0 && atol${L0} > 0.0 && atol${L1} > 0.0 && Math.abs(rtol${L0}) < Infinity && Math.abs(rtol${L1}) < Infinity);`);
+    for (const [name, field] of PARAMS) if (!(spring && name === 'C')) o(`  v128.store(LANE_PARAMS + ${paramAt(ch, name)}, ${U(field)});`);
+    const comps = spring ? 4 : 5; // the work component stays as it is without damping (see stepPair)
     for (let i = 0; i < 5; i++) o(`  const y${i}${X} = gather(p${l0}, p${l1}, OFF_Y0 + ${i * 8});`);
-    for (let i = 0; i < 5; i++) o(`  const a${i}${X} = gather(p${l0}, p${l1}, OFF_K1 + ${i * 8});`);
+    for (let i = 0; i < comps; i++) o(`  const a${i}${X} = gather(p${l0}, p${l1}, OFF_K1 + ${i * 8});`);
   }
   const rhs = (X, out, px, py, vx, vy, ind) => {
     const last = out === 'g';
@@ -63,24 +56,24 @@ function fn(name, chains) {
     o(`${ind}{`);
     o(`${ind}  const r = f64x2.sqrt(${add(mul(px, px), mul(py, py))});`);
     o(`${ind}  const inv = f64x2.div(ONE, r);`);
-    o(`${ind}  const dot = ${add(mul(px, vx), mul(py, vy))};`);
+    if (!spring || last) o(`${ind}  const dot = ${add(mul(px, vx), mul(py, vy))};`);
     if (last) o(`${ind}  rg${X} = r;`);
     if (last) o(`${ind}  dg${X} = dot;`);
-    o(`${ind}  const rdot = ${mul('dot', 'inv')};`);
-    o(`${ind}  const force = ${sub(mul(`K${X}`, sub(`LEG${X}`, 'r')), mul(`C${X}`, 'rdot'))};`);
+    if (!spring) o(`${ind}  const rdot = ${mul('dot', 'inv')};`);
+    if (spring) o(`${ind}  const force = ${mul(`K${X}`, sub(`LEG${X}`, 'r'))}; // - c r' = - (+-0)`);
+    else o(`${ind}  const force = ${sub(mul(`K${X}`, sub(`LEG${X}`, 'r')), mul(`C${X}`, 'rdot'))};`);
     o(`${ind}  const acc = ${mul(mul('force', 'inv'), `IM${X}`)};`);
     o(`${ind}  ${out}0${X} = ${vx};`);
     o(`${ind}  ${out}1${X} = ${vy};`);
     o(`${ind}  ${out}2${X} = ${mul('acc', px)};`);
     o(`${ind}  ${out}3${X} = ${sub(mul('acc', py), `G${X}`)};`);
-    o(`${ind}  if (w${X}) ${out}4${X} = ${mul(mul(`C${X}`, 'rdot'), 'rdot')};`);
-    o(`${ind}  else ${out}4${X} = ZERO;`);
+    if (!spring) o(`${ind}  ${out}4${X} = ${mul(mul(`C${X}`, 'rdot'), 'rdot')};`);
     o(`${ind}}`);
   };
   for (const [nm, terms] of stages) {
     for (const ch of chains) {
       const X = ch.id;
-      o(`  let ${[0,1,2,3,4].map((i) => `${nm}${i}${X}: v128`).join(', ')};`);
+      o(`  let ${[0,1,2,3,4].slice(0, spring ? 4 : 5).map((i) => `${nm}${i}${X}: v128`).join(', ')};`);
       o(`  {`);
       [0, 1, 2, 3].forEach((i) => o(`    const s${i} = ${add(`y${i}${X}`, mul(`h${X}`, sum(terms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`));
       rhs(X, nm, 's0', 's1', 's2', 's3', '    ');
@@ -91,12 +84,12 @@ function fn(name, chains) {
   for (const ch of chains) {
     const X = ch.id;
     for (let i = 0; i < 4; i++) o(`  const n${i}${X} = ${add(`y${i}${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`);
-    o(`  let n4${X} = y4${X}; // +0 + h (+0 ...) = +0 without damping`);
-    o(`  if (w${X}) n4${X} = ${add(`y4${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}4${X}`)))))};`);
+    if (spring) o(`  const n4${X} = y4${X}; // the work: +0 + h (+0 ...) = +0 without damping`);
+    else o(`  const n4${X} = ${add(`y4${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}4${X}`)))))};`);
   }
   for (const ch of chains) {
     const X = ch.id;
-    o(`  let ${[0,1,2,3,4].map((i) => `g${i}${X}: v128`).join(', ')};`);
+    o(`  let ${[0,1,2,3,4].slice(0, spring ? 4 : 5).map((i) => `g${i}${X}: v128`).join(', ')};`);
     rhs(X, 'g', `n0${X}`, `n1${X}`, `n2${X}`, `n3${X}`, '  ');
   }
   const eterms = [['E1', 'a'], ['E3', 'c'], ['E4', 'd'], ['E5', 'e'], ['E6', 'f'], ['E7', 'g']];
@@ -106,8 +99,8 @@ function fn(name, chains) {
     o(`  const ATOL${X} = ${U('atol')};`);
     o(`  let sum${X} = f64x2(0.0, 0.0);`);
     o(`  let finite${X} = f64x2(0.0, 0.0);`);
-    for (let i = 0; i < 5; i++) {
-      o(i === 4 ? `  if (w${X}) { // without damping the term is 0 / sc = +0, and n4 - n4 = 0` : `  {`);
+    for (let i = 0; i < (spring ? 4 : 5); i++) {
+      o(`  {`);
       o(`    const e = ${mul(`h${X}`, sum(eterms.map(([c, k]) => mul(V(c), `${k}${i}${X}`))))};`);
       o(`    const sc = ${add(`ATOL${X}`, mul(`RTOL${X}`, `f64x2.max(f64x2.abs(y${i}${X}), f64x2.abs(n${i}${X}))`))};`);
       o(`    const q = f64x2.div(e, sc);`);
@@ -120,16 +113,17 @@ function fn(name, chains) {
   for (const ch of chains) {
     const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
     ['c', 'd', 'e', 'f'].forEach((v, s) => {
-      for (let i = 0; i < 5; i++) o(`  v128.store(LANE_STAGES + ${ch.base / 2 * 320 + (s * 5 + i) * 16}, ${v}${i}${X});`);
+      for (let i = 0; i < 5; i++) o(`  v128.store(LANE_STAGES + ${ch.base / 2 * 320 + (s * 5 + i) * 16}, ${spring && i === 4 ? 'ZERO' : `${v}${i}${X}`});`);
     });
     for (const [buf, v] of [['OFF_K7', 'g'], ['OFF_YN', 'n']]) {
-      for (let i = 0; i < 5; i++) o(`  scatter(p${l0}, p${l1}, ${buf} + ${i * 8}, ${v}${i}${X});`);
+      for (let i = 0; i < 5; i++) o(`  scatter(p${l0}, p${l1}, ${buf} + ${i * 8}, ${spring && v === 'g' && i === 4 ? 'ZERO' : `${v}${i}${X}`});`);
     }
     o(`  {`);
     o(`    // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic`);
     o(`    const nr = rg${X}; // sqrt(px^2 + py^2) at YN, from K7's right-hand side`);
     o(`    const nrdot = f64x2.div(dg${X}, nr); // (px vx + py vy) / r`);
-    o(`    v128.store(LANE_END + ${ch.base / 2 * 80}, ${sub(mul(`K${X}`, sub(`LEG${X}`, 'nr')), mul(`C${X}`, 'nrdot'))}); // leg force`);
+    if (spring) o(`    v128.store(LANE_END + ${ch.base / 2 * 80}, ${mul(`K${X}`, sub(`LEG${X}`, 'nr'))}); // leg force`);
+    else o(`    v128.store(LANE_END + ${ch.base / 2 * 80}, ${sub(mul(`K${X}`, sub(`LEG${X}`, 'nr')), mul(`C${X}`, 'nrdot'))}); // leg force`);
     o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 16}, ${sub('nr', `LEG${X}`)}); // r - L0`);
     o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 32}, nrdot);`);
     o(`    v128.store(LANE_END + ${ch.base / 2 * 80 + 48}, f64x2.abs(f64x2.div(n0${X}, n1${X}))); // friction ratio`);
@@ -145,7 +139,9 @@ function fn(name, chains) {
     o(`  laneErr${ch.base + 1} = checked(f64x2.extract_lane(err${X}, 1), f64x2.extract_lane(finite${X}, 1));`);
   }
   o(`}`);
-  return L.join('\n');
+  // the step's parameters are read from LANE_PARAMS at each use, like the tableau
+  const param = new RegExp(`\\b(${PARAMS.map(([n]) => n).join('|')})([XY])\\b`, 'g');
+  return L.join('\n').replace(param, (_, n, X) => `v128.load(LANE_PARAMS + ${paramAt(chains.find((c) => c.id === X), n)})`);
 }
 const out = [];
 out.push(`// Dormand–Prince 5(4) steps of several stances at once, one stance in each f64x2 lane:
@@ -153,7 +149,7 @@ out.push(`// Dormand–Prince 5(4) steps of several stances at once, one stance 
 // same IEEE operations in the same order as step() in dopri5.ts (WebAssembly has no fused
 // multiply-add, and f64x2 arithmetic rounds each lane as scalar f64 does), so a lane's
 // result is the one step() gives, bit for bit; only the work component's stage values, which
-// no right-hand side reads, are not formed. A step is a latency-bound chain of square roots
+// no right-hand side reads, are not formed (and none at all without a damper). A step is a latency-bound chain of square roots
 // and divisions: stepPair runs one f64x2 chain for two stances, stepQuad two independent
 // chains for four, and each costs little more than one scalar step.
 //
@@ -166,6 +162,13 @@ import {
   OFF_Y0, OFF_K1, OFF_K3, OFF_K7, OFF_YN, EXPO, BETA,
 } from "./dopri5";
 import { Stance } from "../stance";
+
+// The tableau's coefficients, each twice (an f64x2), read from memory at each use: held in
+// registers through the step they crowd out the stages.
+const TABLEAU2: usize = memory.data<f64>([${consts.map((c) => `${c}, ${c}`).join(', ')}], 16);
+
+// The step size and body parameters of the step in progress, lane pair by lane pair (PARAMS).
+const LANE_PARAMS: usize = memory.data(2 * 6 * 16, 16);
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
 // f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
@@ -228,13 +231,43 @@ export let laneErr3: f64 = 0.0;
   return !isFinite(err) || finite != 0.0 ? NaN : err;
 }
 
+// A stance whose leg has no damper, with a validated scenario's tolerances (atol > 0, rtol
+// finite). Its step needs neither r' nor the work component: the work and its stage values stay
+// +0 (c r'^2 = +0 for finite r'), its error term is +0 / sc = +0, and the leg force
+// k (L0 - r) - c r' is k (L0 - r) bit for bit (c r' = +-0 for finite r', and k (L0 - r) is never
+// -0, as L0 - r = 0 is +0 and k > 0). A non-finite r' makes the step non-finite either way: a
+// non-finite velocity or position reaches YN, and r = 0 makes the acceleration NaN.
+@inline function springOnly(s: Stance): bool {
+  return s.c == 0.0 && s.atol > 0.0 && Math.abs(s.rtol) < Infinity;
+}
+
 // One step of stance sA (its step size h, its buffers, parameters and controller memory) and of
-// sB, one in each lane, from each one's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like step(), its K3..K6
-// for unpackStages, and the error estimates into laneErr0, laneErr1.`);
-out.push(fn('stepPair', [{ id: 'X', lanes: ['A', 'B'], base: 0 }]));
+// sB, one in each lane, from each one's Y0 and K1; writes each lane's K7 and YN (K7 = f(YN)) like
+// step(), its K3..K6 for unpackStages, and the error estimates into laneErr0, laneErr1. The step
+// without r' and the work (springStepPair) when neither leg has a damper: a shorter chain of
+// dependent operations from one stage to the next.
+export function stepPair(sA: Stance, sB: Stance): void {
+  if (springOnly(sA) && springOnly(sB)) springStepPair(sA, sB);
+  else fullStepPair(sA, sB);
+}
+
+// stepPair for four stances, lanes A..D; errors into laneErr0..laneErr3.
+export function stepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
+  if (springOnly(sA) && springOnly(sB) && springOnly(sC) && springOnly(sD)) springStepQuad(sA, sB, sC, sD);
+  else fullStepQuad(sA, sB, sC, sD);
+}
+
+// stepPair with every component and the damper.`);
+out.push(fn('fullStepPair', [{ id: 'X', lanes: ['A', 'B'], base: 0 }], false));
 out.push(`
-// stepPair for four stances, lanes A..D; errors into laneErr0..laneErr3.`);
-out.push(fn('stepQuad', [{ id: 'X', lanes: ['A', 'B'], base: 0 }, { id: 'Y', lanes: ['C', 'D'], base: 2 }]));
+// stepPair for two undamped stances (springOnly).`);
+out.push(fn('springStepPair', [{ id: 'X', lanes: ['A', 'B'], base: 0 }], true));
+out.push(`
+// stepQuad with every component and the damper.`);
+out.push(fn('fullStepQuad', [{ id: 'X', lanes: ['A', 'B'], base: 0 }, { id: 'Y', lanes: ['C', 'D'], base: 2 }], false));
+out.push(`
+// stepQuad for four undamped stances (springOnly).`);
+out.push(fn('springStepQuad', [{ id: 'X', lanes: ['A', 'B'], base: 0 }, { id: 'Y', lanes: ['C', 'D'], base: 2 }], true));
 /** The text of assembly/rk/dopri5x2.ts. */
 export function laneStepSource() {
   return `${out.join('\n')}\n`;
