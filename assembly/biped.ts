@@ -82,7 +82,7 @@ import {
   QS_EN_LO0, QS_EN_LO1, QS_EN_SEC, QS_EN_MID, QS_EN_TD, QS_MID, QS_TDH, QS_OY, QS_SWG, QS_GREL, QS_PK0,
   QS_PK1, QS_MC0, QS_MC1, QS_PV, QS_PF, QS_TS, QS_OLD, QS_HI, QS_N, QS_LIMIT, QS_TLIM, QS_HMIN, QS_ON, QS_LASTH,
 } from "./rk/biped-x2";
-import { EV_LIFTOFF, EV_MAX_COMPRESSION, locate, refine } from "./rk/events";
+import { EV_LIFTOFF, EV_MAX_COMPRESSION, locateStance, refine } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
 
 const LOCATE_TOL: f64 = 1e-9; // event location tolerance in step fractions, as the stance driver
@@ -1248,19 +1248,19 @@ function contactAfter(err: f64): i32 {
   let mTheta0: f64 = 2.0;
   let mTheta1: f64 = 2.0;
   if (lg(0, LF_ON) != 0.0 && (lg(0, LF_COMPRESSING) != 0.0 || lg(0, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm00, gm10)) {
-    mTheta0 = s.single ? locate(EV_MAX_COMPRESSION, s.gm00, gm10, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, s.gm00, gm10, s.tS, s.h);
+    mTheta0 = s.single ? locateStance(EV_MAX_COMPRESSION, s.gm00, gm10, s.h, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 0, 0.0, s.gm00, gm10, s.tS, s.h);
     if (lg(0, LF_SPLIT) != 0.0 && mTheta0 < stopTheta) { stopTheta = mTheta0; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 0; }
   }
   if (lg(1, LF_ON) != 0.0 && (lg(1, LF_COMPRESSING) != 0.0 || lg(1, LF_SPLIT) == 0.0) && crossesB(EVB_MAX_COMPRESSION, s.gm01, gm11)) {
-    mTheta1 = s.single ? locate(EV_MAX_COMPRESSION, s.gm01, gm11, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, s.gm01, gm11, s.tS, s.h);
+    mTheta1 = s.single ? locateStance(EV_MAX_COMPRESSION, s.gm01, gm11, s.h, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, s.gm01, gm11, s.tS, s.h);
     if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
   }
   if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl00, gl10)) {
-    const th = s.single ? locate(EV_LIFTOFF, s.gl00, gl10, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, s.gl00, gl10, s.tS, s.h);
+    const th = s.single ? locateStance(EV_LIFTOFF, s.gl00, gl10, s.h, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, s.gl00, gl10, s.tS, s.h);
     if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
   }
   if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl01, gl11)) {
-    const th = s.single ? locate(EV_LIFTOFF, s.gl01, gl11, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, s.gl01, gl11, s.tS, s.h);
+    const th = s.single ? locateStance(EV_LIFTOFF, s.gl01, gl11, s.h, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, s.gl01, gl11, s.tS, s.h);
     if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
   }
   if (crossesB(EVB_GROUND, s.gg0, gg1)) {

@@ -26,7 +26,7 @@ import {
 } from "./rk/events";
 import { tracing, traceStance } from "./trace";
 
-// Event location tolerance in step fractions (see locate()).
+// Event location tolerance in step fractions (see locateStance()).
 const LOCATE_TOL: f64 = 1e-9;
 
 // One stance: inputs, loop state and results. The stepper's buffers are the set at `bufs`.
@@ -257,22 +257,22 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
   let stopEvent = -1;
   let maxTheta: f64 = 2.0;
   if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) {
-    maxTheta = locateStance(EV_MAX_COMPRESSION, s.gm0, gm1, LOCATE_TOL);
+    maxTheta = locateStance(EV_MAX_COMPRESSION, s.gm0, gm1, h, LOCATE_TOL);
     if (split) {
       stopTheta = maxTheta;
       stopEvent = EV_MAX_COMPRESSION;
     }
   }
   if (crosses(EV_LIFTOFF, s.gl0, gl1)) {
-    const th = locateStance(EV_LIFTOFF, s.gl0, gl1, LOCATE_TOL);
+    const th = locateStance(EV_LIFTOFF, s.gl0, gl1, h, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_LIFTOFF; }
   }
   if (crosses(EV_BODY_GROUND, s.gg0, gg1)) {
-    const th = locateStance(EV_BODY_GROUND, s.gg0, gg1, LOCATE_TOL);
+    const th = locateStance(EV_BODY_GROUND, s.gg0, gg1, h, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_BODY_GROUND; }
   }
   if (crosses(EV_BACKWARD, s.gb0, gb1)) {
-    const th = locateStance(EV_BACKWARD, s.gb0, gb1, LOCATE_TOL);
+    const th = locateStance(EV_BACKWARD, s.gb0, gb1, h, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_BACKWARD; }
   }
   // Record-only events before the stop.
@@ -284,7 +284,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
   if (damped) {
     const gf1 = eventValue(EV_FORCE_PEAK, YN);
     if (crosses(EV_FORCE_PEAK, s.gf0, gf1)) {
-      const th = locateStance(EV_FORCE_PEAK, s.gf0, gf1, LOCATE_TOL);
+      const th = locateStance(EV_FORCE_PEAK, s.gf0, gf1, h, LOCATE_TOL);
       if (th <= stopTheta) {
         dense(th);
         const f = legForce(YI);

@@ -2,14 +2,15 @@
 //
 // Each event is a scalar function g of the stance state [px, py, vx, vy, W]
 // (foot at the origin). The stance driver evaluates g at both ends of every
-// accepted step; when g changes sign in the direction that matters, locate()
-// finds the crossing on the dense output (Illinois regula falsi, Dowell &
-// Jarratt 1971); the stance driver re-takes the step to that time, and
+// accepted step; when g changes sign in the direction that matters,
+// locateStance() finds the crossing on the dense output (from the cubic through
+// the end values and slopes, then secant steps safeguarded by the Illinois
+// regula falsi, Dowell & Jarratt 1971); the stance driver re-takes the step to that time, and
 // refine() polishes it with Newton iterations on the true solution, so that
 // the event state is as accurate as the integrator and not merely as the
 // interpolant.
 
-import { dense, dense2, dense4, di0, di1, di2, di3, YI, YN, K7 } from "./dopri5";
+import { dense, dense2, dense4, di0, di1, di2, di3, YI, YN, Y0, K1, K7 } from "./dopri5";
 import { rhs, stanceMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
 
 // Liftoff: r - L0 without damping; with damping the foot leaves when the leg
@@ -88,41 +89,6 @@ function eventRate(ev: i32, p: usize): f64 {
   return g0 < 0.0 && g1 >= 0.0;
 }
 
-// Fraction theta in (0, 1] of the last step where g crosses zero, given the end
-// values g0 < 0 <= g1 (or the EV_BACKWARD variant). Illinois method on the
-// interpolant, to `tol` in theta: the events that end or split a stance are
-// then polished by refine(), and the extrema recorded at the others (maximum
-// compression, peak force) are second-order insensitive to the time.
-export function locate(ev: i32, g0: f64, g1: f64, tol: f64): f64 {
-  let a: f64 = 0.0;
-  let b: f64 = 1.0;
-  let ga = g0;
-  let gb = g1;
-  if (gb == 0.0) return 1.0;
-  let side = 0;
-  let theta: f64 = 1.0;
-  for (let it = 0; it < 80; it++) {
-    theta = (a * gb - b * ga) / (gb - ga);
-    if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
-    dense(theta);
-    const g = eventValue(ev, YI);
-    const upper = ev == EV_BACKWARD ? g > 0.0 : g >= 0.0;
-    if (upper) {
-      b = theta;
-      gb = g;
-      if (side == 1) ga *= 0.5;
-      side = 1;
-    } else {
-      a = theta;
-      ga = g;
-      if (side == -1) gb *= 0.5;
-      side = -1;
-    }
-    if (b - a < tol) break;
-  }
-  return b;
-}
-
 // Newton polish of an event on the true solution. On entry YN (with K7 = f(YN))
 // is the Runge–Kutta state at the located time: the interpolant put it there,
 // so g(YN) is of the size of the interpolant's error and the Newton shift dt
@@ -199,19 +165,72 @@ export function refine(ev: i32, timeScale: f64): f64 {
   return eventValue(ev, YI);
 }
 
-// locate() for the single-leg stance's events: the same iterates and result, each event
-// value formed from only the interpolated components it reads. YI is not written.
-export function locateStance(ev: i32, g0: f64, g1: f64, tol: f64): f64 {
+// dg/dt of event ev at the state at y with derivative k (K1 for Y0, K7 for YN): the slopes at
+// the step's ends that start locateStance; NaN for the peak force (its slope needs r''').
+export function eventSlope(ev: i32, y: usize, k: usize): f64 {
+  const px = load<f64>(y, 0);
+  const py = load<f64>(y, 8);
+  const vx = load<f64>(y, 16);
+  const vy = load<f64>(y, 24);
+  if (ev == EV_BODY_GROUND) return -vy;
+  if (ev == EV_BACKWARD) return -load<f64>(k, 16);
+  if (ev == EV_FORCE_PEAK) return NaN;
+  const r = Math.sqrt(px * px + py * py);
+  const rdot = (px * vx + py * vy) / r;
+  if (ev == EV_LIFTOFF && stanceC == 0.0) return rdot; // d(r - L0)/dt
+  // r'' = (|v|^2 - r'^2) / r + (p . a) / r, a = the state's acceleration
+  const rddot = (vx * vx + vy * vy - rdot * rdot) / r + (px * load<f64>(k, 16) + py * load<f64>(k, 24)) / r;
+  if (ev == EV_MAX_COMPRESSION) return rddot;
+  return stanceK * rdot + stanceC * rddot; // d(-force)/dt, damped liftoff
+}
+
+// The root in (0, 1) of the cubic Hermite interpolant of g on the step, from the end values
+// g0 < 0 <= g1 and slopes d0, d1 (per unit theta): Newton's method on the cubic from the
+// secant root; the secant root if the slopes are not finite or Newton leaves (0, 1). The cubic's
+// slope at the returned root into hermiteSlope (the secant's without slopes).
+let hermiteSlope: f64 = 0.0;
+function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
+  const secant = g0 / (g0 - g1);
+  hermiteSlope = g1 - g0;
+  if (!isFinite(d0) || !isFinite(d1)) return secant;
+  let th = secant;
+  for (let it = 0; it < 4; it++) {
+    const t2 = th * th;
+    const t3 = t2 * th;
+    const p = (2.0 * t3 - 3.0 * t2 + 1.0) * g0 + (t3 - 2.0 * t2 + th) * d0 + (3.0 * t2 - 2.0 * t3) * g1 + (t3 - t2) * d1;
+    const dp = (6.0 * t2 - 6.0 * th) * (g0 - g1) + (3.0 * t2 - 4.0 * th + 1.0) * d0 + (3.0 * t2 - 2.0 * th) * d1;
+    if (!(dp != 0.0)) break;
+    th -= p / dp;
+    if (!(th > 0.0 && th < 1.0)) break;
+    hermiteSlope = dp;
+    if (it == 3) return th;
+  }
+  hermiteSlope = g1 - g0;
+  return secant;
+}
+
+// Fraction theta in (0, 1] of the last step (size h, from Y0 with K1 to YN with K7) where event
+// ev crosses zero, given the end values g0 < 0 <= g1 (or the EV_BACKWARD variant), to `tol` in
+// theta (the upper end of a bracket narrower than tol: the events that end or split a stance are
+// then polished by refine(), and the extrema recorded at the others, maximum compression and peak
+// force, are second-order insensitive to the time), each event value
+// formed from only the interpolated components it reads; YI is not written. It starts at the
+// root of the cubic through the end values and slopes, corrects it with the cubic's slope there
+// and then by secant steps through the last two values, each aimed a quarter of tol past its estimate so that the root is soon bracketed
+// within tol, and takes the Illinois step when a secant step would leave the bracket.
+export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
   let a: f64 = 0.0;
   let b: f64 = 1.0;
   let ga = g0;
   let gb = g1;
   if (gb == 0.0) return 1.0;
   let side = 0;
-  let theta: f64 = 1.0;
+  let theta = hermiteRoot(g0, g1, h * eventSlope(ev, Y0, K1), h * eventSlope(ev, YN, K7));
+  if (!(theta > 0.0 && theta < 1.0)) theta = 0.5;
+  let prevTheta: f64 = NaN;
+  let prevG: f64 = NaN;
+  let slope = hermiteSlope; // for the first correction: the cubic's
   for (let it = 0; it < 80; it++) {
-    theta = (a * gb - b * ga) / (gb - ga);
-    if (!(theta > a && theta < b)) theta = 0.5 * (a + b);
     const g = eventAt(ev, theta);
     const upper = ev == EV_BACKWARD ? g > 0.0 : g >= 0.0;
     if (upper) {
@@ -226,6 +245,16 @@ export function locateStance(ev: i32, g0: f64, g1: f64, tol: f64): f64 {
       side = -1;
     }
     if (b - a < tol) break;
+    if (prevTheta == prevTheta) slope = g != prevG ? (g - prevG) / (theta - prevTheta) : NaN;
+    let next = theta - g / slope;
+    next += next > theta ? 0.25 * tol : -0.25 * tol;
+    prevTheta = theta;
+    prevG = g;
+    if (!(next > a && next < b)) {
+      next = (a * gb - b * ga) / (gb - ga);
+      if (!(next > a && next < b)) next = 0.5 * (a + b);
+    }
+    theta = next;
   }
   return b;
 }
