@@ -19,7 +19,8 @@
 // minimum each step, so a few dozen steps do (a cap turns anything else into a
 // status). The first sample with f <= 0 brackets the first crossing, which is
 // then polished with Brent's method (Brent 1973, "Algorithms for Minimization
-// without Derivatives", ch. 4, zeroin).
+// without Derivatives", ch. 4, zeroin); a crossing on a concave piece is found by
+// Newton's method from the safe side (concaveRoot), with Brent's as its fallback.
 //
 // A commanded angle is an attack angle only in (0, 90 deg]: a retraction
 // without a clamp leaves that range at a known time, and the search stops
@@ -100,6 +101,45 @@ function brent(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64, grou
   return b;
 }
 
+// The root of f on [a, b], f(a) > 0 >= f(b), on a piece where the angle rate is w and
+// L0 w^2 <= g, so that f is concave there: the tangent lies above f, so from any point of the
+// piece where f decreases Newton's method lands at or right of the root, and from there on it
+// closes in from the right, quadratically. Each iterate costs
+// one sine and cosine of the same angle (f and f' together). Brent's method takes over on the
+// bracket found so far if an iterate leaves it, the slope is not negative, or 8 iterates do not
+// settle to Brent's tolerance.
+function concaveRoot(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64, ground: f64, leg: f64, g: f64, w: f64): f64 {
+  let a = a0, b = b0, fa = fa0, fb = fb0;
+  // the first iterate: the root of f's second-order Taylor polynomial at a (its error is third
+  // order in the distance, so Newton needs two or three more); the chord's root if that fails
+  const angleA = attackAt(model, a);
+  let t: f64 = NaN;
+  if (Math.abs(angleA - HALF_PI) >= 1e-15) {
+    NativeMath.sincos(angleA);
+    const d1 = -g * a - leg * w * NativeMath.sincos_cos;
+    const d2 = -g + leg * w * w * NativeMath.sincos_sin;
+    const disc = d1 * d1 - 2.0 * d2 * fa;
+    if (d2 < 0.0 && disc >= 0.0) t = a + (2.0 * fa) / (Math.sqrt(disc) - d1);
+  }
+  if (!(t > a && t < b)) t = a - (fa * (b - a)) / (fb - fa);
+  for (let it = 0; it < 8; it++) {
+    if (!(t > a && t < b)) break;
+    const angle = attackAt(model, t);
+    let sn: f64, cs: f64;
+    if (Math.abs(angle - HALF_PI) < 1e-15) { sn = 1.0; cs = 0.0; } // legSin, legCos
+    else { NativeMath.sincos(angle); sn = NativeMath.sincos_sin; cs = NativeMath.sincos_cos; }
+    const f = ya - 0.5 * g * t * t - ground - leg * sn;
+    if (f > 0.0) { a = t; fa = f; } else { b = t; fb = f; }
+    if (f == 0.0) return t;
+    const slope = -g * t - leg * w * cs;
+    if (!(slope < 0.0)) break;
+    const next = t - f / slope;
+    if (Math.abs(next - t) <= 4.440892098500626e-16 * Math.abs(t) + 1e-16) return next;
+    t = next;
+  }
+  return brent(model, a, b, fa, fb, ya, ground, leg, g);
+}
+
 // Time from the apex to touchdown, or TOUCHDOWN_NOT_PLACEABLE / TOUCHDOWN_GROUND_FIRST /
 // TOUCHDOWN_ANGLE_LEFT / TOUCHDOWN_SEARCH_LIMIT. A root found here past the angle's exit time
 // (concave schedules search to the ground) is reported by the caller from the attack angle.
@@ -122,7 +162,7 @@ export function touchdownTime(model: usize, ya: f64, ground: f64, leg: f64, g: f
     let b = nextAngleBreakpoint(model, a);
     if (b > tEnd) b = tEnd;
     const fb = gap(model, b, ya, ground, leg, g);
-    if (fb <= 0.0) return brent(model, a, b, fa, fb, ya, ground, leg, g);
+    if (fb <= 0.0) return concaveRoot(model, a, b, fa, fb, ya, ground, leg, g, angleRateAt(model, 0.5 * (a + b)));
     a = b;
     fa = fb;
     if (b >= tEnd) break;
@@ -143,7 +183,7 @@ function march(model: usize, f0: f64, ya: f64, ground: f64, leg: f64, g: f64, tS
     const w = angleRateAt(model, 0.5 * (t + b));
     if (leg * w * w <= g) {
       const fb = gap(model, b, ya, ground, leg, g);
-      if (fb <= 0.0) return brent(model, t, b, ft, fb, ya, ground, leg, g);
+      if (fb <= 0.0) return concaveRoot(model, t, b, ft, fb, ya, ground, leg, g, w);
       t = b;
       ft = fb;
     } else {
