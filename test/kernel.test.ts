@@ -30,6 +30,9 @@ describe('vertical hop (attack 90°) against the spring-mass oscillator with con
       expect(rel(r.rec(s, L.R_CONTACT), (2 * (Math.PI - Math.atan((v * omega) / g))) / omega)).toBeLessThan(1e-9);
       expect(rel(r.rec(s, L.R_PEAK_FORCE), m * g + k * amplitude)).toBeLessThan(1e-9);
       expect(rel(r.rec(s, L.R_MAX_COMPRESSION), g / omega ** 2 + amplitude)).toBeLessThan(1e-9);
+      // maximum compression halfway through the symmetric contact (closed form above); a time is
+      // first-order sensitive to where the event is located on the step, the depth is not
+      expect(rel(r.rec(s, L.R_MAX_COMPRESSION_TIME), (Math.PI - Math.atan((v * omega) / g)) / omega)).toBeLessThan(1e-9);
       expect(rel(r.rec(s, L.R_NEXT_APEX_HEIGHT), apex)).toBeLessThan(1e-9);
       expect(r.rec(s, L.R_NEXT_APEX_SPEED)).toBe(0); // a vertical leg has no horizontal force at all
       expect(r.rec(s, L.R_PEAK_FRICTION)).toBe(0);
@@ -70,6 +73,7 @@ describe('vertical hop (attack 90°) against the spring-mass oscillator with con
     expect(r.status).toBe(L.STATUS_OK);
     expect(rel(r.rec(0, L.R_CONTACT), tLift)).toBeLessThan(1e-9);
     expect(rel(r.rec(0, L.R_MAX_COMPRESSION), -x(tMax))).toBeLessThan(1e-9);
+    expect(rel(r.rec(0, L.R_MAX_COMPRESSION_TIME), tMax)).toBeLessThan(1e-9);
     expect(rel(r.rec(0, L.R_LIFTOFF_VY), vLift)).toBeLessThan(1e-9);
     expect(rel(r.rec(0, L.R_NEXT_APEX_HEIGHT), apexAfter)).toBeLessThan(1e-9);
     expect(rel(r.rec(0, L.R_PEAK_FORCE), force(tPeak))).toBeLessThan(1e-9);

@@ -10,7 +10,7 @@
 // the event state is as accurate as the integrator and not merely as the
 // interpolant.
 
-import { dense, dense2, dense4, di0, di1, di2, di3, YI, YN, Y0, K1, K7 } from "./dopri5";
+import { dense, dense4, di0, di1, di2, di3, YI, YN, Y0, K1, K7 } from "./dopri5";
 import { rhs, stanceMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
 
 // Liftoff: r - L0 without damping; with damping the foot leaves when the leg
@@ -133,36 +133,44 @@ export function refine(ev: i32, timeScale: f64): f64 {
 }
 
 // The event value at theta of the last step, as eventValue(ev, YI) after dense(theta) gives it,
-// from only the components the event reads (dense2, dense4).
+// from only the interpolated components it needs (dense4); its time derivative at the
+// interpolated state, from the equations of motion, into eventRateAt (NaN for the peak force).
+let eventRateAt: f64 = NaN;
 @inline function eventAt(ev: i32, theta: f64): f64 {
-  if (ev == EV_MAX_COMPRESSION) {
-    dense4(theta);
-    const px = di0;
-    const py = di1;
-    return (px * di2 + py * di3) / Math.sqrt(px * px + py * py);
+  if (ev == EV_FORCE_PEAK) {
+    dense(theta);
+    eventRateAt = NaN;
+    return eventValue(ev, YI);
   }
-  if (ev == EV_LIFTOFF) {
-    if (stanceC == 0.0) {
-      dense2(theta);
-      return Math.sqrt(di0 * di0 + di1 * di1) - stanceLeg;
-    }
-    dense4(theta);
-    const px = di0;
-    const py = di1;
-    const r = Math.sqrt(px * px + py * py);
-    const rdot = (px * di2 + py * di3) / r;
-    return -(stanceK * (stanceLeg - r) - stanceC * rdot);
-  }
+  dense4(theta);
+  const px = di0;
+  const py = di1;
+  const vx = di2;
+  const vy = di3;
   if (ev == EV_BODY_GROUND) {
-    dense2(theta);
-    return -di1;
+    eventRateAt = -vy;
+    return -py;
   }
+  const r = Math.sqrt(px * px + py * py);
+  const rdot = (px * vx + py * vy) / r;
+  const force = stanceK * (stanceLeg - r) - stanceC * rdot;
   if (ev == EV_BACKWARD) {
-    dense4(theta);
-    return -di2;
+    eventRateAt = -(force * px) / (stanceMass * r);
+    return -vx;
   }
-  dense(theta);
-  return eventValue(ev, YI);
+  // r'' = (|v|^2 - r'^2) / r + F / m - g py / r (radialAcceleration)
+  const rddot = (vx * vx + vy * vy - rdot * rdot) / r + force / stanceMass - (stanceG * py) / r;
+  if (ev == EV_MAX_COMPRESSION) {
+    eventRateAt = rddot;
+    return rdot;
+  }
+  // EV_LIFTOFF
+  if (stanceC == 0.0) {
+    eventRateAt = rdot;
+    return r - stanceLeg;
+  }
+  eventRateAt = stanceK * rdot + stanceC * rddot;
+  return -(stanceK * (stanceLeg - r) - stanceC * rdot);
 }
 
 // dg/dt of event ev at the state at y with derivative k (K1 for Y0, K7 for YN): the slopes at
@@ -211,13 +219,15 @@ function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
 
 // Fraction theta in (0, 1] of the last step (size h, from Y0 with K1 to YN with K7) where event
 // ev crosses zero, given the end values g0 < 0 <= g1 (or the EV_BACKWARD variant), to `tol` in
-// theta (the upper end of a bracket narrower than tol: the events that end or split a stance are
-// then polished by refine(), and the extrema recorded at the others, maximum compression and peak
-// force, are second-order insensitive to the time), each event value
-// formed from only the interpolated components it reads; YI is not written. It starts at the
-// root of the cubic through the end values and slopes, corrects it with the cubic's slope there
-// and then by secant steps through the last two values, each aimed a quarter of tol past its estimate so that the root is soon bracketed
-// within tol, and takes the Illinois step when a secant step would leave the bracket.
+// theta: the upper end of a bracket narrower than tol, or an estimate whose next correction is
+// below a quarter of tol, on either side of the crossing (the events that end or split a stance
+// are then polished by refine(), and the extrema recorded at the others, maximum compression and
+// peak force, are second-order insensitive to the time). Each event value is formed from only the
+// interpolated components it reads; YI is not written. It starts at the root of the cubic through
+// the end values and slopes, then takes Newton steps with the event's rate at the interpolated
+// state (secant steps through the last two values for the peak force), each aimed a quarter of
+// tol past its estimate so that the root is soon bracketed within tol, and takes the Illinois step when a secant step would leave the
+// bracket. Two values of the interpolant usually do.
 export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
   let a: f64 = 0.0;
   let b: f64 = 1.0;
@@ -245,9 +255,14 @@ export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
       side = -1;
     }
     if (b - a < tol) break;
-    if (prevTheta == prevTheta) slope = g != prevG ? (g - prevG) / (theta - prevTheta) : NaN;
-    let next = theta - g / slope;
-    next += next > theta ? 0.25 * tol : -0.25 * tol;
+    // Newton's step on the interpolant where the event's rate is known, else the secant's
+    if (eventRateAt == eventRateAt) slope = h * eventRateAt;
+    else if (prevTheta == prevTheta) slope = g != prevG ? (g - prevG) / (theta - prevTheta) : NaN;
+    const shift = -g / slope;
+    // a correction this small leaves the estimate within a fraction of tol of the crossing
+    if (Math.abs(shift) <= 0.25 * tol && theta + shift > a && theta + shift < b) return theta + shift;
+    let next = theta + shift;
+    next += shift > 0.0 ? 0.25 * tol : -0.25 * tol;
     prevTheta = theta;
     prevG = g;
     if (!(next > a && next < b)) {
