@@ -27,6 +27,17 @@ describe('stored results', () => {
     expect(backCells[7].change).toBe(Number.NEGATIVE_INFINITY);
   });
 
+  it('slices are Blobs (IndexedDB copies a handle, not the text); slices stored as text by an earlier version still read', async () => {
+    const rows = Array.from({ length: SLICE_AT + 1 }, (_, i) => ({ status: 'ok', strides_completed: i }));
+    const packed = (await packForStorage({ value: { rows } })) as { value: { rows: { $pronkSlices: unknown[]; length: number } } };
+    const slices = packed.value.rows.$pronkSlices;
+    expect(slices.length).toBe(3);
+    expect(slices.every((slice) => slice instanceof Blob)).toBe(true);
+    const asText = { value: { rows: { $pronkSlices: await Promise.all((slices as Blob[]).map((b) => b.text())), length: rows.length } } };
+    expect(await unpackFromStorage(asText)).toEqual({ value: { rows } });
+    expect(await unpackFromStorage(packed)).toEqual({ value: { rows } });
+  });
+
   it('short arrays, and long ones JSON cannot carry (typed arrays), are stored as they are', async () => {
     const short = { value: { rows: [{ a: 1 }, { a: 2 }] } };
     expect(await packForStorage(short)).toEqual(short);
