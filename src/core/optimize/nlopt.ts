@@ -86,7 +86,7 @@ export interface Problem {
   seed?: number;
 }
 
-export type StopReason = 'converged' | 'max_evaluations' | 'max_time' | 'stop_value' | 'cancelled';
+export type StopReason = 'converged' | 'max_evaluations' | 'max_time' | 'stop_value' | 'cancelled' | 'method_failed';
 
 export interface TracePoint {
   evaluation: number;
@@ -273,7 +273,14 @@ function evaluate(x: number[]): number {
   }
   const every = s.control.progressEvery ?? 1;
   if (s.control.onProgress && s.evaluations % every === 0) {
-    s.control.onProgress({ evaluations: s.evaluations, best: s.best!.value, x: s.best!.x });
+    try {
+      s.control.onProgress({ evaluations: s.evaluations, best: s.best!.value, x: s.best!.x });
+    } catch (error) {
+      // an error of ours, not NLopt's (every error that reaches NLopt's caller from here is ours)
+      s.error = error;
+      s.reason = 'cancelled';
+      throw new StopSignal();
+    }
   }
   if (p.stopValue !== undefined && s.best!.feasible && s.best!.value <= p.stopValue) s.reason = 'stop_value';
   return value;
@@ -417,7 +424,14 @@ export async function minimize(problem: Problem, control: RunControl = {}): Prom
       const r = opt.optimize(problem.x0.slice());
       final = { x: Array.from(r.x), value: r.value };
     } catch (error) {
-      if (!(error instanceof StopSignal)) {
+      // NLopt ends a run it cannot go on with (round-off limits its progress, a failure of the
+      // method) by a C++ exception, which this build cannot catch: the run is over, and the points
+      // it evaluated stand. Errors of the objective, the constraints and the progress callback
+      // arrive as StopSignal with s.error set; a failure before any evaluation is not a search
+      // that stopped.
+      if (!(error instanceof StopSignal) && s.evaluations > 0 && s.reason === null && s.error === undefined) {
+        s.reason = 'method_failed';
+      } else if (!(error instanceof StopSignal)) {
         throw new Error(`NLopt failed: ${error instanceof Error ? error.message : String(error)}`);
       }
     } finally {

@@ -244,6 +244,9 @@ export function stoppedBecause(outcome: Outcome, study: Study, startScore: numbe
     case 'cancelled':
       why = n === 0 ? 'cancelled before its first evaluation; the start point is kept' : `cancelled after ${evaluations}; the best point so far is kept`;
       break;
+    case 'method_failed':
+      why = `stopped by NLopt's ${study.search.method} itself after ${evaluations} (its progress limited by round-off, or a failure of the method); the best point so far is kept`;
+      break;
   }
   if (outcome.flat) {
     return `${why}, on a plateau: every evaluation scored the same (${shown(-outcome.firstValue!)}), so no direction improved the score`;
