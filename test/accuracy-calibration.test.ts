@@ -4,7 +4,7 @@
 // not see (later rollouts of the same run), over a seeded set of scenarios: bodies, speeds,
 // fixed and retraction policies, damping, Earth and Moon gravity, split stiffness.
 import { describe, expect, it } from 'vitest';
-import { CALIBRATION_MARGIN, CALIBRATION_STEP, calibrateTolerances } from '../src/core/accuracy-calibration.js';
+import { CALIBRATION_FINE_STEP, CALIBRATION_MARGIN, calibrateTolerances } from '../src/core/accuracy-calibration.js';
 import {
   CALIBRATION_ROLLOUTS,
   canonicalRobustnessOptions,
@@ -128,7 +128,7 @@ describe('integrator.apex_accuracy_m calibrated per run (robustness)', () => {
       calibrated++;
       const rtol = scenario.integrator.relative_tolerance;
       // never tighter than the parse-time mapping, a whole number of steps above it, atol = rtol L0
-      const steps = Math.log(rtol / parsed.integrator.relative_tolerance) / Math.log(CALIBRATION_STEP);
+      const steps = Math.log(rtol / parsed.integrator.relative_tolerance) / Math.log(CALIBRATION_FINE_STEP);
       expect(Math.abs(steps - Math.round(steps)), `seed ${seed}`).toBeLessThan(1e-6);
       expect(steps).toBeGreaterThan(-1e-6);
       if (steps > 0.5) loosened++;
