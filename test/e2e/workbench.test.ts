@@ -414,6 +414,38 @@ describe.skipIf(!available)('the workbench in headless Chromium', () => {
     await shot('after-worker-restart');
   });
 
+  it('fits the header at 1024, 1280 and 1440 px, idle and with a job running: no control or status cut at the window\'s edge', async () => {
+    const overflow = () => page.locator('header').evaluate((h) => h.scrollWidth - h.clientWidth);
+    const widths = [1024, 1280, 1440];
+    try {
+      for (const width of widths) {
+        await page.setViewportSize({ width, height: 900 });
+        await page.waitForTimeout(100);
+        expect(await overflow(), `idle at ${width} px`).toBeLessThanOrEqual(0);
+      }
+    } finally {
+      await page.setViewportSize(SCREEN);
+    }
+    await t.view('montecarlo');
+    await page.locator('#set-montecarlo-rollouts').fill('50000');
+    await page.locator('#set-montecarlo-rollouts').press('Tab');
+    await page.getByTestId('start-montecarlo').click();
+    await page.getByTestId('job-montecarlo').waitFor();
+    try {
+      for (const width of widths) {
+        await page.setViewportSize({ width, height: 900 });
+        await page.waitForTimeout(100);
+        expect(await overflow(), `a job running at ${width} px`).toBeLessThanOrEqual(0);
+        const cancel = (await page.getByTestId('job-montecarlo').getByRole('button').boundingBox())!;
+        expect(cancel.x + cancel.width, `the job's cancel at ${width} px`).toBeLessThanOrEqual(width);
+      }
+    } finally {
+      await page.setViewportSize(SCREEN);
+      await page.getByTestId('job-montecarlo').getByRole('button').click();
+      await expect.poll(() => page.getByTestId('job-montecarlo').count(), { timeout: 60_000 }).toBe(0);
+    }
+  }, 90_000);
+
   it('had no uncaught page errors', () => {
     expect(pageErrors).toEqual([]);
   });
