@@ -195,11 +195,14 @@ export function eventSlope(ev: i32, y: usize, k: usize): f64 {
 // The root in (0, 1) of the cubic Hermite interpolant of g on the step, from the end values
 // g0 < 0 <= g1 and slopes d0, d1 (per unit theta): Newton's method on the cubic from the
 // secant root; the secant root if the slopes are not finite or Newton leaves (0, 1). The cubic's
-// slope at the returned root into hermiteSlope (the secant's without slopes).
+// slope at the returned root into hermiteSlope (the secant's without slopes), its second
+// derivative there into hermiteCurvature (NaN for the secant root).
 let hermiteSlope: f64 = 0.0;
+let hermiteCurvature: f64 = NaN;
 function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
   const secant = g0 / (g0 - g1);
   hermiteSlope = g1 - g0;
+  hermiteCurvature = NaN;
   if (!isFinite(d0) || !isFinite(d1)) return secant;
   let th = secant;
   for (let it = 0; it < 4; it++) {
@@ -211,7 +214,10 @@ function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
     th -= p / dp;
     if (!(th > 0.0 && th < 1.0)) break;
     hermiteSlope = dp;
-    if (it == 3) return th;
+    if (it == 3) {
+      hermiteCurvature = (12.0 * th - 6.0) * (g0 - g1) + (6.0 * th - 4.0) * d0 + (6.0 * th - 2.0) * d1;
+      return th;
+    }
   }
   hermiteSlope = g1 - g0;
   return secant;
@@ -220,14 +226,16 @@ function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
 // Fraction theta in (0, 1] of the last step (size h, from Y0 with K1 to YN with K7) where event
 // ev crosses zero, given the end values g0 < 0 <= g1 (or the EV_BACKWARD variant), to `tol` in
 // theta: the upper end of a bracket narrower than tol, or an estimate whose next correction is
-// below a quarter of tol, on either side of the crossing (the events that end or split a stance
+// below a quarter of tol (or, from the cubic's root, whose Newton step's own error, estimated from
+// the cubic's curvature, is), on either side of the crossing (the events that end or split a stance
 // are then polished by refine(), and the extrema recorded at the others, maximum compression and
 // peak force, are second-order insensitive to the time). Each event value is formed from only the
 // interpolated components it reads; YI is not written. It starts at the root of the cubic through
 // the end values and slopes, then takes Newton steps with the event's rate at the interpolated
 // state (secant steps through the last two values for the peak force), each aimed a quarter of
 // tol past its estimate so that the root is soon bracketed within tol, and takes the Illinois step when a secant step would leave the
-// bracket. Two values of the interpolant usually do.
+// bracket. One value of the interpolant often does (the first Newton step is then final), two
+// otherwise.
 export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
   let a: f64 = 0.0;
   let b: f64 = 1.0;
@@ -261,6 +269,11 @@ export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
     const shift = -g / slope;
     // a correction this small leaves the estimate within a fraction of tol of the crossing
     if (Math.abs(shift) <= 0.25 * tol && theta + shift > a && theta + shift < b) return theta + shift;
+    // From the cubic's root, Newton's step with the event's true rate is itself off by about
+    // |g'' / (2 g')| shift^2, g'' from the cubic: a step whose error so estimated, taken four times
+    // over, is below a quarter of tol is final (one interpolant value instead of two).
+    if (it == 0 && eventRateAt == eventRateAt && 2.0 * Math.abs(hermiteCurvature) * shift * shift <= 0.25 * tol * Math.abs(slope) &&
+      theta + shift > a && theta + shift < b) return theta + shift;
     let next = theta + shift;
     next += shift > 0.0 ? 0.25 * tol : -0.25 * tol;
     prevTheta = theta;
