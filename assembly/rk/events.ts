@@ -267,14 +267,14 @@ export function locateStance(ev: i32, g0: f64, g1: f64, h: f64, tol: f64): f64 {
     if (eventRateAt == eventRateAt) slope = h * eventRateAt;
     else if (prevTheta == prevTheta) slope = g != prevG ? (g - prevG) / (theta - prevTheta) : NaN;
     const shift = -g / slope;
-    // a correction this small leaves the estimate within a fraction of tol of the crossing
-    if (Math.abs(shift) <= 0.25 * tol && theta + shift > a && theta + shift < b) return theta + shift;
-    // From the cubic's root, Newton's step with the event's true rate is itself off by about
-    // |g'' / (2 g')| shift^2, g'' from the cubic: a step whose error so estimated, taken four times
-    // over, is below a quarter of tol is final (one interpolant value instead of two).
-    if (it == 0 && eventRateAt == eventRateAt && 2.0 * Math.abs(hermiteCurvature) * shift * shift <= 0.25 * tol * Math.abs(slope) &&
-      theta + shift > a && theta + shift < b) return theta + shift;
     let next = theta + shift;
+    // The corrected estimate is final, inside the bracket, when the correction is so small that it
+    // leaves the estimate within a fraction of tol of the crossing; or, from the cubic's root, when
+    // Newton's step with the event's true rate is itself off by less: about |g'' / (2 g')| shift^2,
+    // g'' from the cubic, taken four times over, below a quarter of tol (one interpolant value).
+    if (next > a && next < b &&
+      (Math.abs(shift) <= 0.25 * tol ||
+        (it == 0 && eventRateAt == eventRateAt && 2.0 * Math.abs(hermiteCurvature) * shift * shift <= 0.25 * tol * Math.abs(slope)))) return next;
     next += shift > 0.0 ? 0.25 * tol : -0.25 * tol;
     prevTheta = theta;
     prevG = g;

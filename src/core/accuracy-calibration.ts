@@ -131,13 +131,13 @@ export function calibrateTolerances(engine: Engine, scenario: Scenario, run: Cal
     if (chosen && e0 <= target) {
       // candidates are rtol0 · CALIBRATION_FINE_STEP^j: coarse steps of 2^BISECTIONS fine ones
       const coarse = 2 ** CALIBRATION_BISECTIONS;
-      const at = (j: number) => rtol0 * CALIBRATION_FINE_STEP ** j;
       const tryAt = (j: number): boolean => {
-        const rtol = at(j);
+        const rtol = rtol0 * CALIBRATION_FINE_STEP ** j;
         if (!(rtol <= MAX_ACCURACY_RTOL)) return false;
-        const e = errorAt(rtol, rtol * leg);
+        const atol = rtol * leg;
+        const e = errorAt(rtol, atol);
         if (!(e <= target)) return false;
-        chosen = { relative_tolerance: rtol, absolute_tolerance: rtol * leg, calibrated_apex_error_m: e, calibration_strides: strides.length };
+        chosen = { relative_tolerance: rtol, absolute_tolerance: atol, calibrated_apex_error_m: e, calibration_strides: strides.length };
         return true;
       };
       let pass = 0;

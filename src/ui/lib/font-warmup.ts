@@ -21,27 +21,22 @@ interface IdleWindow {
 
 let started = false;
 
-/** Measure each of figureFonts() in an idle moment of its own (once per page); resolves when done. */
-export function warmFigureFonts(): Promise<void> {
-  if (started || typeof document === 'undefined') return Promise.resolve();
+/** Measure each of figureFonts() in an idle moment of its own, once per page. */
+export function warmFigureFonts(): void {
+  if (started || typeof document === 'undefined') return;
   started = true;
   const context = document.createElement('canvas').getContext('2d');
-  if (!context) return Promise.resolve();
+  if (!context) return;
   const idle = (globalThis as IdleWindow).requestIdleCallback;
   const later = (run: () => void) => (idle ? idle(run, { timeout: 2000 }) : setTimeout(run, 50));
   const fonts = figureFonts();
-  return new Promise((resolve) => {
-    const next = (i: number) => {
-      if (i >= fonts.length) {
-        resolve();
-        return;
-      }
-      later(() => {
-        context.font = fonts[i];
-        context.measureText('国M0');
-        next(i + 1);
-      });
-    };
-    next(0);
-  });
+  const measure = (i: number) => {
+    if (i >= fonts.length) return;
+    later(() => {
+      context.font = fonts[i];
+      context.measureText('国M0');
+      measure(i + 1);
+    });
+  };
+  measure(0);
 }
