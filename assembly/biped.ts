@@ -1351,7 +1351,7 @@ function contactAfter(err: f64): i32 {
   if (s.single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
     // the stance driver's own polish (events.ts), on the single-leg equations
     tEvent = s.tS + hEvent;
-    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, s.timeScale);
+    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, s.timeScale, 1e-4 * s.timeScale);
   } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
     tEvent = s.tS + hEvent;
   } else {

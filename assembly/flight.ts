@@ -44,11 +44,27 @@ const HALF_PI: f64 = 1.5707963267948966;
 
 // sin and cos of a leg angle, exact at 90 degrees so that a vertical leg has
 // no horizontal component at all (cos(pi/2) is 6e-17 in floating point).
+// The sine and cosine of the last angle asked are kept: a fixed attack angle asks the same one
+// at every stride (the touchdown time, then the foot), on every lane.
+let sinAngle: f64 = NaN;
+let sinValue: f64 = 0.0;
+let cosAngle: f64 = NaN;
+let cosValue: f64 = 0.0;
 @inline export function legSin(a: f64): f64 {
-  return Math.abs(a - HALF_PI) < 1e-15 ? 1.0 : Math.sin(a);
+  if (Math.abs(a - HALF_PI) < 1e-15) return 1.0;
+  if (a != sinAngle) {
+    sinAngle = a;
+    sinValue = Math.sin(a);
+  }
+  return sinValue;
 }
 @inline export function legCos(a: f64): f64 {
-  return Math.abs(a - HALF_PI) < 1e-15 ? 0.0 : Math.cos(a);
+  if (Math.abs(a - HALF_PI) < 1e-15) return 0.0;
+  if (a != cosAngle) {
+    cosAngle = a;
+    cosValue = Math.cos(a);
+  }
+  return cosValue;
 }
 
 @inline function gap(model: usize, t: f64, ya: f64, ground: f64, leg: f64, g: f64): f64 {

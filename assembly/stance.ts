@@ -48,6 +48,7 @@ const LOCATE_TOL: f64 = 1e-9;
   rtol: f64 = 0.0;
   atol: f64 = 0.0;
   timeScale: f64 = 0.0;
+  reach: f64 = 0.0; // s: a liftoff this close to a step's end is polished there (liftoffInReach)
   tLimit: f64 = 0.0;
   hMin: f64 = 0.0;
   maxSteps: i32 = 0;
@@ -146,6 +147,56 @@ function noteMaxCompression(s: Stance, px: f64, py: f64, t: f64): void {
   if (f > s.peakForce) s.peakForce = f;
 }
 
+// Liftoff without damping, after maximum compression, is reached by a shortened step instead of
+// being located inside a longer one and the step re-taken to it (one step and one location fewer
+// a stance). towardLiftoff() cuts the next step to end at the liftoff that the cubic through the
+// last step's ends (g = r - L0 and its rate r' at both) predicts past it; when a step ends within
+// `reach` of the crossing, on either side (liftoffInReach), refine() takes the state there by
+// Newton's method on the true solution. Its moves are second-order Taylor steps, off by about
+// (omega dt)^3 / 6 of the state for a move dt (omega: the stance's fastest rate): `reach` is the
+// dt where that is 1/100 of rtol, at most 2e-3 / omega. A prediction that misses by more leaves
+// the crossing to the usual location and re-taken step, or to the step after.
+
+let reachRtol: f64 = NaN;
+let reachOfRtol: f64 = 0.0;
+// reach x omega for a relative tolerance (the cube root is kept for the rtol of the last stance).
+function reachFactor(rtol: f64): f64 {
+  if (rtol != reachRtol) {
+    reachRtol = rtol;
+    const f = Math.cbrt(0.06 * rtol);
+    reachOfRtol = f < 2e-3 ? f : 2e-3;
+  }
+  return reachOfRtol;
+}
+
+// The step after an accepted step of size h that ended with g = r - L0 at gl1 and r' at gm1 (the
+// step began at s.gl0, s.gm0): hNext, or shorter so as to end at the liftoff predicted by the
+// cubic through both ends, extrapolated past the step.
+@inline function towardLiftoff(s: Stance, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
+  // undamped, extending, the crossing within about two steps by the tangent
+  if (s.damped || s.compressing || !(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
+  // the cubic on theta in [0, 1] (values gl0, gl1, slopes h gm0, h gm1), about theta = 1 + u
+  const d1 = h * gm1;
+  const dg = s.gl0 - gl1;
+  const c2 = 6.0 * dg + 2.0 * (h * s.gm0) + 4.0 * d1; // p''(1)
+  const c3 = 12.0 * dg + 6.0 * (h * s.gm0) + 6.0 * d1; // p'''
+  let u = -gl1 / d1;
+  for (let it = 0; it < 3; it++) {
+    const p = gl1 + u * (d1 + u * (0.5 * c2 + u * (c3 / 6.0)));
+    const dp = d1 + u * (c2 + u * (0.5 * c3));
+    if (!(dp > 0.0)) return hNext;
+    u -= p / dp;
+  }
+  const tau = u * h;
+  return tau > 0.0 && tau < hNext ? tau : hNext;
+}
+
+// The step just taken ended within reach of the liftoff crossing, on either side (undamped, with
+// the maximum compression behind it at the step's start; r' > 0).
+@inline function liftoffInReach(s: Stance, gl1: f64, gm1: f64): bool {
+  return !s.damped && !s.compressing && gm1 > 0.0 && Math.abs(gl1) <= s.reach * gm1;
+}
+
 // Start stance s (which must hold the stepper: useStance) from the touchdown state.
 export function stanceStart(
   s: Stance,
@@ -179,6 +230,7 @@ export function stanceStart(
   const kMin = kc < ke ? kc : ke;
   const timeScale = Math.sqrt(mass / kMin); // 1/omega of the stiffer-or-softer spring
   s.timeScale = timeScale;
+  s.reach = (kc == ke ? timeScale : Math.sqrt(mass / (kc > ke ? kc : ke))) * reachFactor(rtol);
   s.tLimit = 20.0 * Math.PI * timeScale; // far beyond any stance that ends
   s.hMin = 1e-13 * timeScale;
   const damped = c > 0.0;
@@ -251,6 +303,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
   const gm1 = nrdot;
   const gg1 = -npy;
   const gb1 = -nvx;
+  const inReach = liftoffInReach(s, gl1, gm1);
 
   // Earliest event that stops or splits the stance in this step.
   let stopTheta: f64 = 2.0;
@@ -263,7 +316,10 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
       stopEvent = EV_MAX_COMPRESSION;
     }
   }
-  if (crosses(EV_LIFTOFF, s.gl0, gl1)) {
+  if (inReach) {
+    // at the step's end, polished there (no location, no re-taken step)
+    if (1.0 < stopTheta) { stopTheta = 1.0; stopEvent = EV_LIFTOFF; }
+  } else if (crosses(EV_LIFTOFF, s.gl0, gl1)) {
     const th = locateStance(EV_LIFTOFF, s.gl0, gl1, h, LOCATE_TOL);
     if (th < stopTheta) { stopTheta = th; stopEvent = EV_LIFTOFF; }
   }
@@ -302,17 +358,25 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
     if (fr > s.peakFriction) s.peakFriction = fr;
     s.t = t + h;
     advance();
+    s.h = towardLiftoff(s, gl1, gm1, h, h * acceptFactor(err, s.afterReject));
     s.gl0 = gl1;
     s.gm0 = gm1;
     s.gg0 = gg1;
     s.gb0 = gb1;
-    s.h = h * acceptFactor(err, s.afterReject);
     s.afterReject = false;
     return -1;
   }
 
   if (stopEvent == EV_BODY_GROUND) return finish(s, STATUS_BODY_HIT_GROUND, t + stopTheta * h);
   if (stopEvent == EV_BACKWARD) return finish(s, STATUS_FELL_BACKWARD, t + stopTheta * h);
+
+  if (inReach && stopEvent == EV_LIFTOFF) {
+    // the step's end, short of the crossing or past it, is a state of the stance
+    if (nforce > s.peakForce) s.peakForce = nforce;
+    const fr = Math.abs(npx / npy);
+    if (fr > s.peakFriction) s.peakFriction = fr;
+    return eventReached(s, EV_LIFTOFF, t + h, 0.0, false);
+  }
 
   // Liftoff or the stiffness switch: re-take the step to the located time on
   // the true solution, then polish with Newton.
@@ -327,7 +391,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
     return -1;
   }
   step(hEvent, s.rtol, s.atol);
-  return eventReached(s, stopEvent, t + hEvent, hNext);
+  return eventReached(s, stopEvent, t + hEvent, hNext, true);
 }
 
 // After the step to a located liftoff or stiffness switch taken in a lane (stanceAfterStep with
@@ -335,16 +399,17 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
 export function stanceAfterEventStep(s: Stance): i32 {
   const ev = s.pending;
   s.pending = -1;
-  return eventReached(s, ev, s.tEvent, s.hNext);
+  return eventReached(s, ev, s.tEvent, s.hNext, true);
 }
 
 // The step to a located liftoff or stiffness switch has been taken (YN, K7); polish the event
 // with Newton, then switch the stiffness or end the stance.
-function eventReached(s: Stance, stopEvent: i32, tStep: f64, hNext: f64): i32 {
+function eventReached(s: Stance, stopEvent: i32, tStep: f64, hNext: f64, retaken: bool): i32 {
   const damped = s.damped;
-  s.steps++;
+  if (retaken) s.steps++;
   let tEvent = tStep;
-  tEvent += refine(stopEvent, s.timeScale);
+  // from a re-taken step the shift is of the interpolant's error; from a step's end in reach, up to the reach
+  tEvent += refine(stopEvent, s.timeScale, retaken ? 1e-4 * s.timeScale : 2.0 * s.reach);
 
   if (stopEvent == EV_MAX_COMPRESSION) {
     noteMaxCompression(s, load<f64>(YN, 0), load<f64>(YN, 8), tEvent);
@@ -355,6 +420,7 @@ function eventReached(s: Stance, stopEvent: i32, tStep: f64, hNext: f64): i32 {
     rhs(Y0, K1); // the right-hand side changed: no FSAL across the switch
     s.t = tEvent;
     s.gl0 = eventValue(EV_LIFTOFF, Y0);
+    s.gm0 = eventValue(EV_MAX_COMPRESSION, Y0); // r' at the switch (towardLiftoff reads it)
     s.gg0 = eventValue(EV_BODY_GROUND, Y0);
     s.gb0 = eventValue(EV_BACKWARD, Y0);
     if (damped) s.gf0 = eventValue(EV_FORCE_PEAK, Y0);
@@ -408,6 +474,7 @@ export function stanceAfterLaneStep(s: Stance, err: f64, lane: i32): i32 {
   const gb1 = -load<f64>(b + OFF_YN, 16);
   if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) return -2;
   if (crosses(EV_LIFTOFF, s.gl0, gl1) || crosses(EV_BODY_GROUND, s.gg0, gg1) || crosses(EV_BACKWARD, s.gb0, gb1)) return -2;
+  if (liftoffInReach(s, gl1, gm1)) return -2;
   if (s.steps == 0) s.firstH = h;
   s.steps++;
   const nforce = laneEnd(lane, END_FORCE);
@@ -422,11 +489,11 @@ export function stanceAfterLaneStep(s: Stance, err: f64, lane: i32): i32 {
   v128.store(b + OFF_K1, v128.load(b + OFF_K7));
   v128.store(b + OFF_K1 + 16, v128.load(b + OFF_K7 + 16));
   store<f64>(b + OFF_K1 + 32, load<f64>(b + OFF_K7 + 32));
+  s.h = towardLiftoff(s, gl1, gm1, h, h * laneEnd(lane, END_FACTOR)); // acceptFactor(err, s.afterReject) with s.errOld
   s.gl0 = gl1;
   s.gm0 = gm1;
   s.gg0 = gg1;
   s.gb0 = gb1;
-  s.h = h * laneEnd(lane, END_FACTOR); // acceptFactor(err, s.afterReject) with s.errOld
   s.errOld = controllerMemory(err);
   s.afterReject = false;
   return -1;

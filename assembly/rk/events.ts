@@ -11,7 +11,7 @@
 // interpolant.
 
 import { dense, dense4, di0, di1, di2, di3, YI, YN, Y0, K1, K7 } from "./dopri5";
-import { rhs, stanceMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
+import { rhs, stanceMass, stanceInvMass, stanceLeg, stanceK, stanceC, stanceG } from "./system";
 
 // Liftoff: r - L0 without damping; with damping the foot leaves when the leg
 // force k (L0 - r) - c r' falls to zero (a foot cannot pull), g = -force.
@@ -90,36 +90,58 @@ function eventRate(ev: i32, p: usize): f64 {
 }
 
 // Newton polish of an event on the true solution. On entry YN (with K7 = f(YN))
-// is the Runge–Kutta state at the located time: the interpolant put it there,
-// so g(YN) is of the size of the interpolant's error and the Newton shift dt
-// is tiny. The state is moved along the flow to second order,
+// is a Runge–Kutta state near the crossing: at the time the interpolant located
+// (g(YN) is of the size of the interpolant's error), or the end of a step that
+// ended within reach of a liftoff (stance.ts); the Newton shift dt is small.
+// The state is moved along the flow to second order,
 // y += dt f + dt^2/2 f' (f' by the chain rule on the stance equations), whose
-// error O(dt^3) is far below the stepper's. On exit YN and K7 are the polished
-// state and its derivative. Returns the time shift applied.
-export function refine(ev: i32, timeScale: f64): f64 {
+// error O(dt^3) is far below the stepper's. A shift larger than `reach` (s) is not a small
+// correction: the state is kept. On exit YN and K7 are the polished state and its derivative.
+// Returns the time shift applied.
+export function refine(ev: i32, timeScale: f64, reach: f64): f64 {
   let shift: f64 = 0.0;
+  const least = 1e-17 * timeScale;
   for (let it = 0; it < 3; it++) {
-    const g = eventValue(ev, YN);
-    const gd = eventRate(ev, YN);
-    if (gd == 0.0 || !isFinite(gd)) break;
-    const dt = -g / gd;
-    if (!(Math.abs(dt) > 1e-17 * timeScale)) break;
-    if (Math.abs(dt) > 1e-4 * timeScale) break; // not a small correction: keep the located state
-    // Second-order Taylor move: position += v dt + a dt^2/2, velocity += a dt + a' dt^2/2.
+    // g and dg/dt (eventValue, eventRate) and the move's terms, from one square root
     const px = load<f64>(YN, 0);
     const py = load<f64>(YN, 8);
     const vx = load<f64>(YN, 16);
     const vy = load<f64>(YN, 24);
+    const r = Math.sqrt(px * px + py * py);
+    const ir = 1.0 / r;
+    const rdot = (px * vx + py * vy) * ir;
+    const force = stanceK * (stanceLeg - r) - stanceC * rdot;
+    const centripetal = (vx * vx + vy * vy - rdot * rdot) * ir;
+    const rddot = centripetal + force * stanceInvMass - stanceG * py * ir; // r'' (radialAcceleration)
+    let g: f64 = 0.0;
+    let gd: f64 = 0.0;
+    if (ev == EV_LIFTOFF) {
+      if (stanceC == 0.0) {
+        g = r - stanceLeg;
+        gd = rdot;
+      } else {
+        g = -force;
+        gd = stanceK * rdot + stanceC * rddot;
+      }
+    } else if (ev == EV_MAX_COMPRESSION) {
+      g = rdot;
+      gd = rddot;
+    } else {
+      break;
+    }
+    if (gd == 0.0 || !isFinite(gd)) break;
+    const dt = -g / gd;
+    if (!(Math.abs(dt) > least)) break;
+    if (Math.abs(dt) > reach) break; // not a small correction: keep the located state
+    // Second-order Taylor move: position += v dt + a dt^2/2, velocity += a dt + a' dt^2/2.
     const ax = load<f64>(K7, 16);
     const ay = load<f64>(K7, 24);
     // a' = d/dt (F p / (m r)) = (F' p / r + F (v / r - p r' / r^2)) / m
-    const r = Math.sqrt(px * px + py * py);
-    const rdot = (px * vx + py * vy) / r;
-    const rddot = (vx * vx + vy * vy - rdot * rdot) / r + (px * ax + py * (ay + stanceG)) / r;
-    const force = stanceK * (stanceLeg - r) - stanceC * rdot;
-    const fdot = -stanceK * rdot - stanceC * rddot;
-    const jx = (fdot * px / r + force * (vx / r - (px * rdot) / (r * r))) / stanceMass;
-    const jy = (fdot * py / r + force * (vy / r - (py * rdot) / (r * r))) / stanceMass;
+    const rddotF = centripetal + (px * ax + py * (ay + stanceG)) * ir;
+    const fdot = -stanceK * rdot - stanceC * rddotF;
+    const rdotr = rdot * ir;
+    const jx = (fdot * px * ir + force * (vx - px * rdotr) * ir) * stanceInvMass;
+    const jy = (fdot * py * ir + force * (vy - py * rdotr) * ir) * stanceInvMass;
     const half = 0.5 * dt * dt;
     store<f64>(YN, px + vx * dt + ax * half, 0);
     store<f64>(YN, py + vy * dt + ay * half, 8);
@@ -128,6 +150,8 @@ export function refine(ev: i32, timeScale: f64): f64 {
     store<f64>(YN, load<f64>(YN, 32) + load<f64>(K7, 32) * dt, 32);
     rhs(YN, K7);
     shift += dt;
+    // Newton's next correction for r - L0 is about r'' dt^2 / (2 r'): below `least`, this is the last
+    if (ev == EV_LIFTOFF && stanceC == 0.0 && Math.abs(rddot) * half <= least * Math.abs(rdot)) break;
   }
   return shift;
 }
@@ -205,16 +229,25 @@ function hermiteRoot(g0: f64, g1: f64, d0: f64, d1: f64): f64 {
   hermiteCurvature = NaN;
   if (!isFinite(d0) || !isFinite(d1)) return secant;
   let th = secant;
+  if (d0 > 0.0 && d1 > 0.0) {
+    const u = secant;
+    const dg = g1 - g0;
+    const u2 = u * u;
+    const u3 = u2 * u;
+    const inv = (u3 - 2.0 * u2 + u) * (dg / d0) + (3.0 * u2 - 2.0 * u3) + (u3 - u2) * (dg / d1);
+    if (inv > 0.0 && inv < 1.0) th = inv;
+  }
   for (let it = 0; it < 4; it++) {
     const t2 = th * th;
     const t3 = t2 * th;
     const p = (2.0 * t3 - 3.0 * t2 + 1.0) * g0 + (t3 - 2.0 * t2 + th) * d0 + (3.0 * t2 - 2.0 * t3) * g1 + (t3 - t2) * d1;
     const dp = (6.0 * t2 - 6.0 * th) * (g0 - g1) + (3.0 * t2 - 4.0 * th + 1.0) * d0 + (3.0 * t2 - 2.0 * th) * d1;
     if (!(dp != 0.0)) break;
-    th -= p / dp;
+    const dth = p / dp;
+    th -= dth;
     if (!(th > 0.0 && th < 1.0)) break;
     hermiteSlope = dp;
-    if (it == 3) {
+    if (it == 3 || Math.abs(dth) <= 1e-4) {
       hermiteCurvature = (12.0 * th - 6.0) * (g0 - g1) + (6.0 * th - 4.0) * d0 + (6.0 * th - 2.0) * d1;
       return th;
     }
