@@ -124,6 +124,9 @@ function brent(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64, grou
 // one sine and cosine of the same angle (f and f' together). Brent's method takes over on the
 // bracket found so far if an iterate leaves it, the slope is not negative, or 8 iterates do not
 // settle to Brent's tolerance.
+let startAngle: f64 = NaN;
+let startSin: f64 = 0.0;
+let startCos: f64 = 0.0;
 function concaveRoot(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64, ground: f64, leg: f64, g: f64, w: f64): f64 {
   let a = a0, b = b0, fa = fa0, fb = fb0;
   // the first iterate: the root of f's second-order Taylor polynomial at a (its error is third
@@ -131,9 +134,15 @@ function concaveRoot(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64
   const angleA = attackAt(model, a);
   let t: f64 = NaN;
   if (Math.abs(angleA - HALF_PI) >= 1e-15) {
-    NativeMath.sincos(angleA);
-    const d1 = -g * a - leg * w * NativeMath.sincos_cos;
-    const d2 = -g + leg * w * w * NativeMath.sincos_sin;
+    // the angle at the piece's start is the same at every stride from the apex (kept)
+    if (angleA != startAngle) {
+      startAngle = angleA;
+      NativeMath.sincos(angleA);
+      startSin = NativeMath.sincos_sin;
+      startCos = NativeMath.sincos_cos;
+    }
+    const d1 = -g * a - leg * w * startCos;
+    const d2 = -g + leg * w * w * startSin;
     const disc = d1 * d1 - 2.0 * d2 * fa;
     if (d2 < 0.0 && disc >= 0.0) t = a + (2.0 * fa) / (Math.sqrt(disc) - d1);
   }
@@ -149,8 +158,13 @@ function concaveRoot(model: usize, a0: f64, b0: f64, fa0: f64, fb0: f64, ya: f64
     if (f == 0.0) return t;
     const slope = -g * t - leg * w * cs;
     if (!(slope < 0.0)) break;
-    const next = t - f / slope;
-    if (Math.abs(next - t) <= 4.440892098500626e-16 * Math.abs(t) + 1e-16) return next;
+    const shift = f / slope;
+    const next = t - shift;
+    const settled = 4.440892098500626e-16 * Math.abs(t) + 1e-16;
+    if (Math.abs(shift) <= settled) return next;
+    // Newton's next correction, about |f''| shift^2 / (2 |f'|) with f'' = -g + L0 w^2 sin, taken
+    // four times over, is already below that: `next` is the root to the same tolerance
+    if (next > a && next < b && 2.0 * Math.abs(-g + leg * w * w * sn) * shift * shift <= settled * Math.abs(slope)) return next;
     t = next;
   }
   return brent(model, a, b, fa, fb, ya, ground, leg, g);

@@ -187,8 +187,12 @@ export class Engine {
     return this.put(all);
   }
 
-  /** Many rollouts x many strides in one kernel call. */
-  runBatch(req: BatchRequest): BatchResult {
+  /**
+   * Many rollouts x many strides in one kernel call. With `into`, the summaries are copied out of
+   * WASM memory straight into `into.summaries` from value `into.offset` on (a batch's chunks into
+   * the whole batch's array), and the result's summaries are that part of it: no array of their own.
+   */
+  runBatch(req: BatchRequest, into?: { summaries: Float64Array; offset: number }): BatchResult {
     const rollouts = req.inputs.length / L.I_SIZE;
     if (!Number.isInteger(rollouts) || rollouts < 1) {
       throw new EngineError(`inputs hold ${req.inputs.length} values, expected a positive multiple of ${L.I_SIZE}`);
@@ -212,11 +216,19 @@ export class Engine {
     const records = nRecords > 0 ? this.alloc(nRecords) : 0;
     const summaries = this.alloc(rollouts * L.S_SIZE);
     const completed = k.runBatch(model, inputs, rollouts, req.strides, records, summaries);
+    let out: Float64Array;
+    if (into) {
+      out = into.summaries.subarray(into.offset, into.offset + rollouts * L.S_SIZE);
+      if (out.length !== rollouts * L.S_SIZE) throw new EngineError(`the summaries' destination holds ${out.length} values from ${into.offset}, expected ${rollouts * L.S_SIZE}`);
+      out.set(this.view(summaries, rollouts * L.S_SIZE));
+    } else {
+      out = this.view(summaries, rollouts * L.S_SIZE).slice();
+    }
     return {
       rollouts,
       strides: req.strides,
       completed,
-      summaries: this.view(summaries, rollouts * L.S_SIZE).slice(),
+      summaries: out,
       records: nRecords > 0 ? this.view(records, nRecords).slice() : undefined,
     };
   }

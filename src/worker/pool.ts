@@ -86,7 +86,8 @@ export async function runBatchParallel(req: BatchRequest, options: ParallelOptio
   let completed = 0;
   let done = 0;
   const place = (chunk: Chunk, reply: { summaries: Float64Array; records?: Float64Array; completed: number }) => {
-    summaries.set(reply.summaries, chunk.start * L.S_SIZE);
+    // (a chunk run in this thread wrote its summaries in place already)
+    if (reply.summaries.buffer !== summaries.buffer) summaries.set(reply.summaries, chunk.start * L.S_SIZE);
     if (records && reply.records) records.set(reply.records, chunk.start * req.strides * L.R_SIZE);
     completed += reply.completed;
     done += chunk.end - chunk.start;
@@ -101,7 +102,9 @@ export async function runBatchParallel(req: BatchRequest, options: ParallelOptio
     const engine = await loadEngine();
     for (const chunk of chunks) {
       if (options.signal?.aborted) throw new CancelledError();
-      const r = engine.runBatch(sub(chunk));
+      // each chunk's summaries straight into the batch's array (a fresh array per chunk, then a
+      // copy, cost about 9 ms of page faults for 20,000 rollouts on this project's test machine)
+      const r = engine.runBatch(sub(chunk), { summaries, offset: chunk.start * L.S_SIZE });
       place(chunk, r);
       if (chunks.length > 1) await new Promise((resolve) => setImmediate(resolve)); // let a cancel in
     }

@@ -217,11 +217,27 @@ export async function robustnessRows(
   range?: ShardRange,
   execution: RobustnessExecution = {},
 ): Promise<RobustnessRow[]> {
+  const summaries = await robustnessSummaries(given, options, range, execution);
+  return rowsOf(summaries, summaries.length / L.S_SIZE);
+}
+
+/**
+ * The kernel's summaries (count x S_SIZE, S_* in layout.ts) of rollouts [range.start, range.end),
+ * what robustnessRows makes rows of: finishRobustness takes them as they are, so a run on one
+ * machine makes no object per rollout (20,000 of them, with their numbers boxed, cost about 20 ms
+ * of allocation and garbage collection in a one-shot `pronk robustness`).
+ */
+export async function robustnessSummaries(
+  given: Scenario,
+  options: RobustnessOptions,
+  range?: ShardRange,
+  execution: RobustnessExecution = {},
+): Promise<Float64Array> {
   const canonical = canonicalRobustnessOptions(given, options);
   const start = range?.start ?? 0;
   const end = range?.end ?? canonical.rollouts;
   const count = end - start;
-  if (count <= 0) return [];
+  if (count <= 0) return new Float64Array(0);
   const { scenario } = await robustnessScenario(given, options);
   const inputs = inputsOf(scenario, start, count);
   const req: BatchRequest = { model: robustnessModel(scenario, canonical), inputs, strides: canonical.strides };
@@ -233,7 +249,7 @@ export async function robustnessRows(
     const { runBatchParallel } = await import('../../worker/pool.js');
     batch = await runBatchParallel(req, { workers: execution.workers ?? 1, onProgress: execution.onProgress, signal: execution.signal });
   }
-  return rowsOf(batch.summaries, count);
+  return batch.summaries;
 }
 
 // The per-rollout loops live in plain (not async) functions: V8 replaces a long-running loop by
@@ -273,6 +289,26 @@ interface RowTally {
   sumSqSpeed: number;
 }
 
+/** tallyRows over a run's own summaries (count x S_SIZE), the same sums in the same order. */
+function tallySummaries(summaries: Float64Array, completedName: string, failures: Record<string, number>, runningAfter: number[]): RowTally {
+  let survived = 0;
+  let stridesTotal = 0;
+  let sumSqHeight = 0;
+  let sumSqSpeed = 0;
+  for (let at = 0; at < summaries.length; at += L.S_SIZE) {
+    const code = summaries[at + L.S_STATUS];
+    const status = STATUS_NAMES[code] ?? `status_${code}`;
+    if (status === completedName) survived++;
+    else failures[status]++;
+    const strides = summaries[at + L.S_STRIDES_COMPLETED];
+    stridesTotal += strides;
+    sumSqHeight += summaries[at + L.S_SUM_SQ_HEIGHT_ERROR];
+    sumSqSpeed += summaries[at + L.S_SUM_SQ_SPEED_ERROR];
+    if (strides > 0) runningAfter[strides - 1]++;
+  }
+  return { survived, stridesTotal, sumSqHeight, sumSqSpeed };
+}
+
 /** Survivors, failures by status (into `failures`), strides and error sums over the rows, in row order. */
 function tallyRows(rows: readonly RobustnessRow[], completedName: string, failures: Record<string, number>, runningAfter: number[]): RowTally {
   let survived = 0;
@@ -291,23 +327,28 @@ function tallyRows(rows: readonly RobustnessRow[], completedName: string, failur
 }
 
 /**
- * The statistics of a full list of rollout rows (from one run, or joined from shards in order).
- * Async so that callers treat every finisher alike.
+ * The statistics of a full list of rollout rows (from one run, or joined from shards in order),
+ * or of a whole run's summaries (robustnessSummaries). Async so that callers treat every finisher alike.
  */
 export async function finishRobustness(
   scenario: Scenario,
   options: RobustnessOptions,
-  rows: readonly RobustnessRow[],
+  rows: readonly RobustnessRow[] | Float64Array,
 ): Promise<RobustnessResult> {
   const o = canonicalRobustnessOptions(scenario, options);
-  checkRows(rows, o);
+  if (rows instanceof Float64Array) {
+    if (rows.length !== o.rollouts * L.S_SIZE) throw new Error(`finishRobustness: ${rows.length / L.S_SIZE} rollout summaries for ${o.rollouts} rollouts`);
+  } else {
+    checkRows(rows, o);
+  }
   const completedName = STATUS_NAMES[L.STATUS_OK];
   const failures: Record<string, number> = {};
   // the statuses the scenario's model kind can report
   const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT_BIPED : L.STATUS_COUNT_SLIP;
   for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
-  const { survived, stridesTotal, sumSqHeight, sumSqSpeed } = tallyRows(rows, completedName, failures, runningAfter);
+  const { survived, stridesTotal, sumSqHeight, sumSqSpeed } =
+    rows instanceof Float64Array ? tallySummaries(rows, completedName, failures, runningAfter) : tallyRows(rows, completedName, failures, runningAfter);
   // cumulative from the last stride back: running after stride s = completed more than s strides
   for (let s = o.strides - 2; s >= 0; s--) runningAfter[s] += runningAfter[s + 1];
   const n = o.rollouts;
@@ -357,8 +398,7 @@ export async function terrainRobustness(
   options: RobustnessOptions,
   execution: RobustnessExecution = {},
 ): Promise<RobustnessResult> {
-  const rows = await robustnessRows(scenario, options, undefined, execution);
-  return finishRobustness(scenario, options, rows);
+  return finishRobustness(scenario, options, await robustnessSummaries(scenario, options, undefined, execution));
 }
 
 // Rows may come from files (joined shards): check them before trusting them.
