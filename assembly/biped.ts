@@ -81,8 +81,9 @@ import {
   LANE_QUIET, QS_BYTES, QS_GL0, QS_GL1, QS_GM0, QS_GM1, QS_GG, QS_GB, QS_GS, QS_GT, QS_EN_MC0, QS_EN_MC1,
   QS_EN_LO0, QS_EN_LO1, QS_EN_SEC, QS_EN_MID, QS_EN_TD, QS_MID, QS_TDH, QS_OY, QS_SWG, QS_GREL, QS_PK0,
   QS_PK1, QS_MC0, QS_MC1, QS_PV, QS_PF, QS_TS, QS_OLD, QS_HI, QS_N, QS_LIMIT, QS_TLIM, QS_HMIN, QS_ON, QS_LASTH,
+  QS_LIFT, QS_REACH,
 } from "./rk/biped-x2";
-import { EV_LIFTOFF, EV_MAX_COMPRESSION, locateStance, refine } from "./rk/events";
+import { EV_LIFTOFF, EV_MAX_COMPRESSION, locateStance, refine, reachFactor, liftoffStep } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
 
 const LOCATE_TOL: f64 = 1e-9; // event location tolerance in step fractions, as the stance driver
@@ -127,6 +128,7 @@ let LEGS: usize = LEGS_DEFAULT; // the legs of the rollout in hand (runBipedBatc
   single: bool;
   stanceLeg: i32;
   timeScale: f64;
+  reach: f64; // s: in single stance, a liftoff this close to a step's end is polished there (stance.ts)
   groundRel: f64;
   strideWalking: bool;
   tS: f64;
@@ -997,6 +999,10 @@ function configure(): void {
     s.single = true;
     s.stanceLeg = on0 ? 0 : 1;
     s.swing = 1 - s.stanceLeg;
+    // the stance driver's reach (stance.ts, stanceStart), from the stance leg's stiffnesses
+    const kc = lg(s.stanceLeg, LF_KC);
+    const ke = lg(s.stanceLeg, LF_KE);
+    s.reach = (kc == ke ? s.timeScale : Math.sqrt(s.mass / (kc > ke ? kc : ke))) * reachFactor(s.rtol);
     setStance(s.mass, lg(s.stanceLeg, LF_L0), lg(s.stanceLeg, LF_K), lg(s.stanceLeg, LF_C), s.gravity);
   }
   setErrorDimension(damped ? 5 : 4);
@@ -1163,6 +1169,16 @@ function contactBefore(): i32 {
 
 // After a step of size h with error err (bstep's value): rejection, or acceptance with the
 // events inside the step. CONTACT_GO, or END_SECTION, END_FLIGHT or a STATUS_* code.
+// The stance driver's liftoff tests for the stance leg `sl` of a single stance (stance.ts:
+// liftoffInReach, towardLiftoff), on the leg's flags: undamped, its maximum compression behind it.
+@inline function liftoffNear(sl: i32, gl1: f64, gm1: f64, reach: f64): bool {
+  return lg(sl, LF_C) == 0.0 && lg(sl, LF_COMPRESSING) == 0.0 && gm1 > 0.0 && Math.abs(gl1) <= reach * gm1;
+}
+@inline function towardLiftoffB(sl: i32, gl0: f64, gm0: f64, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
+  if (lg(sl, LF_C) != 0.0 || lg(sl, LF_COMPRESSING) != 0.0 || !(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
+  return liftoffStep(gl0, gm0, gl1, gm1, h, hNext);
+}
+
 function contactAfter(err: f64): i32 {
   const s = S;
   const rec = s.contactRec;
@@ -1239,6 +1255,9 @@ function contactAfter(err: f64): i32 {
   const gb1 = -load<f64>(YN, 16);
   let gt1: f64 = 0.0;
   let armsHere = false;
+  // single stance: the stance driver's liftoff in reach (stance.ts, liftoffInReach), polished at the step's end
+  const sl = s.stanceLeg;
+  const inReach = s.single && liftoffNear(sl, sl == 0 ? gl10 : gl11, sl == 0 ? gm10 : gm11, s.reach);
 
   let stopTheta: f64 = 2.0;
   let stopEvent = -1;
@@ -1255,11 +1274,13 @@ function contactAfter(err: f64): i32 {
     mTheta1 = s.single ? locateStance(EV_MAX_COMPRESSION, s.gm01, gm11, s.h, LOCATE_TOL) : locateB(EVB_MAX_COMPRESSION, 1, 0.0, s.gm01, gm11, s.tS, s.h);
     if (lg(1, LF_SPLIT) != 0.0 && mTheta1 < stopTheta) { stopTheta = mTheta1; stopEvent = EVB_MAX_COMPRESSION; stopLeg = 1; }
   }
-  if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl00, gl10)) {
+  if (inReach) {
+    if (1.0 < stopTheta) { stopTheta = 1.0; stopEvent = EVB_LIFTOFF; stopLeg = sl; }
+  } else if (lg(0, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl00, gl10)) {
     const th = s.single ? locateStance(EV_LIFTOFF, s.gl00, gl10, s.h, LOCATE_TOL) : locateB(EVB_LIFTOFF, 0, 0.0, s.gl00, gl10, s.tS, s.h);
     if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 0; }
   }
-  if (lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl01, gl11)) {
+  if (!inReach && lg(1, LF_ON) != 0.0 && crossesB(EVB_LIFTOFF, s.gl01, gl11)) {
     const th = s.single ? locateStance(EV_LIFTOFF, s.gl01, gl11, s.h, LOCATE_TOL) : locateB(EVB_LIFTOFF, 1, 0.0, s.gl01, gl11, s.tS, s.h);
     if (th < stopTheta) { stopTheta = th; stopEvent = EVB_LIFTOFF; stopLeg = 1; }
   }
@@ -1321,6 +1342,9 @@ function contactAfter(err: f64): i32 {
 
   if (stopEvent < 0) {
     notePeaks();
+    // the step after it, cut to a liftoff in sight in single stance (stance.ts, towardLiftoff)
+    const hNext = s.h * acceptFactor(err, s.afterReject);
+    const hAfter = s.single ? towardLiftoffB(sl, sl == 0 ? s.gl00 : s.gl01, sl == 0 ? s.gm00 : s.gm01, sl == 0 ? gl10 : gl11, sl == 0 ? gm10 : gm11, s.h, hNext) : hNext;
     s.tS += s.h;
     advance();
     s.gl00 = gl10;
@@ -1334,7 +1358,7 @@ function contactAfter(err: f64): i32 {
       if (armsHere) s.armed = true;
       s.gt0 = gt1;
     }
-    s.h *= acceptFactor(err, s.afterReject);
+    s.h = hAfter;
     s.afterReject = false;
     return CONTACT_GO;
   }
@@ -1342,7 +1366,10 @@ function contactAfter(err: f64): i32 {
   // The event: re-take the step to the located time on the true solution, then polish.
   const hNext = s.h * acceptFactor(err, s.afterReject);
   let hEvent = stopTheta * s.h;
-  if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
+  // a liftoff in reach is polished from the step's end: no re-taken step
+  const reached = inReach && stopEvent == EVB_LIFTOFF;
+  if (reached) notePeaks(); // the step's end, short of the crossing or past it, is a state of the stance
+  else if (stopEvent != EVB_GROUND && stopEvent != EVB_BACKWARD) {
     bstep(hEvent);
     s.steps++;
     s.stepsHere++;
@@ -1351,7 +1378,7 @@ function contactAfter(err: f64): i32 {
   if (s.single && (stopEvent == EVB_LIFTOFF || stopEvent == EVB_MAX_COMPRESSION)) {
     // the stance driver's own polish (events.ts), on the single-leg equations
     tEvent = s.tS + hEvent;
-    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, s.timeScale, 1e-4 * s.timeScale);
+    tEvent += refine(stopEvent == EVB_LIFTOFF ? EV_LIFTOFF : EV_MAX_COMPRESSION, s.timeScale, reached ? 2.0 * s.reach : 1e-4 * s.timeScale);
   } else if (stopEvent == EVB_GROUND || stopEvent == EVB_BACKWARD) {
     tEvent = s.tS + hEvent;
   } else {
@@ -2009,6 +2036,15 @@ function laneAfterQuiet(i: i32, err: f64): bool {
       if (crossesB(EVB_TOUCHDOWN, s.gt0, gt1)) return false;
     }
   }
+  const ext = LANE_EXT + <usize>i * LANE_BYTES;
+  const f = acceptedFactor(err, s.afterReject, load<f64>(ext, 16));
+  if (single) {
+    // a liftoff in reach, or one that the next step is cut to (contactAfter: liftoffNear, towardLiftoffB)
+    const gl = sl == 0 ? gl10 : gl11;
+    const gm = sl == 0 ? gm10 : gm11;
+    if (lgAt(legs, sl, LF_C) == 0.0 && lgAt(legs, sl, LF_COMPRESSING) == 0.0 && gl < 0.0 && gm > 0.0 &&
+      (-gl <= 2.0 * (s.h * f) * gm || -gl <= s.reach * gm)) return false;
+  }
   // accepted, no event: contactAfter's bookkeeping, notePeaks, advance and acceptFactor
   if (s.firstStep) {
     s.firstH = s.h;
@@ -2038,8 +2074,6 @@ function laneAfterQuiet(i: i32, err: f64): bool {
   s.gg0 = gg1;
   s.gb0 = gb1;
   if (single) s.gt0 = gt1;
-  const ext = LANE_EXT + <usize>i * LANE_BYTES;
-  const f = acceptedFactor(err, s.afterReject, load<f64>(ext, 16));
   store<f64>(ext, controllerMemory(err), 16);
   store<f64>(ext, s.h, 0);
   s.h *= f;
@@ -2087,6 +2121,9 @@ function packLane(i: i32): bool {
   qsMask(QS_EN_SEC, i, single && s.sectionArmed);
   qsMask(QS_EN_MID, i, single && !s.armed);
   qsMask(QS_EN_TD, i, single && s.armed);
+  // the stance leg's liftoff tests of contactAfter (liftoffNear, towardLiftoffB) apply
+  qsMask(QS_LIFT, i, single && lgAt(legs, a, LF_C) == 0.0 && lgAt(legs, a, LF_COMPRESSING) == 0.0);
+  qsSet(QS_REACH, i, single ? s.reach : 0.0);
   qsSet(QS_MID, i, single ? lgAt(legs, s.stanceLeg, LF_FX) - s.ox : 0.0);
   qsSet(QS_TDH, i, single ? lgAt(legs, s.swing, LF_TOUCH_HEIGHT) : 0.0);
   qsSet(QS_OY, i, s.oy);

@@ -22,7 +22,7 @@ import { rhs, setStance, setStiffness, setStanceParams } from "./rk/system";
 import { stepPair, stepQuad, laneEnd, END_FORCE, END_RADIUS, END_RATE, END_FRICTION, END_FACTOR } from "./rk/dopri5x2";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
-  eventValue, crosses, locateStance, refine, legForce,
+  eventValue, crosses, locateStance, refine, legForce, reachFactor, liftoffStep,
 } from "./rk/events";
 import { tracing, traceStance } from "./trace";
 
@@ -157,38 +157,13 @@ function noteMaxCompression(s: Stance, px: f64, py: f64, t: f64): void {
 // dt where that is 1/100 of rtol, at most 2e-3 / omega. A prediction that misses by more leaves
 // the crossing to the usual location and re-taken step, or to the step after.
 
-let reachRtol: f64 = NaN;
-let reachOfRtol: f64 = 0.0;
-// reach x omega for a relative tolerance (the cube root is kept for the rtol of the last stance).
-function reachFactor(rtol: f64): f64 {
-  if (rtol != reachRtol) {
-    reachRtol = rtol;
-    const f = Math.cbrt(0.06 * rtol);
-    reachOfRtol = f < 2e-3 ? f : 2e-3;
-  }
-  return reachOfRtol;
-}
-
 // The step after an accepted step of size h that ended with g = r - L0 at gl1 and r' at gm1 (the
 // step began at s.gl0, s.gm0): hNext, or shorter so as to end at the liftoff predicted by the
-// cubic through both ends, extrapolated past the step.
+// cubic through both ends, extrapolated past the step (liftoffStep, events.ts).
 @inline function towardLiftoff(s: Stance, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
   // undamped, extending, the crossing within about two steps by the tangent
   if (s.damped || s.compressing || !(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
-  // the cubic on theta in [0, 1] (values gl0, gl1, slopes h gm0, h gm1), about theta = 1 + u
-  const d1 = h * gm1;
-  const dg = s.gl0 - gl1;
-  const c2 = 6.0 * dg + 2.0 * (h * s.gm0) + 4.0 * d1; // p''(1)
-  const c3 = 12.0 * dg + 6.0 * (h * s.gm0) + 6.0 * d1; // p'''
-  let u = -gl1 / d1;
-  for (let it = 0; it < 3; it++) {
-    const p = gl1 + u * (d1 + u * (0.5 * c2 + u * (c3 / 6.0)));
-    const dp = d1 + u * (c2 + u * (0.5 * c3));
-    if (!(dp > 0.0)) return hNext;
-    u -= p / dp;
-  }
-  const tau = u * h;
-  return tau > 0.0 && tau < hNext ? tau : hNext;
+  return liftoffStep(s.gl0, s.gm0, gl1, gm1, h, hNext);
 }
 
 // The step just taken ended within reach of the liftoff crossing, on either side (undamped, with

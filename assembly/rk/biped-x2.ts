@@ -579,8 +579,8 @@ export function stepPairW1(pair: usize): i32 {
 // from the lane's BipedState, unpackLane writes it back before the one-rollout code runs on the
 // lane), as f64x2 at LANE_QUIET + QS_BYTES * pair + 16 * field. Slot 0 is leg 0 (double support)
 // or the stance leg (single support), slot 1 the other leg. Masks: all bits set or 0.
-export const QS_BYTES: usize = 36 * 16;
-export const LANE_QUIET: usize = memory.data(2 * 36 * 16, 16);
+export const QS_BYTES: usize = 37 * 16;
+export const LANE_QUIET: usize = memory.data(2 * 37 * 16, 16);
 export const QS_GL0 = 0; // the last accepted step's event values (contactAfter's gl0x, gm0x, ...)
 export const QS_GL1 = 1;
 export const QS_GM0 = 2;
@@ -616,6 +616,8 @@ export const QS_TLIM = 31; // tContactLimit
 export const QS_HMIN = 32;
 export const QS_ON = 33; // mask: the lane is in lane mode
 export const QS_LASTH = 34; // the last quiet step's size
+export const QS_LIFT = 35; // mask: single stance, slot 0 (the stance leg) undamped and past its maximum compression
+export const QS_REACH = 36; // the stance's reach (biped.ts, contactAfter's liftoffNear)
 
 @inline function qsAt(field: i32, pair: usize): v128 {
   return v128.load(LANE_QUIET + pair * QS_BYTES + (<usize>field << 4));
@@ -665,6 +667,20 @@ export const QS_LASTH = 34; // the last quiet step's size
     enMid,
   );
   ev = v128.or(ev, v128.and(v128.or(enMid, qsAt(QS_EN_TD, PA)), crosses(qsAt(QS_GT, PA), gt1)));
+  // acceptedFactor(err, afterReject, old) and controllerMemory(err) (dopri5.ts)
+  const e = v128.bitselect(err, sp(1e-12), f64x2.gt(err, sp(1e-12)));
+  let f = mul(mul(sp(0.9), roughPow2(e, -EXPO)), roughPow2(qsAt(QS_OLD, PA), BETA));
+  f = v128.bitselect(sp(0.2), f, f64x2.lt(f, sp(0.2)));
+  const hi = qsAt(QS_HI, PA);
+  f = v128.bitselect(hi, f, f64x2.gt(f, hi));
+  const hNew = mul(h, f);
+  // the stance leg's liftoff in reach, or one that the next step is cut to: contactAfter's
+  // (biped.ts, liftoffNear and towardLiftoffB), not a quiet end
+  const nearLift = v128.or(
+    f64x2.le(f64x2.neg(gl0), mul(mul(sp(2.0), hNew), gm0)),
+    f64x2.le(f64x2.neg(gl0), mul(qsAt(QS_REACH, PA), gm0)),
+  );
+  ev = v128.or(ev, v128.and(qsAt(QS_LIFT, PA), v128.and(v128.and(f64x2.lt(gl0, zero), f64x2.gt(gm0, zero)), nearLift)));
   q = v128.andnot(q, ev);
   if (!v128.any_true(q)) return 0;
   // accepted, no event: the bookkeeping of the quiet lanes
@@ -684,16 +700,9 @@ export const QS_LASTH = 34; // the last quiet step's size
   upd(QS_GG, PA, gg1, q);
   upd(QS_GB, PA, gb1, q);
   upd(QS_GT, PA, gt1, v128.and(q, single));
-  // acceptedFactor(err, afterReject, old) and controllerMemory(err) (dopri5.ts)
-  const e = v128.bitselect(err, sp(1e-12), f64x2.gt(err, sp(1e-12)));
-  let f = mul(mul(sp(0.9), roughPow2(e, -EXPO)), roughPow2(qsAt(QS_OLD, PA), BETA));
-  f = v128.bitselect(sp(0.2), f, f64x2.lt(f, sp(0.2)));
-  const hi = qsAt(QS_HI, PA);
-  f = v128.bitselect(hi, f, f64x2.gt(f, hi));
   upd(QS_OLD, PA, v128.bitselect(err, sp(1e-4), f64x2.gt(err, sp(1e-4))), q);
   upd(QS_HI, PA, sp(10.0), q);
   upd(QS_LASTH, PA, h, q);
-  const hNew = mul(h, f);
   v128.store(PAIR_PARAMS + PA * PAIR_BYTES + (<usize>PP_H << 4), v128.bitselect(hNew, h, q));
   const nq = add(qsAt(QS_N, PA), sp(1.0));
   upd(QS_N, PA, nq, q);

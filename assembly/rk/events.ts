@@ -156,6 +156,43 @@ export function refine(ev: i32, timeScale: f64, reach: f64): f64 {
   return shift;
 }
 
+// Liftoff by a shortened step (the single-leg stance driver, stance.ts, and the two-leg model's
+// single stance, biped.ts): `reach` (s) is the distance from a step's end to the crossing within
+// which refine() takes the state to it, reachFactor(rtol) / omega (omega: the stance's fastest
+// rate): the move's error, about (omega dt)^3 / 6 of the state, is then 1/100 of rtol; at most 2e-3.
+let reachRtol: f64 = NaN;
+let reachOfRtol: f64 = 0.0;
+export function reachFactor(rtol: f64): f64 {
+  // the cube root is kept for the rtol of the last stance
+  if (rtol != reachRtol) {
+    reachRtol = rtol;
+    const f = Math.cbrt(0.06 * rtol);
+    reachOfRtol = f < 2e-3 ? f : 2e-3;
+  }
+  return reachOfRtol;
+}
+
+// The step after an accepted step of size h, cut to end at the liftoff predicted past it: the root
+// beyond the step of the cubic in theta through the step's ends (g = r - L0 at gl0, gl1; slopes
+// h gm0, h gm1 with r' at gm0, gm1), by Newton's method from the tangent's root; hNext when that
+// root is not before hNext. For gl1 < 0 < gm1.
+@inline export function liftoffStep(gl0: f64, gm0: f64, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
+  // the cubic about theta = 1 + u: gl1 + d1 u + c2 u^2 / 2 + c3 u^3 / 6
+  const d1 = h * gm1;
+  const dg = gl0 - gl1;
+  const c2 = 6.0 * dg + 2.0 * (h * gm0) + 4.0 * d1; // the cubic's second derivative at theta = 1
+  const c3 = 12.0 * dg + 6.0 * (h * gm0) + 6.0 * d1; // its third
+  let u = -gl1 / d1;
+  for (let it = 0; it < 3; it++) {
+    const p = gl1 + u * (d1 + u * (0.5 * c2 + u * (c3 / 6.0)));
+    const dp = d1 + u * (c2 + u * (0.5 * c3));
+    if (!(dp > 0.0)) return hNext;
+    u -= p / dp;
+  }
+  const tau = u * h;
+  return tau > 0.0 && tau < hNext ? tau : hNext;
+}
+
 // The event value at theta of the last step, as eventValue(ev, YI) after dense(theta) gives it,
 // from only the interpolated components it needs (dense4); its time derivative at the
 // interpolated state, from the equations of motion, into eventRateAt (NaN for the peak force).
