@@ -6,7 +6,8 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 
-const demo = JSON.parse(readFileSync(fileURLToPath(new URL('../../scenarios/demo.json', import.meta.url)), 'utf8'));
+const shipped = (file) => JSON.parse(readFileSync(fileURLToPath(new URL(`../../scenarios/${file}`, import.meta.url)), 'utf8'));
+const demo = shipped('demo.json');
 
 // Human-like reference body (Seyfarth et al. 2002's 80 kg, 1 m, 20 kN/m), fixed attack, flat.
 const human = {
@@ -62,6 +63,10 @@ const study = {
   holdout: { seed: 12, rollouts: 60 },
 };
 SCENARIOS['study.json'] = study;
+// the other model kinds' shipped demos: the two-leg model walking and running, the lateral model
+SCENARIOS['biped-walk.json'] = shipped('demo-biped.json');
+SCENARIOS['biped-run.json'] = shipped('demo-biped-run.json');
+SCENARIOS['hexapod.json'] = shipped('demo-hexapod.json');
 
 /**
  * Each case: a name, the arguments after `pronk`, and the files it writes (compared too).
@@ -72,6 +77,13 @@ for (const file of ['demo.json', 'human.json', 'split.json', 'tables.json']) {
   const stem = file.replace('.json', '');
   CASES.push({ name: `simulate-${stem}`, args: ['simulate', file, '--json'] });
   CASES.push({ name: `map-${stem}`, args: ['map', file, '--json', '--samples', '61', '--iterations', '8'] });
+}
+for (const file of ['biped-walk.json', 'biped-run.json', 'hexapod.json']) {
+  const stem = file.replace('.json', '');
+  CASES.push({ name: `simulate-${stem}`, args: ['simulate', file, '--json'] });
+  // rollouts in lanes (more than 4), every stride of most of them run
+  const disturbance = stem === 'hexapod' ? ['--kick-left', '0.1'] : ['--sigma', stem === 'biped-walk' ? '0.001' : '0.005'];
+  CASES.push({ name: `robustness-${stem}`, args: ['robustness', file, '--json', '--rollouts', '24', ...disturbance, '--workers', '1'] });
 }
 CASES.push(
   { name: 'simulate-trace', args: ['simulate', 'human.json', '--json', '--strides', '2', '--trace-interval', '0.01'] },
