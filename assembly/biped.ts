@@ -83,7 +83,7 @@ import {
   QS_PK1, QS_MC0, QS_MC1, QS_PV, QS_PF, QS_TS, QS_OLD, QS_HI, QS_N, QS_LIMIT, QS_TLIM, QS_HMIN, QS_ON, QS_LASTH,
   QS_LIFT, QS_REACH,
 } from "./rk/biped-x2";
-import { EV_LIFTOFF, EV_MAX_COMPRESSION, locateStance, refine, reachFactor, liftoffStep } from "./rk/events";
+import { EV_LIFTOFF, EV_MAX_COMPRESSION, locateStance, refine, reachFactor, liftoffStep, liftoffInReach } from "./rk/events";
 import { tracing, traceStride, emit2, traceNext } from "./trace";
 
 const LOCATE_TOL: f64 = 1e-9; // event location tolerance in step fractions, as the stance driver
@@ -1172,11 +1172,10 @@ function contactBefore(): i32 {
 // The stance driver's liftoff tests for the stance leg `sl` of a single stance (stance.ts:
 // liftoffInReach, towardLiftoff), on the leg's flags: undamped, its maximum compression behind it.
 @inline function liftoffNear(sl: i32, gl1: f64, gm1: f64, reach: f64): bool {
-  return lg(sl, LF_C) == 0.0 && lg(sl, LF_COMPRESSING) == 0.0 && gm1 > 0.0 && Math.abs(gl1) <= reach * gm1;
+  return lg(sl, LF_C) == 0.0 && lg(sl, LF_COMPRESSING) == 0.0 && liftoffInReach(gl1, gm1, reach);
 }
 @inline function towardLiftoffB(sl: i32, gl0: f64, gm0: f64, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
-  if (lg(sl, LF_C) != 0.0 || lg(sl, LF_COMPRESSING) != 0.0 || !(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
-  return liftoffStep(gl0, gm0, gl1, gm1, h, hNext);
+  return lg(sl, LF_C) != 0.0 || lg(sl, LF_COMPRESSING) != 0.0 ? hNext : liftoffStep(gl0, gm0, gl1, gm1, h, hNext);
 }
 
 function contactAfter(err: f64): i32 {

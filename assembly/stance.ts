@@ -22,7 +22,7 @@ import { rhs, setStance, setStiffness, setStanceParams } from "./rk/system";
 import { stepPair, stepQuad, laneEnd, END_FORCE, END_RADIUS, END_RATE, END_FRICTION, END_FACTOR } from "./rk/dopri5x2";
 import {
   EV_LIFTOFF, EV_MAX_COMPRESSION, EV_BODY_GROUND, EV_BACKWARD, EV_FORCE_PEAK,
-  eventValue, crosses, locateStance, refine, legForce, reachFactor, liftoffStep,
+  eventValue, crosses, locateStance, refine, legForce, reachFactor, liftoffStep, liftoffInReach,
 } from "./rk/events";
 import { tracing, traceStance } from "./trace";
 
@@ -161,15 +161,13 @@ function noteMaxCompression(s: Stance, px: f64, py: f64, t: f64): void {
 // step began at s.gl0, s.gm0): hNext, or shorter so as to end at the liftoff predicted by the
 // cubic through both ends, extrapolated past the step (liftoffStep, events.ts).
 @inline function towardLiftoff(s: Stance, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
-  // undamped, extending, the crossing within about two steps by the tangent
-  if (s.damped || s.compressing || !(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
-  return liftoffStep(s.gl0, s.gm0, gl1, gm1, h, hNext);
+  return s.damped || s.compressing ? hNext : liftoffStep(s.gl0, s.gm0, gl1, gm1, h, hNext);
 }
 
-// The step just taken ended within reach of the liftoff crossing, on either side (undamped, with
-// the maximum compression behind it at the step's start; r' > 0).
-@inline function liftoffInReach(s: Stance, gl1: f64, gm1: f64): bool {
-  return !s.damped && !s.compressing && gm1 > 0.0 && Math.abs(gl1) <= s.reach * gm1;
+// The step just taken ended within reach of the liftoff crossing (undamped, with the maximum
+// compression behind it at the step's start).
+@inline function inReach(s: Stance, gl1: f64, gm1: f64): bool {
+  return !s.damped && !s.compressing && liftoffInReach(gl1, gm1, s.reach);
 }
 
 // Start stance s (which must hold the stepper: useStance) from the touchdown state.
@@ -278,7 +276,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
   const gm1 = nrdot;
   const gg1 = -npy;
   const gb1 = -nvx;
-  const inReach = liftoffInReach(s, gl1, gm1);
+  const reached = inReach(s, gl1, gm1);
 
   // Earliest event that stops or splits the stance in this step.
   let stopTheta: f64 = 2.0;
@@ -291,7 +289,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
       stopEvent = EV_MAX_COMPRESSION;
     }
   }
-  if (inReach) {
+  if (reached) {
     // at the step's end, polished there (no location, no re-taken step)
     if (1.0 < stopTheta) { stopTheta = 1.0; stopEvent = EV_LIFTOFF; }
   } else if (crosses(EV_LIFTOFF, s.gl0, gl1)) {
@@ -345,7 +343,7 @@ export function stanceAfterStep(s: Stance, err: f64, deferEventStep: bool): i32 
   if (stopEvent == EV_BODY_GROUND) return finish(s, STATUS_BODY_HIT_GROUND, t + stopTheta * h);
   if (stopEvent == EV_BACKWARD) return finish(s, STATUS_FELL_BACKWARD, t + stopTheta * h);
 
-  if (inReach && stopEvent == EV_LIFTOFF) {
+  if (reached && stopEvent == EV_LIFTOFF) {
     // the step's end, short of the crossing or past it, is a state of the stance
     if (nforce > s.peakForce) s.peakForce = nforce;
     const fr = Math.abs(npx / npy);
@@ -449,7 +447,7 @@ export function stanceAfterLaneStep(s: Stance, err: f64, lane: i32): i32 {
   const gb1 = -load<f64>(b + OFF_YN, 16);
   if (s.compressing && crosses(EV_MAX_COMPRESSION, s.gm0, gm1)) return -2;
   if (crosses(EV_LIFTOFF, s.gl0, gl1) || crosses(EV_BODY_GROUND, s.gg0, gg1) || crosses(EV_BACKWARD, s.gb0, gb1)) return -2;
-  if (liftoffInReach(s, gl1, gm1)) return -2;
+  if (inReach(s, gl1, gm1)) return -2;
   if (s.steps == 0) s.firstH = h;
   s.steps++;
   const nforce = laneEnd(lane, END_FORCE);

@@ -175,8 +175,10 @@ export function reachFactor(rtol: f64): f64 {
 // The step after an accepted step of size h, cut to end at the liftoff predicted past it: the root
 // beyond the step of the cubic in theta through the step's ends (g = r - L0 at gl0, gl1; slopes
 // h gm0, h gm1 with r' at gm0, gm1), by Newton's method from the tangent's root; hNext when that
-// root is not before hNext. For gl1 < 0 < gm1.
+// root is not before hNext, or when the step did not end short of the crossing and extending
+// (gl1 < 0 < gm1) with the crossing within two steps by the tangent.
 @inline export function liftoffStep(gl0: f64, gm0: f64, gl1: f64, gm1: f64, h: f64, hNext: f64): f64 {
+  if (!(gl1 < 0.0 && gm1 > 0.0) || -gl1 > 2.0 * hNext * gm1) return hNext;
   // the cubic about theta = 1 + u: gl1 + d1 u + c2 u^2 / 2 + c3 u^3 / 6
   const d1 = h * gm1;
   const dg = gl0 - gl1;
@@ -191,6 +193,12 @@ export function reachFactor(rtol: f64): f64 {
   }
   const tau = u * h;
   return tau > 0.0 && tau < hNext ? tau : hNext;
+}
+
+// A step that ended with g = r - L0 at gl1 and r' at gm1 ended within `reach` of the liftoff
+// crossing, on either side, extending.
+@inline export function liftoffInReach(gl1: f64, gm1: f64, reach: f64): bool {
+  return gm1 > 0.0 && Math.abs(gl1) <= reach * gm1;
 }
 
 // The event value at theta of the last step, as eventValue(ev, YI) after dense(theta) gives it,

@@ -289,39 +289,35 @@ interface RowTally {
   sumSqSpeed: number;
 }
 
-/** tallyRows over a run's own summaries (count x S_SIZE), the same sums in the same order. */
-function tallySummaries(summaries: Float64Array, completedName: string, failures: Record<string, number>, runningAfter: number[]): RowTally {
+/**
+ * Survivors, failures by status (into `failures`), strides and error sums, in rollout order, over
+ * rows (from files or a run) or a run's own summaries (count x S_SIZE): the same sums either way.
+ */
+function tallyRows(
+  rows: readonly RobustnessRow[] | Float64Array,
+  completedName: string,
+  failures: Record<string, number>,
+  runningAfter: number[],
+): RowTally {
   let survived = 0;
   let stridesTotal = 0;
   let sumSqHeight = 0;
   let sumSqSpeed = 0;
-  for (let at = 0; at < summaries.length; at += L.S_SIZE) {
-    const code = summaries[at + L.S_STATUS];
-    const status = STATUS_NAMES[code] ?? `status_${code}`;
+  const add = (status: string, strides: number, height: number, speed: number) => {
     if (status === completedName) survived++;
     else failures[status]++;
-    const strides = summaries[at + L.S_STRIDES_COMPLETED];
     stridesTotal += strides;
-    sumSqHeight += summaries[at + L.S_SUM_SQ_HEIGHT_ERROR];
-    sumSqSpeed += summaries[at + L.S_SUM_SQ_SPEED_ERROR];
+    sumSqHeight += height;
+    sumSqSpeed += speed;
     if (strides > 0) runningAfter[strides - 1]++;
-  }
-  return { survived, stridesTotal, sumSqHeight, sumSqSpeed };
-}
-
-/** Survivors, failures by status (into `failures`), strides and error sums over the rows, in row order. */
-function tallyRows(rows: readonly RobustnessRow[], completedName: string, failures: Record<string, number>, runningAfter: number[]): RowTally {
-  let survived = 0;
-  let stridesTotal = 0;
-  let sumSqHeight = 0;
-  let sumSqSpeed = 0;
-  for (const row of rows) {
-    if (row.status === completedName) survived++;
-    else failures[row.status]++;
-    stridesTotal += row.strides_completed;
-    sumSqHeight += row.sum_sq_height_error_m2;
-    sumSqSpeed += row.sum_sq_speed_error_m2_per_s2;
-    if (row.strides_completed > 0) runningAfter[row.strides_completed - 1]++;
+  };
+  if (rows instanceof Float64Array) {
+    for (let at = 0; at < rows.length; at += L.S_SIZE) {
+      const code = rows[at + L.S_STATUS];
+      add(STATUS_NAMES[code] ?? `status_${code}`, rows[at + L.S_STRIDES_COMPLETED], rows[at + L.S_SUM_SQ_HEIGHT_ERROR], rows[at + L.S_SUM_SQ_SPEED_ERROR]);
+    }
+  } else {
+    for (const row of rows) add(row.status, row.strides_completed, row.sum_sq_height_error_m2, row.sum_sq_speed_error_m2_per_s2);
   }
   return { survived, stridesTotal, sumSqHeight, sumSqSpeed };
 }
@@ -347,8 +343,7 @@ export async function finishRobustness(
   const statuses = kindOf(scenario) === 'biped' ? L.STATUS_COUNT_BIPED : L.STATUS_COUNT_SLIP;
   for (let code = 0; code < statuses; code++) if (code !== L.STATUS_OK) failures[STATUS_NAMES[code]] = 0;
   const runningAfter = new Array<number>(o.strides).fill(0); // (strides), rollouts that completed > s strides
-  const { survived, stridesTotal, sumSqHeight, sumSqSpeed } =
-    rows instanceof Float64Array ? tallySummaries(rows, completedName, failures, runningAfter) : tallyRows(rows, completedName, failures, runningAfter);
+  const { survived, stridesTotal, sumSqHeight, sumSqSpeed } = tallyRows(rows, completedName, failures, runningAfter);
   // cumulative from the last stride back: running after stride s = completed more than s strides
   for (let s = o.strides - 2; s >= 0; s--) runningAfter[s] += runningAfter[s + 1];
   const n = o.rollouts;
