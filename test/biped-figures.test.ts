@@ -38,7 +38,7 @@ describe('two-leg figures', () => {
     for (let k = 0; k < w.total_N.length; k++) expect(w.total_N[k]).toBeCloseTo(w.vertical_N.left[k] + w.vertical_N.right[k], 9);
     let impulse = 0;
     for (let k = 1; k < w.time_s.length; k++) impulse += 0.5 * (w.total_N[k] + w.total_N[k - 1]) * (w.time_s[k] - w.time_s[k - 1]);
-    const T = sim.strides[2].stride_s;
+    const T = sim.strides[2].stride_s!;
     const mg = s.body.mass_kg * s.body.gravity_m_per_s2;
     // the window's samples end within one interval of the next section: 0.5 ms of weight at most
     expect(Math.abs(impulse - mg * T)).toBeLessThan(mg * 0.0015);

@@ -1,6 +1,6 @@
 // The two-leg spring-mass model ("model": "biped") against the single-leg model, closed forms,
 // laws and the published walking result. Every check value names its source beside it.
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pronk } from './pronk-cli.js';
@@ -256,6 +256,32 @@ describe('failures are named statuses', () => {
     const result = await simulateBiped(s);
     expect(result.outcome.status).toBe('failed');
     expect(['fell_backward', 'stalled', 'body_hit_ground']).toContain(result.outcome.reason);
+  });
+  it('a runner landing with no forward speed falls backward; the failing stride has no stride time or energy after, as null (not NaN)', async () => {
+    // found by the seeded fuzz suite (seed 20261203, case 1007): forward speed 1e-300 m/s
+    const s = biped({
+      start: { gait: 'running', apex_height_m: 0.58, forward_speed_m_per_s: 1e-300 },
+      body: { mass_kg: 28, leg_length_m: 0.6, leg_stiffness_N_per_m: 11_700 },
+      policy: { angle: { kind: 'fixed', attack_deg: 67.73 } },
+      strides: 6,
+    });
+    const result = await simulateBiped(s);
+    expect(result.outcome.reason).toBe('fell_backward');
+    expect(result.strides).toHaveLength(1);
+    const failing = result.strides[0];
+    expect(failing.touchdown_s.left).toBeGreaterThan(0);
+    expect(failing.stride_s).toBeNull();
+    expect(failing.energy_after_J).toBeNull();
+    expect(failing.energy_dissipated_J).toBeNull();
+    // through the CLI: --json carries the nulls, the text table shows '-' for the stride time
+    const file = join(mkdtempSync(join(tmpdir(), 'pronk-biped-')), 'fell.json');
+    writeFileSync(file, JSON.stringify({ ...s, body: { ...s.body, gravity_m_per_s2: 9.81 } }));
+    const json = await pronk(['simulate', file, '--json']);
+    expect(json.code).toBe(0);
+    expect(JSON.parse(json.stdout).strides[0]).toMatchObject({ stride_s: null, energy_dissipated_J: null });
+    const text = await pronk(['simulate', file]);
+    expect(text.code).toBe(0);
+    expect(text.stdout).not.toMatch(/NaN/);
   });
 });
 

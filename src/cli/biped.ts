@@ -79,7 +79,7 @@ export function renderBipedSimulation(s: BipedScenario, result: BipedSimulationR
       fixed(stride.attack_deg, 2),
       stride.section_to_touchdown_s === null ? '-' : fixed(stride.section_to_touchdown_s * 1000, 1),
       ds ? `${fixed(ds.start_s * 1000, 1)}-${Number.isFinite(ds.end_s) ? fixed(ds.end_s * 1000, 1) : '?'}` : '-',
-      fixed(stride.stride_s * 1000, 1),
+      stride.stride_s === null ? '-' : fixed(stride.stride_s * 1000, 1),
       fixed(stride.peak_leg_force_N.left, 1),
       fixed(stride.peak_leg_force_N.right, 1),
       fixed(stride.peak_vertical_force_N / weight, 2),

@@ -45,14 +45,16 @@ export interface BipedStride {
   liftoff_s: PerLeg<number | null>;
   /** The double-support interval, s since the section (null: none). */
   double_support: { start_s: number; end_s: number } | null;
-  stride_s: number;
+  /** Section to next section, s (null on a failing stride that never reached its next section). */
+  stride_s: number | null;
   peak_leg_force_N: PerLeg<number>;
   peak_vertical_force_N: number;
   max_compression_m: number;
   peak_friction_ratio: number;
   energy_before_J: number;
-  energy_after_J: number;
-  energy_dissipated_J: number;
+  /** Energy at the next section and the damper's work over the stride, J (null on a failing stride). */
+  energy_after_J: number | null;
+  energy_dissipated_J: number | null;
   integrator_steps: number;
   integrator_rejections: number;
 }
@@ -140,14 +142,14 @@ export async function simulateBiped(
       touchdown_s: { left: orNull(td0), right: orNull(td1) },
       liftoff_s: { left: orNull(r(L.R_LIFTOFF_TIME_0)), right: orNull(r(L.R_LIFTOFF_TIME_1)) },
       double_support: Number.isFinite(dsStart) ? { start_s: dsStart, end_s: r(L.R_DOUBLE_END) } : null,
-      stride_s: r(L.R_STRIDE_TIME),
+      stride_s: orNull(r(L.R_STRIDE_TIME)),
       peak_leg_force_N: { left: r(L.R_PEAK_FORCE_0), right: r(L.R_PEAK_FORCE_1) },
       peak_vertical_force_N: r(L.R_PEAK_VERTICAL_FORCE),
       max_compression_m: r(L.R_MAX_COMPRESSION),
       peak_friction_ratio: r(L.R_PEAK_FRICTION),
       energy_before_J: r(L.R_ENERGY_BEFORE),
-      energy_after_J: r(L.R_ENERGY_AFTER),
-      energy_dissipated_J: r(L.R_DISSIPATED),
+      energy_after_J: orNull(r(L.R_ENERGY_AFTER)),
+      energy_dissipated_J: orNull(r(L.R_DISSIPATED)),
       integrator_steps: r(L.R_STEPS),
       integrator_rejections: r(L.R_REJECTED),
     });
