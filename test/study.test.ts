@@ -117,6 +117,18 @@ describe('valid studies', () => {
     expect(parseStudy(structuredClone(study))).toEqual(study);
   });
 
+  it('a tracking target taken from any valid scenario start re-validates (found by the fuzz suite, seed 7331, case 2235)', () => {
+    // the scenario takes apex heights to 1e4 m and speeds to 1e3 m/s; the defaulted target is the
+    // start, so the study's target bounds must be at least as wide or a worker refuses the study
+    for (const start of [{ apex_height_m: 4500, forward_speed_m_per_s: 3 }, { apex_height_m: 1, forward_speed_m_per_s: 999 }]) {
+      const base = edited(['scenario', 'start'], start);
+      const study = parseStudy(edited(['objective'], { terms: [{ kind: 'tracking', terrain: 'random_heights', sigma_m: 0.005, rollouts: 4, strides: 4, height_scale_m: 0.01, speed_scale_m_per_s: 0.1 }] }, base));
+      const term = study.objective.terms[0] as { target_apex_height_m: number; target_forward_speed_m_per_s: number };
+      expect([term.target_apex_height_m, term.target_forward_speed_m_per_s]).toEqual([start.apex_height_m, start.forward_speed_m_per_s]);
+      expect(parseStudy(JSON.parse(JSON.stringify(study)))).toEqual(study);
+    }
+  });
+
   it('reads a scenario_file relative to the study file, not the working directory', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'pronk-study-'));
     mkdirSync(join(dir, 'robots'));
@@ -277,9 +289,9 @@ describe('bad studies name the field', () => {
   it.each([
     [['objective', 'terms', 1, 'fall_penalty'], 1e6, 'objective.terms[1].fall_penalty', /a number > 0 and <= 1000/],
     [['objective', 'terms', 1, 'height_scale_m'], 1e-300, 'objective.terms[1].height_scale_m', /a number from 1e-9 to 1000 \(m\), found 1e-300/],
-    [['objective', 'terms', 1, 'target_apex_height_m'], 1e300, 'objective.terms[1].target_apex_height_m', /a number from -1000 to 1000 \(m\)/],
+    [['objective', 'terms', 1, 'target_apex_height_m'], 1e300, 'objective.terms[1].target_apex_height_m', /a number from -10000 to 10000 \(m\)/],
     [['objective', 'terms', 0, 'sigma_m'], 1e300, 'objective.terms[0].sigma_m', /a number from 0 to 10 \(m\), found 1e\+300/],
-    [['objective', 'terms', 2, 'heights', 'high_m'], 1e308, 'objective.terms[2].heights.high_m', /a number from -1000 to 1000 \(m\)/],
+    [['objective', 'terms', 2, 'heights', 'high_m'], 1e308, 'objective.terms[2].heights.high_m', /a number from -10000 to 10000 \(m\)/],
     [['free_parameters', 0, 'upper'], 1e300, 'free_parameters[0].upper', /a number from -1000000000 to 1000000000/],
     [['constraints', 'max_leg_force_N'], 5e-324, 'constraints.max_leg_force_N', /a number from 0\.001 to 1000000000 \(N\), found 5e-324/],
     [['constraints', 'friction_coefficient'], 1e300, 'constraints.friction_coefficient', /a number from 0\.001 to 100/],

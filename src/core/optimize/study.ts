@@ -77,7 +77,7 @@ import { z } from 'zod';
 import { METHODS, type MethodName } from './nlopt.js';
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from '../errors.js';
 import { validateWith } from '../validation.js';
-import { parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
+import { BOUNDS, parseScenario, readScenarioFile, schemaReference, type Scenario } from '../scenario.js';
 import { landingLegLength } from '../model.js';
 import { requireKind } from '../models/kind.js';
 import { LATERAL_PARAMETERS, OPTIMIZE_KINDS, kindIssues, parameterRoots } from './kinds.js';
@@ -100,9 +100,10 @@ export const MAX_FALL_PENALTY = 1000;
 /** Tracking scales (height_scale_m, speed_scale_m_per_s), in their units. */
 export const MIN_TRACKING_SCALE = 1e-9;
 export const MAX_TRACKING_SCALE = 1000;
-/** Targets, basin axes: apex heights within ±MAX_APEX_HEIGHT_M, forward speeds up to MAX_SPEED_M_PER_S. */
-export const MAX_APEX_HEIGHT_M = 1000;
-export const MAX_SPEED_M_PER_S = 1000;
+/** Targets, basin axes: apex heights within ±MAX_APEX_HEIGHT_M, forward speeds up to MAX_SPEED_M_PER_S:
+ *  the scenario's own bounds, since a tracking term's target defaults to the scenario's start. */
+export const MAX_APEX_HEIGHT_M = BOUNDS.height_m.high;
+export const MAX_SPEED_M_PER_S = BOUNDS.forward_speed_m_per_s.high;
 /** Random-terrain sigma of a Monte Carlo term, m. */
 export const MAX_TERRAIN_SIGMA_M = 10;
 /** The quadratic penalty's weight. */
