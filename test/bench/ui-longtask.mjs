@@ -135,7 +135,10 @@ export async function benchLongTasks(log = console.log) {
           : `  main thread: ${r.during.length} tasks over 50 ms, longest ${worst.toFixed(0)} ms (target: none); the longest: ${top(r.during)} ms`,
       );
       log(`  first load of this page: ${r.loading.length} long tasks, longest ${longest(r.loading).toFixed(0)} ms`);
-      goal(`(f) workbench: longest task, ${job.short}`, 'none > 50 ms', `${worst.toFixed(0)} ms longest, ${r.during.length} over 50 ms`, worst <= 50);
+      // Chromium reports a long task from 50 ms on, its duration in whole ms: one of 50 ms is
+      // listed but not over 50 ms; the count and the verdict use the same test
+      const over = r.during.filter((t) => t.duration > 50).length;
+      goal(`(f) workbench: longest task, ${job.short}`, 'none > 50 ms', `${worst.toFixed(0)} ms longest, ${over} over 50 ms`, over === 0);
       out.push({ job: job.short, longest_ms: worst, long_tasks: r.during.length, seconds: r.seconds, first_load_longest_ms: longest(r.loading) });
     }
   } finally {
