@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { described, jsonText } from '../src/core/json-output.js';
 import { pronk } from './pronk-cli.js';
 import {
+  CHUNK_ROLLOUTS,
   canonicalRobustnessOptions,
   finishRobustness,
   robustnessModel,
@@ -19,7 +20,7 @@ import { loadEngine, rolloutInput } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
 import { joinShards, shardRange, type PartialResult } from '../src/core/shard.js';
 import { wilsonInterval } from '../src/core/stats.js';
-import { closeWorkerPool } from '../src/worker/pool.js';
+import { CancelledError, closeWorkerPool } from '../src/worker/pool.js';
 import { L, scenario } from './helpers.js';
 
 afterAll(() => closeWorkerPool());
@@ -47,6 +48,24 @@ describe('determinism', () => {
     expect(one.survived).toBeGreaterThan(0);
     expect(one.survived).toBeLessThan(one.rollouts);
     for (const workers of [2, 4]) expect(bits(await terrainRobustness(fixed68, options, { workers }))).toBe(bits(one));
+  });
+
+  it('a run in this thread, tallied chunk by chunk, equals the tally of all its rows and a run on workers, bit for bit', async () => {
+    // more rollouts than a chunk, the last chunk partial: the sums are added in rollout order either way
+    const many: RobustnessOptions = { rollouts: 2 * CHUNK_ROLLOUTS + 77, sigma_m: 0.012, seed: 11, strides: 5 };
+    const progress: [number, number][] = [];
+    const chunked = await terrainRobustness(fixed68, many, { workers: 1, onProgress: (done, total) => progress.push([done, total]) });
+    expect(chunked.survived).toBeGreaterThan(0);
+    expect(chunked.survived).toBeLessThan(chunked.rollouts);
+    const rows = await robustnessRows(fixed68, many, undefined, { workers: 1 });
+    expect(bits(chunked)).toBe(bits(await finishRobustness(fixed68, many, rows)));
+    expect(bits(await terrainRobustness(fixed68, many, { workers: 2 }))).toBe(bits(chunked));
+    const total = many.rollouts!;
+    expect(progress).toEqual([[CHUNK_ROLLOUTS, total], [2 * CHUNK_ROLLOUTS, total], [total, total]]);
+    // a cancel between chunks ends the run with the pool's CancelledError
+    const controller = new AbortController();
+    const cancelled = terrainRobustness(fixed68, many, { workers: 1, signal: controller.signal, onProgress: () => controller.abort() });
+    await expect(cancelled).rejects.toBeInstanceOf(CancelledError);
   });
 
   it('3 shards joined (joinShards + finishRobustness) equal one run exactly', async () => {

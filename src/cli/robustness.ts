@@ -111,7 +111,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
   const file = positionals[0];
   const [outFile, plotFile] = await checkOutputs([outputRequest('--out', out), outputRequest('--plot', plot)], [scenarioInput(file)], { source: SOURCE });
   const scenario = await scenarioArgument(file, io, 'robustness');
-  const { canonicalRobustnessOptions, finishRobustness, robustnessRows, robustnessSummaries } = await import('../core/analysis/robustness.js');
+  const { canonicalRobustnessOptions, robustnessRows, terrainRobustness } = await import('../core/analysis/robustness.js');
   let canonical: CanonicalRobustnessOptions;
   try {
     canonical = canonicalRobustnessOptions(scenario, options, FLAG_NAMES);
@@ -148,8 +148,7 @@ async function runRobustness({ values, positionals }: ParsedCommandLine, io: Cli
     return 0;
   }
 
-  const summaries = await robustnessSummaries(scenario, canonical, undefined, execution).finally(progress.done);
-  const result = await finishRobustness(scenario, canonical, summaries);
+  const result = await terrainRobustness(scenario, canonical, execution).finally(progress.done);
   const text = json ? robustnessJson(result, scenario) : renderRobustness(scenario, result);
   await writeText(io, outFile, text, 'robustness');
   if (plotFile !== undefined) await writePlotFile(io, 'robustness', plotFile, result);
