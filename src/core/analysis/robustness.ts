@@ -10,6 +10,7 @@
 import * as L from '../../../assembly/layout.js';
 import { type BatchRequest, type BatchResult, type ModelBlock, loadEngine } from '../engine.js';
 import { InputError, describeFound, type InputIssue } from '../errors.js';
+import { eachInTurn } from '../in-turn.js';
 import { accuracyReport, type AccuracyReport } from '../accuracy.js';
 import { calibratedScenario, type CalibrationRollouts } from '../accuracy-calibration.js';
 import { buildModel, startInput, STATUS_NAMES } from '../model.js';
@@ -353,7 +354,7 @@ export async function finishRobustness(
 /** The statistics of a whole run's tally. */
 async function resultOf(scenario: Scenario, options: RobustnessOptions, o: CanonicalRobustnessOptions, t: Tally): Promise<RobustnessResult> {
   const { survived, stridesTotal, sumSqHeight, sumSqSpeed, failures } = t;
-  const runningAfter = t.runningAfter.slice();
+  const runningAfter = t.runningAfter;
   // cumulative from the last stride back: running after stride s = completed more than s strides
   for (let s = o.strides - 2; s >= 0; s--) runningAfter[s] += runningAfter[s + 1];
   const n = o.rollouts;
@@ -422,22 +423,19 @@ export async function terrainRobustness(
   const inputs = new Float64Array(size * L.I_SIZE);
   const summaries = new Float64Array(size * L.S_SIZE);
   const row = startInput(run); // each rollout's row differs only in its stream
-  for (let start = 0; start < o.rollouts; start += size) {
-    if (execution.signal?.aborted) throw new (await import('../../worker/pool.js')).CancelledError();
+  const starts = Array.from({ length: Math.ceil(o.rollouts / size) }, (_, i) => i * size);
+  await eachInTurn(starts, execution.signal, (start) => {
     const count = Math.min(size, o.rollouts - start);
     fillInputs(inputs, row, start, count);
     const batch = engine.runBatch({ model, inputs: inputs.subarray(0, count * L.I_SIZE), strides: o.strides }, { summaries, offset: 0 });
     addToTally(t, batch.summaries);
     execution.onProgress?.(start + count, o.rollouts);
-    if (start + count < o.rollouts) await nextMacrotask(); // let a cancel in
-  }
+  });
   return resultOf(scenario, options, o, t);
 }
 
 /** Rollouts a run in this thread takes at a time (terrainRobustness). */
 export const CHUNK_ROLLOUTS = 1024;
-
-const nextMacrotask = () => new Promise<void>((resolve) => (typeof setImmediate === 'function' ? setImmediate(resolve) : setTimeout(resolve, 0)));
 
 // Rows may come from files (joined shards): check them before trusting them.
 function checkRows(rows: readonly RobustnessRow[], o: CanonicalRobustnessOptions): void {
