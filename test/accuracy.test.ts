@@ -171,20 +171,6 @@ describe('integrator.apex_accuracy_m', () => {
     }
   });
 
-  it('refuses it on a two-leg scenario (not calibrated there)', async () => {
-    const { readFileSync } = await import('node:fs');
-    const biped = JSON.parse(readFileSync(new URL('../scenarios/demo-biped.json', import.meta.url), 'utf8'));
-    let caught: unknown;
-    try {
-      parseScenario({ ...biped, integrator: { ...(biped.integrator ?? {}), apex_accuracy_m: 1e-8 } });
-    } catch (e) {
-      caught = e;
-    }
-    expect(caught).toBeInstanceOf(InputError);
-    expect((caught as InputError).issues.map((i) => i.path)).toEqual(['integrator.apex_accuracy_m']);
-    expect(() => parseScenario(biped)).not.toThrow();
-  });
-
   it('a study with a free body parameter re-derives the tolerances for each candidate', async () => {
     const engine = await loadEngine();
     const study = parseStudy({

@@ -26,6 +26,7 @@
 import * as L from '../../assembly/layout.js';
 import { MAX_ACCURACY_RTOL } from './accuracy.js';
 import { loadEngine, rolloutInput, type Engine, type ModelBlock } from './engine.js';
+import { isBiped, legParameters } from './models/biped.js';
 import type { Scenario } from './scenario.js';
 
 /** The calibration aims at this fraction of the requested accuracy: room for strides it did not see. */
@@ -80,7 +81,7 @@ function oneStrideModel(model: ModelBlock, ground: number): ModelBlock {
 }
 
 /**
- * The calibrated tolerances of a single-leg scenario with integrator.apex_accuracy_m, on the given
+ * The calibrated tolerances of a scenario (single-leg or two-leg) with integrator.apex_accuracy_m, on the given
  * rollouts; null without the option, or when the reference completes fewer than
  * CALIBRATION_MIN_STRIDES strides (then the scenario's parse-time tolerances hold).
  */
@@ -90,7 +91,9 @@ export function calibrateTolerances(engine: Engine, scenario: Scenario, run: Cal
   const key = [JSON.stringify(scenario), run.key, run.strides, Array.from(run.model.fields).join(','), Array.from(run.inputs).join(',')].join('\n');
   if (cache.has(key)) return cache.get(key) ?? null;
 
-  const leg = scenario.body.leg_length_m;
+  const biped = isBiped(scenario);
+  // the two-leg model: atol = rtol·L0 of its longer leg, as the parse-time mapping (scenario.ts)
+  const leg = biped ? Math.max(...legParameters(scenario).map((l) => l.length_m)) : scenario.body.leg_length_m;
   const rtol0 = scenario.integrator.relative_tolerance;
   const atol0 = scenario.integrator.absolute_tolerance;
   const ref = engine.runBatch({
@@ -100,23 +103,35 @@ export function calibrateTolerances(engine: Engine, scenario: Scenario, run: Cal
     records: true,
   });
   const records = ref.records as Float64Array;
-  const strides: { height: number; speed: number; ground: number; next: number }[] = [];
+  // Each completed stride, restarted alone from its apex (the two-leg model: its section). A
+  // walking stride starts with its stance foot on the ground the previous stride landed on (the
+  // first on ground 0), and a restart stands that foot on ground 0: its heights are taken
+  // relative to that foot's ground (`shift`; the dynamics are the same at any height).
+  const strides: { input: Float64Array; shift: number; ground: number; next: number }[] = [];
   for (let i = 0; i < records.length / L.R_SIZE; i++) {
     const at = (f: number) => records[i * L.R_SIZE + f];
-    if (at(L.R_STATUS) === L.STATUS_OK && Number.isFinite(at(L.R_NEXT_APEX_HEIGHT))) {
-      strides.push({ height: at(L.R_APEX_HEIGHT), speed: at(L.R_APEX_SPEED), ground: at(L.R_GROUND), next: at(L.R_NEXT_APEX_HEIGHT) });
+    if (!(at(L.R_STATUS) === L.STATUS_OK && Number.isFinite(at(L.R_NEXT_APEX_HEIGHT)))) continue;
+    const walking = biped && at(L.R_SECTION_KIND) === L.SECTION_SINGLE_SUPPORT_APEX;
+    const stride = i % run.strides;
+    const shift = walking && stride > 0 ? records[(i - 1) * L.R_SIZE + L.R_GROUND] : 0;
+    const input = rolloutInput(at(L.R_APEX_HEIGHT) - shift, at(L.R_APEX_SPEED), 0, strides.length);
+    if (biped) {
+      input[L.I_SECTION_KIND] = at(L.R_SECTION_KIND);
+      input[L.I_SECTION_OFFSET] = walking ? at(L.R_SECTION_OFFSET) : 0;
+      input[L.I_SECTION_LEG] = at(L.R_SECTION_LEG);
     }
+    strides.push({ input, shift, ground: at(L.R_GROUND), next: at(L.R_NEXT_APEX_HEIGHT) });
   }
 
   const inputs = new Float64Array(strides.length * L.I_SIZE);
-  strides.forEach((st, i) => inputs.set(rolloutInput(st.height, st.speed, 0, i), i * L.I_SIZE));
+  strides.forEach((st, i) => inputs.set(st.input, i * L.I_SIZE));
   const errorAt = (rtol: number, atol: number): number => {
     const base = withTolerances(run.model, rtol, atol);
-    const b = engine.runBatch({ model: strides.map((st) => oneStrideModel(base, st.ground)), inputs, strides: 1, records: true });
+    const b = engine.runBatch({ model: strides.map((st) => oneStrideModel(base, st.ground - st.shift)), inputs, strides: 1, records: true });
     const got = b.records as Float64Array;
     let e = 0;
     for (let i = 0; i < strides.length; i++) {
-      const next = got[i * L.R_SIZE + L.R_NEXT_APEX_HEIGHT];
+      const next = got[i * L.R_SIZE + L.R_NEXT_APEX_HEIGHT] + strides[i].shift;
       e = Math.max(e, Number.isFinite(next) ? Math.abs(next - strides[i].next) : Infinity);
     }
     return e;

@@ -33,6 +33,29 @@ export function gaitLengthScaleM(legLengthM: number, speedMPerS: number, gravity
   return legLengthM + (speedMPerS * speedMPerS) / gravityMPerS2;
 }
 
+/**
+ * The two-leg model's length scale, m: S = L0 + v²/g + 2·max(0, h − L0), with L0 the longer leg's
+ * rest length, v the start's forward speed and h its section height. The last term is the
+ * vertical speed a high flight apex brings to touchdown (v_y²/g = 2 (h − y_touchdown)): a hop on
+ * both legs from 2 L0 has v = 0 and errors like a 3 L0 gait. Measured as for the single-leg
+ * runner (one-stride section height errors against rtol 1e-13, atol = rtol·L0 from 1e-11 to 1e-5)
+ * over walkers at their fixed points (80 kg / 1 m at 16, 20 and 24 kN/m; 28 kg / 0.6 m; 2 kg /
+ * 0.15 m; 50 t / 4 m; 1 g / 5 mm; on the Moon; damped), runners (fixed angle, retraction, damped)
+ * and hops on both legs from 1.1 to 2 L0: at most 1.7·S·rtol, within the mapping's factor 4
+ * (APEX_ERROR_FACTOR); test/accuracy.test.ts checks the achieved error on further two-leg gaits.
+ */
+export function bipedGaitLengthScaleM(legLengthM: number, speedMPerS: number, heightM: number, gravityMPerS2: number): number {
+  return gaitLengthScaleM(legLengthM, speedMPerS, gravityMPerS2) + 2 * Math.max(0, heightM - legLengthM);
+}
+
+/** The tolerances for an apex accuracy (m) on a gait of length scale S (m) and leg length L0 (m); null below the finest. */
+export function tolerancesForScale(accuracyM: number, scaleM: number, legLengthM: number): AccuracyTolerances | null {
+  const rtol = rawRelativeTolerance(accuracyM, scaleM);
+  if (!(rtol >= MIN_ACCURACY_RTOL)) return null;
+  const relative = Math.min(rtol, MAX_ACCURACY_RTOL);
+  return { relative_tolerance: relative, absolute_tolerance: relative * legLengthM };
+}
+
 /** The relative tolerance that the mapping would pick, before the limits (for messages). */
 export function rawRelativeTolerance(accuracyM: number, scaleM: number): number {
   return accuracyM / (APEX_ERROR_FACTOR * scaleM);
@@ -50,10 +73,7 @@ export function tolerancesForApexAccuracy(
   speedMPerS: number,
   gravityMPerS2: number,
 ): AccuracyTolerances | null {
-  const rtol = rawRelativeTolerance(accuracyM, gaitLengthScaleM(legLengthM, speedMPerS, gravityMPerS2));
-  if (!(rtol >= MIN_ACCURACY_RTOL)) return null;
-  const relative = Math.min(rtol, MAX_ACCURACY_RTOL);
-  return { relative_tolerance: relative, absolute_tolerance: relative * legLengthM };
+  return tolerancesForScale(accuracyM, gaitLengthScaleM(legLengthM, speedMPerS, gravityMPerS2), legLengthM);
 }
 
 /** What a result states about its integrator when the scenario asked for an apex accuracy. */
@@ -79,6 +99,21 @@ export const CALIBRATED_ACCURACY_DEFINITION =
   'the first rollouts rerun from their apexes of a run at rtol 1e-13; calibrated_apex_error_m: the largest of those errors at the tolerances used, ' +
   'over calibration_strides strides';
 
+// The two-leg model's words: its section (the apex of a flight, or of single support in walking)
+// and its length scale (bipedGaitLengthScaleM).
+const BIPED_SECTION =
+  'apex_accuracy_m: the requested accuracy of one stride\'s section height (the flight apex of a running stride, the single-support apex ' +
+  'of a walking one) against a tight-tolerance run from the same section; ';
+const BIPED_MAPPING = 'accuracy / (4 (L0 + v^2/g + 2 max(0, h - L0))), L0 the longer leg, v and h the start\'s speed and height';
+
+export const BIPED_ACCURACY_DEFINITION = `${BIPED_SECTION}relative_tolerance and absolute_tolerance: the integrator tolerances it gives for this gait (${BIPED_MAPPING}; and that times L0)`;
+
+export const BIPED_CALIBRATED_ACCURACY_DEFINITION =
+  `${BIPED_SECTION}relative_tolerance and absolute_tolerance: the tolerances used, calibrated on this run's own gait: the loosest (from ${BIPED_MAPPING}, ` +
+  'upward by factors of 10^(1/4), atol = rtol L0) whose one-stride section height errors, and every tighter one\'s, stay within half the accuracy ' +
+  'over the strides of the first rollouts rerun from their sections of a run at rtol 1e-13; calibrated_apex_error_m: the largest of those errors ' +
+  'at the tolerances used, over calibration_strides strides';
+
 /** `{ integrator: ... }` to spread into a result when the scenario set integrator.apex_accuracy_m; `{}` otherwise (outputs unchanged). */
 export function accuracyReport(
   integrator: {
@@ -87,8 +122,10 @@ export function accuracyReport(
     absolute_tolerance: number;
   },
   calibration?: { relative_tolerance: number; absolute_tolerance: number; calibrated_apex_error_m: number; calibration_strides: number } | null,
+  model: 'slip' | 'biped' = 'slip',
 ): { integrator?: AccuracyReport } {
   if (integrator.apex_accuracy_m === undefined) return {};
+  const biped = model === 'biped';
   if (calibration) {
     return {
       integrator: {
@@ -97,7 +134,7 @@ export function accuracyReport(
         absolute_tolerance: calibration.absolute_tolerance,
         calibrated_apex_error_m: calibration.calibrated_apex_error_m,
         calibration_strides: calibration.calibration_strides,
-        definition: CALIBRATED_ACCURACY_DEFINITION,
+        definition: biped ? BIPED_CALIBRATED_ACCURACY_DEFINITION : CALIBRATED_ACCURACY_DEFINITION,
       },
     };
   }
@@ -106,7 +143,7 @@ export function accuracyReport(
       apex_accuracy_m: integrator.apex_accuracy_m,
       relative_tolerance: integrator.relative_tolerance,
       absolute_tolerance: integrator.absolute_tolerance,
-      definition: ACCURACY_DEFINITION,
+      definition: biped ? BIPED_ACCURACY_DEFINITION : ACCURACY_DEFINITION,
     },
   };
 }

@@ -7,9 +7,9 @@ import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
-import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForApexAccuracy } from './accuracy.js';
+import { bipedGaitLengthScaleM, finestApexAccuracyM, gaitLengthScaleM, tolerancesForScale } from './accuracy.js';
 import { type ModelKind, modelKindOf, refuseModelKind } from './models/kind.js';
-import { parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
+import { legParameters, parseBipedScenario, type BipedLegs, type BipedScenario, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
@@ -449,20 +449,7 @@ export function parseScenario(
   if (kind === 'lateral') refuseModelKind(options.command ?? 'this command', options.supported ?? ['slip', 'biped'], kind, options.source);
   if (kind === 'biped') {
     const biped = parseBipedScenario(value, options);
-    // the accuracy-to-tolerance mapping (accuracy.ts) is calibrated on the single-leg runner only
-    const accuracy = (biped as { integrator?: { apex_accuracy_m?: number } }).integrator?.apex_accuracy_m;
-    if (accuracy !== undefined) {
-      throw new InputError(
-        [
-          {
-            path: 'integrator.apex_accuracy_m',
-            expected: 'no value for a "model": "biped" scenario (calibrated for the single-leg runner only; set relative_tolerance and absolute_tolerance)',
-            found: describeFound(accuracy),
-          },
-        ],
-        options,
-      );
-    }
+    if (biped.integrator.apex_accuracy_m !== undefined) applyApexAccuracy(biped, value, options);
     return biped;
   }
   if (kind === 'slip' && typeof value === 'object' && value !== null && 'model' in value) {
@@ -483,14 +470,20 @@ function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source
   const accuracy = scenario.integrator.apex_accuracy_m as number;
   const { body, start } = scenario;
   const gravity = body.gravity_m_per_s2 ?? STANDARD_GRAVITY_M_PER_S2;
-  const tolerances = tolerancesForApexAccuracy(accuracy, body.leg_length_m, start.forward_speed_m_per_s, gravity);
+  // the two-leg model: the longer leg, and the start's height (a high flight apex: accuracy.ts)
+  const biped = scenario.model === 'biped';
+  const leg = biped ? Math.max(...legParameters(scenario as BipedScenario).map((l) => l.length_m)) : body.leg_length_m;
+  const scale = biped
+    ? bipedGaitLengthScaleM(leg, start.forward_speed_m_per_s, start.apex_height_m, gravity)
+    : gaitLengthScaleM(leg, start.forward_speed_m_per_s, gravity);
+  const tolerances = tolerancesForScale(accuracy, scale, leg);
   if (!tolerances) {
-    const finest = finestApexAccuracyM(gaitLengthScaleM(body.leg_length_m, start.forward_speed_m_per_s, gravity));
+    const finest = finestApexAccuracyM(scale);
     throw new InputError(
       [
         {
           path: 'integrator.apex_accuracy_m',
-          expected: `at least ${showNumber(finest)} m for this leg length and start speed (the finest apex accuracy the integrator reaches)`,
+          expected: `at least ${showNumber(finest)} m for ${biped ? 'these legs and this start' : 'this leg length and start speed'} (the finest apex accuracy the integrator reaches)`,
           found: describeFound(accuracy),
         },
       ],

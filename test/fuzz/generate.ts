@@ -80,6 +80,8 @@ function bipedScenario(random: Random): Record<string, Json> {
   const angle = (scenario.policy as Record<string, Json>).angle as Record<string, Json>;
   if (typeof angle.attack_deg === 'number') angle.attack_deg += random.uniform(-0.5, 0.5);
   scenario.strides = random.int(1, 8);
+  // an apex accuracy instead of tolerances, now and then one finer than the integrator reaches
+  if (random.chance(0.25)) scenario.integrator = { apex_accuracy_m: random.pick([1e-3, 1e-8, 1e-11, 1e-14]) };
   return scenario;
 }
 
@@ -143,6 +145,7 @@ function gaitScenario(random: Random, command: string): Record<string, Json> {
   // a start far above the leg (a long fall: the step-down search and the return map's range are bounded by the physics)
   if (random.chance(0.04)) (scenario.start as Record<string, Json>).apex_height_m = random.pick([100, 1e4]) * base.leg * scale;
   if (random.chance(0.5)) scenario.integrator = { relative_tolerance: random.pick([1e-8, 1e-10, 1e-6]), absolute_tolerance: random.pick([1e-10, 1e-12]) * scale };
+  else if (random.chance(0.15)) scenario.integrator = { apex_accuracy_m: random.pick([1e-3, 1e-8, 1e-11, 1e-14]) * scale };
   if (random.chance(0.2)) scenario.name = random.pick(['Fennick-2 on the Orlov quarry ramp', 'ünïcode ☃ robot', '']);
   if (random.chance(0.05)) scenario.$schema = 'https://example.invalid/scenario.schema.json';
   return scenario;

@@ -379,7 +379,7 @@ async function resultOf(scenario: Scenario, options: RobustnessOptions, o: Canon
       ...(kindOf(scenario) === 'biped' ? { gait: scenario.start.gait, offset_m: scenario.start.offset_m, leg: scenario.start.leg } : {}),
     },
     target: { apex_height_m: o.target_height_m, forward_speed_m_per_s: o.target_speed_m_per_s },
-    ...accuracyReport(scenario.integrator, (await robustnessScenario(scenario, options)).calibration),
+    ...accuracyReport(scenario.integrator, (await robustnessScenario(scenario, options)).calibration, kindOf(scenario) === 'biped' ? 'biped' : 'slip'),
     strides_completed_total: stridesTotal,
     apex_height_rms_m: stridesTotal > 0 ? Math.sqrt(sumSqHeight / stridesTotal) : null,
     forward_speed_rms_m_per_s: stridesTotal > 0 ? Math.sqrt(sumSqSpeed / stridesTotal) : null,

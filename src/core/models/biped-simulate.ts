@@ -4,6 +4,7 @@
 // in degrees; times inside a stride are seconds since that stride's section.
 
 import * as L from '../../../assembly/layout.js';
+import { accuracyReport, type AccuracyReport } from '../accuracy.js';
 import { loadEngine } from '../engine.js';
 import { buildModel, STATUS_NAMES, STATUS_TEXT } from '../model.js';
 import { SAFETY_CAUTION } from '../safety.js';
@@ -79,6 +80,8 @@ export interface BipedSimulationResult {
   /** Mechanical energy at the start section, J (springs included; potential from height 0). */
   energy_J: number;
   trajectory?: BipedTrajectory;
+  /** Only when the scenario set integrator.apex_accuracy_m: the accuracy and the tolerances it gave. */
+  integrator?: AccuracyReport;
   caution: string;
 }
 
@@ -177,6 +180,7 @@ export async function simulateBiped(
     },
     energy_J: sectionEnergy(scenario, start),
     ...(trajectory ? { trajectory } : {}),
+    ...accuracyReport(scenario.integrator, null, 'biped'),
     caution: SAFETY_CAUTION,
   };
 }
