@@ -72,6 +72,14 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await expect.poll(() => t.describedBy('Left leg: stiffness factor')).toBe('expected a number from 1e-3 to 1000 (factor on the stiffness policy), found 0');
     await t.setField('Left leg: stiffness factor', '');
     await expect.poll(async () => (await page.getByTestId('scenario-check').textContent())?.includes('Scenario valid')).toBe(true);
+    // an apex accuracy instead of the tolerances: a tolerance set beside it is flagged beside that field
+    await page.locator('summary', { hasText: 'Integrator' }).click();
+    await t.setField('Apex accuracy', '1e-8');
+    await t.setField('Relative tolerance', '1e-9');
+    await expect.poll(() => t.describedBy('Relative tolerance')).toMatch(/^expected no value beside integrator\.apex_accuracy_m \(which gives [\d.e-]+ here\), or that value, found 1e-9$/);
+    await t.setField('Relative tolerance', '');
+    await expect.poll(async () => (await page.getByTestId('scenario-check').textContent())?.includes('Scenario valid')).toBe(true);
+    await t.setField('Apex accuracy', '');
 
     const scene = await t.option('figure-biped-scene');
     const ids = (scene.series as { id: string }[]).map((s) => s.id);

@@ -150,6 +150,23 @@ describe('what each kind runs', () => {
     expect(lostBySwitch('lateral', biped)).toEqual(expect.arrayContaining(['terrain', 'start.gait', 'start.apex_height_m', 'policy.angle']));
     expect(lostBySwitch('biped', lateral)).toEqual(expect.arrayContaining(['body.moment_of_inertia_kg_m2', 'start.heading_to_body_deg']));
   });
+
+  it('an apex accuracy goes with the switch to the lateral model (which has none) and stays between the other two', () => {
+    const slip = {
+      body: { mass_kg: 9, leg_length_m: 0.45, leg_stiffness_N_per_m: 5000 },
+      start: { apex_height_m: 0.5, forward_speed_m_per_s: 2 },
+      policy: { angle: { kind: 'fixed', attack_deg: 66 }, stiffness: { kind: 'constant' } },
+      terrain: { kind: 'flat' },
+      strides: 10,
+      integrator: { apex_accuracy_m: 1e-8 },
+    };
+    const biped = draftOfKind('biped', slip);
+    expect(biped.integrator).toEqual({ apex_accuracy_m: 1e-8 });
+    expect(lostBySwitch('biped', slip)).not.toContain('integrator.apex_accuracy_m');
+    expect(() => parseScenario(biped)).not.toThrow();
+    expect(lostBySwitch('lateral', slip)).toContain('integrator.apex_accuracy_m');
+    expect(draftOfKind('lateral', slip).integrator).toBeUndefined();
+  });
 });
 
 describe('gait per stride', () => {

@@ -30,6 +30,7 @@ const FIXED: Record<string, ParameterName> = {
   'integrator.relative_tolerance': { label: 'Relative tolerance', unit: '' },
   'integrator.absolute_tolerance': { label: 'Absolute tolerance', unit: '' },
   'integrator.max_steps_per_stance': { label: 'Max steps per stance', unit: '' },
+  'integrator.apex_accuracy_m': { label: 'Apex accuracy', unit: 'm' },
   // the two-leg model (models/biped.ts)
   'start.offset_m': { label: 'Start offset, body − stance foot', unit: 'm' },
   'legs.left.leg_length_m': { label: 'Left leg: rest length', unit: 'm' },

@@ -102,6 +102,12 @@ export const INTEGRATOR_FIELDS: FieldDef[] = [
   scenarioField('integrator.max_steps_per_stance', { optional: true, hint: `empty: ${DEFAULT_MAX_STEPS_PER_STANCE}` }),
 ];
 
+// The single-leg and two-leg models: an apex accuracy instead of the two tolerances (src/core/accuracy.ts).
+export const ACCURACY_FIELD: FieldDef = scenarioField('integrator.apex_accuracy_m', {
+  optional: true,
+  hint: "one stride's apex height against a tight run: the tolerances follow from it (leave them empty)",
+});
+
 export interface TableColumn {
   key: string;
   label: string;

@@ -139,7 +139,7 @@ export function lostBySwitch(kind: DraftKind, draft: Json): string[] {
     if (!OWN_FIELDS[kind].includes(key)) lost.push(key);
   }
   const after = draftOfKind(kind, draft);
-  for (const part of ['body', 'start']) {
+  for (const part of ['body', 'start', 'integrator']) {
     const before = obj(draft[part]);
     const next = obj(after[part]);
     for (const key of Object.keys(before)) if (!(key in next)) lost.push(`${part}.${key}`);
