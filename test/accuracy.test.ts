@@ -61,6 +61,26 @@ const CASES: { name: string; raw: Raw }[] = [
     },
   },
   {
+    // from high above the leg: the fall's vertical speed at touchdown sets the error (accuracy.ts);
+    // without the fall term in S this one erred 1.2 times the request at 1e-10 m (2 times from 3 L0)
+    name: 'human-like body hopping in place from 2 leg lengths, 60 kN/m',
+    raw: {
+      body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 60000, gravity_m_per_s2: 9.81 },
+      start: { apex_height_m: 2, forward_speed_m_per_s: 0 },
+      policy: { angle: { kind: 'fixed', attack_deg: 90 } },
+      strides: 6,
+    },
+  },
+  {
+    name: 'invented 5 kg hopper from 3 leg lengths at 0.5 m/s, 80 kN/m per 80 kg',
+    raw: {
+      body: { mass_kg: 5, leg_length_m: 0.3, leg_stiffness_N_per_m: 16667 },
+      start: { apex_height_m: 0.9, forward_speed_m_per_s: 0.5 },
+      policy: { angle: { kind: 'fixed', attack_deg: 88 } },
+      strides: 6,
+    },
+  },
+  {
     name: 'invented 20 kg runner at Froude 6, stiff leg',
     raw: {
       body: { mass_kg: 20, leg_length_m: 0.6, leg_stiffness_N_per_m: 30000 },
@@ -107,13 +127,16 @@ describe('integrator.apex_accuracy_m', () => {
     });
   }
 
-  it('picks rtol = accuracy / (4 (L0 + v^2/g)) and atol = rtol L0, capped at the calibrated range, and states them', () => {
+  it('picks rtol = accuracy / (4 (L0 + v^2/g + 2 max(0, h - L0))) and atol = rtol L0, capped at the calibrated range, and states them', () => {
     const raw = CASES[0].raw;
     const s = parseScenario({ ...raw, integrator: { apex_accuracy_m: 1e-8 } });
-    const scale = gaitLengthScaleM(1, 5, 9.81); // 1 + 25/9.81 m
+    const scale = gaitLengthScaleM(1, 5, 1, 9.81); // 1 + 25/9.81 m (the apex at the leg length: no fall term)
     expect(s.integrator.relative_tolerance).toBe(1e-8 / (APEX_ERROR_FACTOR * scale));
     expect(s.integrator.absolute_tolerance).toBe(s.integrator.relative_tolerance * 1);
     expect(s.integrator.apex_accuracy_m).toBe(1e-8);
+    // a start 1 m above the leg adds twice its fall: S = 1 + 0 + 2 m
+    const high = parseScenario({ ...raw, start: { apex_height_m: 2, forward_speed_m_per_s: 0 }, integrator: { apex_accuracy_m: 1e-8 } });
+    expect(high.integrator.relative_tolerance).toBe(1e-8 / (APEX_ERROR_FACTOR * 3));
     const loose = parseScenario({ ...raw, integrator: { apex_accuracy_m: 0.5 } });
     expect(loose.integrator.relative_tolerance).toBe(MAX_ACCURACY_RTOL);
   });

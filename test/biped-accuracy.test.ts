@@ -1,11 +1,11 @@
 // integrator.apex_accuracy_m on the two-leg model: the parse-time tolerances (accuracy.ts,
-// bipedGaitLengthScaleM) give one-stride section heights (the flight apex of a running stride, the
+// gaitLengthScaleM with the longer leg) give one-stride section heights (the flight apex of a running stride, the
 // single-support apex of a walking one) within the requested accuracy of a tight-tolerance run
 // (rtol 1e-13) from the same section, on two-leg gaits that were not in the measured set; the
 // per-run calibration of `robustness` (accuracy-calibration.ts) does too on rollouts it did not
 // see, walking on uneven ground included; outputs state what was used.
 import { describe, expect, it } from 'vitest';
-import { APEX_ERROR_FACTOR, BIPED_ACCURACY_DEFINITION, BIPED_CALIBRATED_ACCURACY_DEFINITION, bipedGaitLengthScaleM } from '../src/core/accuracy.js';
+import { APEX_ERROR_FACTOR, BIPED_ACCURACY_DEFINITION, BIPED_CALIBRATED_ACCURACY_DEFINITION, gaitLengthScaleM } from '../src/core/accuracy.js';
 import { CALIBRATION_MARGIN } from '../src/core/accuracy-calibration.js';
 import { bipedReturnMap } from '../src/core/analysis/biped-map.js';
 import { CALIBRATION_ROLLOUTS, canonicalRobustnessOptions, robustnessModel, robustnessScenario, terrainRobustness } from '../src/core/analysis/robustness.js';
@@ -164,7 +164,7 @@ describe('integrator.apex_accuracy_m on the two-leg model', () => {
   it('picks rtol = accuracy / (4 (L0 + v^2/g + 2 max(0, h - L0))) with the longer leg, atol = rtol L0, and states them', async () => {
     // the runner: legs of 0.50 and 0.49 m, 0.52 m apex at 2.8 m/s
     const runner = parseScenario({ ...CASES[2].raw, integrator: { apex_accuracy_m: 1e-8 } });
-    const scale = bipedGaitLengthScaleM(0.5, 2.8, 0.52, 9.81); // 0.5 + 2.8^2/9.81 + 2 (0.52 - 0.5) m
+    const scale = gaitLengthScaleM(0.5, 2.8, 0.52, 9.81); // 0.5 + 2.8^2/9.81 + 2 (0.52 - 0.5) m
     expect(scale).toBeCloseTo(0.5 + 7.84 / 9.81 + 0.04, 12);
     expect(runner.integrator.relative_tolerance).toBe(1e-8 / (APEX_ERROR_FACTOR * scale));
     expect(runner.integrator.absolute_tolerance).toBe(runner.integrator.relative_tolerance * 0.5);

@@ -7,7 +7,7 @@ import { z } from 'zod';
 import demo from '../../scenarios/demo.json' with { type: 'json' };
 import { InputError, closestName, describeFound, formatPath, type InputIssue } from './errors.js';
 import { validateWith, valueAt } from './validation.js';
-import { bipedGaitLengthScaleM, finestApexAccuracyM, gaitLengthScaleM, tolerancesForScale } from './accuracy.js';
+import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForScale } from './accuracy.js';
 import { type ModelKind, modelKindOf, refuseModelKind } from './models/kind.js';
 import { legParameters, parseBipedScenario, type BipedLegs, type BipedScenario, type BipedStartExtras } from './models/biped.js';
 
@@ -470,12 +470,10 @@ function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source
   const accuracy = scenario.integrator.apex_accuracy_m as number;
   const { body, start } = scenario;
   const gravity = body.gravity_m_per_s2 ?? STANDARD_GRAVITY_M_PER_S2;
-  // the two-leg model: the longer leg, and the start's height (a high flight apex: accuracy.ts)
+  // the two-leg model: its longer leg (accuracy.ts)
   const biped = scenario.model === 'biped';
   const leg = biped ? Math.max(...legParameters(scenario as BipedScenario).map((l) => l.length_m)) : body.leg_length_m;
-  const scale = biped
-    ? bipedGaitLengthScaleM(leg, start.forward_speed_m_per_s, start.apex_height_m, gravity)
-    : gaitLengthScaleM(leg, start.forward_speed_m_per_s, gravity);
+  const scale = gaitLengthScaleM(leg, start.forward_speed_m_per_s, start.apex_height_m, gravity);
   const tolerances = tolerancesForScale(accuracy, scale, leg);
   if (!tolerances) {
     const finest = finestApexAccuracyM(scale);
