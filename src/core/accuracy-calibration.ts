@@ -26,7 +26,7 @@
 import * as L from '../../assembly/layout.js';
 import { MAX_ACCURACY_RTOL } from './accuracy.js';
 import { loadEngine, rolloutInput, type Engine, type ModelBlock } from './engine.js';
-import { isBiped, legParameters } from './models/biped.js';
+import { accuracyLegLengthM, isBiped } from './models/biped.js';
 import type { Scenario } from './scenario.js';
 
 /** The calibration aims at this fraction of the requested accuracy: room for strides it did not see. */
@@ -92,8 +92,7 @@ export function calibrateTolerances(engine: Engine, scenario: Scenario, run: Cal
   if (cache.has(key)) return cache.get(key) ?? null;
 
   const biped = isBiped(scenario);
-  // the two-leg model: atol = rtol·L0 of its longer leg, as the parse-time mapping (scenario.ts)
-  const leg = biped ? Math.max(...legParameters(scenario).map((l) => l.length_m)) : scenario.body.leg_length_m;
+  const leg = accuracyLegLengthM(scenario); // atol = rtol·L0, as the parse-time mapping
   const rtol0 = scenario.integrator.relative_tolerance;
   const atol0 = scenario.integrator.absolute_tolerance;
   const ref = engine.runBatch({

@@ -9,7 +9,7 @@ import { InputError, closestName, describeFound, formatPath, type InputIssue } f
 import { validateWith, valueAt } from './validation.js';
 import { finestApexAccuracyM, gaitLengthScaleM, tolerancesForScale } from './accuracy.js';
 import { type ModelKind, modelKindOf, refuseModelKind } from './models/kind.js';
-import { legParameters, parseBipedScenario, type BipedLegs, type BipedScenario, type BipedStartExtras } from './models/biped.js';
+import { accuracyLegLengthM, parseBipedScenario, type BipedLegs, type BipedStartExtras } from './models/biped.js';
 
 export const STANDARD_GRAVITY_M_PER_S2 = 9.80665; // CGPM 1901 conventional value, exact
 export const DEFAULT_RELATIVE_TOLERANCE = 1e-10;
@@ -470,9 +470,8 @@ function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source
   const accuracy = scenario.integrator.apex_accuracy_m as number;
   const { body, start } = scenario;
   const gravity = body.gravity_m_per_s2 ?? STANDARD_GRAVITY_M_PER_S2;
-  // the two-leg model: its longer leg (accuracy.ts)
   const biped = scenario.model === 'biped';
-  const leg = biped ? Math.max(...legParameters(scenario as BipedScenario).map((l) => l.length_m)) : body.leg_length_m;
+  const leg = accuracyLegLengthM(scenario);
   const scale = gaitLengthScaleM(leg, start.forward_speed_m_per_s, start.apex_height_m, gravity);
   const tolerances = tolerancesForScale(accuracy, scale, leg);
   if (!tolerances) {
@@ -481,7 +480,7 @@ function applyApexAccuracy(scenario: Scenario, value: unknown, options: { source
       [
         {
           path: 'integrator.apex_accuracy_m',
-          expected: `at least ${showNumber(finest)} m for ${biped ? 'these legs and this start' : 'this leg length and start speed'} (the finest apex accuracy the integrator reaches)`,
+          expected: `at least ${showNumber(finest)} m for ${biped ? 'these legs and this start' : 'this leg length and start'} (the finest apex accuracy the integrator reaches)`,
           found: describeFound(accuracy),
         },
       ],

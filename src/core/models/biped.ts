@@ -204,6 +204,11 @@ export function legParameters(s: BipedScenario): { length_m: number; stiffness_s
   });
 }
 
+/** The leg length an apex accuracy's tolerances scale with (accuracy.ts): the two-leg model's longer leg, else the body's. */
+export function accuracyLegLengthM(s: Scenario): number {
+  return isBiped(s) ? Math.max(...legParameters(s).map((l) => l.length_m)) : s.body.leg_length_m;
+}
+
 /** The legs are the same machine part (the one-stride map is then the same map every stride). */
 export function legsIdentical(s: BipedScenario): boolean {
   const [a, b] = legParameters(s);
