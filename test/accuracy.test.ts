@@ -5,14 +5,13 @@
 import { describe, expect, it } from 'vitest';
 import { APEX_ERROR_FACTOR, gaitLengthScaleM, MAX_ACCURACY_RTOL } from '../src/core/accuracy.js';
 import { robustnessScenario, terrainRobustness } from '../src/core/analysis/robustness.js';
-import { loadEngine, rolloutInput } from '../src/core/engine.js';
+import { loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
-import { buildModel } from '../src/core/model.js';
 import { StudyEvaluator } from '../src/core/optimize/objectives.js';
 import { parseStudy } from '../src/core/optimize/study.js';
 import { parseScenario } from '../src/core/scenario.js';
 import { simulate } from '../src/core/simulate.js';
-import { L } from './helpers.js';
+import { oneStrideApexError } from './helpers.js';
 
 type Raw = Record<string, unknown> & { body: Record<string, number> & { leg_length_m: number } };
 
@@ -93,24 +92,9 @@ const CASES: { name: string; raw: Raw }[] = [
 
 /** Largest one-stride apex height error of `raw` at apex accuracy `accuracy` against rtol 1e-13, over its completed strides. */
 async function oneStrideError(raw: Raw, accuracy: number): Promise<{ error: number; strides: number }> {
-  const engine = await loadEngine();
   const leg = raw.body.leg_length_m;
   const tight = parseScenario({ ...raw, integrator: { relative_tolerance: 1e-13, absolute_tolerance: 1e-13 * leg } });
-  const start = tight.start;
-  const ref = engine.runBatch({ model: buildModel(tight), inputs: rolloutInput(start.apex_height_m, start.forward_speed_m_per_s), strides: tight.strides, records: true });
-  const n = ref.summaries[L.S_STRIDES_COMPLETED];
-  const records = ref.records as Float64Array;
-  const at = (s: number, f: number) => records[s * L.R_SIZE + f];
-  const inputs = new Float64Array(n * L.I_SIZE);
-  for (let s = 0; s < n; s++) inputs.set(rolloutInput(at(s, L.R_APEX_HEIGHT), at(s, L.R_APEX_SPEED)), s * L.I_SIZE);
-  const asked = parseScenario({ ...raw, integrator: { apex_accuracy_m: accuracy } });
-  const run = engine.runBatch({ model: buildModel(asked), inputs, strides: 1, records: true });
-  let error = 0;
-  for (let s = 0; s < n; s++) {
-    const got = (run.records as Float64Array)[s * L.R_SIZE + L.R_NEXT_APEX_HEIGHT];
-    error = Math.max(error, Number.isFinite(got) ? Math.abs(got - at(s, L.R_NEXT_APEX_HEIGHT)) : Infinity);
-  }
-  return { error, strides: n };
+  return oneStrideApexError(tight, parseScenario({ ...raw, integrator: { apex_accuracy_m: accuracy } }));
 }
 
 describe('integrator.apex_accuracy_m', () => {

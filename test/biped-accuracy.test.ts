@@ -11,11 +11,11 @@ import { bipedReturnMap } from '../src/core/analysis/biped-map.js';
 import { CALIBRATION_ROLLOUTS, canonicalRobustnessOptions, robustnessModel, robustnessScenario, terrainRobustness } from '../src/core/analysis/robustness.js';
 import { loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
-import { buildModel, startInput } from '../src/core/model.js';
+import { startInput } from '../src/core/model.js';
 import { simulateBiped } from '../src/core/models/biped-simulate.js';
 import type { BipedScenario } from '../src/core/models/biped.js';
 import { parseScenario, type Scenario } from '../src/core/scenario.js';
-import { L } from './helpers.js';
+import { L, oneStrideApexError } from './helpers.js';
 
 type Raw = Record<string, unknown> & { body: Record<string, number> & { leg_length_m: number }; start: Record<string, unknown> };
 
@@ -89,31 +89,9 @@ async function onFixedPoint(raw: Raw): Promise<Raw> {
 
 /** Largest one-stride section height error at apex accuracy `accuracy` against rtol 1e-13, each stride rerun alone from its section (flat ground). */
 async function oneStrideError(raw: Raw, accuracy: number): Promise<{ error: number; strides: number }> {
-  const engine = await loadEngine();
   const leg = Math.max(raw.body.leg_length_m, ...Object.values((raw.legs ?? {}) as Record<string, { leg_length_m?: number }>).map((l) => l.leg_length_m ?? 0));
   const tight = parseScenario({ ...raw, integrator: { relative_tolerance: 1e-13, absolute_tolerance: 1e-13 * leg } });
-  const ref = engine.runBatch({ model: buildModel(tight), inputs: startInput(tight), strides: tight.strides, records: true });
-  const n = ref.summaries[L.S_STRIDES_COMPLETED];
-  const records = ref.records as Float64Array;
-  const at = (s: number, f: number) => records[s * L.R_SIZE + f];
-  const inputs = new Float64Array(n * L.I_SIZE);
-  for (let s = 0; s < n; s++) {
-    const row = startInput(tight);
-    row[L.I_APEX_HEIGHT] = at(s, L.R_APEX_HEIGHT);
-    row[L.I_FORWARD_SPEED] = at(s, L.R_APEX_SPEED);
-    row[L.I_SECTION_KIND] = at(s, L.R_SECTION_KIND);
-    row[L.I_SECTION_OFFSET] = at(s, L.R_SECTION_KIND) === L.SECTION_SINGLE_SUPPORT_APEX ? at(s, L.R_SECTION_OFFSET) : 0;
-    row[L.I_SECTION_LEG] = at(s, L.R_SECTION_LEG);
-    inputs.set(row, s * L.I_SIZE);
-  }
-  const asked = parseScenario({ ...raw, integrator: { apex_accuracy_m: accuracy } });
-  const run = engine.runBatch({ model: buildModel(asked), inputs, strides: 1, records: true });
-  let error = 0;
-  for (let s = 0; s < n; s++) {
-    const got = (run.records as Float64Array)[s * L.R_SIZE + L.R_NEXT_APEX_HEIGHT];
-    error = Math.max(error, Number.isFinite(got) ? Math.abs(got - at(s, L.R_NEXT_APEX_HEIGHT)) : Infinity);
-  }
-  return { error, strides: n };
+  return oneStrideApexError(tight, parseScenario({ ...raw, integrator: { apex_accuracy_m: accuracy } }));
 }
 
 /**

@@ -2,7 +2,7 @@
 // kernel, and read stride records by field name.
 import * as L from '../assembly/layout.js';
 import { loadEngine, rolloutInput, type ModelBlock } from '../src/core/engine.js';
-import { buildModel } from '../src/core/model.js';
+import { buildModel, startInput } from '../src/core/model.js';
 import { parseScenario, type Scenario } from '../src/core/scenario.js';
 
 export { L };
@@ -68,4 +68,37 @@ export function bisect(f: (x: number) => number, a: number, b: number): number {
     if (Math.sign(fm) === Math.sign(fa)) { a = m; fa = fm; } else b = m;
   }
   return 0.5 * (a + b);
+}
+
+/**
+ * The largest one-stride apex height error of `asked` (the two-leg model: section height) against
+ * `tight`: each stride that a rollout of `tight` from its start completes, rerun alone at `asked`'s
+ * tolerances from that stride's apex (two-leg: its section), on flat ground, its next apex height
+ * compared with `tight`'s. `strides`: how many were compared.
+ */
+export async function oneStrideApexError(tight: Scenario, asked: Scenario): Promise<{ error: number; strides: number }> {
+  const engine = await loadEngine();
+  const ref = engine.runBatch({ model: buildModel(tight), inputs: startInput(tight), strides: tight.strides, records: true });
+  const n = ref.summaries[L.S_STRIDES_COMPLETED];
+  const records = ref.records as Float64Array;
+  const at = (s: number, f: number) => records[s * L.R_SIZE + f];
+  const inputs = new Float64Array(n * L.I_SIZE);
+  for (let s = 0; s < n; s++) {
+    const row = startInput(tight);
+    row[L.I_APEX_HEIGHT] = at(s, L.R_APEX_HEIGHT);
+    row[L.I_FORWARD_SPEED] = at(s, L.R_APEX_SPEED);
+    if (tight.model === 'biped') {
+      row[L.I_SECTION_KIND] = at(s, L.R_SECTION_KIND);
+      row[L.I_SECTION_OFFSET] = at(s, L.R_SECTION_KIND) === L.SECTION_SINGLE_SUPPORT_APEX ? at(s, L.R_SECTION_OFFSET) : 0;
+      row[L.I_SECTION_LEG] = at(s, L.R_SECTION_LEG);
+    }
+    inputs.set(row, s * L.I_SIZE);
+  }
+  const run = engine.runBatch({ model: buildModel(asked), inputs, strides: 1, records: true });
+  let error = 0;
+  for (let s = 0; s < n; s++) {
+    const got = (run.records as Float64Array)[s * L.R_SIZE + L.R_NEXT_APEX_HEIGHT];
+    error = Math.max(error, Number.isFinite(got) ? Math.abs(got - at(s, L.R_NEXT_APEX_HEIGHT)) : Infinity);
+  }
+  return { error, strides: n };
 }
