@@ -16,6 +16,7 @@ import { simulateBiped } from '../src/core/models/biped-simulate.js';
 import type { BipedScenario } from '../src/core/models/biped.js';
 import { parseScenario, type Scenario } from '../src/core/scenario.js';
 import { L, oneStrideApexError } from './helpers.js';
+import { pronk } from './pronk-cli.js';
 
 type Raw = Record<string, unknown> & { body: Record<string, number> & { leg_length_m: number }; start: Record<string, unknown> };
 
@@ -179,6 +180,46 @@ describe('integrator.apex_accuracy_m on the two-leg model', () => {
     const fine = issuesOf({ apex_accuracy_m: 1e-14 });
     expect(fine.map((i) => i.path)).toEqual(['integrator.apex_accuracy_m']);
     expect(fine[0].expected).toMatch(/^at least .* m for these legs and this start/);
+  });
+
+  it('the text views of simulate and robustness state it on an accuracy line (both models), and only when asked', async () => {
+    const { mkdtempSync, writeFileSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const { tmpdir } = await import('node:os');
+    const dir = mkdtempSync(join(tmpdir(), 'pronk-accuracy-'));
+    const file = (name: string, value: unknown) => {
+      writeFileSync(join(dir, name), JSON.stringify(value));
+      return join(dir, name);
+    };
+    const walker = file('walker.json', { ...WALKER_40KG, integrator: { apex_accuracy_m: 1e-8 } });
+    const runner = file('runner.json', {
+      body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000, gravity_m_per_s2: 9.81 },
+      start: { apex_height_m: 1, forward_speed_m_per_s: 5 },
+      policy: { angle: { kind: 'fixed', attack_deg: 68 } },
+      strides: 4,
+      integrator: { apex_accuracy_m: 1e-8 },
+    });
+    const plainRunner = file('plain.json', { body: { mass_kg: 80, leg_length_m: 1, leg_stiffness_N_per_m: 20000 }, start: { apex_height_m: 1, forward_speed_m_per_s: 5 }, policy: { angle: { kind: 'fixed', attack_deg: 68 } }, strides: 4 });
+    const walk = parseScenario({ ...WALKER_40KG, integrator: { apex_accuracy_m: 1e-8 } });
+    const sig = (x: number) => String(Number(x.toPrecision(2)));
+    const sim = await pronk(['simulate', walker, '--strides', '2']);
+    expect(sim.code).toBe(0);
+    expect(sim.stdout).toContain(`  accuracy  apex 1e-8 m asked: rtol ${sig(walk.integrator.relative_tolerance)}, atol ${sig(walk.integrator.absolute_tolerance)} m\n`);
+    for (const f of [walker, runner]) {
+      const mc = await pronk(['robustness', f, '--sigma', '0.002', '--rollouts', '20', '--json']);
+      const text = await pronk(['robustness', f, '--sigma', '0.002', '--rollouts', '20']);
+      const used = JSON.parse(mc.stdout).integrator;
+      expect(text.stdout).toContain(
+        `  accuracy  apex 1e-8 m asked: rtol ${sig(used.relative_tolerance)}, atol ${sig(used.absolute_tolerance)} m; ` +
+          `calibrated on ${used.calibration_strides} strides, largest one-stride error ${sig(used.calibrated_apex_error_m)} m\n`,
+      );
+    }
+    expect((await pronk(['simulate', runner])).stdout).toMatch(/^ {2}accuracy +apex 1e-8 m asked: rtol /m);
+    for (const command of ['simulate', 'robustness']) {
+      const out = await pronk(command === 'simulate' ? [command, plainRunner] : [command, plainRunner, '--sigma', '0.002', '--rollouts', '8']);
+      expect(out.code).toBe(0);
+      expect(out.stdout).not.toMatch(/^\s+accuracy /m);
+    }
   });
 
   it('robustness calibrates on its own rollouts, walking on uneven ground, and meets the accuracy on rollouts it did not see', async () => {

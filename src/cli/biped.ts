@@ -7,7 +7,7 @@ import type { Eigenvalue } from '../core/eigen.js';
 import { type BipedScenario, legParameters } from '../core/models/biped.js';
 import type { BipedSimulationResult } from '../core/models/biped-simulate.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
-import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import { accuracyFields, count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import { describeAngle, describeStiffness, describeTerrain } from './describe.js';
 
 const TEXT_WIDTH = 96;
@@ -61,6 +61,7 @@ export function renderBipedSimulation(s: BipedScenario, result: BipedSimulationR
       `${st.gait === 'walking' ? `single-support apex on the ${st.leg} leg, offset ${plain(st.offset_m)} m` : st.leg === 'both' ? 'flight apex, both legs land together' : `flight apex, ${st.leg} leg lands first`}, ` +
         `height ${plain(st.apex_height_m)} m at ${plain(st.forward_speed_m_per_s)} m/s, energy ${fixed(result.energy_J, 2)} J; ${count(stridesRequested, 'stride')} requested`,
     ],
+    ...accuracyFields(result.integrator),
   ]);
   const start = result.sections[0];
   const rows: (string[] | string)[] = [

@@ -72,3 +72,17 @@ export function wrap(text: string, width: number, firstPrefix = '', prefix = '')
 export function count(n: number, noun: string, plural = `${noun}s`): string {
   return `${n} ${n === 1 ? noun : plural}`;
 }
+
+/**
+ * A header field stating what an apex accuracy gave (a result's `integrator` object), or none
+ * without one: the tolerances used and, when the run calibrated them, the error it measured.
+ */
+export function accuracyFields(report: { apex_accuracy_m: number; relative_tolerance: number; absolute_tolerance: number; calibrated_apex_error_m?: number; calibration_strides?: number } | undefined): [string, string][] {
+  if (!report) return [];
+  const sig = (x: number) => String(Number(x.toPrecision(2)));
+  const calibrated =
+    report.calibrated_apex_error_m === undefined
+      ? ''
+      : `; calibrated on ${report.calibration_strides} strides, largest one-stride error ${sig(report.calibrated_apex_error_m)} m`;
+  return [['accuracy', `apex ${sig(report.apex_accuracy_m)} m asked: rtol ${sig(report.relative_tolerance)}, atol ${sig(report.absolute_tolerance)} m${calibrated}`]];
+}

@@ -15,7 +15,7 @@ import type {
 } from '../core/analysis/robustness.js';
 import { SAFETY_CAUTION } from '../core/safety.js';
 import { BOUNDS, boundText, type Scenario } from '../core/scenario.js';
-import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import { accuracyFields, count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { parseIntegerOption, parseNumberOption } from './options.js';
 import { parseWorkers, workerThreads, workersOption } from './workers.js';
@@ -269,6 +269,7 @@ export function renderRobustness(scenario: Scenario, r: RobustnessResult): strin
       ['terrain', `${terrain}, seed ${r.terrain.seed} (replaces the scenario's terrain; rollout r on stream r)`],
       ['start', `apex ${plain(r.start.apex_height_m)} m at ${plain(r.start.forward_speed_m_per_s)} m/s`],
       ['run', `${count(r.rollouts, 'rollout')} x ${count(r.strides, 'stride')}`],
+      ...accuracyFields(r.integrator),
     ]),
   ].join('\n');
   const failures = Object.entries(r.failures).filter(([, n]) => n > 0);

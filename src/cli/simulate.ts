@@ -13,7 +13,7 @@ import type { SimulationResult } from '../core/simulate.js';
 import { jsonTextChunks, modelHeader } from '../core/json-output.js';
 import type { BipedScenario } from '../core/models/biped.js';
 import { writeChunks } from './stream-output.js';
-import { count, fields, fixed, plain, table, wrap, type Column } from './format.js';
+import { accuracyFields, count, fields, fixed, plain, table, wrap, type Column } from './format.js';
 import type { CliIO, Command, ParsedCommandLine } from './command.js';
 import { describeAngle, describeStiffness, describeTerrain } from './describe.js';
 
@@ -142,6 +142,7 @@ export function renderSimulation(
         `apex ${plain(scenario.start.apex_height_m)} m at ${plain(scenario.start.forward_speed_m_per_s)} m/s, ` +
           `energy ${fixed(result.energy_J, 2)} J; ${count(stridesRequested, 'stride')} requested`,
       ],
+      ...accuracyFields(result.integrator),
     ]),
   ].join('\n');
 
