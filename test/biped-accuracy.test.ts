@@ -13,7 +13,7 @@ import { loadEngine } from '../src/core/engine.js';
 import { InputError } from '../src/core/errors.js';
 import { startInput } from '../src/core/model.js';
 import { simulateBiped } from '../src/core/models/biped-simulate.js';
-import type { BipedScenario } from '../src/core/models/biped.js';
+import { accuracyLegLengthM, type BipedScenario } from '../src/core/models/biped.js';
 import { parseScenario, type Scenario } from '../src/core/scenario.js';
 import { L, oneStrideApexError } from './helpers.js';
 import { pronk } from './pronk-cli.js';
@@ -103,7 +103,7 @@ async function oneStrideError(raw: Raw, accuracy: number): Promise<{ error: numb
 async function unseenFirstStrides(scenario: Scenario, options: { rollouts: number; sigma_m: number; seed: number }, from: number, to: number) {
   const engine = await loadEngine();
   const o = canonicalRobustnessOptions(scenario, options);
-  const leg = scenario.integrator.absolute_tolerance / scenario.integrator.relative_tolerance;
+  const leg = accuracyLegLengthM(scenario);
   const tight: Scenario = { ...scenario, integrator: { ...scenario.integrator, relative_tolerance: 1e-13, absolute_tolerance: 1e-13 * leg } };
   const n = to - from;
   const inputs = new Float64Array(n * L.I_SIZE);

@@ -42,11 +42,9 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
   // each outcome's cells [x, y, value, cell index] in cell order, in one pass (a 121 x 121 grid's
   // three filtering passes with their per-cell arrays cost the page's result frame about 10 ms)
   const data: Record<BasinCell['outcome'], CellDatum[]> = { converged: [], wandering: [], fell: [] };
-  const nv = grid ? xs.length : 0;
   result.cells.forEach((cell, index) => {
-    const x = grid ? xs[index % nv] : xs[index]; // basinCellPosition, written in
-    const y = grid ? ys[Math.floor(index / nv)] : ys[0];
-    data[cell.outcome].push([x, y, cell.outcome === 'fell' ? (cell.failed_stride as number) : 0, index]);
+    const [ix, iy] = basinCellPosition(result, index);
+    data[cell.outcome].push([xs[ix], ys[iy], cell.outcome === 'fell' ? (cell.failed_stride as number) : 0, index]);
   });
   const tip = (index: number) => cellText(result.cells[index]);
   const lastStride = Math.max(1, result.strides - 1);

@@ -9,10 +9,7 @@
 
 import type { BasinResult } from '../../core/analysis/basin.js';
 import { basinFigure } from '../../core/figures/basin.js';
-
-interface IdleWindow {
-  requestIdleCallback?: (callback: () => void, options?: { timeout: number }) => number;
-}
+import { whenIdle } from './yield.js';
 
 type Init = (element: HTMLElement, theme?: null, options?: { renderer: 'canvas'; width: number; height: number }) => {
   setOption(option: unknown): void;
@@ -63,9 +60,7 @@ let started = false;
 export function warmFigureCode(init: Init): void {
   if (started || typeof document === 'undefined') return;
   started = true;
-  const idle = (globalThis as IdleWindow).requestIdleCallback;
-  const later = (run: () => void) => (idle ? idle(run, { timeout: 3000 }) : setTimeout(run, 100));
-  later(() => {
+  whenIdle(() => {
     const size = { width: 640, height: 420 };
     const chart = init(document.createElement('div'), null, { renderer: 'canvas', ...size });
     try {
@@ -75,5 +70,5 @@ export function warmFigureCode(init: Init): void {
     } finally {
       chart.dispose();
     }
-  });
+  }, 3000);
 }

@@ -8,15 +8,12 @@
 // that out of the frames that draw a result.
 
 import { FONT_FAMILY, TYPE } from '../../core/figures/theme.js';
+import { whenIdle } from './yield.js';
 
 /** Every size the figures set (theme.ts TYPE, the 11 px letters of the two-leg and lateral figures, ECharts' default 12 px), plain and bold. */
 export function figureFonts(): string[] {
   const sizes = [...new Set([11, 12, ...Object.values(TYPE)])].sort((a, b) => a - b);
   return sizes.flatMap((size) => [`${size}px ${FONT_FAMILY}`, `bold ${size}px ${FONT_FAMILY}`]);
-}
-
-interface IdleWindow {
-  requestIdleCallback?: (callback: () => void, options?: { timeout: number }) => number;
 }
 
 let started = false;
@@ -27,16 +24,14 @@ export function warmFigureFonts(): void {
   started = true;
   const context = document.createElement('canvas').getContext('2d');
   if (!context) return;
-  const idle = (globalThis as IdleWindow).requestIdleCallback;
-  const later = (run: () => void) => (idle ? idle(run, { timeout: 2000 }) : setTimeout(run, 50));
   const fonts = figureFonts();
   const measure = (i: number) => {
     if (i >= fonts.length) return;
-    later(() => {
+    whenIdle(() => {
       context.font = fonts[i];
       context.measureText('国M0');
       measure(i + 1);
-    });
+    }, 2000);
   };
   measure(0);
 }

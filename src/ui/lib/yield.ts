@@ -11,3 +11,14 @@ export function nextTask(): Promise<void> {
   if (typeof scheduler?.yield === 'function') return scheduler.yield();
   return new Promise((resolve) => setTimeout(resolve, 0));
 }
+
+interface IdleWindow {
+  requestIdleCallback?: (callback: () => void, options?: { timeout: number }) => number;
+}
+
+/** Runs `run` in an idle moment (requestIdleCallback, at most `timeout` ms away; a short timer where the browser has none). */
+export function whenIdle(run: () => void, timeout: number): void {
+  const idle = (globalThis as IdleWindow).requestIdleCallback;
+  if (idle) idle(run, { timeout });
+  else setTimeout(run, 50);
+}
