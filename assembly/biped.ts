@@ -69,7 +69,7 @@ import {
 } from "./rk/dopri5";
 import {
   rhs, setStance, setStiffness, setBiped, setBipedStiffness,
-  stanceInvMass, stanceLeg as sysLeg, stanceK, stanceC, stanceG,
+  stanceInvMass, stanceLeg as sysLeg, stanceK, stanceC, stanceG, stanceKInvM,
   bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
@@ -448,6 +448,13 @@ function polishB(ev: i32, leg: i32, hEvent: f64): f64 {
 
 function step4(h: f64): f64 {
   const s = S;
+  // the stage sums of step() (dopri5.ts): (y + h (older terms)) + (h A) (newest stage)
+  const hA21 = h * A21;
+  const hA32 = h * A32;
+  const hA43 = h * A43;
+  const hA54 = h * A54;
+  const hA65 = h * A65;
+  const hB6 = h * B6;
   setLastH(h);
   const y0 = load<f64>(Y0, 0);
   const y1 = load<f64>(Y0, 8);
@@ -457,28 +464,30 @@ function step4(h: f64): f64 {
   const a1 = load<f64>(K1, 8);
   const a2 = load<f64>(K1, 16);
   const a3 = load<f64>(K1, 24);
-  const bp0 = y0 + h * (A21 * a0);
-  const bp1 = y1 + h * (A21 * a1);
-  const bp2 = y2 + h * (A21 * a2);
-  const bp3 = y3 + h * (A21 * a3);
+  const bp0 = y0 + hA21 * a0;
+  const bp1 = y1 + hA21 * a1;
+  const bp2 = y2 + hA21 * a2;
+  const bp3 = y3 + hA21 * a3;
   let b2: f64, b3: f64;
   if (s.single) {
-    const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    b2 = a * bp0;
-    b3 = a * bp1 - stanceG;
+    const rsq = bp0 * bp0 + bp1 * bp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    b2 = f * (inv * bp0);
+    b3 = f * (inv * bp1) - stanceG;
   } else {
     const dx0 = bp0 - bipedFx0;
     const dy0 = bp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = bp0 - bipedFx1;
     const dy1 = bp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     b2 = ac0 * dx0 + ac1 * dx1;
     b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -489,28 +498,30 @@ function step4(h: f64): f64 {
   store<f64>(K2, b1, 8);
   store<f64>(K2, b2, 16);
   store<f64>(K2, b3, 24);
-  const cp0 = y0 + h * (A31 * a0 + A32 * b0);
-  const cp1 = y1 + h * (A31 * a1 + A32 * b1);
-  const cp2 = y2 + h * (A31 * a2 + A32 * b2);
-  const cp3 = y3 + h * (A31 * a3 + A32 * b3);
+  const cp0 = y0 + h * (A31 * a0) + hA32 * b0;
+  const cp1 = y1 + h * (A31 * a1) + hA32 * b1;
+  const cp2 = y2 + h * (A31 * a2) + hA32 * b2;
+  const cp3 = y3 + h * (A31 * a3) + hA32 * b3;
   let c2: f64, c3: f64;
   if (s.single) {
-    const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    c2 = a * cp0;
-    c3 = a * cp1 - stanceG;
+    const rsq = cp0 * cp0 + cp1 * cp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    c2 = f * (inv * cp0);
+    c3 = f * (inv * cp1) - stanceG;
   } else {
     const dx0 = cp0 - bipedFx0;
     const dy0 = cp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = cp0 - bipedFx1;
     const dy1 = cp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     c2 = ac0 * dx0 + ac1 * dx1;
     c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -521,28 +532,30 @@ function step4(h: f64): f64 {
   store<f64>(K3, c1, 8);
   store<f64>(K3, c2, 16);
   store<f64>(K3, c3, 24);
-  const dp0 = y0 + h * (A41 * a0 + A42 * b0 + A43 * c0);
-  const dp1 = y1 + h * (A41 * a1 + A42 * b1 + A43 * c1);
-  const dp2 = y2 + h * (A41 * a2 + A42 * b2 + A43 * c2);
-  const dp3 = y3 + h * (A41 * a3 + A42 * b3 + A43 * c3);
+  const dp0 = y0 + h * (A41 * a0 + A42 * b0) + hA43 * c0;
+  const dp1 = y1 + h * (A41 * a1 + A42 * b1) + hA43 * c1;
+  const dp2 = y2 + h * (A41 * a2 + A42 * b2) + hA43 * c2;
+  const dp3 = y3 + h * (A41 * a3 + A42 * b3) + hA43 * c3;
   let d2: f64, d3: f64;
   if (s.single) {
-    const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    d2 = a * dp0;
-    d3 = a * dp1 - stanceG;
+    const rsq = dp0 * dp0 + dp1 * dp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    d2 = f * (inv * dp0);
+    d3 = f * (inv * dp1) - stanceG;
   } else {
     const dx0 = dp0 - bipedFx0;
     const dy0 = dp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = dp0 - bipedFx1;
     const dy1 = dp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     d2 = ac0 * dx0 + ac1 * dx1;
     d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -553,28 +566,30 @@ function step4(h: f64): f64 {
   store<f64>(K4, d1, 8);
   store<f64>(K4, d2, 16);
   store<f64>(K4, d3, 24);
-  const ep0 = y0 + h * (A51 * a0 + A52 * b0 + A53 * c0 + A54 * d0);
-  const ep1 = y1 + h * (A51 * a1 + A52 * b1 + A53 * c1 + A54 * d1);
-  const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2 + A54 * d2);
-  const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3 + A54 * d3);
+  const ep0 = y0 + h * (A51 * a0 + A52 * b0 + A53 * c0) + hA54 * d0;
+  const ep1 = y1 + h * (A51 * a1 + A52 * b1 + A53 * c1) + hA54 * d1;
+  const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2) + hA54 * d2;
+  const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3) + hA54 * d3;
   let e2: f64, e3: f64;
   if (s.single) {
-    const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    e2 = a * ep0;
-    e3 = a * ep1 - stanceG;
+    const rsq = ep0 * ep0 + ep1 * ep1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    e2 = f * (inv * ep0);
+    e3 = f * (inv * ep1) - stanceG;
   } else {
     const dx0 = ep0 - bipedFx0;
     const dy0 = ep1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = ep0 - bipedFx1;
     const dy1 = ep1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     e2 = ac0 * dx0 + ac1 * dx1;
     e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -585,28 +600,30 @@ function step4(h: f64): f64 {
   store<f64>(K5, e1, 8);
   store<f64>(K5, e2, 16);
   store<f64>(K5, e3, 24);
-  const fp0 = y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0 + A65 * e0);
-  const fp1 = y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1 + A65 * e1);
-  const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2 + A65 * e2);
-  const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3 + A65 * e3);
+  const fp0 = y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0) + hA65 * e0;
+  const fp1 = y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1) + hA65 * e1;
+  const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2) + hA65 * e2;
+  const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3) + hA65 * e3;
   let f2: f64, f3: f64;
   if (s.single) {
-    const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    f2 = a * fp0;
-    f3 = a * fp1 - stanceG;
+    const rsq = fp0 * fp0 + fp1 * fp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    f2 = f * (inv * fp0);
+    f3 = f * (inv * fp1) - stanceG;
   } else {
     const dx0 = fp0 - bipedFx0;
     const dy0 = fp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = fp0 - bipedFx1;
     const dy1 = fp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     f2 = ac0 * dx0 + ac1 * dx1;
     f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -617,10 +634,10 @@ function step4(h: f64): f64 {
   store<f64>(K6, f1, 8);
   store<f64>(K6, f2, 16);
   store<f64>(K6, f3, 24);
-  const n0 = y0 + h * (B1 * a0 + B3 * c0 + B4 * d0 + B5 * e0 + B6 * f0);
-  const n1 = y1 + h * (B1 * a1 + B3 * c1 + B4 * d1 + B5 * e1 + B6 * f1);
-  const n2 = y2 + h * (B1 * a2 + B3 * c2 + B4 * d2 + B5 * e2 + B6 * f2);
-  const n3 = y3 + h * (B1 * a3 + B3 * c3 + B4 * d3 + B5 * e3 + B6 * f3);
+  const n0 = y0 + h * (B1 * a0 + B3 * c0 + B4 * d0 + B5 * e0) + hB6 * f0;
+  const n1 = y1 + h * (B1 * a1 + B3 * c1 + B4 * d1 + B5 * e1) + hB6 * f1;
+  const n2 = y2 + h * (B1 * a2 + B3 * c2 + B4 * d2 + B5 * e2) + hB6 * f2;
+  const n3 = y3 + h * (B1 * a3 + B3 * c3 + B4 * d3 + B5 * e3) + hB6 * f3;
   store<f64>(YN, n0, 0);
   store<f64>(YN, n1, 8);
   store<f64>(YN, n2, 16);
@@ -631,22 +648,24 @@ function step4(h: f64): f64 {
   const gp3 = n3;
   let g2: f64, g3: f64;
   if (s.single) {
-    const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
-    const inv = 1.0 / r;
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    g2 = a * gp0;
-    g3 = a * gp1 - stanceG;
+    const rsq = gp0 * gp0 + gp1 * gp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
+    const f = stanceKInvM * (sysLeg - r); // as stanceRhs (system.ts)
+    g2 = f * (inv * gp0);
+    g3 = f * (inv * gp1) - stanceG;
   } else {
     const dx0 = gp0 - bipedFx0;
     const dy0 = gp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = gp0 - bipedFx1;
     const dy1 = gp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     g2 = ac0 * dx0 + ac1 * dx1;
     g3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -721,8 +740,9 @@ function step4w(h: f64): f64 {
   const bp3 = y3 + hA21 * a3;
   let b2: f64, b3: f64;
   if (s.single) {
-    const r = Math.sqrt(bp0 * bp0 + bp1 * bp1);
-    const inv = 1.0 / r;
+    const rsq = bp0 * bp0 + bp1 * bp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     b2 = a * bp0;
@@ -730,13 +750,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = bp0 - bipedFx0;
     const dy0 = bp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = bp0 - bipedFx1;
     const dy1 = bp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     b2 = ac0 * dx0 + ac1 * dx1;
     b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -753,8 +775,9 @@ function step4w(h: f64): f64 {
   const cp3 = y3 + h * (A31 * a3) + hA32 * b3;
   let c2: f64, c3: f64;
   if (s.single) {
-    const r = Math.sqrt(cp0 * cp0 + cp1 * cp1);
-    const inv = 1.0 / r;
+    const rsq = cp0 * cp0 + cp1 * cp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     c2 = a * cp0;
@@ -762,13 +785,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = cp0 - bipedFx0;
     const dy0 = cp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = cp0 - bipedFx1;
     const dy1 = cp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     c2 = ac0 * dx0 + ac1 * dx1;
     c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -785,8 +810,9 @@ function step4w(h: f64): f64 {
   const dp3 = y3 + h * (A41 * a3 + A42 * b3) + hA43 * c3;
   let d2: f64, d3: f64;
   if (s.single) {
-    const r = Math.sqrt(dp0 * dp0 + dp1 * dp1);
-    const inv = 1.0 / r;
+    const rsq = dp0 * dp0 + dp1 * dp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     d2 = a * dp0;
@@ -794,13 +820,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = dp0 - bipedFx0;
     const dy0 = dp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = dp0 - bipedFx1;
     const dy1 = dp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     d2 = ac0 * dx0 + ac1 * dx1;
     d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -817,8 +845,9 @@ function step4w(h: f64): f64 {
   const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3) + hA54 * d3;
   let e2: f64, e3: f64;
   if (s.single) {
-    const r = Math.sqrt(ep0 * ep0 + ep1 * ep1);
-    const inv = 1.0 / r;
+    const rsq = ep0 * ep0 + ep1 * ep1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     e2 = a * ep0;
@@ -826,13 +855,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = ep0 - bipedFx0;
     const dy0 = ep1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = ep0 - bipedFx1;
     const dy1 = ep1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     e2 = ac0 * dx0 + ac1 * dx1;
     e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -849,8 +880,9 @@ function step4w(h: f64): f64 {
   const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3) + hA65 * e3;
   let f2: f64, f3: f64;
   if (s.single) {
-    const r = Math.sqrt(fp0 * fp0 + fp1 * fp1);
-    const inv = 1.0 / r;
+    const rsq = fp0 * fp0 + fp1 * fp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     f2 = a * fp0;
@@ -858,13 +890,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = fp0 - bipedFx0;
     const dy0 = fp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = fp0 - bipedFx1;
     const dy1 = fp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     f2 = ac0 * dx0 + ac1 * dx1;
     f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
@@ -889,8 +923,9 @@ function step4w(h: f64): f64 {
   const gp3 = n3;
   let g2: f64, g3: f64;
   if (s.single) {
-    const r = Math.sqrt(gp0 * gp0 + gp1 * gp1);
-    const inv = 1.0 / r;
+    const rsq = gp0 * gp0 + gp1 * gp1;
+    const r = Math.sqrt(rsq);
+    const inv = r * (1.0 / rsq);
     const force = stanceK * (sysLeg - r);
     const a = force * inv * stanceInvMass;
     g2 = a * gp0;
@@ -898,13 +933,15 @@ function step4w(h: f64): f64 {
   } else {
     const dx0 = gp0 - bipedFx0;
     const dy0 = gp1 - bipedFy0;
-    const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-    const inv0 = 1.0 / r0;
+    const r0sq = dx0 * dx0 + dy0 * dy0;
+    const r0 = Math.sqrt(r0sq);
+    const inv0 = r0 * (1.0 / r0sq);
     const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
     const dx1 = gp0 - bipedFx1;
     const dy1 = gp1 - bipedFy1;
-    const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-    const inv1 = 1.0 / r1;
+    const r1sq = dx1 * dx1 + dy1 * dy1;
+    const r1 = Math.sqrt(r1sq);
+    const inv1 = r1 * (1.0 / r1sq);
     const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
     g2 = ac0 * dx0 + ac1 * dx1;
     g3 = ac0 * dy0 + ac1 * dy1 - stanceG;

@@ -17,7 +17,10 @@ const sub = (a, b) => `f64x2.sub(${a}, ${b})`;
 const mul = (a, b) => `f64x2.mul(${a}, ${b})`;
 const sum = (terms) => terms.reduce((acc, t) => (acc === null ? t : add(acc, t)), null);
 // The lane pair's step parameters in LANE_PARAMS: name in the step, Stance field.
-const PARAMS = [['h', 'h'], ['K', 'k'], ['LEG', 'leg'], ['C', 'c'], ['IM', 'invM'], ['G', 'g']];
+// h A for the newest stage of each stage sum (and h B6): a stage is (y + h (older terms)) + hA k,
+// one multiplication and one addition after the newest stage, as in step() (dopri5.ts).
+const NEWEST = [['HA21', 'A21'], ['HA32', 'A32'], ['HA43', 'A43'], ['HA54', 'A54'], ['HA65', 'A65'], ['HB6', 'B6']];
+const PARAMS = [['h', 'h'], ['K', 'k'], ['LEG', 'leg'], ['C', 'c'], ['KIM', 'kim'], ['CIM', 'cim'], ['G', 'g'], ...NEWEST.map(([n]) => [n, n.toLowerCase()])];
 const paramAt = (ch, name) => (ch.base / 2 * PARAMS.length + PARAMS.findIndex(([n]) => n === name)) * 16;
 const V = (name) => `v128.load(TABLEAU2 + ${consts.indexOf(name) * 16})`;
 const consts = ['A21','A31','A32','A41','A42','A43','A51','A52','A53','A54','A61','A62','A63','A64','A65','B1','B3','B4','B5','B6','E1','E3','E4','E5','E6','E7'];
@@ -28,6 +31,14 @@ const stages = [
   ['e', [['A51', 'a'], ['A52', 'b'], ['A53', 'c'], ['A54', 'd']]],
   ['f', [['A61', 'a'], ['A62', 'b'], ['A63', 'c'], ['A64', 'd'], ['A65', 'e']]],
 ];
+// y + h (sum of the older terms) + hA (newest stage), step()'s order; y + hA21 a for stage 2.
+const HA = Object.fromEntries(NEWEST.map(([n, c]) => [c, n]));
+function stageSum(y, h, terms, i, X) {
+  const [c, k] = terms[terms.length - 1];
+  const newest = mul(`${HA[c]}${X}`, `${k}${i}${X}`);
+  if (terms.length === 1) return add(y, newest);
+  return add(add(y, mul(h, sum(terms.slice(0, -1).map(([cc, kk]) => mul(V(cc), `${kk}${i}${X}`))))), newest);
+}
 function fn(name, chains, spring) {
   const L = [];
   const o = (s) => L.push(s);
@@ -40,12 +51,15 @@ function fn(name, chains, spring) {
       o(`  const ${v}${U} = s${l}.${f};`);
     }
     o(`  const hi${U}: f64 = s${l}.afterReject ? 1.0 : 10.0;`);
+    o(`  const kim${U} = k${U} * invM${U};`);
+    if (!spring) o(`  const cim${U} = c${U} * invM${U};`);
+    for (const [n, c] of NEWEST) o(`  const ${n.toLowerCase()}${U} = h${U} * ${c};`);
   }
   o(`  const ONE = f64x2(1.0, 1.0);`);
   o(`  const ZERO = f64x2(0.0, 0.0);`);
   for (const ch of chains) {
     const [l0, l1] = ch.lanes; const X = ch.id; const U = (p) => `pair(${p}${l0.toUpperCase()}, ${p}${l1.toUpperCase()})`;
-    for (const [name, field] of PARAMS) if (!(spring && name === 'C')) o(`  v128.store(LANE_PARAMS + ${paramAt(ch, name)}, ${U(field)});`);
+    for (const [name, field] of PARAMS) if (!(spring && (name === 'C' || name === 'CIM'))) o(`  v128.store(LANE_PARAMS + ${paramAt(ch, name)}, ${U(field)});`);
     const comps = spring ? 4 : 5; // the work component stays as it is without damping (see stepPair)
     for (let i = 0; i < 5; i++) o(`  const y${i}${X} = gather(p${l0}, p${l1}, OFF_Y0 + ${i * 8});`);
     for (let i = 0; i < comps; i++) o(`  const a${i}${X} = gather(p${l0}, p${l1}, OFF_K1 + ${i * 8});`);
@@ -54,19 +68,19 @@ function fn(name, chains, spring) {
     const last = out === 'g';
     if (last) o(`${ind}let rg${X}: v128, dg${X}: v128;`);
     o(`${ind}{`);
-    o(`${ind}  const r = f64x2.sqrt(${add(mul(px, px), mul(py, py))});`);
-    o(`${ind}  const inv = f64x2.div(ONE, r);`);
+    o(`${ind}  const r2 = ${add(mul(px, px), mul(py, py))};`);
+    o(`${ind}  const r = f64x2.sqrt(r2);`);
+    o(`${ind}  const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side`);
     if (!spring || last) o(`${ind}  const dot = ${add(mul(px, vx), mul(py, vy))};`);
     if (last) o(`${ind}  rg${X} = r;`);
     if (last) o(`${ind}  dg${X} = dot;`);
     if (!spring) o(`${ind}  const rdot = ${mul('dot', 'inv')};`);
-    if (spring) o(`${ind}  const force = ${mul(`K${X}`, sub(`LEG${X}`, 'r'))}; // - c r' = - (+-0)`);
-    else o(`${ind}  const force = ${sub(mul(`K${X}`, sub(`LEG${X}`, 'r')), mul(`C${X}`, 'rdot'))};`);
-    o(`${ind}  const acc = ${mul(mul('force', 'inv'), `IM${X}`)};`);
+    if (spring) o(`${ind}  const force = ${mul(`KIM${X}`, sub(`LEG${X}`, 'r'))}; // - (c/m) r' = - (+-0)`);
+    else o(`${ind}  const force = ${sub(mul(`KIM${X}`, sub(`LEG${X}`, 'r')), mul(`CIM${X}`, 'rdot'))};`);
     o(`${ind}  ${out}0${X} = ${vx};`);
     o(`${ind}  ${out}1${X} = ${vy};`);
-    o(`${ind}  ${out}2${X} = ${mul('acc', px)};`);
-    o(`${ind}  ${out}3${X} = ${sub(mul('acc', py), `G${X}`)};`);
+    o(`${ind}  ${out}2${X} = ${mul('force', mul('inv', px))};`);
+    o(`${ind}  ${out}3${X} = ${sub(mul('force', mul('inv', py)), `G${X}`)};`);
     if (!spring) o(`${ind}  ${out}4${X} = ${mul(mul(`C${X}`, 'rdot'), 'rdot')};`);
     o(`${ind}}`);
   };
@@ -75,7 +89,7 @@ function fn(name, chains, spring) {
       const X = ch.id;
       o(`  let ${[0,1,2,3,4].slice(0, spring ? 4 : 5).map((i) => `${nm}${i}${X}: v128`).join(', ')};`);
       o(`  {`);
-      [0, 1, 2, 3].forEach((i) => o(`    const s${i} = ${add(`y${i}${X}`, mul(`h${X}`, sum(terms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`));
+      [0, 1, 2, 3].forEach((i) => o(`    const s${i} = ${stageSum(`y${i}${X}`, `h${X}`, terms, i, X)};`));
       rhs(X, nm, 's0', 's1', 's2', 's3', '    ');
       o(`  }`);
     }
@@ -83,9 +97,9 @@ function fn(name, chains, spring) {
   const bterms = [['B1', 'a'], ['B3', 'c'], ['B4', 'd'], ['B5', 'e'], ['B6', 'f']];
   for (const ch of chains) {
     const X = ch.id;
-    for (let i = 0; i < 4; i++) o(`  const n${i}${X} = ${add(`y${i}${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}${i}${X}`)))))};`);
-    if (spring) o(`  const n4${X} = y4${X}; // the work: +0 + h (+0 ...) = +0 without damping`);
-    else o(`  const n4${X} = ${add(`y4${X}`, mul(`h${X}`, sum(bterms.map(([c, k]) => mul(V(c), `${k}4${X}`)))))};`);
+    for (let i = 0; i < 4; i++) o(`  const n${i}${X} = ${stageSum(`y${i}${X}`, `h${X}`, bterms, i, X)};`);
+    if (spring) o(`  const n4${X} = y4${X}; // the work: (+0 + h (+0 ...)) + hB6 (+0) = +0 without damping`);
+    else o(`  const n4${X} = ${stageSum(`y4${X}`, `h${X}`, bterms, 4, X)};`);
   }
   for (const ch of chains) {
     const X = ch.id;
@@ -168,7 +182,7 @@ import { Stance } from "../stance";
 const TABLEAU2: usize = memory.data<f64>([${consts.map((c) => `${c}, ${c}`).join(', ')}], 16);
 
 // The step size and body parameters of the step in progress, lane pair by lane pair (PARAMS).
-const LANE_PARAMS: usize = memory.data(2 * 6 * 16, 16);
+const LANE_PARAMS: usize = memory.data(2 * ${PARAMS.length} * 16, 16);
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
 // f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
@@ -233,9 +247,10 @@ export let laneErr3: f64 = 0.0;
 
 // A stance whose leg has no damper, with a validated scenario's tolerances (atol > 0, rtol
 // finite). Its step needs neither r' nor the work component: the work and its stage values stay
-// +0 (c r'^2 = +0 for finite r'), its error term is +0 / sc = +0, and the leg force
-// k (L0 - r) - c r' is k (L0 - r) bit for bit (c r' = +-0 for finite r', and k (L0 - r) is never
-// -0, as L0 - r = 0 is +0 and k > 0). A non-finite r' makes the step non-finite either way: a
+// +0 (c r'^2 = +0 for finite r'), its error term is +0 / sc = +0, and the leg force per mass
+// (k/m) (L0 - r) - (c/m) r' is (k/m) (L0 - r) bit for bit ((c/m) r' = +-0 for finite r', and
+// (k/m) (L0 - r) is never -0, as L0 - r = 0 is +0 and k/m > 0 for a validated body's bounds).
+// A non-finite r' makes the step non-finite either way: a
 // non-finite velocity or position reaches YN, and r = 0 makes the acceleration NaN.
 @inline function springOnly(s: Stance): bool {
   return s.c == 0.0 && s.atol > 0.0 && Math.abs(s.rtol) < Infinity;

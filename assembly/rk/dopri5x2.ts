@@ -22,7 +22,7 @@ import { Stance } from "../stance";
 const TABLEAU2: usize = memory.data<f64>([A21, A21, A31, A31, A32, A32, A41, A41, A42, A42, A43, A43, A51, A51, A52, A52, A53, A53, A54, A54, A61, A61, A62, A62, A63, A63, A64, A64, A65, A65, B1, B1, B3, B3, B4, B4, B5, B5, B6, B6, E1, E1, E3, E3, E4, E4, E5, E5, E6, E6, E7, E7], 16);
 
 // The step size and body parameters of the step in progress, lane pair by lane pair (PARAMS).
-const LANE_PARAMS: usize = memory.data(2 * 6 * 16, 16);
+const LANE_PARAMS: usize = memory.data(2 * 13 * 16, 16);
 
 // K3..K6 of the last stepPair or stepQuad, lane pair by lane pair (lanes 0, 1, then 2, 3), as
 // f64x2 (stage, component): each lane's copy in its own buffers only when it needs them
@@ -87,9 +87,10 @@ export let laneErr3: f64 = 0.0;
 
 // A stance whose leg has no damper, with a validated scenario's tolerances (atol > 0, rtol
 // finite). Its step needs neither r' nor the work component: the work and its stage values stay
-// +0 (c r'^2 = +0 for finite r'), its error term is +0 / sc = +0, and the leg force
-// k (L0 - r) - c r' is k (L0 - r) bit for bit (c r' = +-0 for finite r', and k (L0 - r) is never
-// -0, as L0 - r = 0 is +0 and k > 0). A non-finite r' makes the step non-finite either way: a
+// +0 (c r'^2 = +0 for finite r'), its error term is +0 / sc = +0, and the leg force per mass
+// (k/m) (L0 - r) - (c/m) r' is (k/m) (L0 - r) bit for bit ((c/m) r' = +-0 for finite r', and
+// (k/m) (L0 - r) is never -0, as L0 - r = 0 is +0 and k/m > 0 for a validated body's bounds).
+// A non-finite r' makes the step non-finite either way: a
 // non-finite velocity or position reaches YN, and r = 0 makes the acceleration NaN.
 @inline function springOnly(s: Stance): bool {
   return s.c == 0.0 && s.atol > 0.0 && Math.abs(s.rtol) < Infinity;
@@ -125,6 +126,14 @@ function fullStepPair(sA: Stance, sB: Stance): void {
   const gA = sA.g;
   const oldA = sA.errOld;
   const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const kimA = kA * invMA;
+  const cimA = cA * invMA;
+  const ha21A = hA * A21;
+  const ha32A = hA * A32;
+  const ha43A = hA * A43;
+  const ha54A = hA * A54;
+  const ha65A = hA * A65;
+  const hb6A = hA * B6;
   const pB = sB.bufs;
   const hB = sB.h;
   const rtolB = sB.rtol;
@@ -137,14 +146,29 @@ function fullStepPair(sA: Stance, sB: Stance): void {
   const gB = sB.g;
   const oldB = sB.errOld;
   const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
+  const kimB = kB * invMB;
+  const cimB = cB * invMB;
+  const ha21B = hB * A21;
+  const ha32B = hB * A32;
+  const ha43B = hB * A43;
+  const ha54B = hB * A54;
+  const ha65B = hB * A65;
+  const hb6B = hB * B6;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   v128.store(LANE_PARAMS + 0, pair(hA, hB));
   v128.store(LANE_PARAMS + 16, pair(kA, kB));
   v128.store(LANE_PARAMS + 32, pair(legA, legB));
   v128.store(LANE_PARAMS + 48, pair(cA, cB));
-  v128.store(LANE_PARAMS + 64, pair(invMA, invMB));
-  v128.store(LANE_PARAMS + 80, pair(gA, gB));
+  v128.store(LANE_PARAMS + 64, pair(kimA, kimB));
+  v128.store(LANE_PARAMS + 80, pair(cimA, cimB));
+  v128.store(LANE_PARAMS + 96, pair(gA, gB));
+  v128.store(LANE_PARAMS + 112, pair(ha21A, ha21B));
+  v128.store(LANE_PARAMS + 128, pair(ha32A, ha32B));
+  v128.store(LANE_PARAMS + 144, pair(ha43A, ha43B));
+  v128.store(LANE_PARAMS + 160, pair(ha54A, ha54B));
+  v128.store(LANE_PARAMS + 176, pair(ha65A, ha65B));
+  v128.store(LANE_PARAMS + 192, pair(hb6A, hb6B));
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -157,124 +181,124 @@ function fullStepPair(sA: Stance, sB: Stance): void {
   const a4X = gather(pA, pB, OFF_K1 + 32);
   let b0X: v128, b1X: v128, b2X: v128, b3X: v128, b4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a0X)));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a1X)));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a2X)));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a3X)));
+    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 112), a0X));
+    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 112), a1X));
+    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 112), a2X));
+    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 112), a3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       b0X = s2;
       b1X = s3;
-      b2X = f64x2.mul(acc, s0);
-      b3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      b2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       b4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0X), f64x2.mul(v128.load(TABLEAU2 + 32), b0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1X), f64x2.mul(v128.load(TABLEAU2 + 32), b1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2X), f64x2.mul(v128.load(TABLEAU2 + 32), b2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3X), f64x2.mul(v128.load(TABLEAU2 + 32), b3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a0X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a1X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a2X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a3X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       c0X = s2;
       c1X = s3;
-      c2X = f64x2.mul(acc, s0);
-      c3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      c2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       c4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)), f64x2.mul(v128.load(TABLEAU2 + 80), c0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)), f64x2.mul(v128.load(TABLEAU2 + 80), c1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)), f64x2.mul(v128.load(TABLEAU2 + 80), c2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)), f64x2.mul(v128.load(TABLEAU2 + 80), c3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       d0X = s2;
       d1X = s3;
-      d2X = f64x2.mul(acc, s0);
-      d3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      d2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       d4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)), f64x2.mul(v128.load(TABLEAU2 + 144), d0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)), f64x2.mul(v128.load(TABLEAU2 + 144), d1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)), f64x2.mul(v128.load(TABLEAU2 + 144), d2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)), f64x2.mul(v128.load(TABLEAU2 + 144), d3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       e0X = s2;
       e1X = s3;
-      e2X = f64x2.mul(acc, s0);
-      e3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      e2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       e4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)), f64x2.mul(v128.load(TABLEAU2 + 224), e0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)), f64x2.mul(v128.load(TABLEAU2 + 224), e1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)), f64x2.mul(v128.load(TABLEAU2 + 224), e2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)), f64x2.mul(v128.load(TABLEAU2 + 224), e3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       f0X = s2;
       f1X = s3;
-      f2X = f64x2.mul(acc, s0);
-      f3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      f2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       f4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
-  const n0X = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)), f64x2.mul(v128.load(TABLEAU2 + 304), f0X))));
-  const n1X = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)), f64x2.mul(v128.load(TABLEAU2 + 304), f1X))));
-  const n2X = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)), f64x2.mul(v128.load(TABLEAU2 + 304), f2X))));
-  const n3X = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)), f64x2.mul(v128.load(TABLEAU2 + 304), f3X))));
-  const n4X = f64x2.add(y4X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4X), f64x2.mul(v128.load(TABLEAU2 + 256), c4X)), f64x2.mul(v128.load(TABLEAU2 + 272), d4X)), f64x2.mul(v128.load(TABLEAU2 + 288), e4X)), f64x2.mul(v128.load(TABLEAU2 + 304), f4X))));
+  const n0X = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f0X));
+  const n1X = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f1X));
+  const n2X = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f2X));
+  const n3X = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f3X));
+  const n4X = f64x2.add(f64x2.add(y4X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4X), f64x2.mul(v128.load(TABLEAU2 + 256), c4X)), f64x2.mul(v128.load(TABLEAU2 + 272), d4X)), f64x2.mul(v128.load(TABLEAU2 + 288), e4X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f4X));
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
   let rgX: v128, dgX: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
     rgX = r;
     dgX = dot;
     const rdot = f64x2.mul(dot, inv);
-    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
     g0X = n2X;
     g1X = n3X;
-    g2X = f64x2.mul(acc, n0X);
-    g3X = f64x2.sub(f64x2.mul(acc, n1X), v128.load(LANE_PARAMS + 80));
+    g2X = f64x2.mul(force, f64x2.mul(inv, n0X));
+    g3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1X)), v128.load(LANE_PARAMS + 96));
     g4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
   }
   const RTOLX = pair(rtolA, rtolB);
@@ -380,6 +404,13 @@ function springStepPair(sA: Stance, sB: Stance): void {
   const gA = sA.g;
   const oldA = sA.errOld;
   const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const kimA = kA * invMA;
+  const ha21A = hA * A21;
+  const ha32A = hA * A32;
+  const ha43A = hA * A43;
+  const ha54A = hA * A54;
+  const ha65A = hA * A65;
+  const hb6A = hA * B6;
   const pB = sB.bufs;
   const hB = sB.h;
   const rtolB = sB.rtol;
@@ -391,13 +422,26 @@ function springStepPair(sA: Stance, sB: Stance): void {
   const gB = sB.g;
   const oldB = sB.errOld;
   const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
+  const kimB = kB * invMB;
+  const ha21B = hB * A21;
+  const ha32B = hB * A32;
+  const ha43B = hB * A43;
+  const ha54B = hB * A54;
+  const ha65B = hB * A65;
+  const hb6B = hB * B6;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   v128.store(LANE_PARAMS + 0, pair(hA, hB));
   v128.store(LANE_PARAMS + 16, pair(kA, kB));
   v128.store(LANE_PARAMS + 32, pair(legA, legB));
-  v128.store(LANE_PARAMS + 64, pair(invMA, invMB));
-  v128.store(LANE_PARAMS + 80, pair(gA, gB));
+  v128.store(LANE_PARAMS + 64, pair(kimA, kimB));
+  v128.store(LANE_PARAMS + 96, pair(gA, gB));
+  v128.store(LANE_PARAMS + 112, pair(ha21A, ha21B));
+  v128.store(LANE_PARAMS + 128, pair(ha32A, ha32B));
+  v128.store(LANE_PARAMS + 144, pair(ha43A, ha43B));
+  v128.store(LANE_PARAMS + 160, pair(ha54A, ha54B));
+  v128.store(LANE_PARAMS + 176, pair(ha65A, ha65B));
+  v128.store(LANE_PARAMS + 192, pair(hb6A, hb6B));
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -409,108 +453,108 @@ function springStepPair(sA: Stance, sB: Stance): void {
   const a3X = gather(pA, pB, OFF_K1 + 24);
   let b0X: v128, b1X: v128, b2X: v128, b3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a0X)));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a1X)));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a2X)));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a3X)));
+    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 112), a0X));
+    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 112), a1X));
+    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 112), a2X));
+    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 112), a3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       b0X = s2;
       b1X = s3;
-      b2X = f64x2.mul(acc, s0);
-      b3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      b2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0X), f64x2.mul(v128.load(TABLEAU2 + 32), b0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1X), f64x2.mul(v128.load(TABLEAU2 + 32), b1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2X), f64x2.mul(v128.load(TABLEAU2 + 32), b2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3X), f64x2.mul(v128.load(TABLEAU2 + 32), b3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a0X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a1X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a2X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a3X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       c0X = s2;
       c1X = s3;
-      c2X = f64x2.mul(acc, s0);
-      c3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      c2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)), f64x2.mul(v128.load(TABLEAU2 + 80), c0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)), f64x2.mul(v128.load(TABLEAU2 + 80), c1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)), f64x2.mul(v128.load(TABLEAU2 + 80), c2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)), f64x2.mul(v128.load(TABLEAU2 + 80), c3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       d0X = s2;
       d1X = s3;
-      d2X = f64x2.mul(acc, s0);
-      d3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      d2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)), f64x2.mul(v128.load(TABLEAU2 + 144), d0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)), f64x2.mul(v128.load(TABLEAU2 + 144), d1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)), f64x2.mul(v128.load(TABLEAU2 + 144), d2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)), f64x2.mul(v128.load(TABLEAU2 + 144), d3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       e0X = s2;
       e1X = s3;
-      e2X = f64x2.mul(acc, s0);
-      e3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      e2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)), f64x2.mul(v128.load(TABLEAU2 + 224), e0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)), f64x2.mul(v128.load(TABLEAU2 + 224), e1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)), f64x2.mul(v128.load(TABLEAU2 + 224), e2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)), f64x2.mul(v128.load(TABLEAU2 + 224), e3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       f0X = s2;
       f1X = s3;
-      f2X = f64x2.mul(acc, s0);
-      f3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      f2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
-  const n0X = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)), f64x2.mul(v128.load(TABLEAU2 + 304), f0X))));
-  const n1X = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)), f64x2.mul(v128.load(TABLEAU2 + 304), f1X))));
-  const n2X = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)), f64x2.mul(v128.load(TABLEAU2 + 304), f2X))));
-  const n3X = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)), f64x2.mul(v128.load(TABLEAU2 + 304), f3X))));
-  const n4X = y4X; // the work: +0 + h (+0 ...) = +0 without damping
+  const n0X = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f0X));
+  const n1X = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f1X));
+  const n2X = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f2X));
+  const n3X = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f3X));
+  const n4X = y4X; // the work: (+0 + h (+0 ...)) + hB6 (+0) = +0 without damping
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128;
   let rgX: v128, dgX: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
     rgX = r;
     dgX = dot;
-    const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+    const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
     g0X = n2X;
     g1X = n3X;
-    g2X = f64x2.mul(acc, n0X);
-    g3X = f64x2.sub(f64x2.mul(acc, n1X), v128.load(LANE_PARAMS + 80));
+    g2X = f64x2.mul(force, f64x2.mul(inv, n0X));
+    g3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1X)), v128.load(LANE_PARAMS + 96));
   }
   const RTOLX = pair(rtolA, rtolB);
   const ATOLX = pair(atolA, atolB);
@@ -609,6 +653,14 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gA = sA.g;
   const oldA = sA.errOld;
   const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const kimA = kA * invMA;
+  const cimA = cA * invMA;
+  const ha21A = hA * A21;
+  const ha32A = hA * A32;
+  const ha43A = hA * A43;
+  const ha54A = hA * A54;
+  const ha65A = hA * A65;
+  const hb6A = hA * B6;
   const pB = sB.bufs;
   const hB = sB.h;
   const rtolB = sB.rtol;
@@ -621,6 +673,14 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gB = sB.g;
   const oldB = sB.errOld;
   const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
+  const kimB = kB * invMB;
+  const cimB = cB * invMB;
+  const ha21B = hB * A21;
+  const ha32B = hB * A32;
+  const ha43B = hB * A43;
+  const ha54B = hB * A54;
+  const ha65B = hB * A65;
+  const hb6B = hB * B6;
   const pC = sC.bufs;
   const hC = sC.h;
   const rtolC = sC.rtol;
@@ -633,6 +693,14 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gC = sC.g;
   const oldC = sC.errOld;
   const hiC: f64 = sC.afterReject ? 1.0 : 10.0;
+  const kimC = kC * invMC;
+  const cimC = cC * invMC;
+  const ha21C = hC * A21;
+  const ha32C = hC * A32;
+  const ha43C = hC * A43;
+  const ha54C = hC * A54;
+  const ha65C = hC * A65;
+  const hb6C = hC * B6;
   const pD = sD.bufs;
   const hD = sD.h;
   const rtolD = sD.rtol;
@@ -645,14 +713,29 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gD = sD.g;
   const oldD = sD.errOld;
   const hiD: f64 = sD.afterReject ? 1.0 : 10.0;
+  const kimD = kD * invMD;
+  const cimD = cD * invMD;
+  const ha21D = hD * A21;
+  const ha32D = hD * A32;
+  const ha43D = hD * A43;
+  const ha54D = hD * A54;
+  const ha65D = hD * A65;
+  const hb6D = hD * B6;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   v128.store(LANE_PARAMS + 0, pair(hA, hB));
   v128.store(LANE_PARAMS + 16, pair(kA, kB));
   v128.store(LANE_PARAMS + 32, pair(legA, legB));
   v128.store(LANE_PARAMS + 48, pair(cA, cB));
-  v128.store(LANE_PARAMS + 64, pair(invMA, invMB));
-  v128.store(LANE_PARAMS + 80, pair(gA, gB));
+  v128.store(LANE_PARAMS + 64, pair(kimA, kimB));
+  v128.store(LANE_PARAMS + 80, pair(cimA, cimB));
+  v128.store(LANE_PARAMS + 96, pair(gA, gB));
+  v128.store(LANE_PARAMS + 112, pair(ha21A, ha21B));
+  v128.store(LANE_PARAMS + 128, pair(ha32A, ha32B));
+  v128.store(LANE_PARAMS + 144, pair(ha43A, ha43B));
+  v128.store(LANE_PARAMS + 160, pair(ha54A, ha54B));
+  v128.store(LANE_PARAMS + 176, pair(ha65A, ha65B));
+  v128.store(LANE_PARAMS + 192, pair(hb6A, hb6B));
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -663,12 +746,19 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const a2X = gather(pA, pB, OFF_K1 + 16);
   const a3X = gather(pA, pB, OFF_K1 + 24);
   const a4X = gather(pA, pB, OFF_K1 + 32);
-  v128.store(LANE_PARAMS + 96, pair(hC, hD));
-  v128.store(LANE_PARAMS + 112, pair(kC, kD));
-  v128.store(LANE_PARAMS + 128, pair(legC, legD));
-  v128.store(LANE_PARAMS + 144, pair(cC, cD));
-  v128.store(LANE_PARAMS + 160, pair(invMC, invMD));
-  v128.store(LANE_PARAMS + 176, pair(gC, gD));
+  v128.store(LANE_PARAMS + 208, pair(hC, hD));
+  v128.store(LANE_PARAMS + 224, pair(kC, kD));
+  v128.store(LANE_PARAMS + 240, pair(legC, legD));
+  v128.store(LANE_PARAMS + 256, pair(cC, cD));
+  v128.store(LANE_PARAMS + 272, pair(kimC, kimD));
+  v128.store(LANE_PARAMS + 288, pair(cimC, cimD));
+  v128.store(LANE_PARAMS + 304, pair(gC, gD));
+  v128.store(LANE_PARAMS + 320, pair(ha21C, ha21D));
+  v128.store(LANE_PARAMS + 336, pair(ha32C, ha32D));
+  v128.store(LANE_PARAMS + 352, pair(ha43C, ha43D));
+  v128.store(LANE_PARAMS + 368, pair(ha54C, ha54D));
+  v128.store(LANE_PARAMS + 384, pair(ha65C, ha65D));
+  v128.store(LANE_PARAMS + 400, pair(hb6C, hb6D));
   const y0Y = gather(pC, pD, OFF_Y0 + 0);
   const y1Y = gather(pC, pD, OFF_Y0 + 8);
   const y2Y = gather(pC, pD, OFF_Y0 + 16);
@@ -681,247 +771,247 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const a4Y = gather(pC, pD, OFF_K1 + 32);
   let b0X: v128, b1X: v128, b2X: v128, b3X: v128, b4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a0X)));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a1X)));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a2X)));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a3X)));
+    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 112), a0X));
+    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 112), a1X));
+    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 112), a2X));
+    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 112), a3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       b0X = s2;
       b1X = s3;
-      b2X = f64x2.mul(acc, s0);
-      b3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      b2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       b4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let b0Y: v128, b1Y: v128, b2Y: v128, b3Y: v128, b4Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a0Y)));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a1Y)));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a2Y)));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a3Y)));
+    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a0Y));
+    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a1Y));
+    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a2Y));
+    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
       b0Y = s2;
       b1Y = s3;
-      b2Y = f64x2.mul(acc, s0);
-      b3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
-      b4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+      b2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
+      b4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128, c4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0X), f64x2.mul(v128.load(TABLEAU2 + 32), b0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1X), f64x2.mul(v128.load(TABLEAU2 + 32), b1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2X), f64x2.mul(v128.load(TABLEAU2 + 32), b2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3X), f64x2.mul(v128.load(TABLEAU2 + 32), b3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a0X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a1X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a2X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a3X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       c0X = s2;
       c1X = s3;
-      c2X = f64x2.mul(acc, s0);
-      c3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      c2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       c4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let c0Y: v128, c1Y: v128, c2Y: v128, c3Y: v128, c4Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0Y), f64x2.mul(v128.load(TABLEAU2 + 32), b0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1Y), f64x2.mul(v128.load(TABLEAU2 + 32), b1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2Y), f64x2.mul(v128.load(TABLEAU2 + 32), b2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3Y), f64x2.mul(v128.load(TABLEAU2 + 32), b3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a0Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a1Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a2Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a3Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
       c0Y = s2;
       c1Y = s3;
-      c2Y = f64x2.mul(acc, s0);
-      c3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
-      c4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+      c2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
+      c4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128, d4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)), f64x2.mul(v128.load(TABLEAU2 + 80), c0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)), f64x2.mul(v128.load(TABLEAU2 + 80), c1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)), f64x2.mul(v128.load(TABLEAU2 + 80), c2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)), f64x2.mul(v128.load(TABLEAU2 + 80), c3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       d0X = s2;
       d1X = s3;
-      d2X = f64x2.mul(acc, s0);
-      d3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      d2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       d4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let d0Y: v128, d1Y: v128, d2Y: v128, d3Y: v128, d4Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0Y), f64x2.mul(v128.load(TABLEAU2 + 64), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1Y), f64x2.mul(v128.load(TABLEAU2 + 64), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2Y), f64x2.mul(v128.load(TABLEAU2 + 64), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3Y), f64x2.mul(v128.load(TABLEAU2 + 64), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0Y), f64x2.mul(v128.load(TABLEAU2 + 64), b0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1Y), f64x2.mul(v128.load(TABLEAU2 + 64), b1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2Y), f64x2.mul(v128.load(TABLEAU2 + 64), b2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3Y), f64x2.mul(v128.load(TABLEAU2 + 64), b3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
       d0Y = s2;
       d1Y = s3;
-      d2Y = f64x2.mul(acc, s0);
-      d3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
-      d4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+      d2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
+      d4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128, e4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)), f64x2.mul(v128.load(TABLEAU2 + 144), d0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)), f64x2.mul(v128.load(TABLEAU2 + 144), d1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)), f64x2.mul(v128.load(TABLEAU2 + 144), d2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)), f64x2.mul(v128.load(TABLEAU2 + 144), d3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       e0X = s2;
       e1X = s3;
-      e2X = f64x2.mul(acc, s0);
-      e3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      e2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       e4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let e0Y: v128, e1Y: v128, e2Y: v128, e3Y: v128, e4Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0Y), f64x2.mul(v128.load(TABLEAU2 + 112), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1Y), f64x2.mul(v128.load(TABLEAU2 + 112), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2Y), f64x2.mul(v128.load(TABLEAU2 + 112), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3Y), f64x2.mul(v128.load(TABLEAU2 + 112), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0Y), f64x2.mul(v128.load(TABLEAU2 + 112), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1Y), f64x2.mul(v128.load(TABLEAU2 + 112), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2Y), f64x2.mul(v128.load(TABLEAU2 + 112), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3Y), f64x2.mul(v128.load(TABLEAU2 + 112), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
       e0Y = s2;
       e1Y = s3;
-      e2Y = f64x2.mul(acc, s0);
-      e3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
-      e4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+      e2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
+      e4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128, f4X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)), f64x2.mul(v128.load(TABLEAU2 + 224), e0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)), f64x2.mul(v128.load(TABLEAU2 + 224), e1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)), f64x2.mul(v128.load(TABLEAU2 + 224), e2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)), f64x2.mul(v128.load(TABLEAU2 + 224), e3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
       f0X = s2;
       f1X = s3;
-      f2X = f64x2.mul(acc, s0);
-      f3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      f2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
       f4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
     }
   }
   let f0Y: v128, f1Y: v128, f2Y: v128, f3Y: v128, f4Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0Y), f64x2.mul(v128.load(TABLEAU2 + 176), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1Y), f64x2.mul(v128.load(TABLEAU2 + 176), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2Y), f64x2.mul(v128.load(TABLEAU2 + 176), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3Y), f64x2.mul(v128.load(TABLEAU2 + 176), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0Y), f64x2.mul(v128.load(TABLEAU2 + 176), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1Y), f64x2.mul(v128.load(TABLEAU2 + 176), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2Y), f64x2.mul(v128.load(TABLEAU2 + 176), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3Y), f64x2.mul(v128.load(TABLEAU2 + 176), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
       const dot = f64x2.add(f64x2.mul(s0, s2), f64x2.mul(s1, s3));
       const rdot = f64x2.mul(dot, inv);
-      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
       f0Y = s2;
       f1Y = s3;
-      f2Y = f64x2.mul(acc, s0);
-      f3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
-      f4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+      f2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
+      f4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
     }
   }
-  const n0X = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)), f64x2.mul(v128.load(TABLEAU2 + 304), f0X))));
-  const n1X = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)), f64x2.mul(v128.load(TABLEAU2 + 304), f1X))));
-  const n2X = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)), f64x2.mul(v128.load(TABLEAU2 + 304), f2X))));
-  const n3X = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)), f64x2.mul(v128.load(TABLEAU2 + 304), f3X))));
-  const n4X = f64x2.add(y4X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4X), f64x2.mul(v128.load(TABLEAU2 + 256), c4X)), f64x2.mul(v128.load(TABLEAU2 + 272), d4X)), f64x2.mul(v128.load(TABLEAU2 + 288), e4X)), f64x2.mul(v128.load(TABLEAU2 + 304), f4X))));
-  const n0Y = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0Y), f64x2.mul(v128.load(TABLEAU2 + 256), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f0Y))));
-  const n1Y = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1Y), f64x2.mul(v128.load(TABLEAU2 + 256), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f1Y))));
-  const n2Y = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2Y), f64x2.mul(v128.load(TABLEAU2 + 256), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f2Y))));
-  const n3Y = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3Y), f64x2.mul(v128.load(TABLEAU2 + 256), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f3Y))));
-  const n4Y = f64x2.add(y4Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4Y), f64x2.mul(v128.load(TABLEAU2 + 256), c4Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d4Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e4Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f4Y))));
+  const n0X = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f0X));
+  const n1X = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f1X));
+  const n2X = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f2X));
+  const n3X = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f3X));
+  const n4X = f64x2.add(f64x2.add(y4X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4X), f64x2.mul(v128.load(TABLEAU2 + 256), c4X)), f64x2.mul(v128.load(TABLEAU2 + 272), d4X)), f64x2.mul(v128.load(TABLEAU2 + 288), e4X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f4X));
+  const n0Y = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0Y), f64x2.mul(v128.load(TABLEAU2 + 256), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f0Y));
+  const n1Y = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1Y), f64x2.mul(v128.load(TABLEAU2 + 256), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f1Y));
+  const n2Y = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2Y), f64x2.mul(v128.load(TABLEAU2 + 256), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f2Y));
+  const n3Y = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3Y), f64x2.mul(v128.load(TABLEAU2 + 256), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f3Y));
+  const n4Y = f64x2.add(f64x2.add(y4Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a4Y), f64x2.mul(v128.load(TABLEAU2 + 256), c4Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d4Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e4Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f4Y));
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128, g4X: v128;
   let rgX: v128, dgX: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
     rgX = r;
     dgX = dot;
     const rdot = f64x2.mul(dot, inv);
-    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 48), rdot));
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)), f64x2.mul(v128.load(LANE_PARAMS + 80), rdot));
     g0X = n2X;
     g1X = n3X;
-    g2X = f64x2.mul(acc, n0X);
-    g3X = f64x2.sub(f64x2.mul(acc, n1X), v128.load(LANE_PARAMS + 80));
+    g2X = f64x2.mul(force, f64x2.mul(inv, n0X));
+    g3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1X)), v128.load(LANE_PARAMS + 96));
     g4X = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 48), rdot), rdot);
   }
   let g0Y: v128, g1Y: v128, g2Y: v128, g3Y: v128, g4Y: v128;
   let rgY: v128, dgY: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y));
     rgY = r;
     dgY = dot;
     const rdot = f64x2.mul(dot, inv);
-    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)), f64x2.mul(v128.load(LANE_PARAMS + 144), rdot));
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+    const force = f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)), f64x2.mul(v128.load(LANE_PARAMS + 288), rdot));
     g0Y = n2Y;
     g1Y = n3Y;
-    g2Y = f64x2.mul(acc, n0Y);
-    g3Y = f64x2.sub(f64x2.mul(acc, n1Y), v128.load(LANE_PARAMS + 176));
-    g4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 144), rdot), rdot);
+    g2Y = f64x2.mul(force, f64x2.mul(inv, n0Y));
+    g3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1Y)), v128.load(LANE_PARAMS + 304));
+    g4Y = f64x2.mul(f64x2.mul(v128.load(LANE_PARAMS + 256), rdot), rdot);
   }
   const RTOLX = pair(rtolA, rtolB);
   const ATOLX = pair(atolA, atolB);
@@ -968,35 +1058,35 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   let sumY = f64x2(0.0, 0.0);
   let finiteY = f64x2(0.0, 0.0);
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a0Y), f64x2.mul(v128.load(TABLEAU2 + 336), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f0Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g0Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a0Y), f64x2.mul(v128.load(TABLEAU2 + 336), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f0Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g0Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y0Y), f64x2.abs(n0Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n0Y, n0Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a1Y), f64x2.mul(v128.load(TABLEAU2 + 336), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f1Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g1Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a1Y), f64x2.mul(v128.load(TABLEAU2 + 336), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f1Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g1Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y1Y), f64x2.abs(n1Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n1Y, n1Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a2Y), f64x2.mul(v128.load(TABLEAU2 + 336), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f2Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g2Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a2Y), f64x2.mul(v128.load(TABLEAU2 + 336), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f2Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g2Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y2Y), f64x2.abs(n2Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n2Y, n2Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a3Y), f64x2.mul(v128.load(TABLEAU2 + 336), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f3Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g3Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a3Y), f64x2.mul(v128.load(TABLEAU2 + 336), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f3Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g3Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y3Y), f64x2.abs(n3Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n3Y, n3Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a4Y), f64x2.mul(v128.load(TABLEAU2 + 336), c4Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d4Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e4Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f4Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g4Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a4Y), f64x2.mul(v128.load(TABLEAU2 + 336), c4Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d4Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e4Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f4Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g4Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y4Y), f64x2.abs(n4Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
@@ -1085,8 +1175,8 @@ function fullStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
     // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
     const nr = rgY; // sqrt(px^2 + py^2) at YN, from K7's right-hand side
     const nrdot = f64x2.div(dgY, nr); // (px vx + py vy) / r
-    v128.store(LANE_END + 80, f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), nr)), f64x2.mul(v128.load(LANE_PARAMS + 144), nrdot))); // leg force
-    v128.store(LANE_END + 96, f64x2.sub(nr, v128.load(LANE_PARAMS + 128))); // r - L0
+    v128.store(LANE_END + 80, f64x2.sub(f64x2.mul(v128.load(LANE_PARAMS + 224), f64x2.sub(v128.load(LANE_PARAMS + 240), nr)), f64x2.mul(v128.load(LANE_PARAMS + 256), nrdot))); // leg force
+    v128.store(LANE_END + 96, f64x2.sub(nr, v128.load(LANE_PARAMS + 240))); // r - L0
     v128.store(LANE_END + 112, nrdot);
     v128.store(LANE_END + 128, f64x2.abs(f64x2.div(n0Y, n1Y))); // friction ratio
     // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)
@@ -1114,6 +1204,13 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gA = sA.g;
   const oldA = sA.errOld;
   const hiA: f64 = sA.afterReject ? 1.0 : 10.0;
+  const kimA = kA * invMA;
+  const ha21A = hA * A21;
+  const ha32A = hA * A32;
+  const ha43A = hA * A43;
+  const ha54A = hA * A54;
+  const ha65A = hA * A65;
+  const hb6A = hA * B6;
   const pB = sB.bufs;
   const hB = sB.h;
   const rtolB = sB.rtol;
@@ -1125,6 +1222,13 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gB = sB.g;
   const oldB = sB.errOld;
   const hiB: f64 = sB.afterReject ? 1.0 : 10.0;
+  const kimB = kB * invMB;
+  const ha21B = hB * A21;
+  const ha32B = hB * A32;
+  const ha43B = hB * A43;
+  const ha54B = hB * A54;
+  const ha65B = hB * A65;
+  const hb6B = hB * B6;
   const pC = sC.bufs;
   const hC = sC.h;
   const rtolC = sC.rtol;
@@ -1136,6 +1240,13 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gC = sC.g;
   const oldC = sC.errOld;
   const hiC: f64 = sC.afterReject ? 1.0 : 10.0;
+  const kimC = kC * invMC;
+  const ha21C = hC * A21;
+  const ha32C = hC * A32;
+  const ha43C = hC * A43;
+  const ha54C = hC * A54;
+  const ha65C = hC * A65;
+  const hb6C = hC * B6;
   const pD = sD.bufs;
   const hD = sD.h;
   const rtolD = sD.rtol;
@@ -1147,13 +1258,26 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const gD = sD.g;
   const oldD = sD.errOld;
   const hiD: f64 = sD.afterReject ? 1.0 : 10.0;
+  const kimD = kD * invMD;
+  const ha21D = hD * A21;
+  const ha32D = hD * A32;
+  const ha43D = hD * A43;
+  const ha54D = hD * A54;
+  const ha65D = hD * A65;
+  const hb6D = hD * B6;
   const ONE = f64x2(1.0, 1.0);
   const ZERO = f64x2(0.0, 0.0);
   v128.store(LANE_PARAMS + 0, pair(hA, hB));
   v128.store(LANE_PARAMS + 16, pair(kA, kB));
   v128.store(LANE_PARAMS + 32, pair(legA, legB));
-  v128.store(LANE_PARAMS + 64, pair(invMA, invMB));
-  v128.store(LANE_PARAMS + 80, pair(gA, gB));
+  v128.store(LANE_PARAMS + 64, pair(kimA, kimB));
+  v128.store(LANE_PARAMS + 96, pair(gA, gB));
+  v128.store(LANE_PARAMS + 112, pair(ha21A, ha21B));
+  v128.store(LANE_PARAMS + 128, pair(ha32A, ha32B));
+  v128.store(LANE_PARAMS + 144, pair(ha43A, ha43B));
+  v128.store(LANE_PARAMS + 160, pair(ha54A, ha54B));
+  v128.store(LANE_PARAMS + 176, pair(ha65A, ha65B));
+  v128.store(LANE_PARAMS + 192, pair(hb6A, hb6B));
   const y0X = gather(pA, pB, OFF_Y0 + 0);
   const y1X = gather(pA, pB, OFF_Y0 + 8);
   const y2X = gather(pA, pB, OFF_Y0 + 16);
@@ -1163,11 +1287,17 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const a1X = gather(pA, pB, OFF_K1 + 8);
   const a2X = gather(pA, pB, OFF_K1 + 16);
   const a3X = gather(pA, pB, OFF_K1 + 24);
-  v128.store(LANE_PARAMS + 96, pair(hC, hD));
-  v128.store(LANE_PARAMS + 112, pair(kC, kD));
-  v128.store(LANE_PARAMS + 128, pair(legC, legD));
-  v128.store(LANE_PARAMS + 160, pair(invMC, invMD));
-  v128.store(LANE_PARAMS + 176, pair(gC, gD));
+  v128.store(LANE_PARAMS + 208, pair(hC, hD));
+  v128.store(LANE_PARAMS + 224, pair(kC, kD));
+  v128.store(LANE_PARAMS + 240, pair(legC, legD));
+  v128.store(LANE_PARAMS + 272, pair(kimC, kimD));
+  v128.store(LANE_PARAMS + 304, pair(gC, gD));
+  v128.store(LANE_PARAMS + 320, pair(ha21C, ha21D));
+  v128.store(LANE_PARAMS + 336, pair(ha32C, ha32D));
+  v128.store(LANE_PARAMS + 352, pair(ha43C, ha43D));
+  v128.store(LANE_PARAMS + 368, pair(ha54C, ha54D));
+  v128.store(LANE_PARAMS + 384, pair(ha65C, ha65D));
+  v128.store(LANE_PARAMS + 400, pair(hb6C, hb6D));
   const y0Y = gather(pC, pD, OFF_Y0 + 0);
   const y1Y = gather(pC, pD, OFF_Y0 + 8);
   const y2Y = gather(pC, pD, OFF_Y0 + 16);
@@ -1179,213 +1309,213 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   const a3Y = gather(pC, pD, OFF_K1 + 24);
   let b0X: v128, b1X: v128, b2X: v128, b3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a0X)));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a1X)));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a2X)));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 0), a3X)));
+    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 112), a0X));
+    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 112), a1X));
+    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 112), a2X));
+    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 112), a3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       b0X = s2;
       b1X = s3;
-      b2X = f64x2.mul(acc, s0);
-      b3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      b2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let b0Y: v128, b1Y: v128, b2Y: v128, b3Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a0Y)));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a1Y)));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a2Y)));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.mul(v128.load(TABLEAU2 + 0), a3Y)));
+    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a0Y));
+    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a1Y));
+    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a2Y));
+    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 320), a3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
       b0Y = s2;
       b1Y = s3;
-      b2Y = f64x2.mul(acc, s0);
-      b3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
+      b2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      b3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
     }
   }
   let c0X: v128, c1X: v128, c2X: v128, c3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0X), f64x2.mul(v128.load(TABLEAU2 + 32), b0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1X), f64x2.mul(v128.load(TABLEAU2 + 32), b1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2X), f64x2.mul(v128.load(TABLEAU2 + 32), b2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3X), f64x2.mul(v128.load(TABLEAU2 + 32), b3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a0X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a1X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a2X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.mul(v128.load(TABLEAU2 + 16), a3X))), f64x2.mul(v128.load(LANE_PARAMS + 128), b3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       c0X = s2;
       c1X = s3;
-      c2X = f64x2.mul(acc, s0);
-      c3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      c2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let c0Y: v128, c1Y: v128, c2Y: v128, c3Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a0Y), f64x2.mul(v128.load(TABLEAU2 + 32), b0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a1Y), f64x2.mul(v128.load(TABLEAU2 + 32), b1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a2Y), f64x2.mul(v128.load(TABLEAU2 + 32), b2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 16), a3Y), f64x2.mul(v128.load(TABLEAU2 + 32), b3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a0Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a1Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a2Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.mul(v128.load(TABLEAU2 + 16), a3Y))), f64x2.mul(v128.load(LANE_PARAMS + 336), b3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
       c0Y = s2;
       c1Y = s3;
-      c2Y = f64x2.mul(acc, s0);
-      c3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
+      c2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      c3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
     }
   }
   let d0X: v128, d1X: v128, d2X: v128, d3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)), f64x2.mul(v128.load(TABLEAU2 + 80), c0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)), f64x2.mul(v128.load(TABLEAU2 + 80), c1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)), f64x2.mul(v128.load(TABLEAU2 + 80), c2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)), f64x2.mul(v128.load(TABLEAU2 + 80), c3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0X), f64x2.mul(v128.load(TABLEAU2 + 64), b0X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1X), f64x2.mul(v128.load(TABLEAU2 + 64), b1X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2X), f64x2.mul(v128.load(TABLEAU2 + 64), b2X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3X), f64x2.mul(v128.load(TABLEAU2 + 64), b3X)))), f64x2.mul(v128.load(LANE_PARAMS + 144), c3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       d0X = s2;
       d1X = s3;
-      d2X = f64x2.mul(acc, s0);
-      d3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      d2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let d0Y: v128, d1Y: v128, d2Y: v128, d3Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0Y), f64x2.mul(v128.load(TABLEAU2 + 64), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1Y), f64x2.mul(v128.load(TABLEAU2 + 64), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2Y), f64x2.mul(v128.load(TABLEAU2 + 64), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3Y), f64x2.mul(v128.load(TABLEAU2 + 64), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 80), c3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a0Y), f64x2.mul(v128.load(TABLEAU2 + 64), b0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a1Y), f64x2.mul(v128.load(TABLEAU2 + 64), b1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a2Y), f64x2.mul(v128.load(TABLEAU2 + 64), b2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 48), a3Y), f64x2.mul(v128.load(TABLEAU2 + 64), b3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 352), c3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
       d0Y = s2;
       d1Y = s3;
-      d2Y = f64x2.mul(acc, s0);
-      d3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
+      d2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      d3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
     }
   }
   let e0X: v128, e1X: v128, e2X: v128, e3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)), f64x2.mul(v128.load(TABLEAU2 + 144), d0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)), f64x2.mul(v128.load(TABLEAU2 + 144), d1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)), f64x2.mul(v128.load(TABLEAU2 + 144), d2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)), f64x2.mul(v128.load(TABLEAU2 + 144), d3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0X), f64x2.mul(v128.load(TABLEAU2 + 112), b0X)), f64x2.mul(v128.load(TABLEAU2 + 128), c0X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1X), f64x2.mul(v128.load(TABLEAU2 + 112), b1X)), f64x2.mul(v128.load(TABLEAU2 + 128), c1X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2X), f64x2.mul(v128.load(TABLEAU2 + 112), b2X)), f64x2.mul(v128.load(TABLEAU2 + 128), c2X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3X), f64x2.mul(v128.load(TABLEAU2 + 112), b3X)), f64x2.mul(v128.load(TABLEAU2 + 128), c3X)))), f64x2.mul(v128.load(LANE_PARAMS + 160), d3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       e0X = s2;
       e1X = s3;
-      e2X = f64x2.mul(acc, s0);
-      e3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      e2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let e0Y: v128, e1Y: v128, e2Y: v128, e3Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0Y), f64x2.mul(v128.load(TABLEAU2 + 112), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1Y), f64x2.mul(v128.load(TABLEAU2 + 112), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2Y), f64x2.mul(v128.load(TABLEAU2 + 112), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3Y), f64x2.mul(v128.load(TABLEAU2 + 112), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 144), d3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a0Y), f64x2.mul(v128.load(TABLEAU2 + 112), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a1Y), f64x2.mul(v128.load(TABLEAU2 + 112), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a2Y), f64x2.mul(v128.load(TABLEAU2 + 112), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 96), a3Y), f64x2.mul(v128.load(TABLEAU2 + 112), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 128), c3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 368), d3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
       e0Y = s2;
       e1Y = s3;
-      e2Y = f64x2.mul(acc, s0);
-      e3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
+      e2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      e3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
     }
   }
   let f0X: v128, f1X: v128, f2X: v128, f3X: v128;
   {
-    const s0 = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)), f64x2.mul(v128.load(TABLEAU2 + 224), e0X))));
-    const s1 = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)), f64x2.mul(v128.load(TABLEAU2 + 224), e1X))));
-    const s2 = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)), f64x2.mul(v128.load(TABLEAU2 + 224), e2X))));
-    const s3 = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)), f64x2.mul(v128.load(TABLEAU2 + 224), e3X))));
+    const s0 = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0X), f64x2.mul(v128.load(TABLEAU2 + 176), b0X)), f64x2.mul(v128.load(TABLEAU2 + 192), c0X)), f64x2.mul(v128.load(TABLEAU2 + 208), d0X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e0X));
+    const s1 = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1X), f64x2.mul(v128.load(TABLEAU2 + 176), b1X)), f64x2.mul(v128.load(TABLEAU2 + 192), c1X)), f64x2.mul(v128.load(TABLEAU2 + 208), d1X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e1X));
+    const s2 = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2X), f64x2.mul(v128.load(TABLEAU2 + 176), b2X)), f64x2.mul(v128.load(TABLEAU2 + 192), c2X)), f64x2.mul(v128.load(TABLEAU2 + 208), d2X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e2X));
+    const s3 = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3X), f64x2.mul(v128.load(TABLEAU2 + 176), b3X)), f64x2.mul(v128.load(TABLEAU2 + 192), c3X)), f64x2.mul(v128.load(TABLEAU2 + 208), d3X)))), f64x2.mul(v128.load(LANE_PARAMS + 176), e3X));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
       f0X = s2;
       f1X = s3;
-      f2X = f64x2.mul(acc, s0);
-      f3X = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 80));
+      f2X = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 96));
     }
   }
   let f0Y: v128, f1Y: v128, f2Y: v128, f3Y: v128;
   {
-    const s0 = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0Y), f64x2.mul(v128.load(TABLEAU2 + 176), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e0Y))));
-    const s1 = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1Y), f64x2.mul(v128.load(TABLEAU2 + 176), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e1Y))));
-    const s2 = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2Y), f64x2.mul(v128.load(TABLEAU2 + 176), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e2Y))));
-    const s3 = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3Y), f64x2.mul(v128.load(TABLEAU2 + 176), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 224), e3Y))));
+    const s0 = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a0Y), f64x2.mul(v128.load(TABLEAU2 + 176), b0Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e0Y));
+    const s1 = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a1Y), f64x2.mul(v128.load(TABLEAU2 + 176), b1Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e1Y));
+    const s2 = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a2Y), f64x2.mul(v128.load(TABLEAU2 + 176), b2Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e2Y));
+    const s3 = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 160), a3Y), f64x2.mul(v128.load(TABLEAU2 + 176), b3Y)), f64x2.mul(v128.load(TABLEAU2 + 192), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 208), d3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 384), e3Y));
     {
-      const r = f64x2.sqrt(f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1)));
-      const inv = f64x2.div(ONE, r);
-      const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-      const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+      const r2 = f64x2.add(f64x2.mul(s0, s0), f64x2.mul(s1, s1));
+      const r = f64x2.sqrt(r2);
+      const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
+      const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
       f0Y = s2;
       f1Y = s3;
-      f2Y = f64x2.mul(acc, s0);
-      f3Y = f64x2.sub(f64x2.mul(acc, s1), v128.load(LANE_PARAMS + 176));
+      f2Y = f64x2.mul(force, f64x2.mul(inv, s0));
+      f3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, s1)), v128.load(LANE_PARAMS + 304));
     }
   }
-  const n0X = f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)), f64x2.mul(v128.load(TABLEAU2 + 304), f0X))));
-  const n1X = f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)), f64x2.mul(v128.load(TABLEAU2 + 304), f1X))));
-  const n2X = f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)), f64x2.mul(v128.load(TABLEAU2 + 304), f2X))));
-  const n3X = f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)), f64x2.mul(v128.load(TABLEAU2 + 304), f3X))));
-  const n4X = y4X; // the work: +0 + h (+0 ...) = +0 without damping
-  const n0Y = f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0Y), f64x2.mul(v128.load(TABLEAU2 + 256), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f0Y))));
-  const n1Y = f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1Y), f64x2.mul(v128.load(TABLEAU2 + 256), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f1Y))));
-  const n2Y = f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2Y), f64x2.mul(v128.load(TABLEAU2 + 256), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f2Y))));
-  const n3Y = f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3Y), f64x2.mul(v128.load(TABLEAU2 + 256), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 304), f3Y))));
-  const n4Y = y4Y; // the work: +0 + h (+0 ...) = +0 without damping
+  const n0X = f64x2.add(f64x2.add(y0X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0X), f64x2.mul(v128.load(TABLEAU2 + 256), c0X)), f64x2.mul(v128.load(TABLEAU2 + 272), d0X)), f64x2.mul(v128.load(TABLEAU2 + 288), e0X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f0X));
+  const n1X = f64x2.add(f64x2.add(y1X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1X), f64x2.mul(v128.load(TABLEAU2 + 256), c1X)), f64x2.mul(v128.load(TABLEAU2 + 272), d1X)), f64x2.mul(v128.load(TABLEAU2 + 288), e1X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f1X));
+  const n2X = f64x2.add(f64x2.add(y2X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2X), f64x2.mul(v128.load(TABLEAU2 + 256), c2X)), f64x2.mul(v128.load(TABLEAU2 + 272), d2X)), f64x2.mul(v128.load(TABLEAU2 + 288), e2X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f2X));
+  const n3X = f64x2.add(f64x2.add(y3X, f64x2.mul(v128.load(LANE_PARAMS + 0), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3X), f64x2.mul(v128.load(TABLEAU2 + 256), c3X)), f64x2.mul(v128.load(TABLEAU2 + 272), d3X)), f64x2.mul(v128.load(TABLEAU2 + 288), e3X)))), f64x2.mul(v128.load(LANE_PARAMS + 192), f3X));
+  const n4X = y4X; // the work: (+0 + h (+0 ...)) + hB6 (+0) = +0 without damping
+  const n0Y = f64x2.add(f64x2.add(y0Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a0Y), f64x2.mul(v128.load(TABLEAU2 + 256), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e0Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f0Y));
+  const n1Y = f64x2.add(f64x2.add(y1Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a1Y), f64x2.mul(v128.load(TABLEAU2 + 256), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e1Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f1Y));
+  const n2Y = f64x2.add(f64x2.add(y2Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a2Y), f64x2.mul(v128.load(TABLEAU2 + 256), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e2Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f2Y));
+  const n3Y = f64x2.add(f64x2.add(y3Y, f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 240), a3Y), f64x2.mul(v128.load(TABLEAU2 + 256), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 272), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 288), e3Y)))), f64x2.mul(v128.load(LANE_PARAMS + 400), f3Y));
+  const n4Y = y4Y; // the work: (+0 + h (+0 ...)) + hB6 (+0) = +0 without damping
   let g0X: v128, g1X: v128, g2X: v128, g3X: v128;
   let rgX: v128, dgX: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0X, n0X), f64x2.mul(n1X, n1X));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0X, n2X), f64x2.mul(n1X, n3X));
     rgX = r;
     dgX = dot;
-    const force = f64x2.mul(v128.load(LANE_PARAMS + 16), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - c r' = - (+-0)
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 64));
+    const force = f64x2.mul(v128.load(LANE_PARAMS + 64), f64x2.sub(v128.load(LANE_PARAMS + 32), r)); // - (c/m) r' = - (+-0)
     g0X = n2X;
     g1X = n3X;
-    g2X = f64x2.mul(acc, n0X);
-    g3X = f64x2.sub(f64x2.mul(acc, n1X), v128.load(LANE_PARAMS + 80));
+    g2X = f64x2.mul(force, f64x2.mul(inv, n0X));
+    g3X = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1X)), v128.load(LANE_PARAMS + 96));
   }
   let g0Y: v128, g1Y: v128, g2Y: v128, g3Y: v128;
   let rgY: v128, dgY: v128;
   {
-    const r = f64x2.sqrt(f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y)));
-    const inv = f64x2.div(ONE, r);
+    const r2 = f64x2.add(f64x2.mul(n0Y, n0Y), f64x2.mul(n1Y, n1Y));
+    const r = f64x2.sqrt(r2);
+    const inv = f64x2.mul(r, f64x2.div(ONE, r2)); // 1/r = r (1/r^2): the root and the division side by side
     const dot = f64x2.add(f64x2.mul(n0Y, n2Y), f64x2.mul(n1Y, n3Y));
     rgY = r;
     dgY = dot;
-    const force = f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), r)); // - c r' = - (+-0)
-    const acc = f64x2.mul(f64x2.mul(force, inv), v128.load(LANE_PARAMS + 160));
+    const force = f64x2.mul(v128.load(LANE_PARAMS + 272), f64x2.sub(v128.load(LANE_PARAMS + 240), r)); // - (c/m) r' = - (+-0)
     g0Y = n2Y;
     g1Y = n3Y;
-    g2Y = f64x2.mul(acc, n0Y);
-    g3Y = f64x2.sub(f64x2.mul(acc, n1Y), v128.load(LANE_PARAMS + 176));
+    g2Y = f64x2.mul(force, f64x2.mul(inv, n0Y));
+    g3Y = f64x2.sub(f64x2.mul(force, f64x2.mul(inv, n1Y)), v128.load(LANE_PARAMS + 304));
   }
   const RTOLX = pair(rtolA, rtolB);
   const ATOLX = pair(atolA, atolB);
@@ -1425,28 +1555,28 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
   let sumY = f64x2(0.0, 0.0);
   let finiteY = f64x2(0.0, 0.0);
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a0Y), f64x2.mul(v128.load(TABLEAU2 + 336), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f0Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g0Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a0Y), f64x2.mul(v128.load(TABLEAU2 + 336), c0Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d0Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e0Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f0Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g0Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y0Y), f64x2.abs(n0Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n0Y, n0Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a1Y), f64x2.mul(v128.load(TABLEAU2 + 336), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f1Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g1Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a1Y), f64x2.mul(v128.load(TABLEAU2 + 336), c1Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d1Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e1Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f1Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g1Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y1Y), f64x2.abs(n1Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n1Y, n1Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a2Y), f64x2.mul(v128.load(TABLEAU2 + 336), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f2Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g2Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a2Y), f64x2.mul(v128.load(TABLEAU2 + 336), c2Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d2Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e2Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f2Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g2Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y2Y), f64x2.abs(n2Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
     finiteY = f64x2.add(finiteY, f64x2.sub(n2Y, n2Y));
   }
   {
-    const e = f64x2.mul(v128.load(LANE_PARAMS + 96), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a3Y), f64x2.mul(v128.load(TABLEAU2 + 336), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f3Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g3Y)));
+    const e = f64x2.mul(v128.load(LANE_PARAMS + 208), f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.add(f64x2.mul(v128.load(TABLEAU2 + 320), a3Y), f64x2.mul(v128.load(TABLEAU2 + 336), c3Y)), f64x2.mul(v128.load(TABLEAU2 + 352), d3Y)), f64x2.mul(v128.load(TABLEAU2 + 368), e3Y)), f64x2.mul(v128.load(TABLEAU2 + 384), f3Y)), f64x2.mul(v128.load(TABLEAU2 + 400), g3Y)));
     const sc = f64x2.add(ATOLY, f64x2.mul(RTOLY, f64x2.max(f64x2.abs(y3Y), f64x2.abs(n3Y))));
     const q = f64x2.div(e, sc);
     sumY = f64x2.add(sumY, f64x2.mul(q, q));
@@ -1535,8 +1665,8 @@ function springStepQuad(sA: Stance, sB: Stance, sC: Stance, sD: Stance): void {
     // the step-end quantities of stanceAfterLaneStep (stance.ts), its arithmetic
     const nr = rgY; // sqrt(px^2 + py^2) at YN, from K7's right-hand side
     const nrdot = f64x2.div(dgY, nr); // (px vx + py vy) / r
-    v128.store(LANE_END + 80, f64x2.mul(v128.load(LANE_PARAMS + 112), f64x2.sub(v128.load(LANE_PARAMS + 128), nr))); // leg force
-    v128.store(LANE_END + 96, f64x2.sub(nr, v128.load(LANE_PARAMS + 128))); // r - L0
+    v128.store(LANE_END + 80, f64x2.mul(v128.load(LANE_PARAMS + 224), f64x2.sub(v128.load(LANE_PARAMS + 240), nr))); // leg force
+    v128.store(LANE_END + 96, f64x2.sub(nr, v128.load(LANE_PARAMS + 240))); // r - L0
     v128.store(LANE_END + 112, nrdot);
     v128.store(LANE_END + 128, f64x2.abs(f64x2.div(n0Y, n1Y))); // friction ratio
     // acceptFactor(err, afterReject) with the lane's controller memory (dopri5.ts)

@@ -15,6 +15,10 @@ export let stanceLeg: f64 = 1.0; // m, rest length L0
 export let stanceK: f64 = 1.0; // N/m, current stiffness (switches at max compression)
 export let stanceC: f64 = 0.0; // N·s/m, leg damping
 export let stanceG: f64 = 9.80665; // m/s^2
+// k/m and c/m, kept equal to stanceK * stanceInvMass and stanceC * stanceInvMass by every setter
+// (the lane steps in dopri5x2.ts form the same products).
+export let stanceKInvM: f64 = 1.0;
+export let stanceCInvM: f64 = 0.0;
 
 // Arenstorf restricted three-body problem (Hairer, Nørsett, Wanner, Solving ODEs I, II.0).
 export let arenstorfMu: f64 = 0.012277471;
@@ -27,6 +31,8 @@ export function setStance(m: f64, leg: f64, k: f64, c: f64, g: f64): void {
   stanceK = k;
   stanceC = c;
   stanceG = g;
+  stanceKInvM = k * stanceInvMass;
+  stanceCInvM = c * stanceInvMass;
 }
 
 // The stance parameters as setStance leaves them (invM = 1/m), for a rollout
@@ -39,6 +45,8 @@ export function setStanceParams(m: f64, invM: f64, leg: f64, k: f64, c: f64, g: 
   stanceK = k;
   stanceC = c;
   stanceG = g;
+  stanceKInvM = k * stanceInvMass;
+  stanceCInvM = c * stanceInvMass;
 }
 
 // Two legs in stance (double support), feet at (bipedFx*, bipedFy*) relative to the origin of
@@ -80,6 +88,7 @@ export function setBipedStiffness(leg: i32, k: f64): void {
 
 export function setStiffness(k: f64): void {
   stanceK = k;
+  stanceKInvM = k * stanceInvMass;
 }
 
 export function setArenstorf(mu: f64): void {
@@ -88,19 +97,19 @@ export function setArenstorf(mu: f64): void {
 }
 
 // Stance with the foot pinned at the origin of (px, py) = body - foot:
-//   m px'' = F px / r,  m py'' = F py / r - m g,  F = k (L0 - r) - c r',
+//   m px'' = F px / r,  m py'' = F py / r - m g,  F = k (L0 - r) - c r'  (formed as F/m),
 //   W' = c r'^2 (work dissipated by the damper).
 // State layout: [px, py, vx, vy, W].
 @inline function stanceRhs(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
-  const r = Math.sqrt(px * px + py * py);
-  const inv = 1.0 / r;
+  const r2 = px * px + py * py;
+  const r = Math.sqrt(r2);
+  const inv = r * (1.0 / r2); // 1/r: the root and the division side by side, not one after the other
   const rdot = (px * vx + py * vy) * inv;
-  const force = stanceK * (stanceLeg - r) - stanceC * rdot;
-  const a = force * inv * stanceInvMass;
+  const f = stanceKInvM * (stanceLeg - r) - stanceCInvM * rdot; // F / m
   store<f64>(dy, vx, 0);
   store<f64>(dy, vy, 8);
-  store<f64>(dy, a * px, 16);
-  store<f64>(dy, a * py - stanceG, 24);
+  store<f64>(dy, f * (inv * px), 16);
+  store<f64>(dy, f * (inv * py) - stanceG, 24);
   store<f64>(dy, stanceC * rdot * rdot, 32);
 }
 
@@ -122,14 +131,16 @@ export function setArenstorf(mu: f64): void {
 @inline function bipedRhs(px: f64, py: f64, vx: f64, vy: f64, dy: usize): void {
   const dx0 = px - bipedFx0;
   const dy0 = py - bipedFy0;
-  const r0 = Math.sqrt(dx0 * dx0 + dy0 * dy0);
-  const inv0 = 1.0 / r0;
+  const r0sq = dx0 * dx0 + dy0 * dy0;
+  const r0 = Math.sqrt(r0sq);
+  const inv0 = r0 * (1.0 / r0sq);
   const rdot0 = (dx0 * vx + dy0 * vy) * inv0;
   const a0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
   const dx1 = px - bipedFx1;
   const dy1 = py - bipedFy1;
-  const r1 = Math.sqrt(dx1 * dx1 + dy1 * dy1);
-  const inv1 = 1.0 / r1;
+  const r1sq = dx1 * dx1 + dy1 * dy1;
+  const r1 = Math.sqrt(r1sq);
+  const inv1 = r1 * (1.0 / r1sq);
   const rdot1 = (dx1 * vx + dy1 * vy) * inv1;
   const a1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
   store<f64>(dy, vx, 0);
@@ -193,4 +204,6 @@ export function loadSystem(p: usize): void {
   bipedK1 = load<f64>(p, 112);
   bipedC0 = load<f64>(p, 120);
   bipedC1 = load<f64>(p, 128);
+  stanceKInvM = stanceK * stanceInvMass;
+  stanceCInvM = stanceC * stanceInvMass;
 }
