@@ -24,7 +24,7 @@
 //
 // Batches (runBipedBatch): two or four rollouts take turns between steps, each with its own state
 // block (BipedState), legs, record scratch and stepper buffers. A walking step with undamped legs
-// is taken for all of them at once in f64x2 lanes (rk/biped-x2.ts, step4w's arithmetic), and a
+// is taken for all of them at once in f64x2 lanes (rk/biped-x2.ts, step4's arithmetic), and a
 // step with no event inside it is finished for each without switching to it (laneAfterQuiet,
 // contactAfter's arithmetic); every other step, event and stride runs the one-rollout code on the
 // lane's state. Each rollout's records and summary are the bytes runBipedRollout gives.
@@ -70,7 +70,7 @@ import {
 import {
   rhs, setStance, setStiffness, setBiped, setBipedStiffness,
   stanceInvMass, stanceLeg as sysLeg, stanceK, stanceC, stanceG, stanceKInvM,
-  bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1,
+  bipedFx0, bipedFy0, bipedFx1, bipedFy1, bipedL0, bipedL1, bipedK0, bipedK1, bipedC0, bipedC1, bipedKInvM0, bipedKInvM1,
   saveSystem, loadSystem, SYSTEM_STATE_BYTES,
 } from "./rk/system";
 import { P11, P12, P13, P14, P32, P33, P34, P42, P43, P44, P52, P53, P54, P62, P63, P64, P72, P73, P74 } from "./rk/tableau";
@@ -482,15 +482,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = bp0 - bipedFx1;
     const dy1 = bp1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    b2 = ac0 * dx0 + ac1 * dx1;
-    b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    b2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    b3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const b0 = bp2;
   const b1 = bp3;
@@ -516,15 +516,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = cp0 - bipedFx1;
     const dy1 = cp1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    c2 = ac0 * dx0 + ac1 * dx1;
-    c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    c2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    c3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const c0 = cp2;
   const c1 = cp3;
@@ -550,15 +550,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = dp0 - bipedFx1;
     const dy1 = dp1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    d2 = ac0 * dx0 + ac1 * dx1;
-    d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    d2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    d3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const d0 = dp2;
   const d1 = dp3;
@@ -584,15 +584,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = ep0 - bipedFx1;
     const dy1 = ep1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    e2 = ac0 * dx0 + ac1 * dx1;
-    e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    e2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    e3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const e0 = ep2;
   const e1 = ep3;
@@ -618,15 +618,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = fp0 - bipedFx1;
     const dy1 = fp1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    f2 = ac0 * dx0 + ac1 * dx1;
-    f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    f2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    f3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const f0 = fp2;
   const f1 = fp3;
@@ -660,15 +660,15 @@ function step4(h: f64): f64 {
     const r0sq = dx0 * dx0 + dy0 * dy0;
     const r0 = Math.sqrt(r0sq);
     const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
+    const f0 = bipedKInvM0 * (bipedL0 - r0); // F/m of leg 0, as bipedRhs (system.ts)
     const dx1 = gp0 - bipedFx1;
     const dy1 = gp1 - bipedFy1;
     const r1sq = dx1 * dx1 + dy1 * dy1;
     const r1 = Math.sqrt(r1sq);
     const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    g2 = ac0 * dx0 + ac1 * dx1;
-    g3 = ac0 * dy0 + ac1 * dy1 - stanceG;
+    const f1 = bipedKInvM1 * (bipedL1 - r1);
+    g2 = f0 * (inv0 * dx0) + f1 * (inv1 * dx1);
+    g3 = f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG;
   }
   const g0 = gp2;
   const g1 = gp3;
@@ -712,281 +712,6 @@ function step4(h: f64): f64 {
   return err;
 }
 
-
-// step4 for walking strides (no bit-identity with the single-leg model to keep): each stage's
-// newest derivative enters last, as y + h (older terms) + (h a_ij) k_j, so the sum over the
-// older stages is formed while the newest is still being computed. Rounding differs from
-// step4's at the level of the last bit; the order of the method is the same.
-function step4w(h: f64): f64 {
-  const s = S;
-  const hA21 = h * A21;
-  const hA32 = h * A32;
-  const hA43 = h * A43;
-  const hA54 = h * A54;
-  const hA65 = h * A65;
-  const hB6 = h * B6;
-  setLastH(h);
-  const y0 = load<f64>(Y0, 0);
-  const y1 = load<f64>(Y0, 8);
-  const y2 = load<f64>(Y0, 16);
-  const y3 = load<f64>(Y0, 24);
-  const a0 = load<f64>(K1, 0);
-  const a1 = load<f64>(K1, 8);
-  const a2 = load<f64>(K1, 16);
-  const a3 = load<f64>(K1, 24);
-  const bp0 = y0 + hA21 * a0;
-  const bp1 = y1 + hA21 * a1;
-  const bp2 = y2 + hA21 * a2;
-  const bp3 = y3 + hA21 * a3;
-  let b2: f64, b3: f64;
-  if (s.single) {
-    const rsq = bp0 * bp0 + bp1 * bp1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    b2 = a * bp0;
-    b3 = a * bp1 - stanceG;
-  } else {
-    const dx0 = bp0 - bipedFx0;
-    const dy0 = bp1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = bp0 - bipedFx1;
-    const dy1 = bp1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    b2 = ac0 * dx0 + ac1 * dx1;
-    b3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const b0 = bp2;
-  const b1 = bp3;
-  store<f64>(K2, b0, 0);
-  store<f64>(K2, b1, 8);
-  store<f64>(K2, b2, 16);
-  store<f64>(K2, b3, 24);
-  const cp0 = y0 + h * (A31 * a0) + hA32 * b0;
-  const cp1 = y1 + h * (A31 * a1) + hA32 * b1;
-  const cp2 = y2 + h * (A31 * a2) + hA32 * b2;
-  const cp3 = y3 + h * (A31 * a3) + hA32 * b3;
-  let c2: f64, c3: f64;
-  if (s.single) {
-    const rsq = cp0 * cp0 + cp1 * cp1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    c2 = a * cp0;
-    c3 = a * cp1 - stanceG;
-  } else {
-    const dx0 = cp0 - bipedFx0;
-    const dy0 = cp1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = cp0 - bipedFx1;
-    const dy1 = cp1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    c2 = ac0 * dx0 + ac1 * dx1;
-    c3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const c0 = cp2;
-  const c1 = cp3;
-  store<f64>(K3, c0, 0);
-  store<f64>(K3, c1, 8);
-  store<f64>(K3, c2, 16);
-  store<f64>(K3, c3, 24);
-  const dp0 = y0 + h * (A41 * a0 + A42 * b0) + hA43 * c0;
-  const dp1 = y1 + h * (A41 * a1 + A42 * b1) + hA43 * c1;
-  const dp2 = y2 + h * (A41 * a2 + A42 * b2) + hA43 * c2;
-  const dp3 = y3 + h * (A41 * a3 + A42 * b3) + hA43 * c3;
-  let d2: f64, d3: f64;
-  if (s.single) {
-    const rsq = dp0 * dp0 + dp1 * dp1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    d2 = a * dp0;
-    d3 = a * dp1 - stanceG;
-  } else {
-    const dx0 = dp0 - bipedFx0;
-    const dy0 = dp1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = dp0 - bipedFx1;
-    const dy1 = dp1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    d2 = ac0 * dx0 + ac1 * dx1;
-    d3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const d0 = dp2;
-  const d1 = dp3;
-  store<f64>(K4, d0, 0);
-  store<f64>(K4, d1, 8);
-  store<f64>(K4, d2, 16);
-  store<f64>(K4, d3, 24);
-  const ep0 = y0 + h * (A51 * a0 + A52 * b0 + A53 * c0) + hA54 * d0;
-  const ep1 = y1 + h * (A51 * a1 + A52 * b1 + A53 * c1) + hA54 * d1;
-  const ep2 = y2 + h * (A51 * a2 + A52 * b2 + A53 * c2) + hA54 * d2;
-  const ep3 = y3 + h * (A51 * a3 + A52 * b3 + A53 * c3) + hA54 * d3;
-  let e2: f64, e3: f64;
-  if (s.single) {
-    const rsq = ep0 * ep0 + ep1 * ep1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    e2 = a * ep0;
-    e3 = a * ep1 - stanceG;
-  } else {
-    const dx0 = ep0 - bipedFx0;
-    const dy0 = ep1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = ep0 - bipedFx1;
-    const dy1 = ep1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    e2 = ac0 * dx0 + ac1 * dx1;
-    e3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const e0 = ep2;
-  const e1 = ep3;
-  store<f64>(K5, e0, 0);
-  store<f64>(K5, e1, 8);
-  store<f64>(K5, e2, 16);
-  store<f64>(K5, e3, 24);
-  const fp0 = y0 + h * (A61 * a0 + A62 * b0 + A63 * c0 + A64 * d0) + hA65 * e0;
-  const fp1 = y1 + h * (A61 * a1 + A62 * b1 + A63 * c1 + A64 * d1) + hA65 * e1;
-  const fp2 = y2 + h * (A61 * a2 + A62 * b2 + A63 * c2 + A64 * d2) + hA65 * e2;
-  const fp3 = y3 + h * (A61 * a3 + A62 * b3 + A63 * c3 + A64 * d3) + hA65 * e3;
-  let f2: f64, f3: f64;
-  if (s.single) {
-    const rsq = fp0 * fp0 + fp1 * fp1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    f2 = a * fp0;
-    f3 = a * fp1 - stanceG;
-  } else {
-    const dx0 = fp0 - bipedFx0;
-    const dy0 = fp1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = fp0 - bipedFx1;
-    const dy1 = fp1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    f2 = ac0 * dx0 + ac1 * dx1;
-    f3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const f0 = fp2;
-  const f1 = fp3;
-  store<f64>(K6, f0, 0);
-  store<f64>(K6, f1, 8);
-  store<f64>(K6, f2, 16);
-  store<f64>(K6, f3, 24);
-  const n0 = y0 + h * (B1 * a0 + B3 * c0 + B4 * d0 + B5 * e0) + hB6 * f0;
-  const n1 = y1 + h * (B1 * a1 + B3 * c1 + B4 * d1 + B5 * e1) + hB6 * f1;
-  const n2 = y2 + h * (B1 * a2 + B3 * c2 + B4 * d2 + B5 * e2) + hB6 * f2;
-  const n3 = y3 + h * (B1 * a3 + B3 * c3 + B4 * d3 + B5 * e3) + hB6 * f3;
-  store<f64>(YN, n0, 0);
-  store<f64>(YN, n1, 8);
-  store<f64>(YN, n2, 16);
-  store<f64>(YN, n3, 24);
-  const gp0 = n0;
-  const gp1 = n1;
-  const gp2 = n2;
-  const gp3 = n3;
-  let g2: f64, g3: f64;
-  if (s.single) {
-    const rsq = gp0 * gp0 + gp1 * gp1;
-    const r = Math.sqrt(rsq);
-    const inv = r * (1.0 / rsq);
-    const force = stanceK * (sysLeg - r);
-    const a = force * inv * stanceInvMass;
-    g2 = a * gp0;
-    g3 = a * gp1 - stanceG;
-  } else {
-    const dx0 = gp0 - bipedFx0;
-    const dy0 = gp1 - bipedFy0;
-    const r0sq = dx0 * dx0 + dy0 * dy0;
-    const r0 = Math.sqrt(r0sq);
-    const inv0 = r0 * (1.0 / r0sq);
-    const ac0 = (bipedK0 * (bipedL0 - r0)) * inv0 * stanceInvMass;
-    const dx1 = gp0 - bipedFx1;
-    const dy1 = gp1 - bipedFy1;
-    const r1sq = dx1 * dx1 + dy1 * dy1;
-    const r1 = Math.sqrt(r1sq);
-    const inv1 = r1 * (1.0 / r1sq);
-    const ac1 = (bipedK1 * (bipedL1 - r1)) * inv1 * stanceInvMass;
-    g2 = ac0 * dx0 + ac1 * dx1;
-    g3 = ac0 * dy0 + ac1 * dy1 - stanceG;
-  }
-  const g0 = gp2;
-  const g1 = gp3;
-  store<f64>(K7, g0, 0);
-  store<f64>(K7, g1, 8);
-  store<f64>(K7, g2, 16);
-  store<f64>(K7, g3, 24);
-  let sum: f64 = 0.0;
-  let finite: f64 = 0.0; // stays 0 (not NaN) only if every new component is finite
-  {
-    const e = h * (E1 * a0 + E3 * c0 + E4 * d0 + E5 * e0 + E6 * f0 + E7 * g0);
-    const sc = s.atol + s.rtol * Math.max(Math.abs(y0), Math.abs(n0));
-    const q = e / sc;
-    sum += q * q;
-    finite += n0 - n0;
-  }
-  {
-    const e = h * (E1 * a1 + E3 * c1 + E4 * d1 + E5 * e1 + E6 * f1 + E7 * g1);
-    const sc = s.atol + s.rtol * Math.max(Math.abs(y1), Math.abs(n1));
-    const q = e / sc;
-    sum += q * q;
-    finite += n1 - n1;
-  }
-  {
-    const e = h * (E1 * a2 + E3 * c2 + E4 * d2 + E5 * e2 + E6 * f2 + E7 * g2);
-    const sc = s.atol + s.rtol * Math.max(Math.abs(y2), Math.abs(n2));
-    const q = e / sc;
-    sum += q * q;
-    finite += n2 - n2;
-  }
-  {
-    const e = h * (E1 * a3 + E3 * c3 + E4 * d3 + E5 * e3 + E6 * f3 + E7 * g3);
-    const sc = s.atol + s.rtol * Math.max(Math.abs(y3), Math.abs(n3));
-    const q = e / sc;
-    sum += q * q;
-    finite += n3 - n3;
-  }
-  const err = Math.sqrt(sum / 4.0);
-  // A NaN or infinity anywhere in the stages shows up in err or in YN.
-  if (!isFinite(err) || finite != 0.0) return NaN;
-  return err;
-}
 
 
 // The fifth (damper work) slot of every buffer step4 leaves alone, set to 0.
@@ -1005,7 +730,7 @@ function zeroFifth(): void {
 // One step of the contact: step4 with undamped legs, else the shared step.
 @inline function bstep(hh: f64): f64 {
   const s = S;
-  return s.undamped ? (s.strideWalking ? step4w(hh) : step4(hh)) : step(hh, s.rtol, s.atol);
+  return s.undamped ? step4(hh) : step(hh, s.rtol, s.atol);
 }
 
 // Set the right-hand side for the legs in stance (the origin is a stance foot).
@@ -1966,7 +1691,7 @@ function laneSelect(i: i32): void {
 }
 
 // The lane's next step for stepPairW; true when it is a walking step with undamped
-// legs (step4w).
+// legs (step4).
 function laneStepParams(i: i32): bool {
   const s = S;
   if (!(s.undamped && s.strideWalking)) return false;

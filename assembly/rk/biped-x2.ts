@@ -1,13 +1,13 @@
-// The two-leg model's walking step (step4w in biped.ts: undamped legs, the first four components)
+// The two-leg model's walking step (step4 in biped.ts: undamped legs, the first four components)
 // for two rollouts at once, one in each f64x2 lane (runBipedBatch in biped.ts). Each lane
-// performs the same IEEE operations in the same order as step4w (WebAssembly has no fused
+// performs the same IEEE operations in the same order as step4 (WebAssembly has no fused
 // multiply-add, and f64x2 arithmetic rounds each lane as scalar f64 does; WebAssembly SIMD
-// specification), so a lane's stages, end state and error are step4w's, bit for bit.
+// specification), so a lane's stages, end state and error are step4's, bit for bit.
 //
 // A lane in single support has its stance foot at the origin: its leg 0 is the stance leg with
 // the foot at (0, 0) (x - 0 is x, bit for bit, -0 included), and its leg-0 term alone is taken
 // (bitselect), so its acceleration is single support's a (px, py) - (0, g) with the same
-// roundings; a lane in double support adds both legs' terms in step4w's order. The step is a
+// roundings; a lane in double support adds both legs' terms in step4's order. The step is a
 // chain of square roots and divisions; two in one f64x2 chain cost little more than one (four in
 // two interleaved chains measured no faster on the development machine: register pressure).
 
@@ -105,7 +105,7 @@ export const END_FY = 9;
   return load<f64>(LANE_END + <usize>(lane >> 1) * END_BYTES + (<usize>field << 4) + (<usize>(lane & 1) << 3));
 }
 
-// The error of the last step in each lane (0..3), as step4w returns it (NaN: a non-finite stage).
+// The error of the last step in each lane (0..3), as step4 returns it (NaN: a non-finite stage).
 const LANE_ERRORS: usize = memory.data(4 * 8, 16);
 @inline export function laneError(lane: i32): f64 {
   return load<f64>(LANE_ERRORS + (<usize>lane << 3));
@@ -144,10 +144,12 @@ export function stepPairW(pair: usize): i32 {
   const fy0 = ppAt(PP_FY0, PA);
   const l0 = ppAt(PP_L0, PA);
   const k0 = ppAt(PP_K0, PA);
+  const kim0 = mul(k0, invM); // k/m, as the scalar setters form it (system.ts)
   const fx1 = ppAt(PP_FX1, PA);
   const fy1 = ppAt(PP_FY1, PA);
   const l1 = ppAt(PP_L1, PA);
   const k1 = ppAt(PP_K1, PA);
+  const kim1 = mul(k1, invM);
   const single = ppAt(PP_SINGLE, PA);
   const one = sp(1.0);
   const hA21 = mul(h, sp(A21));
@@ -174,16 +176,18 @@ export function stepPairW(pair: usize): i32 {
   const q2dy0 = f64x2.sub(bp1, fy0);
   const q2s0 = add(mul(q2dx0, q2dx0), mul(q2dy0, q2dy0));
   const q2r0 = f64x2.sqrt(q2s0);
-  const q2ac0 = mul(mul(mul(k0, f64x2.sub(l0, q2r0)), mul(q2r0, f64x2.div(one, q2s0))), invM);
+  const q2f0 = mul(kim0, f64x2.sub(l0, q2r0)); // F/m
+  const q2i0 = mul(q2r0, f64x2.div(one, q2s0)); // 1/r
   const q2dx1 = f64x2.sub(bp0, fx1);
   const q2dy1 = f64x2.sub(bp1, fy1);
   const q2s1 = add(mul(q2dx1, q2dx1), mul(q2dy1, q2dy1));
   const q2r1 = f64x2.sqrt(q2s1);
-  const q2ac1 = mul(mul(mul(k1, f64x2.sub(l1, q2r1)), mul(q2r1, f64x2.div(one, q2s1))), invM);
-  const q2s2 = mul(q2ac0, q2dx0);
-  const q2s3 = mul(q2ac0, q2dy0);
-  const b2v = v128.bitselect(q2s2, add(q2s2, mul(q2ac1, q2dx1)), single);
-  const b3v = f64x2.sub(v128.bitselect(q2s3, add(q2s3, mul(q2ac1, q2dy1)), single), grav);
+  const q2f1 = mul(kim1, f64x2.sub(l1, q2r1)); // F/m
+  const q2i1 = mul(q2r1, f64x2.div(one, q2s1)); // 1/r
+  const q2s2 = mul(q2f0, mul(q2i0, q2dx0));
+  const q2s3 = mul(q2f0, mul(q2i0, q2dy0));
+  const b2v = v128.bitselect(q2s2, add(q2s2, mul(q2f1, mul(q2i1, q2dx1))), single);
+  const b3v = f64x2.sub(v128.bitselect(q2s3, add(q2s3, mul(q2f1, mul(q2i1, q2dy1))), single), grav);
   // stage 3
   const cp0 = add(add(y0, mul(h, mul(sp(A31), a0))), mul(hA32, b0v));
   const cp1 = add(add(y1, mul(h, mul(sp(A31), a1))), mul(hA32, b1v));
@@ -193,16 +197,18 @@ export function stepPairW(pair: usize): i32 {
   const q3dy0 = f64x2.sub(cp1, fy0);
   const q3s0 = add(mul(q3dx0, q3dx0), mul(q3dy0, q3dy0));
   const q3r0 = f64x2.sqrt(q3s0);
-  const q3ac0 = mul(mul(mul(k0, f64x2.sub(l0, q3r0)), mul(q3r0, f64x2.div(one, q3s0))), invM);
+  const q3f0 = mul(kim0, f64x2.sub(l0, q3r0)); // F/m
+  const q3i0 = mul(q3r0, f64x2.div(one, q3s0)); // 1/r
   const q3dx1 = f64x2.sub(cp0, fx1);
   const q3dy1 = f64x2.sub(cp1, fy1);
   const q3s1 = add(mul(q3dx1, q3dx1), mul(q3dy1, q3dy1));
   const q3r1 = f64x2.sqrt(q3s1);
-  const q3ac1 = mul(mul(mul(k1, f64x2.sub(l1, q3r1)), mul(q3r1, f64x2.div(one, q3s1))), invM);
-  const q3s2 = mul(q3ac0, q3dx0);
-  const q3s3 = mul(q3ac0, q3dy0);
-  const c2 = v128.bitselect(q3s2, add(q3s2, mul(q3ac1, q3dx1)), single);
-  const c3 = f64x2.sub(v128.bitselect(q3s3, add(q3s3, mul(q3ac1, q3dy1)), single), grav);
+  const q3f1 = mul(kim1, f64x2.sub(l1, q3r1)); // F/m
+  const q3i1 = mul(q3r1, f64x2.div(one, q3s1)); // 1/r
+  const q3s2 = mul(q3f0, mul(q3i0, q3dx0));
+  const q3s3 = mul(q3f0, mul(q3i0, q3dy0));
+  const c2 = v128.bitselect(q3s2, add(q3s2, mul(q3f1, mul(q3i1, q3dx1))), single);
+  const c3 = f64x2.sub(v128.bitselect(q3s3, add(q3s3, mul(q3f1, mul(q3i1, q3dy1))), single), grav);
   v128.store(LANE_STAGES + PA * 256 + 0, c0);
   v128.store(LANE_STAGES + PA * 256 + 16, c1);
   v128.store(LANE_STAGES + PA * 256 + 32, c2);
@@ -216,16 +222,18 @@ export function stepPairW(pair: usize): i32 {
   const q4dy0 = f64x2.sub(dp1, fy0);
   const q4s0 = add(mul(q4dx0, q4dx0), mul(q4dy0, q4dy0));
   const q4r0 = f64x2.sqrt(q4s0);
-  const q4ac0 = mul(mul(mul(k0, f64x2.sub(l0, q4r0)), mul(q4r0, f64x2.div(one, q4s0))), invM);
+  const q4f0 = mul(kim0, f64x2.sub(l0, q4r0)); // F/m
+  const q4i0 = mul(q4r0, f64x2.div(one, q4s0)); // 1/r
   const q4dx1 = f64x2.sub(dp0, fx1);
   const q4dy1 = f64x2.sub(dp1, fy1);
   const q4s1 = add(mul(q4dx1, q4dx1), mul(q4dy1, q4dy1));
   const q4r1 = f64x2.sqrt(q4s1);
-  const q4ac1 = mul(mul(mul(k1, f64x2.sub(l1, q4r1)), mul(q4r1, f64x2.div(one, q4s1))), invM);
-  const q4s2 = mul(q4ac0, q4dx0);
-  const q4s3 = mul(q4ac0, q4dy0);
-  const d2 = v128.bitselect(q4s2, add(q4s2, mul(q4ac1, q4dx1)), single);
-  const d3 = f64x2.sub(v128.bitselect(q4s3, add(q4s3, mul(q4ac1, q4dy1)), single), grav);
+  const q4f1 = mul(kim1, f64x2.sub(l1, q4r1)); // F/m
+  const q4i1 = mul(q4r1, f64x2.div(one, q4s1)); // 1/r
+  const q4s2 = mul(q4f0, mul(q4i0, q4dx0));
+  const q4s3 = mul(q4f0, mul(q4i0, q4dy0));
+  const d2 = v128.bitselect(q4s2, add(q4s2, mul(q4f1, mul(q4i1, q4dx1))), single);
+  const d3 = f64x2.sub(v128.bitselect(q4s3, add(q4s3, mul(q4f1, mul(q4i1, q4dy1))), single), grav);
   v128.store(LANE_STAGES + PA * 256 + 64, d0);
   v128.store(LANE_STAGES + PA * 256 + 80, d1);
   v128.store(LANE_STAGES + PA * 256 + 96, d2);
@@ -239,16 +247,18 @@ export function stepPairW(pair: usize): i32 {
   const q5dy0 = f64x2.sub(ep1, fy0);
   const q5s0 = add(mul(q5dx0, q5dx0), mul(q5dy0, q5dy0));
   const q5r0 = f64x2.sqrt(q5s0);
-  const q5ac0 = mul(mul(mul(k0, f64x2.sub(l0, q5r0)), mul(q5r0, f64x2.div(one, q5s0))), invM);
+  const q5f0 = mul(kim0, f64x2.sub(l0, q5r0)); // F/m
+  const q5i0 = mul(q5r0, f64x2.div(one, q5s0)); // 1/r
   const q5dx1 = f64x2.sub(ep0, fx1);
   const q5dy1 = f64x2.sub(ep1, fy1);
   const q5s1 = add(mul(q5dx1, q5dx1), mul(q5dy1, q5dy1));
   const q5r1 = f64x2.sqrt(q5s1);
-  const q5ac1 = mul(mul(mul(k1, f64x2.sub(l1, q5r1)), mul(q5r1, f64x2.div(one, q5s1))), invM);
-  const q5s2 = mul(q5ac0, q5dx0);
-  const q5s3 = mul(q5ac0, q5dy0);
-  const e2 = v128.bitselect(q5s2, add(q5s2, mul(q5ac1, q5dx1)), single);
-  const e3 = f64x2.sub(v128.bitselect(q5s3, add(q5s3, mul(q5ac1, q5dy1)), single), grav);
+  const q5f1 = mul(kim1, f64x2.sub(l1, q5r1)); // F/m
+  const q5i1 = mul(q5r1, f64x2.div(one, q5s1)); // 1/r
+  const q5s2 = mul(q5f0, mul(q5i0, q5dx0));
+  const q5s3 = mul(q5f0, mul(q5i0, q5dy0));
+  const e2 = v128.bitselect(q5s2, add(q5s2, mul(q5f1, mul(q5i1, q5dx1))), single);
+  const e3 = f64x2.sub(v128.bitselect(q5s3, add(q5s3, mul(q5f1, mul(q5i1, q5dy1))), single), grav);
   v128.store(LANE_STAGES + PA * 256 + 128, e0);
   v128.store(LANE_STAGES + PA * 256 + 144, e1);
   v128.store(LANE_STAGES + PA * 256 + 160, e2);
@@ -262,16 +272,18 @@ export function stepPairW(pair: usize): i32 {
   const q6dy0 = f64x2.sub(fp1, fy0);
   const q6s0 = add(mul(q6dx0, q6dx0), mul(q6dy0, q6dy0));
   const q6r0 = f64x2.sqrt(q6s0);
-  const q6ac0 = mul(mul(mul(k0, f64x2.sub(l0, q6r0)), mul(q6r0, f64x2.div(one, q6s0))), invM);
+  const q6f0 = mul(kim0, f64x2.sub(l0, q6r0)); // F/m
+  const q6i0 = mul(q6r0, f64x2.div(one, q6s0)); // 1/r
   const q6dx1 = f64x2.sub(fp0, fx1);
   const q6dy1 = f64x2.sub(fp1, fy1);
   const q6s1 = add(mul(q6dx1, q6dx1), mul(q6dy1, q6dy1));
   const q6r1 = f64x2.sqrt(q6s1);
-  const q6ac1 = mul(mul(mul(k1, f64x2.sub(l1, q6r1)), mul(q6r1, f64x2.div(one, q6s1))), invM);
-  const q6s2 = mul(q6ac0, q6dx0);
-  const q6s3 = mul(q6ac0, q6dy0);
-  const f2 = v128.bitselect(q6s2, add(q6s2, mul(q6ac1, q6dx1)), single);
-  const f3 = f64x2.sub(v128.bitselect(q6s3, add(q6s3, mul(q6ac1, q6dy1)), single), grav);
+  const q6f1 = mul(kim1, f64x2.sub(l1, q6r1)); // F/m
+  const q6i1 = mul(q6r1, f64x2.div(one, q6s1)); // 1/r
+  const q6s2 = mul(q6f0, mul(q6i0, q6dx0));
+  const q6s3 = mul(q6f0, mul(q6i0, q6dy0));
+  const f2 = v128.bitselect(q6s2, add(q6s2, mul(q6f1, mul(q6i1, q6dx1))), single);
+  const f3 = f64x2.sub(v128.bitselect(q6s3, add(q6s3, mul(q6f1, mul(q6i1, q6dy1))), single), grav);
   v128.store(LANE_STAGES + PA * 256 + 192, f0);
   v128.store(LANE_STAGES + PA * 256 + 208, f1);
   v128.store(LANE_STAGES + PA * 256 + 224, f2);
@@ -293,16 +305,18 @@ export function stepPairW(pair: usize): i32 {
   const q7dy0 = f64x2.sub(n1, fy0);
   const q7s0 = add(mul(q7dx0, q7dx0), mul(q7dy0, q7dy0));
   const q7r0 = f64x2.sqrt(q7s0);
-  const q7ac0 = mul(mul(mul(k0, f64x2.sub(l0, q7r0)), mul(q7r0, f64x2.div(one, q7s0))), invM);
+  const q7f0 = mul(kim0, f64x2.sub(l0, q7r0)); // F/m
+  const q7i0 = mul(q7r0, f64x2.div(one, q7s0)); // 1/r
   const q7dx1 = f64x2.sub(n0, fx1);
   const q7dy1 = f64x2.sub(n1, fy1);
   const q7s1 = add(mul(q7dx1, q7dx1), mul(q7dy1, q7dy1));
   const q7r1 = f64x2.sqrt(q7s1);
-  const q7ac1 = mul(mul(mul(k1, f64x2.sub(l1, q7r1)), mul(q7r1, f64x2.div(one, q7s1))), invM);
-  const q7s2 = mul(q7ac0, q7dx0);
-  const q7s3 = mul(q7ac0, q7dy0);
-  const g2 = v128.bitselect(q7s2, add(q7s2, mul(q7ac1, q7dx1)), single);
-  const g3 = f64x2.sub(v128.bitselect(q7s3, add(q7s3, mul(q7ac1, q7dy1)), single), grav);
+  const q7f1 = mul(kim1, f64x2.sub(l1, q7r1)); // F/m
+  const q7i1 = mul(q7r1, f64x2.div(one, q7s1)); // 1/r
+  const q7s2 = mul(q7f0, mul(q7i0, q7dx0));
+  const q7s3 = mul(q7f0, mul(q7i0, q7dy0));
+  const g2 = v128.bitselect(q7s2, add(q7s2, mul(q7f1, mul(q7i1, q7dx1))), single);
+  const g3 = f64x2.sub(v128.bitselect(q7s3, add(q7s3, mul(q7f1, mul(q7i1, q7dy1))), single), grav);
   v128.store(ln + 64, g2);
   v128.store(ln + 80, g3);
   // the step end's leg values as contactAfter forms them (an undamped leg: c r' = 0 r'); slot 0
@@ -335,7 +349,7 @@ export function stepPairW(pair: usize): i32 {
     v128.store(e + END_FX * 16, v128.bitselect(x0, add(x0, f64x2.div(mul(f1, dx1), r1)), single));
     v128.store(e + END_FY * 16, v128.bitselect(y0, add(y0, f64x2.div(mul(f1, dy1), r1)), single));
   }
-  // the error norm over the four components, in step4w's order
+  // the error norm over the four components, in step4's order
   const rtol = ppAt(PP_RTOL, PA);
   const atol = ppAt(PP_ATOL, PA);
   let sum = sp(0.0);
@@ -391,6 +405,7 @@ export function stepPairW1(pair: usize): i32 {
   const fy0 = ppAt(PP_FY0, PA);
   const l0 = ppAt(PP_L0, PA);
   const k0 = ppAt(PP_K0, PA);
+  const kim0 = mul(k0, invM); // k/m, as the scalar setters form it (system.ts)
   const one = sp(1.0);
   const hA21 = mul(h, sp(A21));
   const hA32 = mul(h, sp(A32));
@@ -416,9 +431,10 @@ export function stepPairW1(pair: usize): i32 {
   const q2dy0 = f64x2.sub(bp1, fy0);
   const q2s0 = add(mul(q2dx0, q2dx0), mul(q2dy0, q2dy0));
   const q2r0 = f64x2.sqrt(q2s0);
-  const q2ac0 = mul(mul(mul(k0, f64x2.sub(l0, q2r0)), mul(q2r0, f64x2.div(one, q2s0))), invM);
-  const q2s2 = mul(q2ac0, q2dx0);
-  const q2s3 = mul(q2ac0, q2dy0);
+  const q2f0 = mul(kim0, f64x2.sub(l0, q2r0)); // F/m
+  const q2i0 = mul(q2r0, f64x2.div(one, q2s0)); // 1/r
+  const q2s2 = mul(q2f0, mul(q2i0, q2dx0));
+  const q2s3 = mul(q2f0, mul(q2i0, q2dy0));
   const b2v = q2s2;
   const b3v = f64x2.sub(q2s3, grav);
   // stage 3
@@ -430,9 +446,10 @@ export function stepPairW1(pair: usize): i32 {
   const q3dy0 = f64x2.sub(cp1, fy0);
   const q3s0 = add(mul(q3dx0, q3dx0), mul(q3dy0, q3dy0));
   const q3r0 = f64x2.sqrt(q3s0);
-  const q3ac0 = mul(mul(mul(k0, f64x2.sub(l0, q3r0)), mul(q3r0, f64x2.div(one, q3s0))), invM);
-  const q3s2 = mul(q3ac0, q3dx0);
-  const q3s3 = mul(q3ac0, q3dy0);
+  const q3f0 = mul(kim0, f64x2.sub(l0, q3r0)); // F/m
+  const q3i0 = mul(q3r0, f64x2.div(one, q3s0)); // 1/r
+  const q3s2 = mul(q3f0, mul(q3i0, q3dx0));
+  const q3s3 = mul(q3f0, mul(q3i0, q3dy0));
   const c2 = q3s2;
   const c3 = f64x2.sub(q3s3, grav);
   v128.store(LANE_STAGES + PA * 256 + 0, c0);
@@ -448,9 +465,10 @@ export function stepPairW1(pair: usize): i32 {
   const q4dy0 = f64x2.sub(dp1, fy0);
   const q4s0 = add(mul(q4dx0, q4dx0), mul(q4dy0, q4dy0));
   const q4r0 = f64x2.sqrt(q4s0);
-  const q4ac0 = mul(mul(mul(k0, f64x2.sub(l0, q4r0)), mul(q4r0, f64x2.div(one, q4s0))), invM);
-  const q4s2 = mul(q4ac0, q4dx0);
-  const q4s3 = mul(q4ac0, q4dy0);
+  const q4f0 = mul(kim0, f64x2.sub(l0, q4r0)); // F/m
+  const q4i0 = mul(q4r0, f64x2.div(one, q4s0)); // 1/r
+  const q4s2 = mul(q4f0, mul(q4i0, q4dx0));
+  const q4s3 = mul(q4f0, mul(q4i0, q4dy0));
   const d2 = q4s2;
   const d3 = f64x2.sub(q4s3, grav);
   v128.store(LANE_STAGES + PA * 256 + 64, d0);
@@ -466,9 +484,10 @@ export function stepPairW1(pair: usize): i32 {
   const q5dy0 = f64x2.sub(ep1, fy0);
   const q5s0 = add(mul(q5dx0, q5dx0), mul(q5dy0, q5dy0));
   const q5r0 = f64x2.sqrt(q5s0);
-  const q5ac0 = mul(mul(mul(k0, f64x2.sub(l0, q5r0)), mul(q5r0, f64x2.div(one, q5s0))), invM);
-  const q5s2 = mul(q5ac0, q5dx0);
-  const q5s3 = mul(q5ac0, q5dy0);
+  const q5f0 = mul(kim0, f64x2.sub(l0, q5r0)); // F/m
+  const q5i0 = mul(q5r0, f64x2.div(one, q5s0)); // 1/r
+  const q5s2 = mul(q5f0, mul(q5i0, q5dx0));
+  const q5s3 = mul(q5f0, mul(q5i0, q5dy0));
   const e2 = q5s2;
   const e3 = f64x2.sub(q5s3, grav);
   v128.store(LANE_STAGES + PA * 256 + 128, e0);
@@ -484,9 +503,10 @@ export function stepPairW1(pair: usize): i32 {
   const q6dy0 = f64x2.sub(fp1, fy0);
   const q6s0 = add(mul(q6dx0, q6dx0), mul(q6dy0, q6dy0));
   const q6r0 = f64x2.sqrt(q6s0);
-  const q6ac0 = mul(mul(mul(k0, f64x2.sub(l0, q6r0)), mul(q6r0, f64x2.div(one, q6s0))), invM);
-  const q6s2 = mul(q6ac0, q6dx0);
-  const q6s3 = mul(q6ac0, q6dy0);
+  const q6f0 = mul(kim0, f64x2.sub(l0, q6r0)); // F/m
+  const q6i0 = mul(q6r0, f64x2.div(one, q6s0)); // 1/r
+  const q6s2 = mul(q6f0, mul(q6i0, q6dx0));
+  const q6s3 = mul(q6f0, mul(q6i0, q6dy0));
   const f2 = q6s2;
   const f3 = f64x2.sub(q6s3, grav);
   v128.store(LANE_STAGES + PA * 256 + 192, f0);
@@ -510,9 +530,10 @@ export function stepPairW1(pair: usize): i32 {
   const q7dy0 = f64x2.sub(n1, fy0);
   const q7s0 = add(mul(q7dx0, q7dx0), mul(q7dy0, q7dy0));
   const q7r0 = f64x2.sqrt(q7s0);
-  const q7ac0 = mul(mul(mul(k0, f64x2.sub(l0, q7r0)), mul(q7r0, f64x2.div(one, q7s0))), invM);
-  const q7s2 = mul(q7ac0, q7dx0);
-  const q7s3 = mul(q7ac0, q7dy0);
+  const q7f0 = mul(kim0, f64x2.sub(l0, q7r0)); // F/m
+  const q7i0 = mul(q7r0, f64x2.div(one, q7s0)); // 1/r
+  const q7s2 = mul(q7f0, mul(q7i0, q7dx0));
+  const q7s3 = mul(q7f0, mul(q7i0, q7dy0));
   const g2 = q7s2;
   const g3 = f64x2.sub(q7s3, grav);
   v128.store(ln + 64, g2);
@@ -537,7 +558,7 @@ export function stepPairW1(pair: usize): i32 {
     v128.store(e + END_FX * 16, x0);
     v128.store(e + END_FY * 16, y0);
   }
-  // the error norm over the four components, in step4w's order
+  // the error norm over the four components, in step4's order
   const rtol = ppAt(PP_RTOL, PA);
   const atol = ppAt(PP_ATOL, PA);
   let sum = sp(0.0);

@@ -61,6 +61,12 @@ export let bipedK0: f64 = 1.0; // N/m, current stiffnesses
 export let bipedK1: f64 = 1.0;
 export let bipedC0: f64 = 0.0; // N·s/m
 export let bipedC1: f64 = 0.0;
+// k/m and c/m of each leg, kept equal to bipedK* * stanceInvMass and bipedC* * stanceInvMass by
+// every setter (the walking steps in biped.ts and rk/biped-x2.ts form the same products).
+export let bipedKInvM0: f64 = 1.0;
+export let bipedKInvM1: f64 = 1.0;
+export let bipedCInvM0: f64 = 0.0;
+export let bipedCInvM1: f64 = 0.0;
 
 export function setBiped(
   m: f64, g: f64, fx0: f64, fy0: f64, l0: f64, k0: f64, c0: f64, fx1: f64, fy1: f64, l1: f64, k1: f64, c1: f64,
@@ -79,11 +85,20 @@ export function setBiped(
   bipedL1 = l1;
   bipedK1 = k1;
   bipedC1 = c1;
+  bipedKInvM0 = k0 * stanceInvMass;
+  bipedKInvM1 = k1 * stanceInvMass;
+  bipedCInvM0 = c0 * stanceInvMass;
+  bipedCInvM1 = c1 * stanceInvMass;
 }
 
 export function setBipedStiffness(leg: i32, k: f64): void {
-  if (leg == 0) bipedK0 = k;
-  else bipedK1 = k;
+  if (leg == 0) {
+    bipedK0 = k;
+    bipedKInvM0 = k * stanceInvMass;
+  } else {
+    bipedK1 = k;
+    bipedKInvM1 = k * stanceInvMass;
+  }
 }
 
 export function setStiffness(k: f64): void {
@@ -135,18 +150,18 @@ export function setArenstorf(mu: f64): void {
   const r0 = Math.sqrt(r0sq);
   const inv0 = r0 * (1.0 / r0sq);
   const rdot0 = (dx0 * vx + dy0 * vy) * inv0;
-  const a0 = (bipedK0 * (bipedL0 - r0) - bipedC0 * rdot0) * inv0 * stanceInvMass;
+  const f0 = bipedKInvM0 * (bipedL0 - r0) - bipedCInvM0 * rdot0; // F/m of leg 0
   const dx1 = px - bipedFx1;
   const dy1 = py - bipedFy1;
   const r1sq = dx1 * dx1 + dy1 * dy1;
   const r1 = Math.sqrt(r1sq);
   const inv1 = r1 * (1.0 / r1sq);
   const rdot1 = (dx1 * vx + dy1 * vy) * inv1;
-  const a1 = (bipedK1 * (bipedL1 - r1) - bipedC1 * rdot1) * inv1 * stanceInvMass;
+  const f1 = bipedKInvM1 * (bipedL1 - r1) - bipedCInvM1 * rdot1;
   store<f64>(dy, vx, 0);
   store<f64>(dy, vy, 8);
-  store<f64>(dy, a0 * dx0 + a1 * dx1, 16);
-  store<f64>(dy, a0 * dy0 + a1 * dy1 - stanceG, 24);
+  store<f64>(dy, f0 * (inv0 * dx0) + f1 * (inv1 * dx1), 16);
+  store<f64>(dy, f0 * (inv0 * dy0) + f1 * (inv1 * dy1) - stanceG, 24);
   store<f64>(dy, bipedC0 * rdot0 * rdot0 + bipedC1 * rdot1 * rdot1, 32);
 }
 
@@ -206,4 +221,8 @@ export function loadSystem(p: usize): void {
   bipedC1 = load<f64>(p, 128);
   stanceKInvM = stanceK * stanceInvMass;
   stanceCInvM = stanceC * stanceInvMass;
+  bipedKInvM0 = bipedK0 * stanceInvMass;
+  bipedKInvM1 = bipedK1 * stanceInvMass;
+  bipedCInvM0 = bipedC0 * stanceInvMass;
+  bipedCInvM1 = bipedC1 * stanceInvMass;
 }
