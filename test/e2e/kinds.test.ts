@@ -79,6 +79,9 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await expect.poll(() => t.describedBy('Relative tolerance')).toMatch(/^expected no value beside integrator\.apex_accuracy_m \(which gives [\d.e-]+ here\), or that value, found 1e-9$/);
     await t.setField('Relative tolerance', '');
     await expect.poll(async () => (await page.getByTestId('scenario-check').textContent())?.includes('Scenario valid')).toBe(true);
+    // the stride view, recomputed, states the accuracy and the tolerances it gave
+    await expect.poll(async () => (await page.getByTestId('stride-accuracy').textContent())?.replace(/\s+/g, ' ').trim(), { timeout: 30_000 })
+      .toMatch(/^Apex accuracy 1\.0e-8 m asked: rtol [\d.]+e-\d+, atol [\d.]+e-\d+ m\.$/);
 
     const scene = await t.option('figure-biped-scene');
     const ids = (scene.series as { id: string }[]).map((s) => s.id);
