@@ -47,6 +47,10 @@ import {
   type FigureOption,
 } from '../src/core/figures/index.js';
 import { renderSvg } from '../src/core/figures/svg.js';
+import { lateralBasin, type LateralBasinResult } from '../src/core/analysis/lateral-basin.js';
+import { lateralBasinFigure } from '../src/core/figures/lateral-basin.js';
+import { parseLateralScenario } from '../src/core/models/lateral.js';
+import demoHexapod from '../scenarios/demo-hexapod.json' with { type: 'json' };
 
 // ---------------------------------------------------------------------------------------------
 // Reading options back.
@@ -243,6 +247,7 @@ let map: ReturnMapResult;
 let scanned: ScanResult;
 let basinGrid: BasinResult;
 let basinEnergy: BasinResult;
+let lateral: LateralBasinResult;
 let robust: RobustnessResult;
 let robustSteeper: RobustnessResult;
 let steps: StepToleranceResult;
@@ -277,6 +282,12 @@ beforeAll(async () => {
   steps = await stepTolerance(demo, { after: 8 });
   stepsSteeper = await stepTolerance(steeper(demo), { after: 8 });
   run = await simulate(demo, { strides: 3, traceInterval_s: 0.002 });
+  // the hexapod demo's lateral gait, perturbed in heading and angular velocity
+  lateral = lateralBasin(await loadEngine(), parseLateralScenario(demoHexapod), {
+    headings: { low: -20, high: 20, count: 5 },
+    rates: { low: -40, high: 40, count: 5 },
+    strides: 20,
+  });
   // two restarts of a real NLopt run on a quadratic bowl (its minimum 0 at (1, 2))
   restarts = [];
   for (const [k, x0] of [[0, -1.5], [1, 1.5]].entries()) {
@@ -499,6 +510,35 @@ describe('basin figure', () => {
   it('renders both modes to well-formed SVGs', () => {
     expectSvg(basinFigure(basinGrid), ['Start forward speed (m/s)', 'Start apex height (m)']);
     expectSvg(basinFigure(basinEnergy), ['Start apex height (m)']);
+  });
+});
+
+describe('lateral basin figure', () => {
+  it('cells by outcome at [angular-velocity error, heading error], the gait marked at (0, 0)', () => {
+    const option = lateralBasinFigure(lateral);
+    const nr = lateral.rates_deg_per_s.length;
+    for (const outcome of ['converged', 'wandering', 'fell', 'no_speed'] as const) {
+      const expected = lateral.cells
+        .map((cell, i) => ({ cell, i }))
+        .filter(({ cell }) => cell.outcome === outcome)
+        .map(({ i }) => [lateral.rates_deg_per_s[i % nr], lateral.headings_deg[Math.floor(i / nr)], 0, i]);
+      expect(values(series(option, outcome))).toEqual(expected);
+      expect(expected.length).toBe(lateral.counts[outcome]);
+    }
+    // each plotted cell is the result's own cell: its errors are the grid values it sits at
+    for (const p of seriesOf(option).filter((x) => x.id !== 'current').flatMap((x) => values(x)) as number[][]) {
+      expect(lateral.cells[p[3]].rate_error_deg_per_s).toBe(p[0]);
+      expect(lateral.cells[p[3]].heading_error_deg).toBe(p[1]);
+    }
+    // this grid has converged cells and others
+    expect(lateral.counts.converged).toBeGreaterThan(0);
+    expect(lateral.counts.converged).toBeLessThan(lateral.cells.length);
+    expect(values(series(option, 'current'))).toEqual([[0, 0]]);
+    expect((option.title as { text: string }).text).toContain(`attracted fraction ${Number(lateral.attracted_fraction.toPrecision(3))}`);
+  });
+
+  it('renders to a well-formed SVG', () => {
+    expectSvg(lateralBasinFigure(lateral), ['angular-velocity error at the left touchdown (deg/s)', 'heading-to-body error at the left touchdown (deg)']);
   });
 });
 
@@ -739,11 +779,13 @@ describe('stride scene', () => {
 
 describe('figure index', () => {
   it('names every builder and picks the figure of each plottable command', () => {
-    expect(Object.keys(FIGURES).sort()).toEqual(['basin', 'convergence', 'policyComparison', 'returnMap', 'stabilityRegions', 'stanceForces', 'strideScene', 'survival']);
+    expect(Object.keys(FIGURES).sort()).toEqual(['basin', 'convergence', 'lateralBasin', 'policyComparison', 'returnMap', 'stabilityRegions', 'stanceForces', 'strideScene', 'survival']);
     const id = (o: FigureOption) => seriesOf(o).map((s) => s.id);
     expect(id(figureForCommand('map', map))).toEqual(id(returnMapFigure(map)));
     expect(id(figureForCommand('scan', scanned))).toEqual(['stable', 'unstable', 'none']);
     expect(id(figureForCommand('basin', basinGrid))).toEqual(['converged', 'wandering', 'fell']);
+    // a lateral scenario's basin (its result grids heading and angular-velocity errors)
+    expect(id(figureForCommand('basin', lateral))).toEqual(['converged', 'wandering', 'fell', 'no_speed', 'current']);
     expect(id(figureForCommand('robustness', robust))).toEqual(['survival-band', 'survival']);
     expect(() => figureForCommand('simulate', {})).toThrow(InputError);
   });
@@ -781,6 +823,24 @@ describe('pronk ... --plot FILE.svg', () => {
     const svg = readFileSync(file, 'utf8');
     expect(checkWellFormedXml(svg).root).toBe('svg');
     expect(svgTexts(svg)).toContain(axisName);
+  });
+
+  it('basin on a lateral scenario writes its figure, one machine or merged from shards', () => {
+    const args = ['scenarios/demo-hexapod.json', '--headings=-20:20:3', '--rates=-40:40:3', '--strides', '10'];
+    const file = join(dir, 'lateral-basin.svg');
+    const r = pronk('basin', ...args, '--json', '--plot', file);
+    expect(r.status, r.stderr).toBe(0);
+    expect(JSON.parse(r.stdout).headings_deg).toEqual([-20, 0, 20]);
+    expect(r.stderr).toContain(`figure written to ${file}`);
+    const svg = readFileSync(file, 'utf8');
+    expect(checkWellFormedXml(svg).root).toBe('svg');
+    expect(svgTexts(svg)).toContain('heading-to-body error at the left touchdown (deg)');
+    for (const k of [1, 2]) expect(pronk('basin', ...args, '--shard', `${k}/2`, '--out', join(dir, `lateral-part${k}.json`)).status).toBe(0);
+    const merged = join(dir, 'lateral-merged.svg');
+    const m = pronk('merge', join(dir, 'lateral-part1.json'), join(dir, 'lateral-part2.json'), '--json', '--plot', merged);
+    expect(m.status, m.stderr).toBe(0);
+    // the merged figure is the one-machine run's, byte for byte (the same result drawn)
+    expect(readFileSync(merged, 'utf8')).toBe(svg);
   });
 
   it('merge --plot draws the merged result', () => {

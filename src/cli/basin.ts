@@ -90,10 +90,10 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
   const any = await anyScenarioArgument(file, io, 'basin');
   if (any.kind === 'lateral') {
     // --workers is accepted and changes nothing (the lateral basin runs in this thread)
-    const refused = ['heights', 'speeds', 'energy', 'plot'].filter((k) => values[k] !== undefined);
+    const refused = ['heights', 'speeds', 'energy'].filter((k) => values[k] !== undefined);
     if (refused.length) {
       throw new InputError(
-        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its basin takes --headings, --rates, --strides, --tolerance, --workers, --shard, --out, --json)', found: describeFound(values[refused[0]]) }],
+        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its basin takes --headings, --rates, --strides, --tolerance, --workers, --shard, --out, --plot, --json)', found: describeFound(values[refused[0]]) }],
         { source: SOURCE },
       );
     }
@@ -102,6 +102,7 @@ async function runBasin({ values, positionals }: ParsedCommandLine, io: CliIO): 
       json,
       shard,
       outFile,
+      plotFile,
       ...(values.headings !== undefined ? { headings: parseAxisOption(values.headings, '--headings', 'deg') } : {}),
       ...(values.rates !== undefined ? { rates: parseAxisOption(values.rates, '--rates', 'deg/s') } : {}),
       ...(strides !== undefined ? { strides } : {}),

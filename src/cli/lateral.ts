@@ -9,7 +9,7 @@ import * as L from '../../assembly/layout.js';
 import type { LateralScanCell, LateralScanResult } from '../core/analysis/lateral-scan.js';
 import type { ScanOptions } from '../core/analysis/scan.js';
 import type { ShardSpec } from '../core/shard.js';
-import type { CheckedOutput } from './output-files.js';
+import { writePlotFile, type CheckedOutput } from './output-files.js';
 import { makePartial, shardRange, writePartial, writeText } from './shard-output.js';
 import type { LateralBasinOptions, LateralBasinResult } from '../core/analysis/lateral-basin.js';
 import { InputError } from '../core/errors.js';
@@ -293,12 +293,12 @@ export function renderLateralBasin(s: LateralScenario, r: LateralBasinResult): s
 export async function runLateralBasin(
   s: LateralScenario,
   io: CliIO,
-  options: { json: boolean; shard?: ShardSpec; outFile?: CheckedOutput } & LateralBasinOptions,
+  options: { json: boolean; shard?: ShardSpec; outFile?: CheckedOutput; plotFile?: CheckedOutput } & LateralBasinOptions,
 ): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
   const core = await import('../core/analysis/lateral-basin.js');
   const engine = await loadEngine();
-  const { json, shard, outFile, ...rest } = options;
+  const { json, shard, outFile, plotFile, ...rest } = options;
   const source = (error: unknown) => (error instanceof InputError ? new InputError(error.issues, { source: 'pronk basin' }) : error);
   try {
     const run = core.lateralBasinRun(engine, s, rest);
@@ -312,6 +312,7 @@ export async function runLateralBasin(
     }
     const r = core.finishLateralBasin(engine, s, run, rows);
     await writeText(io, outFile, json ? lateralBasinJson(s, r) : renderLateralBasin(s, r), 'basin');
+    if (plotFile !== undefined) await writePlotFile(io, 'basin', plotFile, r);
     return 0;
   } catch (error) {
     throw source(error);

@@ -4,12 +4,14 @@
 
 import { InputError, describeFound } from '../errors.js';
 import type { BasinResult } from '../analysis/basin.js';
+import type { LateralBasinResult } from '../analysis/lateral-basin.js';
 import type { ReturnMapResult } from '../analysis/return-map.js';
 import type { RobustnessResult } from '../analysis/robustness.js';
 import type { ScanResult } from '../analysis/scan.js';
 import { basinFigure } from './basin.js';
 import { policyComparisonFigure } from './comparison.js';
 import { convergenceFigure } from './convergence.js';
+import { lateralBasinFigure } from './lateral-basin.js';
 import { returnMapFigure } from './return-map.js';
 import { stabilityRegionsFigure } from './stability-regions.js';
 import { stanceForceFigure } from './stance-forces.js';
@@ -20,6 +22,7 @@ import type { FigureOption } from './theme.js';
 export { basinFigure, basinCellPosition, type BasinFigureOptions } from './basin.js';
 export { policyComparisonFigure, type ComparisonFigureOptions, type PolicyRun } from './comparison.js';
 export { convergenceFigure, type ConvergenceFigureOptions, type ConvergenceRestart } from './convergence.js';
+export { lateralBasinFigure, lateralBasinCellPosition, type LateralBasinFigureOptions } from './lateral-basin.js';
 export { cobweb, returnMapComparisonFigure, returnMapFigure, type LabelledMap, type ReturnMapFigureOptions } from './return-map.js';
 export { cellAxis, cellEdges, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
 export { parameterName, parameterTitle, unitOfPath, type ParameterName } from './labels.js';
@@ -47,6 +50,8 @@ export const FIGURES = {
   policyComparison: policyComparisonFigure,
   /** Figure 8, one animation frame: strideScene(trajectory, index, terrain?, view?) */
   strideScene,
+  /** Figure 9, `pronk basin` on a lateral scenario: lateralBasinFigure(result: LateralBasinResult, options?) */
+  lateralBasin: lateralBasinFigure,
 } as const;
 
 export type FigureName = keyof typeof FIGURES;
@@ -63,7 +68,10 @@ export function figureForCommand(command: string, result: unknown): FigureOption
     case 'scan':
       return stabilityRegionsFigure(result as ScanResult);
     case 'basin':
-      return basinFigure(result as BasinResult);
+      // a lateral scenario's basin grids heading and angular-velocity errors
+      return result !== null && typeof result === 'object' && 'headings_deg' in result
+        ? lateralBasinFigure(result as LateralBasinResult)
+        : basinFigure(result as BasinResult);
     case 'robustness':
       return survivalFigure(result as RobustnessResult);
     case 'optimize': {
