@@ -19,6 +19,15 @@ import { simulateBiped, type BipedSimulationResult } from '../core/models/biped-
 import { lateralFixedPoints, simulateLateral, type LateralMapResult, type LateralSample, type LateralSimulation } from '../core/analysis/lateral.js';
 import { finishRecover, recoverOnce, recoverRows, scenarioGait, type KickSpec, type RandomKickSpec, type RecoverMonteCarloResult, type RecoverTolerances, type RecoveryResult, type RecoveryRow } from '../core/analysis/recover.js';
 import { parseLateralScenario, type LateralScenario } from '../core/models/lateral.js';
+import {
+  finishLateralBasin,
+  lateralBasinRows,
+  lateralBasinRun,
+  type LateralBasinCell,
+  type LateralBasinOptions,
+  type LateralBasinResult,
+  type LateralBasinRun,
+} from '../core/analysis/lateral-basin.js';
 
 /** One kick judged, with the paths with and without it (the workbench's recovery view). */
 export interface LateralRecoveryView {
@@ -115,6 +124,19 @@ const api = {
 
   async lateralRecoverFinish(scenario: unknown, spec: RandomKickSpec, rows: RecoveryRow[], options: { stridesAfter?: number; tolerances?: Partial<RecoverTolerances> }): Promise<RecoverMonteCarloResult> {
     return finishRecover(await loadEngine(), lateral(scenario), spec, rows, options);
+  },
+
+  /** The lateral basin's run with its defaults resolved (the gait's speed sets the default rates). */
+  async lateralBasinRun(scenario: unknown, options: LateralBasinOptions): Promise<LateralBasinRun> {
+    return lateralBasinRun(await loadEngine(), lateral(scenario), options);
+  },
+
+  async lateralBasinRows(scenario: unknown, run: LateralBasinRun, range: ShardRange): Promise<LateralBasinCell[]> {
+    return lateralBasinRows(await loadEngine(), lateral(scenario), run, range);
+  },
+
+  async lateralBasinFinish(scenario: unknown, run: LateralBasinRun, cells: LateralBasinCell[]): Promise<LateralBasinResult> {
+    return finishLateralBasin(await loadEngine(), lateral(scenario), run, cells);
   },
 
   async stepdown(scenario: unknown, options: StepToleranceOptions = {}): Promise<StepToleranceResult> {

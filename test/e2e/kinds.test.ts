@@ -184,7 +184,31 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     await t.shot('lateral-map');
 
     // views the lateral model does not run say why
-    expect(await page.locator('#tab-basin').getAttribute('title')).toMatch(/not in the workbench for the lateral model/);
+    expect(await page.locator('#tab-montecarlo').getAttribute('title')).toMatch(/not in the workbench for the lateral model/);
+
+    // its basin: heading and angular-velocity errors from the gait (pronk basin on a lateral scenario)
+    await t.view('basin');
+    const inBasin = async (label: string, value: string) => {
+      const f = page.locator('[role=tabpanel]').getByLabel(label, { exact: true });
+      await f.fill(value);
+      await f.press('Tab');
+    };
+    await inBasin('Heading points', '200000');
+    await inBasin('Angular-velocity points', '200');
+    await page.getByTestId('start-basin').click();
+    // a grid past a million cells is flagged beside the heading fields, nothing runs
+    await expect.poll(() => page.getByTestId('lateral-basin-headings-issue').textContent()).toMatch(/expected at most 1000000 cells, found 40000000/);
+    await inBasin('Heading points', '5');
+    await inBasin('Angular-velocity points', '5');
+    await inBasin('Strides per cell', '12');
+    await page.getByTestId('start-basin').click();
+    await expect.poll(() => page.getByTestId('lateral-attracted').textContent(), { timeout: 60_000 }).toMatch(/^\d+(\.\d+)? ?%$/);
+    const basin = (await t.option('figure-lateral-basin')).series as { id: string; data: unknown[] }[];
+    expect(basin.map((x) => x.id)).toEqual(expect.arrayContaining(['converged', 'wandering', 'fell', 'no_speed', 'current']));
+    // the 25 cells, each in one outcome's series
+    expect(basin.filter((x) => x.id !== 'current').reduce((n, x) => n + x.data.length, 0)).toBe(25);
+    await t.shot('lateral-basin');
+
     await t.view('recover');
     await page.getByTestId('start-recover').click();
     await expect.poll(() => page.getByTestId('recover-outcome').isVisible(), { timeout: 60_000 }).toBe(true);

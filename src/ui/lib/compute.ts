@@ -20,6 +20,7 @@ import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js'
 import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
 import type { LateralScenario } from '../../core/models/lateral.js';
+import type { LateralBasinOptions, LateralBasinResult } from '../../core/analysis/lateral-basin.js';
 import { nextTask } from './yield.js';
 
 /** The next task, unless the job was cancelled meanwhile (a cancel between the last part and the finish still cancels). */
@@ -81,6 +82,13 @@ export async function runLateralRecoverMonteCarlo(pool: EnginePool, scenario: La
   const parts = await pool.map(ranges(spec.rollouts, pool.size * RANGES_PER_WORKER), (api, range) => api.lateralRecoverRows(scenario, spec, range, options), control);
   const rows = parts.flat();
   return pool.use((api) => api.lateralRecoverFinish(scenario, spec, rows, options), control.signal);
+}
+
+/** The lateral model's basin over heading and angular-velocity errors, its cells in ranges over the pool. */
+export async function runLateralBasin(pool: EnginePool, scenario: LateralScenario, options: LateralBasinOptions, control: RunControl = {}): Promise<LateralBasinResult> {
+  const run = await pool.use((api) => api.lateralBasinRun(scenario, options), control.signal);
+  const parts = await pool.map(ranges(run.headings.count * run.rates.count, pool.size * RANGES_PER_WORKER), (api, range) => api.lateralBasinRows(scenario, run, range), control);
+  return pool.use((api) => api.lateralBasinFinish(scenario, run, parts.flat()), control.signal);
 }
 
 export async function runStepdown(pool: EnginePool, scenario: Scenario, control: RunControl = {}): Promise<StepToleranceResult> {

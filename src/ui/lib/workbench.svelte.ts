@@ -9,6 +9,7 @@ import demoBipedRunJson from '../../../scenarios/demo-biped-run.json' with { typ
 import demoHexapodJson from '../../../scenarios/demo-hexapod.json' with { type: 'json' };
 import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
+import type { LateralBasinResult } from '../../core/analysis/lateral-basin.js';
 import { parseLateralScenario, type LateralScenario } from '../../core/models/lateral.js';
 import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js';
 import type { BipedMapResult } from '../../core/analysis/biped-map.js';
@@ -34,6 +35,7 @@ import {
   runBipedTrace,
   runLateralMap,
   runLateralRecover,
+  runLateralBasin,
   runLateralRecoverMonteCarlo,
   runLateralTrace,
   runReturnMap,
@@ -94,6 +96,18 @@ export interface Settings {
   montecarlo: { rollouts: unknown; sigma_m: unknown; seed: unknown; terrain: 'random_walk' | 'random_heights'; strides: unknown };
   /** A kick (the lateral model): at a fraction of a stride, in the body frame; Monte Carlo draws each up to these sizes. */
   recover?: { stride: unknown; fraction: unknown; forward: unknown; left: unknown; angle: unknown; rate: unknown; after: unknown; rollouts: unknown; seed: unknown };
+  /** The lateral model's basin: errors of the heading to the body axis (deg) and of the angular velocity (deg/s) from the gait's. */
+  lateralBasin?: { headings: { lo: unknown; hi: unknown; n: unknown }; rates: { lo: unknown; hi: unknown; n: unknown }; strides: unknown; tolerance: unknown };
+}
+
+/**
+ * The lateral basin's grid as `pronk basin` takes it by default: ±30 deg of heading error and ± a
+ * quarter of v/L0 of angular velocity (v the scenario's start speed; the command uses its gait's),
+ * 21 x 21, 30 strides, converged within 0.1 deg and deg/s.
+ */
+export function defaultLateralBasinSettings(scenario?: LateralScenario | null): NonNullable<Settings['lateralBasin']> {
+  const span = scenario ? Number((((0.25 * scenario.start.speed_m_per_s) / scenario.body.leg_length_m) * (180 / Math.PI)).toPrecision(3)) : 100;
+  return { headings: { lo: -30, hi: 30, n: 21 }, rates: { lo: -span, hi: span, n: 21 }, strides: 30, tolerance: 0.1 };
 }
 
 export function defaultRecoverSettings(): NonNullable<Settings['recover']> {
@@ -141,6 +155,7 @@ export interface Results {
   lateralMap?: Stamped<LateralMapResult>;
   lateralRecover?: Stamped<LateralRecoveryView>;
   lateralRecoverMC?: Stamped<RecoverMonteCarloResult>;
+  lateralBasin?: Stamped<LateralBasinResult>;
 }
 
 export interface Job {
@@ -291,9 +306,10 @@ const SETTING_PATHS: Record<string, Record<string, string>> = {
   basin: { heights: 'basin.heights', speeds: 'basin.speeds', strides: 'basin.strides', 'heights × speeds': 'basin.heights' },
   montecarlo: {},
   recover: {},
+  lateralBasin: { headings: 'lateralBasin.headings', rates: 'lateralBasin.rates', strides: 'lateralBasin.strides', tolerance: 'lateralBasin.tolerance', 'headings × rates': 'lateralBasin.headings' },
 };
 
-export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo' | 'recover', error: unknown): InputIssue[] | null {
+export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin', error: unknown): InputIssue[] | null {
   if (!(error instanceof InputError)) return null;
   return error.issues.map((issue) => ({ ...issue, path: SETTING_PATHS[kind][issue.path] ?? (kind === 'montecarlo' ? `montecarlo.${issue.path}` : `${kind}.${issue.path}`) }));
 }
@@ -957,7 +973,7 @@ export class Workbench {
     return reason === null;
   }
 
-  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo' | 'recover', check: () => void): boolean {
+  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin', check: () => void): boolean {
     const others = this.settingsIssues.filter((i) => !i.path.startsWith(`${kind}.`));
     try {
       check();
@@ -1076,6 +1092,24 @@ export class Workbench {
       runLateralRecover(this.pool, lateral, spec, { stridesAfter: Number(r.after), dt: interval > 0 && interval <= 0.1 ? interval : 0.002 }),
     );
     if (result) this.keep('lateralRecover', this.stamp(result, started, spec, key));
+  }
+
+  /** The lateral gait's basin over errors of its heading to the body axis and angular velocity (the analysis of `pronk basin`). */
+  async runLateralBasin(): Promise<void> {
+    if (!this.kindRuns('basin')) return;
+    const { scenario, key } = this.lastValid;
+    const lateral = asLateral(scenario);
+    if (!lateral) return;
+    const b = this.settings.lateralBasin ?? defaultLateralBasinSettings(lateral);
+    const axis = (a: { lo: unknown; hi: unknown; n: unknown }) => ({ low: num(a.lo), high: num(a.hi), count: num(a.n) });
+    const options = { headings: axis(b.headings), rates: axis(b.rates), strides: num(b.strides), tolerance: num(b.tolerance) };
+    const { checkLateralBasinRun } = await import('../../core/analysis/lateral-basin.js');
+    if (!this.checkSettings('lateralBasin', () => checkLateralBasinRun(options))) return;
+    const started = performance.now();
+    const result = await this.job('basin', 'Basin of the lateral gait', (signal, progress) =>
+      runLateralBasin(this.pool, lateral, options, { signal, onProgress: (d, t) => progress(d, t, 'ranges') }),
+    );
+    if (result) this.keep('lateralBasin', this.stamp(result, started, options, key));
   }
 
   /** Monte Carlo over random kicks up to the sizes of the recovery settings (common random numbers by seed). */
