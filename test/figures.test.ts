@@ -49,6 +49,8 @@ import {
 import { renderSvg } from '../src/core/figures/svg.js';
 import { lateralBasin, type LateralBasinResult } from '../src/core/analysis/lateral-basin.js';
 import { lateralBasinFigure } from '../src/core/figures/lateral-basin.js';
+import { lateralScan, type LateralScanResult } from '../src/core/analysis/lateral-scan.js';
+import { lateralScanFigure } from '../src/core/figures/lateral-scan.js';
 import { parseLateralScenario } from '../src/core/models/lateral.js';
 import demoHexapod from '../scenarios/demo-hexapod.json' with { type: 'json' };
 
@@ -248,6 +250,7 @@ let scanned: ScanResult;
 let basinGrid: BasinResult;
 let basinEnergy: BasinResult;
 let lateral: LateralBasinResult;
+let lateralScanned: LateralScanResult;
 let robust: RobustnessResult;
 let robustSteeper: RobustnessResult;
 let steps: StepToleranceResult;
@@ -288,6 +291,8 @@ beforeAll(async () => {
     rates: { low: -40, high: 40, count: 5 },
     strides: 20,
   });
+  // its stability over the attachment offset (behind, at, ahead of the centre of mass) and the touchdown angle
+  lateralScanned = lateralScan(await loadEngine(), parseLateralScenario(demoHexapod), { path: 'body.attachment_offset_m', lo: -0.02, hi: 0.02, n: 3 }, { path: 'policy.angle.angle_to_body_deg', lo: 55, hi: 75, n: 2 });
   // two restarts of a real NLopt run on a quadratic bowl (its minimum 0 at (1, 2))
   restarts = [];
   for (const [k, x0] of [[0, -1.5], [1, 1.5]].entries()) {
@@ -542,6 +547,30 @@ describe('lateral basin figure', () => {
   });
 });
 
+describe('lateral stability regions figure', () => {
+  it('cells by class at their parameter values, stable shaded by the largest reduced |eigenvalue|', () => {
+    const option = lateralScanFigure(lateralScanned);
+    for (const cls of ['stable', 'neutral', 'unstable', 'none'] as const) {
+      const expected = lateralScanned.cells
+        .map((cell, i) => ({ cell, i }))
+        .filter(({ cell }) => cell.class === cls)
+        .map(({ cell, i }) => [cell.x, cell.y, cls === 'stable' ? cell.largest_modulus : cls === 'unstable' ? cell.gaits : 0, i]);
+      expect(values(series(option, cls))).toEqual(expected);
+      expect(expected.length).toBe(lateralScanned.counts[cls]);
+    }
+    // Schmitt & Holmes 2000 (as the model's tests check it): the force through a point behind the
+    // centre of mass gives a stable gait, through it a neutral one, ahead of it unstable ones only
+    const column = (d: number) => lateralScanned.cells.filter((c) => c.x === d).map((c) => c.class);
+    expect(column(-0.02)).toEqual(['stable', 'stable']);
+    expect(column(0)).toEqual(['neutral', 'neutral']);
+    expect(column(0.02)).toEqual(['unstable', 'unstable']);
+  });
+
+  it('renders to a well-formed SVG', () => {
+    expectSvg(lateralScanFigure(lateralScanned), ['Leg attachment offset d (m)', 'Touchdown angle to body axis (°)']);
+  });
+});
+
 describe('survival figure', () => {
   it('carries survival after each stride and its Wilson band', () => {
     const option = survivalFigure(robust);
@@ -779,13 +808,14 @@ describe('stride scene', () => {
 
 describe('figure index', () => {
   it('names every builder and picks the figure of each plottable command', () => {
-    expect(Object.keys(FIGURES).sort()).toEqual(['basin', 'convergence', 'lateralBasin', 'policyComparison', 'returnMap', 'stabilityRegions', 'stanceForces', 'strideScene', 'survival']);
+    expect(Object.keys(FIGURES).sort()).toEqual(['basin', 'convergence', 'lateralBasin', 'lateralScan', 'policyComparison', 'returnMap', 'stabilityRegions', 'stanceForces', 'strideScene', 'survival']);
     const id = (o: FigureOption) => seriesOf(o).map((s) => s.id);
     expect(id(figureForCommand('map', map))).toEqual(id(returnMapFigure(map)));
     expect(id(figureForCommand('scan', scanned))).toEqual(['stable', 'unstable', 'none']);
     expect(id(figureForCommand('basin', basinGrid))).toEqual(['converged', 'wandering', 'fell']);
     // a lateral scenario's basin (its result grids heading and angular-velocity errors)
     expect(id(figureForCommand('basin', lateral))).toEqual(['converged', 'wandering', 'fell', 'no_speed', 'current']);
+    expect(id(figureForCommand('scan', lateralScanned))).toEqual(['stable', 'neutral', 'unstable', 'none']);
     expect(id(figureForCommand('robustness', robust))).toEqual(['survival-band', 'survival']);
     expect(() => figureForCommand('simulate', {})).toThrow(InputError);
   });
@@ -841,6 +871,16 @@ describe('pronk ... --plot FILE.svg', () => {
     expect(m.status, m.stderr).toBe(0);
     // the merged figure is the one-machine run's, byte for byte (the same result drawn)
     expect(readFileSync(merged, 'utf8')).toBe(svg);
+  });
+
+  it('scan on a lateral scenario writes its figure', () => {
+    const file = join(dir, 'lateral-scan.svg');
+    const r = pronk('scan', 'scenarios/demo-hexapod.json', '--x', 'body.attachment_offset_m:-0.02:0.02:3', '--y', 'policy.angle.angle_to_body_deg:55:75:2', '--json', '--plot', file);
+    expect(r.status, r.stderr).toBe(0);
+    expect(JSON.parse(r.stdout).counts).toEqual({ none: 0, unstable: 2, neutral: 2, stable: 2 });
+    const svg = readFileSync(file, 'utf8');
+    expect(checkWellFormedXml(svg).root).toBe('svg');
+    expect(svgTexts(svg)).toContain('Leg attachment offset d (m)');
   });
 
   it('merge --plot draws the merged result', () => {

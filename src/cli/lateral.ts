@@ -360,7 +360,7 @@ export function renderLateralScan(s: LateralScenario, r: LateralScanResult): str
 export async function runLateralScan(
   s: LateralScenario,
   io: CliIO,
-  options: { json: boolean; options: ScanOptions; shard?: ShardSpec; outFile?: CheckedOutput },
+  options: { json: boolean; options: ScanOptions; shard?: ShardSpec; outFile?: CheckedOutput; plotFile?: CheckedOutput },
 ): Promise<number> {
   const { loadEngine } = await import('../core/engine.js');
   const core = await import('../core/analysis/lateral-scan.js');
@@ -391,5 +391,6 @@ export async function runLateralScan(
   }
   const r = core.finishLateralScan(x, y, rows);
   await writeText(io, options.outFile, options.json ? lateralScanJson(s, r) : renderLateralScan(s, r), 'scan');
+  if (options.plotFile !== undefined) await writePlotFile(io, 'scan', options.plotFile, r);
   return 0;
 }

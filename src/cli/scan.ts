@@ -73,15 +73,15 @@ async function runScan({ values, positionals }: ParsedCommandLine, io: CliIO): P
   const any = await anyScenarioArgument(file, io, 'scan');
   if (any.kind === 'lateral') {
     // --workers is accepted and changes nothing (the lateral scan runs in this thread)
-    const refused = ['samples', 'plot'].filter((k) => values[k] !== undefined);
+    const refused = ['samples'].filter((k) => values[k] !== undefined);
     if (refused.length) {
       throw new InputError(
-        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its scan takes --x, --y, --workers, --shard, --out, --json)', found: String(values[refused[0]]) }],
+        [{ path: `--${refused[0]}`, expected: 'none with a "lateral" scenario (its scan takes --x, --y, --workers, --shard, --out, --plot, --json)', found: String(values[refused[0]]) }],
         { source: SOURCE },
       );
     }
     const { runLateralScan } = await import('./lateral.js');
-    return withSourceAsync(() => runLateralScan(any.scenario, io, { json, options, shard, outFile }));
+    return withSourceAsync(() => runLateralScan(any.scenario, io, { json, options, shard, outFile, plotFile }));
   }
   const scenario = any.scenario;
 

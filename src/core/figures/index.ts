@@ -5,6 +5,7 @@
 import { InputError, describeFound } from '../errors.js';
 import type { BasinResult } from '../analysis/basin.js';
 import type { LateralBasinResult } from '../analysis/lateral-basin.js';
+import type { LateralScanResult } from '../analysis/lateral-scan.js';
 import type { ReturnMapResult } from '../analysis/return-map.js';
 import type { RobustnessResult } from '../analysis/robustness.js';
 import type { ScanResult } from '../analysis/scan.js';
@@ -12,6 +13,7 @@ import { basinFigure } from './basin.js';
 import { policyComparisonFigure } from './comparison.js';
 import { convergenceFigure } from './convergence.js';
 import { lateralBasinFigure } from './lateral-basin.js';
+import { lateralScanFigure } from './lateral-scan.js';
 import { returnMapFigure } from './return-map.js';
 import { stabilityRegionsFigure } from './stability-regions.js';
 import { stanceForceFigure } from './stance-forces.js';
@@ -23,6 +25,7 @@ export { basinFigure, basinCellPosition, type BasinFigureOptions } from './basin
 export { policyComparisonFigure, type ComparisonFigureOptions, type PolicyRun } from './comparison.js';
 export { convergenceFigure, type ConvergenceFigureOptions, type ConvergenceRestart } from './convergence.js';
 export { lateralBasinFigure, lateralBasinCellPosition, type LateralBasinFigureOptions } from './lateral-basin.js';
+export { lateralScanFigure, type LateralScanFigureOptions } from './lateral-scan.js';
 export { cobweb, returnMapComparisonFigure, returnMapFigure, type LabelledMap, type ReturnMapFigureOptions } from './return-map.js';
 export { cellAxis, cellEdges, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
 export { parameterName, parameterTitle, unitOfPath, type ParameterName } from './labels.js';
@@ -52,6 +55,8 @@ export const FIGURES = {
   strideScene,
   /** Figure 9, `pronk basin` on a lateral scenario: lateralBasinFigure(result: LateralBasinResult, options?) */
   lateralBasin: lateralBasinFigure,
+  /** Figure 10, `pronk scan` on a lateral scenario: lateralScanFigure(result: LateralScanResult, options?) */
+  lateralScan: lateralScanFigure,
 } as const;
 
 export type FigureName = keyof typeof FIGURES;
@@ -66,7 +71,10 @@ export function figureForCommand(command: string, result: unknown): FigureOption
     case 'map':
       return returnMapFigure(result as ReturnMapResult);
     case 'scan':
-      return stabilityRegionsFigure(result as ScanResult);
+      // a lateral scenario's scan classes its cells' gaits: stable, neutral, unstable, none
+      return result !== null && typeof result === 'object' && 'neutral' in ((result as { counts?: object }).counts ?? {})
+        ? lateralScanFigure(result as LateralScanResult)
+        : stabilityRegionsFigure(result as ScanResult);
     case 'basin':
       // a lateral scenario's basin grids heading and angular-velocity errors
       return result !== null && typeof result === 'object' && 'headings_deg' in result
