@@ -7,7 +7,7 @@
 import * as Comlink from 'comlink';
 import { loadEngine, type BatchRequest, type BatchResult } from '../core/engine.js';
 import { apexReturnMap, type ReturnMapOptions, type ReturnMapResult } from '../core/analysis/return-map.js';
-import { scanShard, type ScanOptions, type ScanCell } from '../core/analysis/scan.js';
+import { scanShard, type ScanAxis, type ScanOptions, type ScanCell } from '../core/analysis/scan.js';
 import { basinRows, type BasinRow, type BasinRunOptions } from '../core/analysis/basin.js';
 import { robustnessRows, type RobustnessOptions, type RobustnessRow } from '../core/analysis/robustness.js';
 import { stepTolerance, type StepToleranceOptions, type StepToleranceResult } from '../core/analysis/stepdown.js';
@@ -28,6 +28,7 @@ import {
   type LateralBasinResult,
   type LateralBasinRun,
 } from '../core/analysis/lateral-basin.js';
+import { finishLateralScan, lateralScanRows, type LateralScanCell, type LateralScanResult } from '../core/analysis/lateral-scan.js';
 
 /** One kick judged, with the paths with and without it (the workbench's recovery view). */
 export interface LateralRecoveryView {
@@ -137,6 +138,14 @@ const api = {
 
   async lateralBasinFinish(scenario: unknown, run: LateralBasinRun, cells: LateralBasinCell[]): Promise<LateralBasinResult> {
     return finishLateralBasin(await loadEngine(), lateral(scenario), run, cells);
+  },
+
+  async lateralScanRows(scenario: unknown, x: ScanAxis, y: ScanAxis, range: ShardRange): Promise<LateralScanCell[]> {
+    return lateralScanRows(await loadEngine(), lateral(scenario), x, y, range);
+  },
+
+  async lateralScanFinish(x: ScanAxis, y: ScanAxis, cells: LateralScanCell[]): Promise<LateralScanResult> {
+    return finishLateralScan(x, y, cells);
   },
 
   async stepdown(scenario: unknown, options: StepToleranceOptions = {}): Promise<StepToleranceResult> {

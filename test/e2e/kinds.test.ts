@@ -186,6 +186,29 @@ describe.skipIf(!available)('model kinds in the workbench', () => {
     // views the lateral model does not run say why
     expect(await page.locator('#tab-montecarlo').getAttribute('title')).toMatch(/not in the workbench for the lateral model/);
 
+    // its stability regions (pronk scan on a lateral scenario): the default axes are the attachment
+    // offset by the touchdown angle; 3 x 2 of them (55 and 75 deg), behind, at and ahead of the centre of mass
+    await t.view('scan');
+    const inScan = async (label: string, value: string, nth: number) => {
+      const f = page.locator('[role=tabpanel]').getByLabel(label, { exact: true }).nth(nth);
+      await f.fill(value);
+      await f.press('Tab');
+    };
+    await inScan('Points', '3', 0);
+    await inScan('From', '55', 1);
+    await inScan('To', '75', 1);
+    await inScan('Points', '2', 1);
+    await page.getByTestId('start-scan').click();
+    await expect.poll(() => page.getByTestId('lateral-scan-counts').isVisible(), { timeout: 120_000 }).toBe(true);
+    const regions = (await t.option('figure-lateral-scan')).series as { id: string; data: number[][] }[];
+    const classOf = (d: number) => regions.filter((x) => x.data.some((p) => Math.abs(p[0] - d) < 1e-12)).map((x) => x.id);
+    // Schmitt & Holmes 2000: behind the centre of mass stable, at it neutral, ahead unstable only
+    const reach = Number((0.25 * 0.08).toPrecision(2)); // a quarter of the demo's leg length (scenarios/demo-hexapod.json)
+    expect(classOf(-reach)).toEqual(['stable']);
+    expect(classOf(0)).toEqual(['neutral']);
+    expect(classOf(reach)).toEqual(['unstable']);
+    await t.shot('lateral-scan');
+
     // its basin: heading and angular-velocity errors from the gait (pronk basin on a lateral scenario)
     await t.view('basin');
     const inBasin = async (label: string, value: string) => {

@@ -126,6 +126,8 @@ describe('what each kind runs', () => {
     expect(viewUnsupported('biped', 'basin')).toBeNull();
     expect(viewUnsupported('biped', 'optimize')).toBeNull();
     expect(viewUnsupported('lateral', 'optimize')).toBeNull();
+    expect(viewUnsupported('lateral', 'scan')).toBeNull();
+    expect(viewUnsupported('lateral', 'basin')).toBeNull();
     expect(viewUnsupported('biped', 'compare')).toMatch(/^the comparison: not in the workbench for the two-leg model yet/);
     expect(viewUnsupported('lateral', 'montecarlo')).toMatch(/not in the workbench for the lateral model/);
     expect(viewUnsupported('slip', 'recover')).toMatch(/for the lateral model only/);
@@ -135,9 +137,9 @@ describe('what each kind runs', () => {
     const wb = new Workbench({ pool: idlePool });
     wb.loadScenarioDraft(structuredClone(demoHexapod));
     wb.lastValid = { scenario: checkScenario(demoHexapod).value!, key: 'lateral', at: 0 };
-    await wb.runScan();
-    expect(wb.results.scan).toBeUndefined();
-    expect(wb.notices.at(-1)?.text).toMatch(/^Stability regions: not in the workbench for the lateral model/);
+    await wb.runMonteCarlo();
+    expect(wb.results.montecarlo).toBeUndefined();
+    expect(wb.notices.at(-1)?.text).toMatch(/^Monte Carlo on rough ground: not in the workbench for the lateral model/);
   });
 
   it('carries shared numbers over a switch and lists what a switch loses', () => {

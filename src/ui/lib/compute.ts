@@ -21,6 +21,7 @@ import type { LateralMapResult, LateralSimulation } from '../../core/analysis/la
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
 import type { LateralScenario } from '../../core/models/lateral.js';
 import type { LateralBasinOptions, LateralBasinResult } from '../../core/analysis/lateral-basin.js';
+import type { LateralScanResult } from '../../core/analysis/lateral-scan.js';
 import { nextTask } from './yield.js';
 
 /** The next task, unless the job was cancelled meanwhile (a cancel between the last part and the finish still cancels). */
@@ -89,6 +90,13 @@ export async function runLateralBasin(pool: EnginePool, scenario: LateralScenari
   const run = await pool.use((api) => api.lateralBasinRun(scenario, options), control.signal);
   const parts = await pool.map(ranges(run.headings.count * run.rates.count, pool.size * RANGES_PER_WORKER), (api, range) => api.lateralBasinRows(scenario, run, range), control);
   return pool.use((api) => api.lateralBasinFinish(scenario, run, parts.flat()), control.signal);
+}
+
+/** The lateral model's stability regions: each cell's gaits at its own energy, in ranges over the pool. */
+export async function runLateralScan(pool: EnginePool, scenario: LateralScenario, options: ScanOptions, control: RunControl = {}): Promise<LateralScanResult> {
+  const { x, y } = checkScan(scenario as unknown as Scenario, options);
+  const parts = await pool.map(ranges(x.n * y.n, pool.size * RANGES_PER_WORKER), (api, range) => api.lateralScanRows(scenario, x, y, range), control);
+  return pool.use((api) => api.lateralScanFinish(x, y, parts.flat()), control.signal);
 }
 
 export async function runStepdown(pool: EnginePool, scenario: Scenario, control: RunControl = {}): Promise<StepToleranceResult> {

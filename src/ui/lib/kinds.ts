@@ -26,7 +26,7 @@ export function draftKind(draft: unknown): DraftKind {
 const SUPPORTED: Record<DraftKind, readonly ViewName[]> = {
   slip: ['map', 'stride', 'scan', 'basin', 'montecarlo', 'optimize', 'compare'],
   biped: ['map', 'stride', 'scan', 'basin', 'montecarlo', 'optimize'],
-  lateral: ['map', 'stride', 'basin', 'recover', 'optimize'],
+  lateral: ['map', 'stride', 'scan', 'basin', 'recover', 'optimize'],
 };
 
 const VIEW_WORDS: Record<ViewName, string> = {

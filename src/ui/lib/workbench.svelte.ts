@@ -10,6 +10,7 @@ import demoHexapodJson from '../../../scenarios/demo-hexapod.json' with { type: 
 import type { LateralMapResult, LateralSimulation } from '../../core/analysis/lateral.js';
 import type { KickSpec, RandomKickSpec, RecoverMonteCarloResult } from '../../core/analysis/recover.js';
 import type { LateralBasinResult } from '../../core/analysis/lateral-basin.js';
+import type { LateralScanResult } from '../../core/analysis/lateral-scan.js';
 import { parseLateralScenario, type LateralScenario } from '../../core/models/lateral.js';
 import type { LateralRecoveryView } from '../../worker/browser-engine-worker.js';
 import type { BipedMapResult } from '../../core/analysis/biped-map.js';
@@ -36,6 +37,7 @@ import {
   runLateralMap,
   runLateralRecover,
   runLateralBasin,
+  runLateralScan,
   runLateralRecoverMonteCarlo,
   runLateralTrace,
   runReturnMap,
@@ -98,6 +100,8 @@ export interface Settings {
   recover?: { stride: unknown; fraction: unknown; forward: unknown; left: unknown; angle: unknown; rate: unknown; after: unknown; rollouts: unknown; seed: unknown };
   /** The lateral model's basin: errors of the heading to the body axis (deg) and of the angular velocity (deg/s) from the gait's. */
   lateralBasin?: { headings: { lo: unknown; hi: unknown; n: unknown }; rates: { lo: unknown; hi: unknown; n: unknown }; strides: unknown; tolerance: unknown };
+  /** The lateral model's stability regions: two parameter axes (no map samples: its gaits are found, not sampled). */
+  lateralScan?: { x: { path: unknown; lo: unknown; hi: unknown; n: unknown }; y: { path: unknown; lo: unknown; hi: unknown; n: unknown } };
 }
 
 /**
@@ -108,6 +112,20 @@ export interface Settings {
 export function defaultLateralBasinSettings(scenario?: LateralScenario | null): NonNullable<Settings['lateralBasin']> {
   const span = scenario ? Number((((0.25 * scenario.start.speed_m_per_s) / scenario.body.leg_length_m) * (180 / Math.PI)).toPrecision(3)) : 100;
   return { headings: { lo: -30, hi: 30, n: 21 }, rates: { lo: -span, hi: span, n: 21 }, strides: 30, tolerance: 0.1 };
+}
+
+/**
+ * The lateral scan's default axes: the attachment offset a quarter of the leg length either side
+ * of the centre of mass (9 points, the centre among them) by the touchdown angle 10 deg either side
+ * of the scenario's (5 points): behind, at and ahead of the centre (Schmitt & Holmes 2000).
+ */
+export function defaultLateralScanSettings(scenario?: LateralScenario | null): NonNullable<Settings['lateralScan']> {
+  const reach = scenario ? Number((0.25 * scenario.body.leg_length_m).toPrecision(2)) : 0.02;
+  const angle = scenario ? scenario.policy.angle.angle_to_body_deg : 60;
+  return {
+    x: { path: 'body.attachment_offset_m', lo: -reach, hi: reach, n: 9 },
+    y: { path: 'policy.angle.angle_to_body_deg', lo: Math.max(1, Math.round(angle - 10)), hi: Math.min(89, Math.round(angle + 10)), n: 5 },
+  };
 }
 
 export function defaultRecoverSettings(): NonNullable<Settings['recover']> {
@@ -156,6 +174,7 @@ export interface Results {
   lateralRecover?: Stamped<LateralRecoveryView>;
   lateralRecoverMC?: Stamped<RecoverMonteCarloResult>;
   lateralBasin?: Stamped<LateralBasinResult>;
+  lateralScan?: Stamped<LateralScanResult>;
 }
 
 export interface Job {
@@ -306,10 +325,11 @@ const SETTING_PATHS: Record<string, Record<string, string>> = {
   basin: { heights: 'basin.heights', speeds: 'basin.speeds', strides: 'basin.strides', 'heights × speeds': 'basin.heights' },
   montecarlo: {},
   recover: {},
+  lateralScan: { '--x': 'lateralScan.x', '--y': 'lateralScan.y', '--x, --y': 'lateralScan.x' },
   lateralBasin: { headings: 'lateralBasin.headings', rates: 'lateralBasin.rates', strides: 'lateralBasin.strides', tolerance: 'lateralBasin.tolerance', 'headings × rates': 'lateralBasin.headings' },
 };
 
-export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin', error: unknown): InputIssue[] | null {
+export function settingsIssues(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin' | 'lateralScan', error: unknown): InputIssue[] | null {
   if (!(error instanceof InputError)) return null;
   return error.issues.map((issue) => ({ ...issue, path: SETTING_PATHS[kind][issue.path] ?? (kind === 'montecarlo' ? `montecarlo.${issue.path}` : `${kind}.${issue.path}`) }));
 }
@@ -973,7 +993,7 @@ export class Workbench {
     return reason === null;
   }
 
-  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin', check: () => void): boolean {
+  private checkSettings(kind: 'scan' | 'basin' | 'montecarlo' | 'recover' | 'lateralBasin' | 'lateralScan', check: () => void): boolean {
     const others = this.settingsIssues.filter((i) => !i.path.startsWith(`${kind}.`));
     try {
       check();
@@ -989,6 +1009,7 @@ export class Workbench {
 
   async runScan(): Promise<void> {
     if (!this.kindRuns('scan')) return;
+    if (asLateral(this.lastValid.scenario)) return this.runLateralScan();
     const { scenario, key } = this.lastValid;
     const options = scanOptions(this.settings.scan);
     if (!this.checkSettings('scan', () => checkScan(scenario, options))) return;
@@ -1001,6 +1022,7 @@ export class Workbench {
 
   async runBasin(): Promise<void> {
     if (!this.kindRuns('basin')) return;
+    if (asLateral(this.lastValid.scenario)) return this.runLateralBasin();
     const { scenario, key } = this.lastValid;
     const options = basinOptions(this.settings.basin);
     if (!this.checkSettings('basin', () => runBasinCheck(scenario, options))) return;
@@ -1092,6 +1114,23 @@ export class Workbench {
       runLateralRecover(this.pool, lateral, spec, { stridesAfter: Number(r.after), dt: interval > 0 && interval <= 0.1 ? interval : 0.002 }),
     );
     if (result) this.keep('lateralRecover', this.stamp(result, started, spec, key));
+  }
+
+  /** The lateral model's stability regions over two parameters (the analysis of `pronk scan`). */
+  async runLateralScan(): Promise<void> {
+    if (!this.kindRuns('scan')) return;
+    const { scenario, key } = this.lastValid;
+    const lateral = asLateral(scenario);
+    if (!lateral) return;
+    const a = this.settings.lateralScan ?? defaultLateralScanSettings(lateral);
+    const axis = (v: { path: unknown; lo: unknown; hi: unknown; n: unknown }) => ({ path: String(v.path ?? ''), lo: num(v.lo), hi: num(v.hi), n: num(v.n) });
+    const options: ScanOptions = { x: axis(a.x), y: axis(a.y), samples: 2 };
+    if (!this.checkSettings('lateralScan', () => checkScan(scenario, options))) return;
+    const started = performance.now();
+    const result = await this.job('scan', 'Stability regions of the lateral gait', (signal, progress) =>
+      runLateralScan(this.pool, lateral, options, { signal, onProgress: (d, t) => progress(d, t, 'ranges') }),
+    );
+    if (result) this.keep('lateralScan', this.stamp(result, started, { x: options.x, y: options.y }, key));
   }
 
   /** The lateral gait's basin over errors of its heading to the body axis and angular velocity (the analysis of `pronk basin`). */
