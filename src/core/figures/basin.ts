@@ -9,7 +9,7 @@
 
 import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { BasinCell, BasinResult } from '../analysis/basin.js';
-import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { cellAxis, cellSeries, constantVisualMap, currentPointSeries, type CellDatum } from './cells.js';
 import { parameterTitle } from './labels.js';
 import { OUTCOME_COLORS, PALETTE, STATE_COLORS, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
@@ -69,8 +69,8 @@ export function basinFigure(result: BasinResult, options: BasinFigureOptions = {
     else if (current.forward_speed_m_per_s !== undefined && Number.isFinite(current.forward_speed_m_per_s)) series.push(currentPointSeries(current.forward_speed_m_per_s, current.apex_height_m));
   }
   const visualMap: VisualMapComponentOption[] = [
-    { type: 'piecewise', show: false, seriesIndex: 0, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [OUTCOME_COLORS.converged] } },
-    { type: 'piecewise', show: false, seriesIndex: 1, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [OUTCOME_COLORS.wandering] } },
+    constantVisualMap(0, OUTCOME_COLORS.converged),
+    constantVisualMap(1, OUTCOME_COLORS.wandering),
     {
       type: 'continuous',
       seriesIndex: 2,

@@ -7,8 +7,8 @@
 // current-point marker share the axes' units), value what a visual map colours by, and the index
 // into the result's cells (what a click in the workbench loads).
 
-import type { CustomSeriesOption, CustomSeriesRenderItemAPI, CustomSeriesRenderItemParams, ScatterSeriesOption, XAXisComponentOption, YAXisComponentOption } from 'echarts';
-import { PALETTE, TYPE, niceTicks, tickText, valueXAxis, valueYAxis } from './theme.js';
+import type { CustomSeriesOption, CustomSeriesRenderItemAPI, CustomSeriesRenderItemParams, ScatterSeriesOption, VisualMapComponentOption, XAXisComponentOption, YAXisComponentOption } from 'echarts';
+import { PALETTE, STABILITY_COLORS, TYPE, niceTicks, tickText, valueXAxis, valueYAxis, type Frame } from './theme.js';
 
 export type CellDatum = [x: number, y: number, value: number, index: number];
 
@@ -171,5 +171,32 @@ export function currentPointSeries(x: number, y: number, label = 'current scenar
     label: { show: true, position: 'right', formatter: 'current', fontSize: TYPE.label, color: PALETTE.ink, backgroundColor: 'rgba(255,255,255,0.9)', padding: [2, 4] },
     silent: true,
     z: 10,
+  };
+}
+
+// ECharts colours a custom series' items through a visual map over their value (dimension 2).
+
+/** A hidden map that paints every cell of series `seriesIndex` one colour. */
+export function constantVisualMap(seriesIndex: number, color: string): VisualMapComponentOption {
+  return { type: 'piecewise', show: false, seriesIndex, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [color] } };
+}
+
+/** The shown map of series `seriesIndex`'s cells from 0 (darkest) to 1 (marginal) on the stable ramp, at the figure's right. */
+export function stableRampVisualMap(seriesIndex: number, frame: Required<Frame>, text: [top: string, bottom: string]): VisualMapComponentOption {
+  return {
+    type: 'continuous',
+    seriesIndex,
+    dimension: 2,
+    min: 0,
+    max: 1,
+    inRange: { color: [...STABILITY_COLORS.stableRamp] },
+    text,
+    textStyle: { fontSize: TYPE.label, color: PALETTE.ink },
+    calculable: true,
+    precision: 2,
+    orient: 'vertical',
+    right: 16,
+    top: 'middle',
+    itemHeight: Math.max(80, Math.min(240, frame.height - 260)),
   };
 }

@@ -9,7 +9,7 @@
 
 import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { LateralBasinCell, LateralBasinOutcome, LateralBasinResult } from '../analysis/lateral-basin.js';
-import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { cellAxis, cellSeries, constantVisualMap, currentPointSeries, type CellDatum } from './cells.js';
 import { PALETTE, STATE_COLORS, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface LateralBasinFigureOptions {
@@ -53,14 +53,7 @@ export function lateralBasinFigure(result: LateralBasinResult, options: LateralB
     series.push({ ...gait, label: { ...gait.label, formatter: 'gait' } });
   }
   const colours = [STATE_COLORS.converged, STATE_COLORS.wandering, STATE_COLORS.fell, STATE_COLORS.none];
-  const visualMap: VisualMapComponentOption[] = colours.map((colour, seriesIndex) => ({
-    type: 'piecewise',
-    show: false,
-    seriesIndex,
-    dimension: 2,
-    pieces: [{ min: -Infinity, max: Infinity }],
-    inRange: { color: [colour] },
-  }));
+  const visualMap: VisualMapComponentOption[] = colours.map((colour, seriesIndex) => constantVisualMap(seriesIndex, colour));
   const c = result.counts;
   const cells = result.cells.length;
   const g = result.gait;

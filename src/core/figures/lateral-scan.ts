@@ -10,9 +10,9 @@
 
 import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { LateralScanCell, LateralScanClass, LateralScanResult } from '../analysis/lateral-scan.js';
-import { cellAxis, cellSeries, type CellDatum } from './cells.js';
+import { cellAxis, cellSeries, constantVisualMap, stableRampVisualMap, type CellDatum } from './cells.js';
 import { parameterTitle } from './labels.js';
-import { PALETTE, STABILITY_COLORS, STATE_COLORS, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
+import { PALETTE, STABILITY_COLORS, STATE_COLORS, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface LateralScanFigureOptions {
   title?: string;
@@ -45,34 +45,11 @@ export function lateralScanFigure(result: LateralScanResult, options: LateralSca
     cellSeries({ id: 'unstable', name: 'unstable gaits only (slashed)', data: data.unstable, xs, ys, color: STATE_COLORS.unstable, glyph: 'slash', glyphColor: PALETTE.ink, tooltip: tip }),
     cellSeries({ id: 'none', name: 'no periodic gait', data: data.none, xs, ys, color: STATE_COLORS.none, outline: '#cfcac0', tooltip: tip }),
   ];
-  const constant = (seriesIndex: number, colour: string): VisualMapComponentOption => ({
-    type: 'piecewise',
-    show: false,
-    seriesIndex,
-    dimension: 2,
-    pieces: [{ min: -Infinity, max: Infinity }],
-    inRange: { color: [colour] },
-  });
   const visualMap: VisualMapComponentOption[] = [
-    {
-      type: 'continuous',
-      seriesIndex: 0,
-      dimension: 2,
-      min: 0,
-      max: 1,
-      inRange: { color: [...STABILITY_COLORS.stableRamp] },
-      text: ['|eigenvalue| 1 (marginal)', '|eigenvalue| 0'],
-      textStyle: { fontSize: TYPE.label, color: PALETTE.ink },
-      calculable: true,
-      precision: 2,
-      orient: 'vertical',
-      right: 16,
-      top: 'middle',
-      itemHeight: Math.max(80, Math.min(240, frame.height - 260)),
-    },
-    constant(1, NEUTRAL),
-    constant(2, STABILITY_COLORS.unstable),
-    constant(3, STABILITY_COLORS.none),
+    stableRampVisualMap(0, frame, ['|eigenvalue| 1 (marginal)', '|eigenvalue| 0']),
+    constantVisualMap(1, NEUTRAL),
+    constantVisualMap(2, STABILITY_COLORS.unstable),
+    constantVisualMap(3, STABILITY_COLORS.none),
   ];
   const c = result.counts;
   const total = result.cells.length;

@@ -8,9 +8,9 @@
 
 import type { SeriesOption, VisualMapComponentOption } from 'echarts';
 import type { ScanCell, ScanResult } from '../analysis/scan.js';
-import { cellAxis, cellSeries, currentPointSeries, type CellDatum } from './cells.js';
+import { cellAxis, cellSeries, constantVisualMap, currentPointSeries, stableRampVisualMap, type CellDatum } from './cells.js';
 import { parameterTitle } from './labels.js';
-import { STABILITY_COLORS, STATE_COLORS, PALETTE, TYPE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
+import { STABILITY_COLORS, STATE_COLORS, PALETTE, baseOption, frameOf, header, num, tooltip, type FigureOption, type Frame } from './theme.js';
 
 export interface StabilityRegionsFigureOptions {
   title?: string;
@@ -48,24 +48,9 @@ export function stabilityRegionsFigure(result: ScanResult, options: StabilityReg
   // ECharts colours custom series through a visual map: one shown for the stable ramp, one
   // constant, hidden map for each other class.
   const visualMap: VisualMapComponentOption[] = [
-    {
-      type: 'continuous',
-      seriesIndex: 0,
-      dimension: 2,
-      min: 0,
-      max: 1,
-      inRange: { color: [...STABILITY_COLORS.stableRamp] },
-      text: ['|slope| 1 (marginal)', '|slope| 0'],
-      textStyle: { fontSize: TYPE.label, color: PALETTE.ink },
-      calculable: true,
-      precision: 2,
-      orient: 'vertical',
-      right: 16,
-      top: 'middle',
-      itemHeight: Math.max(80, Math.min(240, frame.height - 260)),
-    },
-    { type: 'piecewise', show: false, seriesIndex: 1, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [STABILITY_COLORS.unstable] } },
-    { type: 'piecewise', show: false, seriesIndex: 2, dimension: 2, pieces: [{ min: -Infinity, max: Infinity }], inRange: { color: [STABILITY_COLORS.none] } },
+    stableRampVisualMap(0, frame, ['|slope| 1 (marginal)', '|slope| 0']),
+    constantVisualMap(1, STABILITY_COLORS.unstable),
+    constantVisualMap(2, STABILITY_COLORS.none),
   ];
   const total = result.cells.length;
   const range = result.cell_energy_range_J as [number, number] | undefined;

@@ -756,6 +756,16 @@ export class Workbench {
     this.notify('info', `${label}: ${values.map((v) => `${fieldLabel('sc', v.path)} ${Number(v.value.toPrecision(6))}`).join(', ')}. Undo (Ctrl+Z) goes back.`);
   }
 
+  /** Loads a stability map's cell, its values of the map's two parameters, into the scenario. */
+  loadScanCell(scan: { x: { path: string }; y: { path: string }; cells: readonly { x: number; y: number }[] }, index: number): void {
+    const cell = scan.cells[index];
+    if (!cell) return;
+    this.loadPoint('Point loaded from the stability map', [
+      { path: scan.x.path, value: cell.x },
+      { path: scan.y.path, value: cell.y },
+    ]);
+  }
+
   /** The model kind the views show: the last valid scenario's. */
   get kind(): DraftKind {
     return draftKind(this.lastValid.scenario);
